@@ -1,0 +1,95 @@
+//! Reading network files: the TOML text, and the CSV tables it refers to.
+//!
+//! This is the only module that knows the TOML layout ([`schema`]) and the only one below
+//! the CLI that touches the file system on the way in. [`load`] reads the file and every CSV it
+//! names, so that `network::build` is a pure function of what was read.
+
+pub mod csv;
+pub mod schema;
+
+use crate::error::{Diagnostic, Error, Origin, Result};
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+
+pub use csv::Table;
+pub use schema::NetworkFile;
+
+/// A network file as read from disk: its text, the parsed structure and referenced tables.
+#[derive(Debug)]
+pub struct Loaded {
+    /// Path as given.
+    pub path: PathBuf,
+    /// The file's text (spans refer to it).
+    pub text: String,
+    /// The parsed structure.
+    pub doc: NetworkFile,
+    /// CSV tables named by `file` keys, by the string written in the file.
+    pub tables: BTreeMap<String, std::result::Result<Table, String>>,
+}
+
+/// Read and parse `path` and the CSV files it names.
+///
+/// A TOML syntax error or an unknown key is an [`Error::Invalid`] with the line and column;
+/// a missing file is [`Error::Io`]. A CSV that cannot be read is kept as an error string and
+/// reported by validation at the `file` key that names it.
+pub fn load(path: &Path) -> Result<Loaded> {
+    let text = std::fs::read_to_string(path)
+        .map_err(|source| Error::Io { path: path.to_path_buf(), source })?;
+    parse_text(path, text)
+}
+
+/// Parse network text as if read from `path` (CSV paths resolve against its folder).
+pub fn parse_text(path: &Path, text: String) -> Result<Loaded> {
+    let doc: NetworkFile = match toml::from_str(&text) {
+        Ok(d) => d,
+        Err(e) => {
+            let origin = e.span().map_or(Origin::Unknown, Origin::Span);
+            let msg = e.message().trim().to_string();
+            let d = Diagnostic::error("", format!("cannot read the file: {msg}"))
+                .with_help("see the format reference in README.md")
+                .at(path, &text, &origin);
+            return Err(Error::invalid(d));
+        }
+    };
+    let dir = path.parent().unwrap_or(Path::new("."));
+    let mut tables = BTreeMap::new();
+    for name in referenced_files(&doc) {
+        let full = dir.join(&name);
+        let t = csv::read(&full).map_err(|e| e.to_string());
+        tables.insert(name, t);
+    }
+    Ok(Loaded { path: path.to_path_buf(), text, doc, tables })
+}
+
+fn referenced_files(doc: &NetworkFile) -> Vec<String> {
+    use schema::Valued;
+    let mut out = Vec::new();
+    let mut from_valued = |v: &Valued| {
+        if let Valued::Table(t) = v
+            && let Some(f) = &t.file
+        {
+            out.push(f.clone());
+        }
+    };
+    if let Some(c) = &doc.conditions
+        && let Some(b) = &c.get_ref().background
+    {
+        from_valued(b.get_ref());
+    }
+    for s in &doc.species {
+        if let Some(e) = &s.get_ref().epsilon {
+            from_valued(e.get_ref());
+        }
+    }
+    for p in &doc.photo {
+        if let Some(q) = &p.get_ref().quantum_yield {
+            from_valued(q.get_ref());
+        }
+    }
+    for l in &doc.light {
+        if let Some(f) = &l.get_ref().file {
+            out.push(f.get_ref().clone());
+        }
+    }
+    out
+}

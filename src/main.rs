@@ -1,0 +1,7 @@
+//! The `photoledger` command: parse the arguments, hand them to one function per command.
+
+mod cli;
+
+fn main() {
+    std::process::exit(cli::run());
+}

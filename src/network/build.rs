@@ -1,0 +1,1066 @@
+//! From the parsed file to a validated [`Network`]: units, names, numbers.
+//!
+//! Every problem is collected (not just the first), each located in the file. Structural
+//! checks that need the whole network (ways out of transients, balances, warnings) are in
+//! `checks.rs`.
+
+use super::overrides::{ACCEPTED, Overrides};
+use super::*;
+use crate::error::{Diagnostic, Error, Origin};
+use crate::file::Loaded;
+use crate::file::schema::{self, SpectrumTable, Text, Valued};
+use crate::light::{Intensity, LightKind, LightSource, Outside, Spectrum};
+use crate::units::{self, Quantity};
+use std::collections::BTreeMap;
+use toml::Spanned;
+
+/// Validate a loaded file with overrides into a [`Network`], or every problem found.
+pub fn build(loaded: &Loaded, overrides: &Overrides) -> Result<Network> {
+    let mut b = Builder { loaded, overrides, diags: Vec::new(), at: Places::default() };
+    let net = b.network();
+    for key in overrides.unused() {
+        b.diags.push(
+            Diagnostic::error(format!("--set {key}"), "no such field in this network")
+                .with_help(format!("keys that can be set: {ACCEPTED}"))
+                .in_file(&loaded.path),
+        );
+    }
+    let has_error = b.diags.iter().any(|d| d.severity == crate::error::Severity::Error);
+    match net {
+        Some(mut n) if !has_error => {
+            n.warnings = b.diags;
+            Ok(n)
+        }
+        _ => {
+            b.diags.sort_by_key(|d| (std::cmp::Reverse(d.severity), d.line_col));
+            Err(Error::Invalid(b.diags))
+        }
+    }
+}
+
+pub(super) struct Builder<'a> {
+    pub(super) loaded: &'a Loaded,
+    overrides: &'a Overrides,
+    pub(super) diags: Vec<Diagnostic>,
+    /// Where each built species, thermal step and photo step was written.
+    pub(super) at: Places,
+}
+
+/// File positions of built items, index-aligned with the network's vectors.
+#[derive(Default)]
+pub(super) struct Places {
+    pub(super) species: Vec<Origin>,
+    pub(super) thermal: Vec<Origin>,
+    pub(super) photo: Vec<Origin>,
+    pub(super) transients: Vec<Origin>,
+}
+
+fn span<T>(s: &Spanned<T>) -> Origin {
+    Origin::Span(s.span())
+}
+
+/// A string field: its value and where it came from.
+struct Field {
+    value: String,
+    origin: Origin,
+}
+
+impl<'a> Builder<'a> {
+    pub(super) fn error(&mut self, field: &str, origin: &Origin, msg: impl Into<String>, help: Option<String>) {
+        let mut d = Diagnostic::error(field, msg).at(&self.loaded.path, &self.loaded.text, origin);
+        d.help = help;
+        self.diags.push(d);
+    }
+
+    pub(super) fn warn(&mut self, field: &str, origin: &Origin, msg: impl Into<String>, help: Option<String>) {
+        let mut d = Diagnostic::warning(field, msg).at(&self.loaded.path, &self.loaded.text, origin);
+        d.help = help;
+        self.diags.push(d);
+    }
+
+    fn field(&self, value: Option<&Text>, key: Option<&str>) -> Option<Field> {
+        if let Some(k) = key
+            && let Some(v) = self.overrides.get(k)
+        {
+            return Some(Field { value: v.to_string(), origin: Origin::CommandLine });
+        }
+        value.map(|t| Field { value: t.get_ref().clone(), origin: span(t) })
+    }
+
+    /// Read a quantity; report a located error and return None when it cannot be read.
+    fn quantity(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
+        match units::parse(&f.value, q) {
+            Ok(v) => Some(v),
+            Err(e) => {
+                self.error(field, &f.origin, e.problem, Some(format!("expected {}", q.accepted())));
+                None
+            }
+        }
+    }
+
+    /// A quantity that must be positive (and finite).
+    fn positive(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
+        let v = self.quantity(field, f, q)?;
+        if v <= 0.0 {
+            self.error(field, &f.origin, format!("\"{}\" must be positive", f.value), Some(format!("expected {}", q.accepted())));
+            return None;
+        }
+        Some(v)
+    }
+
+    fn required(&mut self, field: &str, f: Option<Field>, at: &Origin, q: Quantity) -> Option<f64> {
+        match f {
+            Some(f) => self.positive(field, &f, q),
+            None => {
+                self.error(field, at, "is missing", Some(format!("expected {}", q.accepted())));
+                None
+            }
+        }
+    }
+
+    fn network(&mut self) -> Option<Network> {
+        let doc = &self.loaded.doc;
+        let about = self.about(doc);
+        let conditions = self.conditions(doc);
+        let lights = self.lights(doc, conditions.as_ref());
+        let mut names: BTreeMap<String, Origin> = BTreeMap::new();
+        let species = self.species(doc, &mut names);
+        let transient_heads = self.transient_heads(doc, &mut names);
+        let conditions = conditions?;
+        let t = conditions.temperature;
+        let resolver = Names { species: &species, transients: &transient_heads };
+        let thermal = self.thermal(doc, &resolver, t);
+        let photo = self.photo(doc, &resolver);
+        let transients = self.transients(doc, &resolver, &transient_heads, t);
+        let mut net = Network {
+            source: Some(self.loaded.path.clone()),
+            about,
+            conditions,
+            lights,
+            species,
+            thermal,
+            photo,
+            transients,
+            graph: Default::default(),
+            warnings: Vec::new(),
+        };
+        self.check_network(&mut net);
+        net.graph = super::checks::graph(&net);
+        Some(net)
+    }
+
+    fn about(&mut self, doc: &schema::NetworkFile) -> About {
+        let stem = self.loaded.path.file_stem().map(|s| s.to_string_lossy().to_string()).unwrap_or_default();
+        let Some(a) = &doc.about else {
+            return About { name: stem, ..Default::default() };
+        };
+        let a = a.get_ref();
+        let s = |t: &Option<Text>| t.as_ref().map(|t| t.get_ref().trim().to_string()).unwrap_or_default();
+        let name = s(&a.name);
+        About {
+            name: if name.is_empty() { stem } else { name },
+            description: s(&a.description),
+            provenance: s(&a.provenance),
+            invented: a.invented.as_ref().is_some_and(|b| *b.get_ref()),
+        }
+    }
+
+    fn conditions(&mut self, doc: &schema::NetworkFile) -> Option<Conditions> {
+        let empty = schema::Conditions::default();
+        let (c, at) = match &doc.conditions {
+            Some(c) => (c.get_ref(), span(c)),
+            None => {
+                self.error(
+                    "conditions",
+                    &Origin::Span(0..0),
+                    "the [conditions] table is missing",
+                    Some("add [conditions] with temperature, volume and path_length, e.g. temperature = \"298.15 K\"".into()),
+                );
+                (&empty, Origin::Span(0..0))
+            }
+        };
+        let f = self.field(c.temperature.as_ref(), Some("conditions.temperature"));
+        let temperature = self.required("conditions.temperature", f, &at, Quantity::Temperature);
+        let f = self.field(c.volume.as_ref(), Some("conditions.volume"));
+        let volume = self.required("conditions.volume", f, &at, Quantity::Volume);
+        let f = self.field(c.path_length.as_ref(), Some("conditions.path_length"));
+        let path_length = self.required("conditions.path_length", f, &at, Quantity::Length);
+        let irradiated_area = match self.field(c.irradiated_area.as_ref(), Some("conditions.irradiated_area")) {
+            Some(f) => Some(self.positive("conditions.irradiated_area", &f, Quantity::Area)?),
+            None => None,
+        };
+        let background = if let Some(v) = self.overrides.get("conditions.background") {
+            match v.parse::<f64>() {
+                Ok(x) if x.is_finite() && x >= 0.0 => Spectrum::Constant { value: x, at: None },
+                _ => {
+                    self.error(
+                        "conditions.background",
+                        &Origin::CommandLine,
+                        format!("\"{v}\" is not a non-negative absorbance"),
+                        Some("a number such as 0.05".into()),
+                    );
+                    return None;
+                }
+            }
+        } else if let Some(b) = &c.background {
+            self.spectrum("conditions.background", b, None, Outside::Nearest)?
+        } else {
+            Spectrum::Constant { value: 0.0, at: None }
+        };
+        Some(Conditions { temperature: temperature?, volume: volume?, path_length: path_length?, irradiated_area, background })
+    }
+
+    /// A spectrum-valued field; `q` is the value's quantity (None: dimensionless).
+    fn spectrum(&mut self, field: &str, v: &Spanned<Valued>, q: Option<Quantity>, outside: Outside) -> Option<Spectrum> {
+        let at = span(v);
+        let what = q.map_or("a number".to_string(), |q| q.describe());
+        let table_help = match q {
+            Some(_) => "a table: { points = [[300, 1200], [365, 5000]], wavelength_unit = \"nm\", unit = \"L/(mol cm)\" }, \
+                        one value: { at = \"365 nm\", value = \"5000 L/(mol cm)\" }, or a CSV: { file = \"spectra/x.csv\" }",
+            None => "a number, a table: { points = [[300, 0.2], [365, 0.3]], wavelength_unit = \"nm\" }, or a CSV: { file = \"x.csv\" }",
+        };
+        match v.get_ref() {
+            Valued::Number(x) => match q {
+                None => {
+                    if !x.is_finite() || *x < 0.0 {
+                        self.error(field, &at, format!("{x} must be a non-negative number"), None);
+                        return None;
+                    }
+                    Some(Spectrum::Constant { value: *x, at: None })
+                }
+                Some(q) => {
+                    self.error(field, &at, format!("{x} has no unit and no wavelength"), Some(format!("expected {table_help}; values are {}", q.accepted())));
+                    None
+                }
+            },
+            Valued::Text(s) => {
+                self.error(field, &at, format!("\"{s}\" gives {what} without the wavelength it holds at"), Some(format!("expected {table_help}")));
+                None
+            }
+            Valued::Table(t) => self.spectrum_table(field, &at, t, q, outside, table_help),
+        }
+    }
+
+    fn unit_factor(&mut self, field: &str, at: &Origin, unit: &str, q: Quantity) -> Option<f64> {
+        match units::parse(&format!("1 {unit}"), q) {
+            Ok(f) => Some(f),
+            Err(e) => {
+                self.error(field, at, format!("the unit \"{unit}\" is not usable: {}", e.problem), Some(format!("expected {}", q.accepted())));
+                None
+            }
+        }
+    }
+
+    fn spectrum_table(
+        &mut self,
+        field: &str,
+        at: &Origin,
+        t: &SpectrumTable,
+        q: Option<Quantity>,
+        outside: Outside,
+        help: &str,
+    ) -> Option<Spectrum> {
+        let forms = [t.points.is_some(), t.at.is_some() || t.value.is_some(), t.file.is_some()];
+        if forms.iter().filter(|x| **x).count() != 1 {
+            self.error(field, at, "give exactly one of points, at/value or file", Some(format!("expected {help}")));
+            return None;
+        }
+        // One value at one wavelength.
+        if t.at.is_some() || t.value.is_some() {
+            let (Some(w), Some(val)) = (&t.at, &t.value) else {
+                self.error(field, at, "`at` and `value` go together", Some(format!("expected {help}")));
+                return None;
+            };
+            let wl = self.positive(&format!("{field}.at"), &Field { value: w.clone(), origin: at.clone() }, Quantity::Wavelength)?;
+            let value = match (val, q) {
+                (toml::Value::String(s), Some(q)) => self.quantity(&format!("{field}.value"), &Field { value: s.clone(), origin: at.clone() }, q)?,
+                (toml::Value::Float(x), None) => *x,
+                (toml::Value::Integer(x), None) => *x as f64,
+                (other, Some(q)) => {
+                    self.error(&format!("{field}.value"), at, format!("{other} has no unit"), Some(format!("expected {}", q.accepted())));
+                    return None;
+                }
+                (other, None) => {
+                    self.error(&format!("{field}.value"), at, format!("{other} is not a number"), None);
+                    return None;
+                }
+            };
+            if !value.is_finite() || value < 0.0 {
+                self.error(&format!("{field}.value"), at, "must be zero or positive", None);
+                return None;
+            }
+            return Some(Spectrum::Constant { value, at: Some(wl) });
+        }
+        // Inline points.
+        let (raw, wl_unit, val_unit, where_) = if let Some(points) = &t.points {
+            let Some(wu) = &t.wavelength_unit else {
+                self.error(field, at, "`wavelength_unit` is missing for the points", Some("e.g. wavelength_unit = \"nm\"".into()));
+                return None;
+            };
+            let mut rows = Vec::new();
+            for (i, p) in points.iter().enumerate() {
+                if p.len() != 2 {
+                    self.error(&format!("{field}.points[{i}]"), at, format!("has {} numbers; [wavelength, value] pairs are expected", p.len()), None);
+                    return None;
+                }
+                rows.push((p[0], p[1], format!("{field}.points[{i}]")));
+            }
+            (rows, wu.clone(), t.unit.clone(), None)
+        } else {
+            let name = t.file.clone().unwrap_or_default();
+            let table = match self.loaded.tables.get(&name) {
+                Some(Ok(tab)) => tab.clone(),
+                Some(Err(e)) => {
+                    self.error(&format!("{field}.file"), at, e.clone(), Some("a CSV with a header such as \"wavelength (nm), epsilon (L/(mol cm))\"".into()));
+                    return None;
+                }
+                None => {
+                    self.error(&format!("{field}.file"), at, format!("\"{name}\" was not read"), None);
+                    return None;
+                }
+            };
+            let Some(wu) = table.units[0].clone() else {
+                self.error(
+                    &format!("{field}.file"),
+                    at,
+                    format!("{}: the first column's header names no unit", table.path.display()),
+                    Some("write the header as \"wavelength (nm), ...\"".into()),
+                );
+                return None;
+            };
+            let rows = table
+                .rows
+                .iter()
+                .map(|(x, y, line)| (*x, *y, format!("{}:{line}", table.path.display())))
+                .collect();
+            (rows, wu, table.units[1].clone(), Some(table.path.clone()))
+        };
+        let wf = self.unit_factor(&format!("{field}.wavelength_unit"), at, &wl_unit, Quantity::Wavelength)?;
+        let vf = match (q, &val_unit) {
+            (Some(q), Some(u)) => self.unit_factor(&format!("{field}.unit"), at, u, q)?,
+            (Some(q), None) => {
+                let msg = match &where_ {
+                    Some(p) => format!("{}: the second column's header names no unit", p.display()),
+                    None => "`unit` is missing for the values".to_string(),
+                };
+                self.error(field, at, msg, Some(format!("values are {}", q.accepted())));
+                return None;
+            }
+            // Dimensionless: a label such as "a.u." or "relative" in a CSV header is fine.
+            (None, Some(u)) if where_.is_none() && !u.trim().is_empty() && u.trim() != "1" => {
+                self.error(&format!("{field}.unit"), at, format!("\"{u}\": these values are dimensionless"), Some("leave `unit` out".into()));
+                return None;
+            }
+            (None, _) => 1.0,
+        };
+        let mut points = Vec::with_capacity(raw.len());
+        for (x, y, place) in &raw {
+            let wl = x * wf;
+            let v = y * vf;
+            if !(wl > 0.0) || !wl.is_finite() {
+                self.error(place, at, format!("wavelength {x} must be positive"), None);
+                return None;
+            }
+            if !v.is_finite() || v < 0.0 {
+                self.error(place, at, format!("value {y} must be zero or positive"), None);
+                return None;
+            }
+            points.push((wl, v));
+        }
+        if points.windows(2).any(|w| w[1].0 <= w[0].0) {
+            self.error(field, at, "wavelengths must increase strictly from row to row", None);
+            return None;
+        }
+        Some(Spectrum::Table { points, outside })
+    }
+
+    fn lights(&mut self, doc: &schema::NetworkFile, cond: Option<&Conditions>) -> Vec<LightSource> {
+        let mut out = Vec::new();
+        let mut seen: BTreeMap<String, Origin> = BTreeMap::new();
+        for (i, l) in doc.light.iter().enumerate() {
+            let at = span(l);
+            let e = l.get_ref();
+            let name = e.name.as_ref().map_or(format!("light{}", i + 1), |n| n.get_ref().trim().to_string());
+            let field = format!("light[{i}]");
+            if name.is_empty() {
+                self.error(&format!("{field}.name"), &at, "is empty", None);
+                continue;
+            }
+            if let Some(prev) = seen.get(&name) {
+                let (l0, _) = match prev {
+                    Origin::Span(r) => crate::error::line_col(&self.loaded.text, r.start),
+                    _ => (0, 0),
+                };
+                self.error(&format!("{field}.name"), &at, format!("\"{name}\" is used by another light (line {l0})"), Some("give each light its own name".into()));
+                continue;
+            }
+            seen.insert(name.clone(), at.clone());
+            let key = |f: &str| format!("light.{name}.{f}");
+            let Some(kind) = &e.kind else {
+                self.error(&format!("{field}.kind"), &at, "is missing", Some("one of \"line\", \"band\", \"lamp\", \"sun\"".into()));
+                continue;
+            };
+            let kind_word = kind.get_ref().trim().to_string();
+            let allowed: &[&str] = match kind_word.as_str() {
+                "line" => &["wavelength", "power", "photon_flux"],
+                "band" => &["centre", "fwhm", "power", "photon_flux"],
+                "lamp" => &["file", "power", "photon_flux"],
+                "sun" => &["scale"],
+                other => {
+                    self.error(&format!("{field}.kind"), &span(kind), format!("\"{other}\" is not a kind of light"), Some("one of \"line\", \"band\", \"lamp\", \"sun\"".into()));
+                    continue;
+                }
+            };
+            let present = [
+                ("wavelength", e.wavelength.is_some()),
+                ("centre", e.centre.is_some()),
+                ("fwhm", e.fwhm.is_some()),
+                ("power", e.power.is_some()),
+                ("photon_flux", e.photon_flux.is_some()),
+                ("file", e.file.is_some()),
+                ("scale", e.scale.is_some()),
+            ];
+            let mut bad = false;
+            for (k, p) in present {
+                if p && !allowed.contains(&k) {
+                    self.error(&format!("{field}.{k}"), &at, format!("does not apply to a light of kind \"{kind_word}\""), Some(format!("a {kind_word} takes: {}", allowed.join(", "))));
+                    bad = true;
+                }
+            }
+            if bad {
+                continue;
+            }
+            let window = {
+                let lo = self.field(e.from.as_ref(), None).and_then(|f| self.positive(&format!("{field}.from"), &f, Quantity::Wavelength));
+                let hi = self.field(e.to.as_ref(), None).and_then(|f| self.positive(&format!("{field}.to"), &f, Quantity::Wavelength));
+                (lo.unwrap_or(0.0), hi.unwrap_or(f64::INFINITY))
+            };
+            if window.0 >= window.1 {
+                self.error(&format!("{field}.from"), &at, "`from` must be shorter than `to`", None);
+                continue;
+            }
+            let intensity = if kind_word == "sun" {
+                None
+            } else {
+                let p = self.field(e.power.as_ref(), Some(&key("power")));
+                let q = self.field(e.photon_flux.as_ref(), Some(&key("photon_flux")));
+                match (p, q) {
+                    (Some(p), None) => self.positive(&format!("{field}.power"), &p, Quantity::Power).map(Intensity::Power),
+                    (None, Some(q)) => self.positive(&format!("{field}.photon_flux"), &q, Quantity::PhotonFlux).map(Intensity::PhotonFlux),
+                    (Some(_), Some(_)) => {
+                        self.error(&field, &at, "has both power and photon_flux", Some("give one of them".into()));
+                        None
+                    }
+                    (None, None) => {
+                        self.error(&field, &at, "needs power or photon_flux", Some("e.g. power = \"50 mW\" or photon_flux = \"2 µeinstein/s\"".into()));
+                        None
+                    }
+                }
+            };
+            let lk = match kind_word.as_str() {
+                "line" => {
+                    let f = self.field(e.wavelength.as_ref(), Some(&key("wavelength")));
+                    self.required(&format!("{field}.wavelength"), f, &at, Quantity::Wavelength).map(|w| LightKind::Line { wavelength: w })
+                }
+                "band" => {
+                    let c = self.field(e.centre.as_ref(), Some(&key("centre")));
+                    let c = self.required(&format!("{field}.centre"), c, &at, Quantity::Wavelength);
+                    let w = self.field(e.fwhm.as_ref(), Some(&key("fwhm")));
+                    let w = self.required(&format!("{field}.fwhm"), w, &at, Quantity::Wavelength);
+                    match (c, w) {
+                        (Some(centre), Some(fwhm)) if fwhm < centre => Some(LightKind::Band { centre, fwhm }),
+                        (Some(_), Some(_)) => {
+                            self.error(&format!("{field}.fwhm"), &at, "is wider than the centre wavelength", None);
+                            None
+                        }
+                        _ => None,
+                    }
+                }
+                "lamp" => {
+                    let Some(f) = &e.file else {
+                        self.error(&format!("{field}.file"), &at, "is missing", Some("a CSV with header \"wavelength (nm), relative power\"".into()));
+                        continue;
+                    };
+                    let v = Spanned::new(f.span(), Valued::Table(SpectrumTable { file: Some(f.get_ref().clone()), ..Default::default() }));
+                    match self.spectrum(&format!("{field}"), &v, None, Outside::Zero) {
+                        Some(Spectrum::Table { points, .. }) if points.iter().any(|p| p.1 > 0.0) => {
+                            Some(LightKind::Lamp { file: f.get_ref().clone(), relative_power: points })
+                        }
+                        Some(_) => {
+                            self.error(&format!("{field}.file"), &span(f), "the lamp spectrum is zero everywhere", None);
+                            None
+                        }
+                        None => None,
+                    }
+                }
+                _ => {
+                    let scale = match self.overrides.get(&key("scale")) {
+                        Some(s) => match s.parse::<f64>() {
+                            Ok(x) => Some((x, Origin::CommandLine)),
+                            Err(_) => {
+                                self.error(&format!("{field}.scale"), &Origin::CommandLine, format!("\"{s}\" is not a number"), None);
+                                continue;
+                            }
+                        },
+                        None => e.scale.as_ref().map(|s| (*s.get_ref(), span(s))),
+                    };
+                    let (scale, sat) = scale.unwrap_or((1.0, at.clone()));
+                    if !scale.is_finite() || scale <= 0.0 {
+                        self.error(&format!("{field}.scale"), &sat, format!("{scale} must be a positive factor"), Some("e.g. scale = 0.5 for half the reference sunlight".into()));
+                        continue;
+                    }
+                    match cond.and_then(|c| c.irradiated_area) {
+                        Some(area) => Some(LightKind::Sun { scale, area }),
+                        None => {
+                            if cond.is_some() {
+                                self.error(
+                                    "conditions.irradiated_area",
+                                    &at,
+                                    format!("is needed for the sunlight \"{name}\" (irradiance × area = power)"),
+                                    Some("e.g. irradiated_area = \"100 cm2\"".into()),
+                                );
+                            }
+                            None
+                        }
+                    }
+                }
+            };
+            let (Some(lk), true) = (lk, kind_word == "sun" || intensity.is_some()) else {
+                continue;
+            };
+            let window = if kind_word == "sun" && window == (0.0, f64::INFINITY) { (280e-9, 4000e-9) } else { window };
+            let src = LightSource::new(name.clone(), lk, intensity, window);
+            if src.bins.is_empty() {
+                self.error(&field, &at, "carries no photons inside its from/to window", None);
+                continue;
+            }
+            out.push(src);
+        }
+        out
+    }
+
+    fn species(&mut self, doc: &schema::NetworkFile, names: &mut BTreeMap<String, Origin>) -> Vec<Species> {
+        let mut out = Vec::new();
+        for (i, s) in doc.species.iter().enumerate() {
+            let at = span(s);
+            let e = s.get_ref();
+            let field = format!("species[{i}]");
+            let Some(name) = self.name(&field, e.name.as_ref(), &at, names) else {
+                continue;
+            };
+            let field = format!("species \"{name}\"");
+            let initial = match self.field(e.initial.as_ref(), Some(&format!("species.{name}.initial"))) {
+                Some(f) => match self.quantity(&format!("{field}.initial"), &f, Quantity::Concentration) {
+                    Some(v) if v < 0.0 => {
+                        self.error(&format!("{field}.initial"), &f.origin, format!("\"{}\" is negative", f.value), None);
+                        0.0
+                    }
+                    Some(v) => v,
+                    None => 0.0,
+                },
+                None => 0.0,
+            };
+            let (formula, composition) = match &e.formula {
+                Some(f) => match formula::parse(f.get_ref()) {
+                    Ok(c) => (Some(f.get_ref().clone()), Some(c)),
+                    Err(m) => {
+                        self.error(&format!("{field}.formula"), &span(f), m, Some("e.g. \"C6H12O6\", \"Fe(C2O4)3^3-\", \"H+\"".into()));
+                        (None, None)
+                    }
+                },
+                None => (None, None),
+            };
+            let epsilon = match &e.epsilon {
+                Some(v) => self.spectrum(&format!("{field}.epsilon"), v, Some(Quantity::MolarAbsorption), Outside::Zero),
+                None => None,
+            };
+            self.at.species.push(at.clone());
+            out.push(Species {
+                name,
+                initial,
+                formula,
+                composition,
+                epsilon,
+                product: e.product.as_ref().is_some_and(|b| *b.get_ref()),
+            });
+        }
+        out
+    }
+
+    fn name(&mut self, field: &str, n: Option<&Text>, at: &Origin, names: &mut BTreeMap<String, Origin>) -> Option<String> {
+        let Some(n) = n else {
+            self.error(&format!("{field}.name"), at, "is missing", None);
+            return None;
+        };
+        let name = n.get_ref().trim().to_string();
+        let bad = name.is_empty()
+            || name.chars().any(|c| c.is_whitespace() || c == '"' || c == ',')
+            || name.parse::<f64>().is_ok()
+            || name.contains("->")
+            || name.contains("<=>");
+        if bad {
+            self.error(
+                &format!("{field}.name"),
+                &span(n),
+                format!("\"{name}\" cannot be used as a name"),
+                Some("a name has no spaces, commas or arrows and is not a number, e.g. \"Z-azo\", \"S1\", \"Fe3+\"".into()),
+            );
+            return None;
+        }
+        if let Some(prev) = names.get(&name) {
+            let line = match prev {
+                Origin::Span(r) => crate::error::line_col(&self.loaded.text, r.start).0,
+                _ => 0,
+            };
+            self.error(&format!("{field}.name"), &span(n), format!("\"{name}\" is already defined (line {line})"), Some("species and transients share one set of names".into()));
+            return None;
+        }
+        names.insert(name.clone(), span(n));
+        Some(name)
+    }
+
+    fn transient_heads(&mut self, doc: &schema::NetworkFile, names: &mut BTreeMap<String, Origin>) -> Vec<(String, TransientKind)> {
+        let mut out = Vec::new();
+        for (i, t) in doc.transient.iter().enumerate() {
+            let at = span(t);
+            let e = t.get_ref();
+            let field = format!("transient[{i}]");
+            let Some(name) = self.name(&field, e.name.as_ref(), &at, names) else {
+                // keep indices aligned with the file
+                out.push((String::new(), TransientKind::Other));
+                continue;
+            };
+            let kind = match e.kind.as_ref().map(|k| (k.get_ref().trim(), span(k))) {
+                None => TransientKind::Other,
+                Some(("excited", _)) => TransientKind::Excited,
+                Some(("intersection", _)) => TransientKind::Intersection,
+                Some(("hot", _)) => TransientKind::Hot,
+                Some(("other", _)) => TransientKind::Other,
+                Some((k, o)) => {
+                    self.error(&format!("transient \"{name}\".kind"), &o, format!("\"{k}\" is not a kind of transient"), Some("one of \"excited\", \"intersection\", \"hot\", \"other\"".into()));
+                    TransientKind::Other
+                }
+            };
+            out.push((name, kind));
+        }
+        out
+    }
+
+    /// Resolve a species name, reporting an unknown one with the closest name.
+    fn resolve_species(&mut self, field: &str, at: &Origin, name: &str, names: &Names) -> Option<usize> {
+        if let Some(i) = names.species.iter().position(|s| s.name == name) {
+            return Some(i);
+        }
+        if names.transients.iter().any(|t| t.0 == name) {
+            self.error(field, at, format!("\"{name}\" is a transient, which is not followed as a concentration"), Some("reach transients with a [[photo]] step's `excites` or a channel's `to`".into()));
+            return None;
+        }
+        let all = names.species.iter().map(|s| s.name.as_str()).chain(names.transients.iter().map(|t| t.0.as_str()));
+        let help = match super::suggest::closest(name, all) {
+            Some(c) => format!("did you mean \"{c}\"?"),
+            None => "declare it in a [[species]] table".into(),
+        };
+        self.error(field, at, format!("unknown species \"{name}\""), Some(help));
+        None
+    }
+
+    fn terms(&mut self, field: &str, at: &Origin, raw: &[equation::RawTerm], names: &Names) -> Option<Vec<Term>> {
+        let mut out = Vec::new();
+        let mut ok = true;
+        for t in raw {
+            match self.resolve_species(field, at, &t.name, names) {
+                Some(species) => out.push(Term { species, coefficient: t.coefficient }),
+                None => ok = false,
+            }
+        }
+        ok.then_some(out)
+    }
+
+    fn rate_law(&mut self, field: &str, r: &Spanned<schema::Rate>, order: u32) -> Option<RateLaw> {
+        let at = span(r);
+        let e = r.get_ref();
+        let f = |t: &Option<Text>| t.as_ref().map(|t| Field { value: t.get_ref().clone(), origin: span(t) });
+        let ways = "one of: k = \"0.04 /s\"; prefactor + activation (Arrhenius); barrier = \"20 kcal/mol\" (Eyring ΔG‡); enthalpy + entropy (Eyring ΔH‡, ΔS‡)";
+        let given = [e.k.is_some(), e.prefactor.is_some() || e.activation.is_some(), e.barrier.is_some(), e.enthalpy.is_some() || e.entropy.is_some()];
+        if given.iter().filter(|g| **g).count() != 1 {
+            self.error(field, &at, "give the rate exactly one way", Some(ways.into()));
+            return None;
+        }
+        let transmission = match &e.transmission {
+            Some(k) => {
+                let v = *k.get_ref();
+                if !(v > 0.0 && v <= 1.0) {
+                    self.error(&format!("{field}.transmission"), &span(k), format!("{v} must lie in (0, 1]"), None);
+                    return None;
+                }
+                if e.k.is_some() || e.prefactor.is_some() {
+                    self.error(&format!("{field}.transmission"), &span(k), "applies only to Eyring rates (barrier, or enthalpy + entropy)", None);
+                    return None;
+                }
+                v
+            }
+            None => 1.0,
+        };
+        if let Some(k) = f(&e.k) {
+            return self.positive(&format!("{field}.k"), &k, Quantity::RateConstant(order)).map(RateLaw::Constant);
+        }
+        if given[1] {
+            let (Some(a), Some(ea)) = (f(&e.prefactor), f(&e.activation)) else {
+                self.error(field, &at, "Arrhenius needs both prefactor and activation", Some(ways.into()));
+                return None;
+            };
+            let a = self.positive(&format!("{field}.prefactor"), &a, Quantity::RateConstant(order));
+            let ea = self.quantity(&format!("{field}.activation"), &ea, Quantity::MolarEnergy);
+            return Some(RateLaw::Arrhenius { prefactor: a?, activation: ea? });
+        }
+        if let Some(g) = f(&e.barrier) {
+            let v = self.quantity(&format!("{field}.barrier"), &g, Quantity::MolarEnergy)?;
+            if v < 0.0 {
+                self.warn(&format!("{field}.barrier"), &g.origin, format!("\"{}\" is a negative barrier", g.value), None);
+            }
+            return Some(RateLaw::EyringFree { barrier: v, transmission });
+        }
+        let (Some(h), Some(s)) = (f(&e.enthalpy), f(&e.entropy)) else {
+            self.error(field, &at, "Eyring from ΔH‡ needs both enthalpy and entropy", Some(ways.into()));
+            return None;
+        };
+        let h = self.quantity(&format!("{field}.enthalpy"), &h, Quantity::MolarEnergy);
+        let s = self.quantity(&format!("{field}.entropy"), &s, Quantity::MolarEntropy);
+        Some(RateLaw::EyringEnthalpy { enthalpy: h?, entropy: s?, transmission })
+    }
+
+    fn thermal(&mut self, doc: &schema::NetworkFile, names: &Names, temperature: f64) -> Vec<ThermalStep> {
+        let mut out = Vec::new();
+        for (i, s) in doc.thermal.iter().enumerate() {
+            let at = span(s);
+            let e = s.get_ref();
+            let field = format!("thermal[{i}]");
+            let Some(eq) = &e.equation else {
+                self.error(&format!("{field}.equation"), &at, "is missing", Some("e.g. equation = \"A + B -> C\"".into()));
+                continue;
+            };
+            let eq_at = span(eq);
+            let raw = match equation::parse(eq.get_ref()) {
+                Ok(r) => r,
+                Err(m) => {
+                    self.error(&format!("{field}.equation"), &eq_at, m, Some("e.g. \"2 M -> D\", \"A + B <=> C\"".into()));
+                    continue;
+                }
+            };
+            let (Some(left), Some(right)) = (
+                self.terms(&format!("{field}.equation"), &eq_at, &raw.left, names),
+                self.terms(&format!("{field}.equation"), &eq_at, &raw.right, names),
+            ) else {
+                continue;
+            };
+            let name = e.name.as_ref().map_or(eq.get_ref().trim().to_string(), |n| n.get_ref().clone());
+            let order_of = |t: &[Term]| t.iter().map(|x| x.coefficient).sum::<f64>();
+            let whole = |o: f64| (o.fract() == 0.0 && (1.0..=3.0).contains(&o)).then_some(o as u32);
+            let Some(order) = whole(order_of(&left)) else {
+                self.error(&format!("{field}.equation"), &eq_at, format!("molecularity {} is not 1, 2 or 3 (mass action needs whole-number elementary steps)", order_of(&left)), None);
+                continue;
+            };
+            let reverse_order = whole(order_of(&right));
+            let Some(rate) = &e.rate else {
+                self.error(&format!("{field}.rate"), &at, "is missing", Some(format!("e.g. rate = {{ k = \"{}\" }}", example_k(order))));
+                continue;
+            };
+            let Some(law) = self.rate_law(&format!("{field}.rate"), rate, order) else { continue };
+            let k = law.rate_constant(temperature, order);
+            let forward = out.len();
+            let reverse_law = match (&e.reverse, raw.reversible) {
+                (Some(r), true) => match reverse_order {
+                    Some(o2) => self.rate_law(&format!("{field}.reverse"), r, o2).map(|l| (l, o2)),
+                    None => {
+                        self.error(&format!("{field}.equation"), &eq_at, "the reverse of a reversible step needs 1, 2 or 3 whole product molecules", None);
+                        None
+                    }
+                },
+                (None, true) => {
+                    self.error(&format!("{field}.reverse"), &at, "is missing for a reversible (<=>) equation", Some("e.g. reverse = { k = \"1e-3 /s\" }, or write -> for one direction".into()));
+                    None
+                }
+                (Some(r), false) => {
+                    self.error(&format!("{field}.reverse"), &span(r), "is given but the equation is one-way (->)", Some("write <=> for a reversible step".into()));
+                    None
+                }
+                (None, false) => None,
+            };
+            if raw.reversible && reverse_law.is_none() {
+                continue;
+            }
+            out.push(ThermalStep { name: name.clone(), reactants: left.clone(), products: right.clone(), rate: law, order, k, reverse_of: None });
+            self.at.thermal.push(at.clone());
+            if let Some((law, o2)) = reverse_law {
+                self.at.thermal.push(at.clone());
+                let k = law.rate_constant(temperature, o2);
+                out.push(ThermalStep { name: format!("{name} (reverse)"), reactants: right, products: left, rate: law, order: o2, k, reverse_of: Some(forward) });
+            }
+        }
+        out
+    }
+
+    fn window(&mut self, field: &str, r: &Spanned<Vec<String>>) -> Option<(f64, f64)> {
+        let at = span(r);
+        let v = r.get_ref();
+        if v.len() != 2 {
+            self.error(field, &at, "needs two wavelengths", Some("e.g. range = [\"300 nm\", \"400 nm\"]".into()));
+            return None;
+        }
+        let lo = self.positive(field, &Field { value: v[0].clone(), origin: at.clone() }, Quantity::Wavelength)?;
+        let hi = self.positive(field, &Field { value: v[1].clone(), origin: at.clone() }, Quantity::Wavelength)?;
+        if lo >= hi {
+            self.error(field, &at, "the first wavelength must be the shorter", None);
+            return None;
+        }
+        Some((lo, hi))
+    }
+
+    fn photo(&mut self, doc: &schema::NetworkFile, names: &Names) -> Vec<PhotoStep> {
+        let mut out = Vec::new();
+        for (i, s) in doc.photo.iter().enumerate() {
+            let at = span(s);
+            let e = s.get_ref();
+            let field = format!("photo[{i}]");
+            let window = match &e.range {
+                Some(r) => match self.window(&format!("{field}.range"), r) {
+                    Some(w) => Some(w),
+                    None => continue,
+                },
+                None => None,
+            };
+            let forms = "the short form: equation = \"A -> B\" with quantum_yield; or the long form: absorber = \"A\", excites = \"A*\" (a transient)";
+            match (&e.equation, &e.absorber, &e.excites) {
+                (Some(eq), None, None) => {
+                    if let Some(x) = &e.efficiency {
+                        self.error(&format!("{field}.efficiency"), &span(x), "belongs to the long form (absorber + excites)", Some("the short form takes quantum_yield".into()));
+                        continue;
+                    }
+                    let eq_at = span(eq);
+                    let raw = match equation::parse(eq.get_ref()) {
+                        Ok(r) => r,
+                        Err(m) => {
+                            self.error(&format!("{field}.equation"), &eq_at, m, Some("e.g. \"A -> B\"".into()));
+                            continue;
+                        }
+                    };
+                    if raw.reversible {
+                        self.error(&format!("{field}.equation"), &eq_at, "a photochemical step runs one way", Some("write two [[photo]] steps, A -> B and B -> A".into()));
+                        continue;
+                    }
+                    if raw.left.len() != 1 || raw.left[0].coefficient != 1.0 {
+                        self.error(
+                            &format!("{field}.equation"),
+                            &eq_at,
+                            "one photon is absorbed by one molecule: the left side must be a single species",
+                            Some("for a reaction of the excited molecule with a partner, use a transient with a `quencher` channel".into()),
+                        );
+                        continue;
+                    }
+                    let (Some(left), Some(right)) = (
+                        self.terms(&format!("{field}.equation"), &eq_at, &raw.left, names),
+                        self.terms(&format!("{field}.equation"), &eq_at, &raw.right, names),
+                    ) else {
+                        continue;
+                    };
+                    let Some(qy) = &e.quantum_yield else {
+                        self.error(&format!("{field}.quantum_yield"), &at, "is missing", Some("a number in [0, 1], or a table over wavelength".into()));
+                        continue;
+                    };
+                    let Some(qy) = self.spectrum(&format!("{field}.quantum_yield"), qy, None, Outside::Nearest) else { continue };
+                    if qy.max() > 1.0 + 1e-12 {
+                        self.error(&format!("{field}.quantum_yield"), &span(e.quantum_yield.as_ref().unwrap()), format!("{} is above 1", qy.max()), Some("a quantum yield lies in [0, 1]; a chain reaction is written as thermal steps".into()));
+                        continue;
+                    }
+                    let name = e.name.as_ref().map_or(format!("{} (hν)", eq.get_ref().trim()), |n| n.get_ref().clone());
+                    self.at.photo.push(at.clone());
+                    out.push(PhotoStep { name, absorber: left[0].species, outcome: PhotoOutcome::Products(right), quantum_yield: qy, window });
+                }
+                (None, Some(a), Some(x)) => {
+                    if let Some(q) = &e.quantum_yield {
+                        self.error(&format!("{field}.quantum_yield"), &span(q), "belongs to the short form (equation)", Some("in the long form, set the transient's channels, and `efficiency` for the share reaching it".into()));
+                        continue;
+                    }
+                    let Some(absorber) = self.resolve_species(&format!("{field}.absorber"), &span(a), a.get_ref().trim(), names) else { continue };
+                    let xn = x.get_ref().trim();
+                    let Some(t) = names.transients.iter().position(|t| t.0 == xn) else {
+                        let help = match super::suggest::closest(xn, names.transients.iter().map(|t| t.0.as_str())) {
+                            Some(c) => format!("did you mean \"{c}\"?"),
+                            None => "declare it in a [[transient]] table".into(),
+                        };
+                        self.error(&format!("{field}.excites"), &span(x), format!("unknown transient \"{xn}\""), Some(help));
+                        continue;
+                    };
+                    let eff = match &e.efficiency {
+                        Some(v) => {
+                            let x = *v.get_ref();
+                            if !(0.0..=1.0).contains(&x) || x == 0.0 {
+                                self.error(&format!("{field}.efficiency"), &span(v), format!("{x} must lie in (0, 1]"), None);
+                                continue;
+                            }
+                            x
+                        }
+                        None => 1.0,
+                    };
+                    let name = e.name.as_ref().map_or(format!("{} + hν -> {}", names.species[absorber].name, xn), |n| n.get_ref().clone());
+                    self.at.photo.push(at.clone());
+                    out.push(PhotoStep {
+                        name,
+                        absorber,
+                        outcome: PhotoOutcome::Transient(t),
+                        quantum_yield: Spectrum::Constant { value: eff, at: None },
+                        window,
+                    });
+                }
+                (None, Some(_), None) => self.error(&format!("{field}.excites"), &at, "is missing: the long form names the transient reached", Some(forms.into())),
+                (None, None, Some(_)) => self.error(&format!("{field}.absorber"), &at, "is missing: the long form names the absorbing species", Some(forms.into())),
+                (None, None, None) => self.error(&field, &at, "says neither what absorbs nor what happens", Some(forms.into())),
+                (Some(_), _, _) => self.error(&field, &at, "mixes the short and the long form", Some(forms.into())),
+            }
+        }
+        out
+    }
+
+    fn transients(&mut self, doc: &schema::NetworkFile, names: &Names, heads: &[(String, TransientKind)], temperature: f64) -> Vec<Transient> {
+        let mut out = Vec::new();
+        for (i, t) in doc.transient.iter().enumerate() {
+            let (name, kind) = heads[i].clone();
+            let at = span(t);
+            self.at.transients.push(at.clone());
+            if name.is_empty() {
+                out.push(Transient { name, kind, channels: Vec::new() });
+                continue;
+            }
+            let field = format!("transient \"{name}\"");
+            let mut channels = Vec::new();
+            for (j, c) in t.get_ref().channels.iter().enumerate() {
+                let cat = span(c);
+                let cf = format!("{field}.channels[{j}]");
+                let e = c.get_ref();
+                let Some(to) = &e.to else {
+                    self.error(&format!("{cf}.to"), &cat, "is missing", Some("a transient name, or products such as \"B\" or \"B + C\"".into()));
+                    continue;
+                };
+                let to_s = to.get_ref().trim();
+                let target = if let Some(k) = heads.iter().position(|h| h.0 == to_s) {
+                    Target::Transient(k)
+                } else {
+                    let raw = match equation::parse_side(to_s) {
+                        Ok(r) => r,
+                        Err(m) => {
+                            self.error(&format!("{cf}.to"), &span(to), m, None);
+                            continue;
+                        }
+                    };
+                    if raw.is_empty() {
+                        self.error(&format!("{cf}.to"), &span(to), "leads nowhere", Some("name a species or a transient".into()));
+                        continue;
+                    }
+                    let Some(terms) = self.terms(&format!("{cf}.to"), &span(to), &raw, names) else { continue };
+                    Target::Species(terms)
+                };
+                let branching = match (&e.fraction, &e.rate, &e.quencher) {
+                    (Some(f), None, None) => match f.get_ref() {
+                        toml::Value::String(s) if s.trim() == "rest" => Branching::Rest,
+                        toml::Value::Float(_) | toml::Value::Integer(_) => {
+                            let x = match f.get_ref() {
+                                toml::Value::Float(x) => *x,
+                                toml::Value::Integer(x) => *x as f64,
+                                _ => unreachable!(),
+                            };
+                            if !(0.0..=1.0).contains(&x) {
+                                self.error(&format!("{cf}.fraction"), &span(f), format!("{x} is outside [0, 1]"), Some("a fraction lies in [0, 1], or \"rest\"".into()));
+                                continue;
+                            }
+                            Branching::Fraction(x)
+                        }
+                        other => {
+                            self.error(&format!("{cf}.fraction"), &span(f), format!("{other} is not a fraction"), Some("a number in [0, 1], or \"rest\"".into()));
+                            continue;
+                        }
+                    },
+                    (None, Some(r), None) => {
+                        let Some(law) = self.rate_law(&format!("{cf}.rate"), r, 1) else { continue };
+                        let k = law.rate_constant(temperature, 1);
+                        Branching::Rate { law, k }
+                    }
+                    (None, Some(r), Some(q)) => {
+                        let Some(partner) = self.resolve_species(&format!("{cf}.quencher"), &span(q), q.get_ref().trim(), names) else { continue };
+                        let Some(law) = self.rate_law(&format!("{cf}.rate"), r, 2) else { continue };
+                        let k2 = law.rate_constant(temperature, 2);
+                        Branching::Quenching { partner, law, k2 }
+                    }
+                    (None, None, Some(_)) => {
+                        self.error(&format!("{cf}.rate"), &cat, "a quenching channel needs its bimolecular rate constant", Some("e.g. rate = { k = \"1e10 /(M s)\" }".into()));
+                        continue;
+                    }
+                    (None, None, None) => {
+                        self.error(&cf, &cat, "needs a fraction or a rate", Some("fraction = 0.3, fraction = \"rest\", rate = { k = \"1e9 /s\" }, rate = { barrier = \"5 kcal/mol\" }, or quencher + rate".into()));
+                        continue;
+                    }
+                    (Some(_), Some(_), _) | (Some(_), None, Some(_)) => {
+                        self.error(&cf, &cat, "has both a fraction and a rate", Some("give one: a channel's share is a fixed fraction or follows from its rate".into()));
+                        continue;
+                    }
+                };
+                channels.push((Channel { target, branching, returns: false }, cat));
+            }
+            self.check_channels(&field, &at, &channels);
+            out.push(Transient { name, kind, channels: channels.into_iter().map(|c| c.0).collect() });
+        }
+        out
+    }
+
+    fn check_channels(&mut self, field: &str, at: &Origin, channels: &[(Channel, Origin)]) {
+        if channels.is_empty() {
+            self.error(&format!("{field}.channels"), at, "the transient has no channels, so no way out", Some("add channels, e.g. channels = [{ to = \"A\", fraction = \"rest\" }]".into()));
+            return;
+        }
+        let fixed = channels.iter().filter(|c| matches!(c.0.branching, Branching::Fraction(_) | Branching::Rest)).count();
+        if fixed != 0 && fixed != channels.len() {
+            self.error(
+                &format!("{field}.channels"),
+                at,
+                "mixes fixed fractions with rates",
+                Some("give every channel a fraction (with one \"rest\"), or every channel a rate: the shares then follow from the rates".into()),
+            );
+            return;
+        }
+        if fixed == 0 {
+            return;
+        }
+        let rests: Vec<&Origin> = channels.iter().filter(|c| c.0.branching == Branching::Rest).map(|c| &c.1).collect();
+        if rests.len() > 1 {
+            self.error(&format!("{field}.channels"), rests[1], "more than one channel takes the rest", Some("only one channel can be \"rest\"".into()));
+            return;
+        }
+        let sum: f64 = channels
+            .iter()
+            .map(|c| if let Branching::Fraction(x) = c.0.branching { x } else { 0.0 })
+            .sum();
+        if sum > 1.0 + 1e-9 {
+            self.error(&format!("{field}.channels"), at, format!("the fractions sum to {}, above 1", units::sig(sum, 6)), Some("fractions out of one transient sum to at most 1".into()));
+        } else if sum < 1.0 - 1e-9 && rests.is_empty() {
+            self.error(
+                &format!("{field}.channels"),
+                at,
+                format!("the fractions sum to {} and no channel takes the rest", units::sig(sum, 6)),
+                Some("add a return channel, e.g. { to = \"A\", fraction = \"rest\" }, or make the fractions sum to 1".into()),
+            );
+        }
+    }
+}
+
+fn example_k(order: u32) -> &'static str {
+    match order {
+        1 => "0.04 /s",
+        2 => "1e4 /(M s)",
+        _ => "1e8 /(M2 s)",
+    }
+}
+
+/// The names known while resolving.
+pub(super) struct Names<'a> {
+    species: &'a [Species],
+    transients: &'a [(String, TransientKind)],
+}

@@ -1,0 +1,349 @@
+//! Checks that need the whole network: ways out of transients, return paths, quantum-yield
+//! sums, element balance, and warnings about light, spectra and unused species. Also builds
+//! the petgraph graph.
+
+use super::build::Builder;
+use super::formula::{self, Composition};
+use super::*;
+use crate::error::Origin;
+use std::collections::BTreeSet;
+
+impl Builder<'_> {
+    pub(super) fn check_network(&mut self, net: &mut Network) {
+        self.check_exits(net);
+        mark_returns(net);
+        self.check_yield_sums(net);
+        self.check_balance(net);
+        self.check_light(net);
+        self.check_unused(net);
+    }
+
+    fn transient_at(&self, i: usize) -> Origin {
+        self.at.transients.get(i).cloned().unwrap_or_default()
+    }
+
+    /// Every transient must reach a species through channels of positive share.
+    fn check_exits(&mut self, net: &Network) {
+        let n = net.transients.len();
+        let mut exits = vec![false; n];
+        // Fixed point: a transient exits if a channel with positive share goes to a species
+        // or to a transient that exits.
+        loop {
+            let mut changed = false;
+            for (i, t) in net.transients.iter().enumerate() {
+                if exits[i] {
+                    continue;
+                }
+                let fixed: f64 = t.channels.iter().map(|c| if let Branching::Fraction(x) = c.branching { x } else { 0.0 }).sum();
+                let open = t.channels.iter().any(|c| {
+                    let positive = match c.branching {
+                        Branching::Fraction(x) => x > 0.0,
+                        Branching::Rest => fixed < 1.0 - 1e-12,
+                        Branching::Rate { k, .. } => k > 0.0,
+                        Branching::Quenching { k2, .. } => k2 > 0.0,
+                    };
+                    positive
+                        && match c.target {
+                            Target::Species(_) => true,
+                            Target::Transient(j) => exits[j],
+                        }
+                });
+                if open {
+                    exits[i] = true;
+                    changed = true;
+                }
+            }
+            if !changed {
+                break;
+            }
+        }
+        let stuck: Vec<usize> = (0..n).filter(|&i| !exits[i] && !net.transients[i].name.is_empty() && !net.transients[i].channels.is_empty()).collect();
+        if !stuck.is_empty() {
+            let names: Vec<String> = stuck.iter().map(|&i| format!("\"{}\"", net.transients[i].name)).collect();
+            let at = self.transient_at(stuck[0]);
+            self.error(
+                &format!("transient {}", names[0]),
+                &at,
+                format!("no way out to a species: {} only lead{} to each other", names.join(", "), if names.len() == 1 { "s" } else { "" }),
+                Some("give one of them a channel to a ground-state species (a product, or the return to the absorber)".into()),
+            );
+        }
+        // Quenching-only transients depend on the partner being present.
+        for (i, t) in net.transients.iter().enumerate() {
+            if !t.channels.is_empty() && t.channels.iter().all(|c| matches!(c.branching, Branching::Quenching { .. })) {
+                let at = self.transient_at(i);
+                self.warn(
+                    &format!("transient \"{}\"", t.name),
+                    &at,
+                    "all its channels are bimolecular quenching: with no quencher present it has no way out",
+                    Some("add a unimolecular decay channel (rate = { k = ... })".into()),
+                );
+            }
+        }
+        // Transients nothing reaches.
+        let mut reached = vec![false; n];
+        for p in &net.photo {
+            if let PhotoOutcome::Transient(t) = p.outcome {
+                reached[t] = true;
+            }
+        }
+        for t in &net.transients {
+            for c in &t.channels {
+                if let Target::Transient(j) = c.target {
+                    reached[j] = true;
+                }
+            }
+        }
+        for (i, t) in net.transients.iter().enumerate() {
+            if !reached[i] && !t.name.is_empty() {
+                let at = self.transient_at(i);
+                self.warn(&format!("transient \"{}\"", t.name), &at, "no photochemical step or channel leads to it", None);
+            }
+        }
+    }
+
+    /// The quantum yields of one absorber's steps must not sum above 1 at any wavelength.
+    fn check_yield_sums(&mut self, net: &Network) {
+        let mut wavelengths: Vec<f64> = net.lights.iter().flat_map(|l| l.bins.iter().map(|b| b.wavelength)).collect();
+        for p in &net.photo {
+            if let Spectrum::Table { points, .. } = &p.quantum_yield {
+                wavelengths.extend(points.iter().map(|x| x.0));
+            }
+        }
+        if wavelengths.is_empty() {
+            wavelengths.push(500e-9);
+        }
+        for a in net.species_absorbing() {
+            let steps: Vec<usize> = (0..net.photo.len()).filter(|&i| net.photo[i].absorber == a).collect();
+            let worst = wavelengths
+                .iter()
+                .map(|&w| (w, steps.iter().map(|&i| net.photo[i].yield_at(w)).sum::<f64>()))
+                .max_by(|x, y| x.1.total_cmp(&y.1));
+            if let Some((w, s)) = worst
+                && s > 1.0 + 1e-9
+            {
+                let at = self.at.photo.get(steps[0]).cloned().unwrap_or_default();
+                self.error(
+                    &format!("photo steps of \"{}\"", net.species[a].name),
+                    &at,
+                    format!("quantum yields and efficiencies sum to {} at {} nm, above 1", crate::units::sig(s, 6), crate::units::sig(w * 1e9, 5)),
+                    Some("the photons one absorber takes up are shared among its steps: their yields sum to at most 1".into()),
+                );
+            }
+        }
+    }
+
+    fn check_balance(&mut self, net: &Network) {
+        let comp = |terms: &[Term]| -> Option<Composition> {
+            let mut parts = Vec::new();
+            for t in terms {
+                parts.push((net.species[t.species].composition.as_ref()?, t.coefficient));
+            }
+            Some(formula::total(parts))
+        };
+        for (i, s) in net.thermal.iter().enumerate() {
+            if s.reverse_of.is_some() {
+                continue;
+            }
+            if let (Some(l), Some(r)) = (comp(&s.reactants), comp(&s.products)) {
+                let d = formula::imbalance(&l, &r);
+                if !d.is_empty() {
+                    let at = self.at.thermal.get(i).cloned().unwrap_or_default();
+                    self.error(
+                        &format!("thermal \"{}\"", s.name),
+                        &at,
+                        format!("{} -> {} is not balanced: products − reactants = {d}", net.side(&s.reactants), net.side(&s.products)),
+                        Some("check the formulas of these species and the coefficients".into()),
+                    );
+                }
+            }
+        }
+        for (i, p) in net.photo.iter().enumerate() {
+            let at = self.at.photo.get(i).cloned().unwrap_or_default();
+            let Some(a) = net.species[p.absorber].composition.clone() else { continue };
+            let mut ends: Vec<(String, Vec<Term>)> = Vec::new();
+            match &p.outcome {
+                PhotoOutcome::Products(t) => ends.push((p.name.clone(), t.clone())),
+                PhotoOutcome::Transient(t) => collect_ends(net, *t, &mut Vec::new(), &mut ends),
+            }
+            for (label, terms) in ends {
+                if let Some(r) = comp(&terms) {
+                    let d = formula::imbalance(&a, &r);
+                    if !d.is_empty() {
+                        self.error(
+                            &format!("photo \"{}\"", p.name),
+                            &at,
+                            format!("{} -> {} ({label}) is not balanced: products − absorber = {d}", net.species[p.absorber].name, net.side(&terms)),
+                            Some("photochemical outcomes keep the absorber's atoms; a partner's atoms enter through thermal steps".into()),
+                        );
+                    }
+                }
+            }
+        }
+    }
+
+    fn check_light(&mut self, net: &Network) {
+        if net.lights.is_empty() && !net.photo.is_empty() {
+            self.warn("light", &Origin::Span(0..0), "there are photochemical steps but no light source", Some("add a [[light]] table".into()));
+            return;
+        }
+        for a in net.species_absorbing() {
+            let s = &net.species[a];
+            let at = self.at.species.get(a).cloned().unwrap_or_default();
+            match &s.epsilon {
+                None => self.warn(
+                    &format!("species \"{}\".epsilon", s.name),
+                    &at,
+                    "it absorbs in a photochemical step but has no molar absorption coefficient, so it takes no light",
+                    Some("add epsilon, e.g. epsilon = { at = \"365 nm\", value = \"5000 L/(mol cm)\" }".into()),
+                ),
+                Some(eps) => {
+                    let absorbs = net.lights.iter().flat_map(|l| &l.bins).any(|b| eps.at(b.wavelength) > 0.0);
+                    if !absorbs {
+                        self.warn(&format!("species \"{}\".epsilon", s.name), &at, "is zero at every wavelength of the light, so it takes no light", None);
+                    }
+                    if let Spectrum::Constant { at: Some(w), .. } = eps {
+                        let far = net.lights.iter().filter_map(|l| l.extent()).any(|(lo, hi)| (lo - w).abs() > 10e-9 || (hi - w).abs() > 10e-9);
+                        if far {
+                            self.warn(
+                                &format!("species \"{}\".epsilon", s.name),
+                                &at,
+                                format!("is given only at {} nm but the light reaches more than 10 nm from it; the value is used at every wavelength", crate::units::sig(w * 1e9, 5)),
+                                Some("give a table over the light's wavelengths".into()),
+                            );
+                        }
+                    }
+                }
+            }
+        }
+    }
+
+    fn check_unused(&mut self, net: &Network) {
+        let mut used = BTreeSet::new();
+        for s in &net.thermal {
+            used.extend(s.reactants.iter().chain(&s.products).map(|t| t.species));
+        }
+        for p in &net.photo {
+            used.insert(p.absorber);
+            if let PhotoOutcome::Products(t) = &p.outcome {
+                used.extend(t.iter().map(|t| t.species));
+            }
+        }
+        for t in &net.transients {
+            for c in &t.channels {
+                if let Target::Species(ts) = &c.target {
+                    used.extend(ts.iter().map(|t| t.species));
+                }
+                if let Branching::Quenching { partner, .. } = c.branching {
+                    used.insert(partner);
+                }
+            }
+        }
+        for (i, s) in net.species.iter().enumerate() {
+            if !used.contains(&i) {
+                let at = self.at.species.get(i).cloned().unwrap_or_default();
+                let absorbs = s.epsilon.as_ref().is_some_and(|e| e.max() > 0.0);
+                let note = if absorbs { " (it still absorbs light: an inner filter)" } else { "" };
+                self.warn(&format!("species \"{}\"", s.name), &at, format!("nothing produces or consumes it{note}"), None);
+            }
+        }
+    }
+}
+
+/// Follow channels from transient `t` to every species outcome (for balance checks).
+fn collect_ends(net: &Network, t: usize, path: &mut Vec<usize>, out: &mut Vec<(String, Vec<Term>)>) {
+    if path.contains(&t) || path.len() > 64 {
+        return;
+    }
+    path.push(t);
+    for c in &net.transients[t].channels {
+        match &c.target {
+            Target::Species(terms) => out.push((format!("via {}", path.iter().map(|&i| net.transients[i].name.as_str()).collect::<Vec<_>>().join(" -> ")), terms.clone())),
+            Target::Transient(j) => collect_ends(net, *j, path, out),
+        }
+    }
+    path.pop();
+}
+
+/// Mark channels that send the molecule back to a species that was excited into the transient.
+fn mark_returns(net: &mut Network) {
+    let n = net.transients.len();
+    let mut origins: Vec<BTreeSet<usize>> = vec![BTreeSet::new(); n];
+    for p in &net.photo {
+        if let PhotoOutcome::Transient(t) = p.outcome {
+            origins[t].insert(p.absorber);
+        }
+    }
+    loop {
+        let mut changed = false;
+        for i in 0..n {
+            for c in &net.transients[i].channels {
+                if let Target::Transient(j) = c.target {
+                    let add: Vec<usize> = origins[i].difference(&origins[j]).copied().collect();
+                    if !add.is_empty() {
+                        origins[j].extend(add);
+                        changed = true;
+                    }
+                }
+            }
+        }
+        if !changed {
+            break;
+        }
+    }
+    for (i, t) in net.transients.iter_mut().enumerate() {
+        for c in &mut t.channels {
+            if let Target::Species(terms) = &c.target {
+                c.returns = terms.len() == 1 && terms[0].coefficient == 1.0 && origins[i].contains(&terms[0].species);
+            }
+        }
+    }
+}
+
+/// The bipartite graph of the network.
+pub(super) fn graph(net: &Network) -> DiGraph<Node, Edge> {
+    let mut g = DiGraph::new();
+    let sp: Vec<NodeIndex> = (0..net.species.len()).map(|i| g.add_node(Node::Species(i))).collect();
+    let tr: Vec<NodeIndex> = (0..net.transients.len()).map(|i| g.add_node(Node::Transient(i))).collect();
+    for (i, s) in net.thermal.iter().enumerate() {
+        let n = g.add_node(Node::Thermal(i));
+        for t in &s.reactants {
+            g.add_edge(sp[t.species], n, Edge::Reactant(t.coefficient));
+        }
+        for t in &s.products {
+            g.add_edge(n, sp[t.species], Edge::Product(t.coefficient));
+        }
+    }
+    for (i, p) in net.photo.iter().enumerate() {
+        let n = g.add_node(Node::Photo(i));
+        g.add_edge(sp[p.absorber], n, Edge::Absorbs);
+        match &p.outcome {
+            PhotoOutcome::Products(ts) => {
+                for t in ts {
+                    g.add_edge(n, sp[t.species], Edge::Product(t.coefficient));
+                }
+            }
+            PhotoOutcome::Transient(t) => {
+                g.add_edge(n, tr[*t], Edge::Excites);
+            }
+        }
+    }
+    for (i, t) in net.transients.iter().enumerate() {
+        for (j, c) in t.channels.iter().enumerate() {
+            match &c.target {
+                Target::Species(ts) => {
+                    for x in ts {
+                        g.add_edge(tr[i], sp[x.species], Edge::Channel(j));
+                    }
+                }
+                Target::Transient(k) => {
+                    g.add_edge(tr[i], tr[*k], Edge::Channel(j));
+                }
+            }
+            if let Branching::Quenching { partner, .. } = c.branching {
+                g.add_edge(sp[partner], tr[i], Edge::Quenches(j));
+            }
+        }
+    }
+    g
+}

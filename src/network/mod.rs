@@ -1,0 +1,331 @@
+//! The validated network: species, thermal steps, photochemical steps, transients, light
+//! and conditions, in SI units (concentrations in mol/L), with a petgraph graph over them.
+//!
+//! A [`Network`] only exists once every check has passed: names resolve, units are right,
+//! fractions are fractions and every transient has a way out to a species. Build one with
+//! [`load`] (a file on disk) or [`build`] (text already read); both return every problem
+//! found at once, each with its file, line, field and what is accepted.
+
+mod build;
+mod checks;
+pub mod equation;
+pub mod formula;
+pub mod overrides;
+mod suggest;
+
+pub use build::build;
+pub use overrides::Overrides;
+
+use crate::error::{Diagnostic, Result};
+use crate::light::{LightSource, Spectrum};
+use crate::rates::RateLaw;
+use petgraph::graph::{DiGraph, NodeIndex};
+use std::path::{Path, PathBuf};
+
+/// Read, parse and validate the network file at `path`, with command-line overrides.
+pub fn load(path: &Path, overrides: &Overrides) -> Result<Network> {
+    let loaded = crate::file::load(path)?;
+    build(&loaded, overrides)
+}
+
+/// Name, description and provenance of a network.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct About {
+    /// Short name.
+    pub name: String,
+    /// What it describes.
+    pub description: String,
+    /// Where the numbers come from.
+    pub provenance: String,
+    /// True for an invented scenario.
+    pub invented: bool,
+}
+
+/// The reactor.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Conditions {
+    /// Temperature, K.
+    pub temperature: f64,
+    /// Irradiated solution volume, m³.
+    pub volume: f64,
+    /// Optical path length, m.
+    pub path_length: f64,
+    /// Irradiated face area, m², if given.
+    pub irradiated_area: Option<f64>,
+    /// Solvent/vessel absorbance over the whole path (dimensionless, decadic).
+    pub background: Spectrum,
+}
+
+impl Conditions {
+    /// Volume in litres (for concentrations in mol/L).
+    pub fn volume_litres(&self) -> f64 {
+        self.volume * 1000.0
+    }
+}
+
+/// A species whose concentration is followed.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Species {
+    /// Unique name.
+    pub name: String,
+    /// Initial concentration, mol/L.
+    pub initial: f64,
+    /// Molecular formula as written, if given.
+    pub formula: Option<String>,
+    /// Element counts (and charge under the key "charge") from the formula.
+    pub composition: Option<formula::Composition>,
+    /// Molar absorption coefficient, L mol⁻¹ m⁻¹ (internal unit; 100 × L mol⁻¹ cm⁻¹).
+    pub epsilon: Option<Spectrum>,
+    /// Named as a product by the user.
+    pub product: bool,
+}
+
+/// A species with its stoichiometric coefficient.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Term {
+    /// Index into [`Network::species`].
+    pub species: usize,
+    /// Stoichiometric coefficient (positive).
+    pub coefficient: f64,
+}
+
+/// An elementary thermal step, one direction (a reversible equation gives two).
+#[derive(Debug, Clone, PartialEq)]
+pub struct ThermalStep {
+    /// Display name ("back-isomerisation", or the equation).
+    pub name: String,
+    /// Reactants with coefficients; the rate is r = k Π cᵢ^νᵢ (IUPAC convention).
+    pub reactants: Vec<Term>,
+    /// Products with coefficients.
+    pub products: Vec<Term>,
+    /// How the rate constant is given.
+    pub rate: RateLaw,
+    /// Molecularity Σ νᵢ of the reactants (order of the rate law).
+    pub order: u32,
+    /// Rate constant at the network temperature, (L/mol)^(order−1) s⁻¹.
+    pub k: f64,
+    /// For the reverse half of a `<=>` equation: the index of the forward step.
+    pub reverse_of: Option<usize>,
+}
+
+/// What an absorbed photon leads to.
+#[derive(Debug, Clone, PartialEq)]
+pub enum PhotoOutcome {
+    /// Short form: the absorber becomes these products with the quantum yield.
+    Products(Vec<Term>),
+    /// Long form: the absorber is promoted to this transient.
+    Transient(usize),
+}
+
+/// A photochemical step.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PhotoStep {
+    /// Display name.
+    pub name: String,
+    /// Index of the absorbing species.
+    pub absorber: usize,
+    /// Where the photon takes it.
+    pub outcome: PhotoOutcome,
+    /// Quantum yield (short form) or efficiency of reaching the transient (long form),
+    /// as a function of wavelength; the remainder returns the absorber to itself.
+    pub quantum_yield: Spectrum,
+    /// Wavelength window (m) in which the step applies, inclusive.
+    pub window: Option<(f64, f64)>,
+}
+
+impl PhotoStep {
+    /// The quantum yield at `wavelength` (m), zero outside the step's window.
+    pub fn yield_at(&self, wavelength: f64) -> f64 {
+        match self.window {
+            Some((lo, hi)) if wavelength < lo || wavelength > hi => 0.0,
+            _ => self.quantum_yield.at(wavelength),
+        }
+    }
+}
+
+/// Where a transient channel leads.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Target {
+    /// Ground-state species (with coefficients).
+    Species(Vec<Term>),
+    /// Another transient.
+    Transient(usize),
+}
+
+/// How a channel's share is set.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Branching {
+    /// A fixed fraction of the transient's population.
+    Fraction(f64),
+    /// Whatever the fixed fractions leave.
+    Rest,
+    /// A first-order rate, s⁻¹ (from k, Arrhenius or Eyring at the network temperature).
+    Rate {
+        /// How the rate was given.
+        law: RateLaw,
+        /// Value at the network temperature, s⁻¹.
+        k: f64,
+    },
+    /// Bimolecular quenching by `partner` (not consumed), pseudo-first-order k₂ [partner].
+    Quenching {
+        /// Index of the partner species.
+        partner: usize,
+        /// How the rate constant was given.
+        law: RateLaw,
+        /// Value at the network temperature, L mol⁻¹ s⁻¹.
+        k2: f64,
+    },
+}
+
+/// A channel out of a transient.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Channel {
+    /// Where it leads.
+    pub target: Target,
+    /// Its share.
+    pub branching: Branching,
+    /// True when it sends the molecule back to a species that was excited into this transient
+    /// (directly or through other transients): a return path that closes a photon cycle.
+    pub returns: bool,
+}
+
+/// The kind of short-lived node, for display.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum TransientKind {
+    /// An electronically excited state.
+    Excited,
+    /// A conical intersection or other funnel.
+    Intersection,
+    /// A vibrationally hot ground state.
+    Hot,
+    /// Anything else short-lived.
+    Other,
+}
+
+impl TransientKind {
+    /// The word used in files and output.
+    pub fn word(self) -> &'static str {
+        match self {
+            TransientKind::Excited => "excited",
+            TransientKind::Intersection => "intersection",
+            TransientKind::Hot => "hot",
+            TransientKind::Other => "other",
+        }
+    }
+}
+
+/// A short-lived node that is not integrated as a concentration.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Transient {
+    /// Unique name.
+    pub name: String,
+    /// Kind, for display.
+    pub kind: TransientKind,
+    /// Outgoing channels.
+    pub channels: Vec<Channel>,
+}
+
+/// A node of the network graph.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Node {
+    /// Index into [`Network::species`].
+    Species(usize),
+    /// Index into [`Network::transients`].
+    Transient(usize),
+    /// Index into [`Network::thermal`].
+    Thermal(usize),
+    /// Index into [`Network::photo`].
+    Photo(usize),
+}
+
+/// An edge of the network graph.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Edge {
+    /// A species enters a step with this coefficient.
+    Reactant(f64),
+    /// A step (or a channel) yields a species with this coefficient.
+    Product(f64),
+    /// A species absorbs the photon of a photochemical step.
+    Absorbs,
+    /// A photochemical step excites a transient.
+    Excites,
+    /// Channel `n` of a transient.
+    Channel(usize),
+    /// A species quenches a transient through channel `n`.
+    Quenches(usize),
+}
+
+/// A validated reaction network.
+#[derive(Debug, Clone)]
+pub struct Network {
+    /// The file it came from, if any.
+    pub source: Option<PathBuf>,
+    /// Name, description, provenance.
+    pub about: About,
+    /// The reactor.
+    pub conditions: Conditions,
+    /// Light sources.
+    pub lights: Vec<LightSource>,
+    /// Species followed as concentrations.
+    pub species: Vec<Species>,
+    /// Thermal elementary steps (reversible equations appear as two).
+    pub thermal: Vec<ThermalStep>,
+    /// Photochemical steps.
+    pub photo: Vec<PhotoStep>,
+    /// Transients.
+    pub transients: Vec<Transient>,
+    /// Bipartite graph: species and transients on one side, steps on the other.
+    pub graph: DiGraph<Node, Edge>,
+    /// Warnings found while validating.
+    pub warnings: Vec<Diagnostic>,
+}
+
+impl Network {
+    /// Index of the species called `name`.
+    pub fn species_index(&self, name: &str) -> Option<usize> {
+        self.species.iter().position(|s| s.name == name)
+    }
+
+    /// Index of the transient called `name`.
+    pub fn transient_index(&self, name: &str) -> Option<usize> {
+        self.transients.iter().position(|t| t.name == name)
+    }
+
+    /// The graph node of `node`.
+    pub fn node_index(&self, node: Node) -> Option<NodeIndex> {
+        self.graph.node_indices().find(|&i| self.graph[i] == node)
+    }
+
+    /// Display label of a graph node.
+    pub fn label(&self, node: Node) -> String {
+        match node {
+            Node::Species(i) => self.species[i].name.clone(),
+            Node::Transient(i) => self.transients[i].name.clone(),
+            Node::Thermal(i) => self.thermal[i].name.clone(),
+            Node::Photo(i) => self.photo[i].name.clone(),
+        }
+    }
+
+    /// The equation of a list of terms, e.g. "2 A + B".
+    pub fn side(&self, terms: &[Term]) -> String {
+        terms
+            .iter()
+            .map(|t| {
+                if t.coefficient == 1.0 {
+                    self.species[t.species].name.clone()
+                } else {
+                    format!("{} {}", t.coefficient, self.species[t.species].name)
+                }
+            })
+            .collect::<Vec<_>>()
+            .join(" + ")
+    }
+
+    /// Indices of the species that absorb in some photochemical step, sorted.
+    pub fn species_absorbing(&self) -> Vec<usize> {
+        let mut v: Vec<usize> = self.photo.iter().map(|p| p.absorber).collect();
+        v.sort_unstable();
+        v.dedup();
+        v
+    }
+}

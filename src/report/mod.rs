@@ -1,0 +1,47 @@
+//! Reports: what the engines found, as text, CSV, JSON and SVG. Pure functions that return
+//! strings, plus [`write_atomic`], the one way outputs reach the disk.
+
+pub mod diagram;
+pub mod summary;
+
+use crate::error::{Error, Result};
+use std::io::Write;
+use std::path::Path;
+
+/// Write `bytes` to `path` atomically: a temporary file beside it, flushed, then renamed, so a
+/// reader never sees a half-written file and a failed run leaves the old file in place.
+pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
+    let io = |source| Error::Io { path: path.to_path_buf(), source };
+    let dir = match path.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
+        _ => std::path::PathBuf::from("."),
+    };
+    std::fs::create_dir_all(&dir).map_err(io)?;
+    let name = path.file_name().map(|n| n.to_string_lossy().to_string()).unwrap_or_else(|| "out".into());
+    let tmp = dir.join(format!(".{name}.{}.tmp", std::process::id()));
+    let result = (|| {
+        let mut f = std::fs::File::create(&tmp)?;
+        f.write_all(bytes)?;
+        f.sync_all()?;
+        std::fs::rename(&tmp, path)
+    })();
+    if result.is_err() {
+        let _ = std::fs::remove_file(&tmp);
+    }
+    result.map_err(io)
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn writes_and_replaces() {
+        let dir = std::env::temp_dir().join(format!("pl-atomic-{}", std::process::id()));
+        let p = dir.join("a.txt");
+        super::write_atomic(&p, b"one").unwrap();
+        super::write_atomic(&p, b"two").unwrap();
+        assert_eq!(std::fs::read_to_string(&p).unwrap(), "two");
+        let left: Vec<_> = std::fs::read_dir(&dir).unwrap().collect();
+        assert_eq!(left.len(), 1, "no temporary file is left behind");
+        std::fs::remove_dir_all(dir).unwrap();
+    }
+}
