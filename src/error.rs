@@ -60,7 +60,10 @@ impl Diagnostic {
 
     /// A new warning about `field`.
     pub fn warning(field: impl Into<String>, message: impl Into<String>) -> Self {
-        Diagnostic { severity: Severity::Warning, ..Diagnostic::error(field, message) }
+        Diagnostic {
+            severity: Severity::Warning,
+            ..Diagnostic::error(field, message)
+        }
     }
 
     /// Attach what is accepted or a suggestion.
@@ -193,7 +196,10 @@ mod tests {
             .with_help("a number with M, mM")
             .at(Path::new("n.toml"), "x\ny", &Origin::Span(2..3));
         let s = d.to_string();
-        assert!(s.starts_with("error: n.toml:2:1: species[0].initial: \"10\" has no unit"), "{s}");
+        assert!(
+            s.starts_with("error: n.toml:2:1: species[0].initial: \"10\" has no unit"),
+            "{s}"
+        );
         assert!(s.contains("help: a number with M"), "{s}");
     }
 }

@@ -8,6 +8,7 @@
 
 pub mod error;
 pub mod file;
+pub mod kinetics;
 pub mod light;
 pub mod model;
 pub mod network;

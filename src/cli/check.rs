@@ -13,7 +13,11 @@ pub fn run(args: &NetworkArgs, quiet: bool) -> photoledger::Result<()> {
     println!(
         "valid: {}{}",
         args.file.display(),
-        if w > 0 { format!(" ({w} warning{})", if w == 1 { "" } else { "s" }) } else { String::new() }
+        if w > 0 {
+            format!(" ({w} warning{})", if w == 1 { "" } else { "s" })
+        } else {
+            String::new()
+        }
     );
     Ok(())
 }

@@ -90,8 +90,19 @@ fn load(args: &NetworkArgs) -> photoledger::Result<photoledger::Network> {
     let overrides = photoledger::Overrides::parse(&args.set).map_err(Error::Usage)?;
     photoledger::network::load(&args.file, &overrides).map_err(|e| match e {
         // An unknown --set key is a usage error, not a broken file.
-        Error::Invalid(ds) if !ds.is_empty() && ds.iter().all(|d| d.field.starts_with("--set ") || d.severity == photoledger::error::Severity::Warning) => {
-            Error::Usage(ds.iter().filter(|d| d.severity == photoledger::error::Severity::Error).map(|d| d.to_string()).collect::<Vec<_>>().join("\n"))
+        Error::Invalid(ds)
+            if !ds.is_empty()
+                && ds
+                    .iter()
+                    .all(|d| d.field.starts_with("--set ") || d.severity == photoledger::error::Severity::Warning) =>
+        {
+            Error::Usage(
+                ds.iter()
+                    .filter(|d| d.severity == photoledger::error::Severity::Error)
+                    .map(|d| d.to_string())
+                    .collect::<Vec<_>>()
+                    .join("\n"),
+            )
         }
         other => other,
     })

@@ -73,7 +73,11 @@ pub fn read(path: &Path) -> Result<Table, CsvError> {
 
 /// Parse the text of a two-column table.
 pub fn parse(path: &Path, text: &str) -> Result<Table, CsvError> {
-    let err = |line: usize, message: String| CsvError { path: path.to_path_buf(), line: Some(line), message };
+    let err = |line: usize, message: String| CsvError {
+        path: path.to_path_buf(),
+        line: Some(line),
+        message,
+    };
     let mut header: Option<([String; 2], [Option<String>; 2])> = None;
     let mut rows = Vec::new();
     for (i, raw) in text.lines().enumerate() {
@@ -87,7 +91,10 @@ pub fn parse(path: &Path, text: &str) -> Result<Table, CsvError> {
             if cells.len() != 2 {
                 return Err(err(
                     line_no,
-                    format!("the header has {} columns; two are expected, e.g. \"wavelength (nm), epsilon (L/(mol cm))\"", cells.len()),
+                    format!(
+                        "the header has {} columns; two are expected, e.g. \"wavelength (nm), epsilon (L/(mol cm))\"",
+                        cells.len()
+                    ),
                 ));
             }
             let (n0, u0) = split_header(cells[0]);
@@ -105,10 +112,12 @@ pub fn parse(path: &Path, text: &str) -> Result<Table, CsvError> {
             return Err(err(line_no, format!("{} columns found; two are expected", cells.len())));
         }
         let num = |s: &str, col: &str| {
-            s.parse::<f64>()
-                .ok()
-                .filter(|v| v.is_finite())
-                .ok_or_else(|| err(line_no, format!("the {col} column holds \"{s}\", which is not a finite number")))
+            s.parse::<f64>().ok().filter(|v| v.is_finite()).ok_or_else(|| {
+                err(
+                    line_no,
+                    format!("the {col} column holds \"{s}\", which is not a finite number"),
+                )
+            })
         };
         let x = num(cells[0], "first")?;
         let y = num(cells[1], "second")?;
@@ -120,9 +129,18 @@ pub fn parse(path: &Path, text: &str) -> Result<Table, CsvError> {
         message: "the file is empty; a header and at least one row are expected".into(),
     })?;
     if rows.is_empty() {
-        return Err(CsvError { path: path.to_path_buf(), line: None, message: "no data rows".into() });
+        return Err(CsvError {
+            path: path.to_path_buf(),
+            line: None,
+            message: "no data rows".into(),
+        });
     }
-    Ok(Table { path: path.to_path_buf(), names, units, rows })
+    Ok(Table {
+        path: path.to_path_buf(),
+        names,
+        units,
+        rows,
+    })
 }
 
 #[cfg(test)]
@@ -131,7 +149,11 @@ mod tests {
 
     #[test]
     fn reads_header_units_and_rows() {
-        let t = parse(Path::new("x.csv"), "# c\nwavelength (nm), epsilon (L/(mol cm))\n300, 12\n310,14\n").unwrap();
+        let t = parse(
+            Path::new("x.csv"),
+            "# c\nwavelength (nm), epsilon (L/(mol cm))\n300, 12\n310,14\n",
+        )
+        .unwrap();
         assert_eq!(t.units[0].as_deref(), Some("nm"));
         assert_eq!(t.units[1].as_deref(), Some("L/(mol cm)"));
         assert_eq!(t.rows, vec![(300.0, 12.0, 3), (310.0, 14.0, 4)]);

@@ -33,8 +33,10 @@ pub struct Loaded {
 /// a missing file is [`Error::Io`]. A CSV that cannot be read is kept as an error string and
 /// reported by validation at the `file` key that names it.
 pub fn load(path: &Path) -> Result<Loaded> {
-    let text = std::fs::read_to_string(path)
-        .map_err(|source| Error::Io { path: path.to_path_buf(), source })?;
+    let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
     parse_text(path, text)
 }
 
@@ -58,7 +60,12 @@ pub fn parse_text(path: &Path, text: String) -> Result<Loaded> {
         let t = csv::read(&full).map_err(|e| e.to_string());
         tables.insert(name, t);
     }
-    Ok(Loaded { path: path.to_path_buf(), text, doc, tables })
+    Ok(Loaded {
+        path: path.to_path_buf(),
+        text,
+        doc,
+        tables,
+    })
 }
 
 fn referenced_files(doc: &NetworkFile) -> Vec<String> {

@@ -80,7 +80,13 @@ impl LightSource {
     /// Build a source and its photon bins.
     pub fn new(name: String, kind: LightKind, intensity: Option<Intensity>, window: (f64, f64)) -> Self {
         let bins = bins_for(&kind, intensity, window);
-        LightSource { name, kind, intensity, window, bins }
+        LightSource {
+            name,
+            kind,
+            intensity,
+            window,
+            bins,
+        }
     }
 
     /// Total photon flux, einstein/s.
@@ -90,7 +96,10 @@ impl LightSource {
 
     /// Total radiant power, W.
     pub fn power(&self) -> f64 {
-        self.bins.iter().map(|b| b.flux * molar_photon_energy(b.wavelength)).sum()
+        self.bins
+            .iter()
+            .map(|b| b.flux * molar_photon_energy(b.wavelength))
+            .sum()
     }
 
     /// Shortest and longest wavelength carrying photons (m).
@@ -111,7 +120,10 @@ fn quadrature(shape: &[(f64, f64)]) -> (Vec<PhotonBin>, f64) {
         let right = if i + 1 < n { shape[i + 1].0 - shape[i].0 } else { 0.0 };
         let p = shape[i].1 * 0.5 * (left + right);
         total += p;
-        bins.push(PhotonBin { wavelength: shape[i].0, flux: p / molar_photon_energy(shape[i].0) });
+        bins.push(PhotonBin {
+            wavelength: shape[i].0,
+            flux: p / molar_photon_energy(shape[i].0),
+        });
     }
     (bins, total)
 }
@@ -134,7 +146,10 @@ fn scale_to(mut bins: Vec<PhotonBin>, shape_power: f64, intensity: Option<Intens
 }
 
 fn clip(shape: Vec<(f64, f64)>, window: (f64, f64)) -> Vec<(f64, f64)> {
-    shape.into_iter().filter(|p| p.0 >= window.0 && p.0 <= window.1).collect()
+    shape
+        .into_iter()
+        .filter(|p| p.0 >= window.0 && p.0 <= window.1)
+        .collect()
 }
 
 fn bins_for(kind: &LightKind, intensity: Option<Intensity>, window: (f64, f64)) -> Vec<PhotonBin> {
@@ -145,7 +160,10 @@ fn bins_for(kind: &LightKind, intensity: Option<Intensity>, window: (f64, f64)) 
                 Some(Intensity::PhotonFlux(q)) => q,
                 None => 0.0,
             };
-            vec![PhotonBin { wavelength: *wavelength, flux }]
+            vec![PhotonBin {
+                wavelength: *wavelength,
+                flux,
+            }]
         }
         LightKind::Band { centre, fwhm } => {
             // Gaussian spectral power, sampled out to ±2 FWHM (beyond which less than 1e-5 of the
@@ -204,7 +222,10 @@ mod tests {
     fn band_keeps_its_power_and_centre() {
         let s = LightSource::new(
             "blue".into(),
-            LightKind::Band { centre: 450e-9, fwhm: 20e-9 },
+            LightKind::Band {
+                centre: 450e-9,
+                fwhm: 20e-9,
+            },
             Some(Intensity::Power(0.1)),
             (0.0, f64::INFINITY),
         );
@@ -214,7 +235,11 @@ mod tests {
         let mean: f64 = s.bins.iter().map(|b| b.wavelength * b.flux).sum::<f64>() / q;
         assert!(mean > 450e-9 && mean < 451e-9, "{mean}");
         // FWHM check: the power at centre ± 10 nm is half the peak (common practice definition).
-        let peak = s.bins.iter().map(|b| b.flux * molar_photon_energy(b.wavelength)).fold(0.0, f64::max);
+        let peak = s
+            .bins
+            .iter()
+            .map(|b| b.flux * molar_photon_energy(b.wavelength))
+            .fold(0.0, f64::max);
         let at = |wl: f64| {
             s.bins
                 .iter()
@@ -229,7 +254,10 @@ mod tests {
     fn photon_flux_intensity_is_kept() {
         let s = LightSource::new(
             "b".into(),
-            LightKind::Band { centre: 530e-9, fwhm: 30e-9 },
+            LightKind::Band {
+                centre: 530e-9,
+                fwhm: 30e-9,
+            },
             Some(Intensity::PhotonFlux(2e-6)),
             (0.0, f64::INFINITY),
         );

@@ -31,7 +31,11 @@ pub fn table() -> &'static [SolarRow] {
         TABLE
             .lines()
             .filter_map(|l| {
-                let c: Vec<f64> = l.split(',').map(|x| x.trim().parse::<f64>()).collect::<Result<_, _>>().ok()?;
+                let c: Vec<f64> = l
+                    .split(',')
+                    .map(|x| x.trim().parse::<f64>())
+                    .collect::<Result<_, _>>()
+                    .ok()?;
                 (c.len() == 4).then(|| SolarRow {
                     wavelength_nm: c[0],
                     extraterrestrial: c[1],

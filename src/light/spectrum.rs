@@ -90,7 +90,10 @@ pub fn interpolate(points: &[(f64, f64)], x: f64, outside: Outside) -> f64 {
 
 /// Trapezoid integral of sorted `points` over their whole span.
 pub fn trapezoid(points: &[(f64, f64)]) -> f64 {
-    points.windows(2).map(|w| 0.5 * (w[0].1 + w[1].1) * (w[1].0 - w[0].0)).sum()
+    points
+        .windows(2)
+        .map(|w| 0.5 * (w[0].1 + w[1].1) * (w[1].0 - w[0].0))
+        .sum()
 }
 
 #[cfg(test)]

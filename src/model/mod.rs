@@ -1,1 +1,263 @@
-//! placeholder
+//! The compiled model every engine shares: index arrays over species, thermal reactions,
+//! light bins, absorbers and photochemical outcomes, built once from a [`Network`].
+//!
+//! Units: concentrations in mol/L, times in s, photon fluxes in einstein/s, the volume in L,
+//! the path length in m and ε in L mol⁻¹ m⁻¹, so an absorbance is ε c l.
+//!
+//! Photochemistry is compiled into *outcomes*: for each photochemical step, each way the
+//! absorbed photon can end (the short form's products, or every species outcome reachable
+//! through the transients). An outcome's yield at light bin b is `base[b]` (the quantum
+//! yield or efficiency at that wavelength) times, for outcomes through transients, the
+//! probability of that end from the exactly collapsed transient chain ([`transients`]),
+//! which is recomputed as quencher concentrations change.
+
+pub mod absorption;
+pub mod rhs;
+pub mod transients;
+
+use crate::network::{Network, PhotoOutcome};
+use transients::Collapse;
+
+/// A thermal elementary reaction in index form.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Reaction {
+    /// Display name.
+    pub name: String,
+    /// Reactant species and their (whole) coefficients: r = k Π c^ν.
+    pub reactants: Vec<(usize, u32)>,
+    /// Net change of each species per unit of reaction.
+    pub net: Vec<(usize, f64)>,
+    /// Rate constant at the model temperature, (L/mol)^(n−1) s⁻¹.
+    pub k: f64,
+}
+
+/// Photons of one wavelength from one source.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Bin {
+    /// Wavelength, m.
+    pub wavelength: f64,
+    /// Photon flux entering the sample, einstein/s.
+    pub flux: f64,
+    /// Index of the light source.
+    pub source: usize,
+}
+
+/// One way an absorbed photon can end for one photochemical step.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Outcome {
+    /// Display label, e.g. "E-azo -> Z-azo" or "A -> B via S1 -> CI".
+    pub label: String,
+    /// Index of the photochemical step.
+    pub step: usize,
+    /// Absorber slot (index into [`Model::absorbers`]).
+    pub slot: usize,
+    /// Net change of each species per photon taking this outcome.
+    pub net: Vec<(usize, f64)>,
+    /// True when the molecule comes back unchanged (a return path).
+    pub returns: bool,
+    /// Yield per light bin before the transient collapse (quantum yield or efficiency).
+    pub base: Vec<f64>,
+    /// For outcomes through transients: (entry transient, end index) into the collapse.
+    pub via: Option<(usize, usize)>,
+}
+
+/// The compiled model.
+#[derive(Debug, Clone)]
+pub struct Model {
+    /// Species names, in state-vector order.
+    pub species: Vec<String>,
+    /// Initial concentrations, mol/L.
+    pub initial: Vec<f64>,
+    /// Temperature, K.
+    pub temperature: f64,
+    /// Irradiated volume, L.
+    pub volume: f64,
+    /// Optical path length, m.
+    pub path: f64,
+    /// Thermal reactions (each direction of a reversible step separately).
+    pub reactions: Vec<Reaction>,
+    /// Light source names.
+    pub sources: Vec<String>,
+    /// All light bins of all sources.
+    pub bins: Vec<Bin>,
+    /// Background absorbance per bin.
+    pub background: Vec<f64>,
+    /// Species that absorb (every species with an ε), by slot.
+    pub absorbers: Vec<usize>,
+    /// ε per (slot, bin), row-major: `eps[slot * bins.len() + b]`, L mol⁻¹ m⁻¹.
+    pub eps: Vec<f64>,
+    /// Photochemical outcomes.
+    pub outcomes: Vec<Outcome>,
+    /// The transient chain, for outcomes through transients.
+    pub collapse: Collapse,
+    /// Species named as products, or that nothing consumes (the chain's absorbing states).
+    pub products: Vec<usize>,
+}
+
+impl Model {
+    /// Compile `net`.
+    pub fn compile(net: &Network) -> Model {
+        let species: Vec<String> = net.species.iter().map(|s| s.name.clone()).collect();
+        let initial: Vec<f64> = net.species.iter().map(|s| s.initial).collect();
+        let reactions = net
+            .thermal
+            .iter()
+            .map(|t| {
+                let mut net_change: Vec<(usize, f64)> = Vec::new();
+                let mut add = |i: usize, v: f64| match net_change.iter_mut().find(|x| x.0 == i) {
+                    Some(x) => x.1 += v,
+                    None => net_change.push((i, v)),
+                };
+                for r in &t.reactants {
+                    add(r.species, -r.coefficient);
+                }
+                for p in &t.products {
+                    add(p.species, p.coefficient);
+                }
+                net_change.retain(|x| x.1 != 0.0);
+                Reaction {
+                    name: t.name.clone(),
+                    reactants: t.reactants.iter().map(|r| (r.species, r.coefficient as u32)).collect(),
+                    net: net_change,
+                    k: t.k,
+                }
+            })
+            .collect();
+        let sources = net.lights.iter().map(|l| l.name.clone()).collect();
+        let bins: Vec<Bin> = net
+            .lights
+            .iter()
+            .enumerate()
+            .flat_map(|(s, l)| l.bins.iter().map(move |b| Bin { wavelength: b.wavelength, flux: b.flux, source: s }))
+            .collect();
+        let background = bins.iter().map(|b| net.conditions.background.at(b.wavelength)).collect();
+        let absorbers: Vec<usize> = (0..net.species.len())
+            .filter(|&i| net.species[i].epsilon.as_ref().is_some_and(|e| e.max() > 0.0))
+            .collect();
+        let mut eps = Vec::with_capacity(absorbers.len() * bins.len());
+        for &a in &absorbers {
+            let e = net.species[a].epsilon.as_ref().expect("absorbers have ε");
+            eps.extend(bins.iter().map(|b| e.at(b.wavelength)));
+        }
+        let collapse = Collapse::new(net);
+        // Which ends each transient can reach (structurally): solve with every quencher at
+        // 1 mol/L and at zero, and keep what is non-zero in either.
+        let probe = |q: f64| {
+            let mut c = vec![0.0; net.species.len()];
+            for &i in &collapse.quenchers {
+                c[i] = q;
+            }
+            collapse.solve(&c, false).x
+        };
+        let (x1, x0) = (probe(1.0), probe(0.0));
+        let mut outcomes = Vec::new();
+        for (pi, p) in net.photo.iter().enumerate() {
+            let Some(slot) = absorbers.iter().position(|&a| a == p.absorber) else {
+                continue; // no ε: never absorbs (a warning was given)
+            };
+            let base: Vec<f64> = bins.iter().map(|b| p.yield_at(b.wavelength)).collect();
+            let a_name = &net.species[p.absorber].name;
+            match &p.outcome {
+                PhotoOutcome::Products(terms) => {
+                    let mut n: Vec<(usize, f64)> = vec![(p.absorber, -1.0)];
+                    for t in terms {
+                        match n.iter_mut().find(|x| x.0 == t.species) {
+                            Some(x) => x.1 += t.coefficient,
+                            None => n.push((t.species, t.coefficient)),
+                        }
+                    }
+                    n.retain(|x| x.1 != 0.0);
+                    outcomes.push(Outcome {
+                        label: format!("{a_name} -> {}", net.side(terms)),
+                        step: pi,
+                        slot,
+                        returns: n.is_empty(),
+                        net: n,
+                        base,
+                        via: None,
+                    });
+                }
+                PhotoOutcome::Transient(t) => {
+                    for (e, end) in collapse.ends.iter().enumerate() {
+                        if x1[(*t, e)] <= 0.0 && x0[(*t, e)] <= 0.0 {
+                            continue;
+                        }
+                        let mut n: Vec<(usize, f64)> = vec![(p.absorber, -1.0)];
+                        for &(s, k) in &end.products {
+                            match n.iter_mut().find(|x| x.0 == s) {
+                                Some(x) => x.1 += k,
+                                None => n.push((s, k)),
+                            }
+                        }
+                        n.retain(|x| x.1 != 0.0);
+                        let terms: Vec<crate::network::Term> =
+                            end.products.iter().map(|&(s, k)| crate::network::Term { species: s, coefficient: k }).collect();
+                        outcomes.push(Outcome {
+                            label: format!(
+                                "{a_name} -> {} via {}",
+                                net.side(&terms),
+                                net.transients[end.from].name
+                            ),
+                            step: pi,
+                            slot,
+                            returns: n.is_empty(),
+                            net: n,
+                            base: base.clone(),
+                            via: Some((*t, e)),
+                        });
+                    }
+                }
+            }
+        }
+        let mut consumed = vec![false; net.species.len()];
+        for t in &net.thermal {
+            for r in &t.reactants {
+                consumed[r.species] = true;
+            }
+        }
+        for o in &outcomes {
+            for &(s, v) in &o.net {
+                if v < 0.0 {
+                    consumed[s] = true;
+                }
+            }
+        }
+        let products = (0..net.species.len()).filter(|&i| net.species[i].product || !consumed[i]).collect();
+        Model {
+            species,
+            initial,
+            temperature: net.conditions.temperature,
+            volume: net.conditions.volume_litres(),
+            path: net.conditions.path_length,
+            reactions,
+            sources,
+            bins,
+            background,
+            absorbers,
+            eps,
+            outcomes,
+            collapse,
+            products,
+        }
+    }
+
+    /// Number of species (the length of a concentration vector).
+    pub fn n_species(&self) -> usize {
+        self.species.len()
+    }
+
+    /// Total photon flux entering the sample from source `s`, einstein/s.
+    pub fn source_flux(&self, s: usize) -> f64 {
+        self.bins.iter().filter(|b| b.source == s).map(|b| b.flux).sum()
+    }
+
+    /// Total photon flux of all sources, einstein/s.
+    pub fn total_flux(&self) -> f64 {
+        self.bins.iter().map(|b| b.flux).sum()
+    }
+
+    /// Index of species `name`.
+    pub fn species_index(&self, name: &str) -> Option<usize> {
+        self.species.iter().position(|s| s == name)
+    }
+}

@@ -16,7 +16,12 @@ use toml::Spanned;
 
 /// Validate a loaded file with overrides into a [`Network`], or every problem found.
 pub fn build(loaded: &Loaded, overrides: &Overrides) -> Result<Network> {
-    let mut b = Builder { loaded, overrides, diags: Vec::new(), at: Places::default() };
+    let mut b = Builder {
+        loaded,
+        overrides,
+        diags: Vec::new(),
+        at: Places::default(),
+    };
     let net = b.network();
     for key in overrides.unused() {
         b.diags.push(
@@ -82,9 +87,15 @@ impl<'a> Builder<'a> {
         if let Some(k) = key
             && let Some(v) = self.overrides.get(k)
         {
-            return Some(Field { value: v.to_string(), origin: Origin::CommandLine });
+            return Some(Field {
+                value: v.to_string(),
+                origin: Origin::CommandLine,
+            });
         }
-        value.map(|t| Field { value: t.get_ref().clone(), origin: span(t) })
+        value.map(|t| Field {
+            value: t.get_ref().clone(),
+            origin: span(t),
+        })
     }
 
     /// Read a quantity; report a located error and return None when it cannot be read.
@@ -102,7 +113,12 @@ impl<'a> Builder<'a> {
     fn positive(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
         let v = self.quantity(field, f, q)?;
         if v <= 0.0 {
-            self.error(field, &f.origin, format!("\"{}\" must be positive", f.value), Some(format!("expected {}", q.accepted())));
+            self.error(
+                field,
+                &f.origin,
+                format!("\"{}\" must be positive", f.value),
+                Some(format!("expected {}", q.accepted())),
+            );
             return None;
         }
         Some(v)
@@ -128,7 +144,10 @@ impl<'a> Builder<'a> {
         let transient_heads = self.transient_heads(doc, &mut names);
         let conditions = conditions?;
         let t = conditions.temperature;
-        let resolver = Names { species: &species, transients: &transient_heads };
+        let resolver = Names {
+            species: &species,
+            transients: &transient_heads,
+        };
         let thermal = self.thermal(doc, &resolver, t);
         let photo = self.photo(doc, &resolver);
         let transients = self.transients(doc, &resolver, &transient_heads, t);
@@ -150,9 +169,17 @@ impl<'a> Builder<'a> {
     }
 
     fn about(&mut self, doc: &schema::NetworkFile) -> About {
-        let stem = self.loaded.path.file_stem().map(|s| s.to_string_lossy().to_string()).unwrap_or_default();
+        let stem = self
+            .loaded
+            .path
+            .file_stem()
+            .map(|s| s.to_string_lossy().to_string())
+            .unwrap_or_default();
         let Some(a) = &doc.about else {
-            return About { name: stem, ..Default::default() };
+            return About {
+                name: stem,
+                ..Default::default()
+            };
         };
         let a = a.get_ref();
         let s = |t: &Option<Text>| t.as_ref().map(|t| t.get_ref().trim().to_string()).unwrap_or_default();
@@ -174,7 +201,10 @@ impl<'a> Builder<'a> {
                     "conditions",
                     &Origin::Span(0..0),
                     "the [conditions] table is missing",
-                    Some("add [conditions] with temperature, volume and path_length, e.g. temperature = \"298.15 K\"".into()),
+                    Some(
+                        "add [conditions] with temperature, volume and path_length, e.g. temperature = \"298.15 K\""
+                            .into(),
+                    ),
                 );
                 (&empty, Origin::Span(0..0))
             }
@@ -207,17 +237,33 @@ impl<'a> Builder<'a> {
         } else {
             Spectrum::Constant { value: 0.0, at: None }
         };
-        Some(Conditions { temperature: temperature?, volume: volume?, path_length: path_length?, irradiated_area, background })
+        Some(Conditions {
+            temperature: temperature?,
+            volume: volume?,
+            path_length: path_length?,
+            irradiated_area,
+            background,
+        })
     }
 
     /// A spectrum-valued field; `q` is the value's quantity (None: dimensionless).
-    fn spectrum(&mut self, field: &str, v: &Spanned<Valued>, q: Option<Quantity>, outside: Outside) -> Option<Spectrum> {
+    fn spectrum(
+        &mut self,
+        field: &str,
+        v: &Spanned<Valued>,
+        q: Option<Quantity>,
+        outside: Outside,
+    ) -> Option<Spectrum> {
         let at = span(v);
         let what = q.map_or("a number".to_string(), |q| q.describe());
         let table_help = match q {
-            Some(_) => "a table: { points = [[300, 1200], [365, 5000]], wavelength_unit = \"nm\", unit = \"L/(mol cm)\" }, \
-                        one value: { at = \"365 nm\", value = \"5000 L/(mol cm)\" }, or a CSV: { file = \"spectra/x.csv\" }",
-            None => "a number, a table: { points = [[300, 0.2], [365, 0.3]], wavelength_unit = \"nm\" }, or a CSV: { file = \"x.csv\" }",
+            Some(_) => {
+                "a table: { points = [[300, 1200], [365, 5000]], wavelength_unit = \"nm\", unit = \"L/(mol cm)\" }, \
+                        one value: { at = \"365 nm\", value = \"5000 L/(mol cm)\" }, or a CSV: { file = \"spectra/x.csv\" }"
+            }
+            None => {
+                "a number, a table: { points = [[300, 0.2], [365, 0.3]], wavelength_unit = \"nm\" }, or a CSV: { file = \"x.csv\" }"
+            }
         };
         match v.get_ref() {
             Valued::Number(x) => match q {
@@ -229,12 +275,22 @@ impl<'a> Builder<'a> {
                     Some(Spectrum::Constant { value: *x, at: None })
                 }
                 Some(q) => {
-                    self.error(field, &at, format!("{x} has no unit and no wavelength"), Some(format!("expected {table_help}; values are {}", q.accepted())));
+                    self.error(
+                        field,
+                        &at,
+                        format!("{x} has no unit and no wavelength"),
+                        Some(format!("expected {table_help}; values are {}", q.accepted())),
+                    );
                     None
                 }
             },
             Valued::Text(s) => {
-                self.error(field, &at, format!("\"{s}\" gives {what} without the wavelength it holds at"), Some(format!("expected {table_help}")));
+                self.error(
+                    field,
+                    &at,
+                    format!("\"{s}\" gives {what} without the wavelength it holds at"),
+                    Some(format!("expected {table_help}")),
+                );
                 None
             }
             Valued::Table(t) => self.spectrum_table(field, &at, t, q, outside, table_help),
@@ -245,7 +301,12 @@ impl<'a> Builder<'a> {
         match units::parse(&format!("1 {unit}"), q) {
             Ok(f) => Some(f),
             Err(e) => {
-                self.error(field, at, format!("the unit \"{unit}\" is not usable: {}", e.problem), Some(format!("expected {}", q.accepted())));
+                self.error(
+                    field,
+                    at,
+                    format!("the unit \"{unit}\" is not usable: {}", e.problem),
+                    Some(format!("expected {}", q.accepted())),
+                );
                 None
             }
         }
@@ -260,24 +321,57 @@ impl<'a> Builder<'a> {
         outside: Outside,
         help: &str,
     ) -> Option<Spectrum> {
-        let forms = [t.points.is_some(), t.at.is_some() || t.value.is_some(), t.file.is_some()];
+        let forms = [
+            t.points.is_some(),
+            t.at.is_some() || t.value.is_some(),
+            t.file.is_some(),
+        ];
         if forms.iter().filter(|x| **x).count() != 1 {
-            self.error(field, at, "give exactly one of points, at/value or file", Some(format!("expected {help}")));
+            self.error(
+                field,
+                at,
+                "give exactly one of points, at/value or file",
+                Some(format!("expected {help}")),
+            );
             return None;
         }
         // One value at one wavelength.
         if t.at.is_some() || t.value.is_some() {
             let (Some(w), Some(val)) = (&t.at, &t.value) else {
-                self.error(field, at, "`at` and `value` go together", Some(format!("expected {help}")));
+                self.error(
+                    field,
+                    at,
+                    "`at` and `value` go together",
+                    Some(format!("expected {help}")),
+                );
                 return None;
             };
-            let wl = self.positive(&format!("{field}.at"), &Field { value: w.clone(), origin: at.clone() }, Quantity::Wavelength)?;
+            let wl = self.positive(
+                &format!("{field}.at"),
+                &Field {
+                    value: w.clone(),
+                    origin: at.clone(),
+                },
+                Quantity::Wavelength,
+            )?;
             let value = match (val, q) {
-                (toml::Value::String(s), Some(q)) => self.quantity(&format!("{field}.value"), &Field { value: s.clone(), origin: at.clone() }, q)?,
+                (toml::Value::String(s), Some(q)) => self.quantity(
+                    &format!("{field}.value"),
+                    &Field {
+                        value: s.clone(),
+                        origin: at.clone(),
+                    },
+                    q,
+                )?,
                 (toml::Value::Float(x), None) => *x,
                 (toml::Value::Integer(x), None) => *x as f64,
                 (other, Some(q)) => {
-                    self.error(&format!("{field}.value"), at, format!("{other} has no unit"), Some(format!("expected {}", q.accepted())));
+                    self.error(
+                        &format!("{field}.value"),
+                        at,
+                        format!("{other} has no unit"),
+                        Some(format!("expected {}", q.accepted())),
+                    );
                     return None;
                 }
                 (other, None) => {
@@ -294,13 +388,23 @@ impl<'a> Builder<'a> {
         // Inline points.
         let (raw, wl_unit, val_unit, where_) = if let Some(points) = &t.points {
             let Some(wu) = &t.wavelength_unit else {
-                self.error(field, at, "`wavelength_unit` is missing for the points", Some("e.g. wavelength_unit = \"nm\"".into()));
+                self.error(
+                    field,
+                    at,
+                    "`wavelength_unit` is missing for the points",
+                    Some("e.g. wavelength_unit = \"nm\"".into()),
+                );
                 return None;
             };
             let mut rows = Vec::new();
             for (i, p) in points.iter().enumerate() {
                 if p.len() != 2 {
-                    self.error(&format!("{field}.points[{i}]"), at, format!("has {} numbers; [wavelength, value] pairs are expected", p.len()), None);
+                    self.error(
+                        &format!("{field}.points[{i}]"),
+                        at,
+                        format!("has {} numbers; [wavelength, value] pairs are expected", p.len()),
+                        None,
+                    );
                     return None;
                 }
                 rows.push((p[0], p[1], format!("{field}.points[{i}]")));
@@ -311,7 +415,12 @@ impl<'a> Builder<'a> {
             let table = match self.loaded.tables.get(&name) {
                 Some(Ok(tab)) => tab.clone(),
                 Some(Err(e)) => {
-                    self.error(&format!("{field}.file"), at, e.clone(), Some("a CSV with a header such as \"wavelength (nm), epsilon (L/(mol cm))\"".into()));
+                    self.error(
+                        &format!("{field}.file"),
+                        at,
+                        e.clone(),
+                        Some("a CSV with a header such as \"wavelength (nm), epsilon (L/(mol cm))\"".into()),
+                    );
                     return None;
                 }
                 None => {
@@ -348,7 +457,12 @@ impl<'a> Builder<'a> {
             }
             // Dimensionless: a label such as "a.u." or "relative" in a CSV header is fine.
             (None, Some(u)) if where_.is_none() && !u.trim().is_empty() && u.trim() != "1" => {
-                self.error(&format!("{field}.unit"), at, format!("\"{u}\": these values are dimensionless"), Some("leave `unit` out".into()));
+                self.error(
+                    &format!("{field}.unit"),
+                    at,
+                    format!("\"{u}\": these values are dimensionless"),
+                    Some("leave `unit` out".into()),
+                );
                 return None;
             }
             (None, _) => 1.0,
@@ -380,7 +494,10 @@ impl<'a> Builder<'a> {
         for (i, l) in doc.light.iter().enumerate() {
             let at = span(l);
             let e = l.get_ref();
-            let name = e.name.as_ref().map_or(format!("light{}", i + 1), |n| n.get_ref().trim().to_string());
+            let name = e
+                .name
+                .as_ref()
+                .map_or(format!("light{}", i + 1), |n| n.get_ref().trim().to_string());
             let field = format!("light[{i}]");
             if name.is_empty() {
                 self.error(&format!("{field}.name"), &at, "is empty", None);
@@ -391,13 +508,23 @@ impl<'a> Builder<'a> {
                     Origin::Span(r) => crate::error::line_col(&self.loaded.text, r.start),
                     _ => (0, 0),
                 };
-                self.error(&format!("{field}.name"), &at, format!("\"{name}\" is used by another light (line {l0})"), Some("give each light its own name".into()));
+                self.error(
+                    &format!("{field}.name"),
+                    &at,
+                    format!("\"{name}\" is used by another light (line {l0})"),
+                    Some("give each light its own name".into()),
+                );
                 continue;
             }
             seen.insert(name.clone(), at.clone());
             let key = |f: &str| format!("light.{name}.{f}");
             let Some(kind) = &e.kind else {
-                self.error(&format!("{field}.kind"), &at, "is missing", Some("one of \"line\", \"band\", \"lamp\", \"sun\"".into()));
+                self.error(
+                    &format!("{field}.kind"),
+                    &at,
+                    "is missing",
+                    Some("one of \"line\", \"band\", \"lamp\", \"sun\"".into()),
+                );
                 continue;
             };
             let kind_word = kind.get_ref().trim().to_string();
@@ -407,7 +534,12 @@ impl<'a> Builder<'a> {
                 "lamp" => &["file", "power", "photon_flux"],
                 "sun" => &["scale"],
                 other => {
-                    self.error(&format!("{field}.kind"), &span(kind), format!("\"{other}\" is not a kind of light"), Some("one of \"line\", \"band\", \"lamp\", \"sun\"".into()));
+                    self.error(
+                        &format!("{field}.kind"),
+                        &span(kind),
+                        format!("\"{other}\" is not a kind of light"),
+                        Some("one of \"line\", \"band\", \"lamp\", \"sun\"".into()),
+                    );
                     continue;
                 }
             };
@@ -423,7 +555,12 @@ impl<'a> Builder<'a> {
             let mut bad = false;
             for (k, p) in present {
                 if p && !allowed.contains(&k) {
-                    self.error(&format!("{field}.{k}"), &at, format!("does not apply to a light of kind \"{kind_word}\""), Some(format!("a {kind_word} takes: {}", allowed.join(", "))));
+                    self.error(
+                        &format!("{field}.{k}"),
+                        &at,
+                        format!("does not apply to a light of kind \"{kind_word}\""),
+                        Some(format!("a {kind_word} takes: {}", allowed.join(", "))),
+                    );
                     bad = true;
                 }
             }
@@ -431,8 +568,12 @@ impl<'a> Builder<'a> {
                 continue;
             }
             let window = {
-                let lo = self.field(e.from.as_ref(), None).and_then(|f| self.positive(&format!("{field}.from"), &f, Quantity::Wavelength));
-                let hi = self.field(e.to.as_ref(), None).and_then(|f| self.positive(&format!("{field}.to"), &f, Quantity::Wavelength));
+                let lo = self
+                    .field(e.from.as_ref(), None)
+                    .and_then(|f| self.positive(&format!("{field}.from"), &f, Quantity::Wavelength));
+                let hi = self
+                    .field(e.to.as_ref(), None)
+                    .and_then(|f| self.positive(&format!("{field}.to"), &f, Quantity::Wavelength));
                 (lo.unwrap_or(0.0), hi.unwrap_or(f64::INFINITY))
             };
             if window.0 >= window.1 {
@@ -445,14 +586,28 @@ impl<'a> Builder<'a> {
                 let p = self.field(e.power.as_ref(), Some(&key("power")));
                 let q = self.field(e.photon_flux.as_ref(), Some(&key("photon_flux")));
                 match (p, q) {
-                    (Some(p), None) => self.positive(&format!("{field}.power"), &p, Quantity::Power).map(Intensity::Power),
-                    (None, Some(q)) => self.positive(&format!("{field}.photon_flux"), &q, Quantity::PhotonFlux).map(Intensity::PhotonFlux),
+                    (Some(p), None) => self
+                        .positive(&format!("{field}.power"), &p, Quantity::Power)
+                        .map(Intensity::Power),
+                    (None, Some(q)) => self
+                        .positive(&format!("{field}.photon_flux"), &q, Quantity::PhotonFlux)
+                        .map(Intensity::PhotonFlux),
                     (Some(_), Some(_)) => {
-                        self.error(&field, &at, "has both power and photon_flux", Some("give one of them".into()));
+                        self.error(
+                            &field,
+                            &at,
+                            "has both power and photon_flux",
+                            Some("give one of them".into()),
+                        );
                         None
                     }
                     (None, None) => {
-                        self.error(&field, &at, "needs power or photon_flux", Some("e.g. power = \"50 mW\" or photon_flux = \"2 µeinstein/s\"".into()));
+                        self.error(
+                            &field,
+                            &at,
+                            "needs power or photon_flux",
+                            Some("e.g. power = \"50 mW\" or photon_flux = \"2 µeinstein/s\"".into()),
+                        );
                         None
                     }
                 }
@@ -460,7 +615,8 @@ impl<'a> Builder<'a> {
             let lk = match kind_word.as_str() {
                 "line" => {
                     let f = self.field(e.wavelength.as_ref(), Some(&key("wavelength")));
-                    self.required(&format!("{field}.wavelength"), f, &at, Quantity::Wavelength).map(|w| LightKind::Line { wavelength: w })
+                    self.required(&format!("{field}.wavelength"), f, &at, Quantity::Wavelength)
+                        .map(|w| LightKind::Line { wavelength: w })
                 }
                 "band" => {
                     let c = self.field(e.centre.as_ref(), Some(&key("centre")));
@@ -470,7 +626,12 @@ impl<'a> Builder<'a> {
                     match (c, w) {
                         (Some(centre), Some(fwhm)) if fwhm < centre => Some(LightKind::Band { centre, fwhm }),
                         (Some(_), Some(_)) => {
-                            self.error(&format!("{field}.fwhm"), &at, "is wider than the centre wavelength", None);
+                            self.error(
+                                &format!("{field}.fwhm"),
+                                &at,
+                                "is wider than the centre wavelength",
+                                None,
+                            );
                             None
                         }
                         _ => None,
@@ -478,16 +639,35 @@ impl<'a> Builder<'a> {
                 }
                 "lamp" => {
                     let Some(f) = &e.file else {
-                        self.error(&format!("{field}.file"), &at, "is missing", Some("a CSV with header \"wavelength (nm), relative power\"".into()));
+                        self.error(
+                            &format!("{field}.file"),
+                            &at,
+                            "is missing",
+                            Some("a CSV with header \"wavelength (nm), relative power\"".into()),
+                        );
                         continue;
                     };
-                    let v = Spanned::new(f.span(), Valued::Table(SpectrumTable { file: Some(f.get_ref().clone()), ..Default::default() }));
+                    let v = Spanned::new(
+                        f.span(),
+                        Valued::Table(SpectrumTable {
+                            file: Some(f.get_ref().clone()),
+                            ..Default::default()
+                        }),
+                    );
                     match self.spectrum(&format!("{field}"), &v, None, Outside::Zero) {
                         Some(Spectrum::Table { points, .. }) if points.iter().any(|p| p.1 > 0.0) => {
-                            Some(LightKind::Lamp { file: f.get_ref().clone(), relative_power: points })
+                            Some(LightKind::Lamp {
+                                file: f.get_ref().clone(),
+                                relative_power: points,
+                            })
                         }
                         Some(_) => {
-                            self.error(&format!("{field}.file"), &span(f), "the lamp spectrum is zero everywhere", None);
+                            self.error(
+                                &format!("{field}.file"),
+                                &span(f),
+                                "the lamp spectrum is zero everywhere",
+                                None,
+                            );
                             None
                         }
                         None => None,
@@ -498,7 +678,12 @@ impl<'a> Builder<'a> {
                         Some(s) => match s.parse::<f64>() {
                             Ok(x) => Some((x, Origin::CommandLine)),
                             Err(_) => {
-                                self.error(&format!("{field}.scale"), &Origin::CommandLine, format!("\"{s}\" is not a number"), None);
+                                self.error(
+                                    &format!("{field}.scale"),
+                                    &Origin::CommandLine,
+                                    format!("\"{s}\" is not a number"),
+                                    None,
+                                );
                                 continue;
                             }
                         },
@@ -506,7 +691,12 @@ impl<'a> Builder<'a> {
                     };
                     let (scale, sat) = scale.unwrap_or((1.0, at.clone()));
                     if !scale.is_finite() || scale <= 0.0 {
-                        self.error(&format!("{field}.scale"), &sat, format!("{scale} must be a positive factor"), Some("e.g. scale = 0.5 for half the reference sunlight".into()));
+                        self.error(
+                            &format!("{field}.scale"),
+                            &sat,
+                            format!("{scale} must be a positive factor"),
+                            Some("e.g. scale = 0.5 for half the reference sunlight".into()),
+                        );
                         continue;
                     }
                     match cond.and_then(|c| c.irradiated_area) {
@@ -528,7 +718,11 @@ impl<'a> Builder<'a> {
             let (Some(lk), true) = (lk, kind_word == "sun" || intensity.is_some()) else {
                 continue;
             };
-            let window = if kind_word == "sun" && window == (0.0, f64::INFINITY) { (280e-9, 4000e-9) } else { window };
+            let window = if kind_word == "sun" && window == (0.0, f64::INFINITY) {
+                (280e-9, 4000e-9)
+            } else {
+                window
+            };
             let src = LightSource::new(name.clone(), lk, intensity, window);
             if src.bins.is_empty() {
                 self.error(&field, &at, "carries no photons inside its from/to window", None);
@@ -552,7 +746,12 @@ impl<'a> Builder<'a> {
             let initial = match self.field(e.initial.as_ref(), Some(&format!("species.{name}.initial"))) {
                 Some(f) => match self.quantity(&format!("{field}.initial"), &f, Quantity::Concentration) {
                     Some(v) if v < 0.0 => {
-                        self.error(&format!("{field}.initial"), &f.origin, format!("\"{}\" is negative", f.value), None);
+                        self.error(
+                            &format!("{field}.initial"),
+                            &f.origin,
+                            format!("\"{}\" is negative", f.value),
+                            None,
+                        );
                         0.0
                     }
                     Some(v) => v,
@@ -564,14 +763,24 @@ impl<'a> Builder<'a> {
                 Some(f) => match formula::parse(f.get_ref()) {
                     Ok(c) => (Some(f.get_ref().clone()), Some(c)),
                     Err(m) => {
-                        self.error(&format!("{field}.formula"), &span(f), m, Some("e.g. \"C6H12O6\", \"Fe(C2O4)3^3-\", \"H+\"".into()));
+                        self.error(
+                            &format!("{field}.formula"),
+                            &span(f),
+                            m,
+                            Some("e.g. \"C6H12O6\", \"Fe(C2O4)3^3-\", \"H+\"".into()),
+                        );
                         (None, None)
                     }
                 },
                 None => (None, None),
             };
             let epsilon = match &e.epsilon {
-                Some(v) => self.spectrum(&format!("{field}.epsilon"), v, Some(Quantity::MolarAbsorption), Outside::Zero),
+                Some(v) => self.spectrum(
+                    &format!("{field}.epsilon"),
+                    v,
+                    Some(Quantity::MolarAbsorption),
+                    Outside::Zero,
+                ),
                 None => None,
             };
             self.at.species.push(at.clone());
@@ -587,7 +796,13 @@ impl<'a> Builder<'a> {
         out
     }
 
-    fn name(&mut self, field: &str, n: Option<&Text>, at: &Origin, names: &mut BTreeMap<String, Origin>) -> Option<String> {
+    fn name(
+        &mut self,
+        field: &str,
+        n: Option<&Text>,
+        at: &Origin,
+        names: &mut BTreeMap<String, Origin>,
+    ) -> Option<String> {
         let Some(n) = n else {
             self.error(&format!("{field}.name"), at, "is missing", None);
             return None;
@@ -603,7 +818,10 @@ impl<'a> Builder<'a> {
                 &format!("{field}.name"),
                 &span(n),
                 format!("\"{name}\" cannot be used as a name"),
-                Some("a name has no spaces, commas or arrows and is not a number, e.g. \"Z-azo\", \"S1\", \"Fe3+\"".into()),
+                Some(
+                    "a name has no spaces, commas or arrows and is not a number, e.g. \"Z-azo\", \"S1\", \"Fe3+\""
+                        .into(),
+                ),
             );
             return None;
         }
@@ -612,14 +830,23 @@ impl<'a> Builder<'a> {
                 Origin::Span(r) => crate::error::line_col(&self.loaded.text, r.start).0,
                 _ => 0,
             };
-            self.error(&format!("{field}.name"), &span(n), format!("\"{name}\" is already defined (line {line})"), Some("species and transients share one set of names".into()));
+            self.error(
+                &format!("{field}.name"),
+                &span(n),
+                format!("\"{name}\" is already defined (line {line})"),
+                Some("species and transients share one set of names".into()),
+            );
             return None;
         }
         names.insert(name.clone(), span(n));
         Some(name)
     }
 
-    fn transient_heads(&mut self, doc: &schema::NetworkFile, names: &mut BTreeMap<String, Origin>) -> Vec<(String, TransientKind)> {
+    fn transient_heads(
+        &mut self,
+        doc: &schema::NetworkFile,
+        names: &mut BTreeMap<String, Origin>,
+    ) -> Vec<(String, TransientKind)> {
         let mut out = Vec::new();
         for (i, t) in doc.transient.iter().enumerate() {
             let at = span(t);
@@ -637,7 +864,12 @@ impl<'a> Builder<'a> {
                 Some(("hot", _)) => TransientKind::Hot,
                 Some(("other", _)) => TransientKind::Other,
                 Some((k, o)) => {
-                    self.error(&format!("transient \"{name}\".kind"), &o, format!("\"{k}\" is not a kind of transient"), Some("one of \"excited\", \"intersection\", \"hot\", \"other\"".into()));
+                    self.error(
+                        &format!("transient \"{name}\".kind"),
+                        &o,
+                        format!("\"{k}\" is not a kind of transient"),
+                        Some("one of \"excited\", \"intersection\", \"hot\", \"other\"".into()),
+                    );
                     TransientKind::Other
                 }
             };
@@ -652,10 +884,19 @@ impl<'a> Builder<'a> {
             return Some(i);
         }
         if names.transients.iter().any(|t| t.0 == name) {
-            self.error(field, at, format!("\"{name}\" is a transient, which is not followed as a concentration"), Some("reach transients with a [[photo]] step's `excites` or a channel's `to`".into()));
+            self.error(
+                field,
+                at,
+                format!("\"{name}\" is a transient, which is not followed as a concentration"),
+                Some("reach transients with a [[photo]] step's `excites` or a channel's `to`".into()),
+            );
             return None;
         }
-        let all = names.species.iter().map(|s| s.name.as_str()).chain(names.transients.iter().map(|t| t.0.as_str()));
+        let all = names
+            .species
+            .iter()
+            .map(|s| s.name.as_str())
+            .chain(names.transients.iter().map(|t| t.0.as_str()));
         let help = match super::suggest::closest(name, all) {
             Some(c) => format!("did you mean \"{c}\"?"),
             None => "declare it in a [[species]] table".into(),
@@ -669,7 +910,10 @@ impl<'a> Builder<'a> {
         let mut ok = true;
         for t in raw {
             match self.resolve_species(field, at, &t.name, names) {
-                Some(species) => out.push(Term { species, coefficient: t.coefficient }),
+                Some(species) => out.push(Term {
+                    species,
+                    coefficient: t.coefficient,
+                }),
                 None => ok = false,
             }
         }
@@ -679,9 +923,19 @@ impl<'a> Builder<'a> {
     fn rate_law(&mut self, field: &str, r: &Spanned<schema::Rate>, order: u32) -> Option<RateLaw> {
         let at = span(r);
         let e = r.get_ref();
-        let f = |t: &Option<Text>| t.as_ref().map(|t| Field { value: t.get_ref().clone(), origin: span(t) });
+        let f = |t: &Option<Text>| {
+            t.as_ref().map(|t| Field {
+                value: t.get_ref().clone(),
+                origin: span(t),
+            })
+        };
         let ways = "one of: k = \"0.04 /s\"; prefactor + activation (Arrhenius); barrier = \"20 kcal/mol\" (Eyring ΔG‡); enthalpy + entropy (Eyring ΔH‡, ΔS‡)";
-        let given = [e.k.is_some(), e.prefactor.is_some() || e.activation.is_some(), e.barrier.is_some(), e.enthalpy.is_some() || e.entropy.is_some()];
+        let given = [
+            e.k.is_some(),
+            e.prefactor.is_some() || e.activation.is_some(),
+            e.barrier.is_some(),
+            e.enthalpy.is_some() || e.entropy.is_some(),
+        ];
         if given.iter().filter(|g| **g).count() != 1 {
             self.error(field, &at, "give the rate exactly one way", Some(ways.into()));
             return None;
@@ -690,11 +944,21 @@ impl<'a> Builder<'a> {
             Some(k) => {
                 let v = *k.get_ref();
                 if !(v > 0.0 && v <= 1.0) {
-                    self.error(&format!("{field}.transmission"), &span(k), format!("{v} must lie in (0, 1]"), None);
+                    self.error(
+                        &format!("{field}.transmission"),
+                        &span(k),
+                        format!("{v} must lie in (0, 1]"),
+                        None,
+                    );
                     return None;
                 }
                 if e.k.is_some() || e.prefactor.is_some() {
-                    self.error(&format!("{field}.transmission"), &span(k), "applies only to Eyring rates (barrier, or enthalpy + entropy)", None);
+                    self.error(
+                        &format!("{field}.transmission"),
+                        &span(k),
+                        "applies only to Eyring rates (barrier, or enthalpy + entropy)",
+                        None,
+                    );
                     return None;
                 }
                 v
@@ -702,31 +966,58 @@ impl<'a> Builder<'a> {
             None => 1.0,
         };
         if let Some(k) = f(&e.k) {
-            return self.positive(&format!("{field}.k"), &k, Quantity::RateConstant(order)).map(RateLaw::Constant);
+            return self
+                .positive(&format!("{field}.k"), &k, Quantity::RateConstant(order))
+                .map(RateLaw::Constant);
         }
         if given[1] {
             let (Some(a), Some(ea)) = (f(&e.prefactor), f(&e.activation)) else {
-                self.error(field, &at, "Arrhenius needs both prefactor and activation", Some(ways.into()));
+                self.error(
+                    field,
+                    &at,
+                    "Arrhenius needs both prefactor and activation",
+                    Some(ways.into()),
+                );
                 return None;
             };
             let a = self.positive(&format!("{field}.prefactor"), &a, Quantity::RateConstant(order));
             let ea = self.quantity(&format!("{field}.activation"), &ea, Quantity::MolarEnergy);
-            return Some(RateLaw::Arrhenius { prefactor: a?, activation: ea? });
+            return Some(RateLaw::Arrhenius {
+                prefactor: a?,
+                activation: ea?,
+            });
         }
         if let Some(g) = f(&e.barrier) {
             let v = self.quantity(&format!("{field}.barrier"), &g, Quantity::MolarEnergy)?;
             if v < 0.0 {
-                self.warn(&format!("{field}.barrier"), &g.origin, format!("\"{}\" is a negative barrier", g.value), None);
+                self.warn(
+                    &format!("{field}.barrier"),
+                    &g.origin,
+                    format!("\"{}\" is a negative barrier", g.value),
+                    None,
+                );
             }
-            return Some(RateLaw::EyringFree { barrier: v, transmission });
+            return Some(RateLaw::EyringFree {
+                barrier: v,
+                transmission,
+            });
         }
         let (Some(h), Some(s)) = (f(&e.enthalpy), f(&e.entropy)) else {
-            self.error(field, &at, "Eyring from ΔH‡ needs both enthalpy and entropy", Some(ways.into()));
+            self.error(
+                field,
+                &at,
+                "Eyring from ΔH‡ needs both enthalpy and entropy",
+                Some(ways.into()),
+            );
             return None;
         };
         let h = self.quantity(&format!("{field}.enthalpy"), &h, Quantity::MolarEnergy);
         let s = self.quantity(&format!("{field}.entropy"), &s, Quantity::MolarEntropy);
-        Some(RateLaw::EyringEnthalpy { enthalpy: h?, entropy: s?, transmission })
+        Some(RateLaw::EyringEnthalpy {
+            enthalpy: h?,
+            entropy: s?,
+            transmission,
+        })
     }
 
     fn thermal(&mut self, doc: &schema::NetworkFile, names: &Names, temperature: f64) -> Vec<ThermalStep> {
@@ -736,14 +1027,24 @@ impl<'a> Builder<'a> {
             let e = s.get_ref();
             let field = format!("thermal[{i}]");
             let Some(eq) = &e.equation else {
-                self.error(&format!("{field}.equation"), &at, "is missing", Some("e.g. equation = \"A + B -> C\"".into()));
+                self.error(
+                    &format!("{field}.equation"),
+                    &at,
+                    "is missing",
+                    Some("e.g. equation = \"A + B -> C\"".into()),
+                );
                 continue;
             };
             let eq_at = span(eq);
             let raw = match equation::parse(eq.get_ref()) {
                 Ok(r) => r,
                 Err(m) => {
-                    self.error(&format!("{field}.equation"), &eq_at, m, Some("e.g. \"2 M -> D\", \"A + B <=> C\"".into()));
+                    self.error(
+                        &format!("{field}.equation"),
+                        &eq_at,
+                        m,
+                        Some("e.g. \"2 M -> D\", \"A + B <=> C\"".into()),
+                    );
                     continue;
                 }
             };
@@ -753,35 +1054,68 @@ impl<'a> Builder<'a> {
             ) else {
                 continue;
             };
-            let name = e.name.as_ref().map_or(eq.get_ref().trim().to_string(), |n| n.get_ref().clone());
+            let name = e
+                .name
+                .as_ref()
+                .map_or(eq.get_ref().trim().to_string(), |n| n.get_ref().clone());
             let order_of = |t: &[Term]| t.iter().map(|x| x.coefficient).sum::<f64>();
             let whole = |o: f64| (o.fract() == 0.0 && (1.0..=3.0).contains(&o)).then_some(o as u32);
             let Some(order) = whole(order_of(&left)) else {
-                self.error(&format!("{field}.equation"), &eq_at, format!("molecularity {} is not 1, 2 or 3 (mass action needs whole-number elementary steps)", order_of(&left)), None);
+                self.error(
+                    &format!("{field}.equation"),
+                    &eq_at,
+                    format!(
+                        "molecularity {} is not 1, 2 or 3 (mass action needs whole-number elementary steps)",
+                        order_of(&left)
+                    ),
+                    None,
+                );
                 continue;
             };
             let reverse_order = whole(order_of(&right));
             let Some(rate) = &e.rate else {
-                self.error(&format!("{field}.rate"), &at, "is missing", Some(format!("e.g. rate = {{ k = \"{}\" }}", example_k(order))));
+                self.error(
+                    &format!("{field}.rate"),
+                    &at,
+                    "is missing",
+                    Some(format!("e.g. rate = {{ k = \"{}\" }}", example_k(order))),
+                );
                 continue;
             };
-            let Some(law) = self.rate_law(&format!("{field}.rate"), rate, order) else { continue };
+            let Some(law) = self.rate_law(&format!("{field}.rate"), rate, order) else {
+                continue;
+            };
             let k = law.rate_constant(temperature, order);
             let forward = out.len();
             let reverse_law = match (&e.reverse, raw.reversible) {
                 (Some(r), true) => match reverse_order {
                     Some(o2) => self.rate_law(&format!("{field}.reverse"), r, o2).map(|l| (l, o2)),
                     None => {
-                        self.error(&format!("{field}.equation"), &eq_at, "the reverse of a reversible step needs 1, 2 or 3 whole product molecules", None);
+                        self.error(
+                            &format!("{field}.equation"),
+                            &eq_at,
+                            "the reverse of a reversible step needs 1, 2 or 3 whole product molecules",
+                            None,
+                        );
                         None
                     }
                 },
                 (None, true) => {
-                    self.error(&format!("{field}.reverse"), &at, "is missing for a reversible (<=>) equation", Some("e.g. reverse = { k = \"1e-3 /s\" }, or write -> for one direction".into()));
+                    self.error(
+                        &format!("{field}.reverse"),
+                        &at,
+                        "is missing for a reversible (<=>) equation",
+                        Some("e.g. reverse = { k = \"1e-3 /s\" }, or write -> for one direction".into()),
+                    );
                     None
                 }
                 (Some(r), false) => {
-                    self.error(&format!("{field}.reverse"), &span(r), "is given but the equation is one-way (->)", Some("write <=> for a reversible step".into()));
+                    self.error(
+                        &format!("{field}.reverse"),
+                        &span(r),
+                        "is given but the equation is one-way (->)",
+                        Some("write <=> for a reversible step".into()),
+                    );
                     None
                 }
                 (None, false) => None,
@@ -789,12 +1123,28 @@ impl<'a> Builder<'a> {
             if raw.reversible && reverse_law.is_none() {
                 continue;
             }
-            out.push(ThermalStep { name: name.clone(), reactants: left.clone(), products: right.clone(), rate: law, order, k, reverse_of: None });
+            out.push(ThermalStep {
+                name: name.clone(),
+                reactants: left.clone(),
+                products: right.clone(),
+                rate: law,
+                order,
+                k,
+                reverse_of: None,
+            });
             self.at.thermal.push(at.clone());
             if let Some((law, o2)) = reverse_law {
                 self.at.thermal.push(at.clone());
                 let k = law.rate_constant(temperature, o2);
-                out.push(ThermalStep { name: format!("{name} (reverse)"), reactants: right, products: left, rate: law, order: o2, k, reverse_of: Some(forward) });
+                out.push(ThermalStep {
+                    name: format!("{name} (reverse)"),
+                    reactants: right,
+                    products: left,
+                    rate: law,
+                    order: o2,
+                    k,
+                    reverse_of: Some(forward),
+                });
             }
         }
         out
@@ -804,11 +1154,30 @@ impl<'a> Builder<'a> {
         let at = span(r);
         let v = r.get_ref();
         if v.len() != 2 {
-            self.error(field, &at, "needs two wavelengths", Some("e.g. range = [\"300 nm\", \"400 nm\"]".into()));
+            self.error(
+                field,
+                &at,
+                "needs two wavelengths",
+                Some("e.g. range = [\"300 nm\", \"400 nm\"]".into()),
+            );
             return None;
         }
-        let lo = self.positive(field, &Field { value: v[0].clone(), origin: at.clone() }, Quantity::Wavelength)?;
-        let hi = self.positive(field, &Field { value: v[1].clone(), origin: at.clone() }, Quantity::Wavelength)?;
+        let lo = self.positive(
+            field,
+            &Field {
+                value: v[0].clone(),
+                origin: at.clone(),
+            },
+            Quantity::Wavelength,
+        )?;
+        let hi = self.positive(
+            field,
+            &Field {
+                value: v[1].clone(),
+                origin: at.clone(),
+            },
+            Quantity::Wavelength,
+        )?;
         if lo >= hi {
             self.error(field, &at, "the first wavelength must be the shorter", None);
             return None;
@@ -833,7 +1202,12 @@ impl<'a> Builder<'a> {
             match (&e.equation, &e.absorber, &e.excites) {
                 (Some(eq), None, None) => {
                     if let Some(x) = &e.efficiency {
-                        self.error(&format!("{field}.efficiency"), &span(x), "belongs to the long form (absorber + excites)", Some("the short form takes quantum_yield".into()));
+                        self.error(
+                            &format!("{field}.efficiency"),
+                            &span(x),
+                            "belongs to the long form (absorber + excites)",
+                            Some("the short form takes quantum_yield".into()),
+                        );
                         continue;
                     }
                     let eq_at = span(eq);
@@ -845,7 +1219,12 @@ impl<'a> Builder<'a> {
                         }
                     };
                     if raw.reversible {
-                        self.error(&format!("{field}.equation"), &eq_at, "a photochemical step runs one way", Some("write two [[photo]] steps, A -> B and B -> A".into()));
+                        self.error(
+                            &format!("{field}.equation"),
+                            &eq_at,
+                            "a photochemical step runs one way",
+                            Some("write two [[photo]] steps, A -> B and B -> A".into()),
+                        );
                         continue;
                     }
                     if raw.left.len() != 1 || raw.left[0].coefficient != 1.0 {
@@ -864,45 +1243,85 @@ impl<'a> Builder<'a> {
                         continue;
                     };
                     let Some(qy) = &e.quantum_yield else {
-                        self.error(&format!("{field}.quantum_yield"), &at, "is missing", Some("a number in [0, 1], or a table over wavelength".into()));
+                        self.error(
+                            &format!("{field}.quantum_yield"),
+                            &at,
+                            "is missing",
+                            Some("a number in [0, 1], or a table over wavelength".into()),
+                        );
                         continue;
                     };
-                    let Some(qy) = self.spectrum(&format!("{field}.quantum_yield"), qy, None, Outside::Nearest) else { continue };
+                    let Some(qy) = self.spectrum(&format!("{field}.quantum_yield"), qy, None, Outside::Nearest) else {
+                        continue;
+                    };
                     if qy.max() > 1.0 + 1e-12 {
-                        self.error(&format!("{field}.quantum_yield"), &span(e.quantum_yield.as_ref().unwrap()), format!("{} is above 1", qy.max()), Some("a quantum yield lies in [0, 1]; a chain reaction is written as thermal steps".into()));
+                        self.error(
+                            &format!("{field}.quantum_yield"),
+                            &span(e.quantum_yield.as_ref().unwrap()),
+                            format!("{} is above 1", qy.max()),
+                            Some("a quantum yield lies in [0, 1]; a chain reaction is written as thermal steps".into()),
+                        );
                         continue;
                     }
-                    let name = e.name.as_ref().map_or(format!("{} (hν)", eq.get_ref().trim()), |n| n.get_ref().clone());
+                    let name = e
+                        .name
+                        .as_ref()
+                        .map_or(format!("{} (hν)", eq.get_ref().trim()), |n| n.get_ref().clone());
                     self.at.photo.push(at.clone());
-                    out.push(PhotoStep { name, absorber: left[0].species, outcome: PhotoOutcome::Products(right), quantum_yield: qy, window });
+                    out.push(PhotoStep {
+                        name,
+                        absorber: left[0].species,
+                        outcome: PhotoOutcome::Products(right),
+                        quantum_yield: qy,
+                        window,
+                    });
                 }
                 (None, Some(a), Some(x)) => {
                     if let Some(q) = &e.quantum_yield {
                         self.error(&format!("{field}.quantum_yield"), &span(q), "belongs to the short form (equation)", Some("in the long form, set the transient's channels, and `efficiency` for the share reaching it".into()));
                         continue;
                     }
-                    let Some(absorber) = self.resolve_species(&format!("{field}.absorber"), &span(a), a.get_ref().trim(), names) else { continue };
+                    let Some(absorber) =
+                        self.resolve_species(&format!("{field}.absorber"), &span(a), a.get_ref().trim(), names)
+                    else {
+                        continue;
+                    };
                     let xn = x.get_ref().trim();
                     let Some(t) = names.transients.iter().position(|t| t.0 == xn) else {
                         let help = match super::suggest::closest(xn, names.transients.iter().map(|t| t.0.as_str())) {
                             Some(c) => format!("did you mean \"{c}\"?"),
                             None => "declare it in a [[transient]] table".into(),
                         };
-                        self.error(&format!("{field}.excites"), &span(x), format!("unknown transient \"{xn}\""), Some(help));
+                        self.error(
+                            &format!("{field}.excites"),
+                            &span(x),
+                            format!("unknown transient \"{xn}\""),
+                            Some(help),
+                        );
                         continue;
                     };
                     let eff = match &e.efficiency {
                         Some(v) => {
                             let x = *v.get_ref();
                             if !(0.0..=1.0).contains(&x) || x == 0.0 {
-                                self.error(&format!("{field}.efficiency"), &span(v), format!("{x} must lie in (0, 1]"), None);
+                                self.error(
+                                    &format!("{field}.efficiency"),
+                                    &span(v),
+                                    format!("{x} must lie in (0, 1]"),
+                                    None,
+                                );
                                 continue;
                             }
                             x
                         }
                         None => 1.0,
                     };
-                    let name = e.name.as_ref().map_or(format!("{} + hν -> {}", names.species[absorber].name, xn), |n| n.get_ref().clone());
+                    let name = e
+                        .name
+                        .as_ref()
+                        .map_or(format!("{} + hν -> {}", names.species[absorber].name, xn), |n| {
+                            n.get_ref().clone()
+                        });
                     self.at.photo.push(at.clone());
                     out.push(PhotoStep {
                         name,
@@ -912,23 +1331,48 @@ impl<'a> Builder<'a> {
                         window,
                     });
                 }
-                (None, Some(_), None) => self.error(&format!("{field}.excites"), &at, "is missing: the long form names the transient reached", Some(forms.into())),
-                (None, None, Some(_)) => self.error(&format!("{field}.absorber"), &at, "is missing: the long form names the absorbing species", Some(forms.into())),
-                (None, None, None) => self.error(&field, &at, "says neither what absorbs nor what happens", Some(forms.into())),
+                (None, Some(_), None) => self.error(
+                    &format!("{field}.excites"),
+                    &at,
+                    "is missing: the long form names the transient reached",
+                    Some(forms.into()),
+                ),
+                (None, None, Some(_)) => self.error(
+                    &format!("{field}.absorber"),
+                    &at,
+                    "is missing: the long form names the absorbing species",
+                    Some(forms.into()),
+                ),
+                (None, None, None) => self.error(
+                    &field,
+                    &at,
+                    "says neither what absorbs nor what happens",
+                    Some(forms.into()),
+                ),
                 (Some(_), _, _) => self.error(&field, &at, "mixes the short and the long form", Some(forms.into())),
             }
         }
         out
     }
 
-    fn transients(&mut self, doc: &schema::NetworkFile, names: &Names, heads: &[(String, TransientKind)], temperature: f64) -> Vec<Transient> {
+    fn transients(
+        &mut self,
+        doc: &schema::NetworkFile,
+        names: &Names,
+        heads: &[(String, TransientKind)],
+        temperature: f64,
+    ) -> Vec<Transient> {
         let mut out = Vec::new();
         for (i, t) in doc.transient.iter().enumerate() {
             let (name, kind) = heads[i].clone();
             let at = span(t);
             self.at.transients.push(at.clone());
             if name.is_empty() {
-                out.push(Transient { name, kind, channels: Vec::new() });
+                out.push(Transient {
+                    name,
+                    kind,
+                    channels: Vec::new(),
+                });
                 continue;
             }
             let field = format!("transient \"{name}\"");
@@ -938,7 +1382,12 @@ impl<'a> Builder<'a> {
                 let cf = format!("{field}.channels[{j}]");
                 let e = c.get_ref();
                 let Some(to) = &e.to else {
-                    self.error(&format!("{cf}.to"), &cat, "is missing", Some("a transient name, or products such as \"B\" or \"B + C\"".into()));
+                    self.error(
+                        &format!("{cf}.to"),
+                        &cat,
+                        "is missing",
+                        Some("a transient name, or products such as \"B\" or \"B + C\"".into()),
+                    );
                     continue;
                 };
                 let to_s = to.get_ref().trim();
@@ -953,10 +1402,17 @@ impl<'a> Builder<'a> {
                         }
                     };
                     if raw.is_empty() {
-                        self.error(&format!("{cf}.to"), &span(to), "leads nowhere", Some("name a species or a transient".into()));
+                        self.error(
+                            &format!("{cf}.to"),
+                            &span(to),
+                            "leads nowhere",
+                            Some("name a species or a transient".into()),
+                        );
                         continue;
                     }
-                    let Some(terms) = self.terms(&format!("{cf}.to"), &span(to), &raw, names) else { continue };
+                    let Some(terms) = self.terms(&format!("{cf}.to"), &span(to), &raw, names) else {
+                        continue;
+                    };
                     Target::Species(terms)
                 };
                 let branching = match (&e.fraction, &e.rate, &e.quencher) {
@@ -969,29 +1425,52 @@ impl<'a> Builder<'a> {
                                 _ => unreachable!(),
                             };
                             if !(0.0..=1.0).contains(&x) {
-                                self.error(&format!("{cf}.fraction"), &span(f), format!("{x} is outside [0, 1]"), Some("a fraction lies in [0, 1], or \"rest\"".into()));
+                                self.error(
+                                    &format!("{cf}.fraction"),
+                                    &span(f),
+                                    format!("{x} is outside [0, 1]"),
+                                    Some("a fraction lies in [0, 1], or \"rest\"".into()),
+                                );
                                 continue;
                             }
                             Branching::Fraction(x)
                         }
                         other => {
-                            self.error(&format!("{cf}.fraction"), &span(f), format!("{other} is not a fraction"), Some("a number in [0, 1], or \"rest\"".into()));
+                            self.error(
+                                &format!("{cf}.fraction"),
+                                &span(f),
+                                format!("{other} is not a fraction"),
+                                Some("a number in [0, 1], or \"rest\"".into()),
+                            );
                             continue;
                         }
                     },
                     (None, Some(r), None) => {
-                        let Some(law) = self.rate_law(&format!("{cf}.rate"), r, 1) else { continue };
+                        let Some(law) = self.rate_law(&format!("{cf}.rate"), r, 1) else {
+                            continue;
+                        };
                         let k = law.rate_constant(temperature, 1);
                         Branching::Rate { law, k }
                     }
                     (None, Some(r), Some(q)) => {
-                        let Some(partner) = self.resolve_species(&format!("{cf}.quencher"), &span(q), q.get_ref().trim(), names) else { continue };
-                        let Some(law) = self.rate_law(&format!("{cf}.rate"), r, 2) else { continue };
+                        let Some(partner) =
+                            self.resolve_species(&format!("{cf}.quencher"), &span(q), q.get_ref().trim(), names)
+                        else {
+                            continue;
+                        };
+                        let Some(law) = self.rate_law(&format!("{cf}.rate"), r, 2) else {
+                            continue;
+                        };
                         let k2 = law.rate_constant(temperature, 2);
                         Branching::Quenching { partner, law, k2 }
                     }
                     (None, None, Some(_)) => {
-                        self.error(&format!("{cf}.rate"), &cat, "a quenching channel needs its bimolecular rate constant", Some("e.g. rate = { k = \"1e10 /(M s)\" }".into()));
+                        self.error(
+                            &format!("{cf}.rate"),
+                            &cat,
+                            "a quenching channel needs its bimolecular rate constant",
+                            Some("e.g. rate = { k = \"1e10 /(M s)\" }".into()),
+                        );
                         continue;
                     }
                     (None, None, None) => {
@@ -999,24 +1478,48 @@ impl<'a> Builder<'a> {
                         continue;
                     }
                     (Some(_), Some(_), _) | (Some(_), None, Some(_)) => {
-                        self.error(&cf, &cat, "has both a fraction and a rate", Some("give one: a channel's share is a fixed fraction or follows from its rate".into()));
+                        self.error(
+                            &cf,
+                            &cat,
+                            "has both a fraction and a rate",
+                            Some("give one: a channel's share is a fixed fraction or follows from its rate".into()),
+                        );
                         continue;
                     }
                 };
-                channels.push((Channel { target, branching, returns: false }, cat));
+                channels.push((
+                    Channel {
+                        target,
+                        branching,
+                        returns: false,
+                    },
+                    cat,
+                ));
             }
             self.check_channels(&field, &at, &channels);
-            out.push(Transient { name, kind, channels: channels.into_iter().map(|c| c.0).collect() });
+            out.push(Transient {
+                name,
+                kind,
+                channels: channels.into_iter().map(|c| c.0).collect(),
+            });
         }
         out
     }
 
     fn check_channels(&mut self, field: &str, at: &Origin, channels: &[(Channel, Origin)]) {
         if channels.is_empty() {
-            self.error(&format!("{field}.channels"), at, "the transient has no channels, so no way out", Some("add channels, e.g. channels = [{ to = \"A\", fraction = \"rest\" }]".into()));
+            self.error(
+                &format!("{field}.channels"),
+                at,
+                "the transient has no channels, so no way out",
+                Some("add channels, e.g. channels = [{ to = \"A\", fraction = \"rest\" }]".into()),
+            );
             return;
         }
-        let fixed = channels.iter().filter(|c| matches!(c.0.branching, Branching::Fraction(_) | Branching::Rest)).count();
+        let fixed = channels
+            .iter()
+            .filter(|c| matches!(c.0.branching, Branching::Fraction(_) | Branching::Rest))
+            .count();
         if fixed != 0 && fixed != channels.len() {
             self.error(
                 &format!("{field}.channels"),
@@ -1029,23 +1532,49 @@ impl<'a> Builder<'a> {
         if fixed == 0 {
             return;
         }
-        let rests: Vec<&Origin> = channels.iter().filter(|c| c.0.branching == Branching::Rest).map(|c| &c.1).collect();
+        let rests: Vec<&Origin> = channels
+            .iter()
+            .filter(|c| c.0.branching == Branching::Rest)
+            .map(|c| &c.1)
+            .collect();
         if rests.len() > 1 {
-            self.error(&format!("{field}.channels"), rests[1], "more than one channel takes the rest", Some("only one channel can be \"rest\"".into()));
+            self.error(
+                &format!("{field}.channels"),
+                rests[1],
+                "more than one channel takes the rest",
+                Some("only one channel can be \"rest\"".into()),
+            );
             return;
         }
         let sum: f64 = channels
             .iter()
-            .map(|c| if let Branching::Fraction(x) = c.0.branching { x } else { 0.0 })
+            .map(|c| {
+                if let Branching::Fraction(x) = c.0.branching {
+                    x
+                } else {
+                    0.0
+                }
+            })
             .sum();
         if sum > 1.0 + 1e-9 {
-            self.error(&format!("{field}.channels"), at, format!("the fractions sum to {}, above 1", units::sig(sum, 6)), Some("fractions out of one transient sum to at most 1".into()));
+            self.error(
+                &format!("{field}.channels"),
+                at,
+                format!("the fractions sum to {}, above 1", units::sig(sum, 6)),
+                Some("fractions out of one transient sum to at most 1".into()),
+            );
         } else if sum < 1.0 - 1e-9 && rests.is_empty() {
             self.error(
                 &format!("{field}.channels"),
                 at,
-                format!("the fractions sum to {} and no channel takes the rest", units::sig(sum, 6)),
-                Some("add a return channel, e.g. { to = \"A\", fraction = \"rest\" }, or make the fractions sum to 1".into()),
+                format!(
+                    "the fractions sum to {} and no channel takes the rest",
+                    units::sig(sum, 6)
+                ),
+                Some(
+                    "add a return channel, e.g. { to = \"A\", fraction = \"rest\" }, or make the fractions sum to 1"
+                        .into(),
+                ),
             );
         }
     }

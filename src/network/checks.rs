@@ -34,7 +34,17 @@ impl Builder<'_> {
                 if exits[i] {
                     continue;
                 }
-                let fixed: f64 = t.channels.iter().map(|c| if let Branching::Fraction(x) = c.branching { x } else { 0.0 }).sum();
+                let fixed: f64 = t
+                    .channels
+                    .iter()
+                    .map(|c| {
+                        if let Branching::Fraction(x) = c.branching {
+                            x
+                        } else {
+                            0.0
+                        }
+                    })
+                    .sum();
                 let open = t.channels.iter().any(|c| {
                     let positive = match c.branching {
                         Branching::Fraction(x) => x > 0.0,
@@ -57,20 +67,36 @@ impl Builder<'_> {
                 break;
             }
         }
-        let stuck: Vec<usize> = (0..n).filter(|&i| !exits[i] && !net.transients[i].name.is_empty() && !net.transients[i].channels.is_empty()).collect();
+        let stuck: Vec<usize> = (0..n)
+            .filter(|&i| !exits[i] && !net.transients[i].name.is_empty() && !net.transients[i].channels.is_empty())
+            .collect();
         if !stuck.is_empty() {
-            let names: Vec<String> = stuck.iter().map(|&i| format!("\"{}\"", net.transients[i].name)).collect();
+            let names: Vec<String> = stuck
+                .iter()
+                .map(|&i| format!("\"{}\"", net.transients[i].name))
+                .collect();
             let at = self.transient_at(stuck[0]);
             self.error(
                 &format!("transient {}", names[0]),
                 &at,
-                format!("no way out to a species: {} only lead{} to each other", names.join(", "), if names.len() == 1 { "s" } else { "" }),
-                Some("give one of them a channel to a ground-state species (a product, or the return to the absorber)".into()),
+                format!(
+                    "no way out to a species: {} only lead{} to each other",
+                    names.join(", "),
+                    if names.len() == 1 { "s" } else { "" }
+                ),
+                Some(
+                    "give one of them a channel to a ground-state species (a product, or the return to the absorber)"
+                        .into(),
+                ),
             );
         }
         // Quenching-only transients depend on the partner being present.
         for (i, t) in net.transients.iter().enumerate() {
-            if !t.channels.is_empty() && t.channels.iter().all(|c| matches!(c.branching, Branching::Quenching { .. })) {
+            if !t.channels.is_empty()
+                && t.channels
+                    .iter()
+                    .all(|c| matches!(c.branching, Branching::Quenching { .. }))
+            {
                 let at = self.transient_at(i);
                 self.warn(
                     &format!("transient \"{}\"", t.name),
@@ -97,14 +123,23 @@ impl Builder<'_> {
         for (i, t) in net.transients.iter().enumerate() {
             if !reached[i] && !t.name.is_empty() {
                 let at = self.transient_at(i);
-                self.warn(&format!("transient \"{}\"", t.name), &at, "no photochemical step or channel leads to it", None);
+                self.warn(
+                    &format!("transient \"{}\"", t.name),
+                    &at,
+                    "no photochemical step or channel leads to it",
+                    None,
+                );
             }
         }
     }
 
     /// The quantum yields of one absorber's steps must not sum above 1 at any wavelength.
     fn check_yield_sums(&mut self, net: &Network) {
-        let mut wavelengths: Vec<f64> = net.lights.iter().flat_map(|l| l.bins.iter().map(|b| b.wavelength)).collect();
+        let mut wavelengths: Vec<f64> = net
+            .lights
+            .iter()
+            .flat_map(|l| l.bins.iter().map(|b| b.wavelength))
+            .collect();
         for p in &net.photo {
             if let Spectrum::Table { points, .. } = &p.quantum_yield {
                 wavelengths.extend(points.iter().map(|x| x.0));
@@ -126,8 +161,15 @@ impl Builder<'_> {
                 self.error(
                     &format!("photo steps of \"{}\"", net.species[a].name),
                     &at,
-                    format!("quantum yields and efficiencies sum to {} at {} nm, above 1", crate::units::sig(s, 6), crate::units::sig(w * 1e9, 5)),
-                    Some("the photons one absorber takes up are shared among its steps: their yields sum to at most 1".into()),
+                    format!(
+                        "quantum yields and efficiencies sum to {} at {} nm, above 1",
+                        crate::units::sig(s, 6),
+                        crate::units::sig(w * 1e9, 5)
+                    ),
+                    Some(
+                        "the photons one absorber takes up are shared among its steps: their yields sum to at most 1"
+                            .into(),
+                    ),
                 );
             }
         }
@@ -152,7 +194,11 @@ impl Builder<'_> {
                     self.error(
                         &format!("thermal \"{}\"", s.name),
                         &at,
-                        format!("{} -> {} is not balanced: products − reactants = {d}", net.side(&s.reactants), net.side(&s.products)),
+                        format!(
+                            "{} -> {} is not balanced: products − reactants = {d}",
+                            net.side(&s.reactants),
+                            net.side(&s.products)
+                        ),
                         Some("check the formulas of these species and the coefficients".into()),
                     );
                 }
@@ -160,7 +206,9 @@ impl Builder<'_> {
         }
         for (i, p) in net.photo.iter().enumerate() {
             let at = self.at.photo.get(i).cloned().unwrap_or_default();
-            let Some(a) = net.species[p.absorber].composition.clone() else { continue };
+            let Some(a) = net.species[p.absorber].composition.clone() else {
+                continue;
+            };
             let mut ends: Vec<(String, Vec<Term>)> = Vec::new();
             match &p.outcome {
                 PhotoOutcome::Products(t) => ends.push((p.name.clone(), t.clone())),
@@ -184,7 +232,12 @@ impl Builder<'_> {
 
     fn check_light(&mut self, net: &Network) {
         if net.lights.is_empty() && !net.photo.is_empty() {
-            self.warn("light", &Origin::Span(0..0), "there are photochemical steps but no light source", Some("add a [[light]] table".into()));
+            self.warn(
+                "light",
+                &Origin::Span(0..0),
+                "there are photochemical steps but no light source",
+                Some("add a [[light]] table".into()),
+            );
             return;
         }
         for a in net.species_absorbing() {
@@ -198,12 +251,25 @@ impl Builder<'_> {
                     Some("add epsilon, e.g. epsilon = { at = \"365 nm\", value = \"5000 L/(mol cm)\" }".into()),
                 ),
                 Some(eps) => {
-                    let absorbs = net.lights.iter().flat_map(|l| &l.bins).any(|b| eps.at(b.wavelength) > 0.0);
+                    let absorbs = net
+                        .lights
+                        .iter()
+                        .flat_map(|l| &l.bins)
+                        .any(|b| eps.at(b.wavelength) > 0.0);
                     if !absorbs {
-                        self.warn(&format!("species \"{}\".epsilon", s.name), &at, "is zero at every wavelength of the light, so it takes no light", None);
+                        self.warn(
+                            &format!("species \"{}\".epsilon", s.name),
+                            &at,
+                            "is zero at every wavelength of the light, so it takes no light",
+                            None,
+                        );
                     }
                     if let Spectrum::Constant { at: Some(w), .. } = eps {
-                        let far = net.lights.iter().filter_map(|l| l.extent()).any(|(lo, hi)| (lo - w).abs() > 10e-9 || (hi - w).abs() > 10e-9);
+                        let far = net
+                            .lights
+                            .iter()
+                            .filter_map(|l| l.extent())
+                            .any(|(lo, hi)| (lo - w).abs() > 10e-9 || (hi - w).abs() > 10e-9);
                         if far {
                             self.warn(
                                 &format!("species \"{}\".epsilon", s.name),
@@ -243,8 +309,17 @@ impl Builder<'_> {
             if !used.contains(&i) {
                 let at = self.at.species.get(i).cloned().unwrap_or_default();
                 let absorbs = s.epsilon.as_ref().is_some_and(|e| e.max() > 0.0);
-                let note = if absorbs { " (it still absorbs light: an inner filter)" } else { "" };
-                self.warn(&format!("species \"{}\"", s.name), &at, format!("nothing produces or consumes it{note}"), None);
+                let note = if absorbs {
+                    " (it still absorbs light: an inner filter)"
+                } else {
+                    ""
+                };
+                self.warn(
+                    &format!("species \"{}\"", s.name),
+                    &at,
+                    format!("nothing produces or consumes it{note}"),
+                    None,
+                );
             }
         }
     }
@@ -258,7 +333,16 @@ fn collect_ends(net: &Network, t: usize, path: &mut Vec<usize>, out: &mut Vec<(S
     path.push(t);
     for c in &net.transients[t].channels {
         match &c.target {
-            Target::Species(terms) => out.push((format!("via {}", path.iter().map(|&i| net.transients[i].name.as_str()).collect::<Vec<_>>().join(" -> ")), terms.clone())),
+            Target::Species(terms) => out.push((
+                format!(
+                    "via {}",
+                    path.iter()
+                        .map(|&i| net.transients[i].name.as_str())
+                        .collect::<Vec<_>>()
+                        .join(" -> ")
+                ),
+                terms.clone(),
+            )),
             Target::Transient(j) => collect_ends(net, *j, path, out),
         }
     }
@@ -304,7 +388,9 @@ fn mark_returns(net: &mut Network) {
 pub(super) fn graph(net: &Network) -> DiGraph<Node, Edge> {
     let mut g = DiGraph::new();
     let sp: Vec<NodeIndex> = (0..net.species.len()).map(|i| g.add_node(Node::Species(i))).collect();
-    let tr: Vec<NodeIndex> = (0..net.transients.len()).map(|i| g.add_node(Node::Transient(i))).collect();
+    let tr: Vec<NodeIndex> = (0..net.transients.len())
+        .map(|i| g.add_node(Node::Transient(i)))
+        .collect();
     for (i, s) in net.thermal.iter().enumerate() {
         let n = g.add_node(Node::Thermal(i));
         for t in &s.reactants {

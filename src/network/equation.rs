@@ -45,7 +45,9 @@ pub fn parse_side(text: &str) -> Result<Vec<RawTerm>, String> {
             Ok(c) => {
                 let name: Vec<&str> = words.collect();
                 if name.len() != 1 {
-                    return Err(format!("\"{part}\" should be a coefficient and one species name, e.g. \"2 M\""));
+                    return Err(format!(
+                        "\"{part}\" should be a coefficient and one species name, e.g. \"2 M\""
+                    ));
                 }
                 (c, name[0].to_string())
             }
@@ -106,7 +108,11 @@ pub fn parse(text: &str) -> Result<RawEquation, String> {
     if left.is_empty() {
         return Err(format!("\"{text}\" has no reactants"));
     }
-    Ok(RawEquation { left, right, reversible })
+    Ok(RawEquation {
+        left,
+        right,
+        reversible,
+    })
 }
 
 #[cfg(test)]
@@ -116,7 +122,13 @@ mod tests {
     #[test]
     fn reads_coefficients_and_arrows() {
         let e = parse("2 M -> D").unwrap();
-        assert_eq!(e.left, vec![RawTerm { name: "M".into(), coefficient: 2.0 }]);
+        assert_eq!(
+            e.left,
+            vec![RawTerm {
+                name: "M".into(),
+                coefficient: 2.0
+            }]
+        );
         assert!(!e.reversible);
         let e = parse("A + B <=> C").unwrap();
         assert_eq!(e.left.len(), 2);
@@ -125,7 +137,13 @@ mod tests {
         assert_eq!(e.left[0].name, "Fe3+");
         assert_eq!(e.left[1].name, "e-");
         let e = parse("A + A -> D").unwrap();
-        assert_eq!(e.left, vec![RawTerm { name: "A".into(), coefficient: 2.0 }]);
+        assert_eq!(
+            e.left,
+            vec![RawTerm {
+                name: "A".into(),
+                coefficient: 2.0
+            }]
+        );
         let e = parse("P -> 0").unwrap();
         assert!(e.right.is_empty());
     }

@@ -41,7 +41,9 @@ fn split_charge(t: &str) -> Result<(&str, f64), String> {
         let n = if digits.is_empty() {
             1.0
         } else {
-            digits.parse::<u32>().map_err(|_| format!("cannot read the charge in \"{t}\""))? as f64
+            digits
+                .parse::<u32>()
+                .map_err(|_| format!("cannot read the charge in \"{t}\""))? as f64
         };
         return Ok((body, sign * n));
     }
@@ -62,7 +64,11 @@ fn count(chars: &[char], pos: &mut usize) -> f64 {
     if *pos == start {
         1.0
     } else {
-        chars[start..*pos].iter().collect::<String>().parse::<f64>().unwrap_or(1.0)
+        chars[start..*pos]
+            .iter()
+            .collect::<String>()
+            .parse::<f64>()
+            .unwrap_or(1.0)
     }
 }
 
@@ -102,7 +108,9 @@ fn group(chars: &[char], pos: &mut usize, depth: usize, t: &str) -> Result<Compo
             let n = count(chars, pos);
             *comp.entry(sym).or_default() += n;
         } else {
-            return Err(format!("unexpected '{c}' in the formula \"{t}\"; write elements with counts, e.g. \"C6H12O6\""));
+            return Err(format!(
+                "unexpected '{c}' in the formula \"{t}\"; write elements with counts, e.g. \"C6H12O6\""
+            ));
         }
     }
     if depth > 0 {

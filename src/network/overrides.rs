@@ -40,7 +40,10 @@ impl Overrides {
             }
             entries.push((k, v));
         }
-        Ok(Overrides { entries, used: RefCell::new(BTreeSet::new()) })
+        Ok(Overrides {
+            entries,
+            used: RefCell::new(BTreeSet::new()),
+        })
     }
 
     /// Add one override.
@@ -51,7 +54,12 @@ impl Overrides {
 
     /// The value given for `key` (the last one wins), marking it used.
     pub fn get(&self, key: &str) -> Option<&str> {
-        let v = self.entries.iter().rev().find(|(k, _)| k == key).map(|(_, v)| v.as_str());
+        let v = self
+            .entries
+            .iter()
+            .rev()
+            .find(|(k, _)| k == key)
+            .map(|(_, v)| v.as_str());
         if v.is_some() {
             self.used.borrow_mut().insert(key.to_string());
         }
@@ -61,7 +69,11 @@ impl Overrides {
     /// Keys given that no field asked for.
     pub fn unused(&self) -> Vec<String> {
         let used = self.used.borrow();
-        self.entries.iter().filter(|(k, _)| !used.contains(k)).map(|(k, _)| k.clone()).collect()
+        self.entries
+            .iter()
+            .filter(|(k, _)| !used.contains(k))
+            .map(|(k, _)| k.clone())
+            .collect()
     }
 
     /// True when nothing is overridden.

@@ -55,9 +55,11 @@ impl RateLaw {
             RateLaw::Constant(k) => k,
             RateLaw::Arrhenius { prefactor, activation } => arrhenius(prefactor, activation, temperature),
             RateLaw::EyringFree { barrier, transmission } => eyring(barrier, temperature, order, transmission),
-            RateLaw::EyringEnthalpy { enthalpy, entropy, transmission } => {
-                eyring(enthalpy - temperature * entropy, temperature, order, transmission)
-            }
+            RateLaw::EyringEnthalpy {
+                enthalpy,
+                entropy,
+                transmission,
+            } => eyring(enthalpy - temperature * entropy, temperature, order, transmission),
         }
     }
 
@@ -89,8 +91,15 @@ mod tests {
     #[test]
     fn eyring_forms_agree() {
         let t = 310.0;
-        let a = RateLaw::EyringFree { barrier: 80_000.0 - t * -20.0, transmission: 1.0 };
-        let b = RateLaw::EyringEnthalpy { enthalpy: 80_000.0, entropy: -20.0, transmission: 1.0 };
+        let a = RateLaw::EyringFree {
+            barrier: 80_000.0 - t * -20.0,
+            transmission: 1.0,
+        };
+        let b = RateLaw::EyringEnthalpy {
+            enthalpy: 80_000.0,
+            entropy: -20.0,
+            transmission: 1.0,
+        };
         assert!((a.rate_constant(t, 1) - b.rate_constant(t, 1)).abs() < 1e-20);
         // and the barrier round-trips through a rate constant
         let k = RateLaw::Constant(a.rate_constant(t, 1));

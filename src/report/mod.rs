@@ -11,13 +11,19 @@ use std::path::Path;
 /// Write `bytes` to `path` atomically: a temporary file beside it, flushed, then renamed, so a
 /// reader never sees a half-written file and a failed run leaves the old file in place.
 pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
-    let io = |source| Error::Io { path: path.to_path_buf(), source };
+    let io = |source| Error::Io {
+        path: path.to_path_buf(),
+        source,
+    };
     let dir = match path.parent() {
         Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
         _ => std::path::PathBuf::from("."),
     };
     std::fs::create_dir_all(&dir).map_err(io)?;
-    let name = path.file_name().map(|n| n.to_string_lossy().to_string()).unwrap_or_else(|| "out".into());
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().to_string())
+        .unwrap_or_else(|| "out".into());
     let tmp = dir.join(format!(".{name}.{}.tmp", std::process::id()));
     let result = (|| {
         let mut f = std::fs::File::create(&tmp)?;

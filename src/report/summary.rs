@@ -9,7 +9,16 @@ use std::fmt::Write;
 pub fn network_summary(net: &Network) -> String {
     let mut s = String::new();
     let c = &net.conditions;
-    let _ = writeln!(s, "network  {}{}", net.about.name, if net.about.invented { "  (invented scenario)" } else { "" });
+    let _ = writeln!(
+        s,
+        "network  {}{}",
+        net.about.name,
+        if net.about.invented {
+            "  (invented scenario)"
+        } else {
+            ""
+        }
+    );
     if !net.about.description.is_empty() {
         let _ = writeln!(s, "         {}", first_line(&net.about.description));
     }
@@ -22,7 +31,8 @@ pub fn network_summary(net: &Network) -> String {
         sig(c.temperature, 5),
         sig(c.volume * 1e6, 4),
         sig(c.path_length * 100.0, 4),
-        c.irradiated_area.map_or(String::new(), |a| format!(", irradiated area {} cm²", sig(a * 1e4, 4)))
+        c.irradiated_area
+            .map_or(String::new(), |a| format!(", irradiated area {} cm²", sig(a * 1e4, 4)))
     );
     let n_abs = net.species_absorbing().len();
     let n_rev = net.thermal.iter().filter(|t| t.reverse_of.is_some()).count();
@@ -32,7 +42,11 @@ pub fn network_summary(net: &Network) -> String {
         net.species.len(),
         n_abs,
         net.thermal.len() - n_rev,
-        if n_rev > 0 { format!(" ({n_rev} reversible)") } else { String::new() },
+        if n_rev > 0 {
+            format!(" ({n_rev} reversible)")
+        } else {
+            String::new()
+        },
         net.photo.len(),
         net.transients.len()
     );
@@ -43,7 +57,9 @@ pub fn network_summary(net: &Network) -> String {
     for l in &net.lights {
         let what = match &l.kind {
             LightKind::Line { wavelength } => format!("line {} nm", sig(wavelength * 1e9, 5)),
-            LightKind::Band { centre, fwhm } => format!("band {} nm, FWHM {} nm", sig(centre * 1e9, 5), sig(fwhm * 1e9, 4)),
+            LightKind::Band { centre, fwhm } => {
+                format!("band {} nm, FWHM {} nm", sig(centre * 1e9, 5), sig(fwhm * 1e9, 4))
+            }
             LightKind::Lamp { file, .. } => format!("lamp spectrum {file}"),
             LightKind::Sun { scale, .. } => format!("sunlight, ASTM G173-03 global tilt × {}", sig(*scale, 4)),
         };
@@ -65,7 +81,11 @@ pub fn network_summary(net: &Network) -> String {
             None => String::new(),
             Some(e) => {
                 // ε at the light's peak photon bin, in the trade's unit.
-                let best = net.lights.iter().flat_map(|l| &l.bins).max_by(|a, b| a.flux.total_cmp(&b.flux));
+                let best = net
+                    .lights
+                    .iter()
+                    .flat_map(|l| &l.bins)
+                    .max_by(|a, b| a.flux.total_cmp(&b.flux));
                 match best {
                     Some(b) => format!(
                         "  ε({} nm) = {} L/(mol cm)",
@@ -76,9 +96,22 @@ pub fn network_summary(net: &Network) -> String {
                 }
             }
         };
-        let absorbs = if net.photo.iter().any(|p| p.absorber == i) { "  absorbs" } else { "" };
+        let absorbs = if net.photo.iter().any(|p| p.absorber == i) {
+            "  absorbs"
+        } else {
+            ""
+        };
         let product = if sp.product { "  product" } else { "" };
-        let _ = writeln!(s, "  {:<14} {:>10}{}{}{}{}", sp.name, format_concentration(sp.initial), sp.formula.as_ref().map_or(String::new(), |f| format!("  {f}")), absorbs, product, eps);
+        let _ = writeln!(
+            s,
+            "  {:<14} {:>10}{}{}{}{}",
+            sp.name,
+            format_concentration(sp.initial),
+            sp.formula.as_ref().map_or(String::new(), |f| format!("  {f}")),
+            absorbs,
+            product,
+            eps
+        );
     }
     if !net.thermal.is_empty() {
         let _ = writeln!(s, "\nthermal steps (rate constants at {} K)", sig(c.temperature, 5));
@@ -88,7 +121,13 @@ pub fn network_summary(net: &Network) -> String {
                 2 => "/(M s)".to_string(),
                 n => format!("/(M{} s)", n - 1),
             };
-            let _ = writeln!(s, "  {:<40} k = {} {}", format!("{} -> {}", net.side(&t.reactants), net.side(&t.products)), sig(t.k, 4), unit);
+            let _ = writeln!(
+                s,
+                "  {:<40} k = {} {}",
+                format!("{} -> {}", net.side(&t.reactants), net.side(&t.products)),
+                sig(t.k, 4),
+                unit
+            );
         }
     }
     if !net.photo.is_empty() {
@@ -102,8 +141,16 @@ pub fn network_summary(net: &Network) -> String {
                 crate::light::Spectrum::Constant { value, .. } => sig(*value, 4),
                 crate::light::Spectrum::Table { points, .. } => format!("table of {} points", points.len()),
             };
-            let word = if matches!(p.outcome, PhotoOutcome::Transient(_)) { "efficiency" } else { "Φ" };
-            let _ = writeln!(s, "  {:<40} {word} = {q}", format!("{} + hν -> {}", net.species[p.absorber].name, to));
+            let word = if matches!(p.outcome, PhotoOutcome::Transient(_)) {
+                "efficiency"
+            } else {
+                "Φ"
+            };
+            let _ = writeln!(
+                s,
+                "  {:<40} {word} = {q}",
+                format!("{} + hν -> {}", net.species[p.absorber].name, to)
+            );
         }
     }
     if !net.transients.is_empty() {
@@ -119,9 +166,16 @@ pub fn network_summary(net: &Network) -> String {
                     Branching::Fraction(x) => format!("fraction {}", sig(*x, 4)),
                     Branching::Rest => "the rest".into(),
                     Branching::Rate { k, .. } => format!("k = {} /s", sig(*k, 4)),
-                    Branching::Quenching { partner, k2, .. } => format!("quenched by {}: k = {} /(M s)", net.species[*partner].name, sig(*k2, 4)),
+                    Branching::Quenching { partner, k2, .. } => {
+                        format!("quenched by {}: k = {} /(M s)", net.species[*partner].name, sig(*k2, 4))
+                    }
                 };
-                let _ = writeln!(s, "    -> {:<30} {how}{}", to, if ch.returns { "   (return)" } else { "" });
+                let _ = writeln!(
+                    s,
+                    "    -> {:<30} {how}{}",
+                    to,
+                    if ch.returns { "   (return)" } else { "" }
+                );
             }
         }
     }

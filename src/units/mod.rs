@@ -87,9 +87,7 @@ impl Quantity {
             Quantity::Length => "a number with cm, mm, µm or m, e.g. \"1 cm\"".into(),
             Quantity::Area => "a number with cm2, mm2 or m2, e.g. \"4 cm2\"".into(),
             Quantity::Volume => "a number with L, mL, µL or m3, e.g. \"3 mL\"".into(),
-            Quantity::Time => {
-                "a number with fs, ps, ns, µs, ms, s, min, h, d (day), e.g. \"30 min\"".into()
-            }
+            Quantity::Time => "a number with fs, ps, ns, µs, ms, s, min, h, d (day), e.g. \"30 min\"".into(),
             Quantity::Temperature => "a number with K or °C, e.g. \"298.15 K\"".into(),
             Quantity::Concentration => "a number with M, mM, µM, nM or mol/L, e.g. \"10 mM\"".into(),
             Quantity::Power => "a number with W, mW or µW, e.g. \"50 mW\"".into(),
@@ -97,19 +95,13 @@ impl Quantity {
                 "a number with einstein/s, µeinstein/s or photons/s, e.g. \"2.5 µeinstein/s\"".into()
             }
             Quantity::Irradiance => "a number with W/m2 or mW/cm2, e.g. \"1000 W/m2\"".into(),
-            Quantity::MolarEnergy => {
-                "a number with kJ/mol, kcal/mol, eV or cm-1, e.g. \"25 kcal/mol\"".into()
-            }
-            Quantity::MolarEntropy => {
-                "a number with J/(mol K) or cal/(mol K), e.g. \"-10 J/(mol K)\"".into()
-            }
+            Quantity::MolarEnergy => "a number with kJ/mol, kcal/mol, eV or cm-1, e.g. \"25 kcal/mol\"".into(),
+            Quantity::MolarEntropy => "a number with J/(mol K) or cal/(mol K), e.g. \"-10 J/(mol K)\"".into(),
             Quantity::RateConstant(0) => "a number with M/s (or mol/(L s)), e.g. \"1e-6 M/s\"".into(),
             Quantity::RateConstant(1) => "a number with /s, /min, /h, e.g. \"0.04 /s\"".into(),
             Quantity::RateConstant(2) => "a number with /(M s) or L/(mol s), e.g. \"1e4 /(M s)\"".into(),
             Quantity::RateConstant(n) => format!("a number with /(M{} s), e.g. \"1 /(M{} s)\"", n - 1, n - 1),
-            Quantity::MolarAbsorption => {
-                "a number with L/(mol cm) or M-1 cm-1, e.g. \"12000 L/(mol cm)\"".into()
-            }
+            Quantity::MolarAbsorption => "a number with L/(mol cm) or M-1 cm-1, e.g. \"12000 L/(mol cm)\"".into(),
         }
     }
 }
@@ -159,10 +151,16 @@ impl Unit {
         for (d, e) in dim.iter_mut().zip(o.dim) {
             *d += e;
         }
-        Unit { scale: self.scale * o.scale, dim }
+        Unit {
+            scale: self.scale * o.scale,
+            dim,
+        }
     }
     fn powi(self, n: i32) -> Unit {
-        Unit { scale: self.scale.powi(n), dim: self.dim.map(|d| d * n) }
+        Unit {
+            scale: self.scale.powi(n),
+            dim: self.dim.map(|d| d * n),
+        }
     }
 }
 
@@ -192,7 +190,9 @@ fn base(name: &str) -> Option<Unit> {
 }
 
 /// Base symbols that take SI prefixes.
-const PREFIXABLE: &[&str] = &["m", "g", "s", "mol", "M", "L", "l", "J", "W", "eV", "cal", "einstein", "E", "Hz"];
+const PREFIXABLE: &[&str] = &[
+    "m", "g", "s", "mol", "M", "L", "l", "J", "W", "eV", "cal", "einstein", "E", "Hz",
+];
 
 fn prefix(p: &str) -> Option<f64> {
     Some(match p {
@@ -219,7 +219,10 @@ fn symbol(name: &str) -> Option<Unit> {
             && let Some(f) = prefix(p)
         {
             let u = base(b)?;
-            return Some(Unit { scale: u.scale * f, dim: u.dim });
+            return Some(Unit {
+                scale: u.scale * f,
+                dim: u.dim,
+            });
         }
     }
     None
@@ -262,7 +265,9 @@ fn split_number(s: &str) -> Result<(f64, &str), UnitError> {
             return Ok((v, s[cut..].trim()));
         }
     }
-    Err(UnitError { problem: format!("\"{s}\" does not start with a number") })
+    Err(UnitError {
+        problem: format!("\"{s}\" does not start with a number"),
+    })
 }
 
 struct UnitParser<'a> {
@@ -283,7 +288,9 @@ impl UnitParser<'_> {
         self.pos > start
     }
     fn err(&self, what: &str) -> UnitError {
-        UnitError { problem: format!("cannot read the unit \"{}\": {what}", self.text) }
+        UnitError {
+            problem: format!("cannot read the unit \"{}\": {what}", self.text),
+        }
     }
 
     /// expr := factor ((ws | '*' | '/') factor)*; after '/', juxtaposed factors stay in the
@@ -366,17 +373,14 @@ impl UnitParser<'_> {
                 self.pos += 1;
                 Ok(Unit { scale: 1.0, dim: NONE })
             }
-            Some('°') => {
-                Err(self.err("°C is accepted only on its own, for temperatures"))
-            }
+            Some('°') => Err(self.err("°C is accepted only on its own, for temperatures")),
             Some(c) if c.is_alphabetic() => {
                 let start = self.pos;
                 while self.peek().is_some_and(|c| c.is_alphabetic()) {
                     self.pos += 1;
                 }
                 let name: String = self.chars[start..self.pos].iter().collect();
-                let u = symbol(&name)
-                    .ok_or_else(|| self.err(&format!("unknown unit symbol \"{name}\"")))?;
+                let u = symbol(&name).ok_or_else(|| self.err(&format!("unknown unit symbol \"{name}\"")))?;
                 let n = self.exponent()?;
                 Ok(u.powi(n))
             }
@@ -387,7 +391,11 @@ impl UnitParser<'_> {
 }
 
 fn parse_unit(text: &str) -> Result<Unit, UnitError> {
-    let mut p = UnitParser { chars: text.chars().collect(), pos: 0, text };
+    let mut p = UnitParser {
+        chars: text.chars().collect(),
+        pos: 0,
+        text,
+    };
     let u = p.expr()?;
     if p.pos != p.chars.len() {
         return Err(p.err("unbalanced ')'"));
@@ -403,10 +411,14 @@ pub fn parse(text: &str, q: Quantity) -> Result<f64, UnitError> {
     let norm = normalise(text);
     let (value, unit_text) = split_number(&norm)?;
     if !value.is_finite() {
-        return Err(UnitError { problem: format!("\"{text}\" is not a finite number") });
+        return Err(UnitError {
+            problem: format!("\"{text}\" is not a finite number"),
+        });
     }
     if unit_text.is_empty() {
-        return Err(UnitError { problem: format!("\"{text}\" has no unit") });
+        return Err(UnitError {
+            problem: format!("\"{text}\" has no unit"),
+        });
     }
     if q == Quantity::Temperature {
         match unit_text {
@@ -418,7 +430,10 @@ pub fn parse(text: &str, q: Quantity) -> Result<f64, UnitError> {
     let unit = parse_unit(unit_text)?;
     let si = value * unit.scale;
     let wrong = || UnitError {
-        problem: format!("\"{text}\" is not {}: its unit \"{unit_text}\" has the wrong dimension", q.describe()),
+        problem: format!(
+            "\"{text}\" is not {}: its unit \"{unit_text}\" has the wrong dimension",
+            q.describe()
+        ),
     };
     let want = |d: Dim| if unit.dim == d { Ok(si) } else { Err(wrong()) };
     match q {

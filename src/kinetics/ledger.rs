@@ -1,0 +1,142 @@
+//! The photon ledger read off a state: where the photons went, and what they bought.
+
+use crate::model::Model;
+use crate::model::rhs::LedgerLayout;
+
+/// Photon accounting for one light source, einstein.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct SourceLedger {
+    /// Source name.
+    pub source: String,
+    /// Photons that entered the sample, einstein.
+    pub incident: f64,
+    /// Absorbed by each absorbing species (same order as [`Ledger::absorbers`]), einstein.
+    pub absorbed: Vec<f64>,
+    /// Absorbed by solvent and vessel, einstein.
+    pub background: f64,
+    /// Passed through, einstein.
+    pub transmitted: f64,
+}
+
+/// Photons absorbed by one absorber and what came of them, einstein.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct AbsorberLedger {
+    /// Species name.
+    pub species: String,
+    /// Absorbed from all sources, einstein.
+    pub absorbed: f64,
+    /// Per outcome label: photons whose absorption ended there, einstein.
+    pub outcomes: Vec<(String, f64)>,
+    /// Photons after which the molecule was back where it started (return channels and the
+    /// unreactive remainder of the quantum yields), einstein.
+    pub returned: f64,
+    /// Photons that changed the molecule, einstein.
+    pub productive: f64,
+}
+
+/// A product and its photon cost.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct ProductCost {
+    /// Species name.
+    pub species: String,
+    /// Amount formed, mol (final minus initial).
+    pub formed: f64,
+    /// Photons absorbed by all species per molecule formed (None when none formed).
+    pub photons_per_molecule: Option<f64>,
+    /// Apparent quantum yield: molecules formed per photon absorbed.
+    pub apparent_quantum_yield: Option<f64>,
+}
+
+/// The whole ledger at one time.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct Ledger {
+    /// Time, s.
+    pub time: f64,
+    /// Per source.
+    pub sources: Vec<SourceLedger>,
+    /// Absorbing species names.
+    pub absorbers: Vec<String>,
+    /// Per absorber.
+    pub by_absorber: Vec<AbsorberLedger>,
+    /// Products.
+    pub products: Vec<ProductCost>,
+    /// Incident photons in all, einstein.
+    pub incident: f64,
+    /// Absorbed by species in all, einstein.
+    pub absorbed: f64,
+    /// Relative mismatch |incident − absorbed − background − transmitted| / incident.
+    pub balance_error: f64,
+    /// Fraction of the incident photons absorbed by species that never react (inner filters)
+    /// and by the background.
+    pub inner_filter_fraction: f64,
+}
+
+/// Read the ledger at time `t` from state `y` of `model`.
+pub fn read(model: &Model, layout: &LedgerLayout, t: f64, y: &[f64]) -> Ledger {
+    let v = model.volume;
+    let absorbers: Vec<String> = model.absorbers.iter().map(|&i| model.species[i].clone()).collect();
+    let mut sources = Vec::new();
+    let mut balance_num = 0.0;
+    for (s, name) in model.sources.iter().enumerate() {
+        let incident = model.source_flux(s) * t;
+        let absorbed: Vec<f64> = (0..model.absorbers.len()).map(|a| y[layout.absorbed(s, a)] * v).collect();
+        let background = y[layout.background(s)] * v;
+        let transmitted = y[layout.transmitted(s)] * v;
+        balance_num += incident - absorbed.iter().sum::<f64>() - background - transmitted;
+        sources.push(SourceLedger { source: name.clone(), incident, absorbed, background, transmitted });
+    }
+    let incident: f64 = sources.iter().map(|s| s.incident).sum();
+    let mut by_absorber = Vec::new();
+    let mut wasted = sources.iter().map(|s| s.background).sum::<f64>();
+    for (slot, name) in absorbers.iter().enumerate() {
+        let absorbed: f64 = sources.iter().map(|s| s.absorbed[slot]).sum();
+        let mut outcomes = Vec::new();
+        let mut productive = 0.0;
+        let mut returned_listed = 0.0;
+        let mut has_photo = false;
+        for (o, out) in model.outcomes.iter().enumerate() {
+            if out.slot != slot {
+                continue;
+            }
+            has_photo = true;
+            let p = y[layout.outcome(o)] * v;
+            if out.returns {
+                returned_listed += p;
+            } else {
+                productive += p;
+            }
+            outcomes.push((out.label.clone(), p));
+        }
+        if !has_photo {
+            wasted += absorbed;
+        }
+        let returned = (absorbed - productive).max(returned_listed);
+        by_absorber.push(AbsorberLedger { species: name.clone(), absorbed, outcomes, returned, productive });
+    }
+    let absorbed: f64 = by_absorber.iter().map(|a| a.absorbed).sum();
+    let products = model
+        .products
+        .iter()
+        .map(|&i| {
+            let formed = (y[i] - model.initial[i]) * v;
+            let ok = formed > 0.0 && absorbed > 0.0;
+            ProductCost {
+                species: model.species[i].clone(),
+                formed,
+                photons_per_molecule: ok.then(|| absorbed / formed),
+                apparent_quantum_yield: ok.then(|| formed / absorbed),
+            }
+        })
+        .collect();
+    Ledger {
+        time: t,
+        sources,
+        absorbers,
+        by_absorber,
+        products,
+        incident,
+        absorbed,
+        balance_error: if incident > 0.0 { balance_num.abs() / incident } else { 0.0 },
+        inner_filter_fraction: if incident > 0.0 { wasted / incident } else { 0.0 },
+    }
+}

@@ -1,0 +1,126 @@
+//! The kinetics engine against outside references: stiff test problems with published
+//! solutions, closed forms from textbooks, and the photostationary state.
+
+use photoledger::file::parse_text;
+use photoledger::kinetics::{self, Method, Options};
+use photoledger::model::Model;
+use photoledger::network::{Network, Overrides, build};
+use std::path::Path;
+
+fn network(text: &str) -> Network {
+    let l = parse_text(Path::new("test.toml"), text.to_string()).expect("parses");
+    match build(&l, &Overrides::none()) {
+        Ok(n) => n,
+        Err(e) => panic!("{e}"),
+    }
+}
+
+fn run(net: &Network, until: f64, method: Method, rtol: f64, atol: f64) -> kinetics::Trajectory {
+    let model = Model::compile(net);
+    let mut opts = Options::until(until);
+    opts.method = method;
+    opts.rtol = rtol;
+    opts.atol = atol;
+    opts.outputs = 10;
+    kinetics::simulate(&model, &opts, &mut |_| {}).expect("integrates")
+}
+
+const ROBERTSON: &str = r#"
+[conditions]
+temperature = "298.15 K"
+volume = "1 L"
+path_length = "1 cm"
+[[species]]
+name = "y1"
+initial = "1 M"
+[[species]]
+name = "y2"
+[[species]]
+name = "y3"
+[[thermal]]
+equation = "y1 -> y2"
+rate = { k = "0.04 /s" }
+[[thermal]]
+equation = "2 y2 -> y2 + y3"
+rate = { k = "3e7 /(M s)" }
+[[thermal]]
+equation = "y2 + y3 -> y1 + y3"
+rate = { k = "1e4 /(M s)" }
+"#;
+
+// Robertson's problem written as a thermal network. Note the IUPAC convention: for
+// 2 y2 -> y2 + y3, d[y2]/dt = −k[y2]² (net coefficient −1) and d[y3]/dt = +k[y2]², which is
+// exactly Robertson's −3e7 y2² and +3e7 y2².
+#[test]
+fn robertson_at_40_s() {
+    // Enright & Pryce, ACM TOMS 13(1), 1987, stiff test set problem D2 (Robertson rescaled:
+    // Y2 = 1e4 y2, Y3 = 100 y3): y(40) = (0.7158270687193941, 9.185534764557338e-6, 0.2841637457458413).
+    let net = network(ROBERTSON);
+    let tr = run(&net, 40.0, Method::Bdf, 1e-10, 1e-16);
+    let y = tr.last();
+    let want = [0.7158270687193941, 9.185534764557338e-6, 0.2841637457458413];
+    for i in 0..3 {
+        assert!((y[i] - want[i]).abs() <= 1e-6 * want[i].abs(), "y{} = {} vs {}", i + 1, y[i], want[i]);
+    }
+}
+
+#[test]
+fn robertson_at_1e11_s() {
+    // Mazzia & Magherini, Test Set for Initial Value Problem Solvers, release 2.4, University
+    // of Bari, 2008, problem ROBER: y(1e11) = (2.083340149701255e-8, 8.333360770334713e-14,
+    // 0.9999999791665050).
+    let net = network(ROBERTSON);
+    let mut opts = Options::until(1e11);
+    opts.method = Method::Bdf;
+    opts.rtol = 1e-10;
+    opts.atol = 1e-20;
+    opts.log_time = true;
+    opts.outputs = 20;
+    let model = Model::compile(&net);
+    let tr = kinetics::simulate(&model, &opts, &mut |_| {}).unwrap();
+    let y = tr.last();
+    let want = [2.083340149701255e-8, 8.333360770334713e-14, 0.9999999791665050];
+    for i in 0..3 {
+        assert!((y[i] - want[i]).abs() <= 1e-4 * want[i].abs(), "y{} = {:e} vs {:e}", i + 1, y[i], want[i]);
+    }
+}
+
+#[test]
+fn bateman_chain_and_both_integrators() {
+    // A -> B -> C, first order: the Bateman closed form (Bateman, Proc. Cambridge Phil. Soc.
+    // 15 (1910) 423): B(t) = A0 k1/(k2 − k1) (e^(−k1 t) − e^(−k2 t)).
+    let net = network(
+        r#"
+[conditions]
+temperature = "298.15 K"
+volume = "1 L"
+path_length = "1 cm"
+[[species]]
+name = "A"
+initial = "1 mM"
+[[species]]
+name = "B"
+[[species]]
+name = "C"
+[[thermal]]
+equation = "A -> B"
+rate = { k = "0.3 /s" }
+[[thermal]]
+equation = "B -> C"
+rate = { k = "0.1 /s" }
+"#,
+    );
+    let (k1, k2, a0) = (0.3f64, 0.1f64, 1e-3);
+    // Global error allowance: BDF (order ≤ 5) at rtol 1e-9 keeps about 1e-7 of the scale;
+    // Dop853 (order 8) much closer.
+    for (method, tol) in [(Method::Bdf, 1e-7), (Method::Dop853, 1e-9)] {
+        let tr = run(&net, 20.0, method, 1e-9, 1e-15);
+        for (t, s) in tr.times.iter().zip(&tr.states) {
+            let a = a0 * (-k1 * t).exp();
+            let b = a0 * k1 / (k2 - k1) * ((-k1 * t).exp() - (-k2 * t).exp());
+            assert!((s[0] - a).abs() < tol * a0, "{method:?} A at {t}: {} vs {a}", s[0]);
+            assert!((s[1] - b).abs() < tol * a0, "{method:?} B at {t}: {} vs {b}", s[1]);
+            assert!((s[0] + s[1] + s[2] - a0).abs() < 1e-12, "mass balance");
+        }
+    }
+}
