@@ -6,6 +6,7 @@
 
 mod check;
 mod diagram;
+mod simulate;
 
 use clap::{Parser, Subcommand};
 use photoledger::Error;
@@ -39,6 +40,8 @@ enum Command {
         #[arg(long, short)]
         quiet: bool,
     },
+    /// Integrate the kinetics under the network's light and keep the photon ledger.
+    Simulate(simulate::SimulateArgs),
     /// Draw the network as SVG (species, transients, thermal and photochemical steps).
     Diagram {
         #[command(flatten)]
@@ -64,6 +67,7 @@ pub fn run() -> i32 {
     let result = match cli.command {
         Command::Check { net, quiet } => check::run(&net, quiet),
         Command::Diagram { net, out, dot } => diagram::run(&net, &out, dot),
+        Command::Simulate(a) => simulate::run(&a),
     };
     match result {
         Ok(()) => 0,

@@ -212,9 +212,19 @@ pub fn simulate(model: &Model, opts: &Options, progress: &mut dyn FnMut(f64)) ->
         }
     };
     let times = output_times(opts);
-    let mut run = match method {
-        Method::Bdf => solve_bdf::run(&rhs, &y0, &times, opts, progress)?,
-        _ => solve_dop::run(&rhs, &y0, &times, opts, progress)?,
+    let (mut run, method, reason) = match method {
+        Method::Bdf => (solve_bdf::run(&rhs, &y0, &times, opts, progress)?, method, reason),
+        _ => match solve_dop::run(&rhs, &y0, &times, opts, progress) {
+            Ok(r) => (r, method, reason),
+            // The start looked non-stiff but the run became stiff: say so and use BDF.
+            Err(e) if opts.method == Method::Auto => {
+                rhs.rhs_calls.set(0);
+                rhs.jac_calls.set(0);
+                let r = solve_bdf::run(&rhs, &y0, &times, opts, progress)?;
+                (r, Method::Bdf, format!("BDF: {reason}, but the explicit method gave up ({e}), so the run was repeated with BDF"))
+            }
+            Err(e) => return Err(e),
+        },
     };
     run.counts.rhs = rhs.rhs_calls.get();
     run.counts.jacobian_products = rhs.jac_calls.get();

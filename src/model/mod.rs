@@ -90,7 +90,7 @@ pub struct Model {
     pub outcomes: Vec<Outcome>,
     /// The transient chain, for outcomes through transients.
     pub collapse: Collapse,
-    /// Species named as products, or that nothing consumes (the chain's absorbing states).
+    /// Species named as products, or produced and never consumed (the chain's absorbing states).
     pub products: Vec<usize>,
 }
 
@@ -210,6 +210,22 @@ impl Model {
             }
         }
         let mut consumed = vec![false; net.species.len()];
+        let mut produced = vec![false; net.species.len()];
+        for r in &reactions {
+            let r: &Reaction = r;
+            for &(s, v) in &r.net {
+                if v > 0.0 {
+                    produced[s] = true;
+                }
+            }
+        }
+        for o in &outcomes {
+            for &(s, v) in &o.net {
+                if v > 0.0 {
+                    produced[s] = true;
+                }
+            }
+        }
         for t in &net.thermal {
             for r in &t.reactants {
                 consumed[r.species] = true;
@@ -222,7 +238,7 @@ impl Model {
                 }
             }
         }
-        let products = (0..net.species.len()).filter(|&i| net.species[i].product || !consumed[i]).collect();
+        let products = (0..net.species.len()).filter(|&i| net.species[i].product || (produced[i] && !consumed[i])).collect();
         Model {
             species,
             initial,

@@ -2,6 +2,7 @@
 //! strings, plus [`write_atomic`], the one way outputs reach the disk.
 
 pub mod diagram;
+pub mod simulation;
 pub mod summary;
 
 use crate::error::{Error, Result};

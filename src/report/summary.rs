@@ -185,3 +185,45 @@ pub fn network_summary(net: &Network) -> String {
 fn first_line(t: &str) -> &str {
     t.lines().next().unwrap_or("")
 }
+
+/// A readable summary of a kinetics run: final concentrations, the photon ledger, the cost
+/// of each product, and which integrator ran.
+pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "{}{}: {} ({})", s.network, if s.invented { " (invented scenario)" } else { "" }, crate::units::format_time(s.end_time_s), s.stopped_by);
+    let _ = writeln!(o, "\nfinal concentrations");
+    for (n, c) in &s.final_concentrations_mol_per_l {
+        let _ = writeln!(o, "  {n:<16} {:>12}", format_concentration(*c));
+    }
+    let p = &s.photons;
+    let _ = writeln!(o, "\nphotons (einstein)");
+    let _ = writeln!(o, "  incident        {}", sig(p.incident, 4));
+    for a in &p.by_absorber {
+        let share = if p.incident > 0.0 { 100.0 * a.absorbed / p.incident } else { 0.0 };
+        let _ = writeln!(o, "  absorbed by {:<16} {:>10}  ({}% of incident; {} returned, {} productive)", a.species, sig(a.absorbed, 4), sig(share, 3), sig(a.returned, 3), sig(a.productive, 3));
+    }
+    let bg: f64 = p.sources.iter().map(|x| x.background).sum();
+    let tr: f64 = p.sources.iter().map(|x| x.transmitted).sum();
+    let _ = writeln!(o, "  background      {}", sig(bg, 4));
+    let _ = writeln!(o, "  transmitted     {}", sig(tr, 4));
+    let _ = writeln!(o, "  balance         incident − absorbed − background − transmitted = {} of incident", sig(p.balance_error, 2));
+    let _ = writeln!(o, "  inner filters   {}% of incident photons taken by species that never react or by the background", sig(100.0 * p.inner_filter_fraction, 3));
+    if !p.products.is_empty() {
+        let _ = writeln!(o, "\nproducts");
+        for pr in &p.products {
+            match pr.photons_per_molecule {
+                Some(n) => {
+                    let _ = writeln!(o, "  {:<16} {} mol formed, {} photons absorbed per molecule (apparent Φ {})", pr.species, sig(pr.formed, 4), sig(n, 4), sig(1.0 / n, 3));
+                }
+                None => {
+                    let _ = writeln!(o, "  {:<16} none formed", pr.species);
+                }
+            }
+        }
+    }
+    let m = &s.method;
+    let _ = writeln!(o, "\nintegrator  {} — {}; {} steps ({} rejected), {} RHS evaluations, {} Jacobian products, {} Jacobian set-ups", m.name, m.reason, m.steps, m.rejected_steps, m.rhs_evaluations, m.jacobian_products, m.jacobian_setups);
+    let _ = writeln!(o, "assumes     {}", s.assumptions);
+    let _ = writeln!(o, "caution     {}", s.cautions);
+    o
+}

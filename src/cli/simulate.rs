@@ -1,0 +1,90 @@
+//! `photoledger simulate FILE --until DURATION [--out DIR] [--json]`.
+
+use super::{NetworkArgs, load, print_warnings};
+use photoledger::Error;
+use photoledger::kinetics::{self, Method, Options};
+use photoledger::model::Model;
+use photoledger::report::{simulation, write_atomic};
+use photoledger::units::{self, Quantity};
+use std::io::IsTerminal;
+use std::path::PathBuf;
+
+/// Options of `simulate`.
+#[derive(clap::Args, Debug)]
+pub struct SimulateArgs {
+    #[command(flatten)]
+    pub net: NetworkArgs,
+    /// How long to irradiate, e.g. "2 h", "30 min", "5 d".
+    #[arg(long, value_name = "DURATION")]
+    pub until: String,
+    /// Output folder (default: a folder named after the network file).
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+    /// Print the summary JSON to stdout.
+    #[arg(long)]
+    pub json: bool,
+    /// Integrator: auto, bdf or dop853.
+    #[arg(long, default_value = "auto")]
+    pub method: String,
+    /// Relative tolerance.
+    #[arg(long, default_value_t = 1e-6)]
+    pub rtol: f64,
+    /// Absolute tolerance on concentrations, e.g. "1e-12 M".
+    #[arg(long, default_value = "1e-12 M")]
+    pub atol: String,
+    /// Number of output times.
+    #[arg(long, default_value_t = 200)]
+    pub points: usize,
+    /// Space output times logarithmically (and plot a log time axis).
+    #[arg(long)]
+    pub log_time: bool,
+}
+
+pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {
+    let net = load(&a.net)?;
+    print_warnings(&net);
+    let until = units::parse(&a.until, Quantity::Time).map_err(|e| Error::Usage(format!("--until: {e}; expected {}", Quantity::Time.accepted())))?;
+    let atol = units::parse(&a.atol, Quantity::Concentration).map_err(|e| Error::Usage(format!("--atol: {e}; expected {}", Quantity::Concentration.accepted())))?;
+    let method = match a.method.as_str() {
+        "auto" => Method::Auto,
+        "bdf" => Method::Bdf,
+        "dop853" => Method::Dop853,
+        m => return Err(Error::Usage(format!("--method {m}: expected auto, bdf or dop853"))),
+    };
+    let model = Model::compile(&net);
+    let mut opts = Options::until(until);
+    opts.method = method;
+    opts.rtol = a.rtol;
+    opts.atol = atol;
+    opts.outputs = a.points.max(2);
+    opts.log_time = a.log_time;
+    let bar = if std::io::stderr().is_terminal() {
+        let b = indicatif::ProgressBar::new(1000);
+        b.set_style(indicatif::ProgressStyle::with_template("{bar:40} {percent:>3}% of the time span  {elapsed}").unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()));
+        b
+    } else {
+        indicatif::ProgressBar::hidden()
+    };
+    let tr = kinetics::simulate(&model, &opts, &mut |f| bar.set_position((f * 1000.0) as u64))?;
+    bar.finish_and_clear();
+    let summary = simulation::summary(&net, &model, &tr, opts.rtol, opts.atol);
+    let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
+    let dir = a.out.clone().unwrap_or_else(|| {
+        PathBuf::from(a.net.file.file_stem().map(|s| s.to_string_lossy().to_string()).unwrap_or_else(|| "simulation".into()))
+    });
+    write_atomic(&dir.join("concentrations.csv"), simulation::concentrations_csv(&model, &tr).as_bytes())?;
+    write_atomic(&dir.join("photons.csv"), simulation::photons_csv(&model, &tr).as_bytes())?;
+    write_atomic(&dir.join("summary.json"), json.as_bytes())?;
+    write_atomic(&dir.join("concentrations.svg"), simulation::concentrations_svg(&net, &model, &tr, a.log_time).as_bytes())?;
+    write_atomic(&dir.join("photons.svg"), simulation::photons_svg(&net, &model, &tr, a.log_time).as_bytes())?;
+    if a.json {
+        println!("{json}");
+    } else {
+        print!("{}", photoledger::report::summary::run_summary(&summary));
+        println!("wrote {}/ (concentrations.csv, photons.csv, summary.json, concentrations.svg, photons.svg)", dir.display());
+    }
+    for n in &summary.negative_concentrations {
+        eprintln!("warning: {} went negative ({:e} mol/L at {} s) beyond the tolerance; tighten --rtol/--atol", n.0, n.2, n.1);
+    }
+    Ok(())
+}

@@ -1,0 +1,281 @@
+//! What a kinetics run writes: concentration and photon CSVs, the summary JSON, and plots.
+
+use crate::kinetics::ledger::{self, Ledger};
+use crate::kinetics::{Method, Stop, Trajectory};
+use crate::model::Model;
+use crate::network::Network;
+use plotters::prelude::*;
+use serde::Serialize;
+use std::fmt::Write;
+
+/// The cautions every report carries.
+pub const CAUTIONS: &str = "UV and intense visible light damage eyes and skin; lamps run hot; many photochemical \
+feedstocks are toxic. Local regulations and institutional safety practice take precedence.";
+
+/// Assumptions of the kinetics model, stated in every summary.
+pub const ASSUMPTIONS: &str = "well-stirred cell; light enters one face and crosses the stated path length; \
+absorbances add (Beer–Lambert); transients are collapsed into effective quantum yields; mass-action thermal kinetics";
+
+/// concentrations.csv: time and every species, units in the header.
+pub fn concentrations_csv(model: &Model, tr: &Trajectory) -> String {
+    let mut s = String::from("time (s)");
+    for n in &model.species {
+        let _ = write!(s, ",{n} (mol/L)");
+    }
+    s.push('\n');
+    for (t, y) in tr.times.iter().zip(&tr.states) {
+        let _ = write!(s, "{t:e}");
+        for v in &y[..model.n_species()] {
+            let _ = write!(s, ",{v:e}");
+        }
+        s.push('\n');
+    }
+    s
+}
+
+/// photons.csv: cumulative photons (einstein) incident, absorbed by each absorber,
+/// background, transmitted, and per outcome; and photons per molecule of each product.
+pub fn photons_csv(model: &Model, tr: &Trajectory) -> String {
+    let mut s = String::from("time (s),incident (einstein)");
+    for a in &model.absorbers {
+        let _ = write!(s, ",absorbed by {} (einstein)", model.species[*a]);
+    }
+    s.push_str(",background (einstein),transmitted (einstein)");
+    for o in &model.outcomes {
+        let _ = write!(s, ",{}{} (einstein)", o.label, if o.returns { " [return]" } else { "" });
+    }
+    for p in &model.products {
+        let _ = write!(s, ",photons per {} (1)", model.species[*p]);
+    }
+    s.push('\n');
+    for (t, y) in tr.times.iter().zip(&tr.states) {
+        let l = ledger::read(model, &tr.layout, *t, y);
+        let _ = write!(s, "{t:e},{:e}", l.incident);
+        for a in &l.by_absorber {
+            let _ = write!(s, ",{:e}", a.absorbed);
+        }
+        let bg: f64 = l.sources.iter().map(|x| x.background).sum();
+        let tr_: f64 = l.sources.iter().map(|x| x.transmitted).sum();
+        let _ = write!(s, ",{bg:e},{tr_:e}");
+        for o in 0..model.outcomes.len() {
+            let _ = write!(s, ",{:e}", y[tr.layout.outcome(o)] * model.volume);
+        }
+        for p in &l.products {
+            match p.photons_per_molecule {
+                Some(v) => {
+                    let _ = write!(s, ",{v:e}");
+                }
+                None => s.push(','),
+            }
+        }
+        s.push('\n');
+    }
+    s
+}
+
+/// The summary of a run, as written to summary.json.
+#[derive(Debug, Serialize)]
+pub struct Summary {
+    /// Network name.
+    pub network: String,
+    /// True for an invented scenario.
+    pub invented: bool,
+    /// photoledger version.
+    pub version: String,
+    /// End time reached, s.
+    pub end_time_s: f64,
+    /// How the run stopped.
+    pub stopped_by: String,
+    /// Integrator, and why it was chosen.
+    pub method: MethodSummary,
+    /// Final concentrations, mol/L, by species.
+    pub final_concentrations_mol_per_l: Vec<(String, f64)>,
+    /// The photon ledger at the end.
+    pub photons: Ledger,
+    /// Species that went negative beyond tolerance: (species, time s, value mol/L).
+    pub negative_concentrations: Vec<(String, f64, f64)>,
+    /// Model assumptions.
+    pub assumptions: String,
+    /// Safety cautions.
+    pub cautions: String,
+}
+
+/// Integrator details in the summary.
+#[derive(Debug, Serialize)]
+pub struct MethodSummary {
+    /// "BDF" or "Dop853".
+    pub name: String,
+    /// Why.
+    pub reason: String,
+    /// Accepted steps.
+    pub steps: usize,
+    /// Rejected steps.
+    pub rejected_steps: usize,
+    /// Right-hand-side evaluations.
+    pub rhs_evaluations: usize,
+    /// Jacobian-vector products.
+    pub jacobian_products: usize,
+    /// Jacobian (LU) set-ups.
+    pub jacobian_setups: usize,
+    /// Relative and absolute tolerances.
+    pub rtol: f64,
+    /// Absolute tolerance, mol/L.
+    pub atol: f64,
+}
+
+/// Build the summary of a run.
+pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f64) -> Summary {
+    let t = *tr.times.last().unwrap_or(&0.0);
+    let y = tr.last();
+    Summary {
+        network: net.about.name.clone(),
+        invented: net.about.invented,
+        version: env!("CARGO_PKG_VERSION").to_string(),
+        end_time_s: t,
+        stopped_by: match tr.stop {
+            Stop::EndTime => "end time".into(),
+            Stop::Event(te) => format!("event at {te} s"),
+        },
+        method: MethodSummary {
+            name: match tr.method {
+                Method::Dop853 => "Dop853".into(),
+                _ => "BDF".into(),
+            },
+            reason: tr.method_reason.clone(),
+            steps: tr.counts.steps,
+            rejected_steps: tr.counts.rejected,
+            rhs_evaluations: tr.counts.rhs,
+            jacobian_products: tr.counts.jacobian_products,
+            jacobian_setups: tr.counts.jacobian_setups,
+            rtol,
+            atol,
+        },
+        final_concentrations_mol_per_l: model.species.iter().cloned().zip(y.iter().copied()).collect(),
+        photons: ledger::read(model, &tr.layout, t, y),
+        negative_concentrations: tr
+            .negatives
+            .iter()
+            .map(|n| (model.species[n.species].clone(), n.time, n.value))
+            .collect(),
+        assumptions: ASSUMPTIONS.into(),
+        cautions: CAUTIONS.into(),
+    }
+}
+
+/// Choose a time unit for axes.
+fn time_unit(t_end: f64) -> (f64, &'static str) {
+    if t_end >= 3.0 * 86400.0 {
+        (86400.0, "d")
+    } else if t_end >= 3.0 * 3600.0 {
+        (3600.0, "h")
+    } else if t_end >= 180.0 {
+        (60.0, "min")
+    } else {
+        (1.0, "s")
+    }
+}
+
+const PALETTE: [RGBColor; 10] = [
+    RGBColor(31, 119, 180),
+    RGBColor(214, 39, 40),
+    RGBColor(44, 160, 44),
+    RGBColor(148, 103, 189),
+    RGBColor(255, 127, 14),
+    RGBColor(23, 190, 207),
+    RGBColor(140, 86, 75),
+    RGBColor(227, 119, 194),
+    RGBColor(127, 127, 127),
+    RGBColor(188, 189, 34),
+];
+
+/// A line plot of several series against time, as SVG text.
+fn line_plot(title: &str, y_label: &str, times: &[f64], series: &[(String, Vec<f64>)], log_time: bool) -> String {
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
+        let _ = root.fill(&WHITE);
+        let t_end = times.iter().cloned().fold(0.0, f64::max).max(1e-30);
+        let (tu, tname) = time_unit(t_end);
+        let ymax = series.iter().flat_map(|s| s.1.iter()).cloned().fold(0.0, f64::max);
+        let (yscale, yunit) = scale_for(ymax, y_label);
+        let ytop = if ymax > 0.0 { ymax / yscale * 1.05 } else { 1.0 };
+        let draw = |root: &DrawingArea<SVGBackend, plotters::coord::Shift>| -> Result<(), Box<dyn std::error::Error + '_>> {
+            let mut b = ChartBuilder::on(root);
+            b.caption(title, ("sans-serif", 22)).margin(16).x_label_area_size(48).y_label_area_size(80);
+            let xs: Vec<f64> = times.iter().map(|t| t / tu).collect();
+            let pts = |s: &Vec<f64>| -> Vec<(f64, f64)> { xs.iter().zip(s).map(|(x, y)| (*x, y / yscale)).collect() };
+            if log_time {
+                let x0 = xs.iter().cloned().filter(|x| *x > 0.0).fold(f64::INFINITY, f64::min);
+                let x1 = xs.iter().cloned().fold(0.0, f64::max);
+                let mut c = b.build_cartesian_2d((x0..x1).log_scale(), 0.0..ytop)?;
+                c.configure_mesh().x_desc(format!("time ({tname}, log scale)")).y_desc(yunit.clone()).label_style(("sans-serif", 15)).draw()?;
+                for (i, (name, s)) in series.iter().enumerate() {
+                    let col = PALETTE[i % PALETTE.len()];
+                    let p: Vec<(f64, f64)> = pts(s).into_iter().filter(|p| p.0 > 0.0).collect();
+                    c.draw_series(LineSeries::new(p, col.stroke_width(2)))?.label(name.clone()).legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
+                }
+                c.configure_series_labels().background_style(WHITE.mix(0.85)).border_style(BLACK).label_font(("sans-serif", 15)).draw()?;
+            } else {
+                let x1 = xs.iter().cloned().fold(0.0, f64::max).max(1e-30);
+                let mut c = b.build_cartesian_2d(0.0..x1, 0.0..ytop)?;
+                c.configure_mesh().x_desc(format!("time ({tname})")).y_desc(yunit.clone()).label_style(("sans-serif", 15)).draw()?;
+                for (i, (name, s)) in series.iter().enumerate() {
+                    let col = PALETTE[i % PALETTE.len()];
+                    c.draw_series(LineSeries::new(pts(s), col.stroke_width(2)))?.label(name.clone()).legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
+                }
+                c.configure_series_labels().background_style(WHITE.mix(0.85)).border_style(BLACK).label_font(("sans-serif", 15)).draw()?;
+            }
+            Ok(())
+        };
+        let _ = draw(&root);
+        let _ = root.present();
+    }
+    svg
+}
+
+/// A scale factor and axis label for values up to `max` of a quantity named `label`.
+fn scale_for(max: f64, label: &str) -> (f64, String) {
+    if label == "concentration" {
+        let (f, u) = if max >= 0.5 {
+            (1.0, "M")
+        } else if max >= 5e-4 {
+            (1e-3, "mM")
+        } else if max >= 5e-7 {
+            (1e-6, "µM")
+        } else {
+            (1e-9, "nM")
+        };
+        (f, format!("concentration ({u})"))
+    } else {
+        let (f, u) = if max >= 0.5 {
+            (1.0, "einstein")
+        } else if max >= 5e-4 {
+            (1e-3, "millieinstein")
+        } else if max >= 5e-7 {
+            (1e-6, "µeinstein")
+        } else {
+            (1e-9, "neinstein")
+        };
+        (f, format!("photons ({u})"))
+    }
+}
+
+/// concentrations.svg.
+pub fn concentrations_svg(net: &Network, model: &Model, tr: &Trajectory, log_time: bool) -> String {
+    // Solvent-like species (1 M or more at the start) would flatten every other curve.
+    let series: Vec<(String, Vec<f64>)> =
+        (0..model.n_species()).filter(|&i| model.initial[i] < 1.0).map(|i| (model.species[i].clone(), tr.series(i))).collect();
+    line_plot(&format!("{}: concentrations", net.about.name), "concentration", &tr.times, &series, log_time)
+}
+
+/// photons.svg: cumulative photons incident, absorbed by each species, background and transmitted.
+pub fn photons_svg(net: &Network, model: &Model, tr: &Trajectory, log_time: bool) -> String {
+    let ledgers: Vec<Ledger> = tr.times.iter().zip(&tr.states).map(|(t, y)| ledger::read(model, &tr.layout, *t, y)).collect();
+    let mut series = vec![("incident".to_string(), ledgers.iter().map(|l| l.incident).collect::<Vec<_>>())];
+    for (k, a) in model.absorbers.iter().enumerate() {
+        series.push((format!("absorbed by {}", model.species[*a]), ledgers.iter().map(|l| l.by_absorber[k].absorbed).collect()));
+    }
+    series.push(("background".into(), ledgers.iter().map(|l| l.sources.iter().map(|s| s.background).sum()).collect()));
+    series.push(("transmitted".into(), ledgers.iter().map(|l| l.sources.iter().map(|s| s.transmitted).sum()).collect()));
+    line_plot(&format!("{}: where the photons went", net.about.name), "photons", &tr.times, &series, log_time)
+}
