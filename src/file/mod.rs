@@ -47,9 +47,19 @@ pub fn parse_text(path: &Path, text: String) -> Result<Loaded> {
         Err(e) => {
             let origin = e.span().map_or(Origin::Unknown, Origin::Span);
             let msg = e.message().trim().to_string();
-            let d = Diagnostic::error("", format!("cannot read the file: {msg}"))
-                .with_help("see the format reference in README.md")
-                .at(path, &text, &origin);
+            // Show the offending line: TOML's own message names the type, not always the key.
+            let line = match &origin {
+                Origin::Span(r) => {
+                    let (l, _) = crate::error::line_col(&text, r.start);
+                    text.lines().nth(l - 1).map(|s| format!("line {l}: {}", s.trim()))
+                }
+                _ => None,
+            };
+            let help = match line {
+                Some(l) => format!("{l}\n  (the format reference is in README.md; a table stops at the first problem of this kind)"),
+                None => "see the format reference in README.md".to_string(),
+            };
+            let d = Diagnostic::error("", format!("not a valid network file here: {msg}")).with_help(help).at(path, &text, &origin);
             return Err(Error::invalid(d));
         }
     };

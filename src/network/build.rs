@@ -24,11 +24,8 @@ pub fn build(loaded: &Loaded, overrides: &Overrides) -> Result<Network> {
     };
     let net = b.network();
     for key in overrides.unused() {
-        b.diags.push(
-            Diagnostic::error(format!("--set {key}"), "no such field in this network")
-                .with_help(format!("keys that can be set: {ACCEPTED}"))
-                .in_file(&loaded.path),
-        );
+        let d = unused_override(loaded, &key);
+        b.diags.push(d.in_file(&loaded.path));
     }
     let has_error = b.diags.iter().any(|d| d.severity == crate::error::Severity::Error);
     match net {
@@ -1585,6 +1582,52 @@ fn example_k(order: u32) -> &'static str {
         1 => "0.04 /s",
         2 => "1e4 /(M s)",
         _ => "1e8 /(M2 s)",
+    }
+}
+
+/// Explain why an override key matched nothing.
+fn unused_override(loaded: &Loaded, key: &str) -> Diagnostic {
+    let field = format!("--set {key}");
+    let parts: Vec<&str> = key.splitn(3, '.').collect();
+    let generic = || Diagnostic::error(&field, "no such field in this network").with_help(format!("keys that can be set: {ACCEPTED}"));
+    match parts.as_slice() {
+        ["light", name, f] => {
+            let lights: Vec<(String, String)> = loaded
+                .doc
+                .light
+                .iter()
+                .enumerate()
+                .map(|(i, l)| {
+                    let l = l.get_ref();
+                    (
+                        l.name.as_ref().map_or(format!("light{}", i + 1), |n| n.get_ref().trim().to_string()),
+                        l.kind.as_ref().map_or(String::new(), |k| k.get_ref().trim().to_string()),
+                    )
+                })
+                .collect();
+            match lights.iter().find(|l| l.0 == *name) {
+                Some((_, kind)) => Diagnostic::error(&field, format!("`{f}` does not apply to the light \"{name}\" of kind \"{kind}\"")).with_help(
+                    match kind.as_str() {
+                        "line" => "a line takes wavelength, power or photon_flux",
+                        "band" => "a band takes centre, fwhm, power or photon_flux",
+                        "lamp" => "a lamp takes power or photon_flux",
+                        _ => "sunlight takes scale (and conditions.irradiated_area)",
+                    },
+                ),
+                None => {
+                    let hint = super::suggest::closest(name, lights.iter().map(|l| l.0.as_str()))
+                        .map_or("no light has that name".to_string(), |c| format!("did you mean light.{c}.{f}?"));
+                    Diagnostic::error(&field, format!("no light called \"{name}\"")).with_help(hint)
+                }
+            }
+        }
+        ["species", name, _] => {
+            let names: Vec<String> = loaded.doc.species.iter().filter_map(|s| s.get_ref().name.as_ref().map(|n| n.get_ref().trim().to_string())).collect();
+            let hint = super::suggest::closest(name, names.iter().map(|s| s.as_str()))
+                .map_or(format!("keys that can be set: {ACCEPTED}"), |c| format!("did you mean species.{c}.initial?"));
+            Diagnostic::error(&field, format!("no species called \"{name}\", or no such field")).with_help(hint)
+        }
+        _ => generic(),
     }
 }
 

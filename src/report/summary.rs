@@ -19,11 +19,11 @@ pub fn network_summary(net: &Network) -> String {
             ""
         }
     );
-    if !net.about.description.is_empty() {
-        let _ = writeln!(s, "         {}", first_line(&net.about.description));
+    for (i, l) in net.about.description.lines().filter(|l| !l.trim().is_empty()).enumerate() {
+        let _ = writeln!(s, "{}{}", if i == 0 { "         " } else { "         " }, l.trim());
     }
-    if !net.about.provenance.is_empty() {
-        let _ = writeln!(s, "numbers  {}", first_line(&net.about.provenance));
+    for (i, l) in net.about.provenance.lines().filter(|l| !l.trim().is_empty()).enumerate() {
+        let _ = writeln!(s, "{}{}", if i == 0 { "numbers  " } else { "         " }, l.trim());
     }
     let _ = writeln!(
         s,
@@ -34,21 +34,18 @@ pub fn network_summary(net: &Network) -> String {
         c.irradiated_area
             .map_or(String::new(), |a| format!(", irradiated area {} cm²", sig(a * 1e4, 4)))
     );
-    let n_abs = net.species_absorbing().len();
+    let n_abs = net.species.iter().filter(|x| x.epsilon.as_ref().is_some_and(|e| e.max() > 0.0)).count();
+    let plural = |n: usize, one: &str, many: &str| format!("{n} {}", if n == 1 { one } else { many });
     let n_rev = net.thermal.iter().filter(|t| t.reverse_of.is_some()).count();
     let _ = writeln!(
         s,
-        "holds    {} species ({} absorbing), {} thermal steps{}, {} photochemical steps, {} transients",
-        net.species.len(),
+        "holds    {} ({} absorbing), {}{}, {}, {}",
+        plural(net.species.len(), "species", "species"),
         n_abs,
-        net.thermal.len() - n_rev,
-        if n_rev > 0 {
-            format!(" ({n_rev} reversible)")
-        } else {
-            String::new()
-        },
-        net.photo.len(),
-        net.transients.len()
+        plural(net.thermal.len() - n_rev, "thermal step", "thermal steps"),
+        if n_rev > 0 { format!(" ({n_rev} reversible)") } else { String::new() },
+        plural(net.photo.len(), "photochemical step", "photochemical steps"),
+        plural(net.transients.len(), "transient", "transients")
     );
     let _ = writeln!(s, "\nlight");
     if net.lights.is_empty() {
@@ -80,18 +77,20 @@ pub fn network_summary(net: &Network) -> String {
         let eps = match &sp.epsilon {
             None => String::new(),
             Some(e) => {
-                // ε at the light's peak photon bin, in the trade's unit.
+                // The largest ε over the wavelengths the light carries, in the trade's unit.
                 let best = net
                     .lights
                     .iter()
                     .flat_map(|l| &l.bins)
-                    .max_by(|a, b| a.flux.total_cmp(&b.flux));
+                    .map(|b| (b.wavelength, e.at(b.wavelength)))
+                    .max_by(|a, b| a.1.total_cmp(&b.1));
                 match best {
-                    Some(b) => format!(
-                        "  ε({} nm) = {} L/(mol cm)",
-                        sig(b.wavelength * 1e9, 4),
-                        sig(crate::units::epsilon_to_per_cm(e.at(b.wavelength)), 4)
+                    Some((w, v)) if v > 0.0 => format!(
+                        "  ε up to {} L/(mol cm) under the light (at {} nm)",
+                        sig(crate::units::epsilon_to_per_cm(v), 4),
+                        sig(w * 1e9, 4)
                     ),
+                    Some(_) => "  ε = 0 under the light".to_string(),
                     None => String::new(),
                 }
             }
@@ -155,8 +154,18 @@ pub fn network_summary(net: &Network) -> String {
     }
     if !net.transients.is_empty() {
         let _ = writeln!(s, "\ntransients");
+        let c0: Vec<f64> = net.species.iter().map(|x| x.initial).collect();
         for t in &net.transients {
             let _ = writeln!(s, "  {} ({})", t.name, t.kind.word());
+            let total: f64 = t
+                .channels
+                .iter()
+                .map(|c| match c.branching {
+                    Branching::Rate { k, .. } => k,
+                    Branching::Quenching { partner, k2, .. } => k2 * c0[partner],
+                    _ => 0.0,
+                })
+                .sum();
             for ch in &t.channels {
                 let to = match &ch.target {
                     Target::Species(ts) => net.side(ts),
@@ -165,10 +174,15 @@ pub fn network_summary(net: &Network) -> String {
                 let how = match &ch.branching {
                     Branching::Fraction(x) => format!("fraction {}", sig(*x, 4)),
                     Branching::Rest => "the rest".into(),
-                    Branching::Rate { k, .. } => format!("k = {} /s", sig(*k, 4)),
-                    Branching::Quenching { partner, k2, .. } => {
-                        format!("quenched by {}: k = {} /(M s)", net.species[*partner].name, sig(*k2, 4))
+                    Branching::Rate { k, .. } => {
+                        format!("k = {} /s, share {}% at the start", sig(*k, 4), sig(100.0 * k / total.max(f64::MIN_POSITIVE), 3))
                     }
+                    Branching::Quenching { partner, k2, .. } => format!(
+                        "quenched by {}: k = {} /(M s), share {}% at the start",
+                        net.species[*partner].name,
+                        sig(*k2, 4),
+                        sig(100.0 * k2 * c0[*partner] / total.max(f64::MIN_POSITIVE), 3)
+                    ),
                 };
                 let _ = writeln!(
                     s,
@@ -180,10 +194,6 @@ pub fn network_summary(net: &Network) -> String {
         }
     }
     s
-}
-
-fn first_line(t: &str) -> &str {
-    t.lines().next().unwrap_or("")
 }
 
 /// A readable summary of a kinetics run: final concentrations, the photon ledger, the cost
