@@ -43,8 +43,10 @@ pub struct SimulateArgs {
 pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {
     let net = load(&a.net)?;
     print_warnings(&net);
-    let until = units::parse(&a.until, Quantity::Time).map_err(|e| Error::Usage(format!("--until: {e}; expected {}", Quantity::Time.accepted())))?;
-    let atol = units::parse(&a.atol, Quantity::Concentration).map_err(|e| Error::Usage(format!("--atol: {e}; expected {}", Quantity::Concentration.accepted())))?;
+    let until = units::parse(&a.until, Quantity::Time)
+        .map_err(|e| Error::Usage(format!("--until: {e}; expected {}", Quantity::Time.accepted())))?;
+    let atol = units::parse(&a.atol, Quantity::Concentration)
+        .map_err(|e| Error::Usage(format!("--atol: {e}; expected {}", Quantity::Concentration.accepted())))?;
     let method = match a.method.as_str() {
         "auto" => Method::Auto,
         "bdf" => Method::Bdf,
@@ -60,7 +62,10 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {
     opts.log_time = a.log_time;
     let bar = if std::io::stderr().is_terminal() {
         let b = indicatif::ProgressBar::new(1000);
-        b.set_style(indicatif::ProgressStyle::with_template("{bar:40} {percent:>3}% of the time span  {elapsed}").unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()));
+        b.set_style(
+            indicatif::ProgressStyle::with_template("{bar:40} {percent:>3}% of the time span  {elapsed}")
+                .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
         b
     } else {
         indicatif::ProgressBar::hidden()
@@ -70,21 +75,45 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {
     let summary = simulation::summary(&net, &model, &tr, opts.rtol, opts.atol);
     let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
     let dir = a.out.clone().unwrap_or_else(|| {
-        PathBuf::from(a.net.file.file_stem().map(|s| s.to_string_lossy().to_string()).unwrap_or_else(|| "simulation".into()))
+        PathBuf::from(
+            a.net
+                .file
+                .file_stem()
+                .map(|s| s.to_string_lossy().to_string())
+                .unwrap_or_else(|| "simulation".into()),
+        )
     });
-    write_atomic(&dir.join("concentrations.csv"), simulation::concentrations_csv(&model, &tr).as_bytes())?;
-    write_atomic(&dir.join("photons.csv"), simulation::photons_csv(&model, &tr).as_bytes())?;
+    write_atomic(
+        &dir.join("concentrations.csv"),
+        simulation::concentrations_csv(&model, &tr).as_bytes(),
+    )?;
+    write_atomic(
+        &dir.join("photons.csv"),
+        simulation::photons_csv(&model, &tr).as_bytes(),
+    )?;
     write_atomic(&dir.join("summary.json"), json.as_bytes())?;
-    write_atomic(&dir.join("concentrations.svg"), simulation::concentrations_svg(&net, &model, &tr, a.log_time).as_bytes())?;
-    write_atomic(&dir.join("photons.svg"), simulation::photons_svg(&net, &model, &tr, a.log_time).as_bytes())?;
+    write_atomic(
+        &dir.join("concentrations.svg"),
+        simulation::concentrations_svg(&net, &model, &tr, a.log_time).as_bytes(),
+    )?;
+    write_atomic(
+        &dir.join("photons.svg"),
+        simulation::photons_svg(&net, &model, &tr, a.log_time).as_bytes(),
+    )?;
     if a.json {
         println!("{json}");
     } else {
         print!("{}", photoledger::report::summary::run_summary(&summary));
-        println!("wrote {}/ (concentrations.csv, photons.csv, summary.json, concentrations.svg, photons.svg)", dir.display());
+        println!(
+            "wrote {}/ (concentrations.csv, photons.csv, summary.json, concentrations.svg, photons.svg)",
+            dir.display()
+        );
     }
     for n in &summary.negative_concentrations {
-        eprintln!("warning: {} went negative ({:e} mol/L at {} s) beyond the tolerance; tighten --rtol/--atol", n.0, n.2, n.1);
+        eprintln!(
+            "warning: {} went negative ({:e} mol/L at {} s) beyond the tolerance; tighten --rtol/--atol",
+            n.0, n.2, n.1
+        );
     }
     Ok(())
 }

@@ -56,10 +56,14 @@ pub fn parse_text(path: &Path, text: String) -> Result<Loaded> {
                 _ => None,
             };
             let help = match line {
-                Some(l) => format!("{l}\n  (the format reference is in README.md; a table stops at the first problem of this kind)"),
+                Some(l) => format!(
+                    "{l}\n  (the format reference is in README.md; a table stops at the first problem of this kind)"
+                ),
                 None => "see the format reference in README.md".to_string(),
             };
-            let d = Diagnostic::error("", format!("not a valid network file here: {msg}")).with_help(help).at(path, &text, &origin);
+            let d = Diagnostic::error("", format!("not a valid network file here: {msg}"))
+                .with_help(help)
+                .at(path, &text, &origin);
             return Err(Error::invalid(d));
         }
     };

@@ -79,11 +79,19 @@ pub fn read(model: &Model, layout: &LedgerLayout, t: f64, y: &[f64]) -> Ledger {
     let mut balance_num = 0.0;
     for (s, name) in model.sources.iter().enumerate() {
         let incident = model.source_flux(s) * t;
-        let absorbed: Vec<f64> = (0..model.absorbers.len()).map(|a| y[layout.absorbed(s, a)] * v).collect();
+        let absorbed: Vec<f64> = (0..model.absorbers.len())
+            .map(|a| y[layout.absorbed(s, a)] * v)
+            .collect();
         let background = y[layout.background(s)] * v;
         let transmitted = y[layout.transmitted(s)] * v;
         balance_num += incident - absorbed.iter().sum::<f64>() - background - transmitted;
-        sources.push(SourceLedger { source: name.clone(), incident, absorbed, background, transmitted });
+        sources.push(SourceLedger {
+            source: name.clone(),
+            incident,
+            absorbed,
+            background,
+            transmitted,
+        });
     }
     let incident: f64 = sources.iter().map(|s| s.incident).sum();
     let mut by_absorber = Vec::new();
@@ -111,7 +119,13 @@ pub fn read(model: &Model, layout: &LedgerLayout, t: f64, y: &[f64]) -> Ledger {
             wasted += absorbed;
         }
         let returned = (absorbed - productive).max(returned_listed);
-        by_absorber.push(AbsorberLedger { species: name.clone(), absorbed, outcomes, returned, productive });
+        by_absorber.push(AbsorberLedger {
+            species: name.clone(),
+            absorbed,
+            outcomes,
+            returned,
+            productive,
+        });
     }
     let absorbed: f64 = by_absorber.iter().map(|a| a.absorbed).sum();
     let products = model
@@ -136,7 +150,11 @@ pub fn read(model: &Model, layout: &LedgerLayout, t: f64, y: &[f64]) -> Ledger {
         products,
         incident,
         absorbed,
-        balance_error: if incident > 0.0 { balance_num.abs() / incident } else { 0.0 },
+        balance_error: if incident > 0.0 {
+            balance_num.abs() / incident
+        } else {
+            0.0
+        },
         inner_filter_fraction: if incident > 0.0 { wasted / incident } else { 0.0 },
     }
 }

@@ -57,7 +57,15 @@ pub struct Options {
 impl Options {
     /// Defaults for an end time: automatic method, rtol 1e-6, atol 1e-12 mol/L, 200 outputs.
     pub fn until(t: f64) -> Self {
-        Options { until: t, method: Method::Auto, rtol: 1e-6, atol: 1e-12, outputs: 200, log_time: false, event: None }
+        Options {
+            until: t,
+            method: Method::Auto,
+            rtol: 1e-6,
+            atol: 1e-12,
+            outputs: 200,
+            log_time: false,
+            event: None,
+        }
     }
 }
 
@@ -154,7 +162,9 @@ pub fn stiffness(rhs: &Rhs, y0: &[f64], span: f64) -> f64 {
     if ns == 0 {
         return 0.0;
     }
-    let mut v: Vec<f64> = (0..n).map(|i| if i < ns { 1.0 + 0.1 * (i % 7) as f64 } else { 0.0 }).collect();
+    let mut v: Vec<f64> = (0..n)
+        .map(|i| if i < ns { 1.0 + 0.1 * (i % 7) as f64 } else { 0.0 })
+        .collect();
     let mut out = vec![0.0; n];
     let mut rho = 0.0;
     for _ in 0..30 {
@@ -184,10 +194,13 @@ pub fn stiffness(rhs: &Rhs, y0: &[f64], span: f64) -> f64 {
 
 /// Integrate `model` as `opts` says; `progress` is told the fraction of the time span done.
 pub fn simulate(model: &Model, opts: &Options, progress: &mut dyn FnMut(f64)) -> Result<Trajectory> {
-    if !(opts.until > 0.0) || !opts.until.is_finite() {
-        return Err(Error::Usage(format!("the end time must be positive, not {} s", opts.until)));
+    if opts.until.is_nan() || opts.until <= 0.0 || !opts.until.is_finite() {
+        return Err(Error::Usage(format!(
+            "the end time must be positive, not {} s",
+            opts.until
+        )));
     }
-    if !(opts.rtol > 0.0 && opts.atol > 0.0) {
+    if opts.rtol.is_nan() || opts.atol.is_nan() || opts.rtol <= 0.0 || opts.atol <= 0.0 {
         return Err(Error::Usage("tolerances must be positive".into()));
     }
     let rhs = Rhs::new(model);
@@ -196,11 +209,26 @@ pub fn simulate(model: &Model, opts: &Options, progress: &mut dyn FnMut(f64)) ->
         Method::Auto => {
             let s = stiffness(&rhs, &y0, opts.until);
             if opts.event.is_some() {
-                (Method::Bdf, format!("BDF: an event stop needs root finding (stiffness estimate {})", crate::units::sig(s, 3)))
+                (
+                    Method::Bdf,
+                    format!(
+                        "BDF: an event stop needs root finding (stiffness estimate {})",
+                        crate::units::sig(s, 3)
+                    ),
+                )
             } else if s > 500.0 {
-                (Method::Bdf, format!("BDF: stiff (fastest rate × time span ≈ {})", crate::units::sig(s, 3)))
+                (
+                    Method::Bdf,
+                    format!("BDF: stiff (fastest rate × time span ≈ {})", crate::units::sig(s, 3)),
+                )
             } else {
-                (Method::Dop853, format!("Dop853: not stiff (fastest rate × time span ≈ {})", crate::units::sig(s, 3)))
+                (
+                    Method::Dop853,
+                    format!(
+                        "Dop853: not stiff (fastest rate × time span ≈ {})",
+                        crate::units::sig(s, 3)
+                    ),
+                )
             }
         }
         Method::Bdf => (Method::Bdf, "BDF: chosen".into()),
@@ -221,7 +249,11 @@ pub fn simulate(model: &Model, opts: &Options, progress: &mut dyn FnMut(f64)) ->
                 rhs.rhs_calls.set(0);
                 rhs.jac_calls.set(0);
                 let r = solve_bdf::run(&rhs, &y0, &times, opts, progress)?;
-                (r, Method::Bdf, format!("BDF: {reason}, but the explicit method gave up ({e}), so the run was repeated with BDF"))
+                (
+                    r,
+                    Method::Bdf,
+                    format!("BDF: {reason}, but the explicit method gave up ({e}), so the run was repeated with BDF"),
+                )
             }
             Err(e) => return Err(e),
         },
@@ -230,16 +262,22 @@ pub fn simulate(model: &Model, opts: &Options, progress: &mut dyn FnMut(f64)) ->
     run.counts.jacobian_products = rhs.jac_calls.get();
     // Negative concentrations beyond tolerance.
     let mut negatives: Vec<Negative> = Vec::new();
+    let scale = model.initial.iter().cloned().fold(0.0, f64::max);
+    let limit = opts.atol.max(opts.rtol * scale * 1e-3);
     for (t, s) in run.times.iter().zip(&run.states) {
-        for i in 0..model.n_species() {
-            if s[i] < -opts.atol.max(opts.rtol * model.initial.iter().cloned().fold(0.0, f64::max) * 1e-3) {
+        for (i, &v) in s[..model.n_species()].iter().enumerate() {
+            if v < -limit {
                 match negatives.iter_mut().find(|n| n.species == i) {
-                    Some(n) if s[i] < n.value => {
-                        n.value = s[i];
+                    Some(n) if v < n.value => {
+                        n.value = v;
                         n.time = *t;
                     }
                     Some(_) => {}
-                    None => negatives.push(Negative { species: i, time: *t, value: s[i] }),
+                    None => negatives.push(Negative {
+                        species: i,
+                        time: *t,
+                        value: v,
+                    }),
                 }
             }
         }

@@ -12,11 +12,22 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
     let builder = OdeBuilder::<NalgebraMat<f64>>::new()
         .rtol(opts.rtol)
         .atol(vec![opts.atol; n])
-        .rhs_implicit(|x: &[f64], _p: &[f64], _t: f64, y: &mut [f64]| rhs.eval(x, y), |x: &[f64], _p: &[f64], _t: f64, v: &[f64], y: &mut [f64]| rhs.jac_vec(x, v, y))
+        .rhs_implicit(
+            |x: &[f64], _p: &[f64], _t: f64, y: &mut [f64]| rhs.eval(x, y),
+            |x: &[f64], _p: &[f64], _t: f64, v: &[f64], y: &mut [f64]| rhs.jac_vec(x, v, y),
+        )
         .init(move |_p: &[f64], _t: f64, y: &mut [f64]| y.copy_from_slice(&y0v), n);
     let event = opts.event;
-    let mut out = Run { times: vec![0.0], states: vec![y0.to_vec()], counts: Counts::default(), stop: Stop::EndTime };
-    let mut drive = |solver: &mut dyn FnMut() -> std::result::Result<(OdeSolverStopReason<f64>, f64), diffsol::error::DiffsolError>,
+    let mut out = Run {
+        times: vec![0.0],
+        states: vec![y0.to_vec()],
+        counts: Counts::default(),
+        stop: Stop::EndTime,
+    };
+    let mut drive = |solver: &mut dyn FnMut() -> std::result::Result<
+        (OdeSolverStopReason<f64>, f64),
+        diffsol::error::DiffsolError,
+    >,
                      interp: &dyn Fn(f64) -> std::result::Result<Vec<f64>, diffsol::error::DiffsolError>|
      -> Result<()> {
         let mut next = 1;
@@ -78,7 +89,10 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
     match event {
         Some(ev) => {
             let (i, level) = (ev.species, ev.level);
-            go!(builder.root(move |x: &[f64], _p: &[f64], _t: f64, y: &mut [f64]| y[0] = x[i] - level, 1))
+            go!(builder.root(
+                move |x: &[f64], _p: &[f64], _t: f64, y: &mut [f64]| y[0] = x[i] - level,
+                1
+            ))
         }
         None => go!(builder),
     }

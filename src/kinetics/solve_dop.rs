@@ -16,7 +16,12 @@ impl System<f64, DVector<f64>> for Sys<'_, '_> {
 }
 
 pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress: &mut dyn FnMut(f64)) -> Result<Run> {
-    let mut out = Run { times: vec![0.0], states: vec![y0.to_vec()], counts: Counts::default(), stop: Stop::EndTime };
+    let mut out = Run {
+        times: vec![0.0],
+        states: vec![y0.to_vec()],
+        counts: Counts::default(),
+        stop: Stop::EndTime,
+    };
     let mut y = DVector::from_vec(y0.to_vec());
     // Integrate from output time to output time so every output is a solver point.
     for w in times.windows(2) {
@@ -25,7 +30,9 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
             continue;
         }
         let mut s = Dop853::new(Sys { rhs }, t0, t1, t1 - t0, y.clone(), opts.rtol, opts.atol);
-        let stats = s.integrate().map_err(|e| Error::Numerical(format!("the Dop853 integrator stopped at {t0} s: {e}")))?;
+        let stats = s
+            .integrate()
+            .map_err(|e| Error::Numerical(format!("the Dop853 integrator stopped at {t0} s: {e}")))?;
         out.counts.steps += stats.accepted_steps as usize;
         out.counts.rejected += stats.rejected_steps as usize;
         let ys = s.y_out();

@@ -128,9 +128,18 @@ impl Model {
             .lights
             .iter()
             .enumerate()
-            .flat_map(|(s, l)| l.bins.iter().map(move |b| Bin { wavelength: b.wavelength, flux: b.flux, source: s }))
+            .flat_map(|(s, l)| {
+                l.bins.iter().map(move |b| Bin {
+                    wavelength: b.wavelength,
+                    flux: b.flux,
+                    source: s,
+                })
+            })
             .collect();
-        let background = bins.iter().map(|b| net.conditions.background.at(b.wavelength)).collect();
+        let background = bins
+            .iter()
+            .map(|b| net.conditions.background.at(b.wavelength))
+            .collect();
         let absorbers: Vec<usize> = (0..net.species.len())
             .filter(|&i| net.species[i].epsilon.as_ref().is_some_and(|e| e.max() > 0.0))
             .collect();
@@ -190,14 +199,16 @@ impl Model {
                             }
                         }
                         n.retain(|x| x.1 != 0.0);
-                        let terms: Vec<crate::network::Term> =
-                            end.products.iter().map(|&(s, k)| crate::network::Term { species: s, coefficient: k }).collect();
+                        let terms: Vec<crate::network::Term> = end
+                            .products
+                            .iter()
+                            .map(|&(s, k)| crate::network::Term {
+                                species: s,
+                                coefficient: k,
+                            })
+                            .collect();
                         outcomes.push(Outcome {
-                            label: format!(
-                                "{a_name} -> {} via {}",
-                                net.side(&terms),
-                                net.transients[end.from].name
-                            ),
+                            label: format!("{a_name} -> {} via {}", net.side(&terms), net.transients[end.from].name),
                             step: pi,
                             slot,
                             returns: n.is_empty(),
@@ -238,7 +249,9 @@ impl Model {
                 }
             }
         }
-        let products = (0..net.species.len()).filter(|&i| net.species[i].product || (produced[i] && !consumed[i])).collect();
+        let products = (0..net.species.len())
+            .filter(|&i| net.species[i].product || (produced[i] && !consumed[i]))
+            .collect();
         Model {
             species,
             initial,

@@ -97,7 +97,12 @@ impl<'m> Rhs<'m> {
         Rhs {
             model,
             layout,
-            work: RefCell::new(Work { a: vec![0.0; nb], g: vec![0.0; nb], dg: vec![0.0; nb], da: vec![0.0; nb] }),
+            work: RefCell::new(Work {
+                a: vec![0.0; nb],
+                g: vec![0.0; nb],
+                dg: vec![0.0; nb],
+                da: vec![0.0; nb],
+            }),
             cache: RefCell::new(None),
             rhs_calls: Cell::new(0),
             jac_calls: Cell::new(0),

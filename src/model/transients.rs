@@ -69,7 +69,17 @@ impl Collapse {
         let mut shares = Vec::with_capacity(n);
         let mut quenchers = Vec::new();
         for (i, t) in net.transients.iter().enumerate() {
-            let fixed: f64 = t.channels.iter().map(|c| if let Branching::Fraction(x) = c.branching { x } else { 0.0 }).sum();
+            let fixed: f64 = t
+                .channels
+                .iter()
+                .map(|c| {
+                    if let Branching::Fraction(x) = c.branching {
+                        x
+                    } else {
+                        0.0
+                    }
+                })
+                .sum();
             let mut row = Vec::new();
             for (j, c) in t.channels.iter().enumerate() {
                 let target = match &c.target {
@@ -99,7 +109,12 @@ impl Collapse {
             }
             shares.push(row);
         }
-        Collapse { n, ends, shares, quenchers }
+        Collapse {
+            n,
+            ends,
+            shares,
+            quenchers,
+        }
     }
 
     /// True when the collapse depends on concentrations.
@@ -139,9 +154,19 @@ impl Collapse {
                         // dp/dc_q = (dk_j/dc_q · K − k_j · dK/dc_q) / K²
                         let dk_total: f64 = row
                             .iter()
-                            .map(|(_, s)| if let Share::Quench { partner, k2 } = *s { if partner == q { k2 } else { 0.0 } } else { 0.0 })
+                            .map(|(_, s)| {
+                                if let Share::Quench { partner, k2 } = *s {
+                                    if partner == q { k2 } else { 0.0 }
+                                } else {
+                                    0.0
+                                }
+                            })
                             .sum();
-                        let dkj = if let Share::Quench { partner, k2 } = *s { if partner == q { k2 } else { 0.0 } } else { 0.0 };
+                        let dkj = if let Share::Quench { partner, k2 } = *s {
+                            if partner == q { k2 } else { 0.0 }
+                        } else {
+                            0.0
+                        };
                         let dp = (dkj * total - rate_of(s) * dk_total) / (total * total);
                         match target {
                             Ok(e) => dpte[qi][(i, *e)] += dp,
@@ -250,6 +275,10 @@ channels = [{ to = "B", rate = { k = "1e8 /s" } }, { to = "A", quencher = "Q", r
         let h = 1e-9;
         let s2 = col.solve(&[1e-3, 0.0, q + h], false);
         let fd = (s2.x[(0, 0)] - s.x[(0, 0)]) / h;
-        assert!((s.dx[0][(0, 0)] - fd).abs() < 1e-4 * fd.abs(), "{} vs {fd}", s.dx[0][(0, 0)]);
+        assert!(
+            (s.dx[0][(0, 0)] - fd).abs() < 1e-4 * fd.abs(),
+            "{} vs {fd}",
+            s.dx[0][(0, 0)]
+        );
     }
 }

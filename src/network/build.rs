@@ -468,7 +468,7 @@ impl<'a> Builder<'a> {
         for (x, y, place) in &raw {
             let wl = x * wf;
             let v = y * vf;
-            if !(wl > 0.0) || !wl.is_finite() {
+            if wl.is_nan() || wl <= 0.0 || !wl.is_finite() {
                 self.error(place, at, format!("wavelength {x} must be positive"), None);
                 return None;
             }
@@ -651,7 +651,7 @@ impl<'a> Builder<'a> {
                             ..Default::default()
                         }),
                     );
-                    match self.spectrum(&format!("{field}"), &v, None, Outside::Zero) {
+                    match self.spectrum(&field, &v, None, Outside::Zero) {
                         Some(Spectrum::Table { points, .. }) if points.iter().any(|p| p.1 > 0.0) => {
                             Some(LightKind::Lamp {
                                 file: f.get_ref().clone(),
@@ -1589,7 +1589,10 @@ fn example_k(order: u32) -> &'static str {
 fn unused_override(loaded: &Loaded, key: &str) -> Diagnostic {
     let field = format!("--set {key}");
     let parts: Vec<&str> = key.splitn(3, '.').collect();
-    let generic = || Diagnostic::error(&field, "no such field in this network").with_help(format!("keys that can be set: {ACCEPTED}"));
+    let generic = || {
+        Diagnostic::error(&field, "no such field in this network")
+            .with_help(format!("keys that can be set: {ACCEPTED}"))
+    };
     match parts.as_slice() {
         ["light", name, f] => {
             let lights: Vec<(String, String)> = loaded
@@ -1600,31 +1603,46 @@ fn unused_override(loaded: &Loaded, key: &str) -> Diagnostic {
                 .map(|(i, l)| {
                     let l = l.get_ref();
                     (
-                        l.name.as_ref().map_or(format!("light{}", i + 1), |n| n.get_ref().trim().to_string()),
-                        l.kind.as_ref().map_or(String::new(), |k| k.get_ref().trim().to_string()),
+                        l.name
+                            .as_ref()
+                            .map_or(format!("light{}", i + 1), |n| n.get_ref().trim().to_string()),
+                        l.kind
+                            .as_ref()
+                            .map_or(String::new(), |k| k.get_ref().trim().to_string()),
                     )
                 })
                 .collect();
             match lights.iter().find(|l| l.0 == *name) {
-                Some((_, kind)) => Diagnostic::error(&field, format!("`{f}` does not apply to the light \"{name}\" of kind \"{kind}\"")).with_help(
-                    match kind.as_str() {
-                        "line" => "a line takes wavelength, power or photon_flux",
-                        "band" => "a band takes centre, fwhm, power or photon_flux",
-                        "lamp" => "a lamp takes power or photon_flux",
-                        _ => "sunlight takes scale (and conditions.irradiated_area)",
-                    },
-                ),
+                Some((_, kind)) => Diagnostic::error(
+                    &field,
+                    format!("`{f}` does not apply to the light \"{name}\" of kind \"{kind}\""),
+                )
+                .with_help(match kind.as_str() {
+                    "line" => "a line takes wavelength, power or photon_flux",
+                    "band" => "a band takes centre, fwhm, power or photon_flux",
+                    "lamp" => "a lamp takes power or photon_flux",
+                    _ => "sunlight takes scale (and conditions.irradiated_area)",
+                }),
                 None => {
                     let hint = super::suggest::closest(name, lights.iter().map(|l| l.0.as_str()))
-                        .map_or("no light has that name".to_string(), |c| format!("did you mean light.{c}.{f}?"));
+                        .map_or("no light has that name".to_string(), |c| {
+                            format!("did you mean light.{c}.{f}?")
+                        });
                     Diagnostic::error(&field, format!("no light called \"{name}\"")).with_help(hint)
                 }
             }
         }
         ["species", name, _] => {
-            let names: Vec<String> = loaded.doc.species.iter().filter_map(|s| s.get_ref().name.as_ref().map(|n| n.get_ref().trim().to_string())).collect();
+            let names: Vec<String> = loaded
+                .doc
+                .species
+                .iter()
+                .filter_map(|s| s.get_ref().name.as_ref().map(|n| n.get_ref().trim().to_string()))
+                .collect();
             let hint = super::suggest::closest(name, names.iter().map(|s| s.as_str()))
-                .map_or(format!("keys that can be set: {ACCEPTED}"), |c| format!("did you mean species.{c}.initial?"));
+                .map_or(format!("keys that can be set: {ACCEPTED}"), |c| {
+                    format!("did you mean species.{c}.initial?")
+                });
             Diagnostic::error(&field, format!("no species called \"{name}\", or no such field")).with_help(hint)
         }
         _ => generic(),

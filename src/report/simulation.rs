@@ -199,34 +199,59 @@ fn line_plot(title: &str, y_label: &str, times: &[f64], series: &[(String, Vec<f
         let ymax = series.iter().flat_map(|s| s.1.iter()).cloned().fold(0.0, f64::max);
         let (yscale, yunit) = scale_for(ymax, y_label);
         let ytop = if ymax > 0.0 { ymax / yscale * 1.05 } else { 1.0 };
-        let draw = |root: &DrawingArea<SVGBackend, plotters::coord::Shift>| -> Result<(), Box<dyn std::error::Error + '_>> {
-            let mut b = ChartBuilder::on(root);
-            b.caption(title, ("sans-serif", 22)).margin(16).x_label_area_size(48).y_label_area_size(80);
-            let xs: Vec<f64> = times.iter().map(|t| t / tu).collect();
-            let pts = |s: &Vec<f64>| -> Vec<(f64, f64)> { xs.iter().zip(s).map(|(x, y)| (*x, y / yscale)).collect() };
-            if log_time {
-                let x0 = xs.iter().cloned().filter(|x| *x > 0.0).fold(f64::INFINITY, f64::min);
-                let x1 = xs.iter().cloned().fold(0.0, f64::max);
-                let mut c = b.build_cartesian_2d((x0..x1).log_scale(), 0.0..ytop)?;
-                c.configure_mesh().x_desc(format!("time ({tname}, log scale)")).y_desc(yunit.clone()).label_style(("sans-serif", 15)).draw()?;
-                for (i, (name, s)) in series.iter().enumerate() {
-                    let col = PALETTE[i % PALETTE.len()];
-                    let p: Vec<(f64, f64)> = pts(s).into_iter().filter(|p| p.0 > 0.0).collect();
-                    c.draw_series(LineSeries::new(p, col.stroke_width(2)))?.label(name.clone()).legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
+        let draw =
+            |root: &DrawingArea<SVGBackend, plotters::coord::Shift>| -> Result<(), Box<dyn std::error::Error + '_>> {
+                let mut b = ChartBuilder::on(root);
+                b.caption(title, ("sans-serif", 22))
+                    .margin(16)
+                    .x_label_area_size(48)
+                    .y_label_area_size(80);
+                let xs: Vec<f64> = times.iter().map(|t| t / tu).collect();
+                let pts =
+                    |s: &Vec<f64>| -> Vec<(f64, f64)> { xs.iter().zip(s).map(|(x, y)| (*x, y / yscale)).collect() };
+                if log_time {
+                    let x0 = xs.iter().cloned().filter(|x| *x > 0.0).fold(f64::INFINITY, f64::min);
+                    let x1 = xs.iter().cloned().fold(0.0, f64::max);
+                    let mut c = b.build_cartesian_2d((x0..x1).log_scale(), 0.0..ytop)?;
+                    c.configure_mesh()
+                        .x_desc(format!("time ({tname}, log scale)"))
+                        .y_desc(yunit.clone())
+                        .label_style(("sans-serif", 15))
+                        .draw()?;
+                    for (i, (name, s)) in series.iter().enumerate() {
+                        let col = PALETTE[i % PALETTE.len()];
+                        let p: Vec<(f64, f64)> = pts(s).into_iter().filter(|p| p.0 > 0.0).collect();
+                        c.draw_series(LineSeries::new(p, col.stroke_width(2)))?
+                            .label(name.clone())
+                            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
+                    }
+                    c.configure_series_labels()
+                        .background_style(WHITE.mix(0.85))
+                        .border_style(BLACK)
+                        .label_font(("sans-serif", 15))
+                        .draw()?;
+                } else {
+                    let x1 = xs.iter().cloned().fold(0.0, f64::max).max(1e-30);
+                    let mut c = b.build_cartesian_2d(0.0..x1, 0.0..ytop)?;
+                    c.configure_mesh()
+                        .x_desc(format!("time ({tname})"))
+                        .y_desc(yunit.clone())
+                        .label_style(("sans-serif", 15))
+                        .draw()?;
+                    for (i, (name, s)) in series.iter().enumerate() {
+                        let col = PALETTE[i % PALETTE.len()];
+                        c.draw_series(LineSeries::new(pts(s), col.stroke_width(2)))?
+                            .label(name.clone())
+                            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
+                    }
+                    c.configure_series_labels()
+                        .background_style(WHITE.mix(0.85))
+                        .border_style(BLACK)
+                        .label_font(("sans-serif", 15))
+                        .draw()?;
                 }
-                c.configure_series_labels().background_style(WHITE.mix(0.85)).border_style(BLACK).label_font(("sans-serif", 15)).draw()?;
-            } else {
-                let x1 = xs.iter().cloned().fold(0.0, f64::max).max(1e-30);
-                let mut c = b.build_cartesian_2d(0.0..x1, 0.0..ytop)?;
-                c.configure_mesh().x_desc(format!("time ({tname})")).y_desc(yunit.clone()).label_style(("sans-serif", 15)).draw()?;
-                for (i, (name, s)) in series.iter().enumerate() {
-                    let col = PALETTE[i % PALETTE.len()];
-                    c.draw_series(LineSeries::new(pts(s), col.stroke_width(2)))?.label(name.clone()).legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
-                }
-                c.configure_series_labels().background_style(WHITE.mix(0.85)).border_style(BLACK).label_font(("sans-serif", 15)).draw()?;
-            }
-            Ok(())
-        };
+                Ok(())
+            };
         let _ = draw(&root);
         let _ = root.present();
     }
@@ -263,19 +288,56 @@ fn scale_for(max: f64, label: &str) -> (f64, String) {
 /// concentrations.svg.
 pub fn concentrations_svg(net: &Network, model: &Model, tr: &Trajectory, log_time: bool) -> String {
     // Solvent-like species (1 M or more at the start) would flatten every other curve.
-    let series: Vec<(String, Vec<f64>)> =
-        (0..model.n_species()).filter(|&i| model.initial[i] < 1.0).map(|i| (model.species[i].clone(), tr.series(i))).collect();
-    line_plot(&format!("{}: concentrations", net.about.name), "concentration", &tr.times, &series, log_time)
+    let series: Vec<(String, Vec<f64>)> = (0..model.n_species())
+        .filter(|&i| model.initial[i] < 1.0)
+        .map(|i| (model.species[i].clone(), tr.series(i)))
+        .collect();
+    line_plot(
+        &format!("{}: concentrations", net.about.name),
+        "concentration",
+        &tr.times,
+        &series,
+        log_time,
+    )
 }
 
 /// photons.svg: cumulative photons incident, absorbed by each species, background and transmitted.
 pub fn photons_svg(net: &Network, model: &Model, tr: &Trajectory, log_time: bool) -> String {
-    let ledgers: Vec<Ledger> = tr.times.iter().zip(&tr.states).map(|(t, y)| ledger::read(model, &tr.layout, *t, y)).collect();
-    let mut series = vec![("incident".to_string(), ledgers.iter().map(|l| l.incident).collect::<Vec<_>>())];
+    let ledgers: Vec<Ledger> = tr
+        .times
+        .iter()
+        .zip(&tr.states)
+        .map(|(t, y)| ledger::read(model, &tr.layout, *t, y))
+        .collect();
+    let mut series = vec![(
+        "incident".to_string(),
+        ledgers.iter().map(|l| l.incident).collect::<Vec<_>>(),
+    )];
     for (k, a) in model.absorbers.iter().enumerate() {
-        series.push((format!("absorbed by {}", model.species[*a]), ledgers.iter().map(|l| l.by_absorber[k].absorbed).collect()));
+        series.push((
+            format!("absorbed by {}", model.species[*a]),
+            ledgers.iter().map(|l| l.by_absorber[k].absorbed).collect(),
+        ));
     }
-    series.push(("background".into(), ledgers.iter().map(|l| l.sources.iter().map(|s| s.background).sum()).collect()));
-    series.push(("transmitted".into(), ledgers.iter().map(|l| l.sources.iter().map(|s| s.transmitted).sum()).collect()));
-    line_plot(&format!("{}: where the photons went", net.about.name), "photons", &tr.times, &series, log_time)
+    series.push((
+        "background".into(),
+        ledgers
+            .iter()
+            .map(|l| l.sources.iter().map(|s| s.background).sum())
+            .collect(),
+    ));
+    series.push((
+        "transmitted".into(),
+        ledgers
+            .iter()
+            .map(|l| l.sources.iter().map(|s| s.transmitted).sum())
+            .collect(),
+    ));
+    line_plot(
+        &format!("{}: where the photons went", net.about.name),
+        "photons",
+        &tr.times,
+        &series,
+        log_time,
+    )
 }

@@ -19,10 +19,22 @@ pub fn network_summary(net: &Network) -> String {
             ""
         }
     );
-    for (i, l) in net.about.description.lines().filter(|l| !l.trim().is_empty()).enumerate() {
-        let _ = writeln!(s, "{}{}", if i == 0 { "         " } else { "         " }, l.trim());
+    for (i, l) in net
+        .about
+        .description
+        .lines()
+        .filter(|l| !l.trim().is_empty())
+        .enumerate()
+    {
+        let _ = (i, writeln!(s, "         {}", l.trim()));
     }
-    for (i, l) in net.about.provenance.lines().filter(|l| !l.trim().is_empty()).enumerate() {
+    for (i, l) in net
+        .about
+        .provenance
+        .lines()
+        .filter(|l| !l.trim().is_empty())
+        .enumerate()
+    {
         let _ = writeln!(s, "{}{}", if i == 0 { "numbers  " } else { "         " }, l.trim());
     }
     let _ = writeln!(
@@ -34,7 +46,11 @@ pub fn network_summary(net: &Network) -> String {
         c.irradiated_area
             .map_or(String::new(), |a| format!(", irradiated area {} cm²", sig(a * 1e4, 4)))
     );
-    let n_abs = net.species.iter().filter(|x| x.epsilon.as_ref().is_some_and(|e| e.max() > 0.0)).count();
+    let n_abs = net
+        .species
+        .iter()
+        .filter(|x| x.epsilon.as_ref().is_some_and(|e| e.max() > 0.0))
+        .count();
     let plural = |n: usize, one: &str, many: &str| format!("{n} {}", if n == 1 { one } else { many });
     let n_rev = net.thermal.iter().filter(|t| t.reverse_of.is_some()).count();
     let _ = writeln!(
@@ -43,7 +59,11 @@ pub fn network_summary(net: &Network) -> String {
         plural(net.species.len(), "species", "species"),
         n_abs,
         plural(net.thermal.len() - n_rev, "thermal step", "thermal steps"),
-        if n_rev > 0 { format!(" ({n_rev} reversible)") } else { String::new() },
+        if n_rev > 0 {
+            format!(" ({n_rev} reversible)")
+        } else {
+            String::new()
+        },
         plural(net.photo.len(), "photochemical step", "photochemical steps"),
         plural(net.transients.len(), "transient", "transients")
     );
@@ -175,7 +195,11 @@ pub fn network_summary(net: &Network) -> String {
                     Branching::Fraction(x) => format!("fraction {}", sig(*x, 4)),
                     Branching::Rest => "the rest".into(),
                     Branching::Rate { k, .. } => {
-                        format!("k = {} /s, share {}% at the start", sig(*k, 4), sig(100.0 * k / total.max(f64::MIN_POSITIVE), 3))
+                        format!(
+                            "k = {} /s, share {}% at the start",
+                            sig(*k, 4),
+                            sig(100.0 * k / total.max(f64::MIN_POSITIVE), 3)
+                        )
                     }
                     Branching::Quenching { partner, k2, .. } => format!(
                         "quenched by {}: k = {} /(M s), share {}% at the start",
@@ -200,7 +224,14 @@ pub fn network_summary(net: &Network) -> String {
 /// of each product, and which integrator ran.
 pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
     let mut o = String::new();
-    let _ = writeln!(o, "{}{}: {} ({})", s.network, if s.invented { " (invented scenario)" } else { "" }, crate::units::format_time(s.end_time_s), s.stopped_by);
+    let _ = writeln!(
+        o,
+        "{}{}: {} ({})",
+        s.network,
+        if s.invented { " (invented scenario)" } else { "" },
+        crate::units::format_time(s.end_time_s),
+        s.stopped_by
+    );
     let _ = writeln!(o, "\nfinal concentrations");
     for (n, c) in &s.final_concentrations_mol_per_l {
         let _ = writeln!(o, "  {n:<16} {:>12}", format_concentration(*c));
@@ -209,21 +240,48 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
     let _ = writeln!(o, "\nphotons (einstein)");
     let _ = writeln!(o, "  incident        {}", sig(p.incident, 4));
     for a in &p.by_absorber {
-        let share = if p.incident > 0.0 { 100.0 * a.absorbed / p.incident } else { 0.0 };
-        let _ = writeln!(o, "  absorbed by {:<16} {:>10}  ({}% of incident; {} returned, {} productive)", a.species, sig(a.absorbed, 4), sig(share, 3), sig(a.returned, 3), sig(a.productive, 3));
+        let share = if p.incident > 0.0 {
+            100.0 * a.absorbed / p.incident
+        } else {
+            0.0
+        };
+        let _ = writeln!(
+            o,
+            "  absorbed by {:<16} {:>10}  ({}% of incident; {} returned, {} productive)",
+            a.species,
+            sig(a.absorbed, 4),
+            sig(share, 3),
+            sig(a.returned, 3),
+            sig(a.productive, 3)
+        );
     }
     let bg: f64 = p.sources.iter().map(|x| x.background).sum();
     let tr: f64 = p.sources.iter().map(|x| x.transmitted).sum();
     let _ = writeln!(o, "  background      {}", sig(bg, 4));
     let _ = writeln!(o, "  transmitted     {}", sig(tr, 4));
-    let _ = writeln!(o, "  balance         incident − absorbed − background − transmitted = {} of incident", sig(p.balance_error, 2));
-    let _ = writeln!(o, "  inner filters   {}% of incident photons taken by species that never react or by the background", sig(100.0 * p.inner_filter_fraction, 3));
+    let _ = writeln!(
+        o,
+        "  balance         incident − absorbed − background − transmitted = {} of incident",
+        sig(p.balance_error, 2)
+    );
+    let _ = writeln!(
+        o,
+        "  inner filters   {}% of incident photons taken by species that never react or by the background",
+        sig(100.0 * p.inner_filter_fraction, 3)
+    );
     if !p.products.is_empty() {
         let _ = writeln!(o, "\nproducts");
         for pr in &p.products {
             match pr.photons_per_molecule {
                 Some(n) => {
-                    let _ = writeln!(o, "  {:<16} {} mol formed, {} photons absorbed per molecule (apparent Φ {})", pr.species, sig(pr.formed, 4), sig(n, 4), sig(1.0 / n, 3));
+                    let _ = writeln!(
+                        o,
+                        "  {:<16} {} mol formed, {} photons absorbed per molecule (apparent Φ {})",
+                        pr.species,
+                        sig(pr.formed, 4),
+                        sig(n, 4),
+                        sig(1.0 / n, 3)
+                    );
                 }
                 None => {
                     let _ = writeln!(o, "  {:<16} none formed", pr.species);
@@ -232,7 +290,11 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         }
     }
     let m = &s.method;
-    let _ = writeln!(o, "\nintegrator  {} — {}; {} steps ({} rejected), {} RHS evaluations, {} Jacobian products, {} Jacobian set-ups", m.name, m.reason, m.steps, m.rejected_steps, m.rhs_evaluations, m.jacobian_products, m.jacobian_setups);
+    let _ = writeln!(
+        o,
+        "\nintegrator  {} — {}; {} steps ({} rejected), {} RHS evaluations, {} Jacobian products, {} Jacobian set-ups",
+        m.name, m.reason, m.steps, m.rejected_steps, m.rhs_evaluations, m.jacobian_products, m.jacobian_setups
+    );
     let _ = writeln!(o, "assumes     {}", s.assumptions);
     let _ = writeln!(o, "caution     {}", s.cautions);
     o

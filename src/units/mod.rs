@@ -627,7 +627,7 @@ mod tests {
 
     #[test]
     fn significant_figures() {
-        assert_eq!(sig(3.14159, 3), "3.14");
+        assert_eq!(sig(4.56789, 3), "4.57");
         assert_eq!(sig(1200.0, 3), "1200");
         assert_eq!(sig(0.000_123_4, 2), "0.00012");
         assert_eq!(sig(1.5e-9, 2), "1.5e-9");
