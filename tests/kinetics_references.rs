@@ -138,3 +138,139 @@ rate = { k = "0.1 /s" }
         }
     }
 }
+
+#[test]
+fn hires_at_321_8122() {
+    // HIRES (Schäfer's plant photobiology model of light-induced growth responses, 8 species):
+    // Mazzia & Magherini, Test Set for Initial Value Problem Solvers, release 2.4, University of
+    // Bari, 2008, problem HIRES. Its linear terms are first-order steps here; the constant source
+    // 0.0007 enters as S -> S + y1 with [S] = 1 M held constant; 280 y6 y8 is y6 + y8 -> y7.
+    let net = network(
+        r#"
+[conditions]
+temperature = "298.15 K"
+volume = "1 L"
+path_length = "1 cm"
+[[species]]
+name = "y1"
+initial = "1 M"
+[[species]]
+name = "y2"
+[[species]]
+name = "y3"
+[[species]]
+name = "y4"
+[[species]]
+name = "y5"
+[[species]]
+name = "y6"
+[[species]]
+name = "y7"
+[[species]]
+name = "y8"
+initial = "0.0057 M"
+[[species]]
+name = "S"
+initial = "1 M"
+[[thermal]]
+equation = "S -> S + y1"
+rate = { k = "0.0007 /s" }
+[[thermal]]
+equation = "y1 -> y2"
+rate = { k = "1.71 /s" }
+[[thermal]]
+equation = "y2 -> y1"
+rate = { k = "0.43 /s" }
+[[thermal]]
+equation = "y2 -> y4"
+rate = { k = "8.32 /s" }
+[[thermal]]
+equation = "y3 -> y1"
+rate = { k = "8.32 /s" }
+[[thermal]]
+equation = "y3 -> y4"
+rate = { k = "1.71 /s" }
+[[thermal]]
+equation = "y4 -> y3"
+rate = { k = "0.43 /s" }
+[[thermal]]
+equation = "y4 -> y6"
+rate = { k = "0.69 /s" }
+[[thermal]]
+equation = "y5 -> y3"
+rate = { k = "0.035 /s" }
+[[thermal]]
+equation = "y5 -> y6"
+rate = { k = "1.71 /s" }
+[[thermal]]
+equation = "y6 -> y5"
+rate = { k = "0.43 /s" }
+[[thermal]]
+equation = "y7 -> y5 + y8"
+rate = { k = "0.43 /s" }
+[[thermal]]
+equation = "y7 -> y6 + y8"
+rate = { k = "0.69 /s" }
+[[thermal]]
+equation = "y7 -> y8"
+rate = { k = "0.69 /s" }
+[[thermal]]
+equation = "y6 + y8 -> y7"
+rate = { k = "280 /(M s)" }
+"#,
+    );
+    let tr = run(&net, 321.8122, Method::Bdf, 1e-11, 1e-15);
+    let y = tr.last();
+    let want = [
+        0.7371312573325668e-3,
+        0.1442485726316185e-3,
+        0.5888729740967575e-4,
+        0.1175651343283149e-2,
+        0.2386356198831331e-2,
+        0.6238968252742796e-2,
+        0.2849998395185769e-2,
+        0.2850001604814231e-2,
+    ];
+    for i in 0..8 {
+        assert!(
+            (y[i] - want[i]).abs() <= 1e-5 * want[i],
+            "y{} = {:e} vs {:e}",
+            i + 1,
+            y[i],
+            want[i]
+        );
+    }
+}
+
+#[test]
+fn eyring_rate_and_photon_units_from_codata() {
+    // CODATA 2018 exact constants: 1 W at 365 nm = 3.0512e-6 einstein/s; k_B T/h = 6.2124e12 /s
+    // at 298.15 K (the Eyring rate at zero barrier).
+    let net = network(
+        r#"
+[conditions]
+temperature = "298.15 K"
+volume = "1 L"
+path_length = "1 cm"
+[[light]]
+kind = "line"
+wavelength = "365 nm"
+power = "1 W"
+[[species]]
+name = "A"
+initial = "1 mM"
+[[species]]
+name = "B"
+[[thermal]]
+equation = "A -> B"
+rate = { barrier = "0 kJ/mol" }
+"#,
+    );
+    let q = net.lights[0].photon_flux();
+    assert!((q - 3.0512e-6).abs() < 1e-4 * 3.0512e-6, "{q}");
+    assert!(
+        (net.thermal[0].k - 6.2124e12).abs() < 1e-4 * 6.2124e12,
+        "{}",
+        net.thermal[0].k
+    );
+}

@@ -3,7 +3,7 @@
 use super::{Counts, Options, Run, Stop};
 use crate::error::{Error, Result};
 use crate::model::rhs::Rhs;
-use ode_solvers::{DVector, Dop853, System};
+use ode_solvers::{DVector, Dop853, OutputType, System};
 
 struct Sys<'a, 'm> {
     rhs: &'a Rhs<'m>,
@@ -29,7 +29,28 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
         if t1 <= t0 {
             continue;
         }
-        let mut s = Dop853::new(Sys { rhs }, t0, t1, t1 - t0, y.clone(), opts.rtol, opts.atol);
+        // Sparse output: every accepted step is recorded and the last one sits exactly at t1
+        // (the crate's dense output mis-handles an increment equal to the whole interval).
+        // Controller settings are the Hairer–Wanner defaults (safety 0.9, β 0, step ratio
+        // limits 1/3 and 6), with at most 100000 steps per interval.
+        let mut s = Dop853::from_param(
+            Sys { rhs },
+            t0,
+            t1,
+            t1 - t0,
+            y.clone(),
+            opts.rtol,
+            opts.atol,
+            0.9,
+            0.0,
+            0.333,
+            6.0,
+            t1 - t0,
+            0.0,
+            100_000,
+            1000,
+            OutputType::Sparse,
+        );
         let stats = s
             .integrate()
             .map_err(|e| Error::Numerical(format!("the Dop853 integrator stopped at {t0} s: {e}")))?;
