@@ -274,3 +274,33 @@ rate = { barrier = "0 kJ/mol" }
         net.thermal[0].k
     );
 }
+
+#[test]
+fn sparse_and_dense_linear_algebra_agree_on_a_generated_network() {
+    // Same BDF method, two linear solvers (faer sparse LU on a coloured Jacobian, nalgebra
+    // dense LU): the trajectories must agree to the tolerance (common practice).
+    let text = photoledger::bench::large_network(
+        photoledger::bench::Size {
+            species: 80,
+            steps: 300,
+            absorbers: 8,
+        },
+        11,
+    );
+    let net = network(&text);
+    let model = Model::compile(&net);
+    let mut opts = Options::until(600.0);
+    opts.method = Method::Bdf;
+    opts.rtol = 1e-8;
+    opts.atol = 1e-14;
+    opts.outputs = 5;
+    opts.sparse = Some(true);
+    let a = kinetics::simulate(&model, &opts, &mut |_| {}).unwrap();
+    opts.sparse = Some(false);
+    let b = kinetics::simulate(&model, &opts, &mut |_| {}).unwrap();
+    assert!(a.sparse && !b.sparse);
+    let scale = model.initial.iter().cloned().fold(0.0, f64::max);
+    for (x, y) in a.last().iter().zip(b.last()).take(model.n_species()) {
+        assert!((x - y).abs() < 1e-6 * scale, "{x} vs {y}");
+    }
+}

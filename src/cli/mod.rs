@@ -4,6 +4,7 @@
 //! 2 usage error (bad arguments, unknown --set key), 3 a file could not be read or written,
 //! 4 a numerical engine could not finish.
 
+mod bench;
 mod check;
 mod diagram;
 mod simulate;
@@ -40,6 +41,8 @@ enum Command {
         #[arg(long, short)]
         quiet: bool,
     },
+    /// Time the kinetics on network files and on a generated large network.
+    Bench(bench::BenchArgs),
     /// Integrate the kinetics under the network's light and keep the photon ledger.
     Simulate(simulate::SimulateArgs),
     /// Draw the network as SVG (species, transients, thermal and photochemical steps).
@@ -68,6 +71,7 @@ pub fn run() -> i32 {
         Command::Check { net, quiet } => check::run(&net, quiet),
         Command::Diagram { net, out, dot } => diagram::run(&net, &out, dot),
         Command::Simulate(a) => simulate::run(&a),
+        Command::Bench(a) => bench::run(&a),
     };
     match result {
         Ok(()) => 0,

@@ -52,6 +52,9 @@ pub struct Options {
     pub log_time: bool,
     /// Optional stop condition.
     pub event: Option<Event>,
+    /// BDF linear algebra: Some(true) sparse (faer sparse LU on a coloured Jacobian),
+    /// Some(false) dense (nalgebra LU), None: sparse above 150 state variables.
+    pub sparse: Option<bool>,
 }
 
 impl Options {
@@ -65,6 +68,7 @@ impl Options {
             outputs: 200,
             log_time: false,
             event: None,
+            sparse: None,
         }
     }
 }
@@ -117,6 +121,8 @@ pub struct Trajectory {
     pub method: Method,
     /// Why that integrator (for Auto: the stiffness estimate).
     pub method_reason: String,
+    /// True when BDF used sparse linear algebra.
+    pub sparse: bool,
     /// Work counts.
     pub counts: Counts,
     /// How it ended.
@@ -288,6 +294,7 @@ pub fn simulate(model: &Model, opts: &Options, progress: &mut dyn FnMut(f64)) ->
         layout: rhs.layout,
         method,
         method_reason: reason,
+        sparse: run.sparse,
         counts: run.counts,
         stop: run.stop,
         negatives,
@@ -300,4 +307,5 @@ struct Run {
     states: Vec<Vec<f64>>,
     counts: Counts,
     stop: Stop,
+    sparse: bool,
 }

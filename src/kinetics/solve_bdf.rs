@@ -3,26 +3,35 @@
 use super::{Counts, Options, Run, Stop};
 use crate::error::{Error, Result};
 use crate::model::rhs::Rhs;
-use diffsol::{NalgebraLU, NalgebraMat, OdeBuilder, OdeSolverMethod, OdeSolverStopReason, VectorCommon};
+use diffsol::{
+    FaerSparseLU, FaerSparseMat, NalgebraLU, NalgebraMat, OdeBuilder, OdeSolverMethod, OdeSolverStopReason, Vector,
+};
 
 pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress: &mut dyn FnMut(f64)) -> Result<Run> {
     let n = y0.len();
     let fail = |e: diffsol::error::DiffsolError| Error::Numerical(format!("the BDF integrator stopped: {e}"));
     let y0v = y0.to_vec();
-    let builder = OdeBuilder::<NalgebraMat<f64>>::new()
-        .rtol(opts.rtol)
-        .atol(vec![opts.atol; n])
-        .rhs_implicit(
-            |x: &[f64], _p: &[f64], _t: f64, y: &mut [f64]| rhs.eval(x, y),
-            |x: &[f64], _p: &[f64], _t: f64, v: &[f64], y: &mut [f64]| rhs.jac_vec(x, v, y),
-        )
-        .init(move |_p: &[f64], _t: f64, y: &mut [f64]| y.copy_from_slice(&y0v), n);
+    let y0v = &y0v;
+    macro_rules! builder {
+        ($m:ty) => {
+            OdeBuilder::<$m>::new()
+                .rtol(opts.rtol)
+                .atol(vec![opts.atol; n])
+                .rhs_implicit(
+                    |x: &[f64], _p: &[f64], _t: f64, y: &mut [f64]| rhs.eval(x, y),
+                    |x: &[f64], _p: &[f64], _t: f64, v: &[f64], y: &mut [f64]| rhs.jac_vec(x, v, y),
+                )
+                .init(|_p: &[f64], _t: f64, y: &mut [f64]| y.copy_from_slice(y0v), n)
+        };
+    }
     let event = opts.event;
+    let sparse = opts.sparse.unwrap_or(n > 150);
     let mut out = Run {
         times: vec![0.0],
         states: vec![y0.to_vec()],
         counts: Counts::default(),
         stop: Stop::EndTime,
+        sparse,
     };
     let mut drive = |solver: &mut dyn FnMut() -> std::result::Result<
         (OdeSolverStopReason<f64>, f64),
@@ -64,9 +73,9 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
         }
     };
     macro_rules! go {
-        ($problem:expr) => {{
+        ($problem:expr, $ls:ty) => {{
             let problem = $problem.build().map_err(fail)?;
-            let mut solver = problem.bdf::<NalgebraLU<f64>>().map_err(fail)?;
+            let mut solver = problem.bdf::<$ls>().map_err(fail)?;
             solver.set_stop_time(opts.until).map_err(fail)?;
             let cell = std::cell::RefCell::new(solver);
             let mut step = || {
@@ -76,7 +85,7 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
             };
             let interp = |t: f64| {
                 let s = cell.borrow();
-                s.interpolate(t).map(|v| v.inner().as_slice().to_vec())
+                s.interpolate(t).map(|v| v.clone_as_vec())
             };
             drive(&mut step, &interp)?;
             let s = cell.borrow();
@@ -86,15 +95,29 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
             out.counts.rejected = st.number_of_error_test_failures;
         }};
     }
-    match event {
-        Some(ev) => {
+    match (event, sparse) {
+        (Some(ev), false) => {
             let (i, level) = (ev.species, ev.level);
-            go!(builder.root(
-                move |x: &[f64], _p: &[f64], _t: f64, y: &mut [f64]| y[0] = x[i] - level,
-                1
-            ))
+            go!(
+                builder!(NalgebraMat<f64>).root(
+                    move |x: &[f64], _p: &[f64], _t: f64, y: &mut [f64]| y[0] = x[i] - level,
+                    1
+                ),
+                NalgebraLU<f64>
+            )
         }
-        None => go!(builder),
+        (Some(ev), true) => {
+            let (i, level) = (ev.species, ev.level);
+            go!(
+                builder!(FaerSparseMat<f64>).root(
+                    move |x: &[f64], _p: &[f64], _t: f64, y: &mut [f64]| y[0] = x[i] - level,
+                    1
+                ),
+                FaerSparseLU<f64>
+            )
+        }
+        (None, false) => go!(builder!(NalgebraMat<f64>), NalgebraLU<f64>),
+        (None, true) => go!(builder!(FaerSparseMat<f64>), FaerSparseLU<f64>),
     }
     Ok(out)
 }

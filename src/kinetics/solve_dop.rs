@@ -21,6 +21,7 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
         states: vec![y0.to_vec()],
         counts: Counts::default(),
         stop: Stop::EndTime,
+        sparse: false,
     };
     let mut y = DVector::from_vec(y0.to_vec());
     // Integrate from output time to output time so every output is a solver point.

@@ -1,0 +1,104 @@
+//! `photoledger bench [FILE...]`: time the kinetics on networks and on a generated large one.
+
+use super::load;
+use photoledger::bench::{Size, large_network};
+use photoledger::kinetics::{self, Method, Options};
+use photoledger::model::Model;
+use photoledger::units::{self, Quantity};
+use std::path::PathBuf;
+use std::time::Instant;
+
+/// Options of `bench`.
+#[derive(clap::Args, Debug)]
+pub struct BenchArgs {
+    /// Network files to time (each for --until); the generated network is always added.
+    pub files: Vec<PathBuf>,
+    /// Simulated time for each run.
+    #[arg(long, default_value = "1 h")]
+    pub until: String,
+    /// Species of the generated network.
+    #[arg(long, default_value_t = 1000)]
+    pub species: usize,
+    /// Thermal steps of the generated network.
+    #[arg(long, default_value_t = 5000)]
+    pub steps: usize,
+    /// Absorbing species of the generated network.
+    #[arg(long, default_value_t = 50)]
+    pub absorbers: usize,
+    /// Also time the generated network with dense linear algebra.
+    #[arg(long)]
+    pub dense_too: bool,
+}
+
+struct Row {
+    name: String,
+    species: usize,
+    reactions: usize,
+    bins: usize,
+    method: String,
+    steps: usize,
+    rhs: usize,
+    jv: usize,
+    setups: usize,
+    seconds: f64,
+}
+
+fn time(name: &str, model: &Model, until: f64, sparse: Option<bool>) -> photoledger::Result<Row> {
+    let mut opts = Options::until(until);
+    opts.method = Method::Bdf;
+    opts.sparse = sparse;
+    let start = Instant::now();
+    let tr = kinetics::simulate(model, &opts, &mut |_| {})?;
+    let seconds = start.elapsed().as_secs_f64();
+    Ok(Row {
+        name: name.to_string(),
+        species: model.n_species(),
+        reactions: model.reactions.len(),
+        bins: model.bins.len(),
+        method: format!("BDF {}", if tr.sparse { "sparse" } else { "dense" }),
+        steps: tr.counts.steps,
+        rhs: tr.counts.rhs,
+        jv: tr.counts.jacobian_products,
+        setups: tr.counts.jacobian_setups,
+        seconds,
+    })
+}
+
+pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
+    let until = units::parse(&a.until, Quantity::Time)
+        .map_err(|e| photoledger::Error::Usage(format!("--until: {e}; expected {}", Quantity::Time.accepted())))?;
+    let mut rows = Vec::new();
+    for f in &a.files {
+        let net = load(&super::NetworkArgs {
+            file: f.clone(),
+            set: Vec::new(),
+        })?;
+        let model = Model::compile(&net);
+        rows.push(time(&f.display().to_string(), &model, until, None)?);
+    }
+    let size = Size {
+        species: a.species.max(2),
+        steps: a.steps,
+        absorbers: a.absorbers.min(a.species),
+    };
+    let text = large_network(size, 2026);
+    let loaded = photoledger::file::parse_text(std::path::Path::new("generated.toml"), text)?;
+    let net = photoledger::network::build(&loaded, &photoledger::Overrides::none())?;
+    let model = Model::compile(&net);
+    let name = format!("generated {}×{}", size.species, size.steps);
+    rows.push(time(&name, &model, until, Some(true))?);
+    if a.dense_too {
+        rows.push(time(&name, &model, until, Some(false))?);
+    }
+    println!(
+        "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>10}",
+        "network", "species", "reactions", "bins", "method", "steps", "RHS", "J·v", "LU", "wall (s)"
+    );
+    for r in rows {
+        println!(
+            "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>10.3}",
+            r.name, r.species, r.reactions, r.bins, r.method, r.steps, r.rhs, r.jv, r.setups, r.seconds
+        );
+    }
+    Ok(())
+}
