@@ -139,7 +139,15 @@ impl<'a> Builder<'a> {
         let mut names: BTreeMap<String, Origin> = BTreeMap::new();
         let species = self.species(doc, &mut names);
         let transient_heads = self.transient_heads(doc, &mut names);
-        let conditions = conditions?;
+        // With broken conditions, go on checking the rest at a stand-in temperature so every
+        // problem is listed; the network is not returned (an error was recorded).
+        let conditions = conditions.unwrap_or(Conditions {
+            temperature: 298.15,
+            volume: 1e-3,
+            path_length: 0.01,
+            irradiated_area: None,
+            background: Spectrum::Constant { value: 0.0, at: None },
+        });
         let t = conditions.temperature;
         let resolver = Names {
             species: &species,
@@ -747,7 +755,10 @@ impl<'a> Builder<'a> {
                             &format!("{field}.initial"),
                             &f.origin,
                             format!("\"{}\" is negative", f.value),
-                            None,
+                            Some(format!(
+                                "a concentration of zero or more: {}",
+                                Quantity::Concentration.accepted()
+                            )),
                         );
                         0.0
                     }
@@ -1493,7 +1504,10 @@ impl<'a> Builder<'a> {
                     cat,
                 ));
             }
-            self.check_channels(&field, &at, &channels);
+            // A channel already reported as broken would only add follow-on errors about sums.
+            if channels.len() == t.get_ref().channels.len() {
+                self.check_channels(&field, &at, &channels);
+            }
             out.push(Transient {
                 name,
                 kind,

@@ -211,8 +211,8 @@ impl Builder<'_> {
             };
             let mut ends: Vec<(String, Vec<Term>)> = Vec::new();
             match &p.outcome {
-                PhotoOutcome::Products(t) => ends.push((p.name.clone(), t.clone())),
-                PhotoOutcome::Transient(t) => collect_ends(net, *t, &mut Vec::new(), &mut ends),
+                PhotoOutcome::Products(t) => ends.push((String::new(), t.clone())),
+                PhotoOutcome::Transient(t) => collect_ends(net, *t, &mut vec![false; net.transients.len()], &mut ends),
             }
             for (label, terms) in ends {
                 if let Some(r) = comp(&terms) {
@@ -221,7 +221,7 @@ impl Builder<'_> {
                         self.error(
                             &format!("photo \"{}\"", p.name),
                             &at,
-                            format!("{} -> {} ({label}) is not balanced: products − absorber = {d}", net.species[p.absorber].name, net.side(&terms)),
+                            format!("{} -> {}{label} is not balanced: products − absorber = {d}", net.species[p.absorber].name, net.side(&terms)),
                             Some("photochemical outcomes keep the absorber's atoms; a partner's atoms enter through thermal steps".into()),
                         );
                     }
@@ -325,28 +325,20 @@ impl Builder<'_> {
     }
 }
 
-/// Follow channels from transient `t` to every species outcome (for balance checks).
-fn collect_ends(net: &Network, t: usize, path: &mut Vec<usize>, out: &mut Vec<(String, Vec<Term>)>) {
-    if path.contains(&t) || path.len() > 64 {
+/// Every species outcome reachable from transient `t` through channels, each with the
+/// transient it leaves. Each transient is visited once, so long ladders of transients stay
+/// linear in their size.
+fn collect_ends(net: &Network, t: usize, seen: &mut Vec<bool>, out: &mut Vec<(String, Vec<Term>)>) {
+    if seen[t] {
         return;
     }
-    path.push(t);
+    seen[t] = true;
     for c in &net.transients[t].channels {
         match &c.target {
-            Target::Species(terms) => out.push((
-                format!(
-                    "via {}",
-                    path.iter()
-                        .map(|&i| net.transients[i].name.as_str())
-                        .collect::<Vec<_>>()
-                        .join(" -> ")
-                ),
-                terms.clone(),
-            )),
-            Target::Transient(j) => collect_ends(net, *j, path, out),
+            Target::Species(terms) => out.push((format!(" (via {})", net.transients[t].name), terms.clone())),
+            Target::Transient(j) => collect_ends(net, *j, seen, out),
         }
     }
-    path.pop();
 }
 
 /// Mark channels that send the molecule back to a species that was excited into the transient.

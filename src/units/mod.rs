@@ -265,6 +265,12 @@ fn split_number(s: &str) -> Result<(f64, &str), UnitError> {
             return Ok((v, s[cut..].trim()));
         }
     }
+    let lower = s.trim_start_matches(['+', '-']).to_ascii_lowercase();
+    if lower.starts_with("inf") || lower.starts_with("nan") {
+        return Err(UnitError {
+            problem: format!("\"{s}\" is not a finite number"),
+        });
+    }
     Err(UnitError {
         problem: format!("\"{s}\" does not start with a number"),
     })
@@ -448,13 +454,14 @@ pub fn parse(text: &str, q: Quantity) -> Result<f64, UnitError> {
         Quantity::Irradiance => want(IRRADIANCE),
         Quantity::MolarEnergy => match unit.dim {
             MOLAR_ENERGY => Ok(si),
-            ENERGY => Ok(si * AVOGADRO),
+            // Per molecule only in electronvolts: "23.5 kcal" without /mol is a slip, not a choice.
+            ENERGY if unit_text.trim().ends_with("eV") => Ok(si * AVOGADRO),
             WAVENUMBER => Ok(si * PLANCK * SPEED_OF_LIGHT * AVOGADRO),
             _ => Err(wrong()),
         },
         Quantity::MolarEntropy => want(MOLAR_ENTROPY),
         Quantity::RateConstant(n) => {
-            let k = n as i32 - 1;
+            let k = n.min(8) as i32 - 1;
             // (m³/mol)^(n-1) / s
             let dim: Dim = [3 * k, 0, -1, -k, 0, 0];
             want(dim).map(|v| v * 1000f64.powi(k))
