@@ -304,3 +304,40 @@ fn sparse_and_dense_linear_algebra_agree_on_a_generated_network() {
         assert!((x - y).abs() < 1e-6 * scale, "{x} vs {y}");
     }
 }
+
+#[test]
+fn event_stops_at_the_half_life() {
+    // First-order decay reaches half its start at t½ = ln 2 / k (common practice).
+    let net = network(
+        r#"
+[conditions]
+temperature = "298.15 K"
+volume = "1 L"
+path_length = "1 cm"
+[[species]]
+name = "A"
+initial = "2 mM"
+[[species]]
+name = "B"
+[[thermal]]
+equation = "A -> B"
+rate = { k = "0.01 /s" }
+"#,
+    );
+    let model = Model::compile(&net);
+    let mut opts = Options::until(1e4);
+    opts.rtol = 1e-10;
+    opts.atol = 1e-16;
+    opts.event = Some(kinetics::Event {
+        species: 0,
+        level: 1e-3,
+    });
+    let tr = kinetics::simulate(&model, &opts, &mut |_| {}).unwrap();
+    let kinetics::Stop::Event(t) = tr.stop else {
+        panic!("no event: {:?}", tr.stop)
+    };
+    let want = std::f64::consts::LN_2 / 0.01;
+    assert!((t - want).abs() < 1e-6 * want, "{t} vs {want}");
+    assert!((tr.last()[0] - 1e-3).abs() < 1e-9, "{}", tr.last()[0]);
+    assert_eq!(*tr.times.last().unwrap(), t);
+}

@@ -38,6 +38,27 @@ pub struct SimulateArgs {
     /// Space output times logarithmically (and plot a log time axis).
     #[arg(long)]
     pub log_time: bool,
+    /// Stop early when a species crosses a level, e.g. "E-azo < 10 µM" or "product > 5 mM"
+    /// (--until is then the longest time to wait).
+    #[arg(long, value_name = "CONDITION")]
+    pub stop_when: Option<String>,
+}
+
+/// Read "NAME < LEVEL" or "NAME > LEVEL" into an event on the model's species.
+fn parse_stop(text: &str, model: &Model) -> photoledger::Result<kinetics::Event> {
+    let usage = |m: String| {
+        Error::Usage(format!(
+            "--stop-when \"{text}\": {m}; write e.g. \"E-azo < 10 µM\" or \"product > 5 mM\""
+        ))
+    };
+    let (name, level) = text.split_once(['<', '>']).ok_or_else(|| usage("no < or >".into()))?;
+    let level = level.trim_start_matches('=').trim();
+    let name = name.trim();
+    let species = model
+        .species_index(name)
+        .ok_or_else(|| usage(format!("unknown species \"{name}\"")))?;
+    let level = units::parse(level, Quantity::Concentration).map_err(|e| usage(e.problem))?;
+    Ok(kinetics::Event { species, level })
 }
 
 pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {
@@ -60,6 +81,9 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {
     opts.atol = atol;
     opts.outputs = a.points.max(2);
     opts.log_time = a.log_time;
+    if let Some(c) = &a.stop_when {
+        opts.event = Some(parse_stop(c, &model)?);
+    }
     let bar = if std::io::stderr().is_terminal() {
         let b = indicatif::ProgressBar::new(1000);
         b.set_style(

@@ -26,7 +26,7 @@ pub enum Method {
     Dop853,
 }
 
-/// Stop when a species crosses a level.
+/// Stop when a species crosses a level (in either direction).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Event {
     /// Species index.
@@ -246,6 +246,16 @@ pub fn simulate(model: &Model, opts: &Options, progress: &mut dyn FnMut(f64)) ->
         }
     };
     let times = output_times(opts);
+    // An event already met at the start stops the run there.
+    if let Some(ev) = opts.event
+        && ev.species < model.n_species()
+        && (y0[ev.species] - ev.level).abs() <= f64::EPSILON * ev.level.abs()
+    {
+        return Err(Error::Usage(format!(
+            "{} starts at the stop level; choose another level",
+            model.species[ev.species]
+        )));
+    }
     let (mut run, method, reason) = match method {
         Method::Bdf => (solve_bdf::run(&rhs, &y0, &times, opts, progress)?, method, reason),
         _ => match solve_dop::run(&rhs, &y0, &times, opts, progress) {

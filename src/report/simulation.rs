@@ -134,7 +134,7 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
         end_time_s: t,
         stopped_by: match tr.stop {
             Stop::EndTime => "end time".into(),
-            Stop::Event(te) => format!("event at {te} s"),
+            Stop::Event(te) => format!("stop condition met at {}", crate::units::format_time(te)),
         },
         method: MethodSummary {
             name: match tr.method {
