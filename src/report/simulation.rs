@@ -209,46 +209,43 @@ fn line_plot(title: &str, y_label: &str, times: &[f64], series: &[(String, Vec<f
                 let xs: Vec<f64> = times.iter().map(|t| t / tu).collect();
                 let pts =
                     |s: &Vec<f64>| -> Vec<(f64, f64)> { xs.iter().zip(s).map(|(x, y)| (*x, y / yscale)).collect() };
+                // The same mesh, lines and legend on either time axis.
+                macro_rules! lines {
+                    ($chart:expr, $x_desc:expr, $keep:expr) => {{
+                        let mut c = $chart;
+                        c.configure_mesh()
+                            .x_desc($x_desc)
+                            .y_desc(yunit.clone())
+                            .label_style(("sans-serif", 15))
+                            .draw()?;
+                        for (i, (name, s)) in series.iter().enumerate() {
+                            let col = PALETTE[i % PALETTE.len()];
+                            let p: Vec<(f64, f64)> = pts(s).into_iter().filter($keep).collect();
+                            c.draw_series(LineSeries::new(p, col.stroke_width(2)))?
+                                .label(name.clone())
+                                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
+                        }
+                        c.configure_series_labels()
+                            .background_style(WHITE.mix(0.85))
+                            .border_style(BLACK)
+                            .label_font(("sans-serif", 15))
+                            .draw()?;
+                    }};
+                }
+                let x1 = xs.iter().cloned().fold(0.0, f64::max).max(1e-30);
                 if log_time {
                     let x0 = xs.iter().cloned().filter(|x| *x > 0.0).fold(f64::INFINITY, f64::min);
-                    let x1 = xs.iter().cloned().fold(0.0, f64::max);
-                    let mut c = b.build_cartesian_2d((x0..x1).log_scale(), 0.0..ytop)?;
-                    c.configure_mesh()
-                        .x_desc(format!("time ({tname}, log scale)"))
-                        .y_desc(yunit.clone())
-                        .label_style(("sans-serif", 15))
-                        .draw()?;
-                    for (i, (name, s)) in series.iter().enumerate() {
-                        let col = PALETTE[i % PALETTE.len()];
-                        let p: Vec<(f64, f64)> = pts(s).into_iter().filter(|p| p.0 > 0.0).collect();
-                        c.draw_series(LineSeries::new(p, col.stroke_width(2)))?
-                            .label(name.clone())
-                            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
-                    }
-                    c.configure_series_labels()
-                        .background_style(WHITE.mix(0.85))
-                        .border_style(BLACK)
-                        .label_font(("sans-serif", 15))
-                        .draw()?;
+                    lines!(
+                        b.build_cartesian_2d((x0..x1).log_scale(), 0.0..ytop)?,
+                        format!("time ({tname}, log scale)"),
+                        |p: &(f64, f64)| p.0 > 0.0
+                    );
                 } else {
-                    let x1 = xs.iter().cloned().fold(0.0, f64::max).max(1e-30);
-                    let mut c = b.build_cartesian_2d(0.0..x1, 0.0..ytop)?;
-                    c.configure_mesh()
-                        .x_desc(format!("time ({tname})"))
-                        .y_desc(yunit.clone())
-                        .label_style(("sans-serif", 15))
-                        .draw()?;
-                    for (i, (name, s)) in series.iter().enumerate() {
-                        let col = PALETTE[i % PALETTE.len()];
-                        c.draw_series(LineSeries::new(pts(s), col.stroke_width(2)))?
-                            .label(name.clone())
-                            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
-                    }
-                    c.configure_series_labels()
-                        .background_style(WHITE.mix(0.85))
-                        .border_style(BLACK)
-                        .label_font(("sans-serif", 15))
-                        .draw()?;
+                    lines!(
+                        b.build_cartesian_2d(0.0..x1, 0.0..ytop)?,
+                        format!("time ({tname})"),
+                        |_: &(f64, f64)| true
+                    );
                 }
                 Ok(())
             };
@@ -258,31 +255,20 @@ fn line_plot(title: &str, y_label: &str, times: &[f64], series: &[(String, Vec<f
     svg
 }
 
-/// A scale factor and axis label for values up to `max` of a quantity named `label`.
+/// A scale factor and axis label for values up to `max` of a quantity named `label`
+/// ("concentration" in mol/L, otherwise photons in einstein).
 fn scale_for(max: f64, label: &str) -> (f64, String) {
-    if label == "concentration" {
-        let (f, u) = if max >= 0.5 {
-            (1.0, "M")
-        } else if max >= 5e-4 {
-            (1e-3, "mM")
-        } else if max >= 5e-7 {
-            (1e-6, "µM")
-        } else {
-            (1e-9, "nM")
-        };
-        (f, format!("concentration ({u})"))
+    let (name, units) = if label == "concentration" {
+        ("concentration", ["M", "mM", "µM", "nM"])
     } else {
-        let (f, u) = if max >= 0.5 {
-            (1.0, "einstein")
-        } else if max >= 5e-4 {
-            (1e-3, "millieinstein")
-        } else if max >= 5e-7 {
-            (1e-6, "µeinstein")
-        } else {
-            (1e-9, "neinstein")
-        };
-        (f, format!("photons ({u})"))
-    }
+        ("photons", ["einstein", "millieinstein", "µeinstein", "neinstein"])
+    };
+    let (f, u) = [(0.5, 1.0), (5e-4, 1e-3), (5e-7, 1e-6)]
+        .iter()
+        .zip(units)
+        .find(|((above, _), _)| max >= *above)
+        .map_or((1e-9, units[3]), |((_, f), u)| (*f, u));
+    (f, format!("{name} ({u})"))
 }
 
 /// concentrations.svg.
