@@ -90,7 +90,9 @@ pub struct Summary {
     pub method: MethodSummary,
     /// Final concentrations, mol/L, by species.
     pub final_concentrations_mol_per_l: Vec<(String, f64)>,
-    /// The photon ledger at the end.
+    /// The unit of every photon amount in `photons`.
+    pub photon_unit: String,
+    /// The photon ledger at the end (amounts in einstein).
     pub photons: Ledger,
     /// Species that went negative beyond tolerance: (species, time s, value mol/L).
     pub negative_concentrations: Vec<(String, f64, f64)>,
@@ -151,6 +153,7 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
             atol,
         },
         final_concentrations_mol_per_l: model.species.iter().cloned().zip(y.iter().copied()).collect(),
+        photon_unit: "einstein".into(),
         photons: ledger::read(model, &tr.layout, t, y),
         negative_concentrations: tr
             .negatives
