@@ -12,12 +12,13 @@
 //! q_b 10^(−A_b) passes through, so the three add up to q_b exactly. An outcome o of absorber a
 //! runs at R_o = Σ_b W_ab Y_ob / V (mol L⁻¹ s⁻¹), with Y_ob its yield at that bin.
 //!
-//! Evaluations reuse buffers held in the struct: no allocation per call, except re-solving
-//! the small transient collapse when a quencher concentration has changed.
+//! Evaluations reuse buffers held in the struct and never allocate: the small transient
+//! collapse, re-solved whenever a quencher concentration has changed, is solved in place into
+//! buffers made once by [`Rhs::new`].
 
 use super::Model;
 use super::absorption::{dg, g};
-use super::transients::Collapsed;
+use super::transients::CollapseWork;
 use std::cell::{Cell, RefCell};
 
 /// Where each ledger quantity sits in the state vector.
@@ -67,9 +68,6 @@ struct Work {
     da: Vec<f64>,
 }
 
-/// The collapse last solved, with the quencher concentrations it was solved at.
-type CollapseCache = Option<(Vec<f64>, Collapsed)>;
-
 /// The right-hand side of one model, with counters of its use.
 pub struct Rhs<'m> {
     /// The model.
@@ -77,7 +75,8 @@ pub struct Rhs<'m> {
     /// The state layout.
     pub layout: LedgerLayout,
     work: RefCell<Work>,
-    cache: RefCell<CollapseCache>,
+    /// The collapse last solved, with the quencher concentrations it was solved at.
+    cache: RefCell<CollapseWork>,
     /// Number of right-hand-side evaluations.
     pub rhs_calls: Cell<usize>,
     /// Number of Jacobian-vector products.
@@ -103,7 +102,7 @@ impl<'m> Rhs<'m> {
                 dg: vec![0.0; nb],
                 da: vec![0.0; nb],
             }),
-            cache: RefCell::new(None),
+            cache: RefCell::new(model.collapse.work()),
             rhs_calls: Cell::new(0),
             jac_calls: Cell::new(0),
         }
@@ -132,20 +131,13 @@ impl<'m> Rhs<'m> {
 
     /// Refresh the transient collapse if the quencher concentrations changed; None when the
     /// network has no transients.
-    fn collapse<'w>(&self, c: &[f64], cache: &'w mut CollapseCache) -> Option<&'w Collapsed> {
+    fn collapse<'w>(&self, c: &[f64], cache: &'w mut CollapseWork) -> Option<&'w CollapseWork> {
         let col = &self.model.collapse;
         if col.n == 0 {
             return None;
         }
-        let fresh = match cache {
-            Some((k, _)) => k.len() == col.quenchers.len() && k.iter().zip(&col.quenchers).all(|(v, &q)| *v == c[q]),
-            None => false,
-        };
-        if !fresh {
-            let key: Vec<f64> = col.quenchers.iter().map(|&q| c[q]).collect();
-            *cache = Some((key, col.solve(c, col.depends_on_concentrations())));
-        }
-        cache.as_ref().map(|x| &x.1)
+        col.update(c, cache);
+        Some(cache)
     }
 
     /// dy/dt at state `y` (concentrations then ledger).
@@ -190,7 +182,7 @@ impl<'m> Rhs<'m> {
         for (o, out) in m.outcomes.iter().enumerate() {
             let sp = m.absorbers[out.slot];
             let mult = match (out.via, collapsed) {
-                (Some((t, e)), Some(col)) => col.x[(t, e)],
+                (Some((t, e)), Some(col)) => col.x(t, e),
                 (Some(_), None) => 0.0,
                 (None, _) => 1.0,
             };
@@ -267,8 +259,12 @@ impl<'m> Rhs<'m> {
             let sp = m.absorbers[outc.slot];
             let (mult, dmult) = match (outc.via, collapsed) {
                 (Some((t, e)), Some(col)) => {
-                    let dm: f64 = col.dx.iter().zip(quenchers).map(|(d, &q)| d[(t, e)] * dc[q]).sum();
-                    (col.x[(t, e)], dm)
+                    let dm: f64 = quenchers
+                        .iter()
+                        .enumerate()
+                        .map(|(qi, &q)| col.dx(qi, t, e) * dc[q])
+                        .sum();
+                    (col.x(t, e), dm)
                 }
                 (Some(_), None) => (0.0, 0.0),
                 (None, _) => (1.0, 0.0),
