@@ -7,6 +7,7 @@
 //! See DEVELOPERS.md for the map.
 
 pub mod bench;
+pub mod chain;
 pub mod error;
 pub mod file;
 pub mod kinetics;

@@ -7,6 +7,7 @@
 mod bench;
 mod check;
 mod diagram;
+mod ledger;
 mod simulate;
 
 use clap::{Parser, Subcommand};
@@ -45,6 +46,8 @@ enum Command {
     Bench(bench::BenchArgs),
     /// Integrate the kinetics under the network's light and keep the photon ledger.
     Simulate(simulate::SimulateArgs),
+    /// Follow one molecule as an absorbing Markov chain: yields, cycles, photons per product.
+    Ledger(ledger::LedgerArgs),
     /// Draw the network as SVG (species, transients, thermal and photochemical steps).
     Diagram {
         #[command(flatten)]
@@ -72,6 +75,7 @@ pub fn run() -> i32 {
         Command::Diagram { net, out, dot } => diagram::run(&net, &out, dot),
         Command::Simulate(a) => simulate::run(&a),
         Command::Bench(a) => bench::run(&a),
+        Command::Ledger(a) => ledger::run(&a),
     };
     match result {
         Ok(()) => 0,

@@ -1,0 +1,560 @@
+//! The chain of one molecule, built from the compiled [`Model`] and the transients of its
+//! [`Network`].
+//!
+//! Rates come from the model (reaction rate constants, ε per bin, photon bins, base yields per
+//! bin) and the transients' channel shares follow the same rule as the model's collapse: fixed
+//! fractions as given ("rest" is what the others leave), rates normalised by the transient's
+//! total rate, quenching at k₂ [partner]. Nothing is re-derived from the file.
+//!
+//! Where the molecule goes when a step has several products: to the first product written
+//! (write the species you follow first). Photon absorption per molecule, s⁻¹, either
+//! - [`Light::Stirred`] (default): its share of the light absorbed in the well-stirred cell at
+//!   the stated concentrations, k_a = Σ_b q_b g(A_b) l ε_ab / V (q_b einstein/s, l in m,
+//!   ε in L mol⁻¹ m⁻¹, V in L, g(A) = (1 − 10^−A)/A, A_b including the background), which
+//!   needs no irradiated area; or
+//! - [`Light::Thin`]: the optically thin limit Σ_b σ_b E_b with σ = 1000 ln(10) ε / N_A
+//!   (ε in L mol⁻¹ cm⁻¹, σ in cm², converted to m²) and photon irradiance E_b = q_b N_A / S
+//!   (photons m⁻² s⁻¹) over the irradiated area S.
+
+use super::{Chain, Counted, StateKind};
+use crate::error::{Error, Result};
+use crate::model::Model;
+use crate::model::absorption::g;
+use crate::network::{Branching, Network, PhotoOutcome, Target};
+use crate::rates::RateLaw;
+use crate::units::constants::{AVOGADRO, cross_section_m2};
+
+/// How the per-molecule photon absorption rate is found.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Light {
+    /// The well-stirred cell at the stated concentrations (inner filter and background included).
+    Stirred,
+    /// The optically thin limit over the irradiated area (needs `irradiated_area`).
+    Thin,
+}
+
+/// Conditions at which the chain is built.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Settings {
+    /// The light model.
+    pub light: Light,
+    /// Concentrations for light absorption, linearised bimolecular steps and quenching, mol/L
+    /// (None: the initial ones).
+    pub concentrations: Option<Vec<f64>>,
+}
+
+impl Default for Settings {
+    fn default() -> Self {
+        Settings {
+            light: Light::Stirred,
+            concentrations: None,
+        }
+    }
+}
+
+/// Which number of the model a [`Parameter`] is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Slot {
+    /// A factor on the quantum yield (or efficiency) spectrum of photochemical step p.
+    YieldFactor(usize),
+    /// The value of channel c of transient t: a fraction, a rate (s⁻¹) or a quenching
+    /// constant (L mol⁻¹ s⁻¹).
+    Channel(usize, usize),
+    /// The rate constant of model reaction r, (L/mol)^(n−1) s⁻¹.
+    Reaction(usize),
+}
+
+/// One number the answer may hang on.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Parameter {
+    /// Display label.
+    pub label: String,
+    /// Where it sits.
+    pub slot: Slot,
+    /// Its value (1 for yield factors).
+    pub value: f64,
+    /// Unit of `value`, written out.
+    pub unit: &'static str,
+    /// True when it is a rate constant given by a barrier (Eyring or Arrhenius), so that
+    /// ∂/∂(barrier) = −(k/RT) ∂/∂k.
+    pub barrier: bool,
+}
+
+/// The numbers the chain is built from, editable for sensitivities.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Values {
+    /// Per photochemical step: factor on its yield spectrum.
+    pub yield_factor: Vec<f64>,
+    /// Per transient, per channel: fraction, rate or k₂ (NaN for "rest").
+    pub channel: Vec<Vec<f64>>,
+    /// Per model reaction: rate constant.
+    pub reaction: Vec<f64>,
+}
+
+impl Values {
+    /// The values as compiled.
+    pub fn of(model: &Model, net: &Network) -> Values {
+        Values {
+            yield_factor: vec![1.0; net.photo.len()],
+            channel: net
+                .transients
+                .iter()
+                .map(|t| {
+                    t.channels
+                        .iter()
+                        .map(|c| match c.branching {
+                            Branching::Fraction(x) => x,
+                            Branching::Rest => f64::NAN,
+                            Branching::Rate { k, .. } => k,
+                            Branching::Quenching { k2, .. } => k2,
+                        })
+                        .collect()
+                })
+                .collect(),
+            reaction: model.reactions.iter().map(|r| r.k).collect(),
+        }
+    }
+
+    /// The value at `slot`.
+    pub fn get(&self, slot: Slot) -> f64 {
+        match slot {
+            Slot::YieldFactor(p) => self.yield_factor[p],
+            Slot::Channel(t, c) => self.channel[t][c],
+            Slot::Reaction(r) => self.reaction[r],
+        }
+    }
+
+    /// Set the value at `slot`.
+    pub fn set(&mut self, slot: Slot, v: f64) {
+        match slot {
+            Slot::YieldFactor(p) => self.yield_factor[p] = v,
+            Slot::Channel(t, c) => self.channel[t][c] = v,
+            Slot::Reaction(r) => self.reaction[r] = v,
+        }
+    }
+}
+
+fn is_barrier(law: &RateLaw) -> bool {
+    !matches!(law, RateLaw::Constant(_))
+}
+
+/// Every quantum yield, fraction, rate and barrier of the network that the chain uses.
+pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
+    let vals = Values::of(model, net);
+    let mut out = Vec::new();
+    for (p, step) in net.photo.iter().enumerate() {
+        if model.outcomes.iter().any(|o| o.step == p) {
+            out.push(Parameter {
+                label: format!("quantum yield of \"{}\" (factor on its spectrum)", step.name),
+                slot: Slot::YieldFactor(p),
+                value: 1.0,
+                unit: "1",
+                barrier: false,
+            });
+        }
+    }
+    for (t, tr) in net.transients.iter().enumerate() {
+        for (c, ch) in tr.channels.iter().enumerate() {
+            let to = target_name(net, &ch.target);
+            let (unit, barrier) = match &ch.branching {
+                Branching::Rest => continue,
+                Branching::Fraction(_) => ("1", false),
+                Branching::Rate { law, .. } => ("1/s", is_barrier(law)),
+                Branching::Quenching { law, .. } => ("L/(mol s)", is_barrier(law)),
+            };
+            let what = match unit {
+                "1" => "fraction",
+                "1/s" => "rate",
+                _ => "quenching rate constant",
+            };
+            out.push(Parameter {
+                label: format!("{what} {} -> {to}", tr.name),
+                slot: Slot::Channel(t, c),
+                value: vals.channel[t][c],
+                unit,
+                barrier,
+            });
+        }
+    }
+    for (r, re) in model.reactions.iter().enumerate() {
+        let order: u32 = re.reactants.iter().map(|x| x.1).sum();
+        out.push(Parameter {
+            label: format!("rate constant of \"{}\"", re.name),
+            slot: Slot::Reaction(r),
+            value: re.k,
+            unit: if order == 1 { "1/s" } else { "L/(mol s)" },
+            barrier: net.thermal.get(r).is_some_and(|t| is_barrier(&t.rate)),
+        });
+    }
+    out
+}
+
+fn target_name(net: &Network, t: &Target) -> String {
+    match t {
+        Target::Transient(k) => net.transients[*k].name.clone(),
+        Target::Species(terms) => terms
+            .iter()
+            .map(|x| net.species[x.species].name.clone())
+            .collect::<Vec<_>>()
+            .join(" + "),
+    }
+}
+
+/// Per-molecule photon absorption rate of each absorber slot per bin, s⁻¹.
+pub fn absorption_rates(model: &Model, net: &Network, light: Light, c: &[f64]) -> Result<Vec<Vec<f64>>> {
+    let nb = model.bins.len();
+    let ns = model.absorbers.len();
+    let mut k = vec![vec![0.0; nb]; ns];
+    match light {
+        Light::Stirred => {
+            for b in 0..nb {
+                let mut a = model.background[b];
+                for (slot, &s) in model.absorbers.iter().enumerate() {
+                    a += model.path * model.eps[slot * nb + b] * c[s].max(0.0);
+                }
+                let gb = g(a);
+                for (slot, row) in k.iter_mut().enumerate() {
+                    row[b] = model.bins[b].flux * gb * model.path * model.eps[slot * nb + b] / model.volume;
+                }
+            }
+        }
+        Light::Thin => {
+            let area = net.conditions.irradiated_area.filter(|a| *a > 0.0).ok_or_else(|| {
+                Error::Usage(
+                    "the optically thin light model needs conditions.irradiated_area; give it in the file, or use \
+                     the stirred-cell model"
+                        .into(),
+                )
+            })?;
+            for b in 0..nb {
+                let irradiance = model.bins[b].flux * AVOGADRO / area; // photons m⁻² s⁻¹
+                for (slot, row) in k.iter_mut().enumerate() {
+                    // ε inside is L mol⁻¹ m⁻¹; cross_section_m2 takes L mol⁻¹ cm⁻¹.
+                    row[b] = cross_section_m2(model.eps[slot * nb + b] / 100.0) * irradiance;
+                }
+            }
+        }
+    }
+    Ok(k)
+}
+
+/// The species a step leads the molecule to: the first species with a positive net change,
+/// `Some(None)` for nothing (removed), None when nothing changes.
+fn follow(net: &[(usize, f64)]) -> Option<Option<usize>> {
+    if net.is_empty() {
+        return None;
+    }
+    Some(net.iter().find(|x| x.1 > 0.0).map(|x| x.0))
+}
+
+fn fmt_conc(c: f64) -> String {
+    crate::units::format_concentration(c)
+}
+
+/// Build the chain of `model` (with the transients of `net`) at `settings`, with `values`.
+pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values) -> Result<Chain> {
+    let ns = model.n_species();
+    let nt = net.transients.len();
+    let c: Vec<f64> = match &settings.concentrations {
+        Some(c) if c.len() == ns => c.clone(),
+        Some(c) => {
+            return Err(Error::Usage(format!(
+                "{} concentrations given for {ns} species",
+                c.len()
+            )));
+        }
+        None => model.initial.clone(),
+    };
+    let mut chain = Chain::default();
+    let kabs = absorption_rates(model, net, settings.light, &c)?;
+    let nb = model.bins.len();
+    // Exit rates per species: (to, rate, photon-step label) accumulated first.
+    struct Exit {
+        to: Option<usize>, // None: removed
+        rate: f64,
+        photon: bool,
+        counted: Option<String>,
+    }
+    let mut exits: Vec<Vec<Exit>> = (0..ns).map(|_| Vec::new()).collect();
+    for (slot, &a) in model.absorbers.iter().enumerate() {
+        let ka: f64 = kabs[slot].iter().sum();
+        if ka <= 0.0 {
+            continue;
+        }
+        let mut used = 0.0;
+        let mut steps: Vec<usize> = model
+            .outcomes
+            .iter()
+            .filter(|o| o.slot == slot)
+            .map(|o| o.step)
+            .collect();
+        steps.dedup();
+        for p in steps {
+            let Some(o) = model.outcomes.iter().find(|o| o.step == p) else {
+                continue;
+            };
+            let f = values.yield_factor[p].max(0.0);
+            let rate: f64 = (0..nb).map(|b| kabs[slot][b] * o.base[b] * f).sum();
+            if rate <= 0.0 {
+                continue;
+            }
+            used += rate;
+            let (to, counted) = match &net.photo[p].outcome {
+                PhotoOutcome::Transient(t) => (Some(ns + t), None),
+                PhotoOutcome::Products(_) => match follow(&o.net) {
+                    None => (
+                        Some(a),
+                        Some(format!(
+                            "\"{}\": photon absorbed by {}, no change",
+                            net.photo[p].name, model.species[a]
+                        )),
+                    ),
+                    Some(s) => (s, None),
+                },
+            };
+            exits[a].push(Exit {
+                to,
+                rate,
+                photon: true,
+                counted,
+            });
+        }
+        let rest = ka - used;
+        if rest > ka * 1e-15 {
+            exits[a].push(Exit {
+                to: Some(a),
+                rate: rest,
+                photon: true,
+                counted: Some(format!(
+                    "photon absorbed by {}, no reaction (1 − quantum yields)",
+                    model.species[a]
+                )),
+            });
+        }
+    }
+    for (r, re) in model.reactions.iter().enumerate() {
+        let k = values.reaction[r];
+        for &(s, _) in &re.reactants {
+            let loss = re.net.iter().find(|x| x.0 == s).map_or(0.0, |x| -x.1);
+            if loss <= 0.0 {
+                continue;
+            }
+            // Per-molecule rate of loss of s: loss · k Π c^ν / c_s.
+            let mut rate = loss * k;
+            let mut partners = Vec::new();
+            for &(i, nui) in &re.reactants {
+                let pow = if i == s { nui as i32 - 1 } else { nui as i32 };
+                if pow > 0 {
+                    rate *= c[i].max(0.0).powi(pow);
+                    partners.push(format!("[{}] = {}", model.species[i], fmt_conc(c[i].max(0.0))));
+                }
+            }
+            if !partners.is_empty() {
+                if rate > 0.0 {
+                    chain.notes.push(format!(
+                        "\"{}\" is not first order: for {} it is linearised at {} (pseudo-first-order {:.4e} 1/s)",
+                        re.name,
+                        model.species[s],
+                        partners.join(", "),
+                        rate
+                    ));
+                } else {
+                    chain.notes.push(format!(
+                        "\"{}\" cannot be linearised for {}: at {} it never happens, so the chain leaves it out",
+                        re.name,
+                        model.species[s],
+                        partners.join(", ")
+                    ));
+                }
+            }
+            if rate <= 0.0 {
+                continue;
+            }
+            let to = re.net.iter().find(|x| x.1 > 0.0).map(|x| x.0);
+            exits[s].push(Exit {
+                to,
+                rate,
+                photon: false,
+                counted: None,
+            });
+        }
+    }
+    let products = &model.products;
+    let mut removed: Option<usize> = None;
+    let n_states = ns + nt;
+    for (i, ex) in exits.iter().enumerate() {
+        let total: f64 = ex.iter().map(|e| e.rate).sum();
+        let absorbing = products.contains(&i) || total <= 0.0;
+        let holding = if absorbing { 0.0 } else { 1.0 / total };
+        chain.add_state(&model.species[i], StateKind::Species(i), absorbing, holding);
+    }
+    for (t, tr) in net.transients.iter().enumerate() {
+        let total: f64 = tr
+            .channels
+            .iter()
+            .enumerate()
+            .map(|(ci, ch)| match ch.branching {
+                Branching::Rate { .. } => values.channel[t][ci],
+                Branching::Quenching { partner, .. } => values.channel[t][ci] * c[partner].max(0.0),
+                _ => 0.0,
+            })
+            .sum();
+        let holding = if total > 0.0 { 1.0 / total } else { 0.0 };
+        chain.add_state(&tr.name, StateKind::Transient(t), false, holding);
+    }
+    let mut removed_state = |chain: &mut Chain| -> usize {
+        *removed.get_or_insert_with(|| chain.add_state("(nothing followed)", StateKind::Removed, true, 0.0))
+    };
+    for (i, ex) in exits.into_iter().enumerate() {
+        if chain.states[i].absorbing {
+            continue;
+        }
+        let total: f64 = ex.iter().map(|e| e.rate).sum();
+        for e in ex {
+            let to = match e.to {
+                Some(s) => s,
+                None => removed_state(&mut chain),
+            };
+            let mv = chain.add_move(i, to, e.rate / total, e.photon);
+            if let Some(label) = e.counted {
+                chain.counted.push(Counted { label, mv });
+            }
+        }
+    }
+    for (t, tr) in net.transients.iter().enumerate() {
+        let vals = &values.channel[t];
+        let fixed: f64 = tr
+            .channels
+            .iter()
+            .enumerate()
+            .filter(|(_, ch)| matches!(ch.branching, Branching::Fraction(_)))
+            .map(|(ci, _)| vals[ci].max(0.0))
+            .sum();
+        let has_rest = tr.channels.iter().any(|ch| matches!(ch.branching, Branching::Rest));
+        let rates: f64 = tr
+            .channels
+            .iter()
+            .enumerate()
+            .map(|(ci, ch)| match ch.branching {
+                Branching::Rate { .. } => vals[ci].max(0.0),
+                Branching::Quenching { partner, .. } => vals[ci].max(0.0) * c[partner].max(0.0),
+                _ => 0.0,
+            })
+            .sum();
+        // Fixed fractions are normalised when there is no "rest" (only matters when a
+        // sensitivity moves one of them) and squeezed when they exceed one.
+        let scale = if (!has_rest && fixed > 0.0) || fixed > 1.0 {
+            1.0 / fixed
+        } else {
+            1.0
+        };
+        for (ci, ch) in tr.channels.iter().enumerate() {
+            let p = match ch.branching {
+                Branching::Fraction(_) => vals[ci].max(0.0) * scale,
+                Branching::Rest => (1.0 - fixed * scale).max(0.0),
+                Branching::Rate { .. } if rates > 0.0 => vals[ci].max(0.0) / rates,
+                Branching::Quenching { partner, .. } if rates > 0.0 => vals[ci].max(0.0) * c[partner].max(0.0) / rates,
+                _ => 0.0,
+            };
+            if p <= 0.0 {
+                continue;
+            }
+            let to = match &ch.target {
+                Target::Transient(k) => ns + k,
+                Target::Species(terms) => match terms.first() {
+                    Some(x) => x.species,
+                    None => removed_state(&mut chain),
+                },
+            };
+            let mv = chain.add_move(ns + t, to, p, false);
+            if ch.returns {
+                chain.counted.push(Counted {
+                    label: format!("return {} -> {}", tr.name, target_name(net, &ch.target)),
+                    mv,
+                });
+            }
+        }
+        if let Branching::Quenching { partner, .. } = tr
+            .channels
+            .iter()
+            .map(|c| &c.branching)
+            .find(|b| matches!(b, Branching::Quenching { .. }))
+            .unwrap_or(&Branching::Rest)
+        {
+            chain.notes.push(format!(
+                "quenching of {} taken at [{}] = {}",
+                tr.name,
+                model.species[*partner],
+                fmt_conc(c[*partner].max(0.0))
+            ));
+        }
+    }
+    debug_assert!(chain.states.len() >= n_states);
+    chain.notes.push(match settings.light {
+        Light::Stirred => format!(
+            "photon absorption per molecule: its share of the light absorbed in the well-stirred cell at the {} \
+             concentrations (background and inner filter included)",
+            if settings.concentrations.is_some() {
+                "given"
+            } else {
+                "initial"
+            }
+        ),
+        Light::Thin => "photon absorption per molecule: optically thin limit, σ(λ) × photon irradiance over the \
+                        irradiated area"
+            .into(),
+    });
+    Ok(chain)
+}
+
+/// The start distribution: species `from`, or the initial mixture (species that can change,
+/// weighted by their initial concentrations). Returns the distribution and a note.
+pub fn start(model: &Model, chain: &Chain, from: Option<&str>) -> Result<(Vec<f64>, String)> {
+    let mut pi = vec![0.0; chain.states.len()];
+    if let Some(name) = from {
+        let i = model.species_index(name).ok_or_else(|| {
+            Error::Usage(format!(
+                "--from \"{name}\": no such species; the species are {}",
+                model.species.join(", ")
+            ))
+        })?;
+        pi[i] = 1.0;
+        let note = if chain.states[i].absorbing {
+            format!("started from {name}, which has no way out: it stays as it is")
+        } else {
+            format!("started from one molecule of {name}")
+        };
+        return Ok((pi, note));
+    }
+    let mut parts = Vec::new();
+    let mut skipped = Vec::new();
+    for (i, &c0) in model.initial.iter().enumerate() {
+        if c0 <= 0.0 {
+            continue;
+        }
+        if chain.states[i].absorbing {
+            skipped.push(model.species[i].clone());
+        } else {
+            pi[i] = c0;
+            parts.push(i);
+        }
+    }
+    let total: f64 = pi.iter().sum();
+    if total <= 0.0 {
+        return Err(Error::Usage(
+            "nothing in the initial mixture can change under these conditions; name a start with --from SPECIES".into(),
+        ));
+    }
+    let shares: Vec<String> = parts
+        .iter()
+        .map(|&i| format!("{} {:.1}%", model.species[i], 100.0 * pi[i] / total))
+        .collect();
+    let mut note = format!(
+        "started from the initial mixture, molecules followed: {}",
+        shares.join(", ")
+    );
+    if !skipped.is_empty() {
+        note.push_str(&format!(" (left out, no way out: {})", skipped.join(", ")));
+    }
+    Ok((pi, note))
+}

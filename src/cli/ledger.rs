@@ -1,0 +1,92 @@
+//! `photoledger ledger FILE [--from SPECIES] [--json] [--out DIR]`: follow one molecule through
+//! the network as an absorbing Markov chain.
+
+use super::{NetworkArgs, load, print_warnings};
+use photoledger::Error;
+use photoledger::chain::build::{self, Light, Settings, Values};
+use photoledger::chain::{self, Options, sensitivity};
+use photoledger::model::Model;
+use photoledger::report::{chain as report, write_atomic};
+use std::path::PathBuf;
+
+/// Options of `ledger`.
+#[derive(clap::Args, Debug)]
+pub struct LedgerArgs {
+    #[command(flatten)]
+    pub net: NetworkArgs,
+    /// Follow one molecule of this species (default: the initial mixture).
+    #[arg(long, value_name = "SPECIES")]
+    pub from: Option<String>,
+    /// Print the summary JSON to stdout.
+    #[arg(long)]
+    pub json: bool,
+    /// Output folder (default: the network file's name followed by "-ledger").
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+    /// Photon absorption per molecule: "stirred" (its share of the light in the well-stirred
+    /// cell at the initial concentrations) or "thin" (optically thin, needs irradiated_area).
+    #[arg(long, default_value = "stirred")]
+    pub light: String,
+    /// Stop the photon-count distribution at this many photons.
+    #[arg(long, default_value_t = 200_000)]
+    pub max_photons: usize,
+}
+
+/// Run `ledger`.
+pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
+    let net = load(&a.net)?;
+    print_warnings(&net);
+    let model = Model::compile(&net);
+    let light = match a.light.as_str() {
+        "stirred" => Light::Stirred,
+        "thin" => Light::Thin,
+        other => {
+            return Err(Error::Usage(format!(
+                "--light \"{other}\": write \"stirred\" or \"thin\""
+            )));
+        }
+    };
+    let settings = Settings {
+        light,
+        concentrations: None,
+    };
+    let values = Values::of(&model, &net);
+    let ch = build::build(&model, &net, &settings, &values)?;
+    let (start, note) = build::start(&model, &ch, a.from.as_deref())?;
+    let opts = Options {
+        max_photons: a.max_photons,
+        ..Options::default()
+    };
+    let an = chain::analyse(&ch, &start, &opts)?;
+    let sens = sensitivity::sensitivities(&model, &net, &settings, &start)?;
+    let summary = report::summary(&net.about.name, &ch, &an, &note, &model.products, sens);
+    let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
+    let dir = a.out.clone().unwrap_or_else(|| {
+        let stem = a
+            .net
+            .file
+            .file_stem()
+            .map(|s| s.to_string_lossy().to_string())
+            .unwrap_or_else(|| "network".into());
+        PathBuf::from(format!("{stem}-ledger"))
+    });
+    write_atomic(&dir.join("summary.json"), json.as_bytes())?;
+    write_atomic(
+        &dir.join("photon_counts.csv"),
+        report::distribution_csv(&ch, &an).as_bytes(),
+    )?;
+    write_atomic(
+        &dir.join("photon_counts.svg"),
+        report::histogram_svg(&format!("{}: photons per molecule", net.about.name), &an).as_bytes(),
+    )?;
+    if a.json {
+        println!("{json}");
+    } else {
+        print!("{}", report::text(&summary));
+        println!(
+            "wrote {}/ (summary.json, photon_counts.csv, photon_counts.svg)",
+            dir.display()
+        );
+    }
+    Ok(())
+}

@@ -1,0 +1,323 @@
+//! What `ledger` writes: the summary (text and JSON), the photon-count distribution as CSV,
+//! and its histogram as SVG.
+
+use crate::chain::sensitivity::Sensitivity;
+use crate::chain::{Analysis, Chain, StateKind};
+use crate::units::format_time;
+use plotters::prelude::*;
+use serde::Serialize;
+use std::fmt::Write;
+
+/// One end of the chain (a product or a species with no way out).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct End {
+    /// Species (or state) name.
+    pub species: String,
+    /// True when it is named as a product or formed and never consumed.
+    pub product: bool,
+    /// Probability that a followed molecule ends here.
+    pub yield_fraction: f64,
+    /// Mean photons absorbed per molecule ending here (conditional).
+    pub photons_mean: Option<f64>,
+    /// Standard deviation of the same.
+    pub photons_sd: Option<f64>,
+    /// Molecules of it per photon absorbed by the followed molecule, whatever it became.
+    pub quantum_yield: Option<f64>,
+    /// Mean time to end here under the light, s (conditional).
+    pub time_mean_s: Option<f64>,
+}
+
+/// Expected visits to one state.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Visit {
+    /// State name.
+    pub state: String,
+    /// "species" or "transient".
+    pub kind: &'static str,
+    /// Expected number of visits per molecule followed.
+    pub visits: f64,
+}
+
+/// Expected repetitions of one counted move.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Repeat {
+    /// The return channel or wasted photon.
+    pub channel: String,
+    /// Expected number of times per molecule followed.
+    pub expected: f64,
+}
+
+/// Everything `summary.json` holds.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Summary {
+    /// Network name.
+    pub network: String,
+    /// Where the molecule started.
+    pub start: String,
+    /// Assumptions made in building the chain.
+    pub notes: Vec<String>,
+    /// Number of states of the chain.
+    pub states: usize,
+    /// Ends with their yields and photon costs.
+    pub ends: Vec<End>,
+    /// Mean photons absorbed per molecule followed.
+    pub photons_per_molecule: f64,
+    /// Mean time to an end per molecule followed, s.
+    pub time_mean_s: f64,
+    /// Expected visits to every non-absorbing state.
+    pub visits: Vec<Visit>,
+    /// Expected returns per return channel, and photons that changed nothing.
+    pub returns: Vec<Repeat>,
+    /// Probability left beyond the last photon count of the distribution.
+    pub distribution_tail: Option<f64>,
+    /// Largest photon count in the distribution.
+    pub distribution_max_photons: Option<usize>,
+    /// True when the distribution stopped at the photon limit before its tail bound.
+    pub distribution_truncated: bool,
+    /// How the sensitivities were found.
+    pub sensitivity_method: String,
+    /// Sensitivities, largest effect on the main end's photon cost first; each list is in the
+    /// order of `ends`.
+    pub sensitivities: Vec<Sensitivity>,
+}
+
+/// Build the summary; `products` says which absorbing states are products.
+pub fn summary(
+    network: &str,
+    chain: &Chain,
+    a: &Analysis,
+    start: &str,
+    products: &[usize],
+    mut sens: Vec<Sensitivity>,
+) -> Summary {
+    let ends: Vec<End> = a
+        .absorbing
+        .iter()
+        .enumerate()
+        .map(|(k, &s)| End {
+            species: chain.states[s].name.clone(),
+            product: matches!(chain.states[s].kind, StateKind::Species(i) if products.contains(&i)),
+            yield_fraction: a.yields[k],
+            photons_mean: a.photons_mean[k],
+            photons_sd: a.photons_variance[k].map(f64::sqrt),
+            quantum_yield: a.quantum_yield(k),
+            time_mean_s: a.time_mean[k],
+        })
+        .collect();
+    let main = main_end(a);
+    sens.sort_by(|x, y| {
+        let f = |s: &Sensitivity| s.elasticity_photons.get(main).copied().flatten().unwrap_or(0.0).abs();
+        f(y).total_cmp(&f(x))
+    });
+    let visits = chain
+        .states
+        .iter()
+        .enumerate()
+        .filter(|(_, s)| !s.absorbing)
+        .map(|(i, s)| Visit {
+            state: s.name.clone(),
+            kind: if matches!(s.kind, StateKind::Transient(_)) {
+                "transient"
+            } else {
+                "species"
+            },
+            visits: a.visits[i],
+        })
+        .collect();
+    let returns = chain
+        .counted
+        .iter()
+        .zip(&a.counted)
+        .map(|(c, x)| Repeat {
+            channel: c.label.clone(),
+            expected: *x,
+        })
+        .collect();
+    Summary {
+        network: network.to_string(),
+        start: start.to_string(),
+        notes: chain.notes.clone(),
+        states: chain.states.len(),
+        ends,
+        photons_per_molecule: a.photons_total,
+        time_mean_s: a.time_total,
+        visits,
+        returns,
+        distribution_tail: a.distribution.as_ref().map(|d| d.tail),
+        distribution_max_photons: a.distribution.as_ref().map(|d| d.p.len().saturating_sub(1)),
+        distribution_truncated: a.distribution.as_ref().is_some_and(|d| d.truncated),
+        sensitivity_method: format!(
+            "central finite differences through the chain construction, relative step {:e}; barriers by \
+             ∂/∂E = −(k/RT) ∂/∂k",
+            crate::chain::sensitivity::STEP
+        ),
+        sensitivities: sens,
+    }
+}
+
+/// The end with the largest yield.
+fn main_end(a: &Analysis) -> usize {
+    (0..a.yields.len())
+        .max_by(|&i, &j| a.yields[i].total_cmp(&a.yields[j]))
+        .unwrap_or(0)
+}
+
+fn opt(x: Option<f64>, f: impl Fn(f64) -> String) -> String {
+    x.map_or_else(|| "—".to_string(), f)
+}
+
+/// The readable table printed by `ledger`.
+pub fn text(s: &Summary) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "{}: photon ledger of one molecule ({} states)", s.network, s.states);
+    let _ = writeln!(o, "  {}", s.start);
+    for n in &s.notes {
+        let _ = writeln!(o, "  note: {n}");
+    }
+    let _ = writeln!(o);
+    let _ = writeln!(
+        o,
+        "  {:<22} {:>10} {:>14} {:>12} {:>12} {:>14}",
+        "ends as", "yield", "photons mean", "photons sd", "quantum yld", "mean time"
+    );
+    for e in s.ends.iter().filter(|e| e.yield_fraction > 1e-12) {
+        let _ = writeln!(
+            o,
+            "  {:<22} {:>10.6} {:>14} {:>12} {:>12} {:>14}",
+            format!("{}{}", e.species, if e.product { " (product)" } else { "" }),
+            e.yield_fraction,
+            opt(e.photons_mean, |x| format!("{x:.4}")),
+            opt(e.photons_sd, |x| format!("{x:.4}")),
+            opt(e.quantum_yield, |x| format!("{x:.3e}")),
+            opt(e.time_mean_s, format_time),
+        );
+    }
+    let _ = writeln!(
+        o,
+        "  photons absorbed per molecule followed: {:.4}; mean time to an end: {}",
+        s.photons_per_molecule,
+        format_time(s.time_mean_s)
+    );
+    let _ = writeln!(o, "\n  cycles (expected per molecule followed)");
+    for r in &s.returns {
+        let _ = writeln!(o, "    {:>14.4}  {}", r.expected, r.channel);
+    }
+    let _ = writeln!(o, "  visits");
+    for v in &s.visits {
+        let _ = writeln!(o, "    {:>14.4}  {} ({})", v.visits, v.state, v.kind);
+    }
+    if let (Some(t), Some(n)) = (s.distribution_tail, s.distribution_max_photons) {
+        let _ = writeln!(
+            o,
+            "  photon-count distribution: 0..{n} photons, tail beyond {:.1e}{}",
+            t,
+            if s.distribution_truncated {
+                " (stopped at the photon limit: raise --max-photons)"
+            } else {
+                ""
+            }
+        );
+    }
+    let main = (0..s.ends.len())
+        .max_by(|&i, &j| s.ends[i].yield_fraction.total_cmp(&s.ends[j].yield_fraction))
+        .unwrap_or(0);
+    if let Some(e) = s.ends.get(main) {
+        let _ = writeln!(
+            o,
+            "\n  top sensitivities for {} (d ln photons / d ln p; d yield / d p)",
+            e.species
+        );
+        for x in s.sensitivities.iter().take(8) {
+            let el = x.elasticity_photons.get(main).copied().flatten();
+            let dy = x.yield_derivative.get(main).copied().unwrap_or(0.0);
+            let mut line = format!(
+                "    {:>9} {:>11.3e}  {} = {:.4e} {}",
+                opt(el, |v| format!("{v:+.4}")),
+                dy,
+                x.parameter,
+                x.value,
+                x.unit
+            );
+            if let Some(b) = x
+                .photons_per_barrier
+                .as_ref()
+                .and_then(|b| b.get(main).copied().flatten())
+            {
+                let _ = write!(line, "  [d ln photons / d barrier {b:+.3} per kcal/mol]");
+            }
+            let _ = writeln!(o, "{line}");
+        }
+    }
+    o
+}
+
+/// photon_counts.csv: n, P(N = n) and P(N = n, end k) for every end with a yield.
+pub fn distribution_csv(chain: &Chain, a: &Analysis) -> String {
+    let mut o = String::new();
+    let Some(d) = &a.distribution else {
+        return o;
+    };
+    let keep: Vec<usize> = (0..a.absorbing.len()).filter(|&k| a.yields[k] > 0.0).collect();
+    o.push_str("photons absorbed,probability");
+    for &k in &keep {
+        let _ = write!(o, ",probability ending as {}", chain.states[a.absorbing[k]].name);
+    }
+    o.push('\n');
+    for (n, row) in d.p.iter().enumerate() {
+        let _ = write!(o, "{n},{:e}", row.iter().sum::<f64>());
+        for &k in &keep {
+            let _ = write!(o, ",{:e}", row[k]);
+        }
+        o.push('\n');
+    }
+    o
+}
+
+/// photon_counts.svg: histogram of P(N = n) (bars grouped when there are many counts).
+pub fn histogram_svg(title: &str, a: &Analysis) -> String {
+    let mut svg = String::new();
+    let Some(d) = &a.distribution else {
+        return svg;
+    };
+    let totals: Vec<f64> = d.p.iter().map(|r| r.iter().sum()).collect();
+    // Group counts into at most 400 bars.
+    let width = totals.len().div_ceil(400).max(1);
+    let bars: Vec<(usize, f64)> = totals
+        .chunks(width)
+        .enumerate()
+        .map(|(i, c)| (i * width, c.iter().sum::<f64>()))
+        .collect();
+    let ymax = bars.iter().map(|b| b.1).fold(0.0, f64::max).max(1e-300) * 1.05;
+    let xmax = (bars.len() * width) as f64;
+    {
+        let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
+        let _ = root.fill(&WHITE);
+        let draw = || -> Result<(), Box<dyn std::error::Error + '_>> {
+            let mut chart = ChartBuilder::on(&root)
+                .caption(title, ("sans-serif", 22))
+                .margin(16)
+                .x_label_area_size(48)
+                .y_label_area_size(80)
+                .build_cartesian_2d(0.0..xmax, 0.0..ymax)?;
+            chart
+                .configure_mesh()
+                .x_desc("photons absorbed per molecule")
+                .y_desc(if width == 1 {
+                    "probability".to_string()
+                } else {
+                    format!("probability per {width} photons")
+                })
+                .label_style(("sans-serif", 15))
+                .draw()?;
+            let col = RGBColor(31, 119, 180);
+            chart.draw_series(
+                bars.iter()
+                    .map(|&(x, y)| Rectangle::new([(x as f64, 0.0), ((x + width) as f64, y)], col.filled())),
+            )?;
+            Ok(())
+        };
+        let _ = draw();
+        let _ = root.present();
+    }
+    svg
+}
