@@ -6,6 +6,7 @@
 //! (sources and spectra), [`rates`] (Arrhenius, Eyring), [`error`] (located diagnostics).
 //! See DEVELOPERS.md for the map.
 
+pub mod barrier;
 pub mod bench;
 pub mod chain;
 pub mod error;

@@ -1,9 +1,16 @@
-//! Rate physics shared by the model and the barrier engine: Arrhenius and Eyring.
+//! Rate physics shared by the model and the barrier engine: Arrhenius and Eyring here;
+//! Wigner tunnelling ([`wigner`]), harmonic partition functions and transition-state theory
+//! ([`partition`]), RRKM k(E) by direct count ([`rrkm`]) and a cooling hot molecule ([`hot`]).
 //!
 //! Rate constants are in (L/mol)^(n−1) s⁻¹ for a step of molecularity n. The Eyring equation
 //! is written for a standard state of c° = 1 mol/L:
 //! k = κ (k_B T / h) (c°)^(1−n) exp(−ΔG‡ / RT), so for a bimolecular step the factor
 //! (c°)^(−1) = 1 L/mol carries the units and is numerically one in mol/L.
+
+pub mod hot;
+pub mod partition;
+pub mod rrkm;
+pub mod wigner;
 
 use crate::units::constants::{BOLTZMANN, GAS_CONSTANT, PLANCK, STANDARD_CONCENTRATION};
 

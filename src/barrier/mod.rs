@@ -1,0 +1,353 @@
+//! The barrier engine: which barriers can be crossed in a time window, and a verdict on every
+//! rate-carrying step of a network.
+//!
+//! Energies are molar (J/mol), times in s, rates in s⁻¹. Pure functions: nothing here reads
+//! files or prints.
+//!
+//! * [`thermal_window`]: the largest ΔG‡ with probability p of crossing within a window at a
+//!   temperature, solving 1 − exp(−k t) = p with k the Eyring rate (unimolecular).
+//! * [`hot_window`]: the largest zero-point-corrected barrier E₀ that a hot molecule of given
+//!   energy crosses with probability p, before exponential cooling (or within a window at fixed
+//!   energy), by bisection on E₀ with RRKM k(E).
+//! * [`network_verdicts`]: barrier, rate, half-life and verdict for each thermal step and each
+//!   rate channel of the transients.
+//! * [`k_table`]: k(E), ρ(E) and W(E) over an energy range.
+
+use crate::error::{Error, Result};
+use crate::network::{Branching, Network};
+use crate::rates::hot::hot_yields;
+use crate::rates::partition::Modes;
+use crate::rates::rrkm::Rrkm;
+use crate::rates::{RateLaw, eyring};
+use crate::units::constants::{BOLTZMANN, GAS_CONSTANT, PLANCK};
+
+fn check_probability(p: f64) -> Result<()> {
+    if p.is_finite() && p > 0.0 && p < 1.0 {
+        Ok(())
+    } else {
+        Err(Error::Usage(format!(
+            "probability: {p} must lie strictly between 0 and 1"
+        )))
+    }
+}
+
+/// The largest free energy of activation (J/mol) that a unimolecular step crosses with
+/// probability `probability` within `window` s at `temperature` K, with transmission
+/// coefficient `kappa` (include a tunnelling correction here):
+/// ΔG‡ = RT ln(κ (k_B T / h) t / (−ln(1 − p))).
+pub fn thermal_window(window: f64, temperature: f64, probability: f64, kappa: f64) -> Result<f64> {
+    check_probability(probability)?;
+    if !(window.is_finite() && window > 0.0) {
+        return Err(Error::Usage(format!("window: {window} s must be a positive duration")));
+    }
+    if !(temperature.is_finite() && temperature > 0.0) {
+        return Err(Error::Usage(format!("temperature: {temperature} K must be positive")));
+    }
+    if !(kappa.is_finite() && kappa > 0.0) {
+        return Err(Error::Usage(format!(
+            "transmission coefficient: {kappa} must be positive"
+        )));
+    }
+    let k_needed = -(-probability).ln_1p() / window;
+    let pre = kappa * BOLTZMANN * temperature / PLANCK;
+    Ok(GAS_CONSTANT * temperature * (pre / k_needed).ln())
+}
+
+/// How the hot molecule's time runs out.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum HotLimit {
+    /// Exponential cooling of the excess energy with this time constant, s.
+    Cooling(f64),
+    /// No cooling: the molecule keeps its energy for this window, s.
+    Window(f64),
+}
+
+/// Result of [`hot_window`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct HotWindow {
+    /// The largest E₀ (J/mol) crossed with the requested probability; `None` when even a zero
+    /// barrier does not reach it.
+    pub barrier: Option<f64>,
+    /// Probability of crossing at E₀ = 0 (the best case).
+    pub probability_at_zero: f64,
+    /// k(E) at the initial energy for the barrier found, s⁻¹.
+    pub rate_at_barrier: Option<f64>,
+}
+
+/// Probability of crossing barrier `e0` (J/mol) from `energy` J/mol with the given limit.
+pub fn hot_probability(rrkm: &Rrkm, energy: f64, e0: f64, limit: HotLimit) -> f64 {
+    match limit {
+        HotLimit::Window(t) => {
+            let k = rrkm.rate_over(energy, e0).unwrap_or(0.0);
+            -(-k * t).exp_m1()
+        }
+        HotLimit::Cooling(tau) => {
+            let k = |e: f64| rrkm.rate_over(e, e0).unwrap_or(0.0);
+            hot_yields(&[&k], energy, Some(tau), e0, 1e-7).probabilities[0]
+        }
+    }
+}
+
+/// The largest barrier a hot molecule with `energy` J/mol (above its zero-point level) crosses
+/// with probability `probability`, from reactant and transition-state modes, reaction-path
+/// degeneracy and a grain (J/mol), by bisection on E₀ to 1e-4 of the energy.
+pub fn hot_window(
+    reactant: &Modes,
+    ts: &Modes,
+    degeneracy: f64,
+    energy: f64,
+    limit: HotLimit,
+    probability: f64,
+    grain: f64,
+) -> Result<HotWindow> {
+    check_probability(probability)?;
+    if !(energy.is_finite() && energy > 0.0) {
+        return Err(Error::Usage(format!("energy: {energy} J/mol must be positive")));
+    }
+    let t = match limit {
+        HotLimit::Cooling(t) | HotLimit::Window(t) => t,
+    };
+    if !(t.is_finite() && t > 0.0) {
+        return Err(Error::Usage(format!(
+            "cooling or window: {t} s must be a positive duration"
+        )));
+    }
+    let rrkm = Rrkm::new(reactant, ts, 0.0, degeneracy, grain, energy + grain).map_err(Error::Usage)?;
+    let p0 = hot_probability(&rrkm, energy, 0.0, limit);
+    if p0 < probability {
+        return Ok(HotWindow {
+            barrier: None,
+            probability_at_zero: p0,
+            rate_at_barrier: None,
+        });
+    }
+    let (mut lo, mut hi) = (0.0, energy);
+    while hi - lo > 1e-4 * energy {
+        let mid = 0.5 * (lo + hi);
+        if hot_probability(&rrkm, energy, mid, limit) >= probability {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    Ok(HotWindow {
+        barrier: Some(lo),
+        probability_at_zero: p0,
+        rate_at_barrier: rrkm.rate_over(energy, lo),
+    })
+}
+
+/// What kind of step a verdict is about.
+#[derive(Debug, Clone, PartialEq)]
+pub enum StepKind {
+    /// A thermal step of this molecularity.
+    Thermal(u32),
+    /// A rate channel of a transient.
+    Channel,
+    /// A quenching channel of a transient (pseudo-first-order in the partner).
+    Quenching,
+}
+
+/// One row of [`network_verdicts`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct Verdict {
+    /// Display name of the step or channel.
+    pub name: String,
+    /// Kind.
+    pub kind: StepKind,
+    /// ΔG‡ implied by the rate law at the network temperature, J/mol (standard state 1 mol/L
+    /// for bimolecular steps).
+    pub barrier: f64,
+    /// First-order (or pseudo-first-order) rate per molecule, s⁻¹: for a step of order n > 1,
+    /// k times the initial concentrations of the other reactants (the partners), so the rate
+    /// at the start; zero when a partner starts at zero.
+    pub rate: f64,
+    /// ln 2 / rate, s (infinite for a zero rate).
+    pub half_life: f64,
+    /// Time to reach the requested probability, −ln(1 − p) / rate, s.
+    pub time_needed: f64,
+    /// time_needed / window: ≤ 1 crosses within the window.
+    pub factor: f64,
+}
+
+impl Verdict {
+    /// True when the step reaches the probability within the window.
+    pub fn crosses(&self) -> bool {
+        self.factor <= 1.0
+    }
+
+    /// "crosses within the window" or "too slow by a factor N".
+    pub fn words(&self) -> String {
+        if self.crosses() {
+            "crosses within the window".into()
+        } else if self.rate <= 0.0 {
+            "no rate at the start (a partner starts at zero)".into()
+        } else {
+            format!("too slow by a factor {:.3e}", self.factor)
+        }
+    }
+}
+
+/// A verdict for every thermal step and every rate or quenching channel of `net`, at the
+/// network temperature, for crossing with probability `probability` within `window` s.
+/// Channels with a fixed fraction or the rest carry no rate and are left out.
+pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<Vec<Verdict>> {
+    check_probability(probability)?;
+    if !(window.is_finite() && window > 0.0) {
+        return Err(Error::Usage(format!("window: {window} s must be a positive duration")));
+    }
+    let t = net.conditions.temperature;
+    let need = -(-probability).ln_1p();
+    let row = |name: String, kind: StepKind, law: &RateLaw, order: u32, rate: f64| {
+        let half_life = if rate > 0.0 {
+            std::f64::consts::LN_2 / rate
+        } else {
+            f64::INFINITY
+        };
+        let time_needed = if rate > 0.0 { need / rate } else { f64::INFINITY };
+        Verdict {
+            name,
+            kind,
+            barrier: law.barrier(t, order),
+            rate,
+            half_life,
+            time_needed,
+            factor: time_needed / window,
+        }
+    };
+    let mut out = Vec::new();
+    for s in &net.thermal {
+        // pseudo-first-order: remove one molecule of the first reactant, multiply by the rest
+        let mut rate = s.k;
+        for (i, term) in s.reactants.iter().enumerate() {
+            let nu = if i == 0 {
+                term.coefficient - 1.0
+            } else {
+                term.coefficient
+            };
+            if nu > 0.0 {
+                rate *= net.species[term.species].initial.powf(nu);
+            }
+        }
+        let name = format!("{} ({} -> {})", s.name, net.side(&s.reactants), net.side(&s.products));
+        out.push(row(name, StepKind::Thermal(s.order), &s.rate, s.order, rate));
+    }
+    for tr in &net.transients {
+        for (ci, c) in tr.channels.iter().enumerate() {
+            let target = match &c.target {
+                crate::network::Target::Species(terms) => net.side(terms),
+                crate::network::Target::Transient(j) => net.transients[*j].name.clone(),
+            };
+            let name = format!("{} channel {} -> {}", tr.name, ci + 1, target);
+            match &c.branching {
+                Branching::Rate { law, k } => out.push(row(name, StepKind::Channel, law, 1, *k)),
+                Branching::Quenching { partner, law, k2 } => {
+                    let rate = k2 * net.species[*partner].initial;
+                    out.push(row(name, StepKind::Quenching, law, 2, rate));
+                }
+                Branching::Fraction(_) | Branching::Rest => {}
+            }
+        }
+    }
+    Ok(out)
+}
+
+/// One row of [`k_table`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct KRow {
+    /// Energy above the reactant zero-point level, J/mol.
+    pub energy: f64,
+    /// k(E), s⁻¹ (`None` where the averaged density is zero).
+    pub rate: Option<f64>,
+    /// Reactant density averaged over the row's interval, per J/mol.
+    pub density: f64,
+    /// Reactant sum of states W(E).
+    pub sum: f64,
+    /// Transition-state sum of states W‡(E − E₀).
+    pub ts_sum: f64,
+}
+
+/// k(E), ρ(E), W(E) and W‡(E − E₀) at `points` evenly spaced energies from `from` to `to`
+/// J/mol. Each row's ρ is the count between it and the next row divided by their spacing (at
+/// least one grain), and k uses that ρ, so sparse low-energy bins do not leave holes.
+pub fn k_table(rrkm: &Rrkm, from: f64, to: f64, points: usize) -> Result<Vec<KRow>> {
+    if !(from.is_finite() && to.is_finite() && from >= 0.0 && to > from) {
+        return Err(Error::Usage(format!(
+            "energy range: {from}..{to} J/mol must run upwards from zero or more"
+        )));
+    }
+    if to > rrkm.reactant.max_energy() {
+        return Err(Error::Usage("energy range: above the counted range".into()));
+    }
+    let points = points.max(2);
+    let step = ((to - from) / (points - 1) as f64).max(rrkm.reactant.grain);
+    let mut rows = Vec::new();
+    let mut e = from;
+    while e <= to + 1e-9 * to.max(1.0) {
+        let density = rrkm.reactant.density_between(e, e + step).unwrap_or(0.0);
+        let ts_sum = rrkm.ts.sum_at(e - rrkm.barrier).unwrap_or(0.0);
+        let rate = if e < rrkm.barrier {
+            Some(0.0)
+        } else if density > 0.0 {
+            Some(rrkm.degeneracy * ts_sum / (PLANCK * crate::units::constants::AVOGADRO * density))
+        } else {
+            None
+        };
+        rows.push(KRow {
+            energy: e,
+            rate,
+            density,
+            sum: rrkm.reactant.sum_at(e).unwrap_or(f64::NAN),
+            ts_sum,
+        });
+        e += step;
+    }
+    Ok(rows)
+}
+
+/// The Eyring rate for ΔG‡ `barrier` J/mol, unimolecular, at `temperature` K (re-exported
+/// for reports).
+pub fn eyring_rate(barrier: f64, temperature: f64, kappa: f64) -> f64 {
+    eyring(barrier, temperature, 1, kappa)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn thermal_window_inverts_eyring() {
+        // The barrier found gives exactly probability p in the window (definition).
+        let (t, temp, p) = (3600.0, 298.15, 0.5);
+        let g = thermal_window(t, temp, p, 1.0).unwrap();
+        let k = eyring_rate(g, temp, 1.0);
+        assert!(((-k * t).exp() - 0.5).abs() < 1e-12);
+        assert!(thermal_window(t, temp, 1.0, 1.0).is_err());
+        assert!(thermal_window(-1.0, temp, 0.5, 1.0).is_err());
+    }
+
+    #[test]
+    fn hot_window_is_consistent_with_its_probability() {
+        let wn = crate::units::parse("1 cm-1", crate::units::Quantity::MolarEnergy).unwrap();
+        let r = Modes {
+            vibrations: [3000.0, 1500.0, 1000.0, 800.0, 500.0, 300.0]
+                .iter()
+                .map(|v| v * wn)
+                .collect(),
+            ..Default::default()
+        };
+        let ts = Modes {
+            vibrations: [3000.0, 1500.0, 1000.0, 800.0, 300.0].iter().map(|v| v * wn).collect(),
+            imaginary: Some(600.0 * wn),
+            rotors: vec![],
+        };
+        let e = 200e3;
+        let w = hot_window(&r, &ts, 1.0, e, HotLimit::Cooling(10e-12), 0.5, 10.0 * wn).unwrap();
+        let b = w.barrier.unwrap();
+        assert!(b > 0.0 && b < e);
+        let rrkm = Rrkm::new(&r, &ts, 0.0, 1.0, 10.0 * wn, e + 10.0 * wn).unwrap();
+        let p_lo = hot_probability(&rrkm, e, b * 0.98, HotLimit::Cooling(10e-12));
+        let p_hi = hot_probability(&rrkm, e, b * 1.02, HotLimit::Cooling(10e-12));
+        assert!(p_lo > 0.5 && p_hi < 0.5, "{p_lo} {p_hi}");
+    }
+}
