@@ -4,6 +4,7 @@
 //! 2 usage error (bad arguments, unknown --set key), 3 a file could not be read or written,
 //! 4 a numerical engine could not finish.
 
+mod barrier;
 mod bench;
 mod check;
 mod diagram;
@@ -44,6 +45,9 @@ enum Command {
     },
     /// Time the kinetics on network files and on a generated large network.
     Bench(bench::BenchArgs),
+    /// The largest barrier crossed in a time window (thermal or hot molecule), a verdict on every
+    /// step of a network, or RRKM k(E) tables.
+    Barrier(Box<barrier::BarrierArgs>),
     /// Integrate the kinetics under the network's light and keep the photon ledger.
     Simulate(simulate::SimulateArgs),
     /// Follow one molecule as an absorbing Markov chain: yields, cycles, photons per product.
@@ -75,6 +79,7 @@ pub fn run() -> i32 {
         Command::Diagram { net, out, dot } => diagram::run(&net, &out, dot),
         Command::Simulate(a) => simulate::run(&a),
         Command::Bench(a) => bench::run(&a),
+        Command::Barrier(a) => barrier::run(&a),
         Command::Ledger(a) => ledger::run(&a),
     };
     match result {

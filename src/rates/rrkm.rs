@@ -202,7 +202,8 @@ pub fn default_window() -> f64 {
 }
 
 impl Rrkm {
-    /// Count reactant and transition state on `grain` J/mol up to `max_energy` J/mol.
+    /// Count reactant and transition state on `grain` J/mol up to `max_energy` J/mol (plus
+    /// half the density window, so that [`Rrkm::rate`] is defined up to `max_energy`).
     pub fn new(
         reactant: &Modes,
         ts: &Modes,
@@ -221,12 +222,14 @@ impl Rrkm {
                 "the reaction-path degeneracy must be positive, found {degeneracy}"
             ));
         }
+        let window = default_window().max(grain);
+        let top = max_energy + window / 2.0 + grain;
         Ok(Rrkm {
-            reactant: count_states(reactant, grain, max_energy)?,
-            ts: count_states(ts, grain, max_energy)?,
+            reactant: count_states(reactant, grain, top)?,
+            ts: count_states(ts, grain, top)?,
             barrier,
             degeneracy,
-            window: default_window().max(grain),
+            window,
         })
     }
 

@@ -1,6 +1,7 @@
 //! Reports: what the engines found, as text, CSV, JSON and SVG. Pure functions that return
 //! strings, plus [`write_atomic`], the one way outputs reach the disk.
 
+pub mod barrier;
 pub mod chain;
 pub mod diagram;
 pub mod simulation;

@@ -1,0 +1,277 @@
+//! `photoledger barrier`: the largest barrier crossed in a window (thermal or hot molecule),
+//! verdicts on every step of a network, and k(E) tables.
+
+use photoledger::Error;
+use photoledger::barrier::{self, HotLimit};
+use photoledger::file::frequencies;
+use photoledger::rates::{rrkm::Rrkm, wigner::wigner};
+use photoledger::report::{barrier as report, write_atomic};
+use photoledger::units::{self, Quantity};
+use std::path::PathBuf;
+
+/// Options of `barrier`.
+#[derive(clap::Args, Debug)]
+pub struct BarrierArgs {
+    /// A network file: verdict on every thermal step and rate channel (needs --window).
+    pub file: Option<PathBuf>,
+    /// Override a value of the network file (repeatable), as for `check`.
+    #[arg(long = "set", value_name = "KEY=VALUE")]
+    pub set: Vec<String>,
+    /// The time available, e.g. "1 h", "10 ps".
+    #[arg(long, value_name = "DURATION")]
+    pub window: Option<String>,
+    /// Temperature for the thermal window, e.g. "298.15 K" or "25 °C".
+    #[arg(long, value_name = "T")]
+    pub temperature: Option<String>,
+    /// Probability of crossing asked for: a fraction (0.5) or a percentage ("50 %").
+    #[arg(long, default_value = "0.5")]
+    pub probability: String,
+    /// Transmission coefficient κ for the thermal window.
+    #[arg(long, default_value_t = 1.0)]
+    pub transmission: f64,
+    /// Imaginary frequency for a Wigner tunnelling factor in the thermal window, e.g. "1200 cm-1".
+    #[arg(long, value_name = "FREQUENCY")]
+    pub tunnelling: Option<String>,
+    /// Excess energy of the hot molecule above its zero-point level, e.g. "250 kJ/mol".
+    #[arg(long, value_name = "E")]
+    pub energy: Option<String>,
+    /// Frequency file: [reactant] and [transition state] lists in cm-1 (see README).
+    #[arg(long, value_name = "FILE")]
+    pub frequencies: Option<PathBuf>,
+    /// Cooling time constant of the excess energy, e.g. "10 ps".
+    #[arg(long, value_name = "TIME")]
+    pub cooling: Option<String>,
+    /// Zero-point-corrected barrier E0 for a k(E) table, e.g. "120 kJ/mol".
+    #[arg(long, value_name = "E")]
+    pub barrier: Option<String>,
+    /// Energy range of the k(E) table, e.g. "0 kJ/mol..200 kJ/mol".
+    #[arg(long, value_name = "FROM..TO")]
+    pub energy_range: Option<String>,
+    /// Energy grain of the state counts, e.g. "10 cm-1".
+    #[arg(long, default_value = "10 cm-1")]
+    pub grain: String,
+    /// Rows of the k(E) table.
+    #[arg(long, default_value_t = 400)]
+    pub points: usize,
+    /// Output folder for the k(E) table and plot.
+    #[arg(long, value_name = "DIR", default_value = "barrier-out")]
+    pub out: PathBuf,
+}
+
+fn quantity(flag: &str, text: &str, q: Quantity) -> photoledger::Result<f64> {
+    units::parse(text, q).map_err(|e| Error::Usage(format!("--{flag}: {e}; expected {}", q.accepted())))
+}
+
+fn probability(text: &str) -> photoledger::Result<f64> {
+    let t = text.trim();
+    let (num, scale) = match t.strip_suffix('%') {
+        Some(n) => (n.trim(), 100.0),
+        None => (t, 1.0),
+    };
+    match num.parse::<f64>() {
+        Ok(v) if v.is_finite() && v / scale > 0.0 && v / scale < 1.0 => Ok(v / scale),
+        _ => Err(Error::Usage(format!(
+            "--probability \"{text}\": expected a fraction strictly between 0 and 1 (0.5) or a percentage (\"50 %\")"
+        ))),
+    }
+}
+
+fn need<'a>(v: &'a Option<String>, flag: &str, form: &str) -> photoledger::Result<&'a str> {
+    v.as_deref()
+        .ok_or_else(|| Error::Usage(format!("barrier {form} needs --{flag}; see photoledger barrier --help")))
+}
+
+pub fn run(a: &BarrierArgs) -> photoledger::Result<()> {
+    let p = probability(&a.probability)?;
+    if let Some(file) = &a.file {
+        return network(a, file, p);
+    }
+    if a.barrier.is_some() || a.energy_range.is_some() {
+        return k_of_e(a);
+    }
+    if a.energy.is_some() {
+        return hot(a, p);
+    }
+    if a.window.is_some() || a.temperature.is_some() {
+        return thermal(a, p);
+    }
+    Err(Error::Usage(
+        "barrier needs one of: --window D --temperature T (thermal); --energy E --frequencies FILE \
+         (--cooling TIME or --window D) (hot molecule); FILE --window D (a network); \
+         --frequencies FILE --barrier E --energy-range \"A..B\" (k(E) table)"
+            .into(),
+    ))
+}
+
+fn thermal(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
+    let window = quantity("window", need(&a.window, "window", "(thermal)")?, Quantity::Time)?;
+    let t = quantity(
+        "temperature",
+        need(&a.temperature, "temperature", "(thermal)")?,
+        Quantity::Temperature,
+    )?;
+    let mut kappa = a.transmission;
+    let mut note = String::new();
+    if let Some(f) = &a.tunnelling {
+        let nu = quantity("tunnelling", f, Quantity::MolarEnergy)?;
+        let w = wigner(nu, t);
+        kappa *= w;
+        note = format!(", Wigner tunnelling factor {w:.4} for {f}");
+    }
+    let g = barrier::thermal_window(window, t, p, kappa)?;
+    let k = barrier::eyring_rate(g, t, kappa);
+    println!(
+        "Largest barrier crossed with {:.0} % probability within {} at {t:.2} K:",
+        p * 100.0,
+        report::duration(window)
+    );
+    println!(
+        "  ΔG‡ = {} (Eyring, unimolecular, κ = {kappa:.4}{note})",
+        report::energy(g)
+    );
+    println!(
+        "  rate at that barrier {k:.4e} /s, half-life {}",
+        report::duration(std::f64::consts::LN_2 / k)
+    );
+    Ok(())
+}
+
+fn read_pair(path: &std::path::Path) -> photoledger::Result<frequencies::FrequencyFile> {
+    let f = frequencies::read(path)?;
+    if f.ts.is_none() {
+        return Err(Error::invalid(
+            photoledger::Diagnostic::error("transition state", "the file has no [transition state] section")
+                .in_file(path)
+                .with_help("add [transition state] with its frequencies in cm-1, the imaginary one as -1250 or 1250i"),
+        ));
+    }
+    let ts = f.ts.as_ref().map_or(0, |t| t.vibrations.len());
+    if ts + 1 != f.reactant.vibrations.len() {
+        eprintln!(
+            "warning: {}: the reactant has {} real frequencies and the transition state {ts}; usually the \
+             transition state has one fewer (the reaction coordinate)",
+            path.display(),
+            f.reactant.vibrations.len()
+        );
+    }
+    Ok(f)
+}
+
+fn hot(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
+    let e = quantity(
+        "energy",
+        need(&a.energy, "energy", "(hot molecule)")?,
+        Quantity::MolarEnergy,
+    )?;
+    let path = a.frequencies.as_ref().ok_or_else(|| {
+        Error::Usage("barrier --energy needs --frequencies FILE (reactant and transition state)".into())
+    })?;
+    let grain = quantity("grain", &a.grain, Quantity::MolarEnergy)?;
+    let limit = match (&a.cooling, &a.window) {
+        (Some(c), _) => HotLimit::Cooling(quantity("cooling", c, Quantity::Time)?),
+        (None, Some(w)) => HotLimit::Window(quantity("window", w, Quantity::Time)?),
+        (None, None) => {
+            return Err(Error::Usage(
+                "barrier --energy needs --cooling TIME (exponential cooling) or --window DURATION (no cooling)".into(),
+            ));
+        }
+    };
+    let f = read_pair(path)?;
+    let ts = f.ts.clone().unwrap_or_default();
+    let w = barrier::hot_window(&f.reactant, &ts, f.degeneracy, e, limit, p, grain)?;
+    let how = match limit {
+        HotLimit::Cooling(t) => format!("before cooling (exponential, τ = {})", report::duration(t)),
+        HotLimit::Window(t) => format!("within {} at constant energy", report::duration(t)),
+    };
+    println!(
+        "Hot molecule with {} above its zero-point level, crossing with {:.0} % probability {how}:",
+        report::energy(e),
+        p * 100.0
+    );
+    match w.barrier {
+        Some(b) => {
+            println!("  largest zero-point-corrected barrier E0 = {}", report::energy(b));
+            if let Some(k) = w.rate_at_barrier {
+                println!("  k(E) at that barrier {k:.4e} /s");
+            }
+        }
+        None => println!(
+            "  no barrier: even E0 = 0 gives only {:.2} % (RRKM, σ = {})",
+            w.probability_at_zero * 100.0,
+            f.degeneracy
+        ),
+    }
+    println!(
+        "  RRKM with Beyer–Swinehart counts on a {} grain, σ = {}, {} reactant and {} transition-state vibrations",
+        a.grain,
+        f.degeneracy,
+        f.reactant.vibrations.len(),
+        ts.vibrations.len()
+    );
+    Ok(())
+}
+
+fn k_of_e(a: &BarrierArgs) -> photoledger::Result<()> {
+    let path = a
+        .frequencies
+        .as_ref()
+        .ok_or_else(|| Error::Usage("barrier --barrier needs --frequencies FILE".into()))?;
+    let e0 = quantity(
+        "barrier",
+        need(&a.barrier, "barrier", "(k(E) table)")?,
+        Quantity::MolarEnergy,
+    )?;
+    let range = need(&a.energy_range, "energy-range", "(k(E) table)")?;
+    let (lo, hi) = range.split_once("..").ok_or_else(|| {
+        Error::Usage(format!(
+            "--energy-range \"{range}\": write FROM..TO, e.g. \"0 kJ/mol..200 kJ/mol\""
+        ))
+    })?;
+    let lo = quantity("energy-range", lo.trim(), Quantity::MolarEnergy)?;
+    let hi = quantity("energy-range", hi.trim(), Quantity::MolarEnergy)?;
+    if !(hi > lo && lo >= 0.0) {
+        return Err(Error::Usage(format!(
+            "--energy-range \"{range}\": the range must run upwards from zero or more"
+        )));
+    }
+    let grain = quantity("grain", &a.grain, Quantity::MolarEnergy)?;
+    let f = read_pair(path)?;
+    let ts = f.ts.clone().unwrap_or_default();
+    let step = (hi - lo) / (a.points.max(2) - 1) as f64;
+    let rrkm = Rrkm::new(&f.reactant, &ts, e0, f.degeneracy, grain, hi + step + grain)
+        .map_err(|m| Error::Usage(format!("--grain/--energy-range: {m}")))?;
+    let rows = barrier::k_table(&rrkm, lo, hi, a.points)?;
+    let csv = a.out.join("k_of_e.csv");
+    let svg = a.out.join("k_of_e.svg");
+    write_atomic(&csv, report::k_csv(&rows).as_bytes())?;
+    let title = format!("RRKM k(E), E0 = {}", a.barrier.as_deref().unwrap_or(""));
+    write_atomic(&svg, report::k_svg(&rows, &title).as_bytes())?;
+    println!(
+        "k(E) for E0 = {} at {} energies from {} to {} (grain {}, σ = {}); largest frequency rounding {:.3} cm-1",
+        report::energy(e0),
+        rows.len(),
+        report::energy(lo),
+        report::energy(hi),
+        a.grain,
+        f.degeneracy,
+        rrkm.reactant.rounding.max(rrkm.ts.rounding) / units::parse("1 cm-1", Quantity::MolarEnergy).unwrap_or(1.0)
+    );
+    println!("wrote {} and {}", csv.display(), svg.display());
+    Ok(())
+}
+
+fn network(a: &BarrierArgs, file: &std::path::Path, p: f64) -> photoledger::Result<()> {
+    let window = quantity("window", need(&a.window, "window", "FILE")?, Quantity::Time)?;
+    let args = super::NetworkArgs {
+        file: file.to_path_buf(),
+        set: a.set.clone(),
+    };
+    let net = super::load(&args)?;
+    super::print_warnings(&net);
+    let rows = barrier::network_verdicts(&net, window, p)?;
+    print!(
+        "{}",
+        report::verdicts_text(&rows, window, p, net.conditions.temperature)
+    );
+    Ok(())
+}

@@ -1,0 +1,203 @@
+//! What `barrier` reports: window answers and network verdicts as text, k(E) tables as CSV and
+//! SVG. Energies are shown in kJ/mol and kcal/mol (the engine works in J/mol), densities per
+//! cm⁻¹.
+
+use crate::barrier::{KRow, Verdict};
+use crate::units::{Quantity, parse};
+use plotters::prelude::*;
+use std::fmt::Write;
+
+/// One cm⁻¹ as a molar energy, J/mol.
+fn wavenumber() -> f64 {
+    parse("1 cm-1", Quantity::MolarEnergy).unwrap_or(11.962_656)
+}
+
+/// "94.27 kJ/mol (22.53 kcal/mol)" for a molar energy in J/mol.
+pub fn energy(e: f64) -> String {
+    format!("{:.2} kJ/mol ({:.2} kcal/mol)", e / 1000.0, e / 4184.0)
+}
+
+/// A duration in s written with a readable unit: "150 fs", "3.2 ps", "1.00 h", "2.1e3 yr".
+pub fn duration(t: f64) -> String {
+    if !t.is_finite() {
+        return "never".into();
+    }
+    const UNITS: [(f64, &str); 11] = [
+        (365.25 * 86400.0, "yr"),
+        (86400.0, "d"),
+        (3600.0, "h"),
+        (60.0, "min"),
+        (1.0, "s"),
+        (1e-3, "ms"),
+        (1e-6, "µs"),
+        (1e-9, "ns"),
+        (1e-12, "ps"),
+        (1e-15, "fs"),
+        (1e-18, "as"),
+    ];
+    for (scale, name) in UNITS {
+        if t >= scale {
+            let v = t / scale;
+            return if v >= 1e4 {
+                format!("{v:.2e} {name}")
+            } else {
+                format!("{v:.3} {name}")
+            };
+        }
+    }
+    format!("{t:.3e} s")
+}
+
+/// The verdict table of a network.
+pub fn verdicts_text(rows: &[Verdict], window: f64, probability: f64, temperature: f64) -> String {
+    let mut s = String::new();
+    let _ = writeln!(
+        s,
+        "Steps at {temperature:.2} K against a window of {} (probability {:.0} %):",
+        duration(window),
+        probability * 100.0
+    );
+    let _ = writeln!(
+        s,
+        "{:<44} {:>12} {:>12} {:>14}  verdict",
+        "step", "ΔG‡ kJ/mol", "k (1/s)", "half-life"
+    );
+    for r in rows {
+        let _ = writeln!(
+            s,
+            "{:<44} {:>12.2} {:>12.3e} {:>14}  {}",
+            r.name,
+            r.barrier / 1000.0,
+            r.rate,
+            duration(r.half_life),
+            r.words()
+        );
+    }
+    let _ = writeln!(
+        s,
+        "k is per molecule: steps of order 2 or more are pseudo-first-order at the initial concentrations of \
+         their partners, and quenching at the initial quencher concentration; ΔG‡ for them is for 1 mol/L. \
+         Channels set by fixed fractions carry no rate and are not listed."
+    );
+    let slow = rows.iter().filter(|r| !r.crosses()).count();
+    let _ = writeln!(
+        s,
+        "{} of {} cross within the window; {slow} do not.",
+        rows.len() - slow,
+        rows.len()
+    );
+    s
+}
+
+/// k(E) table as CSV, units in the header.
+pub fn k_csv(rows: &[KRow]) -> String {
+    let wn = wavenumber();
+    let mut s =
+        String::from("energy (kJ/mol),energy (cm-1),k (1/s),rho (states per cm-1),W reactant,W transition state\n");
+    for r in rows {
+        let k = r.rate.map(|k| format!("{k:.6e}")).unwrap_or_default();
+        let _ = writeln!(
+            s,
+            "{:.4},{:.2},{k},{:.6e},{:.6e},{:.6e}",
+            r.energy / 1000.0,
+            r.energy / wn,
+            r.density * wn,
+            r.sum,
+            r.ts_sum
+        );
+    }
+    s
+}
+
+/// k(E) on a log axis against E (upper panel) and ρ(E), W(E) on a log axis (lower panel), SVG.
+pub fn k_svg(rows: &[KRow], title: &str) -> String {
+    let wn = wavenumber();
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (900, 760)).into_drawing_area();
+        let _ = root.fill(&WHITE);
+        let (upper, lower) = root.split_vertically(400);
+        let x0 = rows.first().map_or(0.0, |r| r.energy / 1000.0);
+        let x1 = rows.last().map_or(1.0, |r| r.energy / 1000.0).max(x0 + 1e-9);
+        let positive = |v: &[f64]| -> (f64, f64) {
+            let lo = v.iter().cloned().filter(|x| *x > 0.0).fold(f64::INFINITY, f64::min);
+            let hi = v.iter().cloned().filter(|x| *x > 0.0).fold(0.0, f64::max);
+            if lo.is_finite() && hi > 0.0 {
+                (lo / 2.0, hi * 2.0)
+            } else {
+                (1e-3, 1.0)
+            }
+        };
+        let ks: Vec<(f64, f64)> = rows
+            .iter()
+            .filter_map(|r| r.rate.filter(|k| *k > 0.0).map(|k| (r.energy / 1000.0, k)))
+            .collect();
+        let (klo, khi) = positive(&ks.iter().map(|p| p.1).collect::<Vec<_>>());
+        let rho: Vec<(f64, f64)> = rows
+            .iter()
+            .filter(|r| r.density > 0.0)
+            .map(|r| (r.energy / 1000.0, r.density * wn))
+            .collect();
+        let w: Vec<(f64, f64)> = rows
+            .iter()
+            .filter(|r| r.sum > 0.0)
+            .map(|r| (r.energy / 1000.0, r.sum))
+            .collect();
+        let all: Vec<f64> = rho.iter().chain(&w).map(|p| p.1).collect();
+        let (slo, shi) = positive(&all);
+        let draw = || -> Result<(), Box<dyn std::error::Error + '_>> {
+            let mut c = ChartBuilder::on(&upper)
+                .caption(title, ("sans-serif", 22))
+                .margin(16)
+                .x_label_area_size(44)
+                .y_label_area_size(80)
+                .build_cartesian_2d(x0..x1, (klo..khi).log_scale())?;
+            c.configure_mesh()
+                .x_desc("E above the reactant zero-point level (kJ/mol)")
+                .y_desc("k(E) (1/s, log scale)")
+                .label_style(("sans-serif", 15))
+                .draw()?;
+            c.draw_series(LineSeries::new(ks.clone(), RGBColor(31, 119, 180).stroke_width(2)))?;
+            let mut d = ChartBuilder::on(&lower)
+                .margin(16)
+                .x_label_area_size(44)
+                .y_label_area_size(80)
+                .build_cartesian_2d(x0..x1, (slo..shi).log_scale())?;
+            d.configure_mesh()
+                .x_desc("E (kJ/mol)")
+                .y_desc("ρ (per cm-1) and W (log scale)")
+                .label_style(("sans-serif", 15))
+                .draw()?;
+            let red = RGBColor(214, 39, 40);
+            let green = RGBColor(44, 160, 44);
+            d.draw_series(LineSeries::new(rho.clone(), red.stroke_width(2)))?
+                .label("ρ(E), reactant states per cm-1")
+                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], red.stroke_width(3)));
+            d.draw_series(LineSeries::new(w.clone(), green.stroke_width(2)))?
+                .label("W(E), reactant sum of states")
+                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], green.stroke_width(3)));
+            d.configure_series_labels()
+                .background_style(WHITE.mix(0.85))
+                .border_style(BLACK)
+                .label_font(("sans-serif", 15))
+                .position(SeriesLabelPosition::LowerRight)
+                .draw()?;
+            Ok(())
+        };
+        let _ = draw();
+        let _ = root.present();
+    }
+    svg
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn durations_read_well() {
+        assert_eq!(duration(150e-15), "150.000 fs");
+        assert_eq!(duration(3600.0), "1.000 h");
+        assert_eq!(duration(f64::INFINITY), "never");
+    }
+}
