@@ -229,7 +229,12 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
                 rate *= net.species[term.species].initial.powf(nu);
             }
         }
-        let name = format!("{} ({} -> {})", s.name, net.side(&s.reactants), net.side(&s.products));
+        let mut name = format!("{} ({} -> {})", s.name, net.side(&s.reactants), net.side(&s.products));
+        if s.order > 1
+            && let Some(first) = s.reactants.first()
+        {
+            name.push_str(&format!(" [per {}]", net.species[first.species].name));
+        }
         out.push(row(name, StepKind::Thermal(s.order), &s.rate, s.order, rate));
     }
     for tr in &net.transients {

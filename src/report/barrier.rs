@@ -57,15 +57,16 @@ pub fn verdicts_text(rows: &[Verdict], window: f64, probability: f64, temperatur
         duration(window),
         probability * 100.0
     );
+    let width = rows.iter().map(|r| r.name.chars().count()).max().unwrap_or(4).max(4);
     let _ = writeln!(
         s,
-        "{:<44} {:>12} {:>12} {:>14}  verdict",
+        "{:<width$} {:>12} {:>12} {:>14}  verdict",
         "step", "ΔG‡ kJ/mol", "k (1/s)", "half-life"
     );
     for r in rows {
         let _ = writeln!(
             s,
-            "{:<44} {:>12.2} {:>12.3e} {:>14}  {}",
+            "{:<width$} {:>12.2} {:>12.3e} {:>14}  {}",
             r.name,
             r.barrier / 1000.0,
             r.rate,
@@ -75,8 +76,8 @@ pub fn verdicts_text(rows: &[Verdict], window: f64, probability: f64, temperatur
     }
     let _ = writeln!(
         s,
-        "k is per molecule: steps of order 2 or more are pseudo-first-order at the initial concentrations of \
-         their partners, and quenching at the initial quencher concentration; ΔG‡ for them is for 1 mol/L. \
+        "k is per molecule: steps of order 2 or more are pseudo-first-order (per molecule of the reactant in \
+         brackets) at the initial concentrations of their partners, and quenching at the initial quencher concentration; ΔG‡ for them is for 1 mol/L. \
          Channels set by fixed fractions carry no rate and are not listed."
     );
     let slow = rows.iter().filter(|r| !r.crosses()).count();
