@@ -129,6 +129,36 @@ fn canonical_average_of_rrkm_is_tst() {
     }
 }
 
+// With an external free rotor in reactant and transition state (Stein & Rabinovitch,
+// J. Chem. Phys. 58 (1973) 2438: the count starts from the rotor states and the vibrations are
+// convolved in), the canonical average matches TST with classical rotor partition functions
+// (1/σ) √(π k_B T / B) (common practice). The grain places rotor states at bin edges, a bias
+// that depends only on Δ/k_B T and the number of rotors, so it cancels between reactant and
+// transition state with the same number of rotors: 1e-6.
+#[test]
+fn canonical_average_with_free_rotors_is_tst() {
+    use photoledger::rates::partition::Rotor;
+    let rotor = |b: f64, symmetry: u32| Rotor {
+        constant: b * wn(),
+        symmetry,
+    };
+    let r = Modes {
+        rotors: vec![rotor(2.0, 1)],
+        ..modes(&[1500.0, 900.0, 420.0, 150.0])
+    };
+    let ts = Modes {
+        rotors: vec![rotor(1.2, 2)],
+        imaginary: Some(800.0 * wn()),
+        ..modes(&[1450.0, 880.0, 210.0])
+    };
+    let e0 = 6000.0 * wn();
+    let model = Rrkm::new(&r, &ts, e0, 1.0, wn(), e0 + 60_000.0 * wn()).unwrap();
+    let t = 500.0;
+    let canonical = model.canonical_rate(t);
+    let tst = tst_rate(&r, &ts, e0, t, 1.0, 1.0);
+    assert!((canonical / tst - 1.0).abs() < 1e-6, "{canonical} vs {tst}");
+}
+
 // Eyring at 298.15 K: k_B T / h = 6.2124e12 s⁻¹ (CODATA 2018 exact k_B and h; Eyring,
 // J. Chem. Phys. 3 (1935) 107). A half-life of about an hour for ΔG‡ ≈ 22.5 kcal/mol is the
 // trade's rule of thumb (common practice); recomputed here from the prefactor, and the window

@@ -248,6 +248,7 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
                 Branching::Rate { law, k } => out.push(row(name, StepKind::Channel, law, 1, *k)),
                 Branching::Quenching { partner, law, k2 } => {
                     let rate = k2 * net.species[*partner].initial;
+                    let name = format!("{name} [quenched by {}]", net.species[*partner].name);
                     out.push(row(name, StepKind::Quenching, law, 2, rate));
                 }
                 Branching::Fraction(_) | Branching::Rest => {}
