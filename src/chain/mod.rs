@@ -410,3 +410,27 @@ fn distribution(
         truncated,
     })
 }
+
+/// A reproducible sparse chain of `states` transient states and three absorbing ones, for
+/// timing, shaped like a long reaction path: from state i, a photon move on to i + 1 (0.55; the
+/// last state's goes to an end), a non-photon move back to one of the 32 states before it, chosen
+/// by a fixed hash of i (0.35), a photon move back to i (0.05), and an end (0.05).
+pub fn generated(states: usize) -> Chain {
+    let n = states.max(1);
+    let mut c = Chain::default();
+    for i in 0..n {
+        c.add_state(&format!("s{i}"), StateKind::Other, false, 1.0);
+    }
+    let ends: Vec<usize> = (0..3)
+        .map(|k| c.add_state(&format!("end{k}"), StateKind::Other, true, 0.0))
+        .collect();
+    for i in 0..n {
+        let h = ((i as u64).wrapping_mul(0x9E37_79B9_7F4A_7C15) >> 17) as usize;
+        let next = if i + 1 < n { i + 1 } else { ends[0] };
+        c.add_move(i, next, 0.55, true);
+        c.add_move(i, i.saturating_sub(1 + h % 32), 0.35, false);
+        c.add_move(i, i, 0.05, true);
+        c.add_move(i, ends[i % 3], 0.05, false);
+    }
+    c
+}

@@ -28,6 +28,45 @@ pub struct BenchArgs {
     /// Also time the generated network with dense linear algebra.
     #[arg(long)]
     pub dense_too: bool,
+    /// Instead, time the absorbing-chain analysis of a generated sparse chain of this many states.
+    #[arg(long, value_name = "STATES")]
+    pub chain_states: Option<usize>,
+}
+
+/// Time `ledger`'s analysis on a generated chain: without, then with, the photon-count distribution.
+fn chain_bench(states: usize) -> photoledger::Result<()> {
+    use photoledger::chain::{Options, analyse, generated};
+    let start = Instant::now();
+    let c = generated(states);
+    let built = start.elapsed().as_secs_f64();
+    let mut pi = vec![0.0; c.states.len()];
+    pi[0] = 1.0;
+    let t0 = Instant::now();
+    let a = analyse(
+        &c,
+        &pi,
+        &Options {
+            distribution: false,
+            ..Options::default()
+        },
+    )?;
+    let moments = t0.elapsed().as_secs_f64();
+    let t1 = Instant::now();
+    let d = analyse(&c, &pi, &Options::default())?;
+    let full = t1.elapsed().as_secs_f64();
+    let n = d.distribution.as_ref().map_or(0, |x| x.p.len());
+    println!(
+        "generated chain: {} states, {} moves (built in {built:.3} s)",
+        c.states.len(),
+        c.moves.len()
+    );
+    println!("  yields, visits, photon mean and variance, mean time (one LU, four solves): {moments:.3} s");
+    println!(
+        "  the same plus P(N = n) for n = 0..{} (second LU, one solve per n): {full:.3} s",
+        n.saturating_sub(1)
+    );
+    println!("  mean photons {:.4}, yields {:?}", a.photons_total, a.yields);
+    Ok(())
 }
 
 struct Row {
@@ -65,6 +104,9 @@ fn time(name: &str, model: &Model, until: f64, sparse: Option<bool>) -> photoled
 }
 
 pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
+    if let Some(n) = a.chain_states {
+        return chain_bench(n);
+    }
     let until = units::parse(&a.until, Quantity::Time)
         .map_err(|e| photoledger::Error::Usage(format!("--until: {e}; expected {}", Quantity::Time.accepted())))?;
     let mut rows = Vec::new();
