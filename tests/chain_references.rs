@@ -50,20 +50,20 @@ fn drunkards_walk_grinstead_snell_example_11_13() {
     let b_ref = [[0.75, 0.25], [0.5, 0.5], [0.25, 0.75]];
     for (row, start) in (1..4).enumerate() {
         let a = analyse(&c, &from_state(&c, start), &Options::default()).unwrap();
-        for col in 0..3 {
-            assert!((a.visits[col + 1] - n_ref[row][col]).abs() < 1e-12, "N[{row}][{col}]");
+        for (col, want) in n_ref[row].iter().enumerate() {
+            assert!((a.visits[col + 1] - want).abs() < 1e-12, "N[{row}][{col}]");
         }
         assert!((a.time_total - t_ref[row]).abs() < 1e-12, "t[{row}] = {}", a.time_total);
         assert_eq!(a.absorbing, vec![0, 4]);
-        for k in 0..2 {
-            assert!((a.yields[k] - b_ref[row][k]).abs() < 1e-12, "B[{row}][{k}]");
+        for (k, want) in b_ref[row].iter().enumerate() {
+            assert!((a.yields[k] - want).abs() < 1e-12, "B[{row}][{k}]");
         }
         // Right steps taken before absorption, counted as photons: the mean over both ends is
         // Σ_j N_ij / 2 (half the moves are to the right) = t / 2.
         assert!((a.photons_total - t_ref[row] / 2.0).abs() < 1e-12);
         let d = a.distribution.as_ref().unwrap();
         let sum: f64 = d.p.iter().flatten().sum();
-        assert!(sum >= 1.0 - 1e-9 && sum <= 1.0 + 1e-12);
+        assert!((1.0 - 1e-9..=1.0 + 1e-12).contains(&sum));
     }
 }
 
@@ -404,7 +404,7 @@ proptest! {
         let d = a.distribution.as_ref().unwrap();
         let sum: f64 = d.p.iter().flatten().sum();
         prop_assert!(!d.truncated);
-        prop_assert!(sum >= 1.0 - 1e-9 - 1e-12 && sum <= 1.0 + 1e-9, "sum {}", sum);
+        prop_assert!((1.0 - 1e-9 - 1e-12..=1.0 + 1e-9).contains(&sum), "sum {}", sum);
         let mean: f64 = d.p.iter().enumerate().map(|(k, row)| k as f64 * row.iter().sum::<f64>()).sum();
         prop_assert!(mean <= a.photons_total * (1.0 + 1e-9) + 1e-12);
         prop_assert!((mean - a.photons_total).abs() < 1e-4 * a.photons_total.max(1.0), "{} vs {}", mean, a.photons_total);
