@@ -27,6 +27,10 @@ pub struct LedgerArgs {
     /// cell at the initial concentrations) or "thin" (optically thin, needs irradiated_area).
     #[arg(long, default_value = "stirred")]
     pub light: String,
+    /// Take the concentrations (for light sharing, linearised bimolecular steps and quenching)
+    /// from a kinetics run of this length instead of the initial ones, e.g. "2 h".
+    #[arg(long, value_name = "DURATION")]
+    pub at: Option<String>,
     /// Stop the photon-count distribution at this many photons.
     #[arg(long, default_value_t = 200_000)]
     pub max_photons: usize,
@@ -46,10 +50,24 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
             )));
         }
     };
-    let settings = Settings {
-        light,
-        concentrations: None,
+    let concentrations = match &a.at {
+        None => None,
+        Some(d) => {
+            let t = photoledger::units::parse(d, photoledger::units::Quantity::Time).map_err(|e| {
+                Error::Usage(format!(
+                    "--at: {e}; expected {}",
+                    photoledger::units::Quantity::Time.accepted()
+                ))
+            })?;
+            let tr = photoledger::kinetics::simulate(&model, &photoledger::kinetics::Options::until(t), &mut |_| {})?;
+            eprintln!(
+                "note: concentrations taken from the kinetics at {}",
+                photoledger::units::format_time(t)
+            );
+            Some(tr.last()[..model.n_species()].to_vec())
+        }
     };
+    let settings = Settings { light, concentrations };
     let values = Values::of(&model, &net);
     let ch = build::build(&model, &net, &settings, &values)?;
     let (start, note) = build::start(&model, &ch, a.from.as_deref())?;
