@@ -103,7 +103,7 @@ impl Values {
                     t.channels
                         .iter()
                         .map(|c| match c.branching {
-                            Branching::Fraction(x) => x,
+                            Branching::Fraction(x) | Branching::Hot { fraction: x, .. } => x,
                             Branching::Rest => f64::NAN,
                             Branching::Rate { k, .. } => k,
                             Branching::Quenching { k2, .. } => k2,
@@ -158,7 +158,7 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
             let to = target_name(net, &ch.target);
             let (unit, barrier) = match &ch.branching {
                 Branching::Rest => continue,
-                Branching::Fraction(_) => ("1", false),
+                Branching::Fraction(_) | Branching::Hot { .. } => ("1", false),
                 Branching::Rate { law, .. } => ("1/s", is_barrier(law)),
                 Branching::Quenching { law, .. } => ("L/(mol s)", is_barrier(law)),
             };
@@ -427,7 +427,7 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
             .channels
             .iter()
             .enumerate()
-            .filter(|(_, ch)| matches!(ch.branching, Branching::Fraction(_)))
+            .filter(|(_, ch)| ch.branching.fixed_share().is_some())
             .map(|(ci, _)| vals[ci].max(0.0))
             .sum();
         let has_rest = tr.channels.iter().any(|ch| matches!(ch.branching, Branching::Rest));
@@ -450,7 +450,7 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
         };
         for (ci, ch) in tr.channels.iter().enumerate() {
             let p = match ch.branching {
-                Branching::Fraction(_) => vals[ci].max(0.0) * scale,
+                Branching::Fraction(_) | Branching::Hot { .. } => vals[ci].max(0.0) * scale,
                 Branching::Rest => (1.0 - fixed * scale).max(0.0),
                 Branching::Rate { .. } if rates > 0.0 => vals[ci].max(0.0) / rates,
                 Branching::Quenching { partner, .. } if rates > 0.0 => vals[ci].max(0.0) * c[partner].max(0.0) / rates,

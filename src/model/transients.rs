@@ -74,13 +74,7 @@ impl Collapse {
             let fixed: f64 = t
                 .channels
                 .iter()
-                .map(|c| {
-                    if let Branching::Fraction(x) = c.branching {
-                        x
-                    } else {
-                        0.0
-                    }
-                })
+                .map(|c| c.branching.fixed_share().unwrap_or(0.0))
                 .sum();
             let mut row = Vec::new();
             for (j, c) in t.channels.iter().enumerate() {
@@ -97,7 +91,7 @@ impl Collapse {
                     Target::Transient(k) => Err(*k),
                 };
                 let share = match c.branching {
-                    Branching::Fraction(x) => Share::Fixed(x),
+                    Branching::Fraction(x) | Branching::Hot { fraction: x, .. } => Share::Fixed(x),
                     Branching::Rest => Share::Fixed((1.0 - fixed).max(0.0)),
                     Branching::Rate { k, .. } => Share::Rate(k),
                     Branching::Quenching { partner, k2, .. } => {
