@@ -31,9 +31,21 @@ fn cm(v: f64) -> f64 {
     PLANCK * SPEED_OF_LIGHT * 100.0 * v * AVOGADRO
 }
 
+/// The default grain of the state counts, "10 cm-1", read as the library reads it (a frequency
+/// on a half-grain boundary rounds by the last bit of the grain, so use the very same number).
+fn default_grain() -> f64 {
+    photoledger::units::parse("10 cm-1", photoledger::units::Quantity::MolarEnergy).unwrap()
+}
+
+/// ν̃ cm⁻¹ as J/mol read as the library reads a frequency (state counts round frequencies to
+/// whole grains, and a frequency on a half-grain boundary rounds by its last bit).
+fn cm_read(v: f64) -> f64 {
+    photoledger::units::parse(&format!("{v} cm-1"), photoledger::units::Quantity::MolarEnergy).unwrap()
+}
+
 fn modes(v: &[f64]) -> Modes {
     Modes {
-        vibrations: v.iter().map(|x| cm(*x)).collect(),
+        vibrations: v.iter().map(|x| cm_read(*x)).collect(),
         ..Default::default()
     }
 }
@@ -159,10 +171,10 @@ fn hot_channels_take_the_engine_yields_and_the_rest_cools() {
     assert!((photon - 327.74e3).abs() < 10.0, "{photon}");
     let reactant = modes(&REACTANT);
     let mut ts_b = modes(&TS);
-    ts_b.imaginary = Some(cm(1150.0));
+    ts_b.imaginary = Some(cm_read(1150.0));
     let ts_c = modes(&TS_C);
     let kcal = 1000.0 * CALORIE;
-    let grain = cm(10.0);
+    let grain = default_grain();
     let y = rrkm_yields(
         &reactant,
         &[
@@ -274,7 +286,7 @@ fn bundled_networks_validate_and_the_flow_hot_branch_is_computed() {
         }],
         energy,
         Some(cooling),
-        cm(10.0),
+        default_grain(),
     )
     .unwrap();
     assert!((fraction - y.probabilities[0]).abs() < 1e-12, "{fraction} vs {:?}", y);
@@ -476,7 +488,7 @@ fn cli_several_hot_channels() {
         ],
         300e3,
         Some(3e-12),
-        cm(10.0),
+        default_grain(),
     )
     .unwrap();
     assert!(

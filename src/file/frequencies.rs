@@ -147,6 +147,9 @@ fn parse_inner(path: &Path, text: &str, start: Section) -> (Parsed, Vec<Diagnost
     let mut reactant = Modes::default();
     let mut ts = Modes::default();
     let mut ts_seen = start == Section::Ts;
+    // A transition-state list read without headers; a file that turns out to have sections
+    // (before any number) is read by its sections instead.
+    let mut implicit_ts = start == Section::Ts;
     let mut reactant_seen = false;
     let mut ts_imag: Vec<(f64, usize)> = Vec::new();
     let mut degeneracy = None;
@@ -167,6 +170,10 @@ fn parse_inner(path: &Path, text: &str, start: Section) -> (Parsed, Vec<Diagnost
         }
         let lead = start + (body.len() - body.trim_start().len());
         if trimmed.starts_with('[') {
+            if implicit_ts && ts.vibrations.is_empty() && ts.rotors.is_empty() && ts_imag.is_empty() {
+                ts_seen = false;
+            }
+            implicit_ts = false;
             let name = trimmed
                 .trim_start_matches('[')
                 .trim_end_matches(']')
