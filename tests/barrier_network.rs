@@ -26,11 +26,6 @@ fn net_in(dir: &Path, text: &str) -> Result<Network, String> {
     build(&loaded, &Overrides::none()).map_err(|e| e.to_string())
 }
 
-/// A molar energy of ν̃ cm⁻¹, J/mol, from CODATA 2018 h, c, N_A (not through the unit parser).
-fn cm(v: f64) -> f64 {
-    PLANCK * SPEED_OF_LIGHT * 100.0 * v * AVOGADRO
-}
-
 /// The default grain of the state counts, "10 cm-1", read as the library reads it (a frequency
 /// on a half-grain boundary rounds by the last bit of the grain, so use the very same number).
 fn default_grain() -> f64 {
