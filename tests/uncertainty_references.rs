@@ -50,6 +50,7 @@ fn param(key: &str, d: Distribution) -> Parameter {
         unit: String::new(),
         distribution: d,
         line: None,
+        written: String::new(),
     }
 }
 
@@ -98,7 +99,9 @@ fn linear_model_reproduces_the_gum_mean_and_variance() {
 fn correlated_linear_model_reproduces_c_sigma_c() {
     let json = r#"{"parameters": [{"key": "p", "value": 1.0}, {"key": "q", "value": 3.0}],
         "covariance": [[0.04, -0.03], [-0.03, 0.09]]}"#;
-    let space = Space::default().with_fit(FitBlock::from_json("fit.json", json).unwrap()).unwrap();
+    let space = Space::default()
+        .with_fit(FitBlock::from_json("fit.json", json).unwrap())
+        .unwrap();
     let n = 200_000;
     let (y, z): (Vec<f64>, Vec<f64>) = (0..n)
         .map(|i| {
@@ -109,9 +112,14 @@ fn correlated_linear_model_reproduces_c_sigma_c() {
     let var = 4.0 * 0.04 + 2.0 * 2.0 * 1.0 * -0.03 + 0.09;
     let (m, v) = moments(&y);
     assert!((m - 5.0).abs() < 4.0 * (var / n as f64).sqrt(), "mean {m}");
-    assert!((v - var).abs() < 4.0 * var * (2.0 / n as f64).sqrt(), "variance {v} vs {var}");
+    assert!(
+        (v - var).abs() < 4.0 * var * (2.0 / n as f64).sqrt(),
+        "variance {v} vs {var}"
+    );
     let (mz, vz) = moments(&z);
-    assert!((mz - 1.0).abs() < 4.0 * (0.04 / n as f64).sqrt() && (vz - 0.04).abs() < 4.0 * 0.04 * (2.0 / n as f64).sqrt());
+    assert!(
+        (mz - 1.0).abs() < 4.0 * (0.04 / n as f64).sqrt() && (vz - 0.04).abs() < 4.0 * 0.04 * (2.0 / n as f64).sqrt()
+    );
 }
 
 // Through the whole pipeline (file text -> network -> model -> kinetics): for A -> B, first
@@ -145,15 +153,19 @@ fn linear_output_of_the_kinetics_propagates_mean_and_sd() {
     let se = f * 1e-4 / (n as f64).sqrt();
     assert!((mb - f * 1e-3).abs() < 4.0 * se, "mean {mb} vs analytic {}", f * 1e-3);
     let sd_se = f * 1e-4 / (2.0 * (n as f64 - 1.0)).sqrt();
-    assert!((vb.sqrt() - f * 1e-4).abs() < 4.0 * sd_se, "sd {} vs analytic {}", vb.sqrt(), f * 1e-4);
+    assert!(
+        (vb.sqrt() - f * 1e-4).abs() < 4.0 * sd_se,
+        "sd {} vs analytic {}",
+        vb.sqrt(),
+        f * 1e-4
+    );
 }
 
 // SciPy 1.17.1, scipy.stats.spearmanr on twelve pairs with ties (scripts/spearman_reference.py
 // wrote tests/data/spearman_scipy.json).
 #[test]
 fn spearman_matches_scipy() {
-    let j: serde_json::Value =
-        serde_json::from_str(include_str!("data/spearman_scipy.json")).expect("reference file");
+    let j: serde_json::Value = serde_json::from_str(include_str!("data/spearman_scipy.json")).expect("reference file");
     let v = |k: &str| -> Vec<f64> { j[k].as_array().unwrap().iter().map(|x| x.as_f64().unwrap()).collect() };
     let rho = stats::spearman(&v("x"), &v("y")).unwrap();
     let want = j["rho"].as_f64().unwrap();
@@ -258,7 +270,12 @@ fn shards_merged_equal_the_single_run_exactly() {
     assert!(uncertainty::merge(twice).unwrap_err().to_string().contains("twice"));
     let mut other = parts.clone();
     other[0] = p.record(10, total, uncertainty::shard_range(total, 3, 4).unwrap(), &|| {});
-    assert!(uncertainty::merge(other).unwrap_err().to_string().contains("different run"));
+    assert!(
+        uncertainty::merge(other)
+            .unwrap_err()
+            .to_string()
+            .contains("different run")
+    );
 }
 
 /// The first error's (line, field, message) for a [[uncertain]] block appended to LINEAR.
@@ -283,33 +300,94 @@ fn spec_error(block: &str) -> (usize, String, String) {
             }
         }
     };
-    let Error::Invalid(ds) = err else { panic!("not located: {err}") };
+    let Error::Invalid(ds) = err else {
+        panic!("not located: {err}")
+    };
     let d = &ds[0];
-    (d.line_col.expect("a line").0, d.field.clone(), format!("{} {}", d.message, d.help.clone().unwrap_or_default()))
+    (
+        d.line_col.expect("a line").0,
+        d.field.clone(),
+        format!("{} {}", d.message, d.help.clone().unwrap_or_default()),
+    )
 }
 
 #[test]
 fn bad_distribution_specs_are_located_errors() {
     let first = LINEAR.lines().count() + 2; // the [[uncertain]] line
     let cases: &[(&str, &str, &str)] = &[
-        ("key = \"species.A.initial\"\nnormal = \"1 mM 0.1 mM\"", "normal", "no ±"),
-        ("key = \"species.A.initial\"\nnormal = \"1 mM ± -0.1 mM\"", "normal", "positive"),
-        ("key = \"species.A.initial\"\nnormal = \"1 mM ± 2 K\"", "normal", "disagree"),
-        ("key = \"species.A.initial\"\nnormal = \"1 furlong ± 2 furlong\"", "normal", "furlong"),
-        ("key = \"species.A.initial\"\nuniform = [\"2 mM\", \"1 mM\"]", "uniform", "below"),
-        ("key = \"species.A.initial\"\nuniform = [\"2 mM\"]", "uniform", "1 values"),
-        ("key = \"species.A.initial\"\nuniform = [\"1 mM\", 3]", "uniform", "disagree"),
-        ("key = \"species.A.initial\"\nbeta = { alpha = -1, beta = 2 }", "beta", "positive"),
-        ("key = \"species.A.initial\"\nlognormal = { median = \"1 mM\", factor = 0.5 }", "lognormal", "not above 1"),
-        ("key = \"species.A.initial\"\nlognormal = { median = \"-1 mM\", factor = 2 }", "lognormal", "positive"),
-        ("key = \"species.A.initial\"\nnormal = \"1 mM ± 0.1 mM\"\nuniform = [1, 2]", "", "exactly one"),
+        (
+            "key = \"species.A.initial\"\nnormal = \"1 mM 0.1 mM\"",
+            "normal",
+            "no ±",
+        ),
+        (
+            "key = \"species.A.initial\"\nnormal = \"1 mM ± -0.1 mM\"",
+            "normal",
+            "positive",
+        ),
+        (
+            "key = \"species.A.initial\"\nnormal = \"1 mM ± 2 K\"",
+            "normal",
+            "disagree",
+        ),
+        (
+            "key = \"species.A.initial\"\nnormal = \"1 furlong ± 2 furlong\"",
+            "normal",
+            "furlong",
+        ),
+        (
+            "key = \"species.A.initial\"\nuniform = [\"2 mM\", \"1 mM\"]",
+            "uniform",
+            "below",
+        ),
+        (
+            "key = \"species.A.initial\"\nuniform = [\"2 mM\"]",
+            "uniform",
+            "1 values",
+        ),
+        (
+            "key = \"species.A.initial\"\nuniform = [\"1 mM\", 3]",
+            "uniform",
+            "disagree",
+        ),
+        (
+            "key = \"species.A.initial\"\nbeta = { alpha = -1, beta = 2 }",
+            "beta",
+            "positive",
+        ),
+        (
+            "key = \"species.A.initial\"\nlognormal = { median = \"1 mM\", factor = 0.5 }",
+            "lognormal",
+            "not above 1",
+        ),
+        (
+            "key = \"species.A.initial\"\nlognormal = { median = \"-1 mM\", factor = 2 }",
+            "lognormal",
+            "positive",
+        ),
+        (
+            "key = \"species.A.initial\"\nnormal = \"1 mM ± 0.1 mM\"\nuniform = [1, 2]",
+            "",
+            "exactly one",
+        ),
         ("normal = \"1 mM ± 0.1 mM\"", "uncertain[0]", "no `key`"),
-        ("key = \"species.Q.initial\"\nnormal = \"1 mM ± 0.1 mM\"", "species.Q.initial", "does not take"),
-        ("key = \"light.lamp.power\"\nnormal = \"1 mM ± 0.1 mM\"", "light.lamp.power", "power"),
+        (
+            "key = \"species.Q.initial\"\nnormal = \"1 mM ± 0.1 mM\"",
+            "species.Q.initial",
+            "does not take",
+        ),
+        (
+            "key = \"light.lamp.power\"\nnormal = \"1 mM ± 0.1 mM\"",
+            "light.lamp.power",
+            "power",
+        ),
     ];
     for (block, field, words) in cases {
         let (line, f, msg) = spec_error(&format!("[[uncertain]]\n{block}"));
-        assert!(line >= first && line <= first + 3, "{block}: line {line}, want about {first}");
+        assert!(
+            line >= first && line <= first + 3,
+            "{block}: line {line}, want about {first}"
+        );
         assert!(f.contains(field), "{block}: field {f}");
         assert!(msg.contains(words), "{block}: message {msg}");
     }
@@ -334,8 +412,17 @@ fn accepted_specs_read_in_internal_units() {
     let ps = spec::read(&loaded(&text)).unwrap();
     let d: Vec<&Distribution> = ps.iter().map(|p| &p.distribution).collect();
     // 25 °C = 298.15 K; a spread of 2 °C is 2 K.
-    assert!(matches!(d[0], Distribution::Normal { mean, sd } if (mean - 298.15).abs() < 1e-12 && (sd - 2.0).abs() < 1e-12));
-    assert!(matches!(d[1], Distribution::Normal { mean, sd } if (mean - 0.01).abs() < 1e-15 && (sd - 0.001).abs() < 1e-15));
-    assert!(matches!(d[2], Distribution::LogNormal { median, factor } if (median - 1e-3).abs() < 1e-18 && *factor == 2.0));
-    assert_eq!((ps[0].unit.as_str(), ps[1].unit.as_str(), ps[2].unit.as_str()), ("K", "W", "M"));
+    assert!(
+        matches!(d[0], Distribution::Normal { mean, sd } if (mean - 298.15).abs() < 1e-12 && (sd - 2.0).abs() < 1e-12)
+    );
+    assert!(
+        matches!(d[1], Distribution::Normal { mean, sd } if (mean - 0.01).abs() < 1e-15 && (sd - 0.001).abs() < 1e-15)
+    );
+    assert!(
+        matches!(d[2], Distribution::LogNormal { median, factor } if (median - 1e-3).abs() < 1e-18 && *factor == 2.0)
+    );
+    assert_eq!(
+        (ps[0].unit.as_str(), ps[1].unit.as_str(), ps[2].unit.as_str()),
+        ("K", "W", "M")
+    );
 }

@@ -82,7 +82,12 @@ fn base_overrides(set: &[String]) -> photoledger::Result<Vec<(String, String)>> 
     Ok(set
         .iter()
         .filter_map(|s| s.split_once('='))
-        .map(|(k, v)| (k.trim().to_string(), v.trim().trim_matches('"').trim_matches('\'').to_string()))
+        .map(|(k, v)| {
+            (
+                k.trim().to_string(),
+                v.trim().trim_matches('"').trim_matches('\'').to_string(),
+            )
+        })
         .collect())
 }
 
@@ -167,8 +172,12 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<()> {
 fn merge(shards: &[PathBuf], json: bool, out: &Path) -> photoledger::Result<()> {
     let mut parts = Vec::new();
     for p in shards {
-        let r: Record = serde_json::from_str(&read(p)?)
-            .map_err(|e| Error::Usage(format!("{}: not a shard file of `uncertainty --shard`: {e}", p.display())))?;
+        let r: Record = serde_json::from_str(&read(p)?).map_err(|e| {
+            Error::Usage(format!(
+                "{}: not a shard file of `uncertainty --shard`: {e}",
+                p.display()
+            ))
+        })?;
         parts.push(r);
     }
     let record = uncertainty::merge(parts)?;
@@ -193,7 +202,8 @@ fn write_all(record: &Record, dir: &Path, json: bool) -> photoledger::Result<()>
         let svg = report::histogram_svg(&format!("{}: {}", summary.network, x.column.name), x, &values);
         if !svg.is_empty() {
             write_atomic(
-                &dir.join("histograms").join(format!("{}.svg", report::file_stem(&x.column.name))),
+                &dir.join("histograms")
+                    .join(format!("{}.svg", report::file_stem(&x.column.name))),
                 svg.as_bytes(),
             )?;
         }
@@ -213,4 +223,3 @@ fn write_all(record: &Record, dir: &Path, json: bool) -> photoledger::Result<()>
     }
     Ok(())
 }
-

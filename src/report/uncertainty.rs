@@ -14,7 +14,11 @@ fn opt(v: Option<f64>) -> String {
 }
 
 fn with_unit(name: &str, unit: &str) -> String {
-    if unit.is_empty() { name.to_string() } else { format!("{name} ({unit})") }
+    if unit.is_empty() {
+        name.to_string()
+    } else {
+        format!("{name} ({unit})")
+    }
 }
 
 /// True when an output spreads beyond rounding (sd above 1e-9 of |mean|): only then is a
@@ -43,9 +47,9 @@ pub fn text(s: &Summary) -> String {
     }
     let _ = writeln!(o, "\n  uncertain values");
     for p in &s.parameters {
-        let _ = writeln!(o, "    {:<40} {}", with_unit(&p.name, &p.unit), p.about);
+        let _ = writeln!(o, "    {:<46} {}", with_unit(&p.name, &p.unit), p.about);
     }
-    let _ = write!(o, "\n  {:<36} {:>7} {:>11} {:>11}", "output", "n", "mean", "sd");
+    let _ = write!(o, "\n  {:<40} {:>7} {:>11} {:>11}", "output", "n", "mean", "sd");
     for q in QUANTILES {
         let _ = write!(o, " {:>11}", format!("{} %", q * 100.0));
     }
@@ -53,7 +57,7 @@ pub fn text(s: &Summary) -> String {
     for x in &s.outputs {
         let _ = write!(
             o,
-            "  {:<36} {:>7} {:>11} {:>11}",
+            "  {:<40} {:>7} {:>11} {:>11}",
             with_unit(&x.column.name, &x.column.unit),
             x.n,
             opt(x.mean),
@@ -124,7 +128,13 @@ pub fn samples_csv(r: &Record) -> String {
 pub fn file_stem(name: &str) -> String {
     let mut s: String = name
         .chars()
-        .map(|c| if c.is_alphanumeric() || c == '_' || c == '-' { c } else { '-' })
+        .map(|c| {
+            if c.is_alphanumeric() || c == '_' || c == '-' {
+                c
+            } else {
+                '-'
+            }
+        })
         .collect();
     while s.contains("--") {
         s = s.replace("--", "-");

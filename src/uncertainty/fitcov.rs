@@ -125,7 +125,9 @@ impl FitBlock {
             return Err(bad("no parameters".into()));
         }
         if j.covariance.len() != n || j.covariance.iter().any(|r| r.len() != n) {
-            return Err(bad(format!("covariance must be {n} × {n}, one row and column per parameter")));
+            return Err(bad(format!(
+                "covariance must be {n} × {n}, one row and column per parameter"
+            )));
         }
         let transformed = j.covariance_scale == Scale::Transformed;
         let mut centre = Vec::with_capacity(n);
@@ -155,6 +157,7 @@ impl FitBlock {
                     transform: t,
                 },
                 line: None,
+                written: String::new(),
             });
         }
         let cov = DMatrix::from_fn(n, n, |i, k| j.covariance[i][k]);
@@ -247,7 +250,12 @@ mod tests {
         assert!((v[0] - 0.3).abs() < 1e-15 && (v[1] - 24.4).abs() < 1e-12);
         let bad = r#"{"parameters": [{"key": "a.b", "value": 1.3, "transform": "logit"}],
             "covariance_scale": "transformed", "covariance": [[0.01]]}"#;
-        assert!(FitBlock::from_json("f", bad).unwrap_err().to_string().contains("domain"));
+        assert!(
+            FitBlock::from_json("f", bad)
+                .unwrap_err()
+                .to_string()
+                .contains("domain")
+        );
         let bad = r#"{"parameters": [{"key": "a.b", "value": 1.3}], "covariance": [[0.01, 0.0]]}"#;
         assert!(FitBlock::from_json("f", bad).unwrap_err().to_string().contains("1 × 1"));
     }

@@ -80,7 +80,10 @@ impl Target {
         }
         let level = if let Some((p, of)) = rest.split_once('%') {
             let percent: f64 = p.trim().parse().map_err(|_| usage("the percentage is not a number"))?;
-            let of = of.trim().strip_prefix("of").ok_or_else(|| usage("a percentage needs \"of SPECIES\""))?;
+            let of = of
+                .trim()
+                .strip_prefix("of")
+                .ok_or_else(|| usage("a percentage needs \"of SPECIES\""))?;
             Level::PercentOf {
                 percent,
                 species: of.trim().to_string(),
@@ -206,7 +209,12 @@ impl<'a> Problem<'a> {
     /// `base` are `--set` overrides applied to every sample (the drawn values come after and
     /// win). A key the network does not have, or a value of the wrong kind, is an error at the
     /// `[[uncertain]]` entry (or a usage error for a fit's key).
-    pub fn new(loaded: &'a Loaded, base: Vec<(String, String)>, space: Space, settings: Settings) -> Result<Problem<'a>> {
+    pub fn new(
+        loaded: &'a Loaded,
+        base: Vec<(String, String)>,
+        space: Space,
+        settings: Settings,
+    ) -> Result<Problem<'a>> {
         if space.is_empty() {
             return Err(Error::Usage(
                 "nothing is uncertain: add [[uncertain]] entries to the network file (README, Uncertainty) or give --from-fit"
@@ -214,7 +222,9 @@ impl<'a> Problem<'a> {
             ));
         }
         if !settings.chain && settings.until.is_none() {
-            return Err(Error::Usage("nothing to compute: give --until for the kinetics, or keep the chain analysis".into()));
+            return Err(Error::Usage(
+                "nothing to compute: give --until for the kinetics, or keep the chain analysis".into(),
+            ));
         }
         if settings.target.is_some() && settings.until.is_none() {
             return Err(Error::Usage("--target needs --until (the longest time to wait)".into()));
@@ -236,7 +246,8 @@ impl<'a> Problem<'a> {
         let mut diags = Vec::new();
         for q in &params {
             let text = q.override_text(q.distribution.nominal());
-            if let Err(e) = crate::network::build(loaded, &p.overrides(&[q.key.as_str()], &[text.clone()])) {
+            if let Err(e) = crate::network::build(loaded, &p.overrides(&[q.key.as_str()], std::slice::from_ref(&text)))
+            {
                 let msg = match &e {
                     Error::Invalid(ds) => ds
                         .iter()
@@ -287,7 +298,8 @@ impl<'a> Problem<'a> {
                     }
                 }
                 Err(e) => {
-                    p.notes.push(format!("no chain analysis: at the nominal values it says: {e}"));
+                    p.notes
+                        .push(format!("no chain analysis: at the nominal values it says: {e}"));
                     p.settings.chain = false;
                 }
             }
@@ -345,7 +357,11 @@ impl<'a> Problem<'a> {
     pub fn evaluate(&self, values: &[f64]) -> Result<Vec<Option<f64>>> {
         let net = self.network(values)?;
         let model = Model::compile(&net);
-        let chain = if self.settings.chain { Some(chain_run(&model, &net)?) } else { None };
+        let chain = if self.settings.chain {
+            Some(chain_run(&model, &net)?)
+        } else {
+            None
+        };
         let finals = match self.settings.until {
             Some(t) => {
                 let mut o = kinetics::Options::until(t);
@@ -429,7 +445,10 @@ impl<'a> Problem<'a> {
     /// The header of a run of `total` samples holding `range`.
     pub fn header(&self, seed: u64, total: usize, range: Range<usize>) -> Header {
         let mut h = fnv1a(self.loaded.text.as_bytes(), 0xcbf29ce484222325);
-        h = fnv1a(format!("{:?}{:?}{:?}", self.base, self.space, self.settings).as_bytes(), h);
+        h = fnv1a(
+            format!("{:?}{:?}{:?}", self.base, self.space, self.settings).as_bytes(),
+            h,
+        );
         Header {
             format: FORMAT.into(),
             network: self.network_name.clone(),
@@ -445,7 +464,11 @@ impl<'a> Problem<'a> {
                 .map(|p| Column {
                     name: p.key.clone(),
                     unit: p.unit.clone(),
-                    about: p.distribution.describe(),
+                    about: if p.written.is_empty() {
+                        p.distribution.describe()
+                    } else {
+                        format!("{} (file: {})", p.distribution.describe(), p.written)
+                    },
                 })
                 .collect(),
             outputs: self.columns.clone(),
@@ -489,7 +512,11 @@ fn column(o: &Output, model: &Model, s: &Settings) -> Column {
         about,
     };
     match o {
-        Output::Yield(n) => c(format!("yield[{n}]"), "", format!("chain: probability that a molecule followed ends as {n}")),
+        Output::Yield(n) => c(
+            format!("yield[{n}]"),
+            "",
+            format!("chain: probability that a molecule followed ends as {n}"),
+        ),
         Output::QuantumYield(n) => c(
             format!("quantum_yield[{n}]"),
             "",
@@ -523,7 +550,9 @@ fn column(o: &Output, model: &Model, s: &Settings) -> Column {
 /// Samples `K/N` of `total`: indices ⌊(K−1)·total/N⌋ .. ⌊K·total/N⌋ (K from 1).
 pub fn shard_range(total: usize, k: usize, n: usize) -> Result<Range<usize>> {
     if n == 0 || k == 0 || k > n {
-        return Err(Error::Usage(format!("--shard {k}/{n}: write K/N with 1 ≤ K ≤ N, e.g. 3/10")));
+        return Err(Error::Usage(format!(
+            "--shard {k}/{n}: write K/N with 1 ≤ K ≤ N, e.g. 3/10"
+        )));
     }
     let at = |j: usize| ((j as u128 * total as u128) / n as u128) as usize;
     Ok(at(k - 1)..at(k))
@@ -543,7 +572,10 @@ pub fn merge(mut parts: Vec<Record>) -> Result<Record> {
     let want = same(&first.header);
     for (i, p) in parts.iter().enumerate() {
         if p.header.format != FORMAT {
-            return Err(Error::Usage(format!("merge: part {} is not a samples record ({FORMAT})", i + 1)));
+            return Err(Error::Usage(format!(
+                "merge: part {} is not a samples record ({FORMAT})",
+                i + 1
+            )));
         }
         if same(&p.header) != want {
             return Err(Error::Usage(format!(
@@ -554,7 +586,10 @@ pub fn merge(mut parts: Vec<Record>) -> Result<Record> {
         if p.samples.len() != p.header.end - p.header.first
             || p.samples.iter().enumerate().any(|(j, s)| s.index != p.header.first + j)
         {
-            return Err(Error::Usage(format!("merge: part {} does not hold the samples its header says", i + 1)));
+            return Err(Error::Usage(format!(
+                "merge: part {} does not hold the samples its header says",
+                i + 1
+            )));
         }
     }
     parts.sort_by_key(|p| p.header.first);

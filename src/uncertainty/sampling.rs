@@ -99,6 +99,7 @@ mod tests {
             unit: String::new(),
             distribution: d,
             line: None,
+            written: String::new(),
         }
     }
 
@@ -121,14 +122,25 @@ mod tests {
         let s = Space {
             independent: vec![
                 p(Distribution::Uniform { low: 0.1, high: 0.3 }),
-                p(Distribution::Beta { alpha: 0.5, beta: 0.7, low: 0.2, high: 0.4 }),
-                p(Distribution::LogNormal { median: 1e6, factor: 3.0 }),
+                p(Distribution::Beta {
+                    alpha: 0.5,
+                    beta: 0.7,
+                    low: 0.2,
+                    high: 0.4,
+                }),
+                p(Distribution::LogNormal {
+                    median: 1e6,
+                    factor: 3.0,
+                }),
             ],
             fit: None,
         };
         for i in 0..2000 {
             let v = s.draw(1, i);
-            assert!((0.1..0.3).contains(&v[0]) && (0.2..=0.4).contains(&v[1]) && v[2] > 0.0, "{v:?}");
+            assert!(
+                (0.1..0.3).contains(&v[0]) && (0.2..=0.4).contains(&v[1]) && v[2] > 0.0,
+                "{v:?}"
+            );
         }
     }
 }

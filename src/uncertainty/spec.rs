@@ -73,10 +73,13 @@ impl Distribution {
             Distribution::Beta { alpha, beta, low, high } => {
                 format!("beta({}, {}) on [{}, {}]", g(alpha), g(beta), g(low), g(high))
             }
-            Distribution::LogNormal { median, factor } => format!("lognormal(median {}, factor {})", g(median), g(factor)),
-            Distribution::FromFit { value, transform } => {
-                format!("fit covariance (best {}, {} scale)", g(value), transform.word())
+            Distribution::LogNormal { median, factor } => {
+                format!("lognormal(median {}, factor {})", g(median), g(factor))
             }
+            Distribution::FromFit { value, transform } => match transform {
+                Transform::None => format!("fit covariance, best {}", g(value)),
+                t => format!("fit covariance, best {}, drawn on the {} scale", g(value), t.word()),
+            },
         }
     }
 }
@@ -94,6 +97,8 @@ pub struct Parameter {
     pub distribution: Distribution,
     /// 1-based line of the entry in the network file, if it came from there.
     pub line: Option<usize>,
+    /// The distribution as written in the file (for reports), or "" when not from the file.
+    pub written: String,
 }
 
 impl Parameter {
@@ -173,7 +178,9 @@ impl Reader<'_> {
     fn spread(&mut self, field: &str, origin: &Origin, t: &str) -> Option<Read> {
         let r = self.text(field, origin, t)?;
         let Some(q) = r.quantity else { return Some(r) };
-        let unit = t.trim().trim_start_matches(|c: char| c.is_ascii_digit() || ".eE+-".contains(c));
+        let unit = t
+            .trim()
+            .trim_start_matches(|c: char| c.is_ascii_digit() || ".eE+-".contains(c));
         let zero = units::parse(&format!("0 {}", unit.trim()), q).unwrap_or(0.0);
         Some(Read {
             value: r.value - zero,
@@ -200,11 +207,21 @@ impl Reader<'_> {
         let u = e.get_ref();
         let base = format!("uncertain[{i}]");
         let Some(key) = &u.key else {
-            self.error(&base, &at, "no `key`", "write the `--set` key of the value, e.g. key = \"light.UV LED.power\"");
+            self.error(
+                &base,
+                &at,
+                "no `key`",
+                "write the `--set` key of the value, e.g. key = \"light.UV LED.power\"",
+            );
             return None;
         };
         let key_text = key.get_ref().trim().to_string();
-        let given = [u.normal.is_some(), u.uniform.is_some(), u.beta.is_some(), u.lognormal.is_some()];
+        let given = [
+            u.normal.is_some(),
+            u.uniform.is_some(),
+            u.beta.is_some(),
+            u.lognormal.is_some(),
+        ];
         if given.iter().filter(|g| **g).count() != 1 {
             self.error(
                 &format!("{base} \"{key_text}\""),
@@ -221,7 +238,12 @@ beta = { alpha = 2, beta = 5 }, lognormal = { median = \"1e6 /s\", factor = 2 }"
             let f = field("normal");
             let text = n.get_ref().replace("+/-", "±").replace("+-", "±");
             let Some((m, s)) = text.split_once('±') else {
-                self.error(&f, &o, format!("\"{}\" has no ±", n.get_ref()), "write \"MEAN ± SD\", e.g. \"23.5 kcal/mol ± 2 kcal/mol\" or \"0.3 ± 10 %\"");
+                self.error(
+                    &f,
+                    &o,
+                    format!("\"{}\" has no ±", n.get_ref()),
+                    "write \"MEAN ± SD\", e.g. \"23.5 kcal/mol ± 2 kcal/mol\" or \"0.3 ± 10 %\"",
+                );
                 return None;
             };
             let mean = self.text(&f, &o, m)?;
@@ -242,17 +264,35 @@ beta = { alpha = 2, beta = 5 }, lognormal = { median = \"1e6 /s\", factor = 2 }"
             };
             let q = self.same_quantity(&f, &o, mean, sd)?;
             if sd.value.partial_cmp(&0.0) != Some(std::cmp::Ordering::Greater) {
-                self.error(&f, &o, "the standard deviation must be positive", "write \"MEAN ± SD\" with SD > 0");
+                self.error(
+                    &f,
+                    &o,
+                    "the standard deviation must be positive",
+                    "write \"MEAN ± SD\" with SD > 0",
+                );
                 return None;
             }
-            return Some((key_text, q, Distribution::Normal { mean: mean.value, sd: sd.value }, at));
+            return Some((
+                key_text,
+                q,
+                Distribution::Normal {
+                    mean: mean.value,
+                    sd: sd.value,
+                },
+                at,
+            ));
         }
         if let Some(un) = &u.uniform {
             let o = Origin::Span(un.span());
             let f = field("uniform");
             let v = un.get_ref();
             if v.len() != 2 {
-                self.error(&f, &o, format!("{} values given", v.len()), "write [LOW, HIGH], e.g. [0.1, 0.3] or [\"15 mW\", \"25 mW\"]");
+                self.error(
+                    &f,
+                    &o,
+                    format!("{} values given", v.len()),
+                    "write [LOW, HIGH], e.g. [0.1, 0.3] or [\"15 mW\", \"25 mW\"]",
+                );
                 return None;
             }
             let lo = self.amount(&f, &o, &v[0])?;
@@ -262,33 +302,62 @@ beta = { alpha = 2, beta = 5 }, lognormal = { median = \"1e6 /s\", factor = 2 }"
                 self.error(&f, &o, "LOW must be below HIGH", "write [LOW, HIGH]");
                 return None;
             }
-            return Some((key_text, q, Distribution::Uniform { low: lo.value, high: hi.value }, at));
+            return Some((
+                key_text,
+                q,
+                Distribution::Uniform {
+                    low: lo.value,
+                    high: hi.value,
+                },
+                at,
+            ));
         }
         if let Some(b) = &u.beta {
             let o = Origin::Span(b.span());
             let f = field("beta");
             let bt = b.get_ref();
             if !(bt.alpha > 0.0 && bt.beta > 0.0 && bt.alpha.is_finite() && bt.beta.is_finite()) {
-                self.error(&f, &o, "alpha and beta must be positive numbers", "e.g. beta = { alpha = 2, beta = 5 }");
+                self.error(
+                    &f,
+                    &o,
+                    "alpha and beta must be positive numbers",
+                    "e.g. beta = { alpha = 2, beta = 5 }",
+                );
                 return None;
             }
             let lo = match &bt.low {
                 Some(a) => self.amount(&f, &o, a)?,
-                None => Read { value: 0.0, quantity: None },
+                None => Read {
+                    value: 0.0,
+                    quantity: None,
+                },
             };
             let hi = match &bt.high {
                 Some(a) => self.amount(&f, &o, a)?,
-                None => Read { value: 1.0, quantity: None },
+                None => Read {
+                    value: 1.0,
+                    quantity: None,
+                },
             };
             let q = self.same_quantity(&f, &o, lo, hi)?;
             if lo.value >= hi.value {
-                self.error(&f, &o, "low must be below high", "e.g. beta = { alpha = 2, beta = 5, low = 0.1, high = 0.6 }");
+                self.error(
+                    &f,
+                    &o,
+                    "low must be below high",
+                    "e.g. beta = { alpha = 2, beta = 5, low = 0.1, high = 0.6 }",
+                );
                 return None;
             }
             return Some((
                 key_text,
                 q,
-                Distribution::Beta { alpha: bt.alpha, beta: bt.beta, low: lo.value, high: hi.value },
+                Distribution::Beta {
+                    alpha: bt.alpha,
+                    beta: bt.beta,
+                    low: lo.value,
+                    high: hi.value,
+                },
                 at,
             ));
         }
@@ -298,14 +367,32 @@ beta = { alpha = 2, beta = 5 }, lognormal = { median = \"1e6 /s\", factor = 2 }"
         let ln = l.get_ref();
         let med = self.amount(&f, &o, &ln.median)?;
         if med.value <= 0.0 {
-            self.error(&f, &o, "the median must be positive", "e.g. lognormal = { median = \"1e6 /s\", factor = 2 }");
+            self.error(
+                &f,
+                &o,
+                "the median must be positive",
+                "e.g. lognormal = { median = \"1e6 /s\", factor = 2 }",
+            );
             return None;
         }
         if !(ln.factor > 1.0 && ln.factor.is_finite()) {
-            self.error(&f, &o, format!("factor {} is not above 1", ln.factor), "the factor is the geometric standard deviation, e.g. 2 (median/2 .. median×2 holds about 68 %)");
+            self.error(
+                &f,
+                &o,
+                format!("factor {} is not above 1", ln.factor),
+                "the factor is the geometric standard deviation, e.g. 2 (median/2 .. median×2 holds about 68 %)",
+            );
             return None;
         }
-        Some((key_text, med.quantity, Distribution::LogNormal { median: med.value, factor: ln.factor }, at))
+        Some((
+            key_text,
+            med.quantity,
+            Distribution::LogNormal {
+                median: med.value,
+                factor: ln.factor,
+            },
+            at,
+        ))
     }
 }
 
@@ -319,21 +406,51 @@ pub fn read(loaded: &Loaded) -> Result<Vec<Parameter>> {
     };
     let mut out: Vec<Parameter> = Vec::new();
     for (i, e) in loaded.doc.uncertain.iter().enumerate() {
-        let Some((key, q, dist, at)) = r.entry(i, e) else { continue };
+        let Some((key, q, dist, at)) = r.entry(i, e) else {
+            continue;
+        };
         if out.iter().any(|p| p.key == key) {
-            r.error(&format!("uncertain[{i}].key"), &at, format!("\"{key}\" has a distribution already"), "give each key once");
+            r.error(
+                &format!("uncertain[{i}].key"),
+                &at,
+                format!("\"{key}\" has a distribution already"),
+                "give each key once",
+            );
             continue;
         }
         let line = match &at {
             Origin::Span(s) => Some(crate::error::line_col(&loaded.text, s.start).0),
             _ => None,
         };
+        let written = match &at {
+            Origin::Span(sp) => written(&loaded.text[sp.clone()]),
+            _ => String::new(),
+        };
         out.push(Parameter {
             key,
             unit: q.map(units::internal_spelling).unwrap_or_default(),
             distribution: dist,
             line,
+            written,
         });
     }
-    if r.diags.is_empty() { Ok(out) } else { Err(Error::Invalid(r.diags)) }
+    if r.diags.is_empty() {
+        Ok(out)
+    } else {
+        Err(Error::Invalid(r.diags))
+    }
+}
+
+/// The distribution line of an entry's text, e.g. `normal = "2.8 kcal/mol ± 1 kcal/mol"`.
+fn written(entry: &str) -> String {
+    entry
+        .lines()
+        .map(str::trim)
+        .find(|l| {
+            ["normal", "uniform", "beta", "lognormal"]
+                .iter()
+                .any(|w| l.starts_with(w))
+        })
+        .unwrap_or("")
+        .to_string()
 }
