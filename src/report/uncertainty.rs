@@ -143,24 +143,33 @@ pub fn file_stem(name: &str) -> String {
 }
 
 /// Histogram of one output's values (40 bars over the observed range) with the 2.5 %, 50 % and
-/// 97.5 % quantiles marked. Empty string when there are no values.
+/// 97.5 % quantiles marked. Positive values spread over more than two decades are binned on a
+/// log scale. Empty string when there are no values.
 pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
     let v: Vec<f64> = values.iter().copied().filter(|v| v.is_finite()).collect();
     let mut svg = String::new();
     if v.is_empty() {
         return svg;
     }
-    let lo = v.iter().copied().fold(f64::INFINITY, f64::min);
-    let hi = v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let min = v.iter().copied().fold(f64::INFINITY, f64::min);
+    let max = v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let log = min > 0.0 && max / min > 100.0;
+    let tx = |a: f64| if log { a.log10() } else { a };
+    let (lo, hi) = (tx(min), tx(max));
     let span = if hi > lo { hi - lo } else { lo.abs().max(1e-300) * 1e-6 };
     let (lo, hi) = (lo - 0.02 * span, hi + 0.02 * span);
     let bins = 40;
     let w = (hi - lo) / bins as f64;
     let mut counts = vec![0usize; bins];
-    for x in &v {
-        counts[(((x - lo) / w) as usize).min(bins - 1)] += 1;
+    for a in &v {
+        counts[(((tx(*a) - lo) / w) as usize).min(bins - 1)] += 1;
     }
     let ymax = *counts.iter().max().unwrap_or(&1) as f64 * 1.1;
+    let x_desc = format!(
+        "{}{}",
+        with_unit(&x.column.name, &x.column.unit),
+        if log { " (log scale)" } else { "" }
+    );
     {
         let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
         let _ = root.fill(&WHITE);
@@ -173,9 +182,10 @@ pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
                 .build_cartesian_2d(lo..hi, 0.0..ymax)?;
             chart
                 .configure_mesh()
-                .x_desc(with_unit(&x.column.name, &x.column.unit))
+                .x_desc(x_desc.as_str())
                 .y_desc("samples")
-                .x_label_formatter(&|v| sig(*v, 3))
+                .x_label_formatter(&|a| sig(if log { 10f64.powf(*a) } else { *a }, 3))
+                .y_label_formatter(&|c| format!("{c:.0}"))
                 .label_style(("sans-serif", 15))
                 .draw()?;
             let col = RGBColor(31, 119, 180);
@@ -187,10 +197,10 @@ pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
             for (q, val) in &x.quantiles {
                 if let Some(val) = val
                     && (*q == 0.025 || *q == 0.5 || *q == 0.975)
+                    && (!log || *val > 0.0)
                 {
-                    chart
-                        .draw_series(LineSeries::new([(*val, 0.0), (*val, ymax)], mark.stroke_width(2)))?
-                        .label(format!("{} %", q * 100.0));
+                    let a = tx(*val);
+                    chart.draw_series(LineSeries::new([(a, 0.0), (a, ymax)], mark.stroke_width(2)))?;
                 }
             }
             Ok(())
