@@ -728,3 +728,49 @@ pub fn summarise(r: &Record) -> Summary {
         notes: r.header.notes.clone(),
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn shards_cover_every_index_once() {
+        for total in [0usize, 1, 7, 100, 1001] {
+            for n in 1..=9 {
+                let mut at = 0;
+                for k in 1..=n {
+                    let r = shard_range(total, k, n).unwrap();
+                    assert_eq!(r.start, at);
+                    at = r.end;
+                }
+                assert_eq!(at, total);
+            }
+        }
+        assert!(shard_range(10, 0, 3).is_err() && shard_range(10, 4, 3).is_err() && shard_range(10, 1, 0).is_err());
+    }
+
+    #[test]
+    fn targets_read_levels_and_percentages() {
+        let t = Target::parse("product > 5 mM").unwrap();
+        assert_eq!((t.species.as_str(), t.above), ("product", true));
+        assert!(matches!(t.level, Level::Concentration(c) if (c - 5e-3).abs() < 1e-18));
+        let t = Target::parse("Z-azo >= 90 % of E-azo").unwrap();
+        assert_eq!(
+            t.level,
+            Level::PercentOf {
+                percent: 90.0,
+                species: "E-azo".into()
+            }
+        );
+        assert!(!Target::parse("E-azo < 1 µM").unwrap().above);
+        for bad in [
+            "product 5 mM",
+            "> 5 mM",
+            "product > 5 K",
+            "product > 90 %",
+            "product > x % of A",
+        ] {
+            assert!(matches!(Target::parse(bad), Err(Error::Usage(_))), "{bad}");
+        }
+    }
+}
