@@ -10,6 +10,7 @@ mod check;
 mod diagram;
 mod ledger;
 mod simulate;
+mod uncertainty;
 
 use clap::{Parser, Subcommand};
 use photoledger::Error;
@@ -52,6 +53,9 @@ enum Command {
     Simulate(simulate::SimulateArgs),
     /// Follow one molecule as an absorbing Markov chain: yields, cycles, photons per product.
     Ledger(ledger::LedgerArgs),
+    /// Propagate uncertain values ([[uncertain]] entries or a fit's covariance) through the chain
+    /// analysis and the kinetics: quantiles, what drives each output, histograms.
+    Uncertainty(Box<uncertainty::UncertaintyArgs>),
     /// Draw the network as SVG (species, transients, thermal and photochemical steps).
     Diagram {
         #[command(flatten)]
@@ -81,6 +85,7 @@ pub fn run() -> i32 {
         Command::Bench(a) => bench::run(&a),
         Command::Barrier(a) => barrier::run(&a),
         Command::Ledger(a) => ledger::run(&a),
+        Command::Uncertainty(a) => uncertainty::run(&a),
     };
     match result {
         Ok(()) => 0,

@@ -7,6 +7,7 @@
 pub mod csv;
 pub mod frequencies;
 pub mod schema;
+pub mod uncertain;
 
 use crate::error::{Diagnostic, Error, Origin, Result};
 use std::collections::BTreeMap;

@@ -32,6 +32,9 @@ pub struct NetworkFile {
     /// `[[transient]]` nodes.
     #[serde(default)]
     pub transient: Vec<Spanned<Transient>>,
+    /// `[[uncertain]]` distributions for `photoledger uncertainty` (layout in `file/uncertain.rs`).
+    #[serde(default)]
+    pub uncertain: Vec<Spanned<super::uncertain::Uncertain>>,
 }
 
 /// `[about]`.

@@ -61,6 +61,16 @@ pub(super) fn span<T>(s: &Spanned<T>) -> Origin {
     Origin::Span(s.span())
 }
 
+/// Where a value came from: the file, or the command line for values put in by `--set`
+/// (which carry an empty span).
+fn origin<T>(s: &Spanned<T>) -> Origin {
+    if s.span() == (0..0) {
+        Origin::CommandLine
+    } else {
+        span(s)
+    }
+}
+
 /// A string field: its value and where it came from.
 pub(super) struct Field {
     pub(super) value: String,
@@ -592,6 +602,13 @@ impl<'a> Builder<'a> {
             } else {
                 let p = self.field(e.power.as_ref(), Some(&key("power")));
                 let q = self.field(e.photon_flux.as_ref(), Some(&key("photon_flux")));
+                // A value given with --set replaces the file's intensity, however the file gives it.
+                let set = |f: &Option<Field>| f.as_ref().is_some_and(|f| f.origin == Origin::CommandLine);
+                let (p, q) = match (set(&p), set(&q)) {
+                    (true, false) => (p, None),
+                    (false, true) => (None, q),
+                    _ => (p, q),
+                };
                 match (p, q) {
                     (Some(p), None) => self
                         .positive(&format!("{field}.power"), &p, Quantity::Power)
@@ -930,13 +947,14 @@ impl<'a> Builder<'a> {
         ok.then_some(out)
     }
 
-    fn rate_law(&mut self, field: &str, r: &Spanned<schema::Rate>, order: u32) -> Option<RateLaw> {
+    /// A rate law; `key` is the `--set` prefix of its fields (e.g. `thermal.NAME`).
+    fn rate_law(&mut self, field: &str, r: &Spanned<schema::Rate>, order: u32, key: &str) -> Option<RateLaw> {
         let at = span(r);
-        let e = r.get_ref();
+        let e = &self.rate_with_overrides(r.get_ref(), key);
         let f = |t: &Option<Text>| {
             t.as_ref().map(|t| Field {
                 value: t.get_ref().clone(),
-                origin: span(t),
+                origin: origin(t),
             })
         };
         let ways = "one of: k = \"0.04 /s\"; prefactor + activation (Arrhenius); barrier = \"20 kcal/mol\" (Eyring ΔG‡); enthalpy + entropy (Eyring ΔH‡, ΔS‡); barrier + reactant_frequencies + ts_frequencies (transition-state theory)";
@@ -973,7 +991,7 @@ impl<'a> Builder<'a> {
                 if !(v > 0.0 && v <= 1.0) {
                     self.error(
                         &format!("{field}.transmission"),
-                        &span(k),
+                        &origin(k),
                         format!("{v} must lie in (0, 1]"),
                         None,
                     );
@@ -982,7 +1000,7 @@ impl<'a> Builder<'a> {
                 if e.k.is_some() || e.prefactor.is_some() {
                     self.error(
                         &format!("{field}.transmission"),
-                        &span(k),
+                        &origin(k),
                         "applies only to Eyring rates (barrier, or enthalpy + entropy)",
                         None,
                     );
@@ -1047,6 +1065,68 @@ impl<'a> Builder<'a> {
         })
     }
 
+    /// The file's rate with `--set KEY.FIELD` values put in. `k` or `barrier` replace the way
+    /// the rate is given (keeping `transmission` for a barrier); `prefactor`, `activation`,
+    /// `enthalpy`, `entropy` and `transmission` replace a field of the form the file uses.
+    /// Values from the command line carry an empty span.
+    fn rate_with_overrides(&self, file: &schema::Rate, key: &str) -> schema::Rate {
+        let cmd = |v: &str| Some(Spanned::new(0..0, v.to_string()));
+        let get = |name: &str| self.overrides.get(&format!("{key}.{name}"));
+        let transmission = |r: &schema::Rate| match get("transmission") {
+            Some(v) => Some(Spanned::new(0..0, v.parse::<f64>().unwrap_or(f64::NAN))),
+            None => r.transmission.clone(),
+        };
+        if let Some(k) = get("k") {
+            return schema::Rate {
+                k: cmd(k),
+                ..Default::default()
+            };
+        }
+        if file.reactant_frequencies.is_some() || file.ts_frequencies.is_some() {
+            // A rate from frequencies keeps its modes: `barrier` is E₀ there.
+            let mut r = file.clone();
+            r.barrier = get("barrier").map_or(r.barrier, cmd);
+            r.transmission = transmission(&r);
+            return r;
+        }
+        if let Some(g) = get("barrier") {
+            return schema::Rate {
+                barrier: cmd(g),
+                transmission: transmission(file),
+                ..Default::default()
+            };
+        }
+        let mut r = file.clone();
+        if r.prefactor.is_some() || r.activation.is_some() {
+            r.prefactor = get("prefactor").map_or(r.prefactor, cmd);
+            r.activation = get("activation").map_or(r.activation, cmd);
+        }
+        if r.enthalpy.is_some() || r.entropy.is_some() {
+            r.enthalpy = get("enthalpy").map_or(r.enthalpy, cmd);
+            r.entropy = get("entropy").map_or(r.entropy, cmd);
+        }
+        if r.barrier.is_some() || r.enthalpy.is_some() || r.entropy.is_some() {
+            r.transmission = transmission(&r);
+        }
+        r
+    }
+
+    /// A number in [0, 1] given with `--set` (quantum yield, efficiency).
+    fn fraction_given(&mut self, field: &str, v: &str) -> Option<f64> {
+        match v.parse::<f64>() {
+            Ok(x) if (0.0..=1.0).contains(&x) => Some(x),
+            _ => {
+                self.error(
+                    field,
+                    &Origin::CommandLine,
+                    format!("\"{v}\" is not a number in [0, 1]"),
+                    Some("a plain number such as 0.25 (it replaces a table by one value at every wavelength)".into()),
+                );
+                None
+            }
+        }
+    }
+
     fn thermal(&mut self, doc: &schema::NetworkFile, names: &Names, temperature: f64) -> Vec<ThermalStep> {
         let mut out = Vec::new();
         for (i, s) in doc.thermal.iter().enumerate() {
@@ -1109,14 +1189,16 @@ impl<'a> Builder<'a> {
                 );
                 continue;
             };
-            let Some(law) = self.rate_law(&format!("{field}.rate"), rate, order) else {
+            let Some(law) = self.rate_law(&format!("{field}.rate"), rate, order, &format!("thermal.{name}")) else {
                 continue;
             };
             let k = law.rate_constant(temperature, order);
             let forward = out.len();
             let reverse_law = match (&e.reverse, raw.reversible) {
                 (Some(r), true) => match reverse_order {
-                    Some(o2) => self.rate_law(&format!("{field}.reverse"), r, o2).map(|l| (l, o2)),
+                    Some(o2) => self
+                        .rate_law(&format!("{field}.reverse"), r, o2, &format!("thermal.{name}.reverse"))
+                        .map(|l| (l, o2)),
                     None => {
                         self.error(
                             &format!("{field}.equation"),
@@ -1278,8 +1360,20 @@ impl<'a> Builder<'a> {
                         );
                         continue;
                     };
-                    let Some(qy) = self.spectrum(&format!("{field}.quantum_yield"), qy, None, Outside::Nearest) else {
-                        continue;
+                    let name = e
+                        .name
+                        .as_ref()
+                        .map_or(format!("{} (hν)", eq.get_ref().trim()), |n| n.get_ref().clone());
+                    let set = self.overrides.get(&format!("photo.{name}.quantum_yield"));
+                    let qy = match set {
+                        Some(v) => match self.fraction_given(&format!("{field}.quantum_yield"), v) {
+                            Some(x) => Spectrum::Constant { value: x, at: None },
+                            None => continue,
+                        },
+                        None => match self.spectrum(&format!("{field}.quantum_yield"), qy, None, Outside::Nearest) {
+                            Some(q) => q,
+                            None => continue,
+                        },
                     };
                     if qy.max() > 1.0 + 1e-12 {
                         self.error(
@@ -1290,10 +1384,6 @@ impl<'a> Builder<'a> {
                         );
                         continue;
                     }
-                    let name = e
-                        .name
-                        .as_ref()
-                        .map_or(format!("{} (hν)", eq.get_ref().trim()), |n| n.get_ref().clone());
                     self.at.photo.push(at.clone());
                     out.push(PhotoStep {
                         name,
@@ -1327,28 +1417,44 @@ impl<'a> Builder<'a> {
                         );
                         continue;
                     };
-                    let eff = match &e.efficiency {
-                        Some(v) => {
-                            let x = *v.get_ref();
-                            if !(0.0..=1.0).contains(&x) || x == 0.0 {
-                                self.error(
-                                    &format!("{field}.efficiency"),
-                                    &span(v),
-                                    format!("{x} must lie in (0, 1]"),
-                                    None,
-                                );
-                                continue;
-                            }
-                            x
-                        }
-                        None => 1.0,
-                    };
                     let name = e
                         .name
                         .as_ref()
                         .map_or(format!("{} + hν -> {}", names.species[absorber].name, xn), |n| {
                             n.get_ref().clone()
                         });
+                    let set = self.overrides.get(&format!("photo.{name}.efficiency"));
+                    let eff = match (set, &e.efficiency) {
+                        (Some(v), _) => match self.fraction_given(&format!("{field}.efficiency"), v) {
+                            Some(x) if x > 0.0 => x,
+                            Some(x) => {
+                                self.error(
+                                    &format!("{field}.efficiency"),
+                                    &Origin::CommandLine,
+                                    format!("{x} must lie in (0, 1]"),
+                                    None,
+                                );
+                                continue;
+                            }
+                            None => continue,
+                        },
+                        (None, e) => match e {
+                            Some(v) => {
+                                let x = *v.get_ref();
+                                if !(0.0..=1.0).contains(&x) || x == 0.0 {
+                                    self.error(
+                                        &format!("{field}.efficiency"),
+                                        &span(v),
+                                        format!("{x} must lie in (0, 1]"),
+                                        None,
+                                    );
+                                    continue;
+                                }
+                                x
+                            }
+                            None => 1.0,
+                        },
+                    };
                     self.at.photo.push(at.clone());
                     out.push(PhotoStep {
                         name,
@@ -1479,7 +1585,22 @@ impl<'a> Builder<'a> {
                     ));
                     continue;
                 }
-                let branching = match (&e.fraction, &e.rate, &e.quencher) {
+                let ck = format!("transient.{name}.channels[{j}]");
+                let fraction = match (&e.fraction, &e.rate) {
+                    // The channel taking the rest has no number of its own to set.
+                    (Some(f), None) if !matches!(f.get_ref(), toml::Value::String(_)) => {
+                        match self.overrides.get(&format!("{ck}.fraction")) {
+                            Some(v) => Some(Spanned::new(
+                                0..0,
+                                v.parse::<f64>()
+                                    .map_or(toml::Value::String(v.to_string()), toml::Value::Float),
+                            )),
+                            None => Some(f.clone()),
+                        }
+                    }
+                    _ => e.fraction.clone(),
+                };
+                let branching = match (&fraction, &e.rate, &e.quencher) {
                     (Some(f), None, None) => match f.get_ref() {
                         toml::Value::String(s) if s.trim() == "rest" => Branching::Rest,
                         toml::Value::Float(_) | toml::Value::Integer(_) => {
@@ -1491,7 +1612,7 @@ impl<'a> Builder<'a> {
                             if !(0.0..=1.0).contains(&x) {
                                 self.error(
                                     &format!("{cf}.fraction"),
-                                    &span(f),
+                                    &origin(f),
                                     format!("{x} is outside [0, 1]"),
                                     Some("a fraction lies in [0, 1], or \"rest\"".into()),
                                 );
@@ -1502,7 +1623,7 @@ impl<'a> Builder<'a> {
                         other => {
                             self.error(
                                 &format!("{cf}.fraction"),
-                                &span(f),
+                                &origin(f),
                                 format!("{other} is not a fraction"),
                                 Some("a number in [0, 1], or \"rest\"".into()),
                             );
@@ -1510,7 +1631,7 @@ impl<'a> Builder<'a> {
                         }
                     },
                     (None, Some(r), None) => {
-                        let Some(law) = self.rate_law(&format!("{cf}.rate"), r, 1) else {
+                        let Some(law) = self.rate_law(&format!("{cf}.rate"), r, 1, &ck) else {
                             continue;
                         };
                         let k = law.rate_constant(temperature, 1);
@@ -1522,7 +1643,7 @@ impl<'a> Builder<'a> {
                         else {
                             continue;
                         };
-                        let Some(law) = self.rate_law(&format!("{cf}.rate"), r, 2) else {
+                        let Some(law) = self.rate_law(&format!("{cf}.rate"), r, 2, &ck) else {
                             continue;
                         };
                         let k2 = law.rate_constant(temperature, 2);
@@ -1710,6 +1831,36 @@ fn unused_override(loaded: &Loaded, key: &str) -> Diagnostic {
                     format!("did you mean species.{c}.initial?")
                 });
             Diagnostic::error(&field, format!("no species called \"{name}\", or no such field")).with_help(hint)
+        }
+        [section @ ("photo" | "thermal" | "transient"), ..] => {
+            let doc = &loaded.doc;
+            let text = |t: &Option<Text>| t.as_ref().map(|t| t.get_ref().trim().to_string());
+            let names: Vec<String> = match *section {
+                "photo" => doc
+                    .photo
+                    .iter()
+                    .filter_map(|s| {
+                        let s = s.get_ref();
+                        text(&s.name).or_else(|| text(&s.equation).map(|e| format!("{e} (hν)")))
+                    })
+                    .collect(),
+                "thermal" => doc
+                    .thermal
+                    .iter()
+                    .filter_map(|s| text(&s.get_ref().name).or_else(|| text(&s.get_ref().equation)))
+                    .collect(),
+                _ => doc.transient.iter().filter_map(|s| text(&s.get_ref().name)).collect(),
+            };
+            let names = if names.is_empty() {
+                format!("this network has no {section} entries")
+            } else {
+                format!("{section} names here: {}", names.join(", "))
+            };
+            Diagnostic::error(
+                &field,
+                "no such field in this network, or it does not apply to how the value is given",
+            )
+            .with_help(format!("{names}; keys that can be set: {ACCEPTED}"))
         }
         _ => generic(),
     }

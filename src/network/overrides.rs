@@ -1,9 +1,33 @@
 //! Command-line overrides of values in a network file: `--set conditions.temperature="310 K"`.
 //!
-//! Accepted keys: `conditions.temperature`, `conditions.volume`, `conditions.path_length`,
-//! `conditions.irradiated_area`, `conditions.background` (a number), `species.NAME.initial`,
-//! and `light.NAME.FIELD` for `power`, `photon_flux`, `wavelength`, `centre`, `fwhm`, `scale`.
+//! Every number a user would fit or sample has a dotted key (names are the network's own):
+//!
+//! | key | value |
+//! |---|---|
+//! | `conditions.temperature`, `.volume`, `.path_length`, `.irradiated_area` | a quantity with unit |
+//! | `conditions.background` | a plain number (replaces a table) |
+//! | `species.NAME.initial` | a concentration |
+//! | `light.NAME.power`, `.photon_flux`, `.wavelength`, `.centre`, `.fwhm` | a quantity; `power` or `photon_flux` replaces the file's intensity either way |
+//! | `light.NAME.scale` | a plain number (sunlight) |
+//! | `photo.NAME.quantum_yield` | a number in [0, 1]; replaces a wavelength table by one value everywhere |
+//! | `photo.NAME.efficiency` | a number in (0, 1] (long form) |
+//! | `thermal.NAME.FIELD`, `thermal.NAME.reverse.FIELD` | the rate of a step or of its reverse |
+//! | `transient.NAME.channels[J].fraction` | a number in [0, 1] for a channel with a numeric fraction (J counts from 0, as in messages; the "rest" channel follows) |
+//! | `transient.NAME.channels[J].FIELD` | the rate of a channel |
+//!
+//! For a rate, FIELD mirrors the file's rate keys: `k` or `barrier` (Eyring ΔG‡) replace the way
+//! the rate is given (a barrier keeps the file's `transmission`); `prefactor`, `activation`,
+//! `enthalpy`, `entropy` and `transmission` change a field of the form the file already uses.
+//! Unnamed steps are named by their display name (a thermal step by its equation, a short-form
+//! photo step by "EQUATION (hν)").
+//!
+//! [`parameter`] reads the current value of a key from a built [`Network`], in the internal unit,
+//! with the unit to write it back and the range it may take: fitting and sampling use it.
 
+use super::{Branching, Network, PhotoOutcome, ThermalStep};
+use crate::light::{Intensity, LightKind, Spectrum};
+use crate::rates::RateLaw;
+use crate::units::constants::{BOLTZMANN, GAS_CONSTANT, PLANCK, STANDARD_CONCENTRATION};
 use std::cell::RefCell;
 use std::collections::BTreeSet;
 
@@ -17,7 +41,20 @@ pub struct Overrides {
 /// The keys that can be overridden, for messages.
 pub const ACCEPTED: &str = "conditions.temperature, conditions.volume, conditions.path_length, \
 conditions.irradiated_area, conditions.background, species.NAME.initial, \
-light.NAME.power|photon_flux|wavelength|centre|fwhm|scale";
+light.NAME.power|photon_flux|wavelength|centre|fwhm|scale, photo.NAME.quantum_yield|efficiency, \
+thermal.NAME.RATE, thermal.NAME.reverse.RATE, transient.NAME.channels[J].fraction, \
+transient.NAME.channels[J].RATE (RATE: k, barrier, prefactor, activation, enthalpy, entropy, transmission)";
+
+/// The rate fields a key may end with.
+pub const RATE_FIELDS: [&str; 7] = [
+    "k",
+    "barrier",
+    "prefactor",
+    "activation",
+    "enthalpy",
+    "entropy",
+    "transmission",
+];
 
 impl Overrides {
     /// No overrides.
@@ -79,5 +116,527 @@ impl Overrides {
     /// True when nothing is overridden.
     pub fn is_empty(&self) -> bool {
         self.entries.is_empty()
+    }
+}
+
+/// The values a parameter may take, for bounded transformations in fitting and sampling.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Range {
+    /// In [0, 1]: quantum yields, efficiencies, fractions.
+    Fraction,
+    /// Above zero: rate constants, concentrations, powers, lengths, temperatures.
+    Positive,
+    /// Any real number: energies and entropies of activation.
+    Real,
+}
+
+/// A parameter of a built network addressed by a `--set` key.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Parameter {
+    /// The key, e.g. `thermal.NAME.barrier`.
+    pub key: String,
+    /// Current value in the internal unit (SI; mol/L for concentrations).
+    pub value: f64,
+    /// Unit of `value` as written in a `--set` value ("" for plain numbers), e.g. "J/mol".
+    pub unit: &'static str,
+    /// Values it may take.
+    pub range: Range,
+}
+
+impl Parameter {
+    /// The `--set` value text for `value` in the internal unit, exact on reading back.
+    pub fn text(&self, value: f64) -> String {
+        if self.unit.is_empty() {
+            format!("{value:e}")
+        } else {
+            format!("{value:e} {}", self.unit)
+        }
+    }
+}
+
+/// Unit text of a rate constant of molecularity `order` in the internal unit.
+fn rate_unit(order: u32) -> &'static str {
+    match order {
+        1 => "/s",
+        2 => "/(M s)",
+        _ => "/(M2 s)",
+    }
+}
+
+/// The value of a rate field of `law` (value of k at the temperature given) at `field`.
+fn rate_parameter(key: &str, field: &str, law: &RateLaw, k: f64, order: u32, temperature: f64) -> Option<Parameter> {
+    let p = |value, unit, range| {
+        Some(Parameter {
+            key: key.to_string(),
+            value,
+            unit,
+            range,
+        })
+    };
+    match (field, law) {
+        ("k", _) => p(k, rate_unit(order), Range::Positive),
+        ("barrier", RateLaw::EyringFree { barrier, .. }) => p(*barrier, "J/mol", Range::Real),
+        // From frequencies the barrier is E₀, the zero-point-corrected threshold.
+        ("barrier", RateLaw::Frequencies { barrier, .. }) => p(*barrier, "J/mol", Range::Real),
+        ("barrier", law) => {
+            // The Eyring ΔG‡ that gives the same k (with the law's transmission, else 1).
+            let kappa = match law {
+                RateLaw::EyringEnthalpy { transmission, .. } => *transmission,
+                _ => 1.0,
+            };
+            let c0 = STANDARD_CONCENTRATION.powi(1 - order as i32);
+            let g = -GAS_CONSTANT * temperature * (k * PLANCK / (kappa * BOLTZMANN * temperature * c0)).ln();
+            p(g, "J/mol", Range::Real)
+        }
+        ("prefactor", RateLaw::Arrhenius { prefactor, .. }) => p(*prefactor, rate_unit(order), Range::Positive),
+        ("activation", RateLaw::Arrhenius { activation, .. }) => p(*activation, "J/mol", Range::Real),
+        ("enthalpy", RateLaw::EyringEnthalpy { enthalpy, .. }) => p(*enthalpy, "J/mol", Range::Real),
+        ("entropy", RateLaw::EyringEnthalpy { entropy, .. }) => p(*entropy, "J/(mol K)", Range::Real),
+        (
+            "transmission",
+            RateLaw::EyringFree { transmission, .. }
+            | RateLaw::EyringEnthalpy { transmission, .. }
+            | RateLaw::Frequencies { transmission, .. },
+        ) => {
+            p(*transmission, "", Range::Fraction)
+        }
+        _ => None,
+    }
+}
+
+/// The mean of a spectrum's values (a constant's value), as a start for one number replacing it.
+fn mean_value(s: &Spectrum) -> f64 {
+    match s {
+        Spectrum::Constant { value, .. } => *value,
+        Spectrum::Table { points, .. } => points.iter().map(|p| p.1).sum::<f64>() / points.len() as f64,
+    }
+}
+
+/// Split `rest` ("NAME.FIELD") at the last dot, where FIELD is one of `fields`.
+fn name_field<'a>(rest: &'a str, fields: &[&str]) -> Option<(&'a str, &'a str)> {
+    let (name, field) = rest.rsplit_once('.')?;
+    fields.contains(&field).then_some((name, field))
+}
+
+/// The current value of the parameter at `key` in `net`, or a message saying what is wrong with
+/// the key (with the keys this network has when the name is unknown).
+///
+/// A table-valued quantum yield or background reports the mean of its values (`--set` replaces
+/// it by one number). `barrier` on a rate given another way reports the Eyring ΔG‡ giving the
+/// same rate constant; `k` on any rate reports the rate constant at the network temperature.
+pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
+    let t = net.conditions.temperature;
+    let p = |value, unit, range| Parameter {
+        key: key.to_string(),
+        value,
+        unit,
+        range,
+    };
+    let unknown = |what: &str| {
+        let keys = parameter_keys(net);
+        let hint = super::suggest::closest(key, keys.iter().map(|s| s.as_str()))
+            .map_or(String::new(), |c| format!("; did you mean {c}?"));
+        Err(format!(
+            "{key}: {what}{hint} (keys of this network: {})",
+            keys.join(", ")
+        ))
+    };
+    let c = &net.conditions;
+    if let Some(f) = key.strip_prefix("conditions.") {
+        return match f {
+            "temperature" => Ok(p(c.temperature, "K", Range::Positive)),
+            "volume" => Ok(p(c.volume, "m3", Range::Positive)),
+            "path_length" => Ok(p(c.path_length, "m", Range::Positive)),
+            "irradiated_area" => match c.irradiated_area {
+                Some(a) => Ok(p(a, "m2", Range::Positive)),
+                None => Err(format!("{key}: the network gives no irradiated area")),
+            },
+            "background" => Ok(p(mean_value(&c.background), "", Range::Positive)),
+            _ => unknown("no such condition"),
+        };
+    }
+    if let Some(rest) = key.strip_prefix("species.") {
+        let Some((name, "initial")) = name_field(rest, &["initial"]) else {
+            return unknown("a species takes only `initial`");
+        };
+        return match net.species_index(name) {
+            Some(i) => Ok(p(net.species[i].initial, "M", Range::Positive)),
+            None => unknown(&format!("no species called \"{name}\"")),
+        };
+    }
+    if let Some(rest) = key.strip_prefix("light.") {
+        let fields = ["power", "photon_flux", "wavelength", "centre", "fwhm", "scale"];
+        let Some((name, field)) = name_field(rest, &fields) else {
+            return unknown("a light takes power, photon_flux, wavelength, centre, fwhm or scale");
+        };
+        let Some(l) = net.lights.iter().find(|l| l.name == name) else {
+            return unknown(&format!("no light called \"{name}\""));
+        };
+        return match (field, &l.kind, l.intensity) {
+            ("power", _, Some(Intensity::Power(w))) => Ok(p(w, "W", Range::Positive)),
+            ("power", _, Some(_)) => Ok(p(l.power(), "W", Range::Positive)),
+            ("photon_flux", _, Some(Intensity::PhotonFlux(q))) => Ok(p(q, "einstein/s", Range::Positive)),
+            ("photon_flux", _, Some(_)) => Ok(p(l.photon_flux(), "einstein/s", Range::Positive)),
+            ("wavelength", LightKind::Line { wavelength }, _) => Ok(p(*wavelength, "m", Range::Positive)),
+            ("centre", LightKind::Band { centre, .. }, _) => Ok(p(*centre, "m", Range::Positive)),
+            ("fwhm", LightKind::Band { fwhm, .. }, _) => Ok(p(*fwhm, "m", Range::Positive)),
+            ("scale", LightKind::Sun { scale, .. }, _) => Ok(p(*scale, "", Range::Positive)),
+            _ => Err(format!("{key}: `{field}` does not apply to the light \"{name}\"")),
+        };
+    }
+    if let Some(rest) = key.strip_prefix("photo.") {
+        let Some((name, field)) = name_field(rest, &["quantum_yield", "efficiency"]) else {
+            return unknown("a photo step takes quantum_yield (short form) or efficiency (long form)");
+        };
+        let Some(s) = net.photo.iter().find(|s| s.name == name) else {
+            return unknown(&format!("no photo step called \"{name}\""));
+        };
+        return match (field, &s.outcome) {
+            ("quantum_yield", PhotoOutcome::Products(_)) | ("efficiency", PhotoOutcome::Transient(_)) => {
+                Ok(p(mean_value(&s.quantum_yield), "", Range::Fraction))
+            }
+            ("quantum_yield", _) => Err(format!(
+                "{key}: \"{name}\" is a long-form step; set photo.{name}.efficiency or the transient's channels"
+            )),
+            _ => Err(format!(
+                "{key}: \"{name}\" is a short-form step; set photo.{name}.quantum_yield"
+            )),
+        };
+    }
+    if let Some(rest) = key.strip_prefix("thermal.") {
+        let Some((head, field)) = name_field(rest, &RATE_FIELDS) else {
+            return unknown(&format!(
+                "a thermal step takes a rate field: {}",
+                RATE_FIELDS.join(", ")
+            ));
+        };
+        let (name, reverse) = match head.strip_suffix(".reverse") {
+            Some(n) if net.thermal.iter().any(|s| s.name == n && s.reverse_of.is_none()) => (n, true),
+            _ => (head, false),
+        };
+        let Some(fwd) = net
+            .thermal
+            .iter()
+            .position(|s| s.name == name && s.reverse_of.is_none())
+        else {
+            return unknown(&format!("no thermal step called \"{name}\""));
+        };
+        let step: &ThermalStep = if reverse {
+            match net.thermal.iter().find(|s| s.reverse_of == Some(fwd)) {
+                Some(s) => s,
+                None => return Err(format!("{key}: \"{name}\" is one-way")),
+            }
+        } else {
+            &net.thermal[fwd]
+        };
+        return rate_parameter(key, field, &step.rate, step.k, step.order, t)
+            .ok_or_else(|| format!("{key}: the rate of \"{}\" is not given with `{field}`", step.name));
+    }
+    if let Some(rest) = key.strip_prefix("transient.") {
+        let parsed = rest.rsplit_once(".channels[").and_then(|(name, tail)| {
+            let (j, field) = tail.split_once("].")?;
+            Some((name, j.parse::<usize>().ok()?, field))
+        });
+        let Some((name, j, field)) = parsed else {
+            return unknown("expected transient.NAME.channels[J].FIELD");
+        };
+        let Some(tr) = net.transients.iter().find(|x| x.name == name) else {
+            return unknown(&format!("no transient called \"{name}\""));
+        };
+        let Some(ch) = tr.channels.get(j) else {
+            return Err(format!(
+                "{key}: \"{name}\" has {} channels (counted from 0)",
+                tr.channels.len()
+            ));
+        };
+        return match (field, &ch.branching) {
+            ("fraction", Branching::Fraction(x)) => Ok(p(*x, "", Range::Fraction)),
+            ("fraction", Branching::Rest) => Err(format!(
+                "{key}: this channel takes the rest; set the fractions of the other channels"
+            )),
+            (f, Branching::Rate { law, k }) => rate_parameter(key, f, law, *k, 1, t)
+                .ok_or_else(|| format!("{key}: this channel's rate is not given with `{f}`")),
+            (f, Branching::Quenching { law, k2, .. }) => rate_parameter(key, f, law, *k2, 2, t)
+                .ok_or_else(|| format!("{key}: this channel's rate is not given with `{f}`")),
+            (f, _) => Err(format!("{key}: this channel has a fixed fraction, not `{f}`")),
+        };
+    }
+    unknown("unknown key")
+}
+
+/// Every key of `net` that [`parameter`] can read, in file order: what a fit may free.
+pub fn parameter_keys(net: &Network) -> Vec<String> {
+    let mut keys: Vec<String> = ["temperature", "volume", "path_length"]
+        .iter()
+        .map(|f| format!("conditions.{f}"))
+        .collect();
+    for s in &net.species {
+        keys.push(format!("species.{}.initial", s.name));
+    }
+    for l in &net.lights {
+        let fields: &[&str] = match l.kind {
+            LightKind::Line { .. } => &["power", "photon_flux", "wavelength"],
+            LightKind::Band { .. } => &["power", "photon_flux", "centre", "fwhm"],
+            LightKind::Lamp { .. } => &["power", "photon_flux"],
+            LightKind::Sun { .. } => &["scale"],
+        };
+        keys.extend(fields.iter().map(|f| format!("light.{}.{f}", l.name)));
+    }
+    for s in &net.photo {
+        let f = match s.outcome {
+            PhotoOutcome::Products(_) => "quantum_yield",
+            PhotoOutcome::Transient(_) => "efficiency",
+        };
+        keys.push(format!("photo.{}.{f}", s.name));
+    }
+    let rate_keys = |prefix: &str, law: &RateLaw| -> Vec<String> {
+        let own: &[&str] = match law {
+            RateLaw::Constant(_) => &["k", "barrier"],
+            RateLaw::Arrhenius { .. } => &["k", "barrier", "prefactor", "activation"],
+            RateLaw::EyringFree { .. } => &["k", "barrier", "transmission"],
+            RateLaw::EyringEnthalpy { .. } => &["k", "barrier", "enthalpy", "entropy", "transmission"],
+            RateLaw::Frequencies { .. } => &["k", "barrier", "transmission"],
+        };
+        own.iter().map(|f| format!("{prefix}.{f}")).collect()
+    };
+    for s in &net.thermal {
+        let prefix = match s.reverse_of {
+            Some(f) => format!("thermal.{}.reverse", net.thermal[f].name),
+            None => format!("thermal.{}", s.name),
+        };
+        keys.extend(rate_keys(&prefix, &s.rate));
+    }
+    for tr in &net.transients {
+        for (j, c) in tr.channels.iter().enumerate() {
+            let prefix = format!("transient.{}.channels[{j}]", tr.name);
+            match &c.branching {
+                Branching::Fraction(_) => keys.push(format!("{prefix}.fraction")),
+                // A hot channel's yield is computed from its barrier and the cooling model.
+                Branching::Rest | Branching::Hot { .. } => {}
+                Branching::Rate { law, .. } | Branching::Quenching { law, .. } => keys.extend(rate_keys(&prefix, law)),
+            }
+        }
+    }
+    keys
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::error::Error;
+    use crate::file::parse_text;
+    use std::path::Path;
+
+    /// An invented network with one of each kind of addressable value.
+    const NET: &str = r#"
+[conditions]
+temperature = "298.15 K"
+volume = "3 mL"
+path_length = "1 cm"
+
+[[light]]
+name = "lamp"
+kind = "line"
+wavelength = "365 nm"
+photon_flux = "1 µeinstein/s"
+
+[[species]]
+name = "A"
+initial = "1 mM"
+epsilon = { at = "365 nm", value = "1000 L/(mol cm)" }
+
+[[species]]
+name = "B"
+epsilon = { at = "365 nm", value = "500 L/(mol cm)" }
+
+[[species]]
+name = "C"
+epsilon = { at = "365 nm", value = "100 L/(mol cm)" }
+
+[[species]]
+name = "Q"
+initial = "1 mM"
+
+[[photo]]
+name = "A to B"
+equation = "A -> B"
+quantum_yield = { wavelength_unit = "nm", points = [[300, 0.2], [400, 0.4]] }
+
+[[photo]]
+name = "B up"
+absorber = "B"
+excites = "B*"
+efficiency = 0.9
+
+[[transient]]
+name = "B*"
+kind = "excited"
+channels = [
+  { to = "C", rate = { k = "1e8 /s" } },
+  { to = "B", rate = { barrier = "5 kcal/mol" } },
+  { to = "B", quencher = "Q", rate = { k = "1e9 /(M s)" } },
+]
+
+[[transient]]
+name = "X*"
+kind = "other"
+channels = [{ to = "C", fraction = 0.3 }, { to = "B", fraction = "rest" }]
+
+[[photo]]
+name = "C up"
+absorber = "C"
+excites = "X*"
+
+[[thermal]]
+name = "back"
+equation = "B <=> A"
+rate = { barrier = "22 kcal/mol" }
+reverse = { prefactor = "1e12 /s", activation = "100 kJ/mol" }
+
+[[thermal]]
+equation = "C -> A"
+rate = { k = "1e-3 /s" }
+"#;
+
+    fn built(sets: &[&str]) -> crate::error::Result<Network> {
+        let l = parse_text(Path::new("t.toml"), NET.to_string()).unwrap();
+        super::super::build(&l, &Overrides::parse(sets).unwrap())
+    }
+
+    fn value(sets: &[&str], key: &str) -> f64 {
+        parameter(&built(sets).unwrap(), key).unwrap().value
+    }
+
+    fn close(a: f64, b: f64) -> bool {
+        (a - b).abs() <= 1e-12 * b.abs().max(1e-300)
+    }
+
+    fn errors(sets: &[&str]) -> String {
+        match built(sets) {
+            Err(Error::Invalid(d)) => d
+                .iter()
+                .map(|d| format!("{} | {} | {:?}\n", d.field, d.message, d.help))
+                .collect(),
+            other => panic!("expected an invalid network, got {other:?}"),
+        }
+    }
+
+    #[test]
+    fn every_key_of_the_network_reads_sets_and_reads_back() {
+        let net = built(&[]).unwrap();
+        let keys = parameter_keys(&net);
+        assert!(keys.len() > 20, "{keys:?}");
+        for key in &keys {
+            let p = parameter(&net, key).unwrap_or_else(|e| panic!("{e}"));
+            // Move the value by 10 % (fractions towards the middle) and read it back.
+            let v = match p.range {
+                Range::Fraction => 0.5 * p.value + 0.25,
+                _ => p.value * 1.1,
+            };
+            let set = format!("{key}={}", p.text(v));
+            let again = built(&[set.as_str()]).unwrap_or_else(|e| panic!("{set}: {e:?}"));
+            let back = parameter(&again, key).unwrap().value;
+            assert!((back - v).abs() <= 1e-9 * v.abs(), "{set}: read back {back}");
+        }
+    }
+
+    #[test]
+    fn quantum_yield_number_replaces_a_table() {
+        let net = built(&[]).unwrap();
+        assert!(close(parameter(&net, "photo.A to B.quantum_yield").unwrap().value, 0.3));
+        let net = built(&["photo.A to B.quantum_yield=0.25"]).unwrap();
+        let s = &net.photo[0];
+        assert!(close(s.yield_at(310e-9), 0.25) && close(s.yield_at(390e-9), 0.25));
+        assert!(close(
+            value(&["photo.B up.efficiency=0.5"], "photo.B up.efficiency"),
+            0.5
+        ));
+    }
+
+    #[test]
+    fn rates_by_k_barrier_and_the_file_form() {
+        // k replaces a barrier; barrier replaces a k; the Eyring ΔG‡ read from a k gives it back.
+        let k = value(&["thermal.back.k=2e-3 /s"], "thermal.back.k");
+        assert!(close(k, 2e-3));
+        let g = value(&[], "thermal.C -> A.barrier");
+        let k = value(&[&format!("thermal.C -> A.barrier={g:e} J/mol")], "thermal.C -> A.k");
+        assert!((k - 1e-3).abs() < 1e-12, "{k}");
+        assert!(close(
+            value(&["thermal.back.barrier=20 kcal/mol"], "thermal.back.barrier"),
+            20.0 * 4184.0
+        ));
+        // The reverse rate's own Arrhenius fields.
+        assert!(close(
+            value(
+                &["thermal.back.reverse.activation=90 kJ/mol"],
+                "thermal.back.reverse.activation"
+            ),
+            9e4
+        ));
+        assert!(close(
+            value(
+                &["thermal.back.reverse.prefactor=3e11 /s"],
+                "thermal.back.reverse.prefactor"
+            ),
+            3e11
+        ));
+        // A channel's rate, quenching constant and fraction.
+        let net = built(&[
+            "transient.B*.channels[0].k=5e7 /s",
+            "transient.B*.channels[2].k=2e9 /(M s)",
+            "transient.X*.channels[0].fraction=0.6",
+        ])
+        .unwrap();
+        let b = &net.transients[0].channels;
+        assert!(matches!(b[0].branching, Branching::Rate { k, .. } if close(k, 5e7)));
+        assert!(matches!(b[2].branching, Branching::Quenching { k2, .. } if close(k2, 2e9)));
+        assert_eq!(net.transients[1].channels[0].branching, Branching::Fraction(0.6));
+        assert!(
+            parameter(&net, "transient.X*.channels[1].fraction")
+                .unwrap_err()
+                .contains("takes the rest")
+        );
+        assert!(errors(&["transient.X*.channels[1].fraction=0.5"]).contains("--set transient.X*.channels[1].fraction"));
+    }
+
+    #[test]
+    fn power_replaces_a_file_photon_flux() {
+        let net = built(&["light.lamp.power=10 mW"]).unwrap();
+        assert!(close(parameter(&net, "light.lamp.power").unwrap().value, 0.01));
+        assert!(close(value(&["species.Q.initial=2 mM"], "species.Q.initial"), 2e-3));
+    }
+
+    #[test]
+    fn unknown_or_misapplied_keys_are_clear_errors() {
+        let e = errors(&["thermal.bak.k=1 /s"]);
+        assert!(
+            e.contains("--set thermal.bak.k") && e.contains("thermal names here: back, C -> A"),
+            "{e}"
+        );
+        let e = errors(&["photo.A to C.quantum_yield=0.2"]);
+        assert!(e.contains("photo names here: A to B, B up, C up"), "{e}");
+        // prefactor applies only to a rate given by Arrhenius.
+        let e = errors(&["thermal.back.prefactor=1e12 /s"]);
+        assert!(e.contains("--set thermal.back.prefactor"), "{e}");
+        // A fraction on a rate channel, and a channel that does not exist.
+        assert!(errors(&["transient.B*.channels[0].fraction=0.5"]).contains("channels[0].fraction"));
+        assert!(errors(&["transient.B*.channels[7].k=1 /s"]).contains("channels[7].k"));
+        // Values out of range name the field and the command line.
+        let e = errors(&["photo.A to B.quantum_yield=1.5"]);
+        assert!(
+            e.contains("photo[0].quantum_yield") && e.contains("not a number in [0, 1]"),
+            "{e}"
+        );
+        let e = errors(&["thermal.back.k=-1 /s"]);
+        assert!(e.contains("thermal[0].rate.k"), "{e}");
+        let e = errors(&["thermal.back.transmission=2"]);
+        assert!(e.contains("transmission") && e.contains("(0, 1]"), "{e}");
+        // parameter() on unknown names suggests the closest key.
+        let net = built(&[]).unwrap();
+        let m = parameter(&net, "thermal.bakc.k").unwrap_err();
+        assert!(m.contains("did you mean thermal.back.k?"), "{m}");
+        let m = parameter(&net, "photo.B up.quantum_yield").unwrap_err();
+        assert!(m.contains("long-form"), "{m}");
+        assert!(parameter(&net, "species.A.epsilon").is_err());
     }
 }

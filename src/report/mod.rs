@@ -6,6 +6,7 @@ pub mod chain;
 pub mod diagram;
 pub mod simulation;
 pub mod summary;
+pub mod uncertainty;
 
 use crate::error::{Error, Result};
 use std::io::Write;

@@ -471,6 +471,75 @@ pub fn parse(text: &str, q: Quantity) -> Result<f64, UnitError> {
     }
 }
 
+/// Every quantity a field can hold, in the order [`identify`] tries them (rate constants of
+/// order 0 to 4).
+pub const ALL: [Quantity; 17] = [
+    Quantity::Length,
+    Quantity::Area,
+    Quantity::Volume,
+    Quantity::Time,
+    Quantity::Temperature,
+    Quantity::Concentration,
+    Quantity::Power,
+    Quantity::PhotonFlux,
+    Quantity::Irradiance,
+    Quantity::MolarEnergy,
+    Quantity::MolarEntropy,
+    Quantity::RateConstant(0),
+    Quantity::RateConstant(1),
+    Quantity::RateConstant(2),
+    Quantity::RateConstant(3),
+    Quantity::RateConstant(4),
+    Quantity::MolarAbsorption,
+];
+
+/// Which quantity `text` ("23.5 kcal/mol", "20 mW") is, and its value in the internal unit:
+/// the first of [`ALL`] it parses as. Wavelengths come back as [`Quantity::Length`] (same unit).
+pub fn identify(text: &str) -> Result<(Quantity, f64), UnitError> {
+    let mut first_err = None;
+    for q in ALL {
+        match parse(text, q) {
+            Ok(v) => return Ok((q, v)),
+            Err(e) => {
+                first_err.get_or_insert(e);
+            }
+        }
+    }
+    let norm = normalise(text);
+    let (_, unit_text) = split_number(&norm)?;
+    if unit_text.is_empty() {
+        return Err(first_err.unwrap_or(UnitError {
+            problem: format!("\"{text}\" has no unit"),
+        }));
+    }
+    Err(UnitError {
+        problem: format!("\"{text}\": the unit \"{unit_text}\" is not one a network value can have"),
+    })
+}
+
+/// A unit spelling that [`parse`] reads as exactly one internal unit of `q`, so that
+/// `format!("{v:e} {}", internal_spelling(q))` writes an internal value back as text.
+pub fn internal_spelling(q: Quantity) -> String {
+    match q {
+        Quantity::Wavelength | Quantity::Length => "m".into(),
+        Quantity::Area => "m2".into(),
+        Quantity::Volume => "m3".into(),
+        Quantity::Time => "s".into(),
+        Quantity::Temperature => "K".into(),
+        Quantity::Concentration => "M".into(),
+        Quantity::Power => "W".into(),
+        Quantity::PhotonFlux => "einstein/s".into(),
+        Quantity::Irradiance => "W/m2".into(),
+        Quantity::MolarEnergy => "J/mol".into(),
+        Quantity::MolarEntropy => "J/(mol K)".into(),
+        Quantity::RateConstant(0) => "M/s".into(),
+        Quantity::RateConstant(1) => "/s".into(),
+        Quantity::RateConstant(2) => "/(M s)".into(),
+        Quantity::RateConstant(n) => format!("/(M{} s)", n - 1),
+        Quantity::MolarAbsorption => "L/(mol m)".into(),
+    }
+}
+
 /// Convert a molar absorption coefficient from the trade's L mol⁻¹ cm⁻¹ to the internal L mol⁻¹ m⁻¹.
 pub fn epsilon_from_per_cm(eps_l_per_mol_cm: f64) -> f64 {
     eps_l_per_mol_cm * 100.0
@@ -540,6 +609,19 @@ pub fn sig(v: f64, n: usize) -> String {
 
 #[cfg(test)]
 mod tests {
+    #[test]
+    fn internal_spelling_reads_back_as_one_internal_unit() {
+        for q in ALL {
+            let text = format!("2.5e-3 {}", internal_spelling(q));
+            let v = parse(&text, q).unwrap_or_else(|e| panic!("{text}: {e}"));
+            assert!((v - 2.5e-3).abs() <= 1e-15 * 2.5e-3 + 1e-300, "{text} -> {v}");
+            assert_eq!(identify(&text).map(|x| x.0), Ok(q), "{text}");
+        }
+        assert_eq!(identify("23.5 kcal/mol").map(|x| x.0), Ok(Quantity::MolarEnergy));
+        assert!(identify("3 furlongs").is_err());
+        assert!(identify("3").is_err());
+    }
+
     use super::*;
 
     fn close(a: f64, b: f64) -> bool {

@@ -1,0 +1,225 @@
+//! `photoledger uncertainty FILE --samples N [--seed S] [--until DURATION] [--target CONDITION]
+//! [--from-fit FIT.json] [--shard K/N] [--json] [--out DIR]`, and
+//! `photoledger uncertainty merge SHARD.json... [--json] [--out DIR]`.
+
+use photoledger::Error;
+use photoledger::report::{uncertainty as report, write_atomic};
+use photoledger::uncertainty::{self, Problem, Record, Settings, Space, Target, fitcov::FitBlock, spec};
+use photoledger::units::{self, Quantity};
+use std::io::IsTerminal;
+use std::path::{Path, PathBuf};
+
+/// Options of `uncertainty`.
+#[derive(clap::Args, Debug)]
+#[command(args_conflicts_with_subcommands = true, subcommand_negates_reqs = true)]
+pub struct UncertaintyArgs {
+    /// Join shard files instead of running.
+    #[command(subcommand)]
+    pub merge: Option<MergeCommand>,
+    /// The network file (TOML) with [[uncertain]] entries.
+    #[arg(required = true)]
+    pub file: Option<PathBuf>,
+    /// Override a value of the file for every sample, e.g. --set conditions.temperature="310 K".
+    #[arg(long = "set", value_name = "KEY=VALUE")]
+    pub set: Vec<String>,
+    /// Number of samples in the whole run.
+    #[arg(long, required = true)]
+    pub samples: Option<usize>,
+    /// Seed of the random streams (sample i uses stream i of this seed).
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
+    /// Run the kinetics of each sample for this long, e.g. "2 h" (final concentrations).
+    #[arg(long, value_name = "DURATION")]
+    pub until: Option<String>,
+    /// Time until a species crosses a level, e.g. "product > 5 mM" or "Z-azo > 90 % of E-azo"
+    /// (needs --until, the longest time waited).
+    #[arg(long, value_name = "CONDITION")]
+    pub target: Option<String>,
+    /// Skip the chain analysis (yields, quantum yields, photons per product).
+    #[arg(long)]
+    pub no_chain: bool,
+    /// Draw these parameters jointly from a fit's covariance (JSON; README, Uncertainty).
+    #[arg(long, value_name = "FIT.json")]
+    pub from_fit: Option<PathBuf>,
+    /// Run only slice K of N of the samples and write it for `uncertainty merge`.
+    #[arg(long, value_name = "K/N")]
+    pub shard: Option<String>,
+    /// Print the summary JSON to stdout.
+    #[arg(long)]
+    pub json: bool,
+    /// Output folder (default: the network file's name followed by "-uncertainty").
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+}
+
+/// `uncertainty merge`.
+#[derive(clap::Subcommand, Debug)]
+pub enum MergeCommand {
+    /// Join the shard files of one run (written by --shard K/N) into the report of the whole run.
+    Merge {
+        /// Shard files (shard-K-of-N.json).
+        #[arg(required = true)]
+        shards: Vec<PathBuf>,
+        /// Print the summary JSON to stdout.
+        #[arg(long)]
+        json: bool,
+        /// Output folder.
+        #[arg(long, value_name = "DIR", default_value = "merged-uncertainty")]
+        out: PathBuf,
+    },
+}
+
+fn read(path: &Path) -> photoledger::Result<String> {
+    std::fs::read_to_string(path).map_err(|source| Error::Io {
+        path: path.to_path_buf(),
+        source,
+    })
+}
+
+fn base_overrides(set: &[String]) -> photoledger::Result<Vec<(String, String)>> {
+    // Same reading as every other command's --set.
+    photoledger::Overrides::parse(set).map_err(Error::Usage)?;
+    Ok(set
+        .iter()
+        .filter_map(|s| s.split_once('='))
+        .map(|(k, v)| {
+            (
+                k.trim().to_string(),
+                v.trim().trim_matches('"').trim_matches('\'').to_string(),
+            )
+        })
+        .collect())
+}
+
+/// Run `uncertainty`.
+pub fn run(a: &UncertaintyArgs) -> photoledger::Result<()> {
+    if let Some(MergeCommand::Merge { shards, json, out }) = &a.merge {
+        return merge(shards, *json, out);
+    }
+    let (Some(file), Some(total)) = (&a.file, a.samples) else {
+        return Err(Error::Usage("give the network file and --samples N".into()));
+    };
+    if total == 0 {
+        return Err(Error::Usage("--samples must be at least 1".into()));
+    }
+    let loaded = photoledger::file::load(file)?;
+    let mut space = Space {
+        independent: spec::read(&loaded)?,
+        fit: None,
+    };
+    if let Some(f) = &a.from_fit {
+        space = space.with_fit(FitBlock::from_json(&f.display().to_string(), &read(f)?)?)?;
+    }
+    let until = match &a.until {
+        Some(u) => Some(
+            units::parse(u, Quantity::Time)
+                .map_err(|e| Error::Usage(format!("--until: {e}; expected {}", Quantity::Time.accepted())))?,
+        ),
+        None => None,
+    };
+    let target = a.target.as_deref().map(Target::parse).transpose()?;
+    let settings = Settings {
+        chain: !a.no_chain,
+        until,
+        target,
+    };
+    let problem = Problem::new(&loaded, base_overrides(&a.set)?, space, settings)?;
+    let (range, shard) = match &a.shard {
+        Some(s) => {
+            let (k, n) = s
+                .split_once('/')
+                .and_then(|(k, n)| Some((k.trim().parse::<usize>().ok()?, n.trim().parse::<usize>().ok()?)))
+                .ok_or_else(|| Error::Usage(format!("--shard \"{s}\": write K/N, e.g. 3/10")))?;
+            (uncertainty::shard_range(total, k, n)?, Some((k, n)))
+        }
+        None => (0..total, None),
+    };
+    let bar = if std::io::stderr().is_terminal() {
+        let b = indicatif::ProgressBar::new(range.len() as u64);
+        b.set_style(
+            indicatif::ProgressStyle::with_template("{bar:40} {pos}/{len} samples  {elapsed} (about {eta} left)")
+                .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
+        b
+    } else {
+        indicatif::ProgressBar::hidden()
+    };
+    let record = problem.record(a.seed, total, range, &|| bar.inc(1));
+    bar.finish_and_clear();
+    let dir = a.out.clone().unwrap_or_else(|| {
+        let stem = file
+            .file_stem()
+            .map(|s| s.to_string_lossy().to_string())
+            .unwrap_or_else(|| "network".into());
+        PathBuf::from(format!("{stem}-uncertainty"))
+    });
+    if let Some((k, n)) = shard {
+        let name = format!("shard-{k}-of-{n}.json");
+        let json = serde_json::to_string(&record).map_err(|e| Error::Numerical(e.to_string()))?;
+        write_atomic(&dir.join(&name), json.as_bytes())?;
+        println!(
+            "wrote {}/{name}: samples {}..{} of {}; join all N with `photoledger uncertainty merge`",
+            dir.display(),
+            record.header.first,
+            record.header.end,
+            total
+        );
+        return Ok(());
+    }
+    write_all(&record, &dir, a.json)
+}
+
+fn merge(shards: &[PathBuf], json: bool, out: &Path) -> photoledger::Result<()> {
+    let mut parts = Vec::new();
+    for p in shards {
+        let r: Record = serde_json::from_str(&read(p)?).map_err(|e| {
+            Error::Usage(format!(
+                "{}: not a shard file of `uncertainty --shard`: {e}",
+                p.display()
+            ))
+        })?;
+        parts.push(r);
+    }
+    let record = uncertainty::merge(parts)?;
+    write_all(&record, out, json)
+}
+
+fn to_json<T: serde::Serialize>(v: &T) -> photoledger::Result<String> {
+    serde_json::to_string_pretty(v).map_err(|e| Error::Numerical(e.to_string()))
+}
+
+/// Write every output of a whole run (single or merged).
+fn write_all(record: &Record, dir: &Path, json: bool) -> photoledger::Result<()> {
+    let summary = uncertainty::summarise(record);
+    let summary_json = to_json(&summary)?;
+    write_atomic(&dir.join("summary.json"), summary_json.as_bytes())?;
+    write_atomic(&dir.join("summary.txt"), report::text(&summary).as_bytes())?;
+    write_atomic(&dir.join("samples.csv"), report::samples_csv(record).as_bytes())?;
+    write_atomic(&dir.join("samples.json"), to_json(record)?.as_bytes())?;
+    let ok: Vec<_> = record.samples.iter().filter(|s| s.error.is_none()).collect();
+    for (j, x) in summary.outputs.iter().enumerate() {
+        let values: Vec<f64> = ok.iter().filter_map(|s| s.outputs[j]).collect();
+        let svg = report::histogram_svg(&format!("{}: {}", summary.network, x.column.name), x, &values);
+        if !svg.is_empty() {
+            write_atomic(
+                &dir.join("histograms")
+                    .join(format!("{}.svg", report::file_stem(&x.column.name))),
+                svg.as_bytes(),
+            )?;
+        }
+    }
+    let tornado = report::tornado_svg(&format!("{}: what drives each output", summary.network), &summary);
+    if !tornado.is_empty() {
+        write_atomic(&dir.join("tornado.svg"), tornado.as_bytes())?;
+    }
+    if json {
+        println!("{summary_json}");
+    } else {
+        print!("{}", report::text(&summary));
+        println!(
+            "wrote {}/ (summary.txt, summary.json, samples.csv, samples.json, histograms/, tornado.svg)",
+            dir.display()
+        );
+    }
+    Ok(())
+}

@@ -1,0 +1,271 @@
+//! What `uncertainty` writes: the text summary (quantiles and the parameters that drive each
+//! output), the samples CSV, one SVG histogram per output and a tornado chart of rank
+//! correlations.
+
+use crate::report::simulation::CAUTIONS;
+use crate::uncertainty::{OutputSummary, QUANTILES, Record, Summary};
+use crate::units::sig;
+use plotters::prelude::*;
+use plotters::style::text_anchor::{HPos, Pos, VPos};
+use std::fmt::Write;
+
+fn opt(v: Option<f64>) -> String {
+    v.map_or("-".into(), |x| sig(x, 4))
+}
+
+fn with_unit(name: &str, unit: &str) -> String {
+    if unit.is_empty() {
+        name.to_string()
+    } else {
+        format!("{name} ({unit})")
+    }
+}
+
+/// True when an output spreads beyond rounding (sd above 1e-9 of |mean|): only then is a
+/// ranking of its drivers meaningful.
+pub fn varies(x: &OutputSummary) -> bool {
+    match (x.mean, x.sd) {
+        (Some(m), Some(sd)) => sd > 1e-9 * m.abs() && sd > 0.0,
+        _ => false,
+    }
+}
+
+/// summary.txt: the parameters, then per output n, mean, sd, quantiles and the top drivers.
+pub fn text(s: &Summary) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "{}: uncertainty propagation", s.network);
+    let _ = writeln!(
+        o,
+        "  {} samples (seed {}), {} could not be evaluated",
+        s.samples, s.seed, s.failed
+    );
+    for f in &s.failures {
+        let _ = writeln!(o, "    e.g. {f}");
+    }
+    for n in &s.notes {
+        let _ = writeln!(o, "  note: {n}");
+    }
+    let _ = writeln!(o, "\n  uncertain values");
+    for p in &s.parameters {
+        let _ = writeln!(o, "    {:<46} {}", with_unit(&p.name, &p.unit), p.about);
+    }
+    let _ = write!(o, "\n  {:<40} {:>7} {:>11} {:>11}", "output", "n", "mean", "sd");
+    for q in QUANTILES {
+        let _ = write!(o, " {:>11}", format!("{} %", q * 100.0));
+    }
+    o.push('\n');
+    for x in &s.outputs {
+        let _ = write!(
+            o,
+            "  {:<40} {:>7} {:>11} {:>11}",
+            with_unit(&x.column.name, &x.column.unit),
+            x.n,
+            opt(x.mean),
+            opt(x.sd)
+        );
+        for (_, v) in &x.quantiles {
+            let _ = write!(o, " {:>11}", opt(*v));
+        }
+        o.push('\n');
+    }
+    let _ = writeln!(
+        o,
+        "\n  what drives each output (Spearman rank correlation ρ; first-order Sobol index S1 from the same samples)"
+    );
+    for x in s.outputs.iter().filter(|x| varies(x)) {
+        let _ = writeln!(o, "    {}", x.column.name);
+        for d in x.drivers.iter().take(5) {
+            let _ = writeln!(
+                o,
+                "      ρ {:>7}  S1 {:>6}  {}",
+                d.spearman.map_or("-".into(), |v| format!("{v:+.3}")),
+                d.sobol_first_order.map_or("-".into(), |v| format!("{v:.3}")),
+                d.parameter
+            );
+        }
+    }
+    let _ = writeln!(
+        o,
+        "\n  quantiles interpolate between order statistics (Hyndman & Fan definition 7); sd uses n − 1.\n  {CAUTIONS}"
+    );
+    o
+}
+
+fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+/// samples.csv: index, every drawn value, every output (empty where missing), error.
+pub fn samples_csv(r: &Record) -> String {
+    let mut o = String::from("sample");
+    for c in r.header.parameters.iter().chain(&r.header.outputs) {
+        let _ = write!(o, ",{}", csv_field(&with_unit(&c.name, &c.unit)));
+    }
+    o.push_str(",error\n");
+    for s in &r.samples {
+        let _ = write!(o, "{}", s.index);
+        for v in &s.values {
+            let _ = write!(o, ",{v:e}");
+        }
+        for v in &s.outputs {
+            match v {
+                Some(v) => {
+                    let _ = write!(o, ",{v:e}");
+                }
+                None => o.push(','),
+            }
+        }
+        let _ = writeln!(o, ",{}", csv_field(s.error.as_deref().unwrap_or("")));
+    }
+    o
+}
+
+/// A file-name-safe form of an output name: `quantum_yield[product]` -> `quantum_yield-product`.
+pub fn file_stem(name: &str) -> String {
+    let mut s: String = name
+        .chars()
+        .map(|c| {
+            if c.is_alphanumeric() || c == '_' || c == '-' {
+                c
+            } else {
+                '-'
+            }
+        })
+        .collect();
+    while s.contains("--") {
+        s = s.replace("--", "-");
+    }
+    s.trim_matches('-').to_string()
+}
+
+/// Histogram of one output's values (40 bars over the observed range) with the 2.5 %, 50 % and
+/// 97.5 % quantiles marked. Positive values spread over more than two decades are binned on a
+/// log scale. Empty string when there are no values.
+pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
+    let v: Vec<f64> = values.iter().copied().filter(|v| v.is_finite()).collect();
+    let mut svg = String::new();
+    if v.is_empty() {
+        return svg;
+    }
+    let min = v.iter().copied().fold(f64::INFINITY, f64::min);
+    let max = v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let log = min > 0.0 && max / min > 100.0;
+    let tx = |a: f64| if log { a.log10() } else { a };
+    let (lo, hi) = (tx(min), tx(max));
+    let span = if hi > lo { hi - lo } else { lo.abs().max(1e-300) * 1e-6 };
+    let (lo, hi) = (lo - 0.02 * span, hi + 0.02 * span);
+    let bins = 40;
+    let w = (hi - lo) / bins as f64;
+    let mut counts = vec![0usize; bins];
+    for a in &v {
+        counts[(((tx(*a) - lo) / w) as usize).min(bins - 1)] += 1;
+    }
+    let ymax = *counts.iter().max().unwrap_or(&1) as f64 * 1.1;
+    let x_desc = format!(
+        "{}{}",
+        with_unit(&x.column.name, &x.column.unit),
+        if log { " (log scale)" } else { "" }
+    );
+    {
+        let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
+        let _ = root.fill(&WHITE);
+        let draw = || -> Result<(), Box<dyn std::error::Error + '_>> {
+            let mut chart = ChartBuilder::on(&root)
+                .caption(title, ("sans-serif", 22))
+                .margin(16)
+                .x_label_area_size(48)
+                .y_label_area_size(70)
+                .build_cartesian_2d(lo..hi, 0.0..ymax)?;
+            chart
+                .configure_mesh()
+                .x_desc(x_desc.as_str())
+                .y_desc("samples")
+                .x_label_formatter(&|a| sig(if log { 10f64.powf(*a) } else { *a }, 3))
+                .y_label_formatter(&|c| format!("{c:.0}"))
+                .label_style(("sans-serif", 15))
+                .draw()?;
+            let col = RGBColor(31, 119, 180);
+            chart.draw_series(counts.iter().enumerate().map(|(i, &c)| {
+                let a = lo + i as f64 * w;
+                Rectangle::new([(a, 0.0), (a + w, c as f64)], col.filled())
+            }))?;
+            let mark = RGBColor(214, 39, 40);
+            for (q, val) in &x.quantiles {
+                if let Some(val) = val
+                    && (*q == 0.025 || *q == 0.5 || *q == 0.975)
+                    && (!log || *val > 0.0)
+                {
+                    let a = tx(*val);
+                    chart.draw_series(LineSeries::new([(a, 0.0), (a, ymax)], mark.stroke_width(2)))?;
+                }
+            }
+            Ok(())
+        };
+        let _ = draw();
+        let _ = root.present();
+    }
+    svg
+}
+
+/// tornado.svg: for each output with a spread, a bar per parameter of Spearman's ρ, the
+/// largest |ρ| at the top.
+pub fn tornado_svg(title: &str, s: &Summary) -> String {
+    let rows: Vec<(String, f64)> = s
+        .outputs
+        .iter()
+        .filter(|x| varies(x))
+        .flat_map(|x| {
+            x.drivers
+                .iter()
+                .take(6)
+                .filter_map(|d| Some((format!("{} ← {}", x.column.name, d.parameter), d.spearman?)))
+                .collect::<Vec<_>>()
+        })
+        .take(60)
+        .collect();
+    let mut svg = String::new();
+    if rows.is_empty() {
+        return svg;
+    }
+    let n = rows.len();
+    let height = (120 + 22 * n) as u32;
+    {
+        let root = SVGBackend::with_string(&mut svg, (1100, height)).into_drawing_area();
+        let _ = root.fill(&WHITE);
+        let draw = || -> Result<(), Box<dyn std::error::Error + '_>> {
+            let mut chart = ChartBuilder::on(&root)
+                .caption(title, ("sans-serif", 22))
+                .margin(16)
+                .x_label_area_size(44)
+                .y_label_area_size(520)
+                .build_cartesian_2d(-1.0..1.0, 0.0..n as f64)?;
+            chart
+                .configure_mesh()
+                .x_desc("Spearman rank correlation ρ")
+                .y_labels(0)
+                .label_style(("sans-serif", 13))
+                .disable_y_mesh()
+                .draw()?;
+            let style = TextStyle::from(("sans-serif", 13).into_font()).pos(Pos::new(HPos::Right, VPos::Center));
+            for (i, (label, _)) in rows.iter().enumerate() {
+                let (px, py) = chart.backend_coord(&(-1.0, (n - 1 - i) as f64 + 0.5));
+                root.draw(&Text::new(label.clone(), (px - 8, py), style.clone()))?;
+            }
+            let pos = RGBColor(31, 119, 180);
+            let neg = RGBColor(214, 39, 40);
+            chart.draw_series(rows.iter().enumerate().map(|(i, (_, r))| {
+                let y = (n - 1 - i) as f64;
+                let c = if *r >= 0.0 { pos } else { neg };
+                Rectangle::new([(0.0, y + 0.15), (*r, y + 0.85)], c.filled())
+            }))?;
+            Ok(())
+        };
+        let _ = draw();
+        let _ = root.present();
+    }
+    svg
+}

@@ -1,0 +1,776 @@
+//! Uncertainty propagation: draw the uncertain values of a network (distributions declared in
+//! `[[uncertain]]` entries, or a fit's covariance), rebuild the network for each sample with
+//! the drawn values as `--set` overrides, run the chain analysis and/or the kinetics, and
+//! summarise the outputs (quantiles, mean and sd, which parameter drives each output).
+//!
+//! Determinism: sample i's values come from its own random stream selected by (seed, i)
+//! ([`sampling::Space::draw`]); samples are evaluated in parallel (rayon) and collected in
+//! index order, so the result does not depend on the number of threads, and a run cut into
+//! index ranges ([`shard_range`]) and joined again ([`merge`]) is the single run, bit for bit.
+//!
+//! The file is read once by the caller; each sample rebuilds the network from the text already
+//! parsed ([`crate::network::build`] with overrides), so nothing here touches the disk.
+//! Units: parameter values in their stated units (internal units for `[[uncertain]]` entries,
+//! see [`spec::Parameter::unit`]); outputs as named in [`Output`].
+
+pub mod fitcov;
+pub mod sampling;
+pub mod spec;
+pub mod stats;
+
+use crate::chain::{self, build as chain_build};
+use crate::error::{Diagnostic, Error, Result, Severity};
+use crate::file::Loaded;
+use crate::kinetics::{self, Stop};
+use crate::model::Model;
+use crate::network::{Network, Overrides};
+use crate::units::{self, Quantity};
+use rayon::prelude::*;
+use serde::{Deserialize, Serialize};
+use std::ops::Range;
+
+pub use sampling::Space;
+
+/// The quantiles reported, as fractions.
+pub const QUANTILES: [f64; 5] = [0.025, 0.25, 0.5, 0.75, 0.975];
+
+/// The format word of a samples record.
+pub const FORMAT: &str = "photoledger uncertainty samples 1";
+
+/// A level a species must cross for the time-to-target output.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Level {
+    /// A concentration, mol/L.
+    Concentration(f64),
+    /// A percentage of another species' initial concentration in the same sample.
+    PercentOf {
+        /// Percent.
+        percent: f64,
+        /// The reference species.
+        species: String,
+    },
+}
+
+/// "product > 5 mM" or "Z-azo > 90 % of E-azo": a species crossing a level.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Target {
+    /// The species followed.
+    pub species: String,
+    /// True for `>`.
+    pub above: bool,
+    /// The level.
+    pub level: Level,
+}
+
+impl Target {
+    /// Read "NAME > LEVEL" or "NAME < LEVEL"; LEVEL is a concentration or "P % of NAME".
+    pub fn parse(text: &str) -> Result<Target> {
+        let usage = |m: &str| {
+            Error::Usage(format!(
+                "--target \"{text}\": {m}; write e.g. \"product > 5 mM\" or \"Z-azo > 90 % of E-azo\" \
+(a percentage of the other species' initial concentration)"
+            ))
+        };
+        let at = text.find(['<', '>']).ok_or_else(|| usage("no < or >"))?;
+        let above = text[at..].starts_with('>');
+        let species = text[..at].trim().to_string();
+        let rest = text[at + 1..].trim_start_matches('=').trim();
+        if species.is_empty() {
+            return Err(usage("no species before the sign"));
+        }
+        let level = if let Some((p, of)) = rest.split_once('%') {
+            let percent: f64 = p.trim().parse().map_err(|_| usage("the percentage is not a number"))?;
+            let of = of
+                .trim()
+                .strip_prefix("of")
+                .ok_or_else(|| usage("a percentage needs \"of SPECIES\""))?;
+            Level::PercentOf {
+                percent,
+                species: of.trim().to_string(),
+            }
+        } else {
+            Level::Concentration(units::parse(rest, Quantity::Concentration).map_err(|e| usage(&e.problem))?)
+        };
+        Ok(Target { species, above, level })
+    }
+}
+
+/// What each sample computes.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Settings {
+    /// Run the chain analysis (one molecule from the initial mixture, light shared at the
+    /// initial concentrations, as `ledger` does by default).
+    pub chain: bool,
+    /// Run the kinetics to this time, s (final concentrations).
+    pub until: Option<f64>,
+    /// Time to reach a level (needs `until`: the longest time waited).
+    pub target: Option<Target>,
+}
+
+/// One output column.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Column {
+    /// Name, e.g. `quantum_yield[product]` or a parameter key.
+    pub name: String,
+    /// Unit ("" for dimensionless).
+    pub unit: String,
+    /// What it is.
+    pub about: String,
+}
+
+/// What one output reads from a sample's results.
+#[derive(Debug, Clone, PartialEq)]
+enum Output {
+    /// Chain: probability of ending as this species.
+    Yield(String),
+    /// Chain: molecules of it per photon absorbed.
+    QuantumYield(String),
+    /// Chain: photons absorbed per molecule of it made (1 / quantum yield).
+    PhotonsPer(String),
+    /// Kinetics: final concentration of species i.
+    Final(usize),
+    /// Kinetics: time to the target.
+    TimeToTarget,
+}
+
+/// One sample: its index, drawn values and outputs (None where an output is undefined, e.g. a
+/// target not reached), or why it could not be evaluated.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Sample {
+    /// Index in 0..total.
+    pub index: usize,
+    /// Drawn values, in parameter order and units.
+    pub values: Vec<f64>,
+    /// Outputs, in output order.
+    pub outputs: Vec<Option<f64>>,
+    /// Why the sample failed (network invalid at these values, an engine error).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub error: Option<String>,
+}
+
+/// Everything that identifies a run, written with its samples.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Header {
+    /// [`FORMAT`].
+    pub format: String,
+    /// Network name.
+    pub network: String,
+    /// FNV-1a hash of the file text, overrides, parameters and settings (hex).
+    pub fingerprint: String,
+    /// Seed.
+    pub seed: u64,
+    /// Samples in the whole run.
+    pub total: usize,
+    /// First index held.
+    pub first: usize,
+    /// One past the last index held.
+    pub end: usize,
+    /// Parameters (columns of `values`).
+    pub parameters: Vec<Column>,
+    /// Outputs (columns of `outputs`).
+    pub outputs: Vec<Column>,
+    /// Notes on what was and was not computed.
+    pub notes: Vec<String>,
+}
+
+/// Samples with their header: what a shard writes and what [`merge`] joins.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Record {
+    /// The run.
+    pub header: Header,
+    /// Samples `first..end` in index order.
+    pub samples: Vec<Sample>,
+}
+
+/// A network ready to be sampled.
+pub struct Problem<'a> {
+    loaded: &'a Loaded,
+    base: Vec<(String, String)>,
+    space: Space,
+    settings: Settings,
+    outputs: Vec<Output>,
+    columns: Vec<Column>,
+    notes: Vec<String>,
+    network_name: String,
+}
+
+fn fnv1a(bytes: &[u8], mut h: u64) -> u64 {
+    for b in bytes {
+        h ^= *b as u64;
+        h = h.wrapping_mul(0x100000001b3);
+    }
+    h
+}
+
+impl<'a> Problem<'a> {
+    /// Check every parameter's key (the network is built once with each nominal value) and
+    /// work out the outputs from the network at the nominal values.
+    ///
+    /// `base` are `--set` overrides applied to every sample (the drawn values come after and
+    /// win). A key the network does not have, or a value of the wrong kind, is an error at the
+    /// `[[uncertain]]` entry (or a usage error for a fit's key).
+    pub fn new(
+        loaded: &'a Loaded,
+        base: Vec<(String, String)>,
+        space: Space,
+        settings: Settings,
+    ) -> Result<Problem<'a>> {
+        if space.is_empty() {
+            return Err(Error::Usage(
+                "nothing is uncertain: add [[uncertain]] entries to the network file (README, Uncertainty) or give --from-fit"
+                    .into(),
+            ));
+        }
+        if !settings.chain && settings.until.is_none() {
+            return Err(Error::Usage(
+                "nothing to compute: give --until for the kinetics, or keep the chain analysis".into(),
+            ));
+        }
+        if settings.target.is_some() && settings.until.is_none() {
+            return Err(Error::Usage("--target needs --until (the longest time to wait)".into()));
+        }
+        let mut p = Problem {
+            loaded,
+            base,
+            space,
+            settings,
+            outputs: Vec::new(),
+            columns: Vec::new(),
+            notes: Vec::new(),
+            network_name: String::new(),
+        };
+        // The network as given (with --set) must be valid before anything is drawn.
+        let net0 = crate::network::build(loaded, &p.overrides(&[], &[]))?;
+        p.network_name = net0.about.name.clone();
+        let params: Vec<spec::Parameter> = p.space.parameters().into_iter().cloned().collect();
+        let mut diags = Vec::new();
+        for q in &params {
+            let text = q.override_text(q.distribution.nominal());
+            if let Err(e) = crate::network::build(loaded, &p.overrides(&[q.key.as_str()], std::slice::from_ref(&text)))
+            {
+                let msg = match &e {
+                    Error::Invalid(ds) => ds
+                        .iter()
+                        .filter(|d| d.severity == Severity::Error)
+                        .map(|d| format!("{}: {}", d.field, d.message))
+                        .collect::<Vec<_>>()
+                        .join("; "),
+                    other => other.to_string(),
+                };
+                let mut d = Diagnostic::error(
+                    format!("uncertain \"{}\"", q.key),
+                    format!("the network does not take \"{text}\" at this key: {msg}"),
+                )
+                .with_help(format!(
+                    "the key is a --set key ({}) and the value must have that field's unit",
+                    crate::network::overrides::ACCEPTED
+                ));
+                match q.line {
+                    Some(l) => {
+                        d.file = Some(loaded.path.clone());
+                        d.line_col = Some((l, 1));
+                    }
+                    None => d.field = format!("--from-fit \"{}\"", q.key),
+                }
+                diags.push(d);
+            }
+        }
+        if !diags.is_empty() {
+            return Err(Error::Invalid(diags));
+        }
+        let nominal: Vec<f64> = params.iter().map(|q| q.distribution.nominal()).collect();
+        let net = p.network(&nominal)?;
+        let model = Model::compile(&net);
+        if p.settings.chain {
+            match chain_run(&model, &net) {
+                Ok((ch, an)) => {
+                    // Ends no molecule reaches at the nominal values (a solvent, a by-product of a
+                    // thermal step) would only add columns of zeros.
+                    for (k, &s) in an.absorbing.iter().enumerate() {
+                        if let chain::StateKind::Species(_) = ch.states[s].kind
+                            && an.yields[k] > 1e-12
+                        {
+                            let name = ch.states[s].name.clone();
+                            p.outputs.push(Output::Yield(name.clone()));
+                            p.outputs.push(Output::QuantumYield(name.clone()));
+                            p.outputs.push(Output::PhotonsPer(name));
+                        }
+                    }
+                }
+                Err(e) => {
+                    p.notes
+                        .push(format!("no chain analysis: at the nominal values it says: {e}"));
+                    p.settings.chain = false;
+                }
+            }
+        }
+        if let Some(t) = &p.settings.target {
+            for s in std::iter::once(&t.species).chain(match &t.level {
+                Level::PercentOf { species, .. } => Some(species),
+                Level::Concentration(_) => None,
+            }) {
+                if model.species_index(s).is_none() {
+                    return Err(Error::Usage(format!("--target: no species \"{s}\" in this network")));
+                }
+            }
+        }
+        if p.settings.until.is_some() {
+            p.outputs.extend((0..model.n_species()).map(Output::Final));
+            if p.settings.target.is_some() {
+                p.outputs.push(Output::TimeToTarget);
+            }
+        }
+        if p.outputs.is_empty() {
+            return Err(Error::Usage(
+                "no outputs: the chain analysis is not possible here (see above) and no --until was given".into(),
+            ));
+        }
+        p.columns = p.outputs.iter().map(|o| column(o, &model, &p.settings)).collect();
+        Ok(p)
+    }
+
+    fn overrides(&self, keys: &[&str], values: &[String]) -> Overrides {
+        let mut o = Overrides::none();
+        for (k, v) in &self.base {
+            o = o.with(k, v);
+        }
+        for (k, v) in keys.iter().zip(values) {
+            o = o.with(k, v);
+        }
+        o
+    }
+
+    /// The network at drawn `values` (in parameter order).
+    pub fn network(&self, values: &[f64]) -> Result<Network> {
+        let params = self.space.parameters();
+        let keys: Vec<&str> = params.iter().map(|p| p.key.as_str()).collect();
+        let texts: Vec<String> = params.iter().zip(values).map(|(p, v)| p.override_text(*v)).collect();
+        crate::network::build(self.loaded, &self.overrides(&keys, &texts))
+    }
+
+    /// The output columns.
+    pub fn outputs(&self) -> &[Column] {
+        &self.columns
+    }
+
+    /// Outputs at drawn `values`.
+    pub fn evaluate(&self, values: &[f64]) -> Result<Vec<Option<f64>>> {
+        let net = self.network(values)?;
+        let model = Model::compile(&net);
+        let chain = if self.settings.chain {
+            Some(chain_run(&model, &net)?)
+        } else {
+            None
+        };
+        let finals = match self.settings.until {
+            Some(t) => {
+                let mut o = kinetics::Options::until(t);
+                o.outputs = 2;
+                let tr = kinetics::simulate(&model, &o, &mut |_| {})?;
+                Some(tr.last()[..model.n_species()].to_vec())
+            }
+            None => None,
+        };
+        let time = match (&self.settings.target, self.settings.until) {
+            (Some(tg), Some(t)) => {
+                let species = model.species_index(&tg.species).unwrap_or(0);
+                let level = match &tg.level {
+                    Level::Concentration(c) => *c,
+                    Level::PercentOf { percent, species } => {
+                        percent / 100.0 * model.species_index(species).map_or(0.0, |i| model.initial[i])
+                    }
+                };
+                let now = model.initial[species];
+                if (tg.above && now > level) || (!tg.above && now < level) {
+                    Some(0.0)
+                } else {
+                    let mut o = kinetics::Options::until(t);
+                    o.outputs = 2;
+                    o.event = Some(kinetics::Event { species, level });
+                    match kinetics::simulate(&model, &o, &mut |_| {})?.stop {
+                        Stop::Event(te) => Some(te),
+                        Stop::EndTime => None,
+                    }
+                }
+            }
+            _ => None,
+        };
+        let find = |name: &str| -> Option<usize> {
+            let (ch, an) = chain.as_ref()?;
+            an.absorbing.iter().position(|&s| ch.states[s].name == name)
+        };
+        Ok(self
+            .outputs
+            .iter()
+            .map(|o| match o {
+                Output::Yield(n) => find(n).map(|k| chain.as_ref().map_or(0.0, |c| c.1.yields[k])),
+                Output::QuantumYield(n) => find(n).and_then(|k| chain.as_ref()?.1.quantum_yield(k)),
+                Output::PhotonsPer(n) => find(n).and_then(|k| {
+                    let a = &chain.as_ref()?.1;
+                    (a.yields[k] > 0.0 && a.photons_total > 0.0).then(|| a.photons_total / a.yields[k])
+                }),
+                Output::Final(i) => finals.as_ref().map(|f| f[*i]),
+                Output::TimeToTarget => time,
+            })
+            .collect())
+    }
+
+    /// Draw and evaluate samples `range` of a run with `seed`, in parallel; `progress` is
+    /// called once per sample finished (from any thread).
+    pub fn run(&self, seed: u64, range: Range<usize>, progress: &(dyn Fn() + Sync)) -> Vec<Sample> {
+        range
+            .into_par_iter()
+            .map(|i| {
+                let values = self.space.draw(seed, i as u64);
+                let s = match self.evaluate(&values) {
+                    Ok(outputs) => Sample {
+                        index: i,
+                        values,
+                        outputs,
+                        error: None,
+                    },
+                    Err(e) => Sample {
+                        index: i,
+                        values,
+                        outputs: vec![None; self.outputs.len()],
+                        error: Some(one_line(&e)),
+                    },
+                };
+                progress();
+                s
+            })
+            .collect()
+    }
+
+    /// The header of a run of `total` samples holding `range`.
+    pub fn header(&self, seed: u64, total: usize, range: Range<usize>) -> Header {
+        let mut h = fnv1a(self.loaded.text.as_bytes(), 0xcbf29ce484222325);
+        h = fnv1a(
+            format!("{:?}{:?}{:?}", self.base, self.space, self.settings).as_bytes(),
+            h,
+        );
+        Header {
+            format: FORMAT.into(),
+            network: self.network_name.clone(),
+            fingerprint: format!("{h:016x}"),
+            seed,
+            total,
+            first: range.start,
+            end: range.end,
+            parameters: self
+                .space
+                .parameters()
+                .iter()
+                .map(|p| Column {
+                    name: p.key.clone(),
+                    unit: p.unit.clone(),
+                    about: if p.written.is_empty() {
+                        p.distribution.describe()
+                    } else {
+                        format!("{} (file: {})", p.distribution.describe(), p.written)
+                    },
+                })
+                .collect(),
+            outputs: self.columns.clone(),
+            notes: self.notes.clone(),
+        }
+    }
+
+    /// Run samples `range` of `total` and return the record.
+    pub fn record(&self, seed: u64, total: usize, range: Range<usize>, progress: &(dyn Fn() + Sync)) -> Record {
+        Record {
+            header: self.header(seed, total, range.clone()),
+            samples: self.run(seed, range, progress),
+        }
+    }
+}
+
+fn one_line(e: &Error) -> String {
+    e.to_string().lines().next().unwrap_or("").to_string()
+}
+
+fn chain_run(model: &Model, net: &Network) -> Result<(chain::Chain, chain::Analysis)> {
+    let settings = chain_build::Settings {
+        light: chain_build::Light::Stirred,
+        concentrations: None,
+    };
+    let values = chain_build::Values::of(model, net);
+    let ch = chain_build::build(model, net, &settings, &values)?;
+    let (start, _) = chain_build::start(model, &ch, None)?;
+    let opts = chain::Options {
+        distribution: false,
+        ..chain::Options::default()
+    };
+    let an = chain::analyse(&ch, &start, &opts)?;
+    Ok((ch, an))
+}
+
+fn column(o: &Output, model: &Model, s: &Settings) -> Column {
+    let c = |name: String, unit: &str, about: String| Column {
+        name,
+        unit: unit.into(),
+        about,
+    };
+    match o {
+        Output::Yield(n) => c(
+            format!("yield[{n}]"),
+            "",
+            format!("chain: probability that a molecule followed ends as {n}"),
+        ),
+        Output::QuantumYield(n) => c(
+            format!("quantum_yield[{n}]"),
+            "",
+            format!("chain: molecules of {n} per photon absorbed"),
+        ),
+        Output::PhotonsPer(n) => c(
+            format!("photons_per[{n}]"),
+            "",
+            format!("chain: photons absorbed per molecule of {n} made (1 / quantum yield)"),
+        ),
+        Output::Final(i) => c(
+            format!("final[{}]", model.species[*i]),
+            "mol/L",
+            format!(
+                "kinetics: concentration of {} at {}",
+                model.species[*i],
+                units::format_time(s.until.unwrap_or(0.0))
+            ),
+        ),
+        Output::TimeToTarget => c(
+            "time_to_target".into(),
+            "s",
+            format!(
+                "kinetics: time until the target is reached (missing where not reached by {})",
+                units::format_time(s.until.unwrap_or(0.0))
+            ),
+        ),
+    }
+}
+
+/// Samples `K/N` of `total`: indices ⌊(K−1)·total/N⌋ .. ⌊K·total/N⌋ (K from 1).
+pub fn shard_range(total: usize, k: usize, n: usize) -> Result<Range<usize>> {
+    if n == 0 || k == 0 || k > n {
+        return Err(Error::Usage(format!(
+            "--shard {k}/{n}: write K/N with 1 ≤ K ≤ N, e.g. 3/10"
+        )));
+    }
+    let at = |j: usize| ((j as u128 * total as u128) / n as u128) as usize;
+    Ok(at(k - 1)..at(k))
+}
+
+/// Join records of one run (shards) into the record of the whole run. They must share
+/// everything but their index ranges, and the ranges must cover 0..total once.
+pub fn merge(mut parts: Vec<Record>) -> Result<Record> {
+    let Some(first) = parts.first() else {
+        return Err(Error::Usage("merge: no shard files given".into()));
+    };
+    let same = |h: &Header| Header {
+        first: 0,
+        end: 0,
+        ..h.clone()
+    };
+    let want = same(&first.header);
+    for (i, p) in parts.iter().enumerate() {
+        if p.header.format != FORMAT {
+            return Err(Error::Usage(format!(
+                "merge: part {} is not a samples record ({FORMAT})",
+                i + 1
+            )));
+        }
+        if same(&p.header) != want {
+            return Err(Error::Usage(format!(
+                "merge: part {} comes from a different run (network, seed, sample count, parameters or settings differ)",
+                i + 1
+            )));
+        }
+        if p.samples.len() != p.header.end - p.header.first
+            || p.samples.iter().enumerate().any(|(j, s)| s.index != p.header.first + j)
+        {
+            return Err(Error::Usage(format!(
+                "merge: part {} does not hold the samples its header says",
+                i + 1
+            )));
+        }
+    }
+    parts.sort_by_key(|p| p.header.first);
+    let mut at = 0;
+    for p in &parts {
+        if p.header.first != at {
+            return Err(Error::Usage(if p.header.first > at {
+                format!("merge: samples {at}..{} are missing", p.header.first)
+            } else {
+                format!("merge: samples from {} are given twice", p.header.first)
+            }));
+        }
+        at = p.header.end;
+    }
+    if at != want.total {
+        return Err(Error::Usage(format!("merge: samples {at}..{} are missing", want.total)));
+    }
+    let mut header = want;
+    header.first = 0;
+    header.end = at;
+    let samples = parts.into_iter().flat_map(|p| p.samples).collect();
+    Ok(Record { header, samples })
+}
+
+/// What drives one output.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Driver {
+    /// Parameter key.
+    pub parameter: String,
+    /// Spearman's rank correlation with the output.
+    pub spearman: Option<f64>,
+    /// First-order Sobol index (given-data estimate, see [`stats::sobol_first_order`]).
+    pub sobol_first_order: Option<f64>,
+}
+
+/// Statistics of one output.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct OutputSummary {
+    /// The column.
+    #[serde(flatten)]
+    pub column: Column,
+    /// Samples with a value.
+    pub n: usize,
+    /// Samples without one (failed, or e.g. target not reached).
+    pub missing: usize,
+    /// Mean.
+    pub mean: Option<f64>,
+    /// Sample standard deviation.
+    pub sd: Option<f64>,
+    /// (fraction, value) at [`QUANTILES`].
+    pub quantiles: Vec<(f64, Option<f64>)>,
+    /// Parameters by decreasing |Spearman ρ| (a tornado ranking).
+    pub drivers: Vec<Driver>,
+}
+
+/// Statistics of a whole run.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Summary {
+    /// Network name.
+    pub network: String,
+    /// Seed.
+    pub seed: u64,
+    /// Samples.
+    pub samples: usize,
+    /// Samples that could not be evaluated.
+    pub failed: usize,
+    /// The first few distinct reasons.
+    pub failures: Vec<String>,
+    /// Parameters.
+    pub parameters: Vec<Column>,
+    /// Outputs.
+    pub outputs: Vec<OutputSummary>,
+    /// Notes.
+    pub notes: Vec<String>,
+}
+
+/// The statistics of a record (quantiles by Hyndman–Fan definition 7).
+pub fn summarise(r: &Record) -> Summary {
+    let ok: Vec<&Sample> = r.samples.iter().filter(|s| s.error.is_none()).collect();
+    let mut failures: Vec<String> = Vec::new();
+    for s in &r.samples {
+        if let Some(e) = &s.error
+            && !failures.contains(e)
+            && failures.len() < 5
+        {
+            failures.push(e.clone());
+        }
+    }
+    let params: Vec<Vec<f64>> = (0..r.header.parameters.len())
+        .map(|j| ok.iter().map(|s| s.values[j]).collect())
+        .collect();
+    let outputs = r
+        .header
+        .outputs
+        .iter()
+        .enumerate()
+        .map(|(j, col)| {
+            let y: Vec<f64> = ok.iter().map(|s| s.outputs[j].unwrap_or(f64::NAN)).collect();
+            let mut v: Vec<f64> = y.iter().copied().filter(|x| x.is_finite()).collect();
+            let (mean, sd) = stats::mean_sd(&v);
+            v.sort_by(f64::total_cmp);
+            let mut drivers: Vec<Driver> = r
+                .header
+                .parameters
+                .iter()
+                .zip(&params)
+                .map(|(p, x)| Driver {
+                    parameter: p.name.clone(),
+                    spearman: stats::spearman(x, &y),
+                    sobol_first_order: stats::sobol_first_order(x, &y),
+                })
+                .collect();
+            drivers.sort_by(|a, b| {
+                let f = |d: &Driver| d.spearman.map_or(-1.0, f64::abs);
+                f(b).total_cmp(&f(a))
+            });
+            OutputSummary {
+                column: col.clone(),
+                n: v.len(),
+                missing: r.samples.len() - v.len(),
+                mean,
+                sd,
+                quantiles: QUANTILES.iter().map(|&q| (q, stats::quantile(&v, q))).collect(),
+                drivers,
+            }
+        })
+        .collect();
+    Summary {
+        network: r.header.network.clone(),
+        seed: r.header.seed,
+        samples: r.samples.len(),
+        failed: r.samples.len() - ok.len(),
+        failures,
+        parameters: r.header.parameters.clone(),
+        outputs,
+        notes: r.header.notes.clone(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn shards_cover_every_index_once() {
+        for total in [0usize, 1, 7, 100, 1001] {
+            for n in 1..=9 {
+                let mut at = 0;
+                for k in 1..=n {
+                    let r = shard_range(total, k, n).unwrap();
+                    assert_eq!(r.start, at);
+                    at = r.end;
+                }
+                assert_eq!(at, total);
+            }
+        }
+        assert!(shard_range(10, 0, 3).is_err() && shard_range(10, 4, 3).is_err() && shard_range(10, 1, 0).is_err());
+    }
+
+    #[test]
+    fn targets_read_levels_and_percentages() {
+        let t = Target::parse("product > 5 mM").unwrap();
+        assert_eq!((t.species.as_str(), t.above), ("product", true));
+        assert!(matches!(t.level, Level::Concentration(c) if (c - 5e-3).abs() < 1e-18));
+        let t = Target::parse("Z-azo >= 90 % of E-azo").unwrap();
+        assert_eq!(
+            t.level,
+            Level::PercentOf {
+                percent: 90.0,
+                species: "E-azo".into()
+            }
+        );
+        assert!(!Target::parse("E-azo < 1 µM").unwrap().above);
+        for bad in [
+            "product 5 mM",
+            "> 5 mM",
+            "product > 5 K",
+            "product > 90 %",
+            "product > x % of A",
+        ] {
+            assert!(matches!(Target::parse(bad), Err(Error::Usage(_))), "{bad}");
+        }
+    }
+}
