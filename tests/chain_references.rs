@@ -439,3 +439,47 @@ fn bundled_pool_network_runs() {
             .all(|x| x.elasticity_photons.iter().flatten().all(|e| e.is_finite()))
     );
 }
+
+/// At the bound: the photons per product of the single cycle are 1/(η p) for an efficiency η of
+/// the excitation, so d ln(photons)/d ln η = −1 exactly (the geometric law of part 2). η = 1
+/// cannot be stepped up, so the difference must look down only; a central difference clipped
+/// at 1 would report half the value. A bystander that absorbs with no photochemistry (an inner
+/// filter) has no way out and must not stop the analysis.
+#[test]
+fn sensitivity_at_unit_efficiency_and_an_inert_absorber() {
+    let p = 0.02;
+    let net = network(&format!(
+        "{CELL}{}",
+        format_args!(
+            r#"
+[[species]]
+name = "A"
+initial = "10 µM"
+epsilon = {{ at = "365 nm", value = "1000 L/(mol cm)" }}
+[[species]]
+name = "B"
+[[species]]
+name = "F"
+initial = "10 µM"
+epsilon = {{ at = "365 nm", value = "300 L/(mol cm)" }}
+[[photo]]
+name = "excitation"
+absorber = "A"
+excites = "A*"
+[[transient]]
+name = "A*"
+channels = [{{ to = "B", fraction = {p} }}, {{ to = "A", fraction = "rest" }}]
+"#
+        )
+    ));
+    let model = Model::compile(&net);
+    let settings = Settings::default();
+    let c = build::build(&model, &net, &settings, &Values::of(&model, &net)).unwrap();
+    let a = analyse(&c, &from_state(&c, 0), &Options::default()).unwrap();
+    let b = a.absorbing.iter().position(|&s| c.states[s].name == "B").unwrap();
+    assert!(rel(a.photons_mean[b].unwrap(), 1.0 / p) < 1e-10);
+    let s = chain::sensitivity::sensitivities(&model, &net, &settings, &from_state(&c, 0)).unwrap();
+    let eta = s.iter().find(|x| x.parameter.contains("\"excitation\"")).unwrap();
+    let e = eta.elasticity_photons[b].unwrap();
+    assert!((e + 1.0).abs() < 1e-3, "d ln photons / d ln η = {e}, want −1");
+}

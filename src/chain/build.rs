@@ -80,6 +80,10 @@ pub struct Parameter {
     /// True when it is a rate constant given by a barrier (Eyring or Arrhenius), so that
     /// ∂/∂(barrier) = −(k/RT) ∂/∂k.
     pub barrier: bool,
+    /// The largest value it may take (quantum yields of one absorber sum to at most 1 in every
+    /// light bin; fractions are at most 1; rates are unbounded). At the bound a difference
+    /// quotient must look down only.
+    pub upper: f64,
 }
 
 /// The numbers the chain is built from, editable for sensitivities.
@@ -143,15 +147,34 @@ fn is_barrier(law: &RateLaw) -> bool {
 /// Every quantum yield, fraction, rate and barrier of the network that the chain uses.
 pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
     let vals = Values::of(model, net);
+    let nb = model.bins.len();
+    // The yield spectrum of each step, and their sum per absorber and bin.
+    let base = |p: usize| model.outcomes.iter().find(|o| o.step == p).map(|o| (o.slot, &o.base));
+    let mut used = vec![0.0; model.absorbers.len() * nb];
+    for p in 0..net.photo.len() {
+        if let Some((slot, b)) = base(p) {
+            for (k, y) in b.iter().enumerate().take(nb) {
+                used[slot * nb + k] += y;
+            }
+        }
+    }
     let mut out = Vec::new();
     for (p, step) in net.photo.iter().enumerate() {
-        if model.outcomes.iter().any(|o| o.step == p) {
+        if let Some((slot, b)) = base(p) {
+            let upper = b
+                .iter()
+                .enumerate()
+                .take(nb)
+                .filter(|(_, y)| **y > 0.0)
+                .map(|(k, y)| 1.0 + (1.0 - used[slot * nb + k]) / y)
+                .fold(f64::INFINITY, f64::min);
             out.push(Parameter {
                 label: format!("quantum yield of \"{}\" (factor on its spectrum)", step.name),
                 slot: Slot::YieldFactor(p),
                 value: 1.0,
                 unit: "1",
                 barrier: false,
+                upper,
             });
         }
     }
@@ -175,6 +198,7 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
                 value: vals.channel[t][c],
                 unit,
                 barrier,
+                upper: if unit == "1" { 1.0 } else { f64::INFINITY },
             });
         }
     }
@@ -186,6 +210,7 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
             value: re.k,
             unit: if order == 1 { "1/s" } else { "L/(mol s)" },
             barrier: net.thermal.get(r).is_some_and(|t| is_barrier(&t.rate)),
+            upper: f64::INFINITY,
         });
     }
     out
@@ -386,7 +411,10 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
     let n_states = ns + nt;
     for (i, ex) in exits.iter().enumerate() {
         let total: f64 = ex.iter().map(|e| e.rate).sum();
-        let absorbing = products.contains(&i) || total <= 0.0;
+        // A species whose every way out leads back to itself (light absorbed with no net
+        // photochemistry, its reactions off at these concentrations) has no way out either.
+        let only_back = !ex.is_empty() && ex.iter().all(|e| e.to == Some(i));
+        let absorbing = products.contains(&i) || total <= 0.0 || only_back;
         let holding = if absorbing { 0.0 } else { 1.0 / total };
         chain.add_state(&model.species[i], StateKind::Species(i), absorbing, holding);
     }

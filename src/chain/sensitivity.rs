@@ -1,6 +1,8 @@
 //! Sensitivities of the yields and photon costs to every quantum yield, fraction, rate and
 //! barrier, by central finite differences through the chain construction: each parameter p is
 //! moved to p(1 ± h) with h = 1e-4, the chain rebuilt and analysed (without the distribution).
+//! At an upper bound (a quantum yield whose absorber's yields already sum to 1, a fraction of 1)
+//! the difference is one-sided, from p(1 − h) to p.
 //! For rate constants given by a barrier E (Eyring ΔG‡ or ΔH‡, Arrhenius Ea), k ∝ exp(−E/RT)
 //! at fixed temperature, so ∂/∂E = −(k/RT) ∂/∂k exactly; barriers are reported per kcal/mol.
 
@@ -57,23 +59,29 @@ pub fn sensitivities(model: &Model, net: &Network, settings: &Settings, start: &
             value,
             unit,
             barrier,
+            upper,
         } = p;
         if !(value > 0.0 && value.is_finite()) {
             continue;
         }
         let (mut up, mut down) = (base.clone(), base.clone());
-        up.set(slot, value * (1.0 + STEP));
+        // Central where p(1 + h) is allowed, else one-sided from below: span/STEP = 2 or 1.
+        let central = value * (1.0 + STEP) <= upper;
+        let span = if central { 2.0 } else { 1.0 };
+        if central {
+            up.set(slot, value * (1.0 + STEP));
+        }
         down.set(slot, value * (1.0 - STEP));
         let (a, b) = (run(&up)?, run(&down)?);
         let r = a.yields.len().min(b.yields.len());
         let elasticity_photons: Vec<Option<f64>> = (0..r)
             .map(|k| match (a.photons_mean[k], b.photons_mean[k]) {
-                (Some(x), Some(y)) if x > 0.0 && y > 0.0 => Some((x.ln() - y.ln()) / (2.0 * STEP)),
+                (Some(x), Some(y)) if x > 0.0 && y > 0.0 => Some((x.ln() - y.ln()) / (span * STEP)),
                 _ => None,
             })
             .collect();
         let yield_derivative: Vec<f64> = (0..r)
-            .map(|k| (a.yields[k] - b.yields[k]) / (2.0 * STEP * value))
+            .map(|k| (a.yields[k] - b.yields[k]) / (span * STEP * value))
             .collect();
         let (photons_per_barrier, yield_per_barrier) = if barrier {
             // ∂/∂E = −(k/RT) ∂/∂k, E in kcal/mol.

@@ -197,9 +197,7 @@ fn rate_parameter(key: &str, field: &str, law: &RateLaw, k: f64, order: u32, tem
             RateLaw::EyringFree { transmission, .. }
             | RateLaw::EyringEnthalpy { transmission, .. }
             | RateLaw::Frequencies { transmission, .. },
-        ) => {
-            p(*transmission, "", Range::Fraction)
-        }
+        ) => p(*transmission, "", Range::Fraction),
         _ => None,
     }
 }
