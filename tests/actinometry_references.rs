@@ -82,7 +82,10 @@ fn round_trip_simulated_actinometer_recovers_the_flux() {
     let eps = act::EPSILON_510;
     let delta_a = eps * l * fe * v_al / v_tot;
     let (phi, _) = act::ferrioxalate_yield(YieldTable::HatchardParker1956, Strength::Dilute, 365e-9).unwrap();
-    assert_eq!(phi.value, 1.21, "Hatchard & Parker 1956, 0.006 M, 361–366 nm (from memory)");
+    assert_eq!(
+        phi.value, 1.21,
+        "Hatchard & Parker 1956, 0.006 M, 361–366 nm (from memory)"
+    );
     let r = act::ferrioxalate(&act::Ferrioxalate {
         delta_a: Measured::exact(delta_a),
         path: Measured::exact(l),
@@ -118,7 +121,10 @@ fn worked_example_from_the_standard_procedure() {
     let (phi, note) = act::ferrioxalate_yield(YieldTable::LeeSeliger1964, Strength::Dilute, 365e-9).unwrap();
     assert!(note.contains("Lee & Seliger"));
     let r = act::ferrioxalate(&act::Ferrioxalate {
-        delta_a: Measured { value: 0.600, sigma: 0.006 },
+        delta_a: Measured {
+            value: 0.600,
+            sigma: 0.006,
+        },
         path: Measured::exact(0.01),
         v_irradiated: Measured::exact(3.00e-3),
         v_aliquot: Measured::exact(0.500e-3),
@@ -131,7 +137,11 @@ fn worked_example_from_the_standard_procedure() {
     })
     .unwrap();
     assert!(rel(r.moles.value, moles) < 1e-12);
-    assert!(rel(r.photon_flux.value, q_hand) < 1e-12, "{} vs {q_hand}", r.photon_flux.value);
+    assert!(
+        rel(r.photon_flux.value, q_hand) < 1e-12,
+        "{} vs {q_hand}",
+        r.photon_flux.value
+    );
     // First-order propagation: 1 % on ΔA and 0.03/1.26 on Φ add in quadrature.
     let expect_rel = (0.01f64.powi(2) + (0.03f64 / 1.26).powi(2)).sqrt();
     assert!(rel(r.photon_flux.relative(), expect_rel) < 1e-12);
@@ -143,16 +153,43 @@ fn worked_example_from_the_standard_procedure() {
 #[test]
 fn first_order_uncertainty_matches_finite_differences() {
     let base = act::Ferrioxalate {
-        delta_a: Measured { value: 0.45, sigma: 0.005 },
-        path: Measured { value: 0.01, sigma: 1e-5 },
-        v_irradiated: Measured { value: 3e-3, sigma: 1e-5 },
-        v_aliquot: Measured { value: 0.5e-3, sigma: 2e-6 },
-        v_total: Measured { value: 10e-3, sigma: 2e-5 },
-        time: Measured { value: 90.0, sigma: 0.5 },
+        delta_a: Measured {
+            value: 0.45,
+            sigma: 0.005,
+        },
+        path: Measured {
+            value: 0.01,
+            sigma: 1e-5,
+        },
+        v_irradiated: Measured {
+            value: 3e-3,
+            sigma: 1e-5,
+        },
+        v_aliquot: Measured {
+            value: 0.5e-3,
+            sigma: 2e-6,
+        },
+        v_total: Measured {
+            value: 10e-3,
+            sigma: 2e-5,
+        },
+        time: Measured {
+            value: 90.0,
+            sigma: 0.5,
+        },
         wavelength: 405e-9,
-        fraction_absorbed: Measured { value: 0.97, sigma: 0.01 },
-        quantum_yield: Measured { value: 1.14, sigma: 0.02 },
-        epsilon: Measured { value: act::EPSILON_510, sigma: 1e4 },
+        fraction_absorbed: Measured {
+            value: 0.97,
+            sigma: 0.01,
+        },
+        quantum_yield: Measured {
+            value: 1.14,
+            sigma: 0.02,
+        },
+        epsilon: Measured {
+            value: act::EPSILON_510,
+            sigma: 1e4,
+        },
     };
     let q = |m: &act::Ferrioxalate| act::ferrioxalate(m).unwrap().photon_flux.value;
     let q0 = q(&base);
@@ -176,7 +213,12 @@ fn first_order_uncertainty_matches_finite_differences() {
         var += (d * s).powi(2);
     }
     let r = act::ferrioxalate(&base).unwrap();
-    assert!(rel(r.photon_flux.sigma, var.sqrt()) < 1e-5, "{} vs {}", r.photon_flux.sigma, var.sqrt());
+    assert!(
+        rel(r.photon_flux.sigma, var.sqrt()) < 1e-5,
+        "{} vs {}",
+        r.photon_flux.sigma,
+        var.sqrt()
+    );
 }
 
 #[test]
@@ -252,7 +294,10 @@ fn light_block_pastes_into_a_network_file() {
 fn actinometer_bad_input_is_a_usage_error() {
     for (args, needle) in [
         (vec!["--wavelength", "600 nm"], "not 600 nm"),
-        (vec!["--wavelength", "365 nm", "--yield-table", "other"], "--yield-table"),
+        (
+            vec!["--wavelength", "365 nm", "--yield-table", "other"],
+            "--yield-table",
+        ),
         (vec!["--wavelength", "365 mW"], "--wavelength"),
     ] {
         let out = Command::new(bin())

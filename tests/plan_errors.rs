@@ -8,10 +8,16 @@ fn plan(args: &[&str]) -> (i32, String) {
         .arg("plan")
         .arg(concat!(env!("CARGO_MANIFEST_DIR"), "/networks/photoswitch.toml"))
         .args(args)
-        .args(["--out", &std::env::temp_dir().join("photoledger-plan-errors").to_string_lossy()])
+        .args([
+            "--out",
+            &std::env::temp_dir().join("photoledger-plan-errors").to_string_lossy(),
+        ])
         .output()
         .expect("runs");
-    (out.status.code().unwrap_or(-1), String::from_utf8_lossy(&out.stderr).to_string())
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stderr).to_string(),
+    )
 }
 
 #[track_caller]
@@ -26,7 +32,10 @@ fn expect_usage(args: &[&str], needles: &[&str]) {
 
 #[test]
 fn unknown_species_names_the_species_and_suggests() {
-    expect_usage(&["--target", "Z-az > 10 µM"], &["unknown species \"Z-az\"", "did you mean \"Z-azo\"", "E-azo"]);
+    expect_usage(
+        &["--target", "Z-az > 10 µM"],
+        &["unknown species \"Z-az\"", "did you mean \"Z-azo\"", "E-azo"],
+    );
 }
 
 #[test]
@@ -50,9 +59,15 @@ fn bad_options_are_usage_errors() {
     expect_usage(&["--target", "Z-azo > 10 µM", "--in", "2 W"], &["--in"]);
     expect_usage(&["--target", "Z-azo > 10 µM", "--flow-tube", "ID=1 mm"], &["no length"]);
     expect_usage(&["--target", "Z-azo > 10 µM", "--sweep", "power=1W..2W"], &["no :N"]);
-    expect_usage(&["--target", "Z-azo > 10 µM", "--sweep", "colour=1..2:3"], &["unknown key"]);
+    expect_usage(
+        &["--target", "Z-azo > 10 µM", "--sweep", "colour=1..2:3"],
+        &["unknown key"],
+    );
     expect_usage(&["--target", "Z-azo > 10 µM", "--sun-hours", "30"], &["at most 24"]);
-    expect_usage(&["--target", "Z-azo > 10 µM", "--wall-plug", "130 %"], &["at most 100 %"]);
+    expect_usage(
+        &["--target", "Z-azo > 10 µM", "--wall-plug", "130 %"],
+        &["at most 100 %"],
+    );
 }
 
 #[test]
@@ -61,7 +76,10 @@ fn unreachable_target_says_why_with_the_level_reached() {
         .arg("plan")
         .arg(concat!(env!("CARGO_MANIFEST_DIR"), "/networks/photoswitch.toml"))
         .args(["--target", "Z-azo > 49 µM", "--json"])
-        .args(["--out", &std::env::temp_dir().join("photoledger-plan-unreach").to_string_lossy()])
+        .args([
+            "--out",
+            &std::env::temp_dir().join("photoledger-plan-unreach").to_string_lossy(),
+        ])
         .output()
         .expect("runs");
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));

@@ -87,7 +87,10 @@ fn time_matches_beer_lambert_closed_form_thin_and_thick() {
         let m = a_to_p(eps, c0, q, phi);
         let t = plan_time(&m, "P > 60 %");
         let expect = closed_form(eps, c0, 0.4 * c0, q, phi, 3e-3);
-        assert!(rel(t, expect) < 1e-6, "ε {eps}, c₀ {c0}: plan {t} s, Beer–Lambert closed form {expect} s");
+        assert!(
+            rel(t, expect) < 1e-6,
+            "ε {eps}, c₀ {c0}: plan {t} s, Beer–Lambert closed form {expect} s"
+        );
     }
 }
 
@@ -176,11 +179,7 @@ fn scheduled_closed_form(r: f64, k: f64, lit: f64, level: f64) -> f64 {
                 let (mut lo, mut hi) = (0.0, len);
                 for _ in 0..200 {
                     let mid = 0.5 * (lo + hi);
-                    if at(mid).1 >= level {
-                        hi = mid
-                    } else {
-                        lo = mid
-                    }
+                    if at(mid).1 >= level { hi = mid } else { lo = mid }
                 }
                 return t + 0.5 * (lo + hi);
             }
@@ -237,8 +236,14 @@ rate = { k = "2e-5 /s" }
     // The dark hours matter: continuous light would need a different (shorter) clock time,
     // and light alone (no dark conversion) would need more lit time.
     let lit = Schedule::daily(6.0).lit_time(t);
-    let cont = plan::time_to_target(&m, &target, &PlanOptions::default()).unwrap().time.unwrap();
-    assert!(lit < cont, "lit time {lit} s should be below the continuous-light time {cont} s");
+    let cont = plan::time_to_target(&m, &target, &PlanOptions::default())
+        .unwrap()
+        .time
+        .unwrap();
+    assert!(
+        lit < cont,
+        "lit time {lit} s should be below the continuous-light time {cont} s"
+    );
     // The ledger counts incident photons over lit time only.
     assert!(rel(p.dose.incident, 1e-9 * lit) < 1e-9);
 }

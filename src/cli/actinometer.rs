@@ -21,7 +21,7 @@ pub struct ActinometerArgs {
 #[derive(clap::Subcommand, Debug)]
 pub enum Route {
     /// Potassium ferrioxalate, read as Fe(phen)3 2+ at 510 nm (the standard procedure).
-    Ferrioxalate(FerrioxalateArgs),
+    Ferrioxalate(Box<FerrioxalateArgs>),
     /// Any photoreaction of a network with a known quantum yield: fit the photon flux to
     /// measured conversions of the step's absorber against time.
     Network(NetworkFitArgs),
@@ -109,7 +109,11 @@ fn measured(text: &str, q: Option<Quantity>, field: &str) -> photoledger::Result
             ", optionally with \"± uncertainty\""
         ))
     };
-    let (v, s) = match text.split_once('±').or_else(|| text.split_once("+/-")).or_else(|| text.split_once("+-")) {
+    let (v, s) = match text
+        .split_once('±')
+        .or_else(|| text.split_once("+/-"))
+        .or_else(|| text.split_once("+-"))
+    {
         Some((v, s)) => (v.trim(), Some(s.trim())),
         None => (text.trim(), None),
     };
@@ -137,7 +141,7 @@ fn measured(text: &str, q: Option<Quantity>, field: &str) -> photoledger::Result
         }
         _ => read(v)?,
     };
-    if !(sigma >= 0.0) {
+    if sigma.is_nan() || sigma < 0.0 {
         return Err(bad("the uncertainty cannot be negative".into()));
     }
     Ok(Measured { value, sigma })
@@ -155,8 +159,12 @@ pub fn run(a: &ActinometerArgs) -> photoledger::Result<()> {
 }
 
 fn ferrioxalate(a: &FerrioxalateArgs) -> photoledger::Result<()> {
-    let wl = units::parse(&a.wavelength, Quantity::Wavelength)
-        .map_err(|e| Error::Usage(format!("--wavelength: {e}; expected {}", Quantity::Wavelength.accepted())))?;
+    let wl = units::parse(&a.wavelength, Quantity::Wavelength).map_err(|e| {
+        Error::Usage(format!(
+            "--wavelength: {e}; expected {}",
+            Quantity::Wavelength.accepted()
+        ))
+    })?;
     let table = match a.yield_table.as_str() {
         "hatchard-parker" => YieldTable::HatchardParker1956,
         "lee-seliger" => YieldTable::LeeSeliger1964,
@@ -172,7 +180,10 @@ fn ferrioxalate(a: &FerrioxalateArgs) -> photoledger::Result<()> {
         s => return Err(Error::Usage(format!("--strength {s}: expected 0.006M or 0.15M"))),
     };
     let (phi, yield_note) = match &a.quantum_yield {
-        Some(q) => (measured(q, None, "--quantum-yield")?, "given with --quantum-yield".to_string()),
+        Some(q) => (
+            measured(q, None, "--quantum-yield")?,
+            "given with --quantum-yield".to_string(),
+        ),
         None => act::ferrioxalate_yield(table, strength, wl)?,
     };
     let eps = measured(&a.epsilon, Some(Quantity::MolarAbsorption), "--epsilon")?;
@@ -222,7 +233,10 @@ fn ferrioxalate(a: &FerrioxalateArgs) -> photoledger::Result<()> {
         println!("{js}");
     } else {
         print!("{}", rp::ferrioxalate_text(&r, wl, &yield_note, &eps_note));
-        println!("\nlight block for a network file (also in {}/light.toml):\n", dir.display());
+        println!(
+            "\nlight block for a network file (also in {}/light.toml):\n",
+            dir.display()
+        );
         print!("{block}");
         println!("\ncaution: {}", rp::CAUTIONS);
     }
@@ -244,7 +258,11 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
         Error::Usage(format!(
             "--step \"{}\": no photochemical step of that name; the network has {}",
             a.step,
-            net.photo.iter().map(|p| format!("\"{}\"", p.name)).collect::<Vec<_>>().join(", ")
+            net.photo
+                .iter()
+                .map(|p| format!("\"{}\"", p.name))
+                .collect::<Vec<_>>()
+                .join(", ")
         ))
     })?;
     let sp = step.absorber;
@@ -256,7 +274,11 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
         ))
     })?;
     let tf = units::parse(&format!("1 {tu}"), Quantity::Time).map_err(|e| {
-        Error::Usage(format!("{}: time column unit: {e}; expected {}", a.data.display(), Quantity::Time.accepted()))
+        Error::Usage(format!(
+            "{}: time column unit: {e}; expected {}",
+            a.data.display(),
+            Quantity::Time.accepted()
+        ))
     })?;
     let cf = match table.units[1].as_deref() {
         None => 1.0,
@@ -271,7 +293,7 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
     let mut data = Vec::new();
     for &(t, c, line) in &table.rows {
         let (t, c) = (t * tf, c * cf);
-        if !(t > 0.0) || !(0.0..1.0).contains(&c) {
+        if t.is_nan() || t <= 0.0 || !(0.0..1.0).contains(&c) {
             return Err(Error::Usage(format!(
                 "{}:{line}: need a positive time and a conversion from 0 to below 1 (or 100 %)",
                 a.data.display()
@@ -285,7 +307,10 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
         net.species[sp].name,
         a.step,
         fit.points,
-        a.data.file_name().map(|f| f.to_string_lossy().to_string()).unwrap_or_default()
+        a.data
+            .file_name()
+            .map(|f| f.to_string_lossy().to_string())
+            .unwrap_or_default()
     );
     let mut blocks = String::new();
     for (s, src) in net.lights.iter().enumerate() {
@@ -314,7 +339,10 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
         println!("{js}");
     } else {
         print!("{}", rp::network_fit_text(&fit, &net.species[sp].name, &a.step));
-        println!("\nlight blocks to replace the network's (also in {}/light.toml):\n", dir.display());
+        println!(
+            "\nlight blocks to replace the network's (also in {}/light.toml):\n",
+            dir.display()
+        );
         print!("{blocks}");
         println!("caution: {}", rp::CAUTIONS);
     }

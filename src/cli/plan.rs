@@ -66,7 +66,11 @@ pub struct PlanArgs {
 
 /// "ID=1 mm, length=2 m" (also "id", "diameter", "inner diameter"; separated by , or ;).
 fn parse_tube(spec: &str) -> photoledger::Result<Tube> {
-    let usage = |m: String| Error::Usage(format!("--flow-tube \"{spec}\": {m}; write e.g. \"ID=1 mm, length=2 m\""));
+    let usage = |m: String| {
+        Error::Usage(format!(
+            "--flow-tube \"{spec}\": {m}; write e.g. \"ID=1 mm, length=2 m\""
+        ))
+    };
     let (mut id, mut len) = (None, None);
     for part in spec.split([',', ';']).map(str::trim).filter(|p| !p.is_empty()) {
         let (k, v) = part
@@ -74,7 +78,7 @@ fn parse_tube(spec: &str) -> photoledger::Result<Tube> {
             .ok_or_else(|| usage(format!("\"{part}\" is not KEY=VALUE")))?;
         let v = units::parse(v.trim(), Quantity::Length)
             .map_err(|e| usage(format!("{}: {e}; expected {}", k.trim(), Quantity::Length.accepted())))?;
-        if !(v > 0.0) {
+        if v.is_nan() || v <= 0.0 {
             return Err(usage(format!("{} must be positive", k.trim())));
         }
         match k.trim().to_lowercase().as_str() {
@@ -96,9 +100,15 @@ fn parse_fraction(text: &str, what: &str) -> photoledger::Result<f64> {
         Some(p) => p.trim().parse::<f64>().map(|v| v / 100.0),
         None => t.parse::<f64>(),
     }
-    .map_err(|_| Error::Usage(format!("{what} \"{text}\": expected a fraction such as 0.3 or \"30 %\"")))?;
+    .map_err(|_| {
+        Error::Usage(format!(
+            "{what} \"{text}\": expected a fraction such as 0.3 or \"30 %\""
+        ))
+    })?;
     if !(v > 0.0 && v <= 1.0) {
-        return Err(Error::Usage(format!("{what} \"{text}\": must be above 0 and at most 100 %")));
+        return Err(Error::Usage(format!(
+            "{what} \"{text}\": must be above 0 and at most 100 %"
+        )));
     }
     Ok(v)
 }
@@ -119,12 +129,16 @@ fn parse_sweep(text: &str, net: &photoledger::Network) -> photoledger::Result<Sw
     };
     let (key, range) = text.split_once('=').ok_or_else(|| usage("no =".into()))?;
     let key = key.trim();
-    let (range, n) = range.rsplit_once(':').ok_or_else(|| usage("no :N (number of points)".into()))?;
+    let (range, n) = range
+        .rsplit_once(':')
+        .ok_or_else(|| usage("no :N (number of points)".into()))?;
     let n: usize = n.trim().parse().map_err(|_| usage(format!("\"{n}\" is not a count")))?;
     if !(2..=500).contains(&n) {
         return Err(usage("between 2 and 500 points".into()));
     }
-    let (lo, hi) = range.split_once("..").ok_or_else(|| usage("no .. between the ends".into()))?;
+    let (lo, hi) = range
+        .split_once("..")
+        .ok_or_else(|| usage("no .. between the ends".into()))?;
     let (q, log, label, factor) = match key {
         "power" => (Quantity::Power, true, "total power (W)".to_string(), 1.0),
         "photon_flux" => (Quantity::PhotonFlux, true, "total photon flux (einstein/s)".into(), 1.0),
@@ -139,9 +153,7 @@ fn parse_sweep(text: &str, net: &photoledger::Network) -> photoledger::Result<Sw
         }
         other => return Err(usage(format!("unknown key \"{other}\""))),
     };
-    let p = |s: &str| {
-        units::parse(s.trim(), q).map_err(|e| usage(format!("{e}; expected {}", q.accepted())))
-    };
+    let p = |s: &str| units::parse(s.trim(), q).map_err(|e| usage(format!("{e}; expected {}", q.accepted())));
     let (a, b) = (p(lo)?, p(hi)?);
     if !(a > 0.0 && b > 0.0) || a == b {
         return Err(usage("the ends must be positive and different".into()));
@@ -207,7 +219,11 @@ fn sweep_models(
                         tunable.len()
                     )));
                 };
-                let field = if matches!(l.kind, LightKind::Line { .. }) { "wavelength" } else { "centre" };
+                let field = if matches!(l.kind, LightKind::Line { .. }) {
+                    "wavelength"
+                } else {
+                    "centre"
+                };
                 reload(&format!("light.{}.{field}", l.name), format!("{} nm", v * 1e9))?
             }
             "temperature" => reload("conditions.temperature", format!("{v} K"))?,
@@ -221,19 +237,39 @@ fn sweep_models(
     Ok(out)
 }
 
+/// The sun sources scaled by `sun_scale`, and the model put in the flow tube if there is one.
+fn adjust_model(mut m: Model, sun_sources: &[usize], sun_scale: f64, tube: Option<&Tube>) -> Model {
+    for &s in sun_sources {
+        m = m.with_source_scale(s, sun_scale);
+    }
+    match tube {
+        Some(t) => t.apply(&m),
+        None => m,
+    }
+}
+
 pub fn run(a: &PlanArgs) -> photoledger::Result<()> {
     let net = load(&a.net)?;
     print_warnings(&net);
     let mut model = Model::compile(&net);
     let horizon = units::parse(&a.horizon, Quantity::Time)
         .map_err(|e| Error::Usage(format!("--horizon: {e}; expected {}", Quantity::Time.accepted())))?;
-    let efficiency = a.wall_plug.as_deref().map(|w| parse_fraction(w, "--wall-plug")).transpose()?;
+    let efficiency = a
+        .wall_plug
+        .as_deref()
+        .map(|w| parse_fraction(w, "--wall-plug"))
+        .transpose()?;
     let tube = a.flow_tube.as_deref().map(parse_tube).transpose()?;
     if a.within.is_some() && a.sweep.is_some() {
-        return Err(Error::Usage("--in and --sweep answer different questions; give one".into()));
+        return Err(Error::Usage(
+            "--in and --sweep answer different questions; give one".into(),
+        ));
     }
     if !(a.sun_scale > 0.0 && a.sun_scale.is_finite()) {
-        return Err(Error::Usage(format!("--sun-scale {}: must be a positive factor", a.sun_scale)));
+        return Err(Error::Usage(format!(
+            "--sun-scale {}: must be a positive factor",
+            a.sun_scale
+        )));
     }
     let schedule = match a.sun_hours {
         Some(h) if h > 0.0 && h <= 24.0 => Some(Schedule::daily(h)),
@@ -248,19 +284,12 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<()> {
         .map(|(i, _)| i)
         .collect();
     if a.sun_scale != 1.0 && sun_sources.is_empty() {
-        return Err(Error::Usage("--sun-scale: the network has no light of kind \"sun\"".into()));
+        return Err(Error::Usage(
+            "--sun-scale: the network has no light of kind \"sun\"".into(),
+        ));
     }
-    let sun_scale = a.sun_scale;
-    let adjust = |mut m: Model| -> Model {
-        for &s in &sun_sources {
-            m = m.with_source_scale(s, sun_scale);
-        }
-        match &tube {
-            Some(t) => t.apply(&m),
-            None => m,
-        }
-    };
-    model = adjust(model);
+    let adjust = |m: Model| adjust_model(m, &sun_sources, a.sun_scale, tube.as_ref());
+    model = adjust_model(model, &sun_sources, a.sun_scale, tube.as_ref());
     let target = plan::target::parse(&a.target, &model)?;
     let products = match &a.products {
         None => None,
@@ -330,7 +359,10 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<()> {
                 .collect();
             let j = serde_json::json!({"network": name, "target": a.target, "swept": sw.axis.label, "points": rows,
                 "cautions": rp::CAUTIONS});
-            println!("{}", serde_json::to_string_pretty(&j).map_err(|e| Error::Numerical(e.to_string()))?);
+            println!(
+                "{}",
+                serde_json::to_string_pretty(&j).map_err(|e| Error::Numerical(e.to_string()))?
+            );
         } else {
             println!("sweep of {} for \"{}\" on {name}", sw.axis.label, a.target);
             print!("{}", rp::sweep_text(&sw.axis, &points));
@@ -403,7 +435,10 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<()> {
         println!("{json}");
     } else {
         print!("{}", rp::text(&summary));
-        println!("wrote {}/ (summary.json, concentrations.csv, concentrations.svg)", dir.display());
+        println!(
+            "wrote {}/ (summary.json, concentrations.csv, concentrations.svg)",
+            dir.display()
+        );
     }
     Ok(())
 }

@@ -38,7 +38,11 @@ impl Measured {
 
     /// Relative uncertainty.
     pub fn relative(&self) -> f64 {
-        if self.value == 0.0 { 0.0 } else { (self.sigma / self.value).abs() }
+        if self.value == 0.0 {
+            0.0
+        } else {
+            (self.sigma / self.value).abs()
+        }
     }
 }
 
@@ -92,7 +96,13 @@ fn table(t: YieldTable, s: Strength) -> (&'static [(f64, f64)], f64) {
             0.0,
         ),
         (YieldTable::HatchardParker1956, Strength::Concentrated) => (
-            &[(436.0, 1.01), (468.0, 0.93), (480.0, 0.94), (509.0, 0.86), (546.0, 0.15)],
+            &[
+                (436.0, 1.01),
+                (468.0, 0.93),
+                (480.0, 0.94),
+                (509.0, 0.86),
+                (546.0, 0.15),
+            ],
             0.0,
         ),
         (YieldTable::LeeSeliger1964, Strength::Dilute) => (&[(365.0, 1.26), (366.0, 1.26)], 0.03),
@@ -195,7 +205,7 @@ pub fn ferrioxalate(m: &Ferrioxalate) -> Result<FluxResult> {
         ("ε(510 nm)", m.epsilon),
     ];
     for (name, p) in &parts {
-        if !(p.value > 0.0 && p.value.is_finite()) || !(p.sigma >= 0.0) {
+        if p.value.is_nan() || p.value <= 0.0 || !p.value.is_finite() || p.sigma.is_nan() || p.sigma < 0.0 {
             return Err(Error::Usage(format!(
                 "the {name} must be positive (with a non-negative uncertainty), not {}",
                 p.value
@@ -213,8 +223,8 @@ pub fn ferrioxalate(m: &Ferrioxalate) -> Result<FluxResult> {
             "the aliquot cannot be larger than the irradiated volume or the volume it was made up to".into(),
         ));
     }
-    let n = m.delta_a.value * m.v_total.value / (m.epsilon.value * m.path.value) * m.v_irradiated.value
-        / m.v_aliquot.value;
+    let n =
+        m.delta_a.value * m.v_total.value / (m.epsilon.value * m.path.value) * m.v_irradiated.value / m.v_aliquot.value;
     let q = n / (m.quantum_yield.value * m.time.value * m.fraction_absorbed.value);
     let rel = |ps: &[(&str, Measured)]| ps.iter().map(|p| p.1.relative().powi(2)).sum::<f64>().sqrt();
     let rel_n = rel(&[parts[0], parts[1], parts[2], parts[3], parts[4], parts[8]]);
@@ -340,7 +350,11 @@ pub fn fit_flux(model: &Model, sp: usize, data: &[(f64, f64)]) -> Result<Network
         }
     }
     let n = data.len();
-    let sigma_x = if n > 1 { (rss / (n - 1) as f64 / jtj).sqrt() } else { 0.0 };
+    let sigma_x = if n > 1 {
+        (rss / (n - 1) as f64 / jtj).sqrt()
+    } else {
+        0.0
+    };
     let s = x.exp();
     let flux = model.total_flux() * s;
     Ok(NetworkFit {

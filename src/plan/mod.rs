@@ -189,7 +189,7 @@ fn steady(rhs: &Rhs, y: &[f64], t: f64, scale: f64) -> bool {
 
 /// Time to reach `target` on `model`, with the dose and the products at that time.
 pub fn time_to_target(model: &Model, target: &Target, opts: &PlanOptions) -> Result<Plan> {
-    if !(opts.horizon > 0.0) {
+    if opts.horizon.is_nan() || opts.horizon <= 0.0 {
         return Err(Error::Usage("the horizon must be positive".into()));
     }
     let rhs = Rhs::new(model);
@@ -298,7 +298,14 @@ pub fn time_to_target(model: &Model, target: &Target, opts: &PlanOptions) -> Res
         None => (t_end, last.as_slice()),
     };
     let dose = dose(model, &trajectory, target, t_dose, y_dose);
-    let products = shares(model, opts.products.as_deref().unwrap_or(&model.products), y_dose);
+    // Default shares: the model's products, leaving out solvent-like species (1 M or more at the start).
+    let default: Vec<usize> = model
+        .products
+        .iter()
+        .cloned()
+        .filter(|&p| model.initial[p] < 1.0)
+        .collect();
+    let products = shares(model, opts.products.as_deref().unwrap_or(&default), y_dose);
     Ok(Plan {
         target: target.clone(),
         time,
@@ -371,10 +378,7 @@ fn dose(model: &Model, tr: &Trajectory, target: &Target, t: f64, y: &[f64]) -> D
 
 /// Species `which` formed at state `y` and their selectivities (shares of the total formed).
 fn shares(model: &Model, which: &[usize], y: &[f64]) -> Vec<Share> {
-    let formed: Vec<(usize, f64)> = which
-        .iter()
-        .map(|&p| (p, (y[p] - model.initial[p]).max(0.0)))
-        .collect();
+    let formed: Vec<(usize, f64)> = which.iter().map(|&p| (p, (y[p] - model.initial[p]).max(0.0))).collect();
     let total: f64 = formed.iter().map(|x| x.1).sum();
     formed
         .into_iter()
@@ -430,7 +434,8 @@ pub fn power_for_time(model: &Model, target: &Target, duration: f64, opts: &Plan
         });
     }
     // Bracket: lo has g > 0 (too slow), hi has g < 0 (too fast).
-    let (mut lo, mut hi): (Option<(f64, f64)>, Option<(f64, f64)>) = (None, None);
+    let mut lo: Option<(f64, f64)> = None;
+    let mut hi: Option<(f64, f64)> = None;
     let mut x = 0.0;
     let mut g = g0;
     drop(p0);
@@ -445,13 +450,21 @@ pub fn power_for_time(model: &Model, target: &Target, duration: f64, opts: &Plan
             break;
         }
         // Time ∝ 1/power as a guess; an unreachable target: ten times the light.
-        let step = if g.is_finite() { g * 1.2 + g.signum() * 0.01 } else { 10f64.ln() };
+        let step = if g.is_finite() {
+            g * 1.2 + g.signum() * 0.01
+        } else {
+            10f64.ln()
+        };
         x += step;
         if x.abs() > limit {
             return Err(Error::Numerical(format!(
                 "no light scale between 1e-9 and 1e9 times the file's reaches \"{}\" in the time asked{}",
                 target.text,
-                if g.is_finite() { "" } else { " (unreachable at every scale tried)" }
+                if g.is_finite() {
+                    ""
+                } else {
+                    " (unreachable at every scale tried)"
+                }
             )));
         }
         let (gn, pn) = eval(x)?;

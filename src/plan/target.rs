@@ -86,7 +86,12 @@ impl Target {
 pub fn limiting_reagent(model: &Model) -> Option<usize> {
     let n = model.n_species();
     let mut consumed = vec![false; n];
-    for net in model.reactions.iter().map(|r| &r.net).chain(model.outcomes.iter().map(|o| &o.net)) {
+    for net in model
+        .reactions
+        .iter()
+        .map(|r| &r.net)
+        .chain(model.outcomes.iter().map(|o| &o.net))
+    {
         for &(s, v) in net {
             if v < 0.0 {
                 consumed[s] = true;
@@ -191,8 +196,13 @@ pub fn parse(text: &str, model: &Model) -> Result<Target> {
             }
         }
     } else {
-        let level = units::parse(rest, Quantity::Concentration)
-            .map_err(|e| usage(format!("{}; expected {}", e.problem, Quantity::Concentration.accepted())))?;
+        let level = units::parse(rest, Quantity::Concentration).map_err(|e| {
+            usage(format!(
+                "{}; expected {}",
+                e.problem,
+                Quantity::Concentration.accepted()
+            ))
+        })?;
         (level, Basis::Absolute)
     };
     if level < 0.0 {

@@ -122,7 +122,11 @@ pub fn target_meaning(plan: &Plan) -> String {
     match &t.basis {
         Basis::Absolute => format!("{} {cmp} {lvl}", t.species_name),
         Basis::OfInitial { fraction } => {
-            format!("{} {cmp} {} % of its start ({lvl})", t.species_name, sig(fraction * 100.0, 4))
+            format!(
+                "{} {cmp} {} % of its start ({lvl})",
+                t.species_name,
+                sig(fraction * 100.0, 4)
+            )
         }
         Basis::YieldOf {
             reference,
@@ -284,7 +288,11 @@ pub fn text(s: &PlanSummary) -> String {
     let _ = writeln!(
         o,
         "photons {}:",
-        if s.reached { "to the target" } else { "to the closest approach" }
+        if s.reached {
+            "to the target"
+        } else {
+            "to the closest approach"
+        }
     );
     let _ = writeln!(
         o,
@@ -318,13 +326,14 @@ pub fn text(s: &PlanSummary) -> String {
             sig(e.efficiency * 100.0, 3),
             power_text(e.power),
             energy(e.energy),
-            e.per_mol.map_or(String::new(), |v| format!(" ({} per {what})", energy(v)))
+            e.per_mol
+                .map_or(String::new(), |v| format!(" ({} per {what})", energy(v)))
         );
     }
     if let Some(p) = &s.power {
         let _ = writeln!(
             o,
-            "light needed to reach the target in {}: {} × the file's light (root solve on log power, |t/T − 1| < {}, \
+            "light needed to reach the target in {}: {} × the file's light (root solve on log power, |t/T − 1| < {:e}, \
              {} plans)",
             format_time(p.duration),
             sig(p.scale, 5),
@@ -351,7 +360,15 @@ pub fn text(s: &PlanSummary) -> String {
     }
     let formed: Vec<_> = s.products.iter().filter(|p| p.formed > 0.0).collect();
     if !formed.is_empty() {
-        let _ = writeln!(o, "products {}:", if s.reached { "at the target" } else { "at the closest approach" });
+        let _ = writeln!(
+            o,
+            "products {}:",
+            if s.reached {
+                "at the target"
+            } else {
+                "at the closest approach"
+            }
+        );
         for p in formed {
             let _ = writeln!(
                 o,
@@ -725,7 +742,10 @@ pub fn network_fit_text(fit: &NetworkFit, species: &str, step: &str) -> String {
         fit.iterations
     );
     if fit.points < 2 {
-        let _ = writeln!(o, "  one point: the flux is solved exactly and no uncertainty can be given");
+        let _ = writeln!(
+            o,
+            "  one point: the flux is solved exactly and no uncertainty can be given"
+        );
     } else {
         let _ = writeln!(
             o,
