@@ -303,14 +303,19 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
     }
     let fit = act::fit_flux(&model, sp, &data)?;
     let origin = format!(
-        "photon flux fitted to the conversion of {} by \"{}\" ({} points, {})",
+        "photon flux fitted to the conversion of {} by \"{}\" ({} points, {}){}",
         net.species[sp].name,
         a.step,
         fit.points,
         a.data
             .file_name()
             .map(|f| f.to_string_lossy().to_string())
-            .unwrap_or_default()
+            .unwrap_or_default(),
+        if net.lights.len() > 1 {
+            "; all sources scaled by one factor"
+        } else {
+            ""
+        }
     );
     let mut blocks = String::new();
     for (s, src) in net.lights.iter().enumerate() {

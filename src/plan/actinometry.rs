@@ -138,6 +138,12 @@ pub fn ferrioxalate_yield(t: YieldTable, s: Strength, wavelength: f64) -> Result
     let i = pts.iter().position(|p| p.0 > nm).unwrap_or(pts.len() - 1).max(1);
     let (a, b) = (pts[i - 1], pts[i]);
     let v = a.1 + (b.1 - a.1) * (nm - a.0) / (b.0 - a.0);
+    if a.1 == b.1 {
+        return Ok((
+            Measured { value: v, sigma },
+            format!("one value for {}–{} nm, {strength}, from {}", a.0, b.0, t.citation()),
+        ));
+    }
     Ok((
         Measured { value: v, sigma },
         format!(

@@ -749,7 +749,8 @@ pub fn network_fit_text(fit: &NetworkFit, species: &str, step: &str) -> String {
     } else {
         let _ = writeln!(
             o,
-            "  uncertainty from the residual scatter and the slope (first order, n − 1 degrees of freedom)"
+            "  uncertainty from the residual scatter and the slope (first order, n − 1 degrees of freedom); the \
+             network's quantum yields and ε are taken as exact"
         );
     }
     o
