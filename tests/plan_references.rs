@@ -374,3 +374,84 @@ fn sweep_runs_in_order_and_reports_selectivity() {
         assert_eq!(pts[i].plan.as_ref().unwrap().products[0].selectivity, 1.0);
     }
 }
+
+#[test]
+fn periodic_state_under_a_daily_schedule_is_found_unreachable() {
+    // The switch above with a thermal Z -> E: under 6 sun-hours a day the state becomes periodic
+    // (Z rises by day, falls by night) and never reaches 40 µM (above the photostationary 33 µM).
+    let n = net(r#"
+[about]
+name = "invented switch with a dark return"
+description = "invented test network"
+provenance = "invented"
+invented = true
+[conditions]
+temperature = "298.15 K"
+volume = "3 mL"
+path_length = "1 cm"
+[[light]]
+name = "line"
+kind = "line"
+wavelength = "365 nm"
+photon_flux = "1e-8 einstein/s"
+[[species]]
+name = "E"
+initial = "50 µM"
+epsilon = { wavelength_unit = "nm", unit = "L/(mol cm)", points = [[300, 20000], [400, 20000]] }
+[[species]]
+name = "Z"
+epsilon = { wavelength_unit = "nm", unit = "L/(mol cm)", points = [[300, 5000], [400, 5000]] }
+[[photo]]
+equation = "E -> Z"
+quantum_yield = 0.2
+[[photo]]
+equation = "Z -> E"
+quantum_yield = 0.4
+[[thermal]]
+equation = "Z -> E"
+rate = { k = "1e-4 /s" }
+"#);
+    let m = Model::compile(&n);
+    let target = plan::target::parse("Z > 40 µM", &m).unwrap();
+    let opts = PlanOptions {
+        schedule: Some(Schedule::daily(6.0)),
+        ..PlanOptions::default()
+    };
+    let p = plan::time_to_target(&m, &target, &opts).unwrap();
+    let u = p.unreachable.expect("unreachable");
+    assert_eq!(
+        u.why,
+        Why::Photostationary,
+        "a periodic light-driven state, not the horizon"
+    );
+    assert!(
+        u.best_level < 50e-6 * 2.0 / 3.0 && u.best_level > 20e-6,
+        "{}",
+        u.best_level
+    );
+    assert!(
+        u.horizon < 1e4 * 86400.0,
+        "found long before the horizon: {} s",
+        u.horizon
+    );
+}
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig::with_cases(24))]
+    /// Purely photochemical A -> P: time ∝ 1/power at any optical density (the right-hand side
+    /// is q times a function of c; Beer–Lambert for the absorbed fraction), and the plan's time
+    /// equals the closed form.
+    #[test]
+    fn one_over_power_and_closed_form_hold_for_random_cells(
+        log_eps in 0.0f64..4.0, log_c in -5.0f64..-2.0, phi in 0.05f64..1.0, s in 0.1f64..10.0, f in 0.05f64..0.95
+    ) {
+        let (eps, c0, q) = (10f64.powf(log_eps), 10f64.powf(log_c), 1e-8);
+        let m = a_to_p(eps, c0, q, phi);
+        let target = format!("P > {} %", f * 100.0);
+        let t1 = plan_time(&m, &target);
+        let ts = plan_time(&m.with_light_scale(s), &target);
+        proptest::prop_assert!(rel(ts, t1 / s) < 1e-6, "{} {}", t1, ts);
+        let expect = closed_form(eps, c0, (1.0 - f) * c0, q, phi, 3e-3);
+        proptest::prop_assert!(rel(t1, expect) < 1e-6, "{} vs {}", t1, expect);
+    }
+}
