@@ -89,3 +89,65 @@ fn unreachable_target_says_why_with_the_level_reached() {
     let best = js["unreachable"]["best_level"].as_f64().unwrap();
     assert!(best > 0.0 && best < 49e-6, "{best}");
 }
+
+#[test]
+fn sweep_writes_csv_and_well_formed_svg() {
+    let dir = std::env::temp_dir().join(format!("photoledger-plan-sweep-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    let out = Command::new(env!("CARGO_BIN_EXE_photoledger"))
+        .arg("plan")
+        .arg(concat!(env!("CARGO_MANIFEST_DIR"), "/networks/flow-cyclization.toml"))
+        .args([
+            "--target",
+            "product > 50 %",
+            "--sweep",
+            "power=0.1W..3W:4",
+            "--products",
+            "product,degradate",
+        ])
+        .arg("--out")
+        .arg(&dir)
+        .output()
+        .expect("runs");
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let csv = std::fs::read_to_string(dir.join("sweep.csv")).unwrap();
+    let rows: Vec<&str> = csv.lines().collect();
+    assert_eq!(rows.len(), 5, "{csv}");
+    assert!(rows[0].starts_with("total power (W),time to target (s)"));
+    // Times fall as the power rises.
+    let t: Vec<f64> = rows[1..]
+        .iter()
+        .map(|r| r.split(',').nth(1).unwrap().parse().unwrap())
+        .collect();
+    assert!(t.windows(2).all(|w| w[1] < w[0]), "{t:?}");
+    for f in ["sweep.svg", "selectivity.svg"] {
+        let svg = std::fs::read_to_string(dir.join(f)).unwrap();
+        roxmltree::Document::parse(&svg).unwrap_or_else(|e| panic!("{f}: {e}"));
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn simulate_stop_when_shares_the_target_syntax() {
+    let dir = std::env::temp_dir().join(format!("photoledger-plan-stop-{}", std::process::id()));
+    let out = Command::new(env!("CARGO_BIN_EXE_photoledger"))
+        .arg("simulate")
+        .arg(concat!(env!("CARGO_MANIFEST_DIR"), "/networks/photoswitch.toml"))
+        .args(["--until", "1 h", "--stop-when", "E-azo < 80 %", "--json"])
+        .arg("--out")
+        .arg(&dir)
+        .output()
+        .expect("runs");
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let bad = Command::new(env!("CARGO_BIN_EXE_photoledger"))
+        .arg("simulate")
+        .arg(concat!(env!("CARGO_MANIFEST_DIR"), "/networks/photoswitch.toml"))
+        .args(["--until", "1 h", "--stop-when", "nothing < 80 %"])
+        .arg("--out")
+        .arg(&dir)
+        .output()
+        .expect("runs");
+    assert_eq!(bad.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&bad.stderr).contains("--stop-when"));
+    let _ = std::fs::remove_dir_all(&dir);
+}
