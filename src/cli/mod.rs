@@ -4,11 +4,13 @@
 //! 2 usage error (bad arguments, unknown --set key), 3 a file could not be read or written,
 //! 4 a numerical engine could not finish.
 
+mod actinometer;
 mod barrier;
 mod bench;
 mod check;
 mod diagram;
 mod ledger;
+mod plan;
 mod simulate;
 mod uncertainty;
 
@@ -56,6 +58,12 @@ enum Command {
     /// Propagate uncertain values ([[uncertain]] entries or a fit's covariance) through the chain
     /// analysis and the kinetics: quantiles, what drives each output, histograms.
     Uncertainty(Box<uncertainty::UncertaintyArgs>),
+    /// How long to irradiate to reach a target, with the photons and energy it takes; the light
+    /// or flow rate for a given time; days of sunlight; sweeps.
+    Plan(Box<plan::PlanArgs>),
+    /// Photon flux from actinometry (ferrioxalate, or any photoreaction of a network), as a
+    /// [[light]] block for a network file.
+    Actinometer(actinometer::ActinometerArgs),
     /// Draw the network as SVG (species, transients, thermal and photochemical steps).
     Diagram {
         #[command(flatten)]
@@ -86,6 +94,8 @@ pub fn run() -> i32 {
         Command::Barrier(a) => barrier::run(&a),
         Command::Ledger(a) => ledger::run(&a),
         Command::Uncertainty(a) => uncertainty::run(&a),
+        Command::Plan(a) => plan::run(&a),
+        Command::Actinometer(a) => actinometer::run(&a),
     };
     match result {
         Ok(()) => 0,
