@@ -425,4 +425,5 @@ fn accepted_specs_read_in_internal_units() {
         (ps[0].unit.as_str(), ps[1].unit.as_str(), ps[2].unit.as_str()),
         ("K", "W", "M")
     );
+    assert_eq!(ps[1].written, "normal = \"10 mW ± 10 %\"");
 }

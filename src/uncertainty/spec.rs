@@ -422,10 +422,7 @@ pub fn read(loaded: &Loaded) -> Result<Vec<Parameter>> {
             Origin::Span(s) => Some(crate::error::line_col(&loaded.text, s.start).0),
             _ => None,
         };
-        let written = match &at {
-            Origin::Span(sp) => written(&loaded.text[sp.clone()]),
-            _ => String::new(),
-        };
+        let written = written(&loaded.text, e.get_ref());
         out.push(Parameter {
             key,
             unit: q.map(units::internal_spelling).unwrap_or_default(),
@@ -441,16 +438,16 @@ pub fn read(loaded: &Loaded) -> Result<Vec<Parameter>> {
     }
 }
 
-/// The distribution line of an entry's text, e.g. `normal = "2.8 kcal/mol ± 1 kcal/mol"`.
-fn written(entry: &str) -> String {
-    entry
-        .lines()
-        .map(str::trim)
-        .find(|l| {
-            ["normal", "uniform", "beta", "lognormal"]
-                .iter()
-                .any(|w| l.starts_with(w))
-        })
-        .unwrap_or("")
-        .to_string()
+/// The distribution as written, e.g. `normal = "2.8 kcal/mol ± 1 kcal/mol"`.
+fn written(text: &str, u: &Uncertain) -> String {
+    let spans = [
+        ("normal", u.normal.as_ref().map(|v| v.span())),
+        ("uniform", u.uniform.as_ref().map(|v| v.span())),
+        ("beta", u.beta.as_ref().map(|v| v.span())),
+        ("lognormal", u.lognormal.as_ref().map(|v| v.span())),
+    ];
+    spans
+        .into_iter()
+        .find_map(|(w, s)| Some(format!("{w} = {}", text.get(s?)?.trim())))
+        .unwrap_or_default()
 }
