@@ -17,6 +17,7 @@ pub mod model;
 pub mod network;
 pub mod rates;
 pub mod report;
+pub mod study;
 pub mod units;
 
 pub use error::{Diagnostic, Error, Result};

@@ -9,6 +9,7 @@ mod bench;
 mod check;
 mod diagram;
 mod ledger;
+mod report;
 mod simulate;
 
 use clap::{Parser, Subcommand};
@@ -52,6 +53,8 @@ enum Command {
     Simulate(simulate::SimulateArgs),
     /// Follow one molecule as an absorbing Markov chain: yields, cycles, photons per product.
     Ledger(ledger::LedgerArgs),
+    /// Write one self-contained HTML study report: diagram, kinetics, photon ledger, chain, barriers.
+    Report(report::ReportArgs),
     /// Draw the network as SVG (species, transients, thermal and photochemical steps).
     Diagram {
         #[command(flatten)]
@@ -81,6 +84,7 @@ pub fn run() -> i32 {
         Command::Bench(a) => bench::run(&a),
         Command::Barrier(a) => barrier::run(&a),
         Command::Ledger(a) => ledger::run(&a),
+        Command::Report(a) => report::run(&a),
     };
     match result {
         Ok(()) => 0,

@@ -1,0 +1,147 @@
+//! A study of one network: every engine that applies, run in turn, with the results kept
+//! together for a report. Pure: no file I/O and no printing (the `report` command writes).
+//!
+//! Kinetics always run; the single-molecule chain runs when the network has an end a molecule
+//! can reach (a closed photoswitch has none, and the study says why instead); barrier verdicts
+//! run when a window is asked for.
+
+use crate::barrier::{self, Verdict};
+use crate::chain::build::{self, Settings, Values};
+use crate::chain::{self, Analysis, sensitivity};
+use crate::error::Result;
+use crate::kinetics::{self, Trajectory};
+use crate::model::Model;
+use crate::network::Network;
+use crate::report::chain::{self as chain_report, Summary};
+
+/// What to run.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct StudyOptions {
+    /// Irradiation time, s (None: three times the chain's mean time to an end, rounded up to
+    /// a round number, or one hour when the chain does not apply).
+    pub until: Option<f64>,
+    /// Window for barrier verdicts, s (None: no verdicts).
+    pub barrier_window: Option<f64>,
+}
+
+/// Probability of crossing asked of every barrier verdict in a study.
+pub const BARRIER_PROBABILITY: f64 = 0.5;
+
+/// The chain analysis of one molecule, as the `ledger` command finds it with its defaults.
+#[derive(Debug, Clone)]
+pub struct ChainStudy {
+    /// The analysis (the photon-count distribution included).
+    pub analysis: Analysis,
+    /// Ends, cycles, visits and sorted sensitivities.
+    pub summary: Summary,
+}
+
+/// Barrier verdicts on every step with a rate.
+#[derive(Debug, Clone)]
+pub struct BarrierStudy {
+    /// The window, s.
+    pub window: f64,
+    /// The probability of crossing asked for.
+    pub probability: f64,
+    /// One verdict per step or channel with a rate.
+    pub rows: Vec<Verdict>,
+}
+
+/// Everything a study found.
+#[derive(Debug, Clone)]
+pub struct Study {
+    /// Irradiation time used, s.
+    pub until: f64,
+    /// How that time was chosen (for the report).
+    pub until_reason: String,
+    /// The kinetics run, with the photon ledger in its states.
+    pub kinetics: Trajectory,
+    /// The chain, or why it does not apply to this network.
+    pub chain: std::result::Result<ChainStudy, String>,
+    /// Barrier verdicts, when a window was given.
+    pub barrier: Option<BarrierStudy>,
+}
+
+/// A round duration at least `t` s: 1, 2 or 5 times a power of ten of s, min, h or d.
+pub fn round_up_duration(t: f64) -> f64 {
+    let unit = if t >= 2.0 * 86_400.0 {
+        86_400.0
+    } else if t >= 2.0 * 3600.0 {
+        3600.0
+    } else if t >= 120.0 {
+        60.0
+    } else {
+        1.0
+    };
+    let v = t / unit;
+    let p = 10f64.powf(v.log10().floor());
+    let m = [1.0, 2.0, 5.0, 10.0]
+        .into_iter()
+        .find(|m| m * p >= v * (1.0 - 1e-12))
+        .unwrap_or(10.0);
+    m * p * unit
+}
+
+/// The chain as `ledger` builds it by default: stirred-cell light at the initial
+/// concentrations, from the initial mixture.
+fn chain_study(model: &Model, net: &Network) -> Result<ChainStudy> {
+    let settings = Settings::default();
+    let values = Values::of(model, net);
+    let ch = build::build(model, net, &settings, &values)?;
+    let (start, note) = build::start(model, &ch, None)?;
+    let analysis = chain::analyse(&ch, &start, &chain::Options::default())?;
+    let sens = sensitivity::sensitivities(model, net, &settings, &start)?;
+    let summary = chain_report::summary(&net.about.name, &ch, &analysis, &note, &model.products, sens);
+    Ok(ChainStudy { analysis, summary })
+}
+
+/// Run the study of `net` (compiled as `model`).
+pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
+    let chain = chain_study(model, net).map_err(|e| e.to_string());
+    let (until, until_reason) = match (opts.until, &chain) {
+        (Some(t), _) => (t, "as asked (--until)".to_string()),
+        (None, Ok(c)) if c.summary.time_mean_s.is_finite() && c.summary.time_mean_s > 0.0 => (
+            round_up_duration(3.0 * c.summary.time_mean_s),
+            format!(
+                "three times the mean time a molecule takes to reach an end ({}), rounded up; set it with --until",
+                crate::units::format_time(c.summary.time_mean_s)
+            ),
+        ),
+        (None, _) => (
+            3600.0,
+            "one hour, the default when the single-molecule chain does not apply; set it with --until".into(),
+        ),
+    };
+    let kinetics = kinetics::simulate(model, &kinetics::Options::until(until), &mut |_| {})?;
+    let barrier = match opts.barrier_window {
+        Some(window) => Some(BarrierStudy {
+            window,
+            probability: BARRIER_PROBABILITY,
+            rows: barrier::network_verdicts(net, window, BARRIER_PROBABILITY)?,
+        }),
+        None => None,
+    };
+    Ok(Study {
+        until,
+        until_reason,
+        kinetics,
+        chain,
+        barrier,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::round_up_duration;
+
+    #[test]
+    fn durations_round_up_to_round_numbers() {
+        assert_eq!(round_up_duration(0.7), 1.0);
+        assert_eq!(round_up_duration(3.0), 5.0);
+        assert_eq!(round_up_duration(45.0), 50.0);
+        assert_eq!(round_up_duration(300.0), 300.0); // 5 min
+        assert_eq!(round_up_duration(8.67 * 3600.0), 10.0 * 3600.0);
+        assert_eq!(round_up_duration(3.0 * 86_400.0), 5.0 * 86_400.0);
+        assert_eq!(round_up_duration(2.0 * 3600.0), 2.0 * 3600.0);
+    }
+}
