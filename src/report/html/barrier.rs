@@ -38,7 +38,11 @@ pub fn section(b: &BarrierStudy, temperature: f64) -> String {
                 } else {
                     "never".into()
                 }),
-                esc(&r.words())
+                esc(&if r.crosses() || r.rate <= 0.0 {
+                    r.words()
+                } else {
+                    format!("too slow by a factor {}", sig(r.factor, 3))
+                })
             )
         })
         .collect();

@@ -27,8 +27,10 @@ pub fn section(net: &Network, model: &Model, study: &Study) -> String {
         false,
     ));
     let last = tr.last();
+    // The unit suits the solutes: solvent-like species (1 M or more) would push it to M.
     let max = (0..model.n_species())
         .map(|i| model.initial[i].abs().max(last[i].abs()))
+        .filter(|c| *c < 1.0)
         .fold(0.0, f64::max);
     let (f, u) = pick_unit(max, &CONCENTRATION);
     let rows: Vec<String> = (0..model.n_species())

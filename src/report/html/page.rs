@@ -68,7 +68,9 @@ table { border-collapse: collapse; margin: 10px 0 6px; font-family: var(--sans);
 caption { caption-side: top; text-align: left; font-size: 14px; color: var(--muted); padding-bottom: 6px; }
 th, td { padding: 5px 12px; border-bottom: 1px solid #ebe8df; vertical-align: top; }
 thead th { border-bottom: 2px solid var(--rule); text-align: left; font-weight: 600; background: #faf9f5; }
-th.num, td.num { text-align: right; white-space: nowrap; }
+th.num { text-align: right; } td.num { text-align: right; white-space: nowrap; }
+thead th { max-width: 13em; }
+td:first-child { min-width: 9em; }
 tbody tr:nth-child(even) td { background: #fcfbf8; }
 td.yes { color: var(--accent); } td.no { color: var(--warn); }
 footer { font-family: var(--sans); font-size: 13px; color: var(--muted); text-align: center; margin-top: 28px; }

@@ -336,8 +336,8 @@ pub fn section(model: &Model, tr: &Trajectory) -> String {
             &[
                 ("product", false),
                 (&hf, true),
-                ("photons absorbed per molecule formed (photons)", true),
-                ("apparent quantum yield (mol/einstein)", true),
+                ("photons per molecule formed (photons)", true),
+                ("apparent Φ (mol/einstein)", true),
             ],
             &rows,
         ));
