@@ -16,6 +16,7 @@ png="${2:-target/report-screenshot.png}"
 width=1280
 height=2000
 mkdir -p "$(dirname "$png")"
+html_arg="${png%.png}.html" # as given, so the command shown in the report stays short
 png="$(cd "$(dirname "$png")" && pwd)/$(basename "$png")"
 html="${png%.png}.html"
 
@@ -28,7 +29,7 @@ if ! command -v chromium >/dev/null 2>&1; then
   fi
 fi
 
-cargo run --release --quiet -- report "$network" --barrier-window "1 h" -o "$html"
+cargo run --release --quiet -- report "$network" --barrier-window "1 h" -o "$html_arg"
 
 profile="$(mktemp -d)"
 trap 'rm -rf "$profile"' EXIT

@@ -3,7 +3,6 @@
 use super::escape::esc;
 use super::page::{self, num_cell, text_cell};
 use super::{TIME, pick_unit};
-use crate::report::barrier::duration;
 use crate::study::BarrierStudy;
 use crate::units::sig;
 
@@ -13,7 +12,7 @@ pub fn section(b: &BarrierStudy, temperature: f64) -> String {
         "<p>Every thermal step and rate channel at {} K against a window of {}, asking for a {} % chance of \
          crossing.</p>\n",
         esc(&sig(temperature, 5)),
-        esc(&duration(b.window)),
+        esc(&crate::units::format_time(b.window)),
         esc(&sig(100.0 * b.probability, 3))
     );
     if b.rows.is_empty() {
