@@ -109,7 +109,7 @@ pub fn section(chain: &Result<ChainStudy, String>) -> String {
             caption.push_str("; cut at the photon limit before its tail bound");
         }
         caption.push('.');
-        s.push_str(&figure(&inline_svg(&svg, "hist"), &caption, false));
+        s.push_str(&figure(&inline_svg(&svg, "hist"), &caption));
     }
     let main = (0..sm.ends.len())
         .max_by(|&i, &j| sm.ends[i].yield_fraction.total_cmp(&sm.ends[j].yield_fraction))

@@ -11,6 +11,5 @@ pub fn section(net: &Network) -> String {
         &svg,
         "Species, transients and steps, each step carrying its numbers (rate constant, ΔG‡, Φ); the legend names \
          the arrow styles. Laid out by photoledger itself.",
-        false,
     )
 }

@@ -24,7 +24,6 @@ pub fn section(net: &Network, model: &Model, study: &Study) -> String {
         &svg,
         "Concentration of every species against time; species at 1 M or more (solvent-like) are left out of the \
          plot so the others stay readable.",
-        false,
     ));
     let last = tr.last();
     // The unit suits the solutes: solvent-like species (1 M or more) would push it to M.
@@ -78,7 +77,11 @@ pub fn run_section(model: &Model, study: &Study, meta: &Meta) -> String {
         "<li>Kinetics: {} — {}; stopped at {}; {} steps ({} rejected), {} right-hand-side evaluations; \
          relative tolerance 1e-6, absolute 1e-12 mol/L.</li>\n",
         esc(method),
-        esc(&tr.method_reason),
+        // The reason starts with the method's short name ("Dop853: not stiff …").
+        esc(tr
+            .method_reason
+            .split_once(": ")
+            .map_or(tr.method_reason.as_str(), |(_, r)| r)),
         esc(&stop),
         tr.counts.steps,
         tr.counts.rejected,

@@ -58,9 +58,8 @@ section.part { background: var(--sheet); border: 1px solid var(--rule); border-r
 .caution ul { margin: 4px 0 4px 1.1em; padding: 0; }
 .missing { font-style: italic; color: var(--muted); }
 figure { margin: 14px 0; }
-figure .figure-svg { display: block; width: 100%; height: auto; max-width: 100%; border: 1px solid #ecebe6;
+figure .figure-svg { display: block; max-width: 100%; height: auto; margin: 0 auto; border: 1px solid #ecebe6;
   border-radius: 4px; background: #fff; }
-figure.narrow .figure-svg { max-width: 760px; }
 figcaption { font-size: 14px; color: var(--muted); margin-top: 6px; font-family: var(--sans); }
 .scroll { overflow-x: auto; }
 table { border-collapse: collapse; margin: 10px 0 6px; font-family: var(--sans); font-size: 14px;
@@ -118,10 +117,9 @@ pub fn assumption(text: &str) -> String {
 }
 
 /// A figure holding an inline SVG (already made inline) with its caption.
-pub fn figure(svg_inline: &str, caption: &str, narrow: bool) -> String {
+pub fn figure(svg_inline: &str, caption: &str) -> String {
     format!(
-        "<figure{}>\n{svg_inline}\n<figcaption>{}</figcaption>\n</figure>\n",
-        if narrow { " class=\"narrow\"" } else { "" },
+        "<figure>\n{svg_inline}\n<figcaption>{}</figcaption>\n</figure>\n",
         esc(caption)
     )
 }

@@ -187,7 +187,6 @@ pub fn section(model: &Model, tr: &Trajectory) -> String {
             "ledger-in",
         ),
         "Each bar is one light source's incident photons (100 %), split by where they ended.",
-        false,
     ));
     let absorber_bars: Vec<Bar> = l
         .by_absorber
@@ -217,7 +216,6 @@ pub fn section(model: &Model, tr: &Trajectory) -> String {
             "Each bar is the photons one absorber took (100 %): productive photons changed the molecule; returned ones \
              left it as it was (return channels and the unreactive remainder of the quantum yields). An absorber with \
              no photochemistry returns every photon.",
-            false,
         ));
     }
     // Tables with the numbers.
