@@ -56,6 +56,9 @@ pub struct Study {
     pub until_reason: String,
     /// The kinetics run, with the photon ledger in its states.
     pub kinetics: Trajectory,
+    /// True when the output times are spaced logarithmically because most of the change
+    /// happens early ([`front_loaded`]); plots then use a log time axis.
+    pub log_time: bool,
     /// The chain, or why it does not apply to this network.
     pub chain: std::result::Result<ChainStudy, String>,
     /// Barrier verdicts, when a window was given.
@@ -80,6 +83,35 @@ pub fn round_up_duration(t: f64) -> f64 {
         .find(|m| m * p >= v * (1.0 - 1e-12))
         .unwrap_or(10.0);
     m * p * unit
+}
+
+/// True when every species that changes noticeably (by more than 1e-3 of the largest
+/// concentration) has made 90 % of its net change within the first tenth of the run: a linear
+/// time axis would squeeze the dynamics against its left edge.
+pub fn front_loaded(tr: &Trajectory, n_species: usize) -> bool {
+    let (Some(first), Some(last)) = (tr.states.first(), tr.states.last()) else {
+        return false;
+    };
+    let t_end = *tr.times.last().unwrap_or(&0.0);
+    let Some(k) = tr.times.iter().position(|t| *t >= 0.1 * t_end) else {
+        return false;
+    };
+    let scale = first[..n_species]
+        .iter()
+        .chain(&last[..n_species])
+        .fold(0.0f64, |a, b| a.max(b.abs()));
+    let mut changed = 0;
+    for i in 0..n_species {
+        let total = last[i] - first[i];
+        if total.abs() <= 1e-3 * scale {
+            continue;
+        }
+        changed += 1;
+        if (tr.states[k][i] - first[i]) / total < 0.9 {
+            return false;
+        }
+    }
+    changed > 0
 }
 
 /// The chain as `ledger` builds it by default: stirred-cell light at the initial
@@ -112,7 +144,13 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
             "one hour, the default when the single-molecule chain does not apply; set it with --until".into(),
         ),
     };
-    let kinetics = kinetics::simulate(model, &kinetics::Options::until(until), &mut |_| {})?;
+    let mut kinetics = kinetics::simulate(model, &kinetics::Options::until(until), &mut |_| {})?;
+    let log_time = front_loaded(&kinetics, model.n_species());
+    if log_time {
+        let mut o = kinetics::Options::until(until);
+        o.log_time = true;
+        kinetics = kinetics::simulate(model, &o, &mut |_| {})?;
+    }
     let barrier = match opts.barrier_window {
         Some(window) => Some(BarrierStudy {
             window,
@@ -125,6 +163,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
         until,
         until_reason,
         kinetics,
+        log_time,
         chain,
         barrier,
     })

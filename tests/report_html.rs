@@ -215,6 +215,8 @@ fn sections_follow_what_was_asked_and_what_applies() {
     assert!(!page.contains("href=\"#barriers\""));
     // The photoswitch has no end a molecule can reach: the chain section says so.
     assert!(page.contains("does not apply to this network"), "photoswitch chain");
+    // It reaches its photostationary state in the first minute: the time axis turns logarithmic.
+    assert!(page.contains("Time on a log scale"), "photoswitch time axis");
     // The pool has one: its table, histogram and sensitivities are there, and the run length
     // defaults to a multiple of the molecule's mean time.
     let page = render("networks/prebiotic-pool.toml", &[], &scratch);
@@ -226,6 +228,10 @@ fn sections_follow_what_was_asked_and_what_applies() {
     ] {
         assert!(page.contains(want), "pool: {want}");
     }
+    assert!(
+        !page.contains("Time on a log scale"),
+        "the pool changes over the whole run"
+    );
     let wide = |p: &str| p.contains("ultraviolet");
     assert!(wide(&page), "sunlight below 400 nm is named as ultraviolet");
 }

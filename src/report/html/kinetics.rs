@@ -19,12 +19,15 @@ pub fn section(net: &Network, model: &Model, study: &Study) -> String {
         esc(&format_time(end)),
         esc(&study.until_reason)
     );
-    let svg = inline_svg(&simulation::concentrations_svg(net, model, tr, false), "conc");
-    s.push_str(&figure(
-        &svg,
+    let svg = inline_svg(&simulation::concentrations_svg(net, model, tr, study.log_time), "conc");
+    let mut caption = String::from(
         "Concentration of every species against time; species at 1 M or more (solvent-like) are left out of the \
          plot so the others stay readable.",
-    ));
+    );
+    if study.log_time {
+        caption.push_str(" Time on a log scale: most of the change happens in the first tenth of the run.");
+    }
+    s.push_str(&figure(&svg, &caption));
     let last = tr.last();
     // The unit suits the solutes: solvent-like species (1 M or more) would push it to M.
     let max = (0..model.n_species())
