@@ -235,9 +235,9 @@ fn a_to_b_optically_thick_is_zero_order() {
 // Both absorb; species i takes q₀ g(A) ε_i l c_i, so d[A]/dt = (q₀ g(A) l / V)
 // (−ε_A Φ_AB [A] + ε_B Φ_BA [B]) and at the photostationary state
 // [B]/[A] = ε_A Φ_AB / (ε_B Φ_BA), whatever the optical density or background absorbance.
-// Source: "photostationary state" as defined in Braslavsky (author `from memory`), Glossary
-// of terms used in photochemistry, 3rd edition (IUPAC Recommendations 2006), Pure Appl.
-// Chem. 79 (2007) 293; the derivation as in Klán & Wirz, Photochemistry of Organic Compounds: From Concepts to
+// Source: "photostationary state" as defined in S. E. Braslavsky (prepared for publication),
+// Glossary of terms used in photochemistry, 3rd edition (IUPAC Recommendations 2006), Pure
+// Appl. Chem. 79 (2007) 293 (authorship checked against the glossary's title page); the derivation as in Klán & Wirz, Photochemistry of Organic Compounds: From Concepts to
 // Practice (Wiley, 2009), the section on photostationary states (`from memory`).
 // ---------------------------------------------------------------------------------------
 
@@ -445,8 +445,9 @@ quantum_yield = 0.5
 // substrate → S1 on absorption; S1 → product (k_r), S1 → substrate (k_d), and
 // S1 + Q → substrate + Q (k_q). The excited state's fate is decided by competing rates, so
 // the quantum yield of product is Φ = k_r / (k_r + k_d + k_q [Q]) and
-// Φ₀/Φ = 1 + k_q τ₀ [Q] with τ₀ = 1/(k_r + k_d): Stern & Volmer, Phys. Z. 20 (1919) 183
-// (`from memory`). With [Q] constant (a quencher is not consumed) part 1's closed form holds
+// Φ₀/Φ = 1 + k_q τ₀ [Q] with τ₀ = 1/(k_r + k_d): IUPAC Compendium of Chemical Terminology
+// (Gold Book), "Stern–Volmer kinetic relationships", doi:10.1351/goldbook.S06004, equation (2)
+// (checked); the original paper, Stern & Volmer, Phys. Z. 20 (1919) 183 (`from memory`). With [Q] constant (a quencher is not consumed) part 1's closed form holds
 // with Φ in place of Φ_AB, and in the thin limit the substrate decays first order with
 // k = ln(10) Φ ε l q₀ / V.
 // ---------------------------------------------------------------------------------------

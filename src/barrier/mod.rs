@@ -251,7 +251,7 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
                     let name = format!("{name} [quenched by {}]", net.species[*partner].name);
                     out.push(row(name, StepKind::Quenching, law, 2, rate));
                 }
-                Branching::Fraction(_) | Branching::Rest => {}
+                Branching::Fraction(_) | Branching::Rest | Branching::Hot { .. } => {}
             }
         }
     }

@@ -2,9 +2,10 @@
 //! [`Network`].
 //!
 //! Rates come from the model (reaction rate constants, ε per bin, photon bins, base yields per
-//! bin) and the transients' channel shares follow the same rule as the model's collapse: fixed
-//! fractions as given ("rest" is what the others leave), rates normalised by the transient's
-//! total rate, quenching at k₂ [partner]. Nothing is re-derived from the file.
+//! bin) and the transients' channel shares follow the model's collapse through the one shared
+//! rule, [`crate::model::transients::ShareTotals`], applied to the (possibly perturbed) values:
+//! fixed fractions as given ("rest" is what the others leave), rates normalised by the
+//! transient's total rate, quenching at k₂ [partner]. Nothing is re-derived from the file.
 //!
 //! Where the molecule goes when a step has several products: to the first product written
 //! (write the species you follow first). Photon absorption per molecule, s⁻¹, either
@@ -20,6 +21,7 @@ use super::{Chain, Counted, StateKind};
 use crate::error::{Error, Result};
 use crate::model::Model;
 use crate::model::absorption::g;
+use crate::model::transients::{ShareInput, ShareTotals};
 use crate::network::{Branching, Network, PhotoOutcome, Target};
 use crate::rates::RateLaw;
 use crate::units::constants::{AVOGADRO, cross_section_m2};
@@ -103,7 +105,7 @@ impl Values {
                     t.channels
                         .iter()
                         .map(|c| match c.branching {
-                            Branching::Fraction(x) => x,
+                            Branching::Fraction(x) | Branching::Hot { fraction: x, .. } => x,
                             Branching::Rest => f64::NAN,
                             Branching::Rate { k, .. } => k,
                             Branching::Quenching { k2, .. } => k2,
@@ -158,7 +160,7 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
             let to = target_name(net, &ch.target);
             let (unit, barrier) = match &ch.branching {
                 Branching::Rest => continue,
-                Branching::Fraction(_) => ("1", false),
+                Branching::Fraction(_) | Branching::Hot { .. } => ("1", false),
                 Branching::Rate { law, .. } => ("1/s", is_barrier(law)),
                 Branching::Quenching { law, .. } => ("L/(mol s)", is_barrier(law)),
             };
@@ -423,39 +425,18 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
     }
     for (t, tr) in net.transients.iter().enumerate() {
         let vals = &values.channel[t];
-        let fixed: f64 = tr
-            .channels
-            .iter()
-            .enumerate()
-            .filter(|(_, ch)| matches!(ch.branching, Branching::Fraction(_)))
-            .map(|(ci, _)| vals[ci].max(0.0))
-            .sum();
-        let has_rest = tr.channels.iter().any(|ch| matches!(ch.branching, Branching::Rest));
-        let rates: f64 = tr
-            .channels
-            .iter()
-            .enumerate()
-            .map(|(ci, ch)| match ch.branching {
-                Branching::Rate { .. } => vals[ci].max(0.0),
-                Branching::Quenching { partner, .. } => vals[ci].max(0.0) * c[partner].max(0.0),
-                _ => 0.0,
-            })
-            .sum();
-        // Fixed fractions are normalised when there is no "rest" (only matters when a
-        // sensitivity moves one of them) and squeezed when they exceed one.
-        let scale = if (!has_rest && fixed > 0.0) || fixed > 1.0 {
-            1.0 / fixed
-        } else {
-            1.0
+        // The model's rule, on the (possibly perturbed) values: fixed fractions normalised when
+        // there is no "rest" (only matters when a sensitivity moves one of them), squeezed when
+        // they exceed one; rates normalised by the total.
+        let input = |ci: usize, b: &Branching| match *b {
+            Branching::Fraction(_) | Branching::Hot { .. } => ShareInput::Fixed(vals[ci]),
+            Branching::Rest => ShareInput::Rest,
+            Branching::Rate { .. } => ShareInput::Rate(vals[ci]),
+            Branching::Quenching { partner, .. } => ShareInput::Rate(vals[ci].max(0.0) * c[partner].max(0.0)),
         };
+        let totals = ShareTotals::of(tr.channels.iter().enumerate().map(|(ci, ch)| input(ci, &ch.branching)));
         for (ci, ch) in tr.channels.iter().enumerate() {
-            let p = match ch.branching {
-                Branching::Fraction(_) => vals[ci].max(0.0) * scale,
-                Branching::Rest => (1.0 - fixed * scale).max(0.0),
-                Branching::Rate { .. } if rates > 0.0 => vals[ci].max(0.0) / rates,
-                Branching::Quenching { partner, .. } if rates > 0.0 => vals[ci].max(0.0) * c[partner].max(0.0) / rates,
-                _ => 0.0,
-            };
+            let p = totals.share(input(ci, &ch.branching));
             if p <= 0.0 {
                 continue;
             }

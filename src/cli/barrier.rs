@@ -4,6 +4,7 @@
 use photoledger::Error;
 use photoledger::barrier::{self, HotLimit};
 use photoledger::file::frequencies;
+use photoledger::rates::hot::{HotReaction, rrkm_yields};
 use photoledger::rates::{rrkm::Rrkm, wigner::wigner};
 use photoledger::report::{barrier as report, write_atomic};
 use photoledger::units::{self, Quantity};
@@ -38,6 +39,12 @@ pub struct BarrierArgs {
     /// Frequency file: [reactant] and [transition state] lists in cm-1 (see README).
     #[arg(long, value_name = "FILE")]
     pub frequencies: Option<PathBuf>,
+    /// A reaction of the hot molecule (repeatable): "FILE=E0", the transition state's frequency file
+    /// (a plain list, or its [transition state] section; its degeneracy line is used) and the
+    /// zero-point-corrected barrier, e.g. "ts-close.txt=95 kJ/mol". With --energy and --cooling:
+    /// the yield of each channel before cooling and the cooled remainder.
+    #[arg(long = "channel", value_name = "FILE=E0")]
+    pub channels: Vec<String>,
     /// Cooling time constant of the excess energy, e.g. "10 ps".
     #[arg(long, value_name = "TIME")]
     pub cooling: Option<String>,
@@ -88,6 +95,9 @@ pub fn run(a: &BarrierArgs) -> photoledger::Result<()> {
     }
     if a.barrier.is_some() || a.energy_range.is_some() {
         return k_of_e(a);
+    }
+    if a.energy.is_some() && !a.channels.is_empty() {
+        return hot_channels(a);
     }
     if a.energy.is_some() {
         return hot(a, p);
@@ -208,6 +218,75 @@ fn hot(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
         f.reactant.vibrations.len(),
         ts.vibrations.len()
     );
+    Ok(())
+}
+
+/// Yields of several competing reactions of a hot molecule before it cools.
+fn hot_channels(a: &BarrierArgs) -> photoledger::Result<()> {
+    let e = quantity(
+        "energy",
+        need(&a.energy, "energy", "(hot molecule)")?,
+        Quantity::MolarEnergy,
+    )?;
+    let path = a.frequencies.as_ref().ok_or_else(|| {
+        Error::Usage("barrier --channel needs --frequencies FILE (the hot molecule's own, [reactant])".into())
+    })?;
+    let cooling = quantity(
+        "cooling",
+        need(&a.cooling, "cooling", "--channel (yields before cooling)")?,
+        Quantity::Time,
+    )?;
+    let grain = quantity("grain", &a.grain, Quantity::MolarEnergy)?;
+    let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
+        path: path.clone(),
+        source,
+    })?;
+    let (reactant, _) = frequencies::parse_role(path, &text, frequencies::Role::Reactant)?;
+    let mut specs = Vec::new();
+    for c in &a.channels {
+        let (file, e0) = c.rsplit_once('=').ok_or_else(|| {
+            Error::Usage(format!(
+                "--channel \"{c}\": write FILE=E0, e.g. \"ts-close.txt=95 kJ/mol\""
+            ))
+        })?;
+        let file = PathBuf::from(file.trim());
+        let e0 = quantity("channel", e0.trim(), Quantity::MolarEnergy)?;
+        if e0 < 0.0 {
+            return Err(Error::Usage(format!(
+                "--channel \"{c}\": the zero-point-corrected barrier must be zero or more"
+            )));
+        }
+        let text = std::fs::read_to_string(&file).map_err(|source| Error::Io {
+            path: file.clone(),
+            source,
+        })?;
+        let (ts, d) = frequencies::parse_role(&file, &text, frequencies::Role::TransitionState)?;
+        specs.push((file, ts, e0, d.unwrap_or(1.0)));
+    }
+    let reactions: Vec<HotReaction> = specs
+        .iter()
+        .map(|(_, ts, e0, d)| HotReaction {
+            ts,
+            barrier: *e0,
+            degeneracy: *d,
+        })
+        .collect();
+    let y = rrkm_yields(&reactant, &reactions, e, Some(cooling), grain)
+        .map_err(|m| Error::Usage(format!("--grain/--energy: {m}")))?;
+    let rows: Vec<report::HotRow> = specs
+        .iter()
+        .zip(&y.probabilities)
+        .map(|((file, ts, e0, d), p)| report::HotRow {
+            name: file.display().to_string(),
+            barrier: *e0,
+            degeneracy: *d,
+            rate_at_start: Rrkm::new(&reactant, ts, *e0, *d, grain, e + grain)
+                .ok()
+                .and_then(|m| m.rate(e)),
+            probability: *p,
+        })
+        .collect();
+    print!("{}", report::hot_yields_text(&rows, y.cooled, e, cooling, &a.grain));
     Ok(())
 }
 

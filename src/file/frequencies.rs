@@ -56,14 +56,104 @@ fn wavenumber(x: f64) -> f64 {
 
 /// Parse frequency-file text as if read from `path`.
 pub fn parse_text(path: &Path, text: &str) -> Result<FrequencyFile> {
+    let (f, mut errs) = parse_inner(path, text, Section::None);
+    if f.reactant.vibrations.is_empty() && f.reactant.rotors.is_empty() {
+        errs.push(
+            Diagnostic::error("reactant", "no reactant frequencies")
+                .in_file(path)
+                .with_help("list them under [reactant], in cm-1"),
+        );
+    }
+    if !errs.is_empty() {
+        return Err(Error::Invalid(errs));
+    }
+    Ok(FrequencyFile {
+        reactant: f.reactant,
+        ts: f.ts,
+        degeneracy: f.degeneracy.unwrap_or(1.0),
+    })
+}
+
+/// Which species a frequency list named by a network file describes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Role {
+    /// The reacting molecule (no imaginary frequency).
+    Reactant,
+    /// The transition state (exactly one imaginary frequency, the reaction coordinate).
+    TransitionState,
+}
+
+/// The modes of one species from a frequency file named by a network file, with the file's
+/// `degeneracy` line if it has one.
+///
+/// A file without section headers is a list of that species' frequencies (a transition-state
+/// list carries its reaction coordinate as a negative number or with `i`). A file with
+/// `[reactant]` and `[transition state]` sections (the `barrier` command's format) gives the
+/// section of `role`, so one file can serve both keys.
+pub fn parse_role(path: &Path, text: &str, role: Role) -> Result<(Modes, Option<f64>)> {
+    let start = match role {
+        Role::Reactant => Section::Reactant,
+        Role::TransitionState => Section::Ts,
+    };
+    let (f, mut errs) = parse_inner(path, text, start);
+    let modes = match role {
+        Role::Reactant => {
+            if f.reactant.vibrations.is_empty() && f.reactant.rotors.is_empty() {
+                errs.push(
+                    Diagnostic::error("reactant", "no reactant frequencies")
+                        .in_file(path)
+                        .with_help("list them in cm-1 (or under [reactant] in a file with sections)"),
+                );
+            }
+            f.reactant
+        }
+        Role::TransitionState => match f.ts {
+            Some(ts) => {
+                if ts.vibrations.is_empty() && ts.rotors.is_empty() && errs.is_empty() {
+                    errs.push(
+                        Diagnostic::error("transition state", "no real transition-state frequencies")
+                            .in_file(path)
+                            .with_help("list them in cm-1, with the reaction coordinate as a negative number"),
+                    );
+                }
+                ts
+            }
+            None => {
+                errs.push(
+                    Diagnostic::error("transition state", "the file has no [transition state] section")
+                        .in_file(path)
+                        .with_help("add [transition state] with its frequencies in cm-1, or name a plain list"),
+                );
+                Modes::default()
+            }
+        },
+    };
+    if !errs.is_empty() {
+        return Err(Error::Invalid(errs));
+    }
+    Ok((modes, f.degeneracy))
+}
+
+/// What [`parse_inner`] found: reactant, transition state (if its section was seen) and the
+/// degeneracy line (if any).
+struct Parsed {
+    reactant: Modes,
+    ts: Option<Modes>,
+    degeneracy: Option<f64>,
+}
+
+fn parse_inner(path: &Path, text: &str, start: Section) -> (Parsed, Vec<Diagnostic>) {
     let mut errs: Vec<Diagnostic> = Vec::new();
     let mut reactant = Modes::default();
     let mut ts = Modes::default();
-    let mut ts_seen = false;
+    let mut ts_seen = start == Section::Ts;
+    // A transition-state list read without headers; a file that turns out to have sections
+    // (before any number) is read by its sections instead.
+    let mut implicit_ts = start == Section::Ts;
     let mut reactant_seen = false;
     let mut ts_imag: Vec<(f64, usize)> = Vec::new();
-    let mut degeneracy = 1.0;
-    let mut section = Section::None;
+    let mut degeneracy = None;
+    let mut section = start;
     let mut offset = 0usize;
     let mut err = |field: &str, msg: String, at: usize, help: &str| {
         let d = Diagnostic::error(field, msg).at(path, text, &Origin::Span(at..at + 1));
@@ -80,6 +170,10 @@ pub fn parse_text(path: &Path, text: &str) -> Result<FrequencyFile> {
         }
         let lead = start + (body.len() - body.trim_start().len());
         if trimmed.starts_with('[') {
+            if implicit_ts && ts.vibrations.is_empty() && ts.rotors.is_empty() && ts_imag.is_empty() {
+                ts_seen = false;
+            }
+            implicit_ts = false;
             let name = trimmed
                 .trim_start_matches('[')
                 .trim_end_matches(']')
@@ -116,7 +210,7 @@ pub fn parse_text(path: &Path, text: &str) -> Result<FrequencyFile> {
         if first == "degeneracy" {
             let rest = trimmed[first.len()..].trim().trim_start_matches(['=', ':']).trim();
             match rest.parse::<f64>() {
-                Ok(v) if v.is_finite() && v > 0.0 => degeneracy = v,
+                Ok(v) if v.is_finite() && v > 0.0 => degeneracy = Some(v),
                 _ => err(
                     "degeneracy",
                     format!("\"{rest}\" is not a positive number"),
@@ -210,13 +304,6 @@ pub fn parse_text(path: &Path, text: &str) -> Result<FrequencyFile> {
         }
     }
     let _ = reactant_seen;
-    if reactant.vibrations.is_empty() && reactant.rotors.is_empty() {
-        errs.push(
-            Diagnostic::error("reactant", "no reactant frequencies")
-                .in_file(path)
-                .with_help("list them under [reactant], in cm-1"),
-        );
-    }
     let ts = if ts_seen {
         match ts_imag.len() {
             1 => ts.imaginary = Some(wavenumber(ts_imag[0].0)),
@@ -238,14 +325,14 @@ pub fn parse_text(path: &Path, text: &str) -> Result<FrequencyFile> {
     } else {
         None
     };
-    if !errs.is_empty() {
-        return Err(Error::Invalid(errs));
-    }
-    Ok(FrequencyFile {
-        reactant,
-        ts,
-        degeneracy,
-    })
+    (
+        Parsed {
+            reactant,
+            ts,
+            degeneracy,
+        },
+        errs,
+    )
 }
 
 #[cfg(test)]
@@ -268,6 +355,34 @@ mod tests {
         assert!((ts.imaginary.unwrap() / one - 1200.0).abs() < 1e-9);
         let g = p("[reactant]\n1000\n[transition state]\n-900\n").unwrap();
         assert!((g.ts.unwrap().imaginary.unwrap() / one - 900.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn lists_for_one_role_and_sections_shared_by_both() {
+        let one = wavenumber(1.0);
+        let (ts, d) = parse_role(Path::new("ts.txt"), "1000 480\n-1200\n", Role::TransitionState).unwrap();
+        assert_eq!((ts.vibrations.len(), d), (2, None));
+        assert!((ts.imaginary.unwrap() / one - 1200.0).abs() < 1e-9);
+        let both = "degeneracy 2\n[reactant]\n1000 500 250\n[ts]\n1000 480\n1200i\n";
+        let (r, d) = parse_role(Path::new("p.txt"), both, Role::Reactant).unwrap();
+        assert_eq!((r.vibrations.len(), d), (3, Some(2.0)));
+        let (t, _) = parse_role(Path::new("p.txt"), both, Role::TransitionState).unwrap();
+        assert_eq!(t.vibrations.len(), 2);
+        let e = parse_role(Path::new("r.txt"), "1000 -300\n", Role::Reactant)
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("r.txt:1:6: reactant frequency: \"-300\" is imaginary"),
+            "{e}"
+        );
+        let e = parse_role(Path::new("t.txt"), "1000 300\n", Role::TransitionState)
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("no imaginary frequency"), "{e}");
+        let e = parse_role(Path::new("p.txt"), "[reactant]\n1000\n", Role::TransitionState)
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("no [transition state] section"), "{e}");
     }
 
     #[test]

@@ -26,6 +26,9 @@ pub struct Loaded {
     pub doc: NetworkFile,
     /// CSV tables named by `file` keys, by the string written in the file.
     pub tables: BTreeMap<String, std::result::Result<Table, String>>,
+    /// Frequency files named by `*frequencies` keys, by the string written in the file: the
+    /// path they were read from and their text (or why they could not be read).
+    pub frequency_files: BTreeMap<String, (PathBuf, std::result::Result<String, String>)>,
 }
 
 /// Read and parse `path` and the CSV files it names.
@@ -75,12 +78,51 @@ pub fn parse_text(path: &Path, text: String) -> Result<Loaded> {
         let t = csv::read(&full).map_err(|e| e.to_string());
         tables.insert(name, t);
     }
+    let mut frequency_files = BTreeMap::new();
+    for name in referenced_frequency_files(&doc) {
+        let full = dir.join(&name);
+        let t = std::fs::read_to_string(&full).map_err(|e| e.to_string());
+        frequency_files.insert(name, (full, t));
+    }
     Ok(Loaded {
         path: path.to_path_buf(),
         text,
         doc,
         tables,
+        frequency_files,
     })
+}
+
+/// File names given (as strings) to the frequency keys of rates, hot transients and hot channels.
+fn referenced_frequency_files(doc: &NetworkFile) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut add = |v: &Option<toml::Spanned<toml::Value>>| {
+        if let Some(v) = v
+            && let toml::Value::String(s) = v.get_ref()
+        {
+            out.push(s.clone());
+        }
+    };
+    let rate = |r: &Option<toml::Spanned<schema::Rate>>, add: &mut dyn FnMut(&Option<toml::Spanned<toml::Value>>)| {
+        if let Some(r) = r {
+            add(&r.get_ref().reactant_frequencies);
+            add(&r.get_ref().ts_frequencies);
+        }
+    };
+    for t in &doc.thermal {
+        rate(&t.get_ref().rate, &mut add);
+        rate(&t.get_ref().reverse, &mut add);
+    }
+    for t in &doc.transient {
+        add(&t.get_ref().frequencies);
+        for c in &t.get_ref().channels {
+            rate(&c.get_ref().rate, &mut add);
+            if let Some(h) = &c.get_ref().hot {
+                add(&h.get_ref().ts_frequencies);
+            }
+        }
+    }
+    out
 }
 
 fn referenced_files(doc: &NetworkFile) -> Vec<String> {

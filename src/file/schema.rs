@@ -158,6 +158,17 @@ pub struct Rate {
     pub entropy: Option<Text>,
     /// Eyring transmission coefficient κ (default 1).
     pub transmission: Option<Spanned<f64>>,
+    /// Transition-state theory from harmonic frequencies: the reactant's, in cm⁻¹, as an inline
+    /// list of numbers or a frequency file (relative to the network file). With it, `barrier`
+    /// is the zero-point-corrected barrier E₀, not ΔG‡.
+    pub reactant_frequencies: Option<Spanned<toml::Value>>,
+    /// The transition state's frequencies (the reaction coordinate as a negative number), as
+    /// for `reactant_frequencies`.
+    pub ts_frequencies: Option<Spanned<toml::Value>>,
+    /// Tunnelling correction for a rate from frequencies: "wigner" or "none" (default).
+    pub tunnelling: Option<Text>,
+    /// Reaction-path degeneracy σ for a rate from frequencies (default 1, or the file's).
+    pub degeneracy: Option<Spanned<f64>>,
 }
 
 /// `[[thermal]]`.
@@ -207,6 +218,15 @@ pub struct Transient {
     pub channels: Vec<Spanned<Channel>>,
     /// Free text.
     pub note: Option<Text>,
+    /// Hot ground state with `hot` channels: the excess vibrational energy it starts with above
+    /// its zero-point level, e.g. "85 kcal/mol", or "photon" (the mean incident photon energy).
+    pub energy: Option<Text>,
+    /// Hot ground state: time constant of the exponential cooling of the excess energy, e.g. "5 ps".
+    pub cooling_time: Option<Text>,
+    /// Hot ground state: its own harmonic frequencies (cm⁻¹), an inline list or a frequency file.
+    pub frequencies: Option<Spanned<toml::Value>>,
+    /// Hot ground state: energy grain of the state counts (default "10 cm-1").
+    pub grain: Option<Text>,
 }
 
 /// A channel out of a transient.
@@ -221,4 +241,19 @@ pub struct Channel {
     pub rate: Option<Spanned<Rate>>,
     /// Partner species of a bimolecular quenching channel (not consumed).
     pub quencher: Option<Text>,
+    /// A reaction of a hot ground state before it cools: its yield follows from RRKM rates.
+    pub hot: Option<Spanned<HotChannel>>,
+}
+
+/// `hot = { ... }` of a channel out of a hot ground state.
+#[derive(Debug, Deserialize, Default, Clone)]
+#[serde(deny_unknown_fields)]
+pub struct HotChannel {
+    /// Zero-point-corrected barrier E₀ above the hot molecule's zero-point level, e.g. "24 kcal/mol".
+    pub barrier: Option<Text>,
+    /// Transition-state frequencies (cm⁻¹, the reaction coordinate negative): an inline list or a
+    /// frequency file.
+    pub ts_frequencies: Option<Spanned<toml::Value>>,
+    /// Reaction-path degeneracy σ (default 1, or the file's).
+    pub degeneracy: Option<Spanned<f64>>,
 }

@@ -50,8 +50,77 @@ pub struct Collapse {
 #[derive(Debug, Clone, Copy)]
 enum Share {
     Fixed(f64),
+    Rest,
     Rate(f64),
     Quench { partner: usize, k2: f64 },
+}
+
+impl Share {
+    fn input(&self, c: &[f64]) -> ShareInput {
+        match *self {
+            Share::Fixed(x) => ShareInput::Fixed(x),
+            Share::Rest => ShareInput::Rest,
+            Share::Rate(k) => ShareInput::Rate(k),
+            Share::Quench { partner, k2 } => ShareInput::Rate(k2 * c[partner].max(0.0)),
+        }
+    }
+}
+
+/// What one channel brings to its transient's shares: a fixed fraction (given, or a computed
+/// hot yield), the rest, or a (pseudo-)first-order rate in s⁻¹ (k, or k₂ [quencher]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum ShareInput {
+    /// A fixed fraction.
+    Fixed(f64),
+    /// What the fixed fractions leave.
+    Rest,
+    /// A first-order or pseudo-first-order rate, s⁻¹.
+    Rate(f64),
+}
+
+/// The one rule by which channel shares are formed from channel values, used by the model's
+/// collapse and by the Markov chain (whose sensitivities move single values):
+/// fixed fractions as given (negative values count as zero), scaled to sum to one when no
+/// channel takes the rest, and squeezed when they exceed one; "rest" is what they leave; rates
+/// are normalised by the transient's total rate.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ShareTotals {
+    /// Sum of the fixed fractions (before scaling).
+    pub fixed: f64,
+    /// Factor on every fixed fraction.
+    pub scale: f64,
+    /// Sum of the rates, s⁻¹.
+    pub rates: f64,
+}
+
+impl ShareTotals {
+    /// The totals of one transient's channels.
+    pub fn of(inputs: impl Iterator<Item = ShareInput>) -> ShareTotals {
+        let (mut fixed, mut rates, mut rest) = (0.0, 0.0, false);
+        for s in inputs {
+            match s {
+                ShareInput::Fixed(x) => fixed += x.max(0.0),
+                ShareInput::Rest => rest = true,
+                ShareInput::Rate(k) => rates += k.max(0.0),
+            }
+        }
+        let scale = if (!rest && fixed > 0.0) || fixed > 1.0 {
+            1.0 / fixed
+        } else {
+            1.0
+        };
+        ShareTotals { fixed, scale, rates }
+    }
+
+    /// The share (probability) of a channel with input `s`.
+    pub fn share(&self, s: ShareInput) -> f64 {
+        match s {
+            ShareInput::Fixed(x) => x.max(0.0) * self.scale,
+            ShareInput::Rest => (1.0 - self.fixed * self.scale).max(0.0),
+            ShareInput::Rate(k) if self.rates > 0.0 => k.max(0.0) / self.rates,
+            ShareInput::Rate(_) => 0.0,
+        }
+    }
 }
 
 /// The collapsed chain at one set of concentrations.
@@ -71,17 +140,6 @@ impl Collapse {
         let mut shares = Vec::with_capacity(n);
         let mut quenchers = Vec::new();
         for (i, t) in net.transients.iter().enumerate() {
-            let fixed: f64 = t
-                .channels
-                .iter()
-                .map(|c| {
-                    if let Branching::Fraction(x) = c.branching {
-                        x
-                    } else {
-                        0.0
-                    }
-                })
-                .sum();
             let mut row = Vec::new();
             for (j, c) in t.channels.iter().enumerate() {
                 let target = match &c.target {
@@ -97,8 +155,8 @@ impl Collapse {
                     Target::Transient(k) => Err(*k),
                 };
                 let share = match c.branching {
-                    Branching::Fraction(x) => Share::Fixed(x),
-                    Branching::Rest => Share::Fixed((1.0 - fixed).max(0.0)),
+                    Branching::Fraction(x) | Branching::Hot { fraction: x, .. } => Share::Fixed(x),
+                    Branching::Rest => Share::Rest,
                     Branching::Rate { k, .. } => Share::Rate(k),
                     Branching::Quenching { partner, k2, .. } => {
                         if !quenchers.contains(&partner) {
@@ -184,19 +242,15 @@ impl Collapse {
         w.dptt.fill(0.0);
         w.dx.fill(0.0);
         for (i, row) in self.shares.iter().enumerate() {
-            let rate_of = |s: &Share| match *s {
-                Share::Fixed(_) => 0.0,
-                Share::Rate(k) => k,
-                Share::Quench { partner, k2 } => k2 * c[partner].max(0.0),
+            let rate_of = |s: &Share| match s.input(c) {
+                ShareInput::Rate(k) => k,
+                _ => 0.0,
             };
-            let total: f64 = row.iter().map(|(_, s)| rate_of(s)).sum();
-            let fixed = row.iter().any(|(_, s)| matches!(s, Share::Fixed(_)));
+            let totals = ShareTotals::of(row.iter().map(|(_, s)| s.input(c)));
+            let total = totals.rates;
+            let fixed = row.iter().any(|(_, s)| matches!(s, Share::Fixed(_) | Share::Rest));
             for (target, s) in row {
-                let p = match *s {
-                    Share::Fixed(x) => x,
-                    _ if total > 0.0 => rate_of(s) / total,
-                    _ => 0.0,
-                };
+                let p = totals.share(s.input(c));
                 match target {
                     Ok(e) => w.x[i * m + *e] += p,
                     Err(t) => w.lu[i * n + *t] += p,
@@ -498,15 +552,20 @@ channels = [{ to = "B", rate = { k = "1e8 /s" } }, { to = "A", quencher = "Q", r
         let mut dpte = vec![DMatrix::<f64>::zeros(n, m); nq];
         for (i, row) in col.shares.iter().enumerate() {
             let rate_of = |s: &Share| match *s {
-                Share::Fixed(_) => 0.0,
+                Share::Fixed(_) | Share::Rest => 0.0,
                 Share::Rate(k) => k,
                 Share::Quench { partner, k2 } => k2 * c[partner].max(0.0),
             };
             let total: f64 = row.iter().map(|(_, s)| rate_of(s)).sum();
-            let fixed = row.iter().any(|(_, s)| matches!(s, Share::Fixed(_)));
+            let fixed_sum: f64 = row
+                .iter()
+                .map(|(_, s)| if let Share::Fixed(x) = s { *x } else { 0.0 })
+                .sum();
+            let fixed = row.iter().any(|(_, s)| matches!(s, Share::Fixed(_) | Share::Rest));
             for (target, s) in row {
                 let p = match *s {
                     Share::Fixed(x) => x,
+                    Share::Rest => 1.0 - fixed_sum,
                     _ if total > 0.0 => rate_of(s) / total,
                     _ => 0.0,
                 };

@@ -57,14 +57,14 @@ pub(super) struct Places {
     pub(super) transients: Vec<Origin>,
 }
 
-fn span<T>(s: &Spanned<T>) -> Origin {
+pub(super) fn span<T>(s: &Spanned<T>) -> Origin {
     Origin::Span(s.span())
 }
 
 /// A string field: its value and where it came from.
-struct Field {
-    value: String,
-    origin: Origin,
+pub(super) struct Field {
+    pub(super) value: String,
+    pub(super) origin: Origin,
 }
 
 impl<'a> Builder<'a> {
@@ -96,7 +96,7 @@ impl<'a> Builder<'a> {
     }
 
     /// Read a quantity; report a located error and return None when it cannot be read.
-    fn quantity(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
+    pub(super) fn quantity(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
         match units::parse(&f.value, q) {
             Ok(v) => Some(v),
             Err(e) => {
@@ -107,7 +107,7 @@ impl<'a> Builder<'a> {
     }
 
     /// A quantity that must be positive (and finite).
-    fn positive(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
+    pub(super) fn positive(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
         let v = self.quantity(field, f, q)?;
         if v <= 0.0 {
             self.error(
@@ -155,7 +155,9 @@ impl<'a> Builder<'a> {
         };
         let thermal = self.thermal(doc, &resolver, t);
         let photo = self.photo(doc, &resolver);
-        let transients = self.transients(doc, &resolver, &transient_heads, t);
+        let flux: f64 = lights.iter().map(|l| l.photon_flux()).sum();
+        let photon = (flux > 0.0).then(|| lights.iter().map(|l| l.power()).sum::<f64>() / flux);
+        let transients = self.transients(doc, &resolver, &transient_heads, t, photon);
         let mut net = Network {
             source: Some(self.loaded.path.clone()),
             about,
@@ -937,7 +939,24 @@ impl<'a> Builder<'a> {
                 origin: span(t),
             })
         };
-        let ways = "one of: k = \"0.04 /s\"; prefactor + activation (Arrhenius); barrier = \"20 kcal/mol\" (Eyring ΔG‡); enthalpy + entropy (Eyring ΔH‡, ΔS‡)";
+        let ways = "one of: k = \"0.04 /s\"; prefactor + activation (Arrhenius); barrier = \"20 kcal/mol\" (Eyring ΔG‡); enthalpy + entropy (Eyring ΔH‡, ΔS‡); barrier + reactant_frequencies + ts_frequencies (transition-state theory)";
+        if e.reactant_frequencies.is_some() || e.ts_frequencies.is_some() {
+            return self.rate_from_frequencies(field, r, order);
+        }
+        for (key, given) in [
+            ("tunnelling", e.tunnelling.is_some()),
+            ("degeneracy", e.degeneracy.is_some()),
+        ] {
+            if given {
+                self.error(
+                    &format!("{field}.{key}"),
+                    &at,
+                    "applies only to a rate from frequencies",
+                    Some("add reactant_frequencies and ts_frequencies (barrier is then E0), or remove the key".into()),
+                );
+                return None;
+            }
+        }
         let given = [
             e.k.is_some(),
             e.prefactor.is_some() || e.activation.is_some(),
@@ -1369,6 +1388,7 @@ impl<'a> Builder<'a> {
         names: &Names,
         heads: &[(String, TransientKind)],
         temperature: f64,
+        photon: Option<f64>,
     ) -> Vec<Transient> {
         let mut out = Vec::new();
         for (i, t) in doc.transient.iter().enumerate() {
@@ -1385,6 +1405,8 @@ impl<'a> Builder<'a> {
             }
             let field = format!("transient \"{name}\"");
             let mut channels = Vec::new();
+            let mut hot = Vec::new();
+            let mut hot_broken = false;
             for (j, c) in t.get_ref().channels.iter().enumerate() {
                 let cat = span(c);
                 let cf = format!("{field}.channels[{j}]");
@@ -1423,6 +1445,40 @@ impl<'a> Builder<'a> {
                     };
                     Target::Species(terms)
                 };
+                if let Some(h) = &e.hot {
+                    if e.fraction.is_some() || e.rate.is_some() || e.quencher.is_some() {
+                        self.error(
+                            &cf,
+                            &cat,
+                            "a hot channel takes no fraction, rate or quencher: its yield is computed",
+                            Some("give hot = { barrier, ts_frequencies } alone".into()),
+                        );
+                        hot_broken = true;
+                        continue;
+                    }
+                    match self.hot_spec(&format!("{cf}.hot"), h, channels.len()) {
+                        Some(spec) => hot.push(spec),
+                        None => {
+                            hot_broken = true;
+                            continue;
+                        }
+                    }
+                    channels.push((
+                        Channel {
+                            target,
+                            branching: Branching::Hot {
+                                fraction: f64::NAN,
+                                barrier: f64::NAN,
+                                energy: f64::NAN,
+                                cooling: f64::NAN,
+                                rate_at_start: f64::NAN,
+                            },
+                            returns: false,
+                        },
+                        cat,
+                    ));
+                    continue;
+                }
                 let branching = match (&e.fraction, &e.rate, &e.quencher) {
                     (Some(f), None, None) => match f.get_ref() {
                         toml::Value::String(s) if s.trim() == "rest" => Branching::Rest,
@@ -1505,7 +1561,9 @@ impl<'a> Builder<'a> {
                 ));
             }
             // A channel already reported as broken would only add follow-on errors about sums.
-            if channels.len() == t.get_ref().channels.len() {
+            let complete = channels.len() == t.get_ref().channels.len() && !hot_broken;
+            let hot_ok = complete && self.hot_yields(&field, t, kind, &hot, &mut channels, photon);
+            if complete && hot_ok {
                 self.check_channels(&field, &at, &channels);
             }
             out.push(Transient {
@@ -1529,7 +1587,7 @@ impl<'a> Builder<'a> {
         }
         let fixed = channels
             .iter()
-            .filter(|c| matches!(c.0.branching, Branching::Fraction(_) | Branching::Rest))
+            .filter(|c| c.0.branching.fixed_share().is_some() || c.0.branching == Branching::Rest)
             .count();
         if fixed != 0 && fixed != channels.len() {
             self.error(
@@ -1559,13 +1617,7 @@ impl<'a> Builder<'a> {
         }
         let sum: f64 = channels
             .iter()
-            .map(|c| {
-                if let Branching::Fraction(x) = c.0.branching {
-                    x
-                } else {
-                    0.0
-                }
-            })
+            .map(|c| c.0.branching.fixed_share().unwrap_or(0.0))
             .sum();
         if sum > 1.0 + 1e-9 {
             self.error(

@@ -37,17 +37,11 @@ impl Builder<'_> {
                 let fixed: f64 = t
                     .channels
                     .iter()
-                    .map(|c| {
-                        if let Branching::Fraction(x) = c.branching {
-                            x
-                        } else {
-                            0.0
-                        }
-                    })
+                    .map(|c| c.branching.fixed_share().unwrap_or(0.0))
                     .sum();
                 let open = t.channels.iter().any(|c| {
                     let positive = match c.branching {
-                        Branching::Fraction(x) => x > 0.0,
+                        Branching::Fraction(x) | Branching::Hot { fraction: x, .. } => x > 0.0,
                         Branching::Rest => fixed < 1.0 - 1e-12,
                         Branching::Rate { k, .. } => k > 0.0,
                         Branching::Quenching { k2, .. } => k2 > 0.0,

@@ -8,6 +8,7 @@
 
 mod build;
 mod checks;
+mod derived;
 pub mod equation;
 pub mod formula;
 pub mod overrides;
@@ -175,6 +176,33 @@ pub enum Branching {
         /// Value at the network temperature, L mol⁻¹ s⁻¹.
         k2: f64,
     },
+    /// A reaction of a hot ground state before it cools: the yield over all hot channels of the
+    /// transient competing with exponential cooling (RRKM k(E), `rates::hot::rrkm_yields`),
+    /// computed when the network is built. It counts as a fixed fraction; the transient's
+    /// `rest` channel takes what cools.
+    Hot {
+        /// The computed yield (dimensionless).
+        fraction: f64,
+        /// Zero-point-corrected barrier E₀, J/mol.
+        barrier: f64,
+        /// Excess energy the hot molecule starts with, J/mol.
+        energy: f64,
+        /// Cooling time constant, s.
+        cooling: f64,
+        /// k(E) at the starting energy, s⁻¹.
+        rate_at_start: f64,
+    },
+}
+
+impl Branching {
+    /// The share of a fixed-share channel (a fraction or a computed hot yield); `None` for
+    /// "rest" and for rate-based channels.
+    pub fn fixed_share(&self) -> Option<f64> {
+        match *self {
+            Branching::Fraction(x) | Branching::Hot { fraction: x, .. } => Some(x),
+            _ => None,
+        }
+    }
 }
 
 /// A channel out of a transient.

@@ -115,6 +115,51 @@ pub fn hot_yields(
     }
 }
 
+/// One reaction of a hot molecule for [`rrkm_yields`].
+#[derive(Debug, Clone, Copy)]
+pub struct HotReaction<'a> {
+    /// Transition-state modes.
+    pub ts: &'a super::partition::Modes,
+    /// Zero-point-corrected barrier E₀ above the hot molecule's zero-point level, J/mol.
+    pub barrier: f64,
+    /// Reaction-path degeneracy σ.
+    pub degeneracy: f64,
+}
+
+/// Yields of competing reactions of a hot molecule with modes `reactant`, starting with
+/// `energy` J/mol above its zero-point level and cooling exponentially with time constant
+/// `cooling` s (None: no cooling), each with RRKM k(E) from Beyer–Swinehart counts on `grain`
+/// J/mol ([`super::rrkm::Rrkm`]); the probabilities are those of [`hot_yields`] (tolerance
+/// 1e-7), `cooled` what is left.
+///
+/// Errors (plain words for the caller to place): no reactions, a non-positive energy, or a
+/// count that cannot be made (see [`super::rrkm::count_states`]).
+pub fn rrkm_yields(
+    reactant: &super::partition::Modes,
+    reactions: &[HotReaction<'_>],
+    energy: f64,
+    cooling: Option<f64>,
+    grain: f64,
+) -> Result<HotYields, String> {
+    if reactions.is_empty() {
+        return Err("no reactions to compete with cooling".into());
+    }
+    if !(energy.is_finite() && energy > 0.0) {
+        return Err(format!("the energy must be positive, found {energy} J/mol"));
+    }
+    let models = reactions
+        .iter()
+        .map(|r| super::rrkm::Rrkm::new(reactant, r.ts, r.barrier, r.degeneracy, grain, energy + grain))
+        .collect::<Result<Vec<_>, String>>()?;
+    let rates: Vec<Box<dyn Fn(f64) -> f64 + '_>> = models
+        .iter()
+        .map(|m| Box::new(move |e: f64| m.rate(e).unwrap_or(0.0)) as Box<dyn Fn(f64) -> f64>)
+        .collect();
+    let refs: Vec<&dyn Fn(f64) -> f64> = rates.iter().map(|b| b.as_ref()).collect();
+    let floor = reactions.iter().map(|r| r.barrier).fold(f64::INFINITY, f64::min);
+    Ok(hot_yields(&refs, energy, cooling, floor, 1e-7))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -42,6 +42,22 @@ pub enum RateLaw {
         /// Transmission coefficient κ.
         transmission: f64,
     },
+    /// Transition-state theory from harmonic frequencies ([`partition::tst_rate`]),
+    /// unimolecular: k = κ σ (k_B T / h) (Q‡ / Q) exp(−E₀ / RT).
+    Frequencies {
+        /// Reactant modes.
+        reactant: partition::Modes,
+        /// Transition-state modes (the imaginary mode is left out of Q‡).
+        ts: partition::Modes,
+        /// Zero-point-corrected barrier E₀, J/mol.
+        barrier: f64,
+        /// Reaction-path degeneracy σ.
+        degeneracy: f64,
+        /// Transmission coefficient κ (before tunnelling).
+        transmission: f64,
+        /// Multiply κ by Wigner's factor for the transition state's imaginary mode.
+        wigner: bool,
+    },
 }
 
 /// Eyring rate constant for molecularity `order` at `temperature` K from ΔG‡ (J/mol).
@@ -67,6 +83,26 @@ impl RateLaw {
                 entropy,
                 transmission,
             } => eyring(enthalpy - temperature * entropy, temperature, order, transmission),
+            RateLaw::Frequencies {
+                ref reactant,
+                ref ts,
+                barrier,
+                degeneracy,
+                transmission,
+                ..
+            } => {
+                let kappa = transmission * self.tunnelling(temperature).unwrap_or(1.0);
+                partition::tst_rate(reactant, ts, barrier, temperature, degeneracy, kappa)
+            }
+        }
+    }
+
+    /// Wigner's tunnelling factor at `temperature` K for a rate from frequencies that asks for
+    /// it (`None` otherwise, or without an imaginary mode).
+    pub fn tunnelling(&self, temperature: f64) -> Option<f64> {
+        match self {
+            RateLaw::Frequencies { ts, wigner: true, .. } => ts.imaginary.map(|v| wigner::wigner(v, temperature)),
+            _ => None,
         }
     }
 

@@ -90,6 +90,60 @@ pub fn verdicts_text(rows: &[Verdict], window: f64, probability: f64, temperatur
     s
 }
 
+/// One competing reaction of a hot molecule, for [`hot_yields_text`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct HotRow {
+    /// Display name (the transition state's frequency file).
+    pub name: String,
+    /// Zero-point-corrected barrier E₀, J/mol.
+    pub barrier: f64,
+    /// Reaction-path degeneracy σ.
+    pub degeneracy: f64,
+    /// k(E) at the starting energy, s⁻¹ (None where the density is zero).
+    pub rate_at_start: Option<f64>,
+    /// Yield before cooling.
+    pub probability: f64,
+}
+
+/// The yields of competing hot-molecule reactions and the share that cools, starting at
+/// `energy` J/mol with cooling time constant `cooling` s on a grain written as `grain`.
+pub fn hot_yields_text(rows: &[HotRow], cooled: f64, energy: f64, cooling: f64, grain: &str) -> String {
+    let mut s = String::new();
+    let _ = writeln!(
+        s,
+        "Hot molecule with {} above its zero-point level, cooling exponentially with τ = {}:",
+        self::energy(energy),
+        duration(cooling)
+    );
+    let width = rows.iter().map(|r| r.name.chars().count()).max().unwrap_or(0).max(23);
+    let _ = writeln!(
+        s,
+        "  {:<width$}  {:>33}  {:>4}  {:>11}  {:>12}",
+        "channel", "E0", "σ", "k(E) /s", "yield"
+    );
+    for r in rows {
+        let _ = writeln!(
+            s,
+            "  {:<width$}  {:>33}  {:>4}  {:>11}  {:>12.6e}",
+            r.name,
+            self::energy(r.barrier),
+            r.degeneracy,
+            r.rate_at_start.map_or("-".to_string(), |k| format!("{k:.4e}")),
+            r.probability
+        );
+    }
+    let _ = writeln!(
+        s,
+        "  {:<width$}  {:>33}  {:>4}  {:>11}  {:>12.6e}",
+        "cooled without reacting", "", "", "", cooled
+    );
+    let _ = writeln!(
+        s,
+        "  RRKM k(E) from Beyer–Swinehart counts on a {grain} grain; the channels compete while the energy decays"
+    );
+    s
+}
+
 /// k(E) table as CSV, units in the header.
 pub fn k_csv(rows: &[KRow]) -> String {
     let wn = wavenumber();

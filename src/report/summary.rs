@@ -140,9 +140,22 @@ pub fn network_summary(net: &Network) -> String {
                 2 => "/(M s)".to_string(),
                 n => format!("/(M{} s)", n - 1),
             };
+            let derived = match &t.rate {
+                crate::rates::RateLaw::Frequencies {
+                    barrier, degeneracy, ..
+                } => format!(
+                    "   (computed: TST from frequencies, E0 = {} kJ/mol, σ = {}{})",
+                    sig(barrier / 1000.0, 4),
+                    sig(*degeneracy, 3),
+                    t.rate
+                        .tunnelling(c.temperature)
+                        .map_or(String::new(), |w| format!(", Wigner κ = {}", sig(w, 4)))
+                ),
+                _ => String::new(),
+            };
             let _ = writeln!(
                 s,
-                "  {:<40} k = {} {}",
+                "  {:<40} k = {} {}{derived}",
                 format!("{} -> {}", net.side(&t.reactants), net.side(&t.products)),
                 sig(t.k, 4),
                 unit
@@ -193,6 +206,25 @@ pub fn network_summary(net: &Network) -> String {
                 };
                 let how = match &ch.branching {
                     Branching::Fraction(x) => format!("fraction {}", sig(*x, 4)),
+                    Branching::Hot {
+                        fraction,
+                        barrier,
+                        energy,
+                        cooling,
+                        rate_at_start,
+                    } => format!(
+                        "hot yield {} (computed: RRKM over E0 = {} kJ/mol from {} kJ/mol, k = {} /s at the start, \
+                         cooling τ = {} ps)",
+                        sig(*fraction, 4),
+                        sig(barrier / 1000.0, 4),
+                        sig(energy / 1000.0, 4),
+                        sig(*rate_at_start, 3),
+                        sig(cooling * 1e12, 3)
+                    ),
+                    Branching::Rest if t.channels.iter().any(|c| matches!(c.branching, Branching::Hot { .. })) => {
+                        let hot: f64 = t.channels.iter().filter_map(|c| c.branching.fixed_share()).sum();
+                        format!("the rest: cools without reacting, {}", sig(1.0 - hot, 6))
+                    }
                     Branching::Rest => "the rest".into(),
                     Branching::Rate { k, .. } => {
                         format!(

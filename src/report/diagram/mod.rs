@@ -208,6 +208,7 @@ fn rate_lines(law: &RateLaw, k: f64, order: u32, temperature: f64) -> Vec<String
             out.push(format!("ΔG‡ {} kcal/mol", kcal(law.barrier(temperature, order))));
         }
         RateLaw::Arrhenius { activation, .. } => out.push(format!("Ea {} kcal/mol", kcal(activation))),
+        RateLaw::Frequencies { barrier, .. } => out.push(format!("E0 {} kcal/mol (TST)", kcal(barrier))),
         RateLaw::Constant(_) => {}
     }
     out
@@ -265,6 +266,15 @@ fn channel_lines(net: &Network, c: &Channel) -> Vec<String> {
     let t = net.conditions.temperature;
     let mut out = match &c.branching {
         Branching::Fraction(f) => vec![format!("fraction {}", fraction(*f))],
+        Branching::Hot {
+            fraction: f, barrier, ..
+        } => vec![
+            format!("hot yield {}", fraction(*f)),
+            format!(
+                "E0 {} kcal/mol",
+                sig(barrier / (1000.0 * crate::units::constants::CALORIE), 3)
+            ),
+        ],
         Branching::Rest => vec!["rest".to_string()],
         Branching::Rate { law, k } => rate_lines(law, *k, 1, t),
         Branching::Quenching { partner, law, k2 } => {
