@@ -15,6 +15,7 @@ pub mod kinetics;
 pub mod light;
 pub mod model;
 pub mod network;
+pub mod plan;
 pub mod rates;
 pub mod report;
 pub mod study;

@@ -3,7 +3,8 @@
 //!
 //! Kinetics always run; the single-molecule chain runs when the network has an end a molecule
 //! can reach (a closed photoswitch has none, and the study says why instead); barrier verdicts
-//! run when a window is asked for.
+//! run when a window is asked for; a plan (time to a target, dose, other lamp powers) when a
+//! target is given.
 
 use crate::barrier::{self, Verdict};
 use crate::chain::build::{self, Settings, Values};
@@ -12,6 +13,7 @@ use crate::error::Result;
 use crate::kinetics::{self, Trajectory};
 use crate::model::Model;
 use crate::network::Network;
+use crate::plan::{self, Plan, PlanOptions};
 use crate::report::chain::{self as chain_report, Summary};
 
 /// What to run.
@@ -22,6 +24,8 @@ pub struct StudyOptions {
     pub until: Option<f64>,
     /// Window for barrier verdicts, s (None: no verdicts).
     pub barrier_window: Option<f64>,
+    /// A target to plan for, as written for `plan --target` (None: no plan).
+    pub target: Option<String>,
 }
 
 /// Probability of crossing asked of every barrier verdict in a study.
@@ -63,6 +67,85 @@ pub struct Study {
     pub chain: std::result::Result<ChainStudy, String>,
     /// Barrier verdicts, when a window was given.
     pub barrier: Option<BarrierStudy>,
+    /// The plan, when a target was given.
+    pub plan: Option<PlanStudy>,
+}
+
+/// Factors on the file's light for the "other lamp powers" of a plan.
+pub const POWER_FACTORS: [f64; 5] = [0.25, 0.5, 1.0, 2.0, 4.0];
+
+/// The time to a target with every light source scaled by one factor.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Alternative {
+    /// Factor on every source's photon flux.
+    pub scale: f64,
+    /// Radiant power of all sources at that factor, W.
+    pub power: f64,
+    /// Time to the target, s (None: not reached).
+    pub time: Option<f64>,
+    /// Absorbed photons per mole of the target amount, einstein/mol.
+    pub absorbed_per_mol: Option<f64>,
+    /// Why the plan failed, when it did.
+    pub failed: Option<String>,
+}
+
+/// The plan for a target: the answer under the file's light, and under other powers.
+#[derive(Debug, Clone)]
+pub struct PlanStudy {
+    /// Time to target, dose and products at the file's light.
+    pub plan: Plan,
+    /// The same target at each of [`POWER_FACTORS`].
+    pub alternatives: Vec<Alternative>,
+}
+
+/// Plan `target` (as written, e.g. "product > 90 %") on `model`, light on throughout.
+fn plan_study(model: &Model, target: &str) -> Result<PlanStudy> {
+    let target = plan::target::parse(target, model)?;
+    let opts = PlanOptions::default();
+    let base = plan::time_to_target(model, &target, &opts)?;
+    let jobs = POWER_FACTORS
+        .iter()
+        .filter(|f| **f != 1.0)
+        .map(|&f| (f, model.with_light_scale(f), target.clone()))
+        .collect();
+    let mut points = plan::sweep(jobs, &opts).into_iter();
+    let alternatives = POWER_FACTORS
+        .iter()
+        .map(|&scale| {
+            let power = base.dose.power * scale;
+            let from = |p: &Plan| Alternative {
+                scale,
+                power,
+                time: p.time,
+                absorbed_per_mol: p.dose.absorbed_per_mol,
+                failed: None,
+            };
+            if scale == 1.0 {
+                return from(&base);
+            }
+            match points.next().map(|p| p.plan) {
+                Some(Ok(p)) => from(&p),
+                Some(Err(e)) => Alternative {
+                    scale,
+                    power,
+                    time: None,
+                    absorbed_per_mol: None,
+                    failed: Some(e),
+                },
+                None => Alternative {
+                    scale,
+                    power,
+                    time: None,
+                    absorbed_per_mol: None,
+                    failed: Some("not run".into()),
+                },
+            }
+        })
+        .collect();
+    Ok(PlanStudy {
+        plan: base,
+        alternatives,
+    })
 }
 
 /// A round duration at least `t` s: 1, 2 or 5 times a power of ten of s, min, h or d.
@@ -159,6 +242,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
         }),
         None => None,
     };
+    let plan = opts.target.as_deref().map(|t| plan_study(model, t)).transpose()?;
     Ok(Study {
         until,
         until_reason,
@@ -166,6 +250,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
         log_time,
         chain,
         barrier,
+        plan,
     })
 }
 

@@ -213,6 +213,8 @@ fn sections_follow_what_was_asked_and_what_applies() {
     let page = render("networks/photoswitch.toml", &["--until", "20 min"], &scratch);
     assert!(!page.contains(" id=\"barriers\""));
     assert!(!page.contains("href=\"#barriers\""));
+    // No --target: no plan section.
+    assert!(!page.contains(" id=\"plan\""));
     // The photoswitch has no end a molecule can reach: the chain section says so.
     assert!(page.contains("does not apply to this network"), "photoswitch chain");
     // It reaches its photostationary state in the first minute: the time axis turns logarithmic.
@@ -266,6 +268,69 @@ fn the_page_agrees_with_simulate() {
     assert!(
         ((value * scale) / incident - 1.0).abs() < 5e-4,
         "{value} × {scale} vs {incident}"
+    );
+}
+
+#[test]
+fn the_plan_section_agrees_with_plan() {
+    let scratch = Scratch::new("plan");
+    let target = "product > 80 %";
+    let page = render("networks/flow-cyclization.toml", &["--target", target], &scratch);
+    assert!(page.contains(" id=\"plan\"") && page.contains("href=\"#plan\""));
+    for want in [
+        "The dose to the target",
+        "Products at that time",
+        "Other lamp powers",
+        "light on throughout",
+    ] {
+        assert!(page.contains(want), "{want}");
+    }
+    let o = run(&[
+        "plan",
+        "networks/flow-cyclization.toml",
+        "--target",
+        target,
+        "--json",
+        "--out",
+        scratch.0.join("plan").to_str().unwrap(),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let json: serde_json::Value = serde_json::from_slice(&o.stdout).expect("plan JSON");
+    let t = json["time"].as_f64().expect("a time to the target");
+    let shown = page
+        .split("Reached after <strong>")
+        .nth(1)
+        .expect("the time on the page");
+    let shown = &shown[..shown.find("</strong>").unwrap()];
+    let (v, unit) = shown.split_once(' ').expect("value and unit");
+    let scale = match unit {
+        "s" => 1.0,
+        "min" => 60.0,
+        "h" => 3600.0,
+        "d" => 86400.0,
+        u => panic!("unit {u}"),
+    };
+    let v: f64 = v.parse().expect("a number");
+    // Three significant figures on the page.
+    assert!((v * scale / t - 1.0).abs() < 5e-3, "{shown} vs {t} s");
+    // The photoswitch's photostationary state never reaches 60 % Z: said so, with the reason.
+    let page = render("networks/photoswitch.toml", &["--target", "Z-azo > 60 %"], &scratch);
+    assert!(
+        page.contains("Not reached: a photostationary state"),
+        "unreachable target"
+    );
+    let o = run(&[
+        "report",
+        "networks/photoswitch.toml",
+        "--target",
+        "nope > 1 %",
+        "-o",
+        "unused.html",
+    ]);
+    assert_eq!(
+        o.status.code(),
+        Some(2),
+        "an unknown species in the target is a usage error"
     );
 }
 

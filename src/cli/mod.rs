@@ -4,11 +4,13 @@
 //! 2 usage error (bad arguments, unknown --set key), 3 a file could not be read or written,
 //! 4 a numerical engine could not finish.
 
+mod actinometer;
 mod barrier;
 mod bench;
 mod check;
 mod diagram;
 mod ledger;
+mod plan;
 mod report;
 mod simulate;
 
@@ -53,6 +55,12 @@ enum Command {
     Simulate(simulate::SimulateArgs),
     /// Follow one molecule as an absorbing Markov chain: yields, cycles, photons per product.
     Ledger(ledger::LedgerArgs),
+    /// How long to irradiate to reach a target, with the photons and energy it takes; the light
+    /// or flow rate for a given time; days of sunlight; sweeps.
+    Plan(Box<plan::PlanArgs>),
+    /// Photon flux from actinometry (ferrioxalate, or any photoreaction of a network), as a
+    /// [[light]] block for a network file.
+    Actinometer(actinometer::ActinometerArgs),
     /// Write one self-contained HTML study report: diagram, kinetics, photon ledger, chain, barriers.
     Report(report::ReportArgs),
     /// Draw the network as SVG (species, transients, thermal and photochemical steps).
@@ -84,6 +92,8 @@ pub fn run() -> i32 {
         Command::Bench(a) => bench::run(&a),
         Command::Barrier(a) => barrier::run(&a),
         Command::Ledger(a) => ledger::run(&a),
+        Command::Plan(a) => plan::run(&a),
+        Command::Actinometer(a) => actinometer::run(&a),
         Command::Report(a) => report::run(&a),
     };
     match result {

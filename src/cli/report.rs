@@ -1,4 +1,4 @@
-//! `photoledger report FILE [--until DURATION] [--barrier-window DURATION] -o report.html`:
+//! `photoledger report FILE [--until DURATION] [--target EXPR] [--barrier-window DURATION] -o report.html`:
 //! run what applies to the network and write one self-contained HTML page.
 
 use super::{NetworkArgs, load, print_warnings};
@@ -19,6 +19,10 @@ pub struct ReportArgs {
     /// reach an end, rounded up, or one hour when there is no end).
     #[arg(long, value_name = "DURATION")]
     pub until: Option<String>,
+    /// Add a plan for this target (as for `plan --target`), e.g. "product > 80 %": time to it,
+    /// photon dose and energy, products, and the time at other lamp powers.
+    #[arg(long, value_name = "EXPR")]
+    pub target: Option<String>,
     /// Add barrier verdicts on every step with a rate against this window, e.g. "10 min".
     #[arg(long, value_name = "DURATION")]
     pub barrier_window: Option<String>,
@@ -66,6 +70,7 @@ pub fn run(a: &ReportArgs) -> photoledger::Result<()> {
             .as_deref()
             .map(|t| duration("barrier-window", t))
             .transpose()?,
+        target: a.target.clone(),
     };
     let model = Model::compile(&net);
     let found = study::run(&net, &model, &opts)?;

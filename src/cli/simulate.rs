@@ -44,21 +44,11 @@ pub struct SimulateArgs {
     pub stop_when: Option<String>,
 }
 
-/// Read "NAME < LEVEL" or "NAME > LEVEL" into an event on the model's species.
+/// Read "NAME < LEVEL" or "NAME > LEVEL" (the planning target syntax) into an event.
 fn parse_stop(text: &str, model: &Model) -> photoledger::Result<kinetics::Event> {
-    let usage = |m: String| {
-        Error::Usage(format!(
-            "--stop-when \"{text}\": {m}; write e.g. \"E-azo < 10 µM\" or \"product > 5 mM\""
-        ))
-    };
-    let (name, level) = text.split_once(['<', '>']).ok_or_else(|| usage("no < or >".into()))?;
-    let level = level.trim_start_matches('=').trim();
-    let name = name.trim();
-    let species = model
-        .species_index(name)
-        .ok_or_else(|| usage(format!("unknown species \"{name}\"")))?;
-    let level = units::parse(level, Quantity::Concentration).map_err(|e| usage(e.problem))?;
-    Ok(kinetics::Event { species, level })
+    photoledger::plan::target::parse(text, model)
+        .map(|t| t.event())
+        .map_err(|e| Error::Usage(format!("--stop-when: {e}")))
 }
 
 pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {

@@ -71,14 +71,20 @@ pub struct Ledger {
     pub inner_filter_fraction: f64,
 }
 
-/// Read the ledger at time `t` from state `y` of `model`.
+/// Read the ledger at time `t` from state `y` of `model` (light on throughout).
 pub fn read(model: &Model, layout: &LedgerLayout, t: f64, y: &[f64]) -> Ledger {
+    read_lit(model, layout, t, t, y)
+}
+
+/// Read the ledger at time `t` from state `y` when the light was on for `lit` s of it
+/// (a light schedule): the incident photons are the source fluxes times `lit`.
+pub fn read_lit(model: &Model, layout: &LedgerLayout, t: f64, lit: f64, y: &[f64]) -> Ledger {
     let v = model.volume;
     let absorbers: Vec<String> = model.absorbers.iter().map(|&i| model.species[i].clone()).collect();
     let mut sources = Vec::new();
     let mut balance_num = 0.0;
     for (s, name) in model.sources.iter().enumerate() {
-        let incident = model.source_flux(s) * t;
+        let incident = model.source_flux(s) * lit;
         let absorbed: Vec<f64> = (0..model.absorbers.len())
             .map(|a| y[layout.absorbed(s, a)] * v)
             .collect();

@@ -55,6 +55,66 @@ pub struct Options {
     /// BDF linear algebra: Some(true) sparse (faer sparse LU on a coloured Jacobian),
     /// Some(false) dense (nalgebra LU), None: sparse above 150 state variables.
     pub sparse: Option<bool>,
+    /// Optional light schedule (e.g. sun-hours a day): the integration is split at every
+    /// switch and the solver restarted there, so no step spans a discontinuity.
+    pub schedule: Option<Schedule>,
+}
+
+/// Light on for `lit` s at the start of every `period` s, off for the rest (all sources
+/// together). Thermal steps run through the dark periods.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Schedule {
+    /// Length of one cycle, s (86400 for a day).
+    pub period: f64,
+    /// Lit time at the start of each cycle, s (0 < lit ≤ period).
+    pub lit: f64,
+}
+
+impl Schedule {
+    /// `hours` of light at the start of every 24 h day.
+    pub fn daily(hours: f64) -> Self {
+        Schedule {
+            period: 86400.0,
+            lit: hours * 3600.0,
+        }
+    }
+
+    /// Total lit time between 0 and `t` (s).
+    pub fn lit_time(&self, t: f64) -> f64 {
+        if self.lit >= self.period {
+            return t;
+        }
+        let n = (t / self.period).floor();
+        n * self.lit + (t - n * self.period).min(self.lit)
+    }
+
+    /// True when the light is on at time `t` (s) (a switch time belongs to the piece it starts).
+    pub fn is_lit(&self, t: f64) -> bool {
+        self.lit >= self.period || t - (t / self.period).floor() * self.period < self.lit
+    }
+
+    /// The pieces of constant light between `t0` and `t1`: (start, end, lit).
+    pub fn pieces(&self, t0: f64, t1: f64) -> Vec<(f64, f64, bool)> {
+        if self.lit >= self.period {
+            return vec![(t0, t1, true)];
+        }
+        let mut out = Vec::new();
+        let mut t = t0;
+        while t < t1 {
+            let n = (t / self.period).floor();
+            let start = n * self.period;
+            let (end, lit) = if t - start < self.lit {
+                (start + self.lit, true)
+            } else {
+                (start + self.period, false)
+            };
+            // Guard against a switch time that rounds onto t itself.
+            let end = if end <= t { t + self.period * 1e-12 } else { end };
+            out.push((t, end.min(t1), lit));
+            t = end;
+        }
+        out
+    }
 }
 
 impl Options {
@@ -69,6 +129,7 @@ impl Options {
             log_time: false,
             event: None,
             sparse: None,
+            schedule: None,
         }
     }
 }
@@ -129,6 +190,8 @@ pub struct Trajectory {
     pub stop: Stop,
     /// Species that went negative beyond tolerance.
     pub negatives: Vec<Negative>,
+    /// The light schedule the run followed (None: light on throughout).
+    pub schedule: Option<Schedule>,
 }
 
 impl Trajectory {
@@ -137,24 +200,32 @@ impl Trajectory {
         self.states.last().map(|s| s.as_slice()).unwrap_or(&[])
     }
 
+    /// Time the light was on between 0 and `t`, s.
+    pub fn lit_time(&self, t: f64) -> f64 {
+        self.schedule.map_or(t, |s| s.lit_time(t))
+    }
+
     /// Concentration of species `i` at each output time.
     pub fn series(&self, i: usize) -> Vec<f64> {
         self.states.iter().map(|s| s[i]).collect()
     }
 }
 
-/// The output times for `opts`.
-fn output_times(opts: &Options) -> Vec<f64> {
+/// The output times for `opts`, from `start`.
+fn output_times(opts: &Options, start: f64) -> Vec<f64> {
     let n = opts.outputs.max(1);
-    let mut t = vec![0.0];
+    let mut t = vec![start];
     if opts.log_time {
-        let t0 = opts.until * 1e-6;
+        let t0 = (opts.until * 1e-6).max(start);
         for i in 0..=n {
-            t.push(t0 * (opts.until / t0).powf(i as f64 / n as f64));
+            let x = t0 * (opts.until / t0).powf(i as f64 / n as f64);
+            if x > start {
+                t.push(x);
+            }
         }
     } else {
         for i in 1..=n {
-            t.push(opts.until * i as f64 / n as f64);
+            t.push(start + (opts.until - start) * i as f64 / n as f64);
         }
     }
     t
@@ -200,25 +271,58 @@ pub fn stiffness(rhs: &Rhs, y0: &[f64], span: f64) -> f64 {
 
 /// Integrate `model` as `opts` says; `progress` is told the fraction of the time span done.
 pub fn simulate(model: &Model, opts: &Options, progress: &mut dyn FnMut(f64)) -> Result<Trajectory> {
-    if opts.until.is_nan() || opts.until <= 0.0 || !opts.until.is_finite() {
+    let y0 = Rhs::new(model).initial_state();
+    simulate_from(model, 0.0, &y0, opts, progress)
+}
+
+/// Integrate `model` from state `y0` (concentrations then ledger, as [`Rhs::initial_state`]
+/// lays it out) at time `t0` (s) to `opts.until` (s, absolute): the continuation of an
+/// earlier run. A schedule keeps its phase: it counts from t = 0.
+pub fn simulate_from(
+    model: &Model,
+    t0: f64,
+    y0: &[f64],
+    opts: &Options,
+    progress: &mut dyn FnMut(f64),
+) -> Result<Trajectory> {
+    if opts.until.is_nan() || opts.until <= t0 || !opts.until.is_finite() {
         return Err(Error::Usage(format!(
-            "the end time must be positive, not {} s",
+            "the end time must be positive and after the start, not {} s",
             opts.until
         )));
     }
     if opts.rtol.is_nan() || opts.atol.is_nan() || opts.rtol <= 0.0 || opts.atol <= 0.0 {
         return Err(Error::Usage("tolerances must be positive".into()));
     }
+    if let Some(s) = opts.schedule
+        && !(s.period > 0.0 && s.lit > 0.0 && s.lit <= s.period && s.period.is_finite())
+    {
+        return Err(Error::Usage(format!(
+            "a light schedule needs 0 < lit time ≤ period, not {} s of {} s",
+            s.lit, s.period
+        )));
+    }
     let rhs = Rhs::new(model);
-    let y0 = rhs.initial_state();
+    if y0.len() != rhs.layout.len() {
+        return Err(Error::Usage("the start state does not fit the model".into()));
+    }
+    let span = opts.until - t0;
     let (method, reason) = match opts.method {
         Method::Auto => {
-            let s = stiffness(&rhs, &y0, opts.until);
+            let s = stiffness(&rhs, y0, span);
             if opts.event.is_some() {
                 (
                     Method::Bdf,
                     format!(
                         "BDF: an event stop needs root finding (stiffness estimate {})",
+                        crate::units::sig(s, 3)
+                    ),
+                )
+            } else if opts.schedule.is_some() {
+                (
+                    Method::Bdf,
+                    format!(
+                        "BDF: a light schedule restarts the solver at each switch (stiffness estimate {})",
                         crate::units::sig(s, 3)
                     ),
                 )
@@ -245,7 +349,7 @@ pub fn simulate(model: &Model, opts: &Options, progress: &mut dyn FnMut(f64)) ->
             (Method::Dop853, "Dop853: chosen".into())
         }
     };
-    let times = output_times(opts);
+    let times = output_times(opts, t0);
     // An event already met at the start stops the run there.
     if let Some(ev) = opts.event
         && ev.species < model.n_species()
@@ -256,26 +360,66 @@ pub fn simulate(model: &Model, opts: &Options, progress: &mut dyn FnMut(f64)) ->
             model.species[ev.species]
         )));
     }
-    let (mut run, method, reason) = match method {
-        Method::Bdf => (solve_bdf::run(&rhs, &y0, &times, opts, progress)?, method, reason),
-        _ => match solve_dop::run(&rhs, &y0, &times, opts, progress) {
-            Ok(r) => (r, method, reason),
-            // The start looked non-stiff but the run became stiff: say so and use BDF.
-            Err(e) if opts.method == Method::Auto => {
-                rhs.rhs_calls.set(0);
-                rhs.jac_calls.set(0);
-                let r = solve_bdf::run(&rhs, &y0, &times, opts, progress)?;
-                (
-                    r,
-                    Method::Bdf,
-                    format!("BDF: {reason}, but the explicit method gave up ({e}), so the run was repeated with BDF"),
-                )
-            }
-            Err(e) => return Err(e),
-        },
+    // The dark model (every bin's flux zero) for the unlit pieces of a schedule.
+    let dark = opts.schedule.map(|_| model.with_light_scale(0.0));
+    let dark_rhs = dark.as_ref().map(Rhs::new);
+    let pieces = match opts.schedule {
+        Some(s) => s.pieces(t0, opts.until),
+        None => vec![(t0, opts.until, true)],
     };
-    run.counts.rhs = rhs.rhs_calls.get();
-    run.counts.jacobian_products = rhs.jac_calls.get();
+    let mut all = Run {
+        times: vec![t0],
+        states: vec![y0.to_vec()],
+        counts: Counts::default(),
+        stop: Stop::EndTime,
+        sparse: false,
+    };
+    let mut y = y0.to_vec();
+    let mut method_ran = method;
+    let mut reason = reason;
+    for (ta, tb, lit) in pieces {
+        let r = if lit { &rhs } else { dark_rhs.as_ref().unwrap_or(&rhs) };
+        let mut local: Vec<f64> = vec![0.0];
+        local.extend(times.iter().filter(|&&t| t > ta && t < tb).map(|&t| t - ta));
+        local.push(tb - ta);
+        let mut lopts = opts.clone();
+        lopts.until = tb - ta;
+        let mut prog = |f: f64| progress(((ta - t0) + f * (tb - ta)) / span);
+        let run = match method_ran {
+            Method::Bdf => solve_bdf::run(r, &y, &local, &lopts, &mut prog)?,
+            _ => match solve_dop::run(r, &y, &local, &lopts, &mut prog) {
+                Ok(run) => run,
+                // The start looked non-stiff but the run became stiff: say so and use BDF.
+                Err(e) if opts.method == Method::Auto => {
+                    reason = format!(
+                        "BDF: {reason}, but the explicit method gave up ({e}), so the run was repeated with BDF"
+                    );
+                    method_ran = Method::Bdf;
+                    solve_bdf::run(r, &y, &local, &lopts, &mut prog)?
+                }
+                Err(e) => return Err(e),
+            },
+        };
+        all.sparse |= run.sparse;
+        all.counts.steps += run.counts.steps;
+        all.counts.jacobian_setups += run.counts.jacobian_setups;
+        all.counts.rejected += run.counts.rejected;
+        for (t, st) in run.times.iter().zip(run.states).skip(1) {
+            all.times.push(ta + t);
+            all.states.push(st);
+        }
+        if let Some(last) = all.states.last() {
+            y.copy_from_slice(last);
+        }
+        if let Stop::Event(te) = run.stop {
+            all.stop = Stop::Event(ta + te);
+            break;
+        }
+    }
+    let mut run = all;
+    let (method, reason) = (method_ran, reason);
+    run.counts.rhs = rhs.rhs_calls.get() + dark_rhs.as_ref().map_or(0, |d| d.rhs_calls.get());
+    run.counts.jacobian_products = rhs.jac_calls.get() + dark_rhs.as_ref().map_or(0, |d| d.jac_calls.get());
     // Negative concentrations beyond tolerance.
     let mut negatives: Vec<Negative> = Vec::new();
     let scale = model.initial.iter().cloned().fold(0.0, f64::max);
@@ -308,6 +452,7 @@ pub fn simulate(model: &Model, opts: &Options, progress: &mut dyn FnMut(f64)) ->
         counts: run.counts,
         stop: run.stop,
         negatives,
+        schedule: opts.schedule,
     })
 }
 

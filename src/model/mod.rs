@@ -285,6 +285,40 @@ impl Model {
         self.bins.iter().map(|b| b.flux).sum()
     }
 
+    /// A copy with every light bin's photon flux multiplied by `factor` (0 for darkness).
+    pub fn with_light_scale(&self, factor: f64) -> Model {
+        let mut m = self.clone();
+        m.bins.iter_mut().for_each(|b| b.flux *= factor);
+        m
+    }
+
+    /// A copy with source `source`'s photon flux multiplied by `factor`.
+    pub fn with_source_scale(&self, source: usize, factor: f64) -> Model {
+        let mut m = self.clone();
+        m.bins
+            .iter_mut()
+            .filter(|b| b.source == source)
+            .for_each(|b| b.flux *= factor);
+        m
+    }
+
+    /// Radiant power of source `s`, W.
+    pub fn source_power(&self, s: usize) -> f64 {
+        self.bins
+            .iter()
+            .filter(|b| b.source == s)
+            .map(|b| b.flux * crate::units::constants::molar_photon_energy(b.wavelength))
+            .sum()
+    }
+
+    /// Total radiant power of all sources, W (photon flux × molar photon energy per bin).
+    pub fn total_power(&self) -> f64 {
+        self.bins
+            .iter()
+            .map(|b| b.flux * crate::units::constants::molar_photon_energy(b.wavelength))
+            .sum()
+    }
+
     /// Index of species `name`.
     pub fn species_index(&self, name: &str) -> Option<usize> {
         self.species.iter().position(|s| s == name)

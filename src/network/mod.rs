@@ -16,6 +16,7 @@ mod suggest;
 
 pub use build::build;
 pub use overrides::Overrides;
+pub use suggest::closest as suggest_name;
 
 use crate::error::{Diagnostic, Result};
 use crate::light::{LightSource, Spectrum};

@@ -95,6 +95,12 @@ pub fn run_section(model: &Model, study: &Study, meta: &Meta) -> String {
          in the well-stirred cell at the initial concentrations (as <code>photoledger ledger</code> does by \
          default).</li>\n",
     );
+    if study.plan.is_some() {
+        s.push_str(
+            "<li>Plan: time to the target by root finding on the target species in the integrator (relative \
+             tolerance 1e-8), light on throughout, as <code>photoledger plan FILE --target</code> does.</li>\n",
+        );
+    }
     if study.barrier.is_some() {
         s.push_str(
             "<li>Barrier verdicts: Eyring at the network temperature from each step's rate law (as \

@@ -15,6 +15,7 @@ pub mod header;
 pub mod kinetics;
 pub mod page;
 pub mod photons;
+pub mod plan;
 
 use crate::model::Model;
 use crate::network::Network;
@@ -30,33 +31,35 @@ pub struct Meta {
 }
 
 /// Ids and titles of the sections, in page order (the contents list and the tests use them).
-pub const SECTIONS: [(&str, &str); 7] = [
+pub const SECTIONS: [(&str, &str); 8] = [
     ("safety", "Safety and conditions"),
     ("network", "The network"),
     ("concentrations", "Concentrations over time"),
     ("photons", "Where the photons went"),
     ("chain", "One molecule's path: the absorbing Markov chain"),
+    ("plan", "The plan: time to the target"),
     ("barriers", "Barrier verdicts"),
     ("run", "How this was computed"),
 ];
 
 /// The whole report page for `net` (compiled as `model`) and what the study found.
 pub fn render(net: &Network, model: &Model, study: &Study, meta: &Meta) -> String {
-    let mut parts: Vec<(&str, &str, String)> = vec![
-        ("safety", SECTIONS[0].1, conditions::section(net, model)),
-        ("network", SECTIONS[1].1, diagram::section(net)),
-        ("concentrations", SECTIONS[2].1, kinetics::section(net, model, study)),
-        ("photons", SECTIONS[3].1, photons::section(model, &study.kinetics)),
-        ("chain", SECTIONS[4].1, chain::section(&study.chain)),
+    let mut parts: Vec<(&str, String)> = vec![
+        ("safety", conditions::section(net, model)),
+        ("network", diagram::section(net)),
+        ("concentrations", kinetics::section(net, model, study)),
+        ("photons", photons::section(model, &study.kinetics)),
+        ("chain", chain::section(&study.chain)),
     ];
-    if let Some(b) = &study.barrier {
-        parts.push((
-            "barriers",
-            SECTIONS[5].1,
-            barrier::section(b, net.conditions.temperature),
-        ));
+    if let Some(p) = &study.plan {
+        parts.push(("plan", plan::section(p)));
     }
-    parts.push(("run", SECTIONS[6].1, kinetics::run_section(model, study, meta)));
+    if let Some(b) = &study.barrier {
+        parts.push(("barriers", barrier::section(b, net.conditions.temperature)));
+    }
+    parts.push(("run", kinetics::run_section(model, study, meta)));
+    let title_of = |id: &str| SECTIONS.iter().find(|(i, _)| *i == id).map_or("", |(_, t)| *t);
+    let parts: Vec<(&str, &str, String)> = parts.into_iter().map(|(id, html)| (id, title_of(id), html)).collect();
     let contents: Vec<(&str, &str)> = parts.iter().map(|(id, title, _)| (*id, *title)).collect();
     let mut body = header::header(net, meta, &contents);
     for (k, (id, title, html)) in parts.iter().enumerate() {
@@ -92,6 +95,8 @@ pub const EINSTEIN: [(f64, &str); 5] = [
 ];
 /// Concentrations (from mol/L).
 pub const CONCENTRATION: [(f64, &str); 5] = [(1.0, "M"), (1e-3, "mM"), (1e-6, "µM"), (1e-9, "nM"), (1e-12, "pM")];
+/// Powers (from W).
+pub const POWER: [(f64, &str); 4] = [(1.0, "W"), (1e-3, "mW"), (1e-6, "µW"), (1e-9, "nW")];
 /// Times (from s).
 pub const TIME: [(f64, &str); 9] = [
     (86_400.0, "d"),

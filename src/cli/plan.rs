@@ -1,0 +1,444 @@
+//! `photoledger plan FILE --target EXPR [--in DURATION] [--flow-tube SPEC] [--sun-hours H]
+//! [--sweep KEY=LO..HI:N] [--wall-plug EFF] [--json] [--out DIR]`.
+
+use super::{NetworkArgs, load, print_warnings};
+use photoledger::Error;
+use photoledger::kinetics::Schedule;
+use photoledger::light::LightKind;
+use photoledger::model::Model;
+use photoledger::plan::{self, PlanOptions, Tube};
+use photoledger::report::plan as rp;
+use photoledger::report::{simulation, write_atomic};
+use photoledger::units::{self, Quantity};
+use std::path::PathBuf;
+
+/// Options of `plan`.
+#[derive(clap::Args, Debug)]
+pub struct PlanArgs {
+    #[command(flatten)]
+    pub net: NetworkArgs,
+    /// What to reach: a species, < or >, and a level with % or a concentration unit, e.g.
+    /// "product > 90 %" (yield on the limiting reagent), "product > 90 % of substrate",
+    /// "substrate < 10 %" (of its start), "substrate < 10 µM".
+    #[arg(long, value_name = "EXPR")]
+    pub target: String,
+    /// Find the light (a factor on every source of the file) that reaches the target in this time.
+    #[arg(long = "in", value_name = "DURATION")]
+    pub within: Option<String>,
+    /// A tubular flow reactor, e.g. "ID=1 mm, length=2 m": path = inner diameter, volume = the
+    /// tube's; gives the flow rate and throughput.
+    #[arg(long, value_name = "SPEC")]
+    pub flow_tube: Option<String>,
+    /// Hours of light a day (all sources switch together; made for sunlight): dark hours are
+    /// integrated with the light off, and the answer is given in days.
+    #[arg(long, value_name = "HOURS")]
+    pub sun_hours: Option<f64>,
+    /// Factor on every sunlight source's ASTM G173-03 spectrum (shade, depth, another atmosphere),
+    /// on top of the file's scale.
+    #[arg(long, value_name = "FACTOR", default_value_t = 1.0)]
+    pub sun_scale: f64,
+    /// Sweep one value: power=10mW..1W:20, photon_flux=..., wavelength=340nm..420nm:9,
+    /// temperature=10°C..60°C:6, concentration.NAME=1mM..100mM:5 (power, photon flux and
+    /// concentration log-spaced; wavelength and temperature evenly spaced).
+    #[arg(long, value_name = "KEY=LO..HI:N")]
+    pub sweep: Option<String>,
+    /// Wall-plug efficiency of the lamp (optical out / electrical in), e.g. "30 %" or 0.3:
+    /// adds the electrical energy per mole.
+    #[arg(long, value_name = "EFFICIENCY")]
+    pub wall_plug: Option<String>,
+    /// Longest time to integrate before the target is called unreachable.
+    #[arg(long, value_name = "DURATION", default_value = "36525 d")]
+    pub horizon: String,
+    /// Products to compare for selectivity, e.g. "product,degradate" (default: every product
+    /// of the network: species named as products, or formed and never consumed).
+    #[arg(long, value_name = "NAMES")]
+    pub products: Option<String>,
+    /// Relative tolerance of the integrator.
+    #[arg(long, default_value_t = 1e-8)]
+    pub rtol: f64,
+    /// Output folder (default: the network file's name with "-plan").
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+    /// Print the summary JSON to stdout.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// "ID=1 mm, length=2 m" (also "id", "diameter", "inner diameter"; separated by , or ;).
+fn parse_tube(spec: &str) -> photoledger::Result<Tube> {
+    let usage = |m: String| {
+        Error::Usage(format!(
+            "--flow-tube \"{spec}\": {m}; write e.g. \"ID=1 mm, length=2 m\""
+        ))
+    };
+    let (mut id, mut len) = (None, None);
+    for part in spec.split([',', ';']).map(str::trim).filter(|p| !p.is_empty()) {
+        let (k, v) = part
+            .split_once('=')
+            .ok_or_else(|| usage(format!("\"{part}\" is not KEY=VALUE")))?;
+        let v = units::parse(v.trim(), Quantity::Length)
+            .map_err(|e| usage(format!("{}: {e}; expected {}", k.trim(), Quantity::Length.accepted())))?;
+        if v.is_nan() || v <= 0.0 {
+            return Err(usage(format!("{} must be positive", k.trim())));
+        }
+        match k.trim().to_lowercase().as_str() {
+            "id" | "diameter" | "inner diameter" | "inner_diameter" => id = Some(v),
+            "length" | "l" => len = Some(v),
+            other => return Err(usage(format!("unknown key \"{other}\" (ID, length)"))),
+        }
+    }
+    Ok(Tube {
+        inner_diameter: id.ok_or_else(|| usage("no ID".into()))?,
+        length: len.ok_or_else(|| usage("no length".into()))?,
+    })
+}
+
+/// "30 %" or "0.3".
+fn parse_fraction(text: &str, what: &str) -> photoledger::Result<f64> {
+    let t = text.trim();
+    let v = match t.strip_suffix('%') {
+        Some(p) => p.trim().parse::<f64>().map(|v| v / 100.0),
+        None => t.parse::<f64>(),
+    }
+    .map_err(|_| {
+        Error::Usage(format!(
+            "{what} \"{text}\": expected a fraction such as 0.3 or \"30 %\""
+        ))
+    })?;
+    if !(v > 0.0 && v <= 1.0) {
+        return Err(Error::Usage(format!(
+            "{what} \"{text}\": must be above 0 and at most 100 %"
+        )));
+    }
+    Ok(v)
+}
+
+/// A parsed sweep: the axis and the values.
+struct Sweep {
+    key: String,
+    axis: rp::SweepAxis,
+    values: Vec<f64>,
+}
+
+fn parse_sweep(text: &str, net: &photoledger::Network) -> photoledger::Result<Sweep> {
+    let usage = |m: String| {
+        Error::Usage(format!(
+            "--sweep \"{text}\": {m}; write KEY=LO..HI:N with KEY power, photon_flux, wavelength, temperature or \
+             concentration.NAME, e.g. power=10mW..1W:20"
+        ))
+    };
+    let (key, range) = text.split_once('=').ok_or_else(|| usage("no =".into()))?;
+    let key = key.trim();
+    let (range, n) = range
+        .rsplit_once(':')
+        .ok_or_else(|| usage("no :N (number of points)".into()))?;
+    let n: usize = n.trim().parse().map_err(|_| usage(format!("\"{n}\" is not a count")))?;
+    if !(2..=500).contains(&n) {
+        return Err(usage("between 2 and 500 points".into()));
+    }
+    let (lo, hi) = range
+        .split_once("..")
+        .ok_or_else(|| usage("no .. between the ends".into()))?;
+    let (q, log, label, factor) = match key {
+        "power" => (Quantity::Power, true, "total power (W)".to_string(), 1.0),
+        "photon_flux" => (Quantity::PhotonFlux, true, "total photon flux (einstein/s)".into(), 1.0),
+        "wavelength" => (Quantity::Wavelength, false, "wavelength (nm)".into(), 1e9),
+        "temperature" => (Quantity::Temperature, false, "temperature (K)".into(), 1.0),
+        k if k.starts_with("concentration.") => {
+            let name = &k["concentration.".len()..];
+            if net.species_index(name).is_none() {
+                return Err(usage(format!("unknown species \"{name}\"")));
+            }
+            (Quantity::Concentration, true, format!("initial {name} (mol/L)"), 1.0)
+        }
+        other => return Err(usage(format!("unknown key \"{other}\""))),
+    };
+    let p = |s: &str| units::parse(s.trim(), q).map_err(|e| usage(format!("{e}; expected {}", q.accepted())));
+    let (a, b) = (p(lo)?, p(hi)?);
+    if !(a > 0.0 && b > 0.0) || a == b {
+        return Err(usage("the ends must be positive and different".into()));
+    }
+    let values = (0..n)
+        .map(|i| {
+            let f = i as f64 / (n - 1) as f64;
+            if log { a * (b / a).powf(f) } else { a + (b - a) * f }
+        })
+        .collect();
+    Ok(Sweep {
+        key: key.to_string(),
+        axis: rp::SweepAxis {
+            label,
+            unit_factor: factor,
+            log,
+        },
+        values,
+    })
+}
+
+/// The models of a sweep.
+fn sweep_models(
+    a: &PlanArgs,
+    sw: &Sweep,
+    net: &photoledger::Network,
+    base: &Model,
+    adjust: &dyn Fn(Model) -> Model,
+) -> photoledger::Result<Vec<(f64, Model)>> {
+    let reload = |key: &str, value: String| -> photoledger::Result<Model> {
+        let mut items = a.net.set.clone();
+        items.push(format!("{key}={value}"));
+        let ov = photoledger::Overrides::parse(&items).map_err(Error::Usage)?;
+        let n = photoledger::network::load(&a.net.file, &ov)?;
+        Ok(adjust(Model::compile(&n)))
+    };
+    let mut out = Vec::new();
+    for &v in &sw.values {
+        let m = match sw.key.as_str() {
+            "power" => {
+                let p = base.total_power();
+                if p <= 0.0 {
+                    return Err(Error::Usage("--sweep power: the network has no light".into()));
+                }
+                base.with_light_scale(v / p)
+            }
+            "photon_flux" => {
+                let q = base.total_flux();
+                if q <= 0.0 {
+                    return Err(Error::Usage("--sweep photon_flux: the network has no light".into()));
+                }
+                base.with_light_scale(v / q)
+            }
+            "wavelength" => {
+                let tunable: Vec<_> = net
+                    .lights
+                    .iter()
+                    .filter(|l| matches!(l.kind, LightKind::Line { .. } | LightKind::Band { .. }))
+                    .collect();
+                let [l] = tunable.as_slice() else {
+                    return Err(Error::Usage(format!(
+                        "--sweep wavelength needs exactly one line or band source; the network has {}",
+                        tunable.len()
+                    )));
+                };
+                let field = if matches!(l.kind, LightKind::Line { .. }) {
+                    "wavelength"
+                } else {
+                    "centre"
+                };
+                reload(&format!("light.{}.{field}", l.name), format!("{} nm", v * 1e9))?
+            }
+            "temperature" => reload("conditions.temperature", format!("{v} K"))?,
+            k => {
+                let name = &k["concentration.".len()..];
+                reload(&format!("species.{name}.initial"), format!("{v} M"))?
+            }
+        };
+        out.push((v, m));
+    }
+    Ok(out)
+}
+
+/// The sun sources scaled by `sun_scale`, and the model put in the flow tube if there is one.
+fn adjust_model(mut m: Model, sun_sources: &[usize], sun_scale: f64, tube: Option<&Tube>) -> Model {
+    for &s in sun_sources {
+        m = m.with_source_scale(s, sun_scale);
+    }
+    match tube {
+        Some(t) => t.apply(&m),
+        None => m,
+    }
+}
+
+pub fn run(a: &PlanArgs) -> photoledger::Result<()> {
+    let net = load(&a.net)?;
+    print_warnings(&net);
+    let mut model = Model::compile(&net);
+    let horizon = units::parse(&a.horizon, Quantity::Time)
+        .map_err(|e| Error::Usage(format!("--horizon: {e}; expected {}", Quantity::Time.accepted())))?;
+    let efficiency = a
+        .wall_plug
+        .as_deref()
+        .map(|w| parse_fraction(w, "--wall-plug"))
+        .transpose()?;
+    let tube = a.flow_tube.as_deref().map(parse_tube).transpose()?;
+    if a.within.is_some() && a.sweep.is_some() {
+        return Err(Error::Usage(
+            "--in and --sweep answer different questions; give one".into(),
+        ));
+    }
+    if !(a.sun_scale > 0.0 && a.sun_scale.is_finite()) {
+        return Err(Error::Usage(format!(
+            "--sun-scale {}: must be a positive factor",
+            a.sun_scale
+        )));
+    }
+    let schedule = match a.sun_hours {
+        Some(h) if h > 0.0 && h <= 24.0 => Some(Schedule::daily(h)),
+        Some(h) => return Err(Error::Usage(format!("--sun-hours {h}: must be above 0 and at most 24"))),
+        None => None,
+    };
+    let sun_sources: Vec<usize> = net
+        .lights
+        .iter()
+        .enumerate()
+        .filter(|(_, l)| matches!(l.kind, LightKind::Sun { .. }))
+        .map(|(i, _)| i)
+        .collect();
+    if a.sun_scale != 1.0 && sun_sources.is_empty() {
+        return Err(Error::Usage(
+            "--sun-scale: the network has no light of kind \"sun\"".into(),
+        ));
+    }
+    let adjust = |m: Model| adjust_model(m, &sun_sources, a.sun_scale, tube.as_ref());
+    model = adjust_model(model, &sun_sources, a.sun_scale, tube.as_ref());
+    let target = plan::target::parse(&a.target, &model)?;
+    let products = match &a.products {
+        None => None,
+        Some(list) => Some(
+            list.split(',')
+                .map(|n| {
+                    model.species_index(n.trim()).ok_or_else(|| {
+                        Error::Usage(format!(
+                            "--products: unknown species \"{}\"; the network has {}",
+                            n.trim(),
+                            model.species.join(", ")
+                        ))
+                    })
+                })
+                .collect::<photoledger::Result<Vec<usize>>>()?,
+        ),
+    };
+    let opts = PlanOptions {
+        rtol: a.rtol,
+        atol: 1e-15,
+        horizon,
+        schedule,
+        products,
+    };
+    let dir = a.out.clone().unwrap_or_else(|| {
+        PathBuf::from(format!(
+            "{}-plan",
+            a.net
+                .file
+                .file_stem()
+                .map(|s| s.to_string_lossy().to_string())
+                .unwrap_or_else(|| "network".into())
+        ))
+    });
+    let name = net.about.name.clone();
+    if let Some(sw) = &a.sweep {
+        let sw = parse_sweep(sw, &net)?;
+        let models = sweep_models(a, &sw, &net, &model, &adjust)?;
+        // The target is re-read on every model: a concentration sweep moves a yield's level.
+        let mut jobs = Vec::new();
+        for (v, m) in models {
+            let t = plan::target::parse(&a.target, &m)?;
+            jobs.push((v, m, t));
+        }
+        let points = plan::sweep(jobs, &opts);
+        write_atomic(&dir.join("sweep.csv"), rp::sweep_csv(&sw.axis, &points).as_bytes())?;
+        write_atomic(
+            &dir.join("sweep.svg"),
+            rp::sweep_svg(&name, &a.target, &sw.axis, &points).as_bytes(),
+        )?;
+        let sel = rp::selectivity_svg(&name, &sw.axis, &points);
+        if let Some(s) = &sel {
+            write_atomic(&dir.join("selectivity.svg"), s.as_bytes())?;
+        }
+        if a.json {
+            let rows: Vec<serde_json::Value> = points
+                .iter()
+                .map(|p| match &p.plan {
+                    Ok(pl) => serde_json::json!({
+                        "value": p.value * sw.axis.unit_factor,
+                        "time_s": pl.time,
+                        "unreachable": pl.unreachable,
+                        "products": pl.products,
+                    }),
+                    Err(e) => serde_json::json!({"value": p.value * sw.axis.unit_factor, "error": e}),
+                })
+                .collect();
+            let j = serde_json::json!({"network": name, "target": a.target, "swept": sw.axis.label, "points": rows,
+                "cautions": rp::CAUTIONS});
+            println!(
+                "{}",
+                serde_json::to_string_pretty(&j).map_err(|e| Error::Numerical(e.to_string()))?
+            );
+        } else {
+            println!("sweep of {} for \"{}\" on {name}", sw.axis.label, a.target);
+            print!("{}", rp::sweep_text(&sw.axis, &points));
+            println!(
+                "wrote {}/ (sweep.csv, sweep.svg{})",
+                dir.display(),
+                if sel.is_some() { ", selectivity.svg" } else { "" }
+            );
+            println!("caution: {}", rp::CAUTIONS);
+        }
+        return Ok(());
+    }
+    let (result, power) = match &a.within {
+        Some(d) => {
+            let d = units::parse(d, Quantity::Time)
+                .map_err(|e| Error::Usage(format!("--in: {e}; expected {}", Quantity::Time.accepted())))?;
+            let ps = plan::power_for_time(&model, &target, d, &opts)?;
+            let sources = (0..model.sources.len())
+                .map(|s| {
+                    (
+                        model.sources[s].clone(),
+                        model.source_power(s) * ps.scale,
+                        model.source_flux(s) * ps.scale,
+                    )
+                })
+                .collect();
+            let ans = rp::PowerAnswer {
+                duration: d,
+                scale: ps.scale,
+                sources,
+                evaluations: ps.evaluations,
+                tolerance: ps.tolerance,
+            };
+            (ps.plan, Some(ans))
+        }
+        None => (plan::time_to_target(&model, &target, &opts)?, None),
+    };
+    let flow = tube.as_ref().and_then(|t| {
+        let f = plan::flow(t, &result, &model)?;
+        Some(rp::FlowAnswer {
+            tube: *t,
+            volume: t.volume_litres(),
+            flow_ml_per_min: f.flow_rate * 1000.0 * 60.0,
+            throughput_mol_per_h: f.throughput * 3600.0,
+            flow: f,
+            approximation: rp::FLOW_APPROXIMATION.into(),
+        })
+    });
+    let sun = schedule.map(|s| rp::SunAnswer {
+        sun_hours: s.lit / 3600.0,
+        scale: a.sun_scale,
+        days: result.time.map(|t| plan::days(&s, t)),
+    });
+    let summary = rp::summary(&name, &result, a.rtol, efficiency, power, flow, sun);
+    let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
+    let run_model = match &summary.power {
+        Some(p) => model.with_light_scale(p.scale),
+        None => model.clone(),
+    };
+    write_atomic(&dir.join("summary.json"), json.as_bytes())?;
+    write_atomic(
+        &dir.join("concentrations.csv"),
+        simulation::concentrations_csv(&run_model, &result.trajectory).as_bytes(),
+    )?;
+    write_atomic(
+        &dir.join("concentrations.svg"),
+        simulation::concentrations_svg(&net, &run_model, &result.trajectory, false).as_bytes(),
+    )?;
+    if a.json {
+        println!("{json}");
+    } else {
+        print!("{}", rp::text(&summary));
+        println!(
+            "wrote {}/ (summary.json, concentrations.csv, concentrations.svg)",
+            dir.display()
+        );
+    }
+    Ok(())
+}

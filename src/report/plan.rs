@@ -1,0 +1,778 @@
+//! What `plan` and `actinometer` write: text summaries, JSON, sweep CSV and SVG plots, and
+//! `[[light]]` blocks for a network file.
+
+use crate::kinetics::Schedule;
+use crate::light::{LightKind, LightSource};
+use crate::plan::actinometry::{FluxResult, Measured, NetworkFit};
+use crate::plan::target::Basis;
+use crate::plan::{Days, Direction, Flow, Plan, SweepPoint, Tube, Unreachable};
+use crate::units::{format_concentration, format_time, sig};
+use plotters::prelude::*;
+use serde::Serialize;
+use std::fmt::Write;
+
+pub use super::simulation::CAUTIONS;
+
+/// The flow approximation, stated wherever a flow rate is given.
+pub const FLOW_APPROXIMATION: &str = "plug flow treated as a batch over the residence time τ = V/Q (no axial \
+dispersion, no radial concentration or light gradients beyond Beer–Lambert across the tube); optical path = \
+inner diameter; the sources' photon flux is taken as the flux entering the irradiated tubing";
+
+/// Electrical energy from a wall-plug efficiency.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Electrical {
+    /// Wall-plug efficiency (optical power out / electrical power in).
+    pub efficiency: f64,
+    /// Electrical power, W.
+    pub power: f64,
+    /// Electrical energy to the target, J.
+    pub energy: f64,
+    /// Per mole of the target amount, J/mol.
+    pub per_mol: Option<f64>,
+}
+
+/// The inverse answer: the light needed for a given time.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PowerAnswer {
+    /// Time asked, s.
+    pub duration: f64,
+    /// Factor on every source of the file.
+    pub scale: f64,
+    /// Each source: (name, radiant power W, photon flux einstein/s) at that factor.
+    pub sources: Vec<(String, f64, f64)>,
+    /// Plans evaluated by the root solve.
+    pub evaluations: usize,
+    /// Relative tolerance on the time.
+    pub tolerance: f64,
+}
+
+/// The flow answer with its tube.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct FlowAnswer {
+    /// The tube.
+    pub tube: Tube,
+    /// Irradiated volume, L.
+    pub volume: f64,
+    /// Residence time, flow rate, throughput.
+    pub flow: Flow,
+    /// Flow rate in mL/min.
+    pub flow_ml_per_min: f64,
+    /// Throughput in mol/h.
+    pub throughput_mol_per_h: f64,
+    /// The approximation.
+    pub approximation: String,
+}
+
+/// The sunlight answer.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SunAnswer {
+    /// Sun-hours a day.
+    pub sun_hours: f64,
+    /// Factor on the ASTM G173-03 spectrum (on top of the file's scale).
+    pub scale: f64,
+    /// Where the target fell.
+    pub days: Option<Days>,
+}
+
+/// Everything `plan --json` prints and `summary.json` holds.
+#[derive(Debug, Clone, Serialize)]
+pub struct PlanSummary {
+    /// Network name.
+    pub network: String,
+    /// The target.
+    pub target: crate::plan::Target,
+    /// How the target level reads in words.
+    pub target_meaning: String,
+    /// True when met.
+    pub reached: bool,
+    /// Time to the target, s.
+    pub time: Option<f64>,
+    /// Why not.
+    pub unreachable: Option<Unreachable>,
+    /// Photons and energy.
+    pub dose: crate::plan::Dose,
+    /// Photon unit of the dose.
+    pub photon_unit: String,
+    /// Electrical energy, if a wall-plug efficiency was given.
+    pub electrical: Option<Electrical>,
+    /// Products and selectivities at the target time.
+    pub products: Vec<crate::plan::Share>,
+    /// Light needed for a given time.
+    pub power: Option<PowerAnswer>,
+    /// Flow reactor.
+    pub flow: Option<FlowAnswer>,
+    /// Sunlight.
+    pub sun: Option<SunAnswer>,
+    /// Integrator and method notes.
+    pub method: String,
+    /// Relative tolerance.
+    pub rtol: f64,
+    /// Safety cautions.
+    pub cautions: String,
+}
+
+/// The target level in words.
+pub fn target_meaning(plan: &Plan) -> String {
+    let t = &plan.target;
+    let cmp = match t.direction {
+        Direction::Above => "rises to",
+        Direction::Below => "falls to",
+    };
+    let lvl = format_concentration(t.level);
+    match &t.basis {
+        Basis::Absolute => format!("{} {cmp} {lvl}", t.species_name),
+        Basis::OfInitial { fraction } => {
+            format!(
+                "{} {cmp} {} % of its start ({lvl})",
+                t.species_name,
+                sig(fraction * 100.0, 4)
+            )
+        }
+        Basis::YieldOf {
+            reference,
+            fraction,
+            chosen,
+        } => format!(
+            "{} {cmp} a {} % yield on {reference}{} at 1:1 ({lvl})",
+            t.species_name,
+            sig(fraction * 100.0, 4),
+            if *chosen {
+                " (taken as the limiting reagent: the smallest start below 1 M among the species a step consumes; \
+                 write \"... % of NAME\" to choose)"
+            } else {
+                ""
+            }
+        ),
+    }
+}
+
+/// Build the summary.
+#[allow(clippy::too_many_arguments)]
+pub fn summary(
+    network: &str,
+    plan: &Plan,
+    rtol: f64,
+    efficiency: Option<f64>,
+    power: Option<PowerAnswer>,
+    flow: Option<FlowAnswer>,
+    sun: Option<SunAnswer>,
+) -> PlanSummary {
+    let electrical = efficiency.map(|e| Electrical {
+        efficiency: e,
+        power: plan.dose.power / e,
+        energy: plan.dose.radiant_energy / e,
+        per_mol: plan.dose.radiant_per_mol.map(|x| x / e),
+    });
+    PlanSummary {
+        network: network.to_string(),
+        target: plan.target.clone(),
+        target_meaning: target_meaning(plan),
+        reached: plan.time.is_some(),
+        time: plan.time,
+        unreachable: plan.unreachable.clone(),
+        dose: plan.dose.clone(),
+        photon_unit: "einstein (mol of photons)".into(),
+        electrical,
+        products: plan.products.clone(),
+        power,
+        flow,
+        sun,
+        method: format!(
+            "{}; time to target by root finding on the target species in the integrator ({} stretch{})",
+            plan.trajectory.method_reason,
+            plan.stretches,
+            if plan.stretches == 1 { "" } else { "es" }
+        ),
+        rtol,
+        cautions: CAUTIONS.into(),
+    }
+}
+
+fn energy(j: f64) -> String {
+    if j.abs() >= 3.6e6 {
+        format!("{} kWh", sig(j / 3.6e6, 3))
+    } else if j.abs() >= 1e3 {
+        format!("{} kJ", sig(j / 1e3, 3))
+    } else {
+        format!("{} J", sig(j, 3))
+    }
+}
+
+fn power_text(w: f64) -> String {
+    if w >= 1.0 {
+        format!("{} W", sig(w, 3))
+    } else if w >= 1e-3 {
+        format!("{} mW", sig(w * 1e3, 3))
+    } else {
+        format!("{} µW", sig(w * 1e6, 3))
+    }
+}
+
+/// The text summary.
+pub fn text(s: &PlanSummary) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "plan for {}", s.network);
+    let _ = writeln!(o, "target: \"{}\": {}", s.target.text, s.target_meaning);
+    let d = &s.dose;
+    let what = match s.target.direction {
+        Direction::Above => format!("mol {} formed", s.target.species_name),
+        Direction::Below => format!("mol {} consumed", s.target.species_name),
+    };
+    match (&s.time, &s.unreachable) {
+        (Some(t), _) => {
+            let _ = writeln!(
+                o,
+                "reached after {} ({} s; found by the integrator's root finding, rtol {:e})",
+                format_time(*t),
+                sig(*t, 6),
+                s.rtol
+            );
+        }
+        (None, Some(u)) => {
+            let _ = writeln!(o, "NOT REACHABLE: {}", u.why.words());
+            let _ = writeln!(
+                o,
+                "  {} reaches at best {} (at {}); {} after {} of integration",
+                s.target.species_name,
+                format_concentration(u.best_level),
+                format_time(u.best_time),
+                format_concentration(u.final_level),
+                format_time(u.horizon)
+            );
+            if s.target.direction == Direction::Above && u.final_level < u.best_level * 0.999 && !u.consumers.is_empty()
+            {
+                let _ = writeln!(
+                    o,
+                    "  after its peak it is lost to: {}",
+                    u.consumers
+                        .iter()
+                        .take(3)
+                        .map(|c| format!("{} ({} M/s at the peak)", c.step, sig(c.rate, 3)))
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                );
+            }
+        }
+        _ => {}
+    }
+    if let Some(sun) = &s.sun {
+        let _ = writeln!(
+            o,
+            "sunlight: {} sun-hours a day, ASTM G173-03 global tilt × {} (on top of the file's scale); dark hours \
+             integrated with the light off",
+            sig(sun.sun_hours, 3),
+            sig(sun.scale, 3)
+        );
+        if let Some(days) = &sun.days {
+            if days.in_dark {
+                let _ = writeln!(
+                    o,
+                    "  met on day {} in the dark after that day's light ({} days of light; {} sun-hours in all)",
+                    days.day,
+                    sig(days.days, 4),
+                    sig(days.lit_hours, 4)
+                );
+            } else {
+                let _ = writeln!(
+                    o,
+                    "  met on day {} after {} % of its sun-hours ({} days; {} sun-hours in all)",
+                    days.day,
+                    sig(days.fraction_of_lit * 100.0, 3),
+                    sig(days.days, 4),
+                    sig(days.lit_hours, 4)
+                );
+            }
+        }
+    }
+    let per = |x: Option<f64>| x.map_or(String::new(), |v| format!("; {} einstein per {what}", sig(v, 4)));
+    let _ = writeln!(
+        o,
+        "photons {}:",
+        if s.reached {
+            "to the target"
+        } else {
+            "to the closest approach"
+        }
+    );
+    let _ = writeln!(
+        o,
+        "  incident  {} einstein ({} einstein/L{})",
+        sig(d.incident, 4),
+        sig(d.incident_per_litre, 4),
+        per(d.incident_per_mol)
+    );
+    let _ = writeln!(
+        o,
+        "  absorbed  {} einstein ({} einstein/L{})",
+        sig(d.absorbed, 4),
+        sig(d.absorbed_per_litre, 4),
+        per(d.absorbed_per_mol)
+    );
+    if d.power > 0.0 {
+        let _ = writeln!(
+            o,
+            "radiant energy into the sample: {} for {} lit = {}{}",
+            power_text(d.power),
+            format_time(d.lit_time),
+            energy(d.radiant_energy),
+            d.radiant_per_mol
+                .map_or(String::new(), |v| format!(" ({} per {what})", energy(v)))
+        );
+    }
+    if let Some(e) = &s.electrical {
+        let _ = writeln!(
+            o,
+            "electrical energy at a wall-plug efficiency of {} %: {} drawn, {}{}",
+            sig(e.efficiency * 100.0, 3),
+            power_text(e.power),
+            energy(e.energy),
+            e.per_mol
+                .map_or(String::new(), |v| format!(" ({} per {what})", energy(v)))
+        );
+    }
+    if let Some(p) = &s.power {
+        let _ = writeln!(
+            o,
+            "light needed to reach the target in {}: {} × the file's light (root solve on log power, |t/T − 1| < {:e}, \
+             {} plans)",
+            format_time(p.duration),
+            sig(p.scale, 5),
+            p.tolerance,
+            p.evaluations
+        );
+        for (name, w, q) in &p.sources {
+            let _ = writeln!(o, "  {name}: {} ({} einstein/s)", power_text(*w), sig(*q, 4));
+        }
+    }
+    if let Some(f) = &s.flow {
+        let _ = writeln!(
+            o,
+            "flow: tube {} mm inner diameter × {} m = {} mL; residence time {}; flow rate {} mL/min; throughput {} \
+             mol/h",
+            sig(f.tube.inner_diameter * 1e3, 3),
+            sig(f.tube.length, 3),
+            sig(f.volume * 1e3, 4),
+            format_time(f.flow.residence_time),
+            sig(f.flow_ml_per_min, 4),
+            sig(f.throughput_mol_per_h, 4)
+        );
+        let _ = writeln!(o, "  approximation: {}", f.approximation);
+    }
+    let formed: Vec<_> = s.products.iter().filter(|p| p.formed > 0.0).collect();
+    if !formed.is_empty() {
+        let _ = writeln!(
+            o,
+            "products {}:",
+            if s.reached {
+                "at the target"
+            } else {
+                "at the closest approach"
+            }
+        );
+        for p in formed {
+            let _ = writeln!(
+                o,
+                "  {:<16} {:>12}  selectivity {} %",
+                p.species,
+                format_concentration(p.formed),
+                sig(p.selectivity * 100.0, 4)
+            );
+        }
+    }
+    let _ = writeln!(o, "method: {}", s.method);
+    let _ = writeln!(o, "caution: {}", s.cautions);
+    o
+}
+
+/// What a sweep varies.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SweepAxis {
+    /// Label with unit, e.g. "power (W)".
+    pub label: String,
+    /// Factor from the internal value to the plotted unit.
+    pub unit_factor: f64,
+    /// Log axis.
+    pub log: bool,
+}
+
+/// sweep.csv: value, time to target, reached, and each product's concentration and selectivity.
+pub fn sweep_csv(axis: &SweepAxis, points: &[SweepPoint]) -> String {
+    let products: Vec<String> = points
+        .iter()
+        .find_map(|p| p.plan.as_ref().ok())
+        .map(|p| p.products.iter().map(|s| s.species.clone()).collect())
+        .unwrap_or_default();
+    let mut s = format!("{},time to target (s),reached,note", axis.label);
+    for p in &products {
+        let _ = write!(s, ",{p} (mol/L),{p} selectivity (1)");
+    }
+    s.push('\n');
+    for pt in points {
+        let _ = write!(s, "{:e}", pt.value * axis.unit_factor);
+        match &pt.plan {
+            Ok(p) => {
+                let note = p.unreachable.as_ref().map_or("", |u| u.why.words());
+                let _ = write!(
+                    s,
+                    ",{},{},\"{}\"",
+                    p.time.map_or(String::new(), |t| format!("{t:e}")),
+                    p.time.is_some(),
+                    note
+                );
+                for sh in &p.products {
+                    let _ = write!(s, ",{:e},{:e}", sh.formed, sh.selectivity);
+                }
+            }
+            Err(e) => {
+                let _ = write!(s, ",,false,\"{}\"", e.replace('"', "'"));
+            }
+        }
+        s.push('\n');
+    }
+    s
+}
+
+const PALETTE: [RGBColor; 6] = [
+    RGBColor(31, 119, 180),
+    RGBColor(214, 39, 40),
+    RGBColor(44, 160, 44),
+    RGBColor(148, 103, 189),
+    RGBColor(255, 127, 14),
+    RGBColor(23, 190, 207),
+];
+
+/// An x–y plot with points and lines, either axis logarithmic, as SVG text.
+fn xy_plot(
+    title: &str,
+    x: (&str, bool),
+    y: (&str, bool),
+    series: &[(String, Vec<(f64, f64)>)],
+    y_range: Option<(f64, f64)>,
+) -> String {
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
+        let _ = root.fill(&WHITE);
+        let all: Vec<(f64, f64)> = series
+            .iter()
+            .flat_map(|s| s.1.iter().cloned())
+            .filter(|p| p.0.is_finite() && p.1.is_finite() && (!x.1 || p.0 > 0.0) && (!y.1 || p.1 > 0.0))
+            .collect();
+        let (mut x0, mut x1) = all
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |a, p| (a.0.min(p.0), a.1.max(p.0)));
+        let (mut y0, mut y1) = all
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |a, p| (a.0.min(p.1), a.1.max(p.1)));
+        if let Some(r) = y_range {
+            (y0, y1) = r;
+        }
+        if !x0.is_finite() {
+            (x0, x1) = (1.0, 10.0);
+        }
+        if !y0.is_finite() {
+            (y0, y1) = (1.0, 10.0);
+        }
+        if x1 <= x0 {
+            x1 = x0 * 1.1 + 1.0;
+        }
+        if y1 <= y0 {
+            (y0, y1) = (y0 * 0.9, y1 * 1.1 + 1e-30);
+        }
+        if y.1 {
+            (y0, y1) = (y0 / 1.3, y1 * 1.3);
+        } else if y_range.is_none() {
+            let pad = 0.05 * (y1 - y0);
+            (y0, y1) = ((y0 - pad).max(0.0), y1 + pad);
+        }
+        let draw =
+            |root: &DrawingArea<SVGBackend, plotters::coord::Shift>| -> Result<(), Box<dyn std::error::Error + '_>> {
+                let mut b = ChartBuilder::on(root);
+                b.caption(title, ("sans-serif", 22))
+                    .margin(16)
+                    .x_label_area_size(48)
+                    .y_label_area_size(80);
+                macro_rules! go {
+                    ($chart:expr) => {{
+                        let mut c = $chart;
+                        c.configure_mesh()
+                            .x_desc(x.0)
+                            .y_desc(y.0)
+                            .label_style(("sans-serif", 15))
+                            .draw()?;
+                        for (i, (name, pts)) in series.iter().enumerate() {
+                            let col = PALETTE[i % PALETTE.len()];
+                            let p: Vec<(f64, f64)> = pts
+                                .iter()
+                                .cloned()
+                                .filter(|p| (!x.1 || p.0 > 0.0) && (!y.1 || p.1 > 0.0) && p.1.is_finite())
+                                .collect();
+                            c.draw_series(LineSeries::new(p.clone(), col.stroke_width(2)))?
+                                .label(name.clone())
+                                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
+                            c.draw_series(p.into_iter().map(|q| Circle::new(q, 3, col.filled())))?;
+                        }
+                        if series.len() > 1 {
+                            c.configure_series_labels()
+                                .background_style(WHITE.mix(0.85))
+                                .border_style(BLACK)
+                                .label_font(("sans-serif", 15))
+                                .draw()?;
+                        }
+                    }};
+                }
+                match (x.1, y.1) {
+                    (true, true) => go!(b.build_cartesian_2d((x0..x1).log_scale(), (y0..y1).log_scale())?),
+                    (true, false) => go!(b.build_cartesian_2d((x0..x1).log_scale(), y0..y1)?),
+                    (false, true) => go!(b.build_cartesian_2d(x0..x1, (y0..y1).log_scale())?),
+                    (false, false) => go!(b.build_cartesian_2d(x0..x1, y0..y1)?),
+                }
+                Ok(())
+            };
+        let _ = draw(&root);
+        let _ = root.present();
+    }
+    svg
+}
+
+/// sweep.svg: time to target against the swept value (log time axis); unreachable points left out.
+pub fn sweep_svg(network: &str, target: &str, axis: &SweepAxis, points: &[SweepPoint]) -> String {
+    let pts: Vec<(f64, f64)> = points
+        .iter()
+        .filter_map(|p| {
+            let t = p.plan.as_ref().ok()?.time?;
+            Some((p.value * axis.unit_factor, t / 3600.0))
+        })
+        .collect();
+    xy_plot(
+        &format!("{network}: time to \"{target}\""),
+        (&axis.label, axis.log),
+        ("time to target (h, log scale)", true),
+        &[("time to target".into(), pts)],
+        None,
+    )
+}
+
+/// selectivity.svg: each product's share at the target time against the swept value
+/// (None when fewer than two products form).
+pub fn selectivity_svg(network: &str, axis: &SweepAxis, points: &[SweepPoint]) -> Option<String> {
+    let names: Vec<String> = points
+        .iter()
+        .find_map(|p| p.plan.as_ref().ok())?
+        .products
+        .iter()
+        .map(|s| s.species.clone())
+        .collect();
+    let series: Vec<(String, Vec<(f64, f64)>)> = names
+        .iter()
+        .enumerate()
+        .map(|(i, n)| {
+            (
+                n.clone(),
+                points
+                    .iter()
+                    .filter_map(|p| {
+                        let pl = p.plan.as_ref().ok()?;
+                        Some((p.value * axis.unit_factor, pl.products.get(i)?.selectivity * 100.0))
+                    })
+                    .collect(),
+            )
+        })
+        .collect();
+    let forming = series.iter().filter(|s| s.1.iter().any(|p| p.1 > 0.0)).count();
+    (forming >= 2).then(|| {
+        xy_plot(
+            &format!("{network}: selectivity at the target"),
+            (&axis.label, axis.log),
+            ("share of products formed (%)", false),
+            &series,
+            Some((0.0, 100.0)),
+        )
+    })
+}
+
+/// The sweep as a text table.
+pub fn sweep_text(axis: &SweepAxis, points: &[SweepPoint]) -> String {
+    let mut o = format!("{:>14}  {:>14}  products (selectivity)\n", axis.label, "time to target");
+    for p in points {
+        let v = sig(p.value * axis.unit_factor, 4);
+        match &p.plan {
+            Ok(pl) => {
+                let t = pl.time.map_or_else(
+                    || format!("unreachable ({})", pl.unreachable.as_ref().map_or("", |u| short(u.why))),
+                    format_time,
+                );
+                let prods = pl
+                    .products
+                    .iter()
+                    .filter(|s| s.formed > 0.0)
+                    .map(|s| format!("{} {} %", s.species, sig(s.selectivity * 100.0, 3)))
+                    .collect::<Vec<_>>()
+                    .join(", ");
+                let _ = writeln!(o, "{v:>14}  {t:>14}  {prods}");
+            }
+            Err(e) => {
+                let _ = writeln!(o, "{v:>14}  failed: {e}");
+            }
+        }
+    }
+    o
+}
+
+fn short(w: crate::plan::Why) -> &'static str {
+    match w {
+        crate::plan::Why::Photostationary => "photostationary",
+        crate::plan::Why::Exhausted => "material used up",
+        crate::plan::Why::Horizon => "horizon",
+    }
+}
+
+/// Format a measured value with its uncertainty and unit.
+pub fn measured(m: &Measured, unit: &str) -> String {
+    if m.sigma > 0.0 {
+        format!(
+            "{} ± {} {unit} ({} %)",
+            sig(m.value, 5),
+            sig(m.sigma, 2),
+            sig(m.relative() * 100.0, 2)
+        )
+    } else {
+        format!("{} {unit}", sig(m.value, 6))
+    }
+}
+
+/// A `[[light]]` block that pastes into a network file: `source`'s kind and shape with the
+/// photon flux given, the uncertainty and the origin as comments.
+pub fn light_block(name: &str, kind: &LightKind, window: Option<(f64, f64)>, flux: &Measured, origin: &str) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "# {origin}");
+    if flux.sigma > 0.0 {
+        let _ = writeln!(
+            o,
+            "# photon flux {} einstein/s, standard uncertainty {} einstein/s ({} %)",
+            sig(flux.value, 6),
+            sig(flux.sigma, 2),
+            sig(flux.relative() * 100.0, 2)
+        );
+    }
+    let _ = writeln!(o, "[[light]]");
+    let _ = writeln!(o, "name = {}", toml_string(name));
+    let nm = |m: f64| format!("\"{} nm\"", sig(m * 1e9, 6));
+    match kind {
+        LightKind::Line { wavelength } => {
+            let _ = writeln!(o, "kind = \"line\"\nwavelength = {}", nm(*wavelength));
+        }
+        LightKind::Band { centre, fwhm } => {
+            let _ = writeln!(o, "kind = \"band\"\ncentre = {}\nfwhm = {}", nm(*centre), nm(*fwhm));
+        }
+        LightKind::Lamp { file, .. } => {
+            let _ = writeln!(
+                o,
+                "kind = \"lamp\"\nfile = {}   # as named in the original network file",
+                toml_string(file)
+            );
+        }
+        LightKind::Sun { scale, .. } => {
+            // Sunlight has no photon flux key: express the fit as its scale.
+            let _ = writeln!(o, "kind = \"sun\"\nscale = {}", sig(*scale, 8));
+            if let Some((a, b)) = window
+                && a > 0.0
+                && b.is_finite()
+            {
+                let _ = writeln!(o, "from = {}\nto = {}", nm(a), nm(b));
+            }
+            return o;
+        }
+    }
+    let _ = writeln!(o, "photon_flux = \"{:.6e} einstein/s\"", flux.value);
+    if let Some((a, b)) = window
+        && a > 0.0
+        && b.is_finite()
+    {
+        let _ = writeln!(o, "from = {}\nto = {}", nm(a), nm(b));
+    }
+    o
+}
+
+fn toml_string(s: &str) -> String {
+    format!("\"{}\"", s.replace('\\', "\\\\").replace('"', "\\\""))
+}
+
+/// The ferrioxalate result as text.
+pub fn ferrioxalate_text(r: &FluxResult, wavelength: f64, yield_note: &str, eps_note: &str) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "ferrioxalate actinometry at {} nm", sig(wavelength * 1e9, 5));
+    let _ = writeln!(o, "  quantum yield of Fe2+: {yield_note}");
+    let _ = writeln!(o, "  ε(510 nm) of Fe(phen)3 2+: {eps_note}");
+    let _ = writeln!(
+        o,
+        "  n(Fe2+) = ΔA · V_total / (ε · l) · V_irradiated / V_aliquot = {}",
+        measured(&r.moles, "mol")
+    );
+    let _ = writeln!(
+        o,
+        "  photon flux q = n / (Φ · t · f) = {}",
+        measured(&r.photon_flux, "einstein/s")
+    );
+    let _ = writeln!(o, "  as radiant power at the wavelength: {}", measured(&r.power, "W"));
+    if !r.contributions.is_empty() {
+        let _ = writeln!(o, "  first-order uncertainty from (relative):");
+        for (n, v) in &r.contributions {
+            let _ = writeln!(o, "    {n:<24} {} %", sig(v * 100.0, 2));
+        }
+    }
+    o
+}
+
+/// The network fit as text.
+pub fn network_fit_text(fit: &NetworkFit, species: &str, step: &str) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "photon flux from the conversion of {species} by \"{step}\"");
+    let _ = writeln!(
+        o,
+        "  light scale {} × the file's; total photon flux {}",
+        measured(&fit.scale, ""),
+        measured(&fit.photon_flux, "einstein/s")
+    );
+    let _ = writeln!(
+        o,
+        "  {} points, residual sum of squares {} (conversion²), {} Gauss–Newton iterations on the log of the scale",
+        fit.points,
+        sig(fit.rss, 3),
+        fit.iterations
+    );
+    if fit.points < 2 {
+        let _ = writeln!(
+            o,
+            "  one point: the flux is solved exactly and no uncertainty can be given"
+        );
+    } else {
+        let _ = writeln!(
+            o,
+            "  uncertainty from the residual scatter and the slope (first order, n − 1 degrees of freedom); the \
+             network's quantum yields and ε are taken as exact"
+        );
+    }
+    o
+}
+
+/// The schedule in words.
+pub fn schedule_words(s: &Schedule) -> String {
+    format!("{} of light every {}", format_time(s.lit), format_time(s.period))
+}
+
+/// A light source's block from the network with a new flux.
+pub fn light_block_for(src: &LightSource, flux: &Measured, origin: &str) -> String {
+    let window = match src.kind {
+        LightKind::Line { .. } => None,
+        _ => Some(src.window),
+    };
+    let kind = match &src.kind {
+        LightKind::Sun { scale, area } => LightKind::Sun {
+            scale: scale * flux.value / src.photon_flux().max(1e-300),
+            area: *area,
+        },
+        k => k.clone(),
+    };
+    light_block(&src.name, &kind, window, flux, origin)
+}
