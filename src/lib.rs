@@ -18,6 +18,7 @@ pub mod network;
 pub mod plan;
 pub mod rates;
 pub mod report;
+pub mod study;
 pub mod uncertainty;
 pub mod units;
 

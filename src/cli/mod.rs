@@ -11,6 +11,7 @@ mod check;
 mod diagram;
 mod ledger;
 mod plan;
+mod report;
 mod simulate;
 mod uncertainty;
 
@@ -64,6 +65,8 @@ enum Command {
     /// Photon flux from actinometry (ferrioxalate, or any photoreaction of a network), as a
     /// [[light]] block for a network file.
     Actinometer(actinometer::ActinometerArgs),
+    /// Write one self-contained HTML study report: diagram, kinetics, photon ledger, chain, barriers.
+    Report(report::ReportArgs),
     /// Draw the network as SVG (species, transients, thermal and photochemical steps).
     Diagram {
         #[command(flatten)]
@@ -96,6 +99,7 @@ pub fn run() -> i32 {
         Command::Uncertainty(a) => uncertainty::run(&a),
         Command::Plan(a) => plan::run(&a),
         Command::Actinometer(a) => actinometer::run(&a),
+        Command::Report(a) => report::run(&a),
     };
     match result {
         Ok(()) => 0,

@@ -1,0 +1,97 @@
+//! `photoledger report FILE [--until DURATION] [--target EXPR] [--barrier-window DURATION] -o report.html`:
+//! run what applies to the network and write one self-contained HTML page.
+
+use super::{NetworkArgs, load, print_warnings};
+use photoledger::Error;
+use photoledger::model::Model;
+use photoledger::report::html::{self, Meta, date};
+use photoledger::report::write_atomic;
+use photoledger::study::{self, StudyOptions};
+use photoledger::units::{self, Quantity};
+use std::path::PathBuf;
+
+/// Options of `report`.
+#[derive(clap::Args, Debug)]
+pub struct ReportArgs {
+    #[command(flatten)]
+    pub net: NetworkArgs,
+    /// How long to irradiate, e.g. "2 h" (default: three times the mean time a molecule takes to
+    /// reach an end, rounded up, or one hour when there is no end).
+    #[arg(long, value_name = "DURATION")]
+    pub until: Option<String>,
+    /// Add a plan for this target (as for `plan --target`), e.g. "product > 80 %": time to it,
+    /// photon dose and energy, products, and the time at other lamp powers.
+    #[arg(long, value_name = "EXPR")]
+    pub target: Option<String>,
+    /// Add barrier verdicts on every step with a rate against this window, e.g. "10 min".
+    #[arg(long, value_name = "DURATION")]
+    pub barrier_window: Option<String>,
+    /// Where to write the page (default: the network file's name followed by "-report.html").
+    #[arg(short = 'o', long = "out", value_name = "HTML")]
+    pub out: Option<PathBuf>,
+}
+
+fn duration(flag: &str, text: &str) -> photoledger::Result<f64> {
+    let t = units::parse(text, Quantity::Time)
+        .map_err(|e| Error::Usage(format!("--{flag}: {e}; expected {}", Quantity::Time.accepted())))?;
+    if t > 0.0 && t.is_finite() {
+        Ok(t)
+    } else {
+        Err(Error::Usage(format!(
+            "--{flag} \"{text}\": the duration must be positive"
+        )))
+    }
+}
+
+/// The command line as typed, each argument quoted for a POSIX shell when it needs it.
+fn command_line() -> String {
+    let safe = |c: char| c.is_ascii_alphanumeric() || "-_./=:,+@%".contains(c);
+    let mut args = std::env::args();
+    let mut parts = vec!["photoledger".to_string()];
+    args.next();
+    for a in args {
+        if !a.is_empty() && a.chars().all(safe) {
+            parts.push(a);
+        } else {
+            parts.push(format!("'{}'", a.replace('\'', "'\\''")));
+        }
+    }
+    parts.join(" ")
+}
+
+/// Run `report`.
+pub fn run(a: &ReportArgs) -> photoledger::Result<()> {
+    let net = load(&a.net)?;
+    print_warnings(&net);
+    let opts = StudyOptions {
+        until: a.until.as_deref().map(|t| duration("until", t)).transpose()?,
+        barrier_window: a
+            .barrier_window
+            .as_deref()
+            .map(|t| duration("barrier-window", t))
+            .transpose()?,
+        target: a.target.clone(),
+    };
+    let model = Model::compile(&net);
+    let found = study::run(&net, &model, &opts)?;
+    let meta = Meta {
+        command_line: command_line(),
+        date: date::now_utc(),
+    };
+    let page = html::render(&net, &model, &found, &meta);
+    let out = a.out.clone().unwrap_or_else(|| {
+        let stem = a
+            .net
+            .file
+            .file_stem()
+            .map(|s| s.to_string_lossy().to_string())
+            .unwrap_or_else(|| "network".into());
+        PathBuf::from(format!("{stem}-report.html"))
+    });
+    write_atomic(&out, page.as_bytes())?;
+    if let Err(why) = &found.chain {
+        eprintln!("note: no single-molecule section: {why}");
+    }
+    println!("wrote {} ({} kB)", out.display(), page.len().div_ceil(1024));
+    Ok(())
+}

@@ -1,0 +1,74 @@
+//! Barrier verdicts: can each thermal step and rate channel happen within the window asked?
+
+use super::escape::esc;
+use super::page::{self, num_cell, text_cell};
+use super::{TIME, pick_unit};
+use crate::study::BarrierStudy;
+use crate::units::sig;
+
+/// The verdict table.
+pub fn section(b: &BarrierStudy, temperature: f64) -> String {
+    let mut s = format!(
+        "<p>Every thermal step and rate channel at {} K against a window of {}, asking for a {} % chance of \
+         crossing.</p>\n",
+        esc(&sig(temperature, 5)),
+        esc(&crate::units::format_time(b.window)),
+        esc(&sig(100.0 * b.probability, 3))
+    );
+    if b.rows.is_empty() {
+        s.push_str("<p class=\"missing\">No step of this network carries a rate (fixed fractions only).</p>\n");
+        return s;
+    }
+    let finite = b.rows.iter().map(|r| r.half_life).filter(|t| t.is_finite());
+    let (tf, tu) = pick_unit(finite.fold(0.0, f64::max), &TIME);
+    let rows: Vec<String> = b
+        .rows
+        .iter()
+        .map(|r| {
+            let cls = if r.crosses() { "yes" } else { "no" };
+            format!(
+                "{}{}{}{}{}<td class=\"{cls}\">{}</td>",
+                text_cell(&r.name),
+                num_cell(&sig(r.barrier / 1000.0, 4)),
+                num_cell(&sig(r.barrier / 4184.0, 4)),
+                num_cell(&sig(r.rate, 3)),
+                num_cell(&if r.half_life.is_finite() {
+                    sig(r.half_life / tf, 3)
+                } else {
+                    "never".into()
+                }),
+                esc(&if r.crosses() || r.rate <= 0.0 {
+                    r.words()
+                } else {
+                    format!("too slow by a factor {}", sig(r.factor, 3))
+                })
+            )
+        })
+        .collect();
+    let ht = format!("half-life ({tu})");
+    s.push_str(&page::table(
+        "Verdict for every step with a rate",
+        &[
+            ("step", false),
+            ("ΔG‡ (kJ/mol)", true),
+            ("ΔG‡ (kcal/mol)", true),
+            ("k (1/s)", true),
+            (&ht, true),
+            ("verdict", false),
+        ],
+        &rows,
+    ));
+    let slow = b.rows.iter().filter(|r| !r.crosses()).count();
+    s.push_str(&format!(
+        "<p>{} of {} cross within the window; {slow} do not.</p>\n",
+        b.rows.len() - slow,
+        b.rows.len()
+    ));
+    s.push_str(&page::assumption(
+        "Eyring transition-state theory at the network temperature (ΔG‡ implied by each rate law); k per molecule: \
+         steps of order two or more are pseudo-first-order at the initial concentrations of their partners and \
+         quenching at the initial quencher concentration, with ΔG‡ for them referred to 1 mol/L. Channels set by \
+         fixed fractions carry no rate and are not listed.",
+    ));
+    s
+}

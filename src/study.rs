@@ -1,0 +1,271 @@
+//! A study of one network: every engine that applies, run in turn, with the results kept
+//! together for a report. Pure: no file I/O and no printing (the `report` command writes).
+//!
+//! Kinetics always run; the single-molecule chain runs when the network has an end a molecule
+//! can reach (a closed photoswitch has none, and the study says why instead); barrier verdicts
+//! run when a window is asked for; a plan (time to a target, dose, other lamp powers) when a
+//! target is given.
+
+use crate::barrier::{self, Verdict};
+use crate::chain::build::{self, Settings, Values};
+use crate::chain::{self, Analysis, sensitivity};
+use crate::error::Result;
+use crate::kinetics::{self, Trajectory};
+use crate::model::Model;
+use crate::network::Network;
+use crate::plan::{self, Plan, PlanOptions};
+use crate::report::chain::{self as chain_report, Summary};
+
+/// What to run.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct StudyOptions {
+    /// Irradiation time, s (None: three times the chain's mean time to an end, rounded up to
+    /// a round number, or one hour when the chain does not apply).
+    pub until: Option<f64>,
+    /// Window for barrier verdicts, s (None: no verdicts).
+    pub barrier_window: Option<f64>,
+    /// A target to plan for, as written for `plan --target` (None: no plan).
+    pub target: Option<String>,
+}
+
+/// Probability of crossing asked of every barrier verdict in a study.
+pub const BARRIER_PROBABILITY: f64 = 0.5;
+
+/// The chain analysis of one molecule, as the `ledger` command finds it with its defaults.
+#[derive(Debug, Clone)]
+pub struct ChainStudy {
+    /// The analysis (the photon-count distribution included).
+    pub analysis: Analysis,
+    /// Ends, cycles, visits and sorted sensitivities.
+    pub summary: Summary,
+}
+
+/// Barrier verdicts on every step with a rate.
+#[derive(Debug, Clone)]
+pub struct BarrierStudy {
+    /// The window, s.
+    pub window: f64,
+    /// The probability of crossing asked for.
+    pub probability: f64,
+    /// One verdict per step or channel with a rate.
+    pub rows: Vec<Verdict>,
+}
+
+/// Everything a study found.
+#[derive(Debug, Clone)]
+pub struct Study {
+    /// Irradiation time used, s.
+    pub until: f64,
+    /// How that time was chosen (for the report).
+    pub until_reason: String,
+    /// The kinetics run, with the photon ledger in its states.
+    pub kinetics: Trajectory,
+    /// True when the output times are spaced logarithmically because most of the change
+    /// happens early ([`front_loaded`]); plots then use a log time axis.
+    pub log_time: bool,
+    /// The chain, or why it does not apply to this network.
+    pub chain: std::result::Result<ChainStudy, String>,
+    /// Barrier verdicts, when a window was given.
+    pub barrier: Option<BarrierStudy>,
+    /// The plan, when a target was given.
+    pub plan: Option<PlanStudy>,
+}
+
+/// Factors on the file's light for the "other lamp powers" of a plan.
+pub const POWER_FACTORS: [f64; 5] = [0.25, 0.5, 1.0, 2.0, 4.0];
+
+/// The time to a target with every light source scaled by one factor.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Alternative {
+    /// Factor on every source's photon flux.
+    pub scale: f64,
+    /// Radiant power of all sources at that factor, W.
+    pub power: f64,
+    /// Time to the target, s (None: not reached).
+    pub time: Option<f64>,
+    /// Absorbed photons per mole of the target amount, einstein/mol.
+    pub absorbed_per_mol: Option<f64>,
+    /// Why the plan failed, when it did.
+    pub failed: Option<String>,
+}
+
+/// The plan for a target: the answer under the file's light, and under other powers.
+#[derive(Debug, Clone)]
+pub struct PlanStudy {
+    /// Time to target, dose and products at the file's light.
+    pub plan: Plan,
+    /// The same target at each of [`POWER_FACTORS`].
+    pub alternatives: Vec<Alternative>,
+}
+
+/// Plan `target` (as written, e.g. "product > 90 %") on `model`, light on throughout.
+fn plan_study(model: &Model, target: &str) -> Result<PlanStudy> {
+    let target = plan::target::parse(target, model)?;
+    let opts = PlanOptions::default();
+    let base = plan::time_to_target(model, &target, &opts)?;
+    let jobs = POWER_FACTORS
+        .iter()
+        .filter(|f| **f != 1.0)
+        .map(|&f| (f, model.with_light_scale(f), target.clone()))
+        .collect();
+    let mut points = plan::sweep(jobs, &opts).into_iter();
+    let alternatives = POWER_FACTORS
+        .iter()
+        .map(|&scale| {
+            let power = base.dose.power * scale;
+            let from = |p: &Plan| Alternative {
+                scale,
+                power,
+                time: p.time,
+                absorbed_per_mol: p.dose.absorbed_per_mol,
+                failed: None,
+            };
+            if scale == 1.0 {
+                return from(&base);
+            }
+            match points.next().map(|p| p.plan) {
+                Some(Ok(p)) => from(&p),
+                Some(Err(e)) => Alternative {
+                    scale,
+                    power,
+                    time: None,
+                    absorbed_per_mol: None,
+                    failed: Some(e),
+                },
+                None => Alternative {
+                    scale,
+                    power,
+                    time: None,
+                    absorbed_per_mol: None,
+                    failed: Some("not run".into()),
+                },
+            }
+        })
+        .collect();
+    Ok(PlanStudy {
+        plan: base,
+        alternatives,
+    })
+}
+
+/// A round duration at least `t` s: 1, 2 or 5 times a power of ten of s, min, h or d.
+pub fn round_up_duration(t: f64) -> f64 {
+    let unit = if t >= 2.0 * 86_400.0 {
+        86_400.0
+    } else if t >= 2.0 * 3600.0 {
+        3600.0
+    } else if t >= 120.0 {
+        60.0
+    } else {
+        1.0
+    };
+    let v = t / unit;
+    let p = 10f64.powf(v.log10().floor());
+    let m = [1.0, 2.0, 5.0, 10.0]
+        .into_iter()
+        .find(|m| m * p >= v * (1.0 - 1e-12))
+        .unwrap_or(10.0);
+    m * p * unit
+}
+
+/// True when every species that changes noticeably (by more than 1e-3 of the largest
+/// concentration) has made 90 % of its net change within the first tenth of the run: a linear
+/// time axis would squeeze the dynamics against its left edge.
+pub fn front_loaded(tr: &Trajectory, n_species: usize) -> bool {
+    let (Some(first), Some(last)) = (tr.states.first(), tr.states.last()) else {
+        return false;
+    };
+    let t_end = *tr.times.last().unwrap_or(&0.0);
+    let Some(k) = tr.times.iter().position(|t| *t >= 0.1 * t_end) else {
+        return false;
+    };
+    let scale = first[..n_species]
+        .iter()
+        .chain(&last[..n_species])
+        .fold(0.0f64, |a, b| a.max(b.abs()));
+    let mut changed = 0;
+    for i in 0..n_species {
+        let total = last[i] - first[i];
+        if total.abs() <= 1e-3 * scale {
+            continue;
+        }
+        changed += 1;
+        if (tr.states[k][i] - first[i]) / total < 0.9 {
+            return false;
+        }
+    }
+    changed > 0
+}
+
+/// The chain as `ledger` builds it by default: stirred-cell light at the initial
+/// concentrations, from the initial mixture.
+fn chain_study(model: &Model, net: &Network) -> Result<ChainStudy> {
+    let settings = Settings::default();
+    let values = Values::of(model, net);
+    let ch = build::build(model, net, &settings, &values)?;
+    let (start, note) = build::start(model, &ch, None)?;
+    let analysis = chain::analyse(&ch, &start, &chain::Options::default())?;
+    let sens = sensitivity::sensitivities(model, net, &settings, &start)?;
+    let summary = chain_report::summary(&net.about.name, &ch, &analysis, &note, &model.products, sens);
+    Ok(ChainStudy { analysis, summary })
+}
+
+/// Run the study of `net` (compiled as `model`).
+pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
+    let chain = chain_study(model, net).map_err(|e| e.to_string());
+    let (until, until_reason) = match (opts.until, &chain) {
+        (Some(t), _) => (t, "as asked (--until)".to_string()),
+        (None, Ok(c)) if c.summary.time_mean_s.is_finite() && c.summary.time_mean_s > 0.0 => (
+            round_up_duration(3.0 * c.summary.time_mean_s),
+            format!(
+                "three times the mean time a molecule takes to reach an end ({}), rounded up; set it with --until",
+                crate::units::format_time(c.summary.time_mean_s)
+            ),
+        ),
+        (None, _) => (
+            3600.0,
+            "one hour, the default when the single-molecule chain does not apply; set it with --until".into(),
+        ),
+    };
+    let mut kinetics = kinetics::simulate(model, &kinetics::Options::until(until), &mut |_| {})?;
+    let log_time = front_loaded(&kinetics, model.n_species());
+    if log_time {
+        let mut o = kinetics::Options::until(until);
+        o.log_time = true;
+        kinetics = kinetics::simulate(model, &o, &mut |_| {})?;
+    }
+    let barrier = match opts.barrier_window {
+        Some(window) => Some(BarrierStudy {
+            window,
+            probability: BARRIER_PROBABILITY,
+            rows: barrier::network_verdicts(net, window, BARRIER_PROBABILITY)?,
+        }),
+        None => None,
+    };
+    let plan = opts.target.as_deref().map(|t| plan_study(model, t)).transpose()?;
+    Ok(Study {
+        until,
+        until_reason,
+        kinetics,
+        log_time,
+        chain,
+        barrier,
+        plan,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::round_up_duration;
+
+    #[test]
+    fn durations_round_up_to_round_numbers() {
+        assert_eq!(round_up_duration(0.7), 1.0);
+        assert_eq!(round_up_duration(3.0), 5.0);
+        assert_eq!(round_up_duration(45.0), 50.0);
+        assert_eq!(round_up_duration(300.0), 300.0); // 5 min
+        assert_eq!(round_up_duration(8.67 * 3600.0), 10.0 * 3600.0);
+        assert_eq!(round_up_duration(3.0 * 86_400.0), 5.0 * 86_400.0);
+        assert_eq!(round_up_duration(2.0 * 3600.0), 2.0 * 3600.0);
+    }
+}

@@ -1,0 +1,354 @@
+//! `photoledger report` through the binary, on every bundled network: the page is one
+//! self-contained HTML document (no script, no URL, no external font or style), every section
+//! is there by id, every inline SVG is well-formed XML with ids unique across the page, every
+//! numeric table column names its unit, and the numbers agree with the `simulate` command.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+/// A fresh scratch folder under the system temp dir, removed when dropped.
+struct Scratch(PathBuf);
+
+impl Scratch {
+    fn new(tag: &str) -> Self {
+        let dir = std::env::temp_dir().join(format!("photoledger-report-html-{}-{tag}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        std::fs::create_dir_all(&dir).expect("scratch folder");
+        Scratch(dir)
+    }
+}
+
+impl Drop for Scratch {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_dir_all(&self.0);
+    }
+}
+
+fn run(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_photoledger"))
+        .args(args)
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .expect("run photoledger")
+}
+
+/// The bundled networks, as paths relative to the crate.
+fn bundled() -> Vec<String> {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("networks");
+    let mut v: Vec<String> = std::fs::read_dir(dir)
+        .expect("networks/")
+        .filter_map(|e| e.ok())
+        .map(|e| e.file_name().to_string_lossy().to_string())
+        .filter(|n| n.ends_with(".toml"))
+        .map(|n| format!("networks/{n}"))
+        .collect();
+    v.sort();
+    assert!(v.len() >= 3, "the bundled networks are there");
+    v
+}
+
+/// Render the report of `network` with `extra` options; returns the page.
+fn render(network: &str, extra: &[&str], scratch: &Scratch) -> String {
+    let out = scratch.0.join("report.html");
+    let mut args = vec!["report", network, "-o", out.to_str().unwrap()];
+    args.extend_from_slice(extra);
+    let o = run(&args);
+    assert!(
+        o.status.success(),
+        "{network}: report failed: {}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    std::fs::read_to_string(&out).expect("the page was written")
+}
+
+/// Every `<svg …>…</svg>` of the page (inline SVGs are not nested).
+fn svgs(page: &str) -> Vec<&str> {
+    let mut out = Vec::new();
+    let mut rest = page;
+    while let Some(a) = rest.find("<svg") {
+        let b = rest[a..].find("</svg>").expect("every <svg> is closed") + a + "</svg>".len();
+        out.push(&rest[a..b]);
+        rest = &rest[b..];
+    }
+    out
+}
+
+/// Values of every `id="…"` attribute in the page.
+fn ids(page: &str) -> Vec<&str> {
+    page.match_indices(" id=\"")
+        .map(|(i, m)| {
+            let s = &page[i + m.len()..];
+            &s[..s.find('"').unwrap()]
+        })
+        .collect()
+}
+
+/// The text of every `<th class="num" …>` header cell, per table.
+fn numeric_headers(page: &str) -> Vec<Vec<String>> {
+    page.split("<table>")
+        .skip(1)
+        .map(|t| {
+            let t = &t[..t.find("</table>").expect("closed table")];
+            t.split("<th class=\"num\"")
+                .skip(1)
+                .map(|h| {
+                    let h = &h[h.find('>').unwrap() + 1..];
+                    h[..h.find("</th>").unwrap()].to_string()
+                })
+                .collect()
+        })
+        .collect()
+}
+
+#[test]
+fn every_bundled_network_renders_a_self_contained_page() {
+    for net in bundled() {
+        let scratch = Scratch::new(&net.replace(['/', '.'], "-"));
+        let page = render(&net, &["--barrier-window", "1 h", "--until", "30 min"], &scratch);
+        assert!(page.starts_with("<!DOCTYPE html>"), "{net}");
+        assert!(page.trim_end().ends_with("</html>"), "{net}");
+        let lower = page.to_lowercase();
+        for banned in [
+            "http://",
+            "https://",
+            "<script",
+            "<?xml",
+            "<link",
+            "@import",
+            "@font-face",
+            " src=",
+            "url(\"",
+        ] {
+            assert!(!lower.contains(banned), "{net}: the page holds {banned:?}");
+        }
+        // url( only for references inside an SVG (prefixed ids), never to a file.
+        for (i, _) in lower.match_indices("url(") {
+            assert!(lower[i..].starts_with("url(#"), "{net}: {}", &page[i..i + 30]);
+        }
+        // Sections present by id, each linked from the contents.
+        for id in [
+            "about",
+            "safety",
+            "network",
+            "concentrations",
+            "photons",
+            "chain",
+            "barriers",
+            "run",
+        ] {
+            assert!(page.contains(&format!(" id=\"{id}\"")), "{net}: no section {id}");
+            if id != "about" {
+                assert!(
+                    page.contains(&format!("href=\"#{id}\"")),
+                    "{net}: {id} not in the contents"
+                );
+            }
+        }
+        // Every inline SVG parses as XML, without a namespace URL, and ids are unique.
+        let all = svgs(&page);
+        assert!(
+            all.len() >= 4,
+            "{net}: diagram, concentrations and ledger bars at least"
+        );
+        for svg in &all {
+            let doc = roxmltree::Document::parse(svg).unwrap_or_else(|e| panic!("{net}: SVG does not parse: {e}"));
+            assert_eq!(doc.root_element().tag_name().name(), "svg");
+            assert!(
+                doc.root_element().attribute("viewBox").is_some(),
+                "{net}: SVG scales by its viewBox"
+            );
+        }
+        let mut seen = std::collections::HashSet::new();
+        for id in ids(&page) {
+            assert!(seen.insert(id), "{net}: id {id:?} used twice");
+        }
+        for r in page.match_indices("url(#").map(|(i, _)| &page[i + 5..]) {
+            let target = &r[..r.find(')').unwrap()];
+            assert!(seen.contains(target), "{net}: url(#{target}) points nowhere");
+        }
+        // Tables: real tables, and every numeric column names its unit in parentheses.
+        let tables = numeric_headers(&page);
+        assert!(tables.len() >= 5, "{net}: {} tables", tables.len());
+        for headers in &tables {
+            assert!(!headers.is_empty(), "{net}: a table with no numeric column");
+            for h in headers {
+                let unit = h.rfind('(').map(|a| &h[a + 1..]).and_then(|u| u.strip_suffix(')'));
+                assert!(unit.is_some_and(|u| !u.is_empty()), "{net}: column {h:?} has no unit");
+            }
+        }
+        // Header facts and cautions.
+        assert!(page.contains("Where its numbers come from"), "{net}");
+        assert!(
+            page.contains(&format!("photoledger {}", env!("CARGO_PKG_VERSION"))),
+            "{net}"
+        );
+        assert!(
+            page.contains(&format!("photoledger report {net} -o ")),
+            "{net}: the command line"
+        );
+        assert!(
+            page.contains("--barrier-window &#39;1 h&#39;"),
+            "{net}: quoted arguments"
+        );
+        assert!(page.contains("Local regulations and your institution"), "{net}");
+        assert!(
+            page.contains("marked invented"),
+            "{net}: the bundled networks are invented"
+        );
+        let date = page.split("<dt>Date</dt><dd>").nth(1).expect("a date");
+        let date = &date[..date.find('<').unwrap()];
+        let b = date.as_bytes();
+        assert!(
+            date.len() == 20 && date.ends_with(" UTC") && b[4] == b'-' && b[7] == b'-',
+            "{net}: {date}"
+        );
+        assert!(page.contains("Assumes"), "{net}: assumptions are stated");
+    }
+}
+
+#[test]
+fn sections_follow_what_was_asked_and_what_applies() {
+    let scratch = Scratch::new("options");
+    // No --barrier-window: no verdicts section, and nothing pretending to be one.
+    let page = render("networks/photoswitch.toml", &["--until", "20 min"], &scratch);
+    assert!(!page.contains(" id=\"barriers\""));
+    assert!(!page.contains("href=\"#barriers\""));
+    // No --target: no plan section.
+    assert!(!page.contains(" id=\"plan\""));
+    // The photoswitch has no end a molecule can reach: the chain section says so.
+    assert!(page.contains("does not apply to this network"), "photoswitch chain");
+    // It reaches its photostationary state in the first minute: the time axis turns logarithmic.
+    assert!(page.contains("Time on a log scale"), "photoswitch time axis");
+    // The pool has one: its table, histogram and sensitivities are there, and the run length
+    // defaults to a multiple of the molecule's mean time.
+    let page = render("networks/prebiotic-pool.toml", &[], &scratch);
+    for want in [
+        "How a followed molecule ends",
+        "Photon-count distribution",
+        "Largest sensitivities",
+        "three times the mean time",
+    ] {
+        assert!(page.contains(want), "pool: {want}");
+    }
+    assert!(
+        !page.contains("Time on a log scale"),
+        "the pool changes over the whole run"
+    );
+    let wide = |p: &str| p.contains("ultraviolet");
+    assert!(wide(&page), "sunlight below 400 nm is named as ultraviolet");
+}
+
+#[test]
+fn the_page_agrees_with_simulate() {
+    let scratch = Scratch::new("agree");
+    let page = render("networks/photoswitch.toml", &["--until", "2 h"], &scratch);
+    let o = run(&[
+        "simulate",
+        "networks/photoswitch.toml",
+        "--until",
+        "2 h",
+        "--json",
+        "--out",
+        scratch.0.join("sim").to_str().unwrap(),
+    ]);
+    assert!(o.status.success());
+    let json: serde_json::Value = serde_json::from_slice(&o.stdout).expect("summary JSON");
+    let incident = json["photons"]["incident"].as_f64().expect("incident photons");
+    let text = page.split("In all ").nth(1).expect("incident photons on the page");
+    let mut words = text.split_whitespace();
+    let value: f64 = words.next().unwrap().parse().expect("a number");
+    let scale = match words.next().unwrap() {
+        "einstein" => 1.0,
+        "meinstein" => 1e-3,
+        "µeinstein" => 1e-6,
+        "neinstein" => 1e-9,
+        u => panic!("unit {u}"),
+    };
+    // Four significant figures on the page.
+    assert!(
+        ((value * scale) / incident - 1.0).abs() < 5e-4,
+        "{value} × {scale} vs {incident}"
+    );
+}
+
+#[test]
+fn the_plan_section_agrees_with_plan() {
+    let scratch = Scratch::new("plan");
+    let target = "product > 80 %";
+    let page = render("networks/flow-cyclization.toml", &["--target", target], &scratch);
+    assert!(page.contains(" id=\"plan\"") && page.contains("href=\"#plan\""));
+    for want in [
+        "The dose to the target",
+        "Products at that time",
+        "Other lamp powers",
+        "light on throughout",
+    ] {
+        assert!(page.contains(want), "{want}");
+    }
+    let o = run(&[
+        "plan",
+        "networks/flow-cyclization.toml",
+        "--target",
+        target,
+        "--json",
+        "--out",
+        scratch.0.join("plan").to_str().unwrap(),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let json: serde_json::Value = serde_json::from_slice(&o.stdout).expect("plan JSON");
+    let t = json["time"].as_f64().expect("a time to the target");
+    let shown = page
+        .split("Reached after <strong>")
+        .nth(1)
+        .expect("the time on the page");
+    let shown = &shown[..shown.find("</strong>").unwrap()];
+    let (v, unit) = shown.split_once(' ').expect("value and unit");
+    let scale = match unit {
+        "s" => 1.0,
+        "min" => 60.0,
+        "h" => 3600.0,
+        "d" => 86400.0,
+        u => panic!("unit {u}"),
+    };
+    let v: f64 = v.parse().expect("a number");
+    // Three significant figures on the page.
+    assert!((v * scale / t - 1.0).abs() < 5e-3, "{shown} vs {t} s");
+    // The photoswitch's photostationary state never reaches 60 % Z: said so, with the reason.
+    let page = render("networks/photoswitch.toml", &["--target", "Z-azo > 60 %"], &scratch);
+    assert!(
+        page.contains("Not reached: a photostationary state"),
+        "unreachable target"
+    );
+    let o = run(&[
+        "report",
+        "networks/photoswitch.toml",
+        "--target",
+        "nope > 1 %",
+        "-o",
+        "unused.html",
+    ]);
+    assert_eq!(
+        o.status.code(),
+        Some(2),
+        "an unknown species in the target is a usage error"
+    );
+}
+
+#[test]
+fn bad_input_is_named_not_rendered() {
+    let scratch = Scratch::new("bad");
+    let out = scratch.0.join("r.html");
+    let o = run(&[
+        "report",
+        "networks/photoswitch.toml",
+        "--until",
+        "2 parsecs",
+        "-o",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(2), "a usage error");
+    assert!(String::from_utf8_lossy(&o.stderr).contains("--until"));
+    assert!(!out.exists(), "nothing written");
+    let o = run(&["report", "networks/no-such.toml", "-o", out.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(3), "an unreadable file");
+}
