@@ -1,0 +1,6 @@
+//! Fitting mechanisms to measured data, and ranking rival mechanisms.
+//!
+//! `lsq.rs` is the least-squares core (Levenberg–Marquardt on transformed parameters, the
+//! linearised statistics); the photochemical fit builds on it.
+
+pub mod lsq;
