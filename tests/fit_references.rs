@@ -148,3 +148,157 @@ fn nist_chwirut2_from_both_starts() {
         assert_eq!(s.dof, 51);
     }
 }
+
+// ---------------------------------------------------------------------------------------------
+// The photochemical fit on invented data made with the tool (networks/photoswitch.toml).
+
+use photoledger::file::data::{self, Experiment};
+use photoledger::fit::mechanism::{self, Accuracy, FitOptions, Setup};
+use photoledger::fit::{FitResult, lsq};
+use std::path::Path;
+
+const NET: &str = "networks/photoswitch.toml";
+const RIVAL: &str = "networks/photoswitch-side-product.toml";
+const EXPERIMENTS: &str = "demo-data/fit/experiments.toml";
+
+/// The parameters the demo data were made from: Φ(E→Z) = 0.15 and ΔG‡ = 23.0 kcal/mol
+/// (the network file says 0.12 and 23.5 kcal/mol, the fit's start).
+const TRUE: [f64; 2] = [0.15, 23.0 * 4184.0];
+
+fn template() -> Vec<Experiment> {
+    data::read(Path::new(EXPERIMENTS)).unwrap()
+}
+
+fn keys() -> Vec<String> {
+    vec![
+        "photo.E to Z.quantum_yield".into(),
+        "thermal.thermal Z to E.barrier".into(),
+    ]
+}
+
+fn fit_on(net: &str, experiments: &[Experiment]) -> FitResult {
+    let loaded = photoledger::file::load(Path::new(net)).unwrap();
+    let setup = Setup::new(&loaded, vec![], experiments, &keys(), Accuracy::default()).unwrap();
+    mechanism::fit(&setup, &FitOptions::default(), &|| {}).unwrap()
+}
+
+fn synthetic(seed: u64) -> Vec<Experiment> {
+    let loaded = photoledger::file::load(Path::new(NET)).unwrap();
+    let t = template();
+    let setup = Setup::new(&loaded, vec![], &t, &keys(), Accuracy::default()).unwrap();
+    mechanism::synthesize(&setup, &TRUE, seed).unwrap()
+}
+
+#[test]
+fn recovery_within_two_standard_errors_in_most_seeded_trials() {
+    let mut inside = 0;
+    let mut total = 0;
+    for seed in 1..=8 {
+        let r = fit_on(NET, &synthetic(seed));
+        for (i, t) in TRUE.iter().enumerate() {
+            total += 1;
+            if (r.solution.values[i] - t).abs() <= 2.0 * r.solution.standard_errors[i] {
+                inside += 1;
+            }
+        }
+        // The reduced χ² of a right model with the right sd is near 1.
+        assert!(
+            r.solution.reduced_chi2 < 3.0,
+            "seed {seed}: {}",
+            r.solution.reduced_chi2
+        );
+    }
+    // Expected 95 %; a clear majority is required (common practice for coverage checks).
+    assert!(inside * 10 >= total * 8, "{inside} of {total} within 2 se");
+}
+
+#[test]
+fn compare_prefers_the_mechanism_that_made_the_data() {
+    let mut wins = 0;
+    let seeds = 1..=5;
+    let n = seeds.clone().count();
+    for seed in seeds {
+        let d = synthetic(100 + seed);
+        let a = fit_on(NET, &d);
+        let b = fit_on(RIVAL, &d);
+        let w = photoledger::fit::akaike_weights(&[a.aicc, b.aicc]);
+        if w[0] > w[1] {
+            wins += 1;
+        }
+    }
+    assert!(wins * 10 >= n * 8, "the true mechanism won {wins} of {n}");
+}
+
+#[test]
+fn bad_data_name_the_file_and_line() {
+    let loaded = photoledger::file::load(Path::new(NET)).unwrap();
+    let mut t = template();
+    t[0].points[3].species = "Z-azobenzene".into();
+    let e = match Setup::new(&loaded, vec![], &t, &keys(), Accuracy::default()) {
+        Err(e) => e.to_string(),
+        Ok(_) => panic!("an unknown species must be an error"),
+    };
+    assert!(
+        e.contains("uv-only.csv:9") && e.contains("Z-azobenzene") && e.contains("Z-azo"),
+        "{e}"
+    );
+    let e = Setup::new(
+        &loaded,
+        vec![],
+        &template(),
+        &["photo.E to Y.quantum_yield".into()],
+        Accuracy::default(),
+    )
+    .err()
+    .unwrap()
+    .to_string();
+    assert!(e.contains("did you mean photo.E to Z.quantum_yield?"), "{e}");
+}
+
+#[test]
+fn the_fitted_network_reads_back_with_the_fitted_values() {
+    let d = synthetic(7);
+    let r = fit_on(NET, &d);
+    let text = std::fs::read_to_string(NET).unwrap();
+    let out =
+        photoledger::report::fit::fitted_toml(&text, &r.free, &r.solution.values, &r.solution.standard_errors).unwrap();
+    assert!(out.contains("# An invented scenario"), "comments are kept");
+    let l = photoledger::file::parse_text(Path::new(NET), out).unwrap();
+    let net = photoledger::network::build(&l, &photoledger::Overrides::none()).unwrap();
+    for (f, v) in r.free.iter().zip(&r.solution.values) {
+        let back = photoledger::network::overrides::parameter(&net, &f.key).unwrap().value;
+        assert!((back - v).abs() <= 1e-6 * v.abs(), "{}: {back} vs {v}", f.key);
+    }
+}
+
+/// Writes demo-data/fit/*.csv and the end-point value (run with --ignored to regenerate).
+#[test]
+#[ignore]
+fn regenerate_demo_data() {
+    let d = synthetic(2026);
+    let recipe = "Invented demonstration data, made with photoledger from networks/photoswitch.toml with\n\
+                  photo.E to Z.quantum_yield = 0.15 and thermal.thermal Z to E.barrier = 23.0 kcal/mol,\n\
+                  plus normal noise of the sd column (seed 2026): tests/fit_references.rs, regenerate_demo_data.";
+    for (e, file) in d.iter().zip(["uv-only.csv", "dark.csv"]) {
+        let csv = photoledger::report::fit::points_csv(e, &format!("{recipe}\nexperiment: {}", e.name));
+        std::fs::write(Path::new("demo-data/fit").join(file), csv).unwrap();
+    }
+    let ratio = d[2].endpoints[0].value;
+    let toml = std::fs::read_to_string(EXPERIMENTS).unwrap();
+    let i = toml.find("over = \"E-azo\", value = ").unwrap() + "over = \"E-azo\", value = ".len();
+    let j = i + toml[i..].find(',').unwrap();
+    let toml = format!("{}{}{}", &toml[..i], photoledger::units::sig(ratio, 4), &toml[j..]);
+    std::fs::write(EXPERIMENTS, toml).unwrap();
+}
+
+#[test]
+fn transformed_bounds_keep_a_fraction_inside() {
+    // A fraction whose data say 1.2 stays below 1 and is flagged on its bound.
+    let m = |p: &[f64]| Some(vec![(1.2 - p[0]) / 0.01, (1.2 - p[0]) / 0.01]);
+    let s = lsq::fit(&m, &[0.5], &[lsq::Transform::Logistic], &lsq::Settings::default()).unwrap();
+    assert!(s.values[0] < 1.0 && s.values[0] > 0.999, "{}", s.values[0]);
+    assert!(
+        s.warnings(&[lsq::Transform::Logistic])
+            .contains(&lsq::Identifiability::AtBound(0))
+    );
+}

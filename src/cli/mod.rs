@@ -7,7 +7,9 @@
 mod barrier;
 mod bench;
 mod check;
+mod compare;
 mod diagram;
+mod fit;
 mod ledger;
 mod simulate;
 
@@ -52,6 +54,10 @@ enum Command {
     Simulate(simulate::SimulateArgs),
     /// Follow one molecule as an absorbing Markov chain: yields, cycles, photons per product.
     Ledger(ledger::LedgerArgs),
+    /// Fit free parameters of a network to measured time courses and end points.
+    Fit(fit::FitArgs),
+    /// Fit rival networks to the same data and rank them by AICc and BIC.
+    Compare(compare::CompareArgs),
     /// Draw the network as SVG (species, transients, thermal and photochemical steps).
     Diagram {
         #[command(flatten)]
@@ -81,6 +87,8 @@ pub fn run() -> i32 {
         Command::Bench(a) => bench::run(&a),
         Command::Barrier(a) => barrier::run(&a),
         Command::Ledger(a) => ledger::run(&a),
+        Command::Fit(a) => fit::run(&a),
+        Command::Compare(a) => compare::run(&a),
     };
     match result {
         Ok(()) => 0,

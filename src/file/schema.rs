@@ -32,6 +32,17 @@ pub struct NetworkFile {
     /// `[[transient]]` nodes.
     #[serde(default)]
     pub transient: Vec<Spanned<Transient>>,
+    /// `[fit]`: what `fit` and `compare` free by default.
+    pub fit: Option<Spanned<FitSection>>,
+}
+
+/// `[fit]`.
+#[derive(Debug, Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct FitSection {
+    /// `--set` keys freed by default, e.g. `["photo.E to Z.quantum_yield"]`.
+    #[serde(default)]
+    pub free: Vec<String>,
 }
 
 /// `[about]`.

@@ -3,4 +3,8 @@
 //! `lsq.rs` is the least-squares core (Levenberg–Marquardt on transformed parameters, the
 //! linearised statistics); the photochemical fit builds on it.
 
+pub mod compare;
 pub mod lsq;
+pub mod mechanism;
+
+pub use mechanism::{FitOptions, FitResult, Setup, akaike_weights, fit};

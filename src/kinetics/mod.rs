@@ -55,6 +55,9 @@ pub struct Options {
     /// BDF linear algebra: Some(true) sparse (faer sparse LU on a coloured Jacobian),
     /// Some(false) dense (nalgebra LU), None: sparse above 150 state variables.
     pub sparse: Option<bool>,
+    /// Explicit output times, s (for fitting to data): when not empty they replace `outputs`
+    /// and `log_time`; t = 0 comes first, then these sorted without repeats (those above `until` dropped).
+    pub times: Vec<f64>,
 }
 
 impl Options {
@@ -69,6 +72,7 @@ impl Options {
             log_time: false,
             event: None,
             sparse: None,
+            times: Vec::new(),
         }
     }
 }
@@ -145,6 +149,18 @@ impl Trajectory {
 
 /// The output times for `opts`.
 fn output_times(opts: &Options) -> Vec<f64> {
+    if !opts.times.is_empty() {
+        let mut t: Vec<f64> = opts
+            .times
+            .iter()
+            .copied()
+            .filter(|&t| t > 0.0 && t <= opts.until)
+            .collect();
+        t.sort_by(f64::total_cmp);
+        t.dedup();
+        t.insert(0, 0.0);
+        return t;
+    }
     let n = opts.outputs.max(1);
     let mut t = vec![0.0];
     if opts.log_time {

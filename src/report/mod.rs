@@ -4,6 +4,7 @@
 pub mod barrier;
 pub mod chain;
 pub mod diagram;
+pub mod fit;
 pub mod simulation;
 pub mod summary;
 
