@@ -165,7 +165,9 @@ const EXPERIMENTS: &str = "demo-data/fit/experiments.toml";
 /// (the network file says 0.12 and 23.5 kcal/mol, the fit's start).
 const TRUE: [f64; 2] = [0.15, 23.0 * 4184.0];
 
-fn template() -> Vec<Experiment> {
+/// The demo experiments with their committed (invented) data; the synthetic trials keep
+/// their times and sd and replace the values.
+fn demo() -> Vec<Experiment> {
     data::read(Path::new(EXPERIMENTS)).unwrap()
 }
 
@@ -184,7 +186,7 @@ fn fit_on(net: &str, experiments: &[Experiment]) -> FitResult {
 
 fn synthetic(seed: u64) -> Vec<Experiment> {
     let loaded = photoledger::file::load(Path::new(NET)).unwrap();
-    let t = template();
+    let t = demo();
     let setup = Setup::new(&loaded, vec![], &t, &keys(), Accuracy::default()).unwrap();
     mechanism::synthesize(&setup, &TRUE, seed).unwrap()
 }
@@ -232,7 +234,7 @@ fn compare_prefers_the_mechanism_that_made_the_data() {
 #[test]
 fn bad_data_name_the_file_and_line() {
     let loaded = photoledger::file::load(Path::new(NET)).unwrap();
-    let mut t = template();
+    let mut t = demo();
     t[0].points[3].species = "Z-azobenzene".into();
     let e = match Setup::new(&loaded, vec![], &t, &keys(), Accuracy::default()) {
         Err(e) => e.to_string(),
@@ -245,7 +247,7 @@ fn bad_data_name_the_file_and_line() {
     let e = Setup::new(
         &loaded,
         vec![],
-        &template(),
+        &demo(),
         &["photo.E to Y.quantum_yield".into()],
         Accuracy::default(),
     )
@@ -301,4 +303,42 @@ fn transformed_bounds_keep_a_fraction_inside() {
         s.warnings(&[lsq::Transform::Logistic])
             .contains(&lsq::Identifiability::AtBound(0))
     );
+}
+
+#[test]
+fn scipy_least_squares_agrees_on_the_demo_fit() {
+    // Reference: SciPy's scipy.optimize.least_squares (trust-region reflective) on its own
+    // re-implementation of the photoswitch kinetics (solve_ivp Radau), same data and weights:
+    // tests/data/scipy_fit_photoswitch.csv from scripts/scipy_fit_reference.py.
+    let text = std::fs::read_to_string("tests/data/scipy_fit_photoswitch.csv").unwrap();
+    let rows: Vec<Vec<String>> = text
+        .lines()
+        .filter(|l| !l.starts_with('#'))
+        .skip(1)
+        .map(|l| l.split(',').map(|s| s.to_string()).collect())
+        .collect();
+    let num = |r: usize, c: usize| rows[r][c].parse::<f64>().unwrap();
+    let experiments = demo();
+    let r = fit_on(NET, &experiments);
+    let s = &r.solution;
+    assert!(rel(s.values[0], num(0, 1)) < 1e-5, "Φ {} vs {}", s.values[0], num(0, 1));
+    assert!(
+        rel(s.values[1], num(1, 1)) < 1e-6,
+        "ΔG‡ {} vs {}",
+        s.values[1],
+        num(1, 1)
+    );
+    assert!(
+        rel(s.standard_errors[0], num(0, 2)) < 1e-2,
+        "se Φ {} vs {}",
+        s.standard_errors[0],
+        num(0, 2)
+    );
+    assert!(
+        rel(s.standard_errors[1], num(1, 2)) < 1e-2,
+        "se ΔG‡ {} vs {}",
+        s.standard_errors[1],
+        num(1, 2)
+    );
+    assert!(rel(s.chi2, num(2, 1)) < 1e-5, "χ² {} vs {}", s.chi2, num(2, 1));
 }

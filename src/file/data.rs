@@ -544,9 +544,9 @@ endpoints = [
         assert!((e[0].endpoints[1].value - 2e-9).abs() < 1e-20);
         let bad = t.replace("\"2 ns\"", "2");
         let m = parse_experiments(Path::new("e.toml"), &bad).unwrap_err().to_string();
-        assert!(m.contains("e.toml:9") && m.contains("has no unit"), "{m}");
+        assert!(m.contains("e.toml:8") && m.contains("has no unit"), "{m}");
         let bad = t.replace("kind = \"final\"", "kind = \"finale\"");
         let m = parse_experiments(Path::new("e.toml"), &bad).unwrap_err().to_string();
-        assert!(m.contains("e.toml:8") && m.contains("unknown kind"), "{m}");
+        assert!(m.contains("e.toml:7") && m.contains("unknown kind"), "{m}");
     }
 }
