@@ -342,3 +342,132 @@ fn scipy_least_squares_agrees_on_the_demo_fit() {
     );
     assert!(rel(s.chi2, num(2, 1)) < 1e-5, "χ² {} vs {}", s.chi2, num(2, 1));
 }
+
+#[test]
+fn end_points_agree_with_the_time_course_and_lifetimes_with_the_rates() {
+    use photoledger::file::data::{Endpoint, EndpointKind};
+    let loaded = photoledger::file::load(Path::new(NET)).unwrap();
+    let mut d = demo();
+    let e = &mut d[0];
+    let last = e.points.iter().map(|p| p.time).fold(0.0, f64::max);
+    let ep = |kind| Endpoint {
+        kind,
+        value: 0.0,
+        sd: 1.0,
+        weighted: true,
+        file: "x.toml".into(),
+        line: 1,
+    };
+    e.yield_of = Some("E-azo".into());
+    e.endpoints = vec![
+        ep(EndpointKind::Final("Z-azo".into())),
+        ep(EndpointKind::Yield("Z-azo".into())),
+        ep(EndpointKind::Ratio("Z-azo".into(), "E-azo".into())),
+    ];
+    let setup = Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).unwrap();
+    let p = setup.predict(&d[0], &setup.start()).unwrap();
+    let at = |s: &str| {
+        let i = d[0]
+            .points
+            .iter()
+            .position(|q| q.time == last && q.species == s)
+            .unwrap();
+        p.points[i]
+    };
+    assert!(rel(p.endpoints[0], at("Z-azo")) < 1e-12);
+    assert!(
+        rel(p.endpoints[1], at("Z-azo") / 50e-6) < 1e-12,
+        "yield over the 50 µM of E-azo at the start"
+    );
+    assert!(rel(p.endpoints[2], at("Z-azo") / at("E-azo")) < 1e-12);
+    // Lifetime of the excited substrate of the flow network: 1 / (4.2e8 + 2.4e8 + 1.5e10 × 20e-6) s
+    // from its own rate constants.
+    let net = photoledger::network::load(
+        Path::new("networks/flow-cyclization.toml"),
+        &photoledger::Overrides::none(),
+    )
+    .unwrap();
+    let tau = mechanism::lifetime(&net, "substrate*").unwrap();
+    assert!(rel(tau, 1.0 / (4.2e8 + 2.4e8 + 1.5e10 * 20e-6)) < 1e-12);
+}
+
+#[test]
+fn fit_and_compare_through_the_binary() {
+    let bin = env!("CARGO_BIN_EXE_photoledger");
+    let dir = std::env::temp_dir().join(format!("pl-fit-{}", std::process::id()));
+    let run = |args: &[&str]| std::process::Command::new(bin).args(args).output().unwrap();
+    let out = dir.join("fit");
+    let o = run(&[
+        "fit",
+        NET,
+        "--data",
+        EXPERIMENTS,
+        "--out",
+        out.to_str().unwrap(),
+        "--json",
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let j: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(j["parameters"].as_array().unwrap().len(), 2);
+    for f in [
+        "summary.txt",
+        "fit.json",
+        "fit.svg",
+        "residuals.svg",
+        "residuals.csv",
+        "photoswitch.fitted.toml",
+    ] {
+        assert!(out.join(f).exists(), "{f}");
+    }
+    roxmltree::Document::parse(&std::fs::read_to_string(out.join("fit.svg")).unwrap()).unwrap();
+    // A bad row: exit 1, the file and line named.
+    let bad = dir.join("bad.csv");
+    std::fs::write(&bad, "time (min), species, value (µM)\n0, Z-azo, 1\n2, Z-azo, lots\n").unwrap();
+    let o = run(&[
+        "fit",
+        NET,
+        "--data",
+        bad.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    let e = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(1), "{e}");
+    assert!(
+        e.contains("bad.csv:3") && e.contains("\"lots\" is not a finite number"),
+        "{e}"
+    );
+    // An unknown free key: exit 2 with a suggestion.
+    let o = run(&[
+        "fit",
+        NET,
+        "--data",
+        EXPERIMENTS,
+        "--free",
+        "photo.E to Z.quantum_yeld",
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("did you mean photo.E to Z.quantum_yield?"));
+    // compare ranks the mechanism that made the demo data first.
+    let cmp = dir.join("compare");
+    let o = run(&[
+        "compare",
+        NET,
+        RIVAL,
+        "--data",
+        EXPERIMENTS,
+        "--out",
+        cmp.to_str().unwrap(),
+        "--json",
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let j: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(j["ranking"][0]["network"], NET);
+    assert!(
+        j["largest_disagreement"].as_str().unwrap().contains("Z-azo")
+            || j["largest_disagreement"].as_str().unwrap().contains("E-azo")
+    );
+    std::fs::remove_dir_all(dir).ok();
+}

@@ -222,8 +222,7 @@ pub fn data_svg(title: &str, rows: &[Row], models: &[(String, Vec<Curve>)]) -> S
                     .legend(move |(x, y)| Circle::new((x + 8, y), 3, col.filled()));
                 for (m, (_, curves)) in models.iter().enumerate() {
                     for cv in curves.iter().filter(|cv| &cv.experiment == e) {
-                        for (name, v, _) in cv.series.iter().filter(|x| &x.0 == s) {
-                            let _ = name;
+                        for (_, v, _) in cv.series.iter().filter(|x| &x.0 == s) {
                             let line: Vec<(f64, f64)> = cv.times.iter().zip(v).map(|(t, y)| (t / tu, y * ys)).collect();
                             let style = if m == 0 {
                                 col.stroke_width(2)
@@ -313,7 +312,7 @@ pub fn fitted_toml(text: &str, free: &[Free], values: &[f64], se: &[f64]) -> Res
         .parse()
         .map_err(|e| Error::Usage(format!("the network file cannot be edited: {e}")))?;
     let bad = |k: &str| Error::Usage(format!("{k}: cannot be located in the network file to write it back"));
-    for ((f, v), s) in free.iter().zip(values).zip(se) {
+    for (f, v) in free.iter().zip(values) {
         let key = f.key.as_str();
         let text_v = value_text(f, *v);
         let new: Value = if f.unit.is_empty() {
@@ -321,7 +320,6 @@ pub fn fitted_toml(text: &str, free: &[Free], values: &[f64], se: &[f64]) -> Res
         } else {
             Value::from(text_v.clone())
         };
-        let _ = s;
         let find = |doc: &mut DocumentMut, array: &str, name: &str| -> Option<usize> {
             let arr = doc.get(array)?.as_array_of_tables()?;
             arr.iter().position(|t| {
