@@ -471,3 +471,24 @@ fn fit_and_compare_through_the_binary() {
     );
     std::fs::remove_dir_all(dir).ok();
 }
+
+#[test]
+fn multi_start_is_the_same_on_one_thread_and_on_two() {
+    let loaded = photoledger::file::load(Path::new(NET)).unwrap();
+    let d = demo();
+    let setup = Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).unwrap();
+    let opts = FitOptions {
+        starts: 3,
+        seed: 11,
+        ..FitOptions::default()
+    };
+    let on = |n: usize| {
+        let pool = rayon::ThreadPoolBuilder::new().num_threads(n).build().unwrap();
+        pool.install(|| mechanism::fit(&setup, &opts, &|| {}).unwrap())
+    };
+    let (a, b) = (on(1), on(2));
+    assert_eq!(a.starts, b.starts);
+    assert_eq!(a.solution.values, b.solution.values);
+    assert_eq!(a.starts.len(), 3);
+    assert_ne!(a.starts[1].start, a.starts[2].start, "each start draws its own values");
+}

@@ -126,6 +126,7 @@ pub fn fit_json(network: &str, r: &FitResult) -> serde_json::Value {
             "standard_error": s.standard_errors[i], "interval_95": [s.intervals[i].0, s.intervals[i].1],
         })).collect::<Vec<_>>(),
         "correlation": (0..p).map(|i| (0..p).map(|j| s.correlation[(i, j)]).collect::<Vec<_>>()).collect::<Vec<_>>(),
+        "covariance": (0..p).map(|i| (0..p).map(|j| s.covariance[(i, j)]).collect::<Vec<_>>()).collect::<Vec<_>>(),
         "chi2": s.chi2, "reduced_chi2": s.reduced_chi2, "dof": s.dof, "observations": r.n,
         "weighted": r.weighted, "aicc": r.aicc, "bic": r.bic, "minus_two_log_likelihood": r.minus_two_log_likelihood,
         "warnings": r.warnings, "termination": s.termination,
