@@ -326,8 +326,16 @@ pub fn fitted_toml(text: &str, free: &[Free], values: &[f64], se: &[f64]) -> Res
             arr.iter().position(|t| {
                 let n = t.get("name").and_then(|x| x.as_str()).map(str::trim);
                 let eq = t.get("equation").and_then(|x| x.as_str()).map(str::trim);
+                let text = |k: &str| t.get(k).and_then(|x| x.as_str()).map(str::trim);
+                let long = match (text("absorber"), text("excites")) {
+                    (Some(a), Some(x)) => Some(format!("{a} + hν -> {x}")),
+                    _ => None,
+                };
                 n == Some(name)
-                    || (n.is_none() && (eq == Some(name) || eq.map(|e| format!("{e} (hν)")).as_deref() == Some(name)))
+                    || (n.is_none()
+                        && (eq == Some(name)
+                            || eq.map(|e| format!("{e} (hν)")).as_deref() == Some(name)
+                            || long.as_deref() == Some(name)))
             })
         };
         // Put `field` = new into the rate table `rate` (an inline table or a table).
@@ -530,4 +538,107 @@ pub fn points_csv(e: &Experiment, comment: &str) -> String {
         );
     }
     o
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::fit::lsq::Transform;
+    use crate::network::overrides::parameter;
+    use std::path::Path;
+
+    const NET: &str = r#"
+# a comment that must survive
+[conditions]
+temperature = "298.15 K"
+volume = "3 mL"
+path_length = "1 cm"
+
+[[light]]
+name = "lamp"
+kind = "line"
+wavelength = "365 nm"
+power = "10 mW"
+
+[[species]]
+name = "A"
+initial = "1 mM"
+epsilon = { at = "365 nm", value = "1000 L/(mol cm)" }
+
+[[species]]
+name = "B"
+
+[[species]]
+name = "Q"
+initial = "1 mM"
+
+[[photo]]
+absorber = "A"
+excites = "A*"
+
+[[transient]]
+name = "A*"
+kind = "excited"
+channels = [
+  { to = "B", rate = { k = "1e8 /s" } },   # reaction
+  { to = "A", quencher = "Q", rate = { barrier = "5 kcal/mol" } },
+]
+
+[[thermal]]
+equation = "B <=> A"
+rate = { k = "1e-3 /s" }
+reverse = { prefactor = "1e10 /s", activation = "90 kJ/mol" }
+"#;
+
+    #[test]
+    fn every_kind_of_key_is_written_back_and_reads_back() {
+        let l = crate::file::parse_text(Path::new("n.toml"), NET.to_string()).unwrap();
+        let net = crate::network::build(&l, &crate::network::Overrides::none()).unwrap();
+        let keys = [
+            "conditions.temperature",
+            "species.A.initial",
+            "light.lamp.power",
+            "photo.A + hν -> A*.efficiency",
+            "transient.A*.channels[0].k",
+            "transient.A*.channels[1].barrier",
+            "thermal.B <=> A.k",
+            "thermal.B <=> A.reverse.activation",
+        ];
+        let free: Vec<Free> = keys
+            .iter()
+            .map(|k| {
+                let p = parameter(&net, k).unwrap_or_else(|e| panic!("{e}"));
+                Free {
+                    key: k.to_string(),
+                    start: p.value,
+                    unit: p.unit,
+                    transform: Transform::Identity,
+                }
+            })
+            .collect();
+        let values: Vec<f64> = free
+            .iter()
+            .map(|f| if f.unit.is_empty() { 0.8 } else { f.start * 1.25 })
+            .collect();
+        let se = vec![0.0; values.len()];
+        let text = fitted_toml(NET, &free, &values, &se).unwrap();
+        assert!(
+            text.contains("# a comment that must survive") && text.contains("# reaction"),
+            "{text}"
+        );
+        let l = crate::file::parse_text(Path::new("n.toml"), text.clone()).unwrap();
+        let net =
+            crate::network::build(&l, &crate::network::Overrides::none()).unwrap_or_else(|e| panic!("{e}\n{text}"));
+        for (f, v) in free.iter().zip(&values) {
+            let back = parameter(&net, &f.key).unwrap().value;
+            assert!((back - v).abs() <= 1e-6 * v.abs(), "{}: {back} vs {v}\n{text}", f.key);
+        }
+        let bad = Free {
+            key: "thermal.nothing.k".into(),
+            start: 1.0,
+            unit: "/s",
+            transform: Transform::Log,
+        };
+        assert!(fitted_toml(NET, &[bad], &[1.0], &[0.0]).is_err());
+    }
 }
