@@ -11,6 +11,7 @@ pub mod bench;
 pub mod chain;
 pub mod error;
 pub mod file;
+pub mod fit;
 pub mod kinetics;
 pub mod light;
 pub mod model;

@@ -8,7 +8,9 @@ mod actinometer;
 mod barrier;
 mod bench;
 mod check;
+mod compare;
 mod diagram;
+mod fit;
 mod ledger;
 mod plan;
 mod report;
@@ -67,6 +69,10 @@ enum Command {
     Actinometer(actinometer::ActinometerArgs),
     /// Write one self-contained HTML study report: diagram, kinetics, photon ledger, chain, barriers.
     Report(report::ReportArgs),
+    /// Fit free parameters of a network to measured time courses and end points.
+    Fit(fit::FitArgs),
+    /// Fit rival networks to the same data and rank them by AICc and BIC.
+    Compare(compare::CompareArgs),
     /// Draw the network as SVG (species, transients, thermal and photochemical steps).
     Diagram {
         #[command(flatten)]
@@ -100,6 +106,8 @@ pub fn run() -> i32 {
         Command::Plan(a) => plan::run(&a),
         Command::Actinometer(a) => actinometer::run(&a),
         Command::Report(a) => report::run(&a),
+        Command::Fit(a) => fit::run(&a),
+        Command::Compare(a) => compare::run(&a),
     };
     match result {
         Ok(()) => 0,

@@ -47,7 +47,7 @@ impl fmt::Display for CsvError {
 }
 
 /// Split "wavelength (nm)" into ("wavelength", Some("nm")).
-fn split_header(cell: &str) -> (String, Option<String>) {
+pub(crate) fn split_header(cell: &str) -> (String, Option<String>) {
     let cell = cell.trim();
     for (open, close) in [('(', ')'), ('[', ']')] {
         if let Some(i) = cell.find(open)

@@ -5,6 +5,7 @@
 //! names, so that `network::build` is a pure function of what was read.
 
 pub mod csv;
+pub mod data;
 pub mod frequencies;
 pub mod schema;
 pub mod uncertain;

@@ -35,6 +35,17 @@ pub struct NetworkFile {
     /// `[[uncertain]]` distributions for `photoledger uncertainty` (layout in `file/uncertain.rs`).
     #[serde(default)]
     pub uncertain: Vec<Spanned<super::uncertain::Uncertain>>,
+    /// `[fit]`: what `fit` and `compare` free by default.
+    pub fit: Option<Spanned<FitSection>>,
+}
+
+/// `[fit]`.
+#[derive(Debug, Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct FitSection {
+    /// `--set` keys freed by default, e.g. `["photo.E to Z.quantum_yield"]`.
+    #[serde(default)]
+    pub free: Vec<String>,
 }
 
 /// `[about]`.

@@ -58,6 +58,10 @@ pub struct Options {
     /// Optional light schedule (e.g. sun-hours a day): the integration is split at every
     /// switch and the solver restarted there, so no step spans a discontinuity.
     pub schedule: Option<Schedule>,
+    /// Explicit output times, s (for fitting to data): when not empty they replace `outputs`
+    /// and `log_time`; the start comes first, then these sorted without repeats (those outside
+    /// (start, `until`] dropped).
+    pub times: Vec<f64>,
 }
 
 /// Light on for `lit` s at the start of every `period` s, off for the rest (all sources
@@ -130,6 +134,7 @@ impl Options {
             event: None,
             sparse: None,
             schedule: None,
+            times: Vec::new(),
         }
     }
 }
@@ -213,6 +218,18 @@ impl Trajectory {
 
 /// The output times for `opts`, from `start`.
 fn output_times(opts: &Options, start: f64) -> Vec<f64> {
+    if !opts.times.is_empty() {
+        let mut t: Vec<f64> = opts
+            .times
+            .iter()
+            .copied()
+            .filter(|&t| t > start && t <= opts.until)
+            .collect();
+        t.sort_by(f64::total_cmp);
+        t.dedup();
+        t.insert(0, start);
+        return t;
+    }
     let n = opts.outputs.max(1);
     let mut t = vec![start];
     if opts.log_time {

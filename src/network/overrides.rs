@@ -113,6 +113,11 @@ impl Overrides {
             .collect()
     }
 
+    /// The `(key, value)` pairs given, in order.
+    pub fn pairs(&self) -> Vec<(String, String)> {
+        self.entries.clone()
+    }
+
     /// True when nothing is overridden.
     pub fn is_empty(&self) -> bool {
         self.entries.is_empty()

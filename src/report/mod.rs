@@ -4,6 +4,7 @@
 pub mod barrier;
 pub mod chain;
 pub mod diagram;
+pub mod fit;
 pub mod html;
 pub mod plan;
 pub mod simulation;

@@ -166,7 +166,7 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
 }
 
 /// Choose a time unit for axes.
-fn time_unit(t_end: f64) -> (f64, &'static str) {
+pub(crate) fn time_unit(t_end: f64) -> (f64, &'static str) {
     if t_end >= 3.0 * 86400.0 {
         (86400.0, "d")
     } else if t_end >= 3.0 * 3600.0 {
@@ -178,7 +178,7 @@ fn time_unit(t_end: f64) -> (f64, &'static str) {
     }
 }
 
-const PALETTE: [RGBColor; 10] = [
+pub(crate) const PALETTE: [RGBColor; 10] = [
     RGBColor(31, 119, 180),
     RGBColor(214, 39, 40),
     RGBColor(44, 160, 44),

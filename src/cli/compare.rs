@@ -1,0 +1,113 @@
+//! `photoledger compare A.toml B.toml ... --data DATA... [--free A.toml:KEY,KEY ...]`.
+
+use super::fit::{fit_one, read_data};
+use photoledger::Error;
+use photoledger::fit::akaike_weights;
+use photoledger::fit::compare;
+use photoledger::fit::mechanism::FitOptions;
+use photoledger::report::fit::{self as rf, Ranked};
+use photoledger::report::write_atomic;
+use std::path::PathBuf;
+
+/// Options of `compare`.
+#[derive(clap::Args, Debug)]
+pub struct CompareArgs {
+    /// The rival network files (two or more).
+    #[arg(required = true, num_args = 2..)]
+    pub files: Vec<PathBuf>,
+    /// Data: time-course CSV files or experiments TOML files (repeatable).
+    #[arg(long, required = true, num_args = 1.., value_name = "FILE")]
+    pub data: Vec<PathBuf>,
+    /// Free parameters of one network, FILE:KEY,KEY (repeatable; default: each file's [fit] free list).
+    #[arg(long, value_name = "FILE:KEYS")]
+    pub free: Vec<String>,
+    /// Output folder.
+    #[arg(long, value_name = "DIR", default_value = "compare")]
+    pub out: PathBuf,
+    /// Print the JSON result to stdout instead of the table.
+    #[arg(long)]
+    pub json: bool,
+    /// Number of starts per network.
+    #[arg(long, default_value_t = 1)]
+    pub starts: usize,
+    /// Seed of the random starts.
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
+}
+
+pub fn run(a: &CompareArgs) -> photoledger::Result<()> {
+    let experiments = read_data(&a.data)?;
+    let opts = FitOptions {
+        starts: a.starts.max(1),
+        seed: a.seed,
+        ..FitOptions::default()
+    };
+    for f in &a.free {
+        let Some((file, _)) = f.rsplit_once(".toml:") else {
+            return Err(Error::Usage(format!("--free {f}: expected FILE.toml:KEY,KEY")));
+        };
+        if !a
+            .files
+            .iter()
+            .any(|p| p.display().to_string() == format!("{file}.toml"))
+        {
+            return Err(Error::Usage(format!(
+                "--free {f}: {file}.toml is not one of the networks compared"
+            )));
+        }
+    }
+    let mut fits = Vec::new();
+    for file in &a.files {
+        let name = file.display().to_string();
+        let free: Vec<String> = a
+            .free
+            .iter()
+            .filter_map(|f| f.strip_prefix(&format!("{name}:")))
+            .flat_map(|k| k.split(',').map(|s| s.trim().to_string()))
+            .collect();
+        let (_, result, curves, predicted) = fit_one(file, &[], &free, &experiments, &opts).map_err(|e| match e {
+            Error::Usage(m) => Error::Usage(format!("{name}: {m}")),
+            Error::Numerical(m) => Error::Numerical(format!("{name}: {m}")),
+            other => other,
+        })?;
+        fits.push((name, result, curves, predicted));
+    }
+    let weights = akaike_weights(&fits.iter().map(|f| f.1.aicc).collect::<Vec<_>>());
+    let mut order: Vec<usize> = (0..fits.len()).collect();
+    order.sort_by(|&i, &j| fits[i].1.aicc.total_cmp(&fits[j].1.aicc));
+    let disagreement = if order.len() >= 2 {
+        let (a0, b0) = (&fits[order[0]], &fits[order[1]]);
+        compare::disagreement(&experiments, &a0.2, &b0.2).map(|d| compare::describe(&d, &a0.0, &b0.0))
+    } else {
+        None
+    };
+    let ranked: Vec<Ranked> = order
+        .iter()
+        .map(|&i| Ranked {
+            network: fits[i].0.clone(),
+            fit: fits[i].1.clone(),
+            weight: weights[i],
+        })
+        .collect();
+    let text = rf::compare_text(&ranked, disagreement.as_deref());
+    let json = rf::compare_json(&ranked, disagreement.as_deref());
+    let best = &fits[order[0]];
+    let rows = rf::rows(&experiments, &best.3);
+    let models: Vec<(String, Vec<_>)> = order.iter().map(|&i| (fits[i].0.clone(), fits[i].2.clone())).collect();
+    write_atomic(&a.out.join("ranking.txt"), text.as_bytes())?;
+    write_atomic(
+        &a.out.join("ranking.json"),
+        serde_json::to_string_pretty(&json).unwrap_or_default().as_bytes(),
+    )?;
+    write_atomic(
+        &a.out.join("fits.svg"),
+        rf::data_svg("data and each network's fit", &rows, &models).as_bytes(),
+    )?;
+    if a.json {
+        println!("{}", serde_json::to_string_pretty(&json).unwrap_or_default());
+    } else {
+        print!("{text}");
+        println!("wrote {}/ ranking.txt ranking.json fits.svg", a.out.display());
+    }
+    Ok(())
+}

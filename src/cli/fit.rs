@@ -1,0 +1,151 @@
+//! `photoledger fit FILE --data DATA... [--free KEYS] [--out DIR] [--json] [--starts N] [--seed S]`.
+
+use photoledger::Error;
+use photoledger::file::data::{self, Experiment};
+use photoledger::fit::mechanism::{self, Accuracy, FitOptions, Setup};
+use photoledger::report::{fit as rf, write_atomic};
+use std::path::{Path, PathBuf};
+
+/// Options of `fit`.
+#[derive(clap::Args, Debug)]
+pub struct FitArgs {
+    /// The network file (TOML).
+    pub file: PathBuf,
+    /// Data: time-course CSV files, or experiments TOML files tying data to conditions (repeatable).
+    #[arg(long, required = true, num_args = 1.., value_name = "FILE")]
+    pub data: Vec<PathBuf>,
+    /// Free parameters as --set keys, comma-separated or repeated (default: the file's [fit] free list).
+    #[arg(long, value_delimiter = ',', value_name = "KEYS")]
+    pub free: Vec<String>,
+    /// Override a value of the file for every experiment (repeatable).
+    #[arg(long = "set", value_name = "KEY=VALUE")]
+    pub set: Vec<String>,
+    /// Output folder (default: NETWORK-fit beside the current folder).
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+    /// Print the JSON result to stdout instead of the table.
+    #[arg(long)]
+    pub json: bool,
+    /// Number of starts: the file's values, then seeded random starts around them.
+    #[arg(long, default_value_t = 1)]
+    pub starts: usize,
+    /// Seed of the random starts.
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
+}
+
+/// Read every data argument.
+pub fn read_data(paths: &[PathBuf]) -> photoledger::Result<Vec<Experiment>> {
+    let mut all = Vec::new();
+    for p in paths {
+        all.extend(data::read(p)?);
+    }
+    Ok(all)
+}
+
+/// The free keys: given ones, else the file's `[fit] free`.
+pub fn free_keys(loaded: &photoledger::file::Loaded, given: &[String]) -> Vec<String> {
+    let given: Vec<String> = given
+        .iter()
+        .map(|k| k.trim().to_string())
+        .filter(|k| !k.is_empty())
+        .collect();
+    if !given.is_empty() {
+        return given;
+    }
+    loaded.doc.fit.as_ref().map_or(Vec::new(), |f| f.get_ref().free.clone())
+}
+
+/// A progress bar on stderr when it is a terminal.
+pub fn bar(n: usize, what: &str) -> indicatif::ProgressBar {
+    use std::io::IsTerminal;
+    if !std::io::stderr().is_terminal() {
+        return indicatif::ProgressBar::hidden();
+    }
+    let b = indicatif::ProgressBar::new(n as u64);
+    if let Ok(s) = indicatif::ProgressStyle::with_template("{msg} [{bar:30}] {pos}/{len} starts") {
+        b.set_style(s);
+    }
+    b.set_message(what.to_string());
+    b
+}
+
+/// A fitted network: the file as read, the fit, dense curves and the predictions at the data.
+pub type Fitted = (
+    photoledger::file::Loaded,
+    photoledger::fit::FitResult,
+    Vec<mechanism::Curve>,
+    Vec<Vec<f64>>,
+);
+
+/// Fit one network; returns the setup's pieces the caller needs.
+pub fn fit_one(
+    file: &Path,
+    set: &[String],
+    free: &[String],
+    experiments: &[Experiment],
+    opts: &FitOptions,
+) -> photoledger::Result<Fitted> {
+    let loaded = photoledger::file::load(file)?;
+    let base = photoledger::Overrides::parse(set).map_err(Error::Usage)?.pairs();
+    let keys = free_keys(&loaded, free);
+    let setup = Setup::new(&loaded, base.clone(), experiments, &keys, Accuracy::default())?;
+    let pb = bar(opts.starts.max(1), &file.display().to_string());
+    let result = mechanism::fit(&setup, opts, &|| pb.inc(1))?;
+    pb.finish_and_clear();
+    let x = result.solution.values.clone();
+    let curves = mechanism::curves(&setup, &x, 300)?;
+    let predicted = experiments
+        .iter()
+        .map(|e| setup.predict(e, &x).map(|p| p.points))
+        .collect::<photoledger::Result<Vec<_>>>()?;
+    drop(setup);
+    Ok((loaded, result, curves, predicted))
+}
+
+pub fn run(a: &FitArgs) -> photoledger::Result<()> {
+    let experiments = read_data(&a.data)?;
+    let opts = FitOptions {
+        starts: a.starts.max(1),
+        seed: a.seed,
+        ..FitOptions::default()
+    };
+    let (loaded, result, curves, predicted) = fit_one(&a.file, &a.set, &a.free, &experiments, &opts)?;
+    let stem = a
+        .file
+        .file_stem()
+        .map_or("network".into(), |s| s.to_string_lossy().to_string());
+    let out = a.out.clone().unwrap_or_else(|| PathBuf::from(format!("{stem}-fit")));
+    let name = a.file.display().to_string();
+    let text = rf::fit_text(&name, &result);
+    let json = rf::fit_json(&name, &result);
+    let rows = rf::rows(&experiments, &predicted);
+    let s = &result.solution;
+    let fitted = rf::fitted_toml(&loaded.text, &result.free, &s.values, &s.standard_errors)?;
+    write_atomic(&out.join("summary.txt"), text.as_bytes())?;
+    write_atomic(
+        &out.join("fit.json"),
+        serde_json::to_string_pretty(&json).unwrap_or_default().as_bytes(),
+    )?;
+    write_atomic(&out.join("residuals.csv"), rf::residuals_csv(&rows).as_bytes())?;
+    let title = format!("{stem}: data and fit");
+    write_atomic(
+        &out.join("fit.svg"),
+        rf::data_svg(&title, &rows, &[(stem.clone(), curves)]).as_bytes(),
+    )?;
+    write_atomic(
+        &out.join("residuals.svg"),
+        rf::residuals_svg(&format!("{stem}: weighted residuals"), &rows).as_bytes(),
+    )?;
+    write_atomic(&out.join(format!("{stem}.fitted.toml")), fitted.as_bytes())?;
+    if a.json {
+        println!("{}", serde_json::to_string_pretty(&json).unwrap_or_default());
+    } else {
+        print!("{text}");
+        println!(
+            "wrote {}/ summary.txt fit.json residuals.csv fit.svg residuals.svg {stem}.fitted.toml",
+            out.display()
+        );
+    }
+    Ok(())
+}

@@ -1,0 +1,426 @@
+//! Weighted nonlinear least squares: Levenberg–Marquardt (the `levenberg-marquardt` crate) on
+//! transformed parameters, and the linearised statistics at the optimum.
+//!
+//! Bounds are kept by transformation, never by clipping: a value in [0, 1] is fitted as
+//! z = logit(x), a positive value as z = ln x, anything else as itself. The Jacobian is taken by
+//! central differences on the transformed scale. Standard errors come from (JᵀJ)⁻¹ of the
+//! weighted residuals at the optimum in the natural parameters, scaled by the reduced χ²
+//! (common practice; it is what the NIST StRD certified standard deviations are).
+
+use levenberg_marquardt::{LeastSquaresProblem, LevenbergMarquardt};
+use nalgebra::{DMatrix, DVector, Dyn, Owned};
+use statrs::distribution::{ContinuousCDF, StudentsT};
+
+/// How a parameter is kept in its range while fitting.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Transform {
+    /// Unbounded: fitted as itself.
+    Identity,
+    /// Positive: fitted as ln x.
+    Log,
+    /// In [0, 1]: fitted as logit x = ln(x / (1 − x)).
+    Logistic,
+}
+
+impl Transform {
+    /// Natural value to fitted value (clamped inside the open range so a start on a bound works).
+    pub fn forward(self, x: f64) -> f64 {
+        match self {
+            Transform::Identity => x,
+            Transform::Log => x.max(f64::MIN_POSITIVE).ln(),
+            Transform::Logistic => {
+                let x = x.clamp(1e-12, 1.0 - 1e-12);
+                (x / (1.0 - x)).ln()
+            }
+        }
+    }
+
+    /// Fitted value to natural value.
+    pub fn inverse(self, z: f64) -> f64 {
+        match self {
+            Transform::Identity => z,
+            Transform::Log => z.exp(),
+            Transform::Logistic => 1.0 / (1.0 + (-z).exp()),
+        }
+    }
+
+    /// dx/dz at z.
+    pub fn slope(self, z: f64) -> f64 {
+        match self {
+            Transform::Identity => 1.0,
+            Transform::Log => z.exp(),
+            Transform::Logistic => {
+                let x = self.inverse(z);
+                x * (1.0 - x)
+            }
+        }
+    }
+
+    /// True when the fitted value sits at (numerically on) the edge of the range.
+    pub fn at_bound(self, z: f64) -> bool {
+        match self {
+            Transform::Identity => false,
+            Transform::Log => z < -600.0,
+            Transform::Logistic => z.abs() > 14.0,
+        }
+    }
+}
+
+/// A least-squares model: weighted residuals rᵢ = (yᵢ − fᵢ(x)) / σᵢ at natural parameters x.
+pub trait Residuals: Sync {
+    /// The weighted residuals, or None where the model cannot be evaluated at `x`.
+    fn residuals(&self, x: &[f64]) -> Option<Vec<f64>>;
+}
+
+impl<F: Fn(&[f64]) -> Option<Vec<f64>> + Sync> Residuals for F {
+    fn residuals(&self, x: &[f64]) -> Option<Vec<f64>> {
+        self(x)
+    }
+}
+
+/// Stopping tolerances and limits.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Settings {
+    /// Relative reduction of the sum of squares below which the search stops.
+    pub ftol: f64,
+    /// Relative step below which the search stops.
+    pub xtol: f64,
+    /// Orthogonality of residuals and Jacobian columns below which the search stops.
+    pub gtol: f64,
+    /// Evaluation budget, in multiples of (number of parameters + 1).
+    pub patience: usize,
+    /// Relative central-difference step on the transformed scale.
+    pub step: f64,
+}
+
+impl Default for Settings {
+    fn default() -> Self {
+        Settings {
+            ftol: 1e-12,
+            xtol: 1e-12,
+            gtol: 1e-12,
+            patience: 200,
+            step: 1e-6,
+        }
+    }
+}
+
+/// Why a fit failed.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FitFailure(pub String);
+
+/// The optimum and its linearised statistics.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Solution {
+    /// Best natural parameter values.
+    pub values: Vec<f64>,
+    /// Fitted (transformed) values at the optimum.
+    pub fitted: Vec<f64>,
+    /// Weighted residuals at the optimum.
+    pub residuals: Vec<f64>,
+    /// χ² = Σ rᵢ² (the residual sum of squares when unweighted).
+    pub chi2: f64,
+    /// Degrees of freedom n − p.
+    pub dof: usize,
+    /// χ² / dof (NaN when dof is 0).
+    pub reduced_chi2: f64,
+    /// Covariance of the natural parameters, (JᵀJ)⁻¹ × reduced χ² (pseudo-inverse if singular).
+    pub covariance: DMatrix<f64>,
+    /// Standard errors √diag(covariance).
+    pub standard_errors: Vec<f64>,
+    /// 95 % intervals value ± t(0.975, dof) × se.
+    pub intervals: Vec<(f64, f64)>,
+    /// Correlation matrix.
+    pub correlation: DMatrix<f64>,
+    /// Reciprocal condition number of JᵀJ scaled to unit diagonal (near 0: not identifiable).
+    pub rcond: f64,
+    /// Residual evaluations used.
+    pub evaluations: usize,
+    /// How the search ended, in words.
+    pub termination: String,
+}
+
+/// The problem as the LM crate sees it: transformed parameters.
+struct Problem<'a> {
+    model: &'a dyn Residuals,
+    transforms: &'a [Transform],
+    z: DVector<f64>,
+    step: f64,
+}
+
+impl Problem<'_> {
+    fn natural(&self, z: &[f64]) -> Vec<f64> {
+        z.iter().zip(self.transforms).map(|(z, t)| t.inverse(*z)).collect()
+    }
+
+    fn eval(&self, z: &[f64]) -> Option<Vec<f64>> {
+        let r = self.model.residuals(&self.natural(z))?;
+        r.iter().all(|v| v.is_finite()).then_some(r)
+    }
+}
+
+/// Central-difference Jacobian of `f` at `z`, steps `h_j = step × max(|z_j|, 1)`.
+fn jacobian(f: &dyn Fn(&[f64]) -> Option<Vec<f64>>, z: &[f64], step: f64) -> Option<DMatrix<f64>> {
+    let mut cols = Vec::with_capacity(z.len());
+    for j in 0..z.len() {
+        let h = step * z[j].abs().max(1.0);
+        let mut zp = z.to_vec();
+        let mut zm = z.to_vec();
+        zp[j] += h;
+        zm[j] -= h;
+        let (rp, rm) = (f(&zp)?, f(&zm)?);
+        cols.push(DVector::from_iterator(
+            rp.len(),
+            rp.iter().zip(&rm).map(|(a, b)| (a - b) / (zp[j] - zm[j])),
+        ));
+    }
+    Some(DMatrix::from_columns(&cols))
+}
+
+impl LeastSquaresProblem<f64, Dyn, Dyn> for Problem<'_> {
+    type ResidualStorage = Owned<f64, Dyn>;
+    type JacobianStorage = Owned<f64, Dyn, Dyn>;
+    type ParameterStorage = Owned<f64, Dyn>;
+
+    fn set_params(&mut self, z: &DVector<f64>) {
+        self.z.copy_from(z);
+    }
+
+    fn params(&self) -> DVector<f64> {
+        self.z.clone()
+    }
+
+    fn residuals(&self) -> Option<DVector<f64>> {
+        self.eval(self.z.as_slice()).map(DVector::from_vec)
+    }
+
+    fn jacobian(&self) -> Option<DMatrix<f64>> {
+        jacobian(&|z| self.eval(z), self.z.as_slice(), self.step)
+    }
+}
+
+/// Fit `model` from natural `start` values with the given transforms.
+pub fn fit(
+    model: &dyn Residuals,
+    start: &[f64],
+    transforms: &[Transform],
+    settings: &Settings,
+) -> Result<Solution, FitFailure> {
+    assert_eq!(start.len(), transforms.len(), "one transform per parameter");
+    let z0: Vec<f64> = start.iter().zip(transforms).map(|(x, t)| t.forward(*x)).collect();
+    let problem = Problem {
+        model,
+        transforms,
+        z: DVector::from_vec(z0),
+        step: settings.step,
+    };
+    if problem.residuals().is_none() {
+        return Err(FitFailure("the model cannot be evaluated at the start".into()));
+    }
+    let (problem, report) = LevenbergMarquardt::new()
+        .with_ftol(settings.ftol)
+        .with_xtol(settings.xtol)
+        .with_gtol(settings.gtol)
+        .with_patience(settings.patience)
+        .minimize(problem);
+    use levenberg_marquardt::TerminationReason as T;
+    let termination = match report.termination {
+        T::Converged { .. } => "converged".to_string(),
+        T::Orthogonal => "converged (gradient orthogonal to residuals)".to_string(),
+        T::ResidualsZero => "converged (residuals zero)".to_string(),
+        T::NoImprovementPossible(w) => format!("converged to machine precision ({w})"),
+        T::LostPatience => "stopped: evaluation budget used up".to_string(),
+        other => return Err(FitFailure(format!("the search failed: {other:?}"))),
+    };
+    let z: Vec<f64> = problem.z.iter().copied().collect();
+    let values = problem.natural(&z);
+    statistics(
+        model,
+        values,
+        z,
+        transforms,
+        settings,
+        report.number_of_evaluations,
+        termination,
+    )
+}
+
+/// Linearised statistics at the optimum `values` (natural) with fitted values `z`.
+fn statistics(
+    model: &dyn Residuals,
+    values: Vec<f64>,
+    z: Vec<f64>,
+    transforms: &[Transform],
+    settings: &Settings,
+    evaluations: usize,
+    termination: String,
+) -> Result<Solution, FitFailure> {
+    let residuals = model
+        .residuals(&values)
+        .ok_or_else(|| FitFailure("the model cannot be evaluated at the optimum".into()))?;
+    let n = residuals.len();
+    let p = values.len();
+    let chi2: f64 = residuals.iter().map(|r| r * r).sum();
+    let dof = n.saturating_sub(p);
+    let reduced_chi2 = if dof > 0 { chi2 / dof as f64 } else { f64::NAN };
+    // Jacobian in the natural parameters: J_x = J_z / (dx/dz), each column.
+    let eval = |zz: &[f64]| {
+        let x: Vec<f64> = zz.iter().zip(transforms).map(|(z, t)| t.inverse(*z)).collect();
+        model.residuals(&x)
+    };
+    let jz = jacobian(&eval, &z, settings.step)
+        .ok_or_else(|| FitFailure("the model cannot be evaluated next to the optimum".into()))?;
+    let mut jx = jz.clone();
+    for (j, t) in transforms.iter().enumerate() {
+        let s = t.slope(z[j]);
+        jx.column_mut(j).scale_mut(1.0 / s);
+    }
+    let info = jx.transpose() * &jx;
+    // Scale to unit diagonal before judging the conditioning (units differ between parameters).
+    let d: Vec<f64> = (0..p).map(|i| info[(i, i)].sqrt().max(f64::MIN_POSITIVE)).collect();
+    let scaled = DMatrix::from_fn(p, p, |i, j| info[(i, j)] / (d[i] * d[j]));
+    let eig = scaled.clone().symmetric_eigen();
+    let (lo, hi) = eig
+        .eigenvalues
+        .iter()
+        .fold((f64::INFINITY, 0.0f64), |(lo, hi), &e| (lo.min(e), hi.max(e)));
+    let rcond = if hi > 0.0 { (lo / hi).max(0.0) } else { 0.0 };
+    let inv_scaled = scaled
+        .clone()
+        .pseudo_inverse(1e-14)
+        .map_err(|e| FitFailure(format!("the information matrix cannot be inverted: {e}")))?;
+    let scale = if reduced_chi2.is_finite() { reduced_chi2 } else { 1.0 };
+    let covariance = DMatrix::from_fn(p, p, |i, j| inv_scaled[(i, j)] / (d[i] * d[j]) * scale);
+    let standard_errors: Vec<f64> = (0..p).map(|i| covariance[(i, i)].max(0.0).sqrt()).collect();
+    let correlation = DMatrix::from_fn(p, p, |i, j| {
+        let s = standard_errors[i] * standard_errors[j];
+        if s > 0.0 { covariance[(i, j)] / s } else { f64::NAN }
+    });
+    let t = t_quantile(0.975, dof);
+    let intervals = values
+        .iter()
+        .zip(&standard_errors)
+        .map(|(v, s)| (v - t * s, v + t * s))
+        .collect();
+    Ok(Solution {
+        values,
+        fitted: z,
+        residuals,
+        chi2,
+        dof,
+        reduced_chi2,
+        covariance,
+        standard_errors,
+        intervals,
+        correlation,
+        rcond,
+        evaluations,
+        termination,
+    })
+}
+
+/// The `p` quantile of Student's t with `dof` degrees of freedom (statrs); NaN for dof 0.
+pub fn t_quantile(p: f64, dof: usize) -> f64 {
+    if dof == 0 {
+        return f64::NAN;
+    }
+    StudentsT::new(0.0, 1.0, dof as f64).map_or(f64::NAN, |t| t.inverse_cdf(p))
+}
+
+/// A warning about what the data cannot pin down.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Identifiability {
+    /// The information matrix is near singular (reciprocal condition number given).
+    NearSingular(f64),
+    /// Two parameters (indices) correlate beyond 0.95 in magnitude.
+    Correlated(usize, usize, f64),
+    /// A parameter (index) ended on the edge of its range.
+    AtBound(usize),
+    /// A parameter's standard error exceeds its magnitude.
+    Loose(usize),
+}
+
+impl Solution {
+    /// Identifiability warnings for the fitted parameters with `transforms`.
+    pub fn warnings(&self, transforms: &[Transform]) -> Vec<Identifiability> {
+        let mut w = Vec::new();
+        if self.rcond < 1e-10 {
+            w.push(Identifiability::NearSingular(self.rcond));
+        }
+        let p = self.values.len();
+        for i in 0..p {
+            for j in i + 1..p {
+                let c = self.correlation[(i, j)];
+                if c.abs() > 0.95 {
+                    w.push(Identifiability::Correlated(i, j, c));
+                }
+            }
+        }
+        for (i, t) in transforms.iter().enumerate() {
+            if t.at_bound(self.fitted[i]) {
+                w.push(Identifiability::AtBound(i));
+            } else if self.standard_errors[i] > self.values[i].abs() {
+                w.push(Identifiability::Loose(i));
+            }
+        }
+        w
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn transforms_round_trip_and_slopes_match_differences() {
+        for (t, x) in [
+            (Transform::Identity, -3.5),
+            (Transform::Log, 2.5e-7),
+            (Transform::Logistic, 0.3),
+        ] {
+            let z = t.forward(x);
+            assert!((t.inverse(z) - x).abs() <= 1e-12 * x.abs());
+            let h = 1e-6;
+            let d = (t.inverse(z + h) - t.inverse(z - h)) / (2.0 * h);
+            assert!((d - t.slope(z)).abs() <= 1e-6 * d.abs());
+        }
+        assert!(Transform::Logistic.at_bound(Transform::Logistic.forward(1.0)));
+        assert!(!Transform::Logistic.at_bound(Transform::Logistic.forward(0.999)));
+    }
+
+    #[test]
+    fn t_quantiles() {
+        // Student t 97.5 % points: 12.706 (1 dof), 2.228 (10 dof), 1.960 (normal limit);
+        // common practice (any statistics table).
+        assert!((t_quantile(0.975, 1) - 12.7062).abs() < 1e-3);
+        assert!((t_quantile(0.975, 10) - 2.2281).abs() < 1e-3);
+        assert!((t_quantile(0.975, 100_000) - 1.95997).abs() < 1e-3);
+    }
+
+    #[test]
+    fn a_straight_line_has_the_textbook_errors() {
+        // y = a + b x with unit weights: se from the closed form of linear regression
+        // (common practice): se(b)² = s² / Σ(x − x̄)², se(a)² = s² (1/n + x̄²/Σ(x − x̄)²).
+        let x = [0.0, 1.0, 2.0, 3.0, 4.0, 5.0];
+        let y = [1.1, 2.9, 5.2, 7.1, 8.8, 11.2];
+        let m = |p: &[f64]| Some(x.iter().zip(&y).map(|(x, y)| y - (p[0] + p[1] * x)).collect());
+        let s = fit(&m, &[0.0, 1.0], &[Transform::Identity; 2], &Settings::default()).unwrap();
+        let n = x.len() as f64;
+        let xm = x.iter().sum::<f64>() / n;
+        let sxx: f64 = x.iter().map(|v| (v - xm).powi(2)).sum();
+        let s2 = s.chi2 / (n - 2.0);
+        assert!((s.standard_errors[1] - (s2 / sxx).sqrt()).abs() < 1e-7);
+        assert!((s.standard_errors[0] - (s2 * (1.0 / n + xm * xm / sxx)).sqrt()).abs() < 1e-7);
+        assert!(s.warnings(&[Transform::Identity; 2]).is_empty());
+    }
+
+    #[test]
+    fn a_parameter_the_data_cannot_see_is_flagged() {
+        // y depends on a + b only: a and b are not separately identifiable.
+        let x = [0.0, 1.0, 2.0, 3.0];
+        let m = |p: &[f64]| Some(x.iter().map(|x| 2.0 * x + 1.0 - (p[0] + p[1]) * x - 1.0).collect());
+        let s = fit(&m, &[0.5, 0.5], &[Transform::Identity; 2], &Settings::default()).unwrap();
+        let w = s.warnings(&[Transform::Identity; 2]);
+        assert!(w.iter().any(|w| matches!(w, Identifiability::NearSingular(_))), "{w:?}");
+    }
+}

@@ -1,0 +1,10 @@
+//! Fitting mechanisms to measured data, and ranking rival mechanisms.
+//!
+//! `lsq.rs` is the least-squares core (Levenberg–Marquardt on transformed parameters, the
+//! linearised statistics); the photochemical fit builds on it.
+
+pub mod compare;
+pub mod lsq;
+pub mod mechanism;
+
+pub use mechanism::{FitOptions, FitResult, Setup, akaike_weights, fit};

@@ -1,0 +1,644 @@
+//! What `fit` and `compare` write: tables, JSON, SVG of data against fits and residuals, and the
+//! network file with fitted values put in.
+
+use crate::error::{Error, Result};
+use crate::file::data::Experiment;
+use crate::fit::mechanism::{Curve, Free};
+use crate::fit::{FitResult, lsq};
+use crate::report::simulation::{CAUTIONS, PALETTE, time_unit};
+use crate::units::sig;
+use plotters::prelude::*;
+use serde_json::json;
+use std::fmt::Write;
+
+/// A value in a readable unit: (scaled value, unit text).
+pub fn readable(unit: &str, v: f64) -> (f64, String) {
+    let a = v.abs();
+    match unit {
+        "J/mol" => (v / 1000.0, "kJ/mol".into()),
+        "M" if a < 1e-6 && a > 0.0 => (v * 1e9, "nM".into()),
+        "M" if a < 1e-3 && a > 0.0 => (v * 1e6, "µM".into()),
+        "M" if a < 1.0 && a > 0.0 => (v * 1e3, "mM".into()),
+        "m" if a < 1e-5 => (v * 1e9, "nm".into()),
+        "W" if a < 1.0 => (v * 1e3, "mW".into()),
+        "einstein/s" if a < 1e-3 => (v * 1e6, "µeinstein/s".into()),
+        u => (v, u.into()),
+    }
+}
+
+/// The value as `--set`/file text in a readable unit, 7 significant figures.
+pub fn value_text(f: &Free, v: f64) -> String {
+    let (x, u) = readable(f.unit, v);
+    if u.is_empty() {
+        sig(x, 7)
+    } else {
+        format!("{} {u}", sig(x, 7))
+    }
+}
+
+/// The fit as a text table: values ± se, 95 % intervals, correlation, χ², warnings.
+pub fn fit_text(network: &str, r: &FitResult) -> String {
+    let s = &r.solution;
+    let mut o = String::new();
+    let _ = writeln!(o, "fit      {network}");
+    let _ = writeln!(
+        o,
+        "data     {} observations, {} free parameters, {} degrees of freedom{}",
+        r.n,
+        r.free.len(),
+        s.dof,
+        if r.weighted {
+            ""
+        } else {
+            " (some without sd: weight 1 in their unit)"
+        }
+    );
+    let _ = writeln!(
+        o,
+        "search   {} ({} evaluations); {} start(s), {} converged",
+        s.termination,
+        s.evaluations,
+        r.starts.len(),
+        r.starts.iter().filter(|x| x.chi2.is_ok()).count()
+    );
+    let w = r.free.iter().map(|f| f.key.chars().count()).max().unwrap_or(8).max(9);
+    let _ = writeln!(
+        o,
+        "\n{:<w$}  {:>14}  {:>12}  {:>31}  unit",
+        "parameter", "value", "± se", "95 % interval"
+    );
+    for (i, f) in r.free.iter().enumerate() {
+        let (v, u) = readable(f.unit, s.values[i]);
+        let scale = if s.values[i] != 0.0 { v / s.values[i] } else { 1.0 };
+        let (lo, hi) = s.intervals[i];
+        let _ = writeln!(
+            o,
+            "{:<w$}  {:>14}  {:>12}  {:>31}  {u}",
+            f.key,
+            sig(v, 6),
+            sig(s.standard_errors[i] * scale, 3),
+            format!("[{}, {}]", sig(lo * scale, 5), sig(hi * scale, 5)),
+        );
+    }
+    let _ = writeln!(
+        o,
+        "\nstart values: {}",
+        r.free
+            .iter()
+            .map(|f| format!("{} = {}", f.key, value_text(f, f.start)))
+            .collect::<Vec<_>>()
+            .join("; ")
+    );
+    if r.free.len() > 1 {
+        let _ = writeln!(o, "\ncorrelation");
+        for i in 0..r.free.len() {
+            let row: Vec<String> = (0..r.free.len())
+                .map(|j| format!("{:+.3}", s.correlation[(i, j)]))
+                .collect();
+            let _ = writeln!(o, "  {:<w$}  {}", r.free[i].key, row.join("  "));
+        }
+    }
+    let _ = writeln!(
+        o,
+        "\nχ² = {}, reduced χ² = {} (standard errors are scaled by the reduced χ²)",
+        sig(s.chi2, 6),
+        sig(s.reduced_chi2, 4)
+    );
+    let _ = writeln!(o, "AICc = {}, BIC = {}", sig(r.aicc, 6), sig(r.bic, 6));
+    if r.warnings.is_empty() {
+        let _ = writeln!(o, "identifiability: no warnings");
+    }
+    for w in &r.warnings {
+        let _ = writeln!(o, "warning: {w}");
+    }
+    let _ = writeln!(o, "\nsafety: {CAUTIONS}");
+    o
+}
+
+/// The fit as JSON (internal units named per parameter).
+pub fn fit_json(network: &str, r: &FitResult) -> serde_json::Value {
+    let s = &r.solution;
+    let p = r.free.len();
+    json!({
+        "network": network,
+        "parameters": r.free.iter().enumerate().map(|(i, f)| json!({
+            "key": f.key, "unit": f.unit, "start": f.start, "value": s.values[i],
+            "standard_error": s.standard_errors[i], "interval_95": [s.intervals[i].0, s.intervals[i].1],
+        })).collect::<Vec<_>>(),
+        "correlation": (0..p).map(|i| (0..p).map(|j| s.correlation[(i, j)]).collect::<Vec<_>>()).collect::<Vec<_>>(),
+        "covariance": (0..p).map(|i| (0..p).map(|j| s.covariance[(i, j)]).collect::<Vec<_>>()).collect::<Vec<_>>(),
+        "chi2": s.chi2, "reduced_chi2": s.reduced_chi2, "dof": s.dof, "observations": r.n,
+        "weighted": r.weighted, "aicc": r.aicc, "bic": r.bic, "minus_two_log_likelihood": r.minus_two_log_likelihood,
+        "warnings": r.warnings, "termination": s.termination,
+        "starts": r.starts.iter().map(|x| json!({"start": x.start, "chi2": x.chi2.as_ref().ok(), "failure": x.chi2.as_ref().err()})).collect::<Vec<_>>(),
+        "t_975": lsq::t_quantile(0.975, s.dof),
+    })
+}
+
+/// Rows `(experiment, time s, species, measured, predicted, sd, is yield)` of the time courses.
+pub type Row = (String, f64, String, f64, f64, f64, bool);
+
+/// The rows of every time-course point with its prediction (`predicted` in experiment order).
+pub fn rows(experiments: &[Experiment], predicted: &[Vec<f64>]) -> Vec<Row> {
+    let mut v = Vec::new();
+    for (e, p) in experiments.iter().zip(predicted) {
+        for (pt, f) in e.points.iter().zip(p) {
+            v.push((
+                e.name.clone(),
+                pt.time,
+                pt.species.clone(),
+                pt.value,
+                *f,
+                pt.sd,
+                pt.is_yield,
+            ));
+        }
+    }
+    v
+}
+
+/// residuals.csv: every time-course point, measured, fitted and weighted residual.
+pub fn residuals_csv(rows: &[Row]) -> String {
+    let mut o = String::from(
+        "experiment, time (s), species, measured (M or fraction), fitted (M or fraction), sd, weighted residual\n",
+    );
+    for (e, t, s, y, f, sd, _) in rows {
+        let _ = writeln!(o, "{e}, {t:e}, {s}, {y:e}, {f:e}, {sd:e}, {:e}", (y - f) / sd);
+    }
+    o
+}
+
+/// SVG of data (points) against fitted curves, one colour per (experiment, species); `models`
+/// holds each model's curves (one model for `fit`, several for `compare`, drawn dashed after the first).
+pub fn data_svg(title: &str, rows: &[Row], models: &[(String, Vec<Curve>)]) -> String {
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
+        let _ = root.fill(&WHITE);
+        let t_end = rows.iter().map(|r| r.1).fold(0.0, f64::max).max(1e-30);
+        let (tu, tname) = time_unit(t_end);
+        let yields = rows.iter().all(|r| r.6);
+        let ymax = rows
+            .iter()
+            .map(|r| r.3.max(r.4))
+            .chain(models.iter().flat_map(|m| {
+                m.1.iter()
+                    .flat_map(|c| c.series.iter().flat_map(|s| s.1.iter().copied()))
+            }))
+            .fold(0.0, f64::max)
+            .max(1e-300);
+        let (ys, yl) = if yields {
+            (1.0, "yield (fraction)".to_string())
+        } else {
+            let (v, u) = readable("M", ymax);
+            (v / ymax, format!("concentration ({u})"))
+        };
+        let mut keys: Vec<(String, String)> = Vec::new();
+        for r in rows {
+            if !keys.contains(&(r.0.clone(), r.2.clone())) {
+                keys.push((r.0.clone(), r.2.clone()));
+            }
+        }
+        let draw = || -> std::result::Result<(), Box<dyn std::error::Error + '_>> {
+            let mut c = ChartBuilder::on(&root)
+                .caption(title, ("sans-serif", 22))
+                .margin(16)
+                .x_label_area_size(48)
+                .y_label_area_size(80)
+                .build_cartesian_2d(0.0..t_end / tu * 1.02, 0.0..ymax * ys * 1.08)?;
+            c.configure_mesh()
+                .x_desc(format!("time ({tname})"))
+                .y_desc(yl.clone())
+                .label_style(("sans-serif", 15))
+                .draw()?;
+            for (k, (e, s)) in keys.iter().enumerate() {
+                let col = PALETTE[k % PALETTE.len()];
+                let pts: Vec<(f64, f64)> = rows
+                    .iter()
+                    .filter(|r| &r.0 == e && &r.2 == s)
+                    .map(|r| (r.1 / tu, r.3 * ys))
+                    .collect();
+                c.draw_series(pts.iter().map(|p| Circle::new(*p, 3, col.filled())))?
+                    .label(format!("{s} ({e})"))
+                    .legend(move |(x, y)| Circle::new((x + 8, y), 3, col.filled()));
+                for (m, (_, curves)) in models.iter().enumerate() {
+                    for cv in curves.iter().filter(|cv| &cv.experiment == e) {
+                        for (_, v, _) in cv.series.iter().filter(|x| &x.0 == s) {
+                            let line: Vec<(f64, f64)> = cv.times.iter().zip(v).map(|(t, y)| (t / tu, y * ys)).collect();
+                            let style = if m == 0 {
+                                col.stroke_width(2)
+                            } else {
+                                col.mix(0.6).stroke_width(1)
+                            };
+                            if m == 0 {
+                                c.draw_series(LineSeries::new(line, style))?;
+                            } else {
+                                c.draw_series(DashedLineSeries::new(line, 6, 4, style))?;
+                            }
+                        }
+                    }
+                }
+            }
+            c.configure_series_labels()
+                .background_style(WHITE.mix(0.85))
+                .border_style(BLACK)
+                .label_font(("sans-serif", 14))
+                .draw()?;
+            Ok(())
+        };
+        let _ = draw();
+        let _ = root.present();
+    }
+    if models.len() > 1 {
+        let names: Vec<String> = models
+            .iter()
+            .enumerate()
+            .map(|(i, m)| format!("{} {}", if i == 0 { "solid:" } else { "dashed:" }, m.0))
+            .collect();
+        svg = svg.replacen(
+            "</svg>",
+            &format!(
+                "<text x=\"120\" y=\"552\" font-family=\"sans-serif\" font-size=\"13\">{}</text></svg>",
+                names.join("; ").replace('&', "&amp;").replace('<', "&lt;")
+            ),
+            1,
+        );
+    }
+    svg
+}
+
+/// SVG of the weighted residuals against time.
+pub fn residuals_svg(title: &str, rows: &[Row]) -> String {
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (900, 400)).into_drawing_area();
+        let _ = root.fill(&WHITE);
+        let t_end = rows.iter().map(|r| r.1).fold(0.0, f64::max).max(1e-30);
+        let (tu, tname) = time_unit(t_end);
+        let res: Vec<(f64, f64)> = rows.iter().map(|r| (r.1 / tu, (r.3 - r.4) / r.5)).collect();
+        let m = res.iter().map(|r| r.1.abs()).fold(1.0, f64::max) * 1.1;
+        let draw = || -> std::result::Result<(), Box<dyn std::error::Error + '_>> {
+            let mut c = ChartBuilder::on(&root)
+                .caption(title, ("sans-serif", 20))
+                .margin(16)
+                .x_label_area_size(44)
+                .y_label_area_size(70)
+                .build_cartesian_2d(0.0..t_end / tu * 1.02, -m..m)?;
+            c.configure_mesh()
+                .x_desc(format!("time ({tname})"))
+                .y_desc("(measured − fitted) / sd")
+                .label_style(("sans-serif", 14))
+                .draw()?;
+            c.draw_series(LineSeries::new(
+                vec![(0.0, 0.0), (t_end / tu * 1.02, 0.0)],
+                BLACK.stroke_width(1),
+            ))?;
+            c.draw_series(res.iter().map(|p| Circle::new(*p, 3, PALETTE[0].filled())))?;
+            Ok(())
+        };
+        let _ = draw();
+        let _ = root.present();
+    }
+    svg
+}
+
+/// The network file text with the fitted values put in, comments and layout kept (toml_edit),
+/// and a comment at the top recording the fit. Each key is found as the `--set` machinery
+/// reads it: conditions, `[[species]]`/`[[light]]`/`[[photo]]`/`[[thermal]]`/`[[transient]]` by
+/// name (an unnamed thermal or photo step by its equation); a `k` or `barrier` replaces the
+/// whole rate table (a barrier keeps `transmission`).
+pub fn fitted_toml(text: &str, free: &[Free], values: &[f64], se: &[f64]) -> Result<String> {
+    use toml_edit::{DocumentMut, InlineTable, Item, Value, value};
+    let mut doc: DocumentMut = text
+        .parse()
+        .map_err(|e| Error::Usage(format!("the network file cannot be edited: {e}")))?;
+    let bad = |k: &str| Error::Usage(format!("{k}: cannot be located in the network file to write it back"));
+    for (f, v) in free.iter().zip(values) {
+        let key = f.key.as_str();
+        let text_v = value_text(f, *v);
+        let new: Value = if f.unit.is_empty() {
+            Value::from(*v)
+        } else {
+            Value::from(text_v.clone())
+        };
+        let find = |doc: &mut DocumentMut, array: &str, name: &str| -> Option<usize> {
+            let arr = doc.get(array)?.as_array_of_tables()?;
+            arr.iter().position(|t| {
+                let n = t.get("name").and_then(|x| x.as_str()).map(str::trim);
+                let eq = t.get("equation").and_then(|x| x.as_str()).map(str::trim);
+                let text = |k: &str| t.get(k).and_then(|x| x.as_str()).map(str::trim);
+                let long = match (text("absorber"), text("excites")) {
+                    (Some(a), Some(x)) => Some(format!("{a} + hν -> {x}")),
+                    _ => None,
+                };
+                n == Some(name)
+                    || (n.is_none()
+                        && (eq == Some(name)
+                            || eq.map(|e| format!("{e} (hν)")).as_deref() == Some(name)
+                            || long.as_deref() == Some(name)))
+            })
+        };
+        // Put `field` = new into the rate table `rate` (an inline table or a table).
+        let set_rate = |item: &mut Item, field: &str, new: Value| -> bool {
+            let keep_t = item.get("transmission").cloned();
+            if field == "k" || field == "barrier" {
+                let mut t = InlineTable::new();
+                t.insert(field, new);
+                if field == "barrier"
+                    && let Some(Item::Value(kv)) = keep_t
+                {
+                    t.insert("transmission", kv);
+                }
+                *item = Item::Value(Value::InlineTable(t));
+                return true;
+            }
+            match item {
+                Item::Value(Value::InlineTable(t)) => {
+                    t.insert(field, new);
+                    true
+                }
+                Item::Table(t) => {
+                    t.insert(field, value(new));
+                    true
+                }
+                _ => false,
+            }
+        };
+        let ok = if let Some(field) = key.strip_prefix("conditions.") {
+            doc.get_mut("conditions")
+                .and_then(|c| c.as_table_like_mut())
+                .map(|c| c.insert(field, value(new)))
+                .is_some()
+        } else if let Some((section, rest)) = key.split_once('.') {
+            match section {
+                "species" | "light" | "photo" => {
+                    let array = section;
+                    match rest.rsplit_once('.') {
+                        Some((name, field)) => match find(&mut doc, array, name) {
+                            Some(i) => {
+                                let t = doc[array].as_array_of_tables_mut().and_then(|a| a.get_mut(i));
+                                t.map(|t| t.insert(field, value(new))).is_some()
+                            }
+                            None => false,
+                        },
+                        None => false,
+                    }
+                }
+                "thermal" => {
+                    let (head, field) = rest.rsplit_once('.').ok_or_else(|| bad(key))?;
+                    let (name, which) = match head.strip_suffix(".reverse") {
+                        Some(n) if find(&mut doc, "thermal", n).is_some() => (n, "reverse"),
+                        _ => (head, "rate"),
+                    };
+                    match find(&mut doc, "thermal", name) {
+                        Some(i) => doc["thermal"]
+                            .as_array_of_tables_mut()
+                            .and_then(|a| a.get_mut(i))
+                            .and_then(|t| t.get_mut(which))
+                            .is_some_and(|item| set_rate(item, field, new)),
+                        None => false,
+                    }
+                }
+                "transient" => {
+                    let parsed = rest.rsplit_once(".channels[").and_then(|(name, tail)| {
+                        let (j, field) = tail.split_once("].")?;
+                        Some((name.to_string(), j.parse::<usize>().ok()?, field.to_string()))
+                    });
+                    match parsed {
+                        Some((name, j, field)) => match find(&mut doc, "transient", &name) {
+                            Some(i) => {
+                                let t = doc["transient"].as_array_of_tables_mut().and_then(|a| a.get_mut(i));
+                                let ch = t
+                                    .and_then(|t| t.get_mut("channels"))
+                                    .and_then(|c| c.as_array_mut())
+                                    .and_then(|a| a.get_mut(j))
+                                    .and_then(|c| c.as_inline_table_mut());
+                                match ch {
+                                    Some(c) if field == "fraction" => {
+                                        c.insert("fraction", new);
+                                        true
+                                    }
+                                    Some(c) => match c.get_mut("rate") {
+                                        Some(r) => {
+                                            let mut item = Item::Value(r.clone());
+                                            let ok = set_rate(&mut item, &field, new);
+                                            if let Item::Value(v) = item {
+                                                *r = v;
+                                            }
+                                            ok
+                                        }
+                                        None => false,
+                                    },
+                                    None => false,
+                                }
+                            }
+                            None => false,
+                        },
+                        None => false,
+                    }
+                }
+                _ => false,
+            }
+        } else {
+            false
+        };
+        if !ok {
+            return Err(bad(key));
+        }
+    }
+    let mut head = String::from("# Fitted values put in by `photoledger fit` (value ± standard error):\n");
+    for ((f, v), s) in free.iter().zip(values).zip(se) {
+        let (x, u) = readable(f.unit, *v);
+        let scale = if *v != 0.0 { x / v } else { 1.0 };
+        let _ = writeln!(head, "#   {} = {} ± {} {u}", f.key, sig(x, 7), sig(s * scale, 3));
+    }
+    Ok(format!("{head}{doc}"))
+}
+
+/// One row of a comparison.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Ranked {
+    /// The network file.
+    pub network: String,
+    /// Its fit.
+    pub fit: FitResult,
+    /// Akaike weight (from AICc).
+    pub weight: f64,
+}
+
+/// The comparison table, ranked by AICc, with where the best two disagree most.
+pub fn compare_text(ranked: &[Ranked], disagreement: Option<&str>) -> String {
+    let mut o = String::new();
+    let w = ranked
+        .iter()
+        .map(|r| r.network.chars().count())
+        .max()
+        .unwrap_or(8)
+        .max(7);
+    let best = ranked.first().map_or(0.0, |r| r.fit.aicc);
+    let _ = writeln!(
+        o,
+        "{:<4} {:<w$}  {:>5}  {:>12}  {:>12}  {:>9}  {:>12}  {:>8}",
+        "rank", "network", "free", "χ²", "AICc", "ΔAICc", "BIC", "weight"
+    );
+    for (i, r) in ranked.iter().enumerate() {
+        let _ = writeln!(
+            o,
+            "{:<4} {:<w$}  {:>5}  {:>12}  {:>12}  {:>9}  {:>12}  {:>8}",
+            i + 1,
+            r.network,
+            r.fit.free.len(),
+            sig(r.fit.solution.chi2, 6),
+            sig(r.fit.aicc, 6),
+            sig(r.fit.aicc - best, 3),
+            sig(r.fit.bic, 6),
+            format!("{:.3}", r.weight)
+        );
+    }
+    let _ = writeln!(
+        o,
+        "\nAkaike weights from AICc; ΔAICc above about 4-7 is commonly read as clear support for the lower (common practice)."
+    );
+    for r in ranked {
+        for wmsg in &r.fit.warnings {
+            let _ = writeln!(o, "warning ({}): {wmsg}", r.network);
+        }
+    }
+    if let Some(d) = disagreement {
+        let _ = writeln!(o, "\n{d}");
+    }
+    o
+}
+
+/// The comparison as JSON.
+pub fn compare_json(ranked: &[Ranked], disagreement: Option<&str>) -> serde_json::Value {
+    json!({
+        "ranking": ranked.iter().map(|r| json!({
+            "network": r.network, "akaike_weight": r.weight, "fit": fit_json(&r.network, &r.fit),
+        })).collect::<Vec<_>>(),
+        "largest_disagreement": disagreement,
+    })
+}
+
+/// A time-course CSV of `e` (concentrations in µM, sd column), with `comment` lines on top.
+pub fn points_csv(e: &Experiment, comment: &str) -> String {
+    let mut o = String::new();
+    for l in comment.lines() {
+        let _ = writeln!(o, "# {l}");
+    }
+    o.push_str("time (min), species, value (µM), sd (µM)\n");
+    for p in &e.points {
+        let _ = writeln!(
+            o,
+            "{}, {}, {}, {}",
+            sig(p.time / 60.0, 6),
+            p.species,
+            sig(p.value * 1e6, 5),
+            sig(p.sd * 1e6, 3)
+        );
+    }
+    o
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::fit::lsq::Transform;
+    use crate::network::overrides::parameter;
+    use std::path::Path;
+
+    const NET: &str = r#"
+# a comment that must survive
+[conditions]
+temperature = "298.15 K"
+volume = "3 mL"
+path_length = "1 cm"
+
+[[light]]
+name = "lamp"
+kind = "line"
+wavelength = "365 nm"
+power = "10 mW"
+
+[[species]]
+name = "A"
+initial = "1 mM"
+epsilon = { at = "365 nm", value = "1000 L/(mol cm)" }
+
+[[species]]
+name = "B"
+
+[[species]]
+name = "Q"
+initial = "1 mM"
+
+[[photo]]
+absorber = "A"
+excites = "A*"
+
+[[transient]]
+name = "A*"
+kind = "excited"
+channels = [
+  { to = "B", rate = { k = "1e8 /s" } },   # reaction
+  { to = "A", quencher = "Q", rate = { barrier = "5 kcal/mol" } },
+]
+
+[[thermal]]
+equation = "B <=> A"
+rate = { k = "1e-3 /s" }
+reverse = { prefactor = "1e10 /s", activation = "90 kJ/mol" }
+"#;
+
+    #[test]
+    fn every_kind_of_key_is_written_back_and_reads_back() {
+        let l = crate::file::parse_text(Path::new("n.toml"), NET.to_string()).unwrap();
+        let net = crate::network::build(&l, &crate::network::Overrides::none()).unwrap();
+        let keys = [
+            "conditions.temperature",
+            "species.A.initial",
+            "light.lamp.power",
+            "photo.A + hν -> A*.efficiency",
+            "transient.A*.channels[0].k",
+            "transient.A*.channels[1].barrier",
+            "thermal.B <=> A.k",
+            "thermal.B <=> A.reverse.activation",
+        ];
+        let free: Vec<Free> = keys
+            .iter()
+            .map(|k| {
+                let p = parameter(&net, k).unwrap_or_else(|e| panic!("{e}"));
+                Free {
+                    key: k.to_string(),
+                    start: p.value,
+                    unit: p.unit,
+                    transform: Transform::Identity,
+                }
+            })
+            .collect();
+        let values: Vec<f64> = free
+            .iter()
+            .map(|f| if f.unit.is_empty() { 0.8 } else { f.start * 1.25 })
+            .collect();
+        let se = vec![0.0; values.len()];
+        let text = fitted_toml(NET, &free, &values, &se).unwrap();
+        assert!(
+            text.contains("# a comment that must survive") && text.contains("# reaction"),
+            "{text}"
+        );
+        let l = crate::file::parse_text(Path::new("n.toml"), text.clone()).unwrap();
+        let net =
+            crate::network::build(&l, &crate::network::Overrides::none()).unwrap_or_else(|e| panic!("{e}\n{text}"));
+        for (f, v) in free.iter().zip(&values) {
+            let back = parameter(&net, &f.key).unwrap().value;
+            assert!((back - v).abs() <= 1e-6 * v.abs(), "{}: {back} vs {v}\n{text}", f.key);
+        }
+        let bad = Free {
+            key: "thermal.nothing.k".into(),
+            start: 1.0,
+            unit: "/s",
+            transform: Transform::Log,
+        };
+        assert!(fitted_toml(NET, &[bad], &[1.0], &[0.0]).is_err());
+    }
+}
