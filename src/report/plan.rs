@@ -267,7 +267,7 @@ pub fn text(s: &PlanSummary) -> String {
             if days.in_dark {
                 let _ = writeln!(
                     o,
-                    "  met on day {} in the dark after that day's light ({} days of light; {} sun-hours in all)",
+                    "  met on day {} in the dark after that day's light ({} days of sunlight; {} sun-hours in all)",
                     days.day,
                     sig(days.days, 4),
                     sig(days.lit_hours, 4)
@@ -275,7 +275,7 @@ pub fn text(s: &PlanSummary) -> String {
             } else {
                 let _ = writeln!(
                     o,
-                    "  met on day {} after {} % of its sun-hours ({} days; {} sun-hours in all)",
+                    "  met on day {} after {} % of its sun-hours ({} days of sunlight, the last counted by its share of sun-hours; {} sun-hours in all)",
                     days.day,
                     sig(days.fraction_of_lit * 100.0, 3),
                     sig(days.days, 4),
