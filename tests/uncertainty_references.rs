@@ -6,7 +6,7 @@ use photoledger::Error;
 use photoledger::file::{Loaded, parse_text};
 use photoledger::uncertainty::fitcov::FitBlock;
 use photoledger::uncertainty::spec::{self, Distribution, Parameter};
-use photoledger::uncertainty::{self, Problem, Record, Settings, Space, Target, stats};
+use photoledger::uncertainty::{self, Problem, Record, Settings, Space, stats};
 use std::path::Path;
 
 const LINEAR: &str = r#"
@@ -218,7 +218,7 @@ fn pool_problem(l: &Loaded) -> Problem<'_> {
     let settings = Settings {
         chain: true,
         until: Some(86400.0 * 10.0),
-        target: Some(Target::parse("product > 10 % of aldehyde").unwrap()),
+        target: Some("product > 10 % of aldehyde".into()),
     };
     Problem::new(l, vec![], space, settings).unwrap()
 }

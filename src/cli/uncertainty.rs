@@ -4,7 +4,7 @@
 
 use photoledger::Error;
 use photoledger::report::{uncertainty as report, write_atomic};
-use photoledger::uncertainty::{self, Problem, Record, Settings, Space, Target, fitcov::FitBlock, spec};
+use photoledger::uncertainty::{self, Problem, Record, Settings, Space, fitcov::FitBlock, spec};
 use photoledger::units::{self, Quantity};
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
@@ -117,7 +117,7 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<()> {
         ),
         None => None,
     };
-    let target = a.target.as_deref().map(Target::parse).transpose()?;
+    let target = a.target.clone();
     let settings = Settings {
         chain: !a.no_chain,
         until,

@@ -103,8 +103,24 @@ pub fn limiting_reagent(model: &Model) -> Option<usize> {
         .min_by(|&a, &b| model.initial[a].total_cmp(&model.initial[b]))
 }
 
-/// Read a target such as "product > 90 %" or "A < 10 µM" on `model`.
+/// Read a target such as "product > 90 %" or "A < 10 µM" on `model`; a target the start
+/// already meets is an error (use [`read`] where that is an answer, time zero).
 pub fn parse(text: &str, model: &Model) -> Result<Target> {
+    let t = read(text, model)?;
+    let x0 = model.initial[t.species];
+    if t.met_by(x0) {
+        return Err(Error::Usage(format!(
+            "target \"{text}\": already met at the start ({} starts at {}, the level is {})",
+            t.species_name,
+            units::format_concentration(x0),
+            units::format_concentration(t.level)
+        )));
+    }
+    Ok(t)
+}
+
+/// Read a target on `model` as [`parse`] does, but accept one the start already meets.
+pub fn read(text: &str, model: &Model) -> Result<Target> {
     let usage = |m: String| {
         Error::Usage(format!(
             "target \"{text}\": {m}; write a species, < or >, and a level with % or a concentration unit, \
@@ -221,12 +237,5 @@ pub fn parse(text: &str, model: &Model) -> Result<Target> {
         level,
         basis,
     };
-    if t.met_by(x0) {
-        return Err(usage(format!(
-            "already met at the start ({name} starts at {}, the level is {})",
-            units::format_concentration(x0),
-            units::format_concentration(level)
-        )));
-    }
     Ok(t)
 }

@@ -24,7 +24,7 @@ use crate::file::Loaded;
 use crate::kinetics::{self, Stop};
 use crate::model::Model;
 use crate::network::{Network, Overrides};
-use crate::units::{self, Quantity};
+use crate::units;
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 use std::ops::Range;
@@ -37,64 +37,6 @@ pub const QUANTILES: [f64; 5] = [0.025, 0.25, 0.5, 0.75, 0.975];
 /// The format word of a samples record.
 pub const FORMAT: &str = "photoledger uncertainty samples 1";
 
-/// A level a species must cross for the time-to-target output.
-#[derive(Debug, Clone, PartialEq)]
-pub enum Level {
-    /// A concentration, mol/L.
-    Concentration(f64),
-    /// A percentage of another species' initial concentration in the same sample.
-    PercentOf {
-        /// Percent.
-        percent: f64,
-        /// The reference species.
-        species: String,
-    },
-}
-
-/// "product > 5 mM" or "Z-azo > 90 % of E-azo": a species crossing a level.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Target {
-    /// The species followed.
-    pub species: String,
-    /// True for `>`.
-    pub above: bool,
-    /// The level.
-    pub level: Level,
-}
-
-impl Target {
-    /// Read "NAME > LEVEL" or "NAME < LEVEL"; LEVEL is a concentration or "P % of NAME".
-    pub fn parse(text: &str) -> Result<Target> {
-        let usage = |m: &str| {
-            Error::Usage(format!(
-                "--target \"{text}\": {m}; write e.g. \"product > 5 mM\" or \"Z-azo > 90 % of E-azo\" \
-(a percentage of the other species' initial concentration)"
-            ))
-        };
-        let at = text.find(['<', '>']).ok_or_else(|| usage("no < or >"))?;
-        let above = text[at..].starts_with('>');
-        let species = text[..at].trim().to_string();
-        let rest = text[at + 1..].trim_start_matches('=').trim();
-        if species.is_empty() {
-            return Err(usage("no species before the sign"));
-        }
-        let level = if let Some((p, of)) = rest.split_once('%') {
-            let percent: f64 = p.trim().parse().map_err(|_| usage("the percentage is not a number"))?;
-            let of = of
-                .trim()
-                .strip_prefix("of")
-                .ok_or_else(|| usage("a percentage needs \"of SPECIES\""))?;
-            Level::PercentOf {
-                percent,
-                species: of.trim().to_string(),
-            }
-        } else {
-            Level::Concentration(units::parse(rest, Quantity::Concentration).map_err(|e| usage(&e.problem))?)
-        };
-        Ok(Target { species, above, level })
-    }
-}
-
 /// What each sample computes.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct Settings {
@@ -103,8 +45,10 @@ pub struct Settings {
     pub chain: bool,
     /// Run the kinetics to this time, s (final concentrations).
     pub until: Option<f64>,
-    /// Time to reach a level (needs `until`: the longest time waited).
-    pub target: Option<Target>,
+    /// Time to reach a target, written as for `plan` ("product > 90 %", "A < 10 µM"; read
+    /// on each sample's model, so a percentage follows that sample's concentrations). Needs
+    /// `until`, the longest time waited.
+    pub target: Option<String>,
 }
 
 /// One output column.
@@ -305,14 +249,7 @@ impl<'a> Problem<'a> {
             }
         }
         if let Some(t) = &p.settings.target {
-            for s in std::iter::once(&t.species).chain(match &t.level {
-                Level::PercentOf { species, .. } => Some(species),
-                Level::Concentration(_) => None,
-            }) {
-                if model.species_index(s).is_none() {
-                    return Err(Error::Usage(format!("--target: no species \"{s}\" in this network")));
-                }
-            }
+            crate::plan::target::read(t, &model)?;
         }
         if p.settings.until.is_some() {
             p.outputs.extend((0..model.n_species()).map(Output::Final));
@@ -372,21 +309,14 @@ impl<'a> Problem<'a> {
             None => None,
         };
         let time = match (&self.settings.target, self.settings.until) {
-            (Some(tg), Some(t)) => {
-                let species = model.species_index(&tg.species).unwrap_or(0);
-                let level = match &tg.level {
-                    Level::Concentration(c) => *c,
-                    Level::PercentOf { percent, species } => {
-                        percent / 100.0 * model.species_index(species).map_or(0.0, |i| model.initial[i])
-                    }
-                };
-                let now = model.initial[species];
-                if (tg.above && now > level) || (!tg.above && now < level) {
+            (Some(text), Some(t)) => {
+                let tg = crate::plan::target::read(text, &model)?;
+                if tg.met_by(model.initial[tg.species]) {
                     Some(0.0)
                 } else {
                     let mut o = kinetics::Options::until(t);
                     o.outputs = 2;
-                    o.event = Some(kinetics::Event { species, level });
+                    o.event = Some(tg.event());
                     match kinetics::simulate(&model, &o, &mut |_| {})?.stop {
                         Stop::Event(te) => Some(te),
                         Stop::EndTime => None,
@@ -747,30 +677,5 @@ mod tests {
             }
         }
         assert!(shard_range(10, 0, 3).is_err() && shard_range(10, 4, 3).is_err() && shard_range(10, 1, 0).is_err());
-    }
-
-    #[test]
-    fn targets_read_levels_and_percentages() {
-        let t = Target::parse("product > 5 mM").unwrap();
-        assert_eq!((t.species.as_str(), t.above), ("product", true));
-        assert!(matches!(t.level, Level::Concentration(c) if (c - 5e-3).abs() < 1e-18));
-        let t = Target::parse("Z-azo >= 90 % of E-azo").unwrap();
-        assert_eq!(
-            t.level,
-            Level::PercentOf {
-                percent: 90.0,
-                species: "E-azo".into()
-            }
-        );
-        assert!(!Target::parse("E-azo < 1 µM").unwrap().above);
-        for bad in [
-            "product 5 mM",
-            "> 5 mM",
-            "product > 5 K",
-            "product > 90 %",
-            "product > x % of A",
-        ] {
-            assert!(matches!(Target::parse(bad), Err(Error::Usage(_))), "{bad}");
-        }
     }
 }
