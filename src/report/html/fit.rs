@@ -145,7 +145,7 @@ pub fn comparison(f: &FitStudy) -> Option<String> {
             let r = &all[i].1.result;
             format!(
                 "{}{}{}{}{}{}{}{}",
-                num_cell(&(k + 1).to_string()),
+                text_cell(&(k + 1).to_string()),
                 text_cell(all[i].0),
                 num_cell(&r.free.len().to_string()),
                 num_cell(&sig(r.solution.chi2, 6)),
@@ -165,7 +165,7 @@ pub fn comparison(f: &FitStudy) -> Option<String> {
     o.push_str(&page::table(
         "Rival networks ranked by AICc",
         &[
-            ("rank (order)", true),
+            ("rank", false),
             ("network", false),
             ("free parameters (count)", true),
             ("χ² (dimensionless)", true),
