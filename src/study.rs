@@ -9,7 +9,11 @@
 use crate::barrier::{self, Verdict};
 use crate::chain::build::{self, Settings, Values};
 use crate::chain::{self, Analysis, sensitivity};
-use crate::error::Result;
+use crate::error::{Error, Result};
+use crate::file::Loaded;
+use crate::file::data::Experiment;
+use crate::fit::mechanism::FitOptions;
+use crate::fit::run::{self as fit_run, Fitted, Ranking};
 use crate::kinetics::{self, Trajectory};
 use crate::model::Model;
 use crate::network::Network;
@@ -69,6 +73,62 @@ pub struct Study {
     pub barrier: Option<BarrierStudy>,
     /// The plan, when a target was given.
     pub plan: Option<PlanStudy>,
+    /// The fit to data (and the ranking against rivals), when data were given ([`fit_study`]).
+    pub fit: Option<FitStudy>,
+}
+
+/// A fit of the network to data, and its ranking against rival networks when there are some.
+#[derive(Debug, Clone)]
+pub struct FitStudy {
+    /// The network's name as the reader knows it (its file).
+    pub network: String,
+    /// The experiments fitted.
+    pub experiments: Vec<Experiment>,
+    /// The fit of this network.
+    pub fitted: Fitted,
+    /// Rival networks (name, fit), each with its own `[fit] free` list.
+    pub rivals: Vec<(String, Fitted)>,
+    /// The ranking of this network (index 0) and the rivals (1..), when there are rivals.
+    pub ranking: Option<Ranking>,
+}
+
+/// Fit `loaded` (named `network`, `base` overrides for every experiment, `free` keys or its
+/// `[fit] free` list) to `experiments`, exactly as the `fit` command does; fit each rival with
+/// its own `[fit] free` list and rank all of them as `compare` does.
+pub fn fit_study(
+    network: &str,
+    loaded: &Loaded,
+    base: Vec<(String, String)>,
+    free: &[String],
+    experiments: Vec<Experiment>,
+    rivals: &[(String, Loaded)],
+    opts: &FitOptions,
+) -> Result<FitStudy> {
+    use rayon::prelude::*;
+    let fitted = fit_run::fit_loaded(loaded, base, free, &experiments, opts, &|| {})?;
+    let rival_fits = rivals
+        .par_iter()
+        .map(|(name, l)| {
+            fit_run::fit_loaded(l, Vec::new(), &[], &experiments, opts, &|| {}).map_err(|e| match e {
+                Error::Usage(m) => Error::Usage(format!("{name}: {m}")),
+                Error::Numerical(m) => Error::Numerical(format!("{name}: {m}")),
+                other => other,
+            })
+        })
+        .collect::<Result<Vec<_>>>()?;
+    let rivals: Vec<(String, Fitted)> = rivals.iter().map(|r| r.0.clone()).zip(rival_fits).collect();
+    let ranking = (!rivals.is_empty()).then(|| {
+        let mut all = vec![(network.to_string(), &fitted)];
+        all.extend(rivals.iter().map(|(n, f)| (n.clone(), f)));
+        fit_run::rank(&all, &experiments)
+    });
+    Ok(FitStudy {
+        network: network.to_string(),
+        experiments,
+        fitted,
+        rivals,
+        ranking,
+    })
 }
 
 /// Factors on the file's light for the "other lamp powers" of a plan.
@@ -251,6 +311,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
         chain,
         barrier,
         plan,
+        fit: None,
     })
 }
 

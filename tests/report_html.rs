@@ -352,3 +352,260 @@ fn bad_input_is_named_not_rendered() {
     let o = run(&["report", "networks/no-such.toml", "-o", out.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(3), "an unreadable file");
 }
+
+/// The page holds no URL or script, every inline SVG parses with a viewBox, ids are unique.
+fn check_self_contained(tag: &str, page: &str) {
+    let lower = page.to_lowercase();
+    for banned in ["http://", "https://", "<script", "<?xml", "<link", "@import", " src="] {
+        assert!(!lower.contains(banned), "{tag}: the page holds {banned:?}");
+    }
+    for svg in svgs(page) {
+        let doc = roxmltree::Document::parse(svg).unwrap_or_else(|e| panic!("{tag}: SVG does not parse: {e}"));
+        assert!(doc.root_element().attribute("viewBox").is_some(), "{tag}");
+    }
+    let mut seen = std::collections::HashSet::new();
+    for id in ids(page) {
+        assert!(seen.insert(id), "{tag}: id {id:?} used twice");
+    }
+}
+
+/// Text of an HTML fragment without its tags, entities for quotes and apostrophes undone.
+fn text_of(html: &str) -> String {
+    let mut out = String::new();
+    let mut inside = false;
+    for c in html.chars() {
+        match c {
+            '<' => inside = true,
+            '>' => inside = false,
+            c if !inside => out.push(c),
+            _ => {}
+        }
+    }
+    out.replace("&#39;", "'").replace("&quot;", "\"").replace("&amp;", "&")
+}
+
+/// The table captioned `caption`: its header cells and its body rows of cell texts.
+fn table(page: &str, caption: &str) -> (Vec<String>, Vec<Vec<String>>) {
+    let at = page
+        .find(&format!("<caption>{caption}</caption>"))
+        .unwrap_or_else(|| panic!("no table {caption:?}"));
+    let t = &page[at..at + page[at..].find("</table>").unwrap()];
+    let cells = |row: &str, tag: &str| -> Vec<String> {
+        row.split(&format!("<{tag}{}", if tag == "th" { " " } else { "" }))
+            .skip(1)
+            .map(|c| text_of(&format!("<{tag}{}", &c[..c.find(&format!("</{tag}>")).unwrap()])))
+            .collect()
+    };
+    let head = cells(&t[..t.find("</thead>").unwrap()], "th");
+    let body = &t[t.find("<tbody>").unwrap()..];
+    let rows = body.split("<tr>").skip(1).map(|r| cells(r, "td")).collect();
+    (head, rows)
+}
+
+/// The HTML of the section with id `id`.
+fn section_of<'a>(page: &'a str, id: &str) -> &'a str {
+    let at = page
+        .find(&format!(" id=\"{id}\""))
+        .unwrap_or_else(|| panic!("no section {id}"));
+    &page[at..at + page[at..].find("</section>").unwrap()]
+}
+
+/// True when `shown` (a number printed with some significant figures) is `value` rounded to them.
+fn shown_equals(shown: &str, value: f64) -> bool {
+    let x: f64 = shown.parse().unwrap_or_else(|_| panic!("{shown:?} is a number"));
+    let digits = shown
+        .trim_start_matches(['-', '+', '0', '.'])
+        .chars()
+        .filter(|c| c.is_ascii_digit())
+        .count()
+        .max(1) as i32;
+    let half_ulp = 0.5 * 10f64.powi(value.abs().log10().floor() as i32 - digits + 1);
+    (x - value).abs() <= half_ulp * 1.000_001
+}
+
+#[test]
+fn the_fit_section_agrees_with_fit_json() {
+    let scratch = Scratch::new("fit");
+    let page = render(
+        "networks/photoswitch.toml",
+        &["--data", "demo-data/fit/experiments.toml"],
+        &scratch,
+    );
+    check_self_contained("fit", &page);
+    assert!(
+        page.contains(" id=\"fit\"") && page.contains("href=\"#fit\""),
+        "the fit section"
+    );
+    assert!(!page.contains(" id=\"comparison\""), "no rivals, no comparison");
+    assert!(
+        page.contains("the other sections of this page use the file")
+            || page.contains("The other sections of this page use the file's values")
+    );
+    let fit_svgs = svgs(section_of(&page, "fit")).len();
+    let out = scratch.0.join("fit-out");
+    let o = run(&[
+        "fit",
+        "networks/photoswitch.toml",
+        "--data",
+        "demo-data/fit/experiments.toml",
+        "--json",
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let json: serde_json::Value = serde_json::from_slice(&o.stdout).expect("fit --json");
+    let (head, rows) = table(&page, "Fitted parameters");
+    let params = json["parameters"].as_array().unwrap();
+    assert_eq!(head.len(), params.len() + 1, "{head:?}");
+    let row = |label: &str| {
+        rows.iter()
+            .find(|r| r[0] == label)
+            .unwrap_or_else(|| panic!("row {label}"))
+    };
+    for (k, p) in params.iter().enumerate() {
+        let h = &head[k + 1];
+        assert!(h.starts_with(p["key"].as_str().unwrap()), "{h}");
+        // The header names the unit the column is shown in; the JSON holds SI.
+        let unit = &h[h.rfind('(').unwrap() + 1..h.len() - 1];
+        let scale = match (p["unit"].as_str().unwrap(), unit) {
+            ("", "dimensionless") => 1.0,
+            ("J/mol", "kJ/mol") => 1e-3,
+            (a, b) if a == b => 1.0,
+            (a, b) => panic!("unit {a} shown as {b}: extend the test"),
+        };
+        let v = p["value"].as_f64().unwrap() * scale;
+        let se = p["standard_error"].as_f64().unwrap() * scale;
+        let (lo, hi) = (
+            p["interval_95"][0].as_f64().unwrap() * scale,
+            p["interval_95"][1].as_f64().unwrap() * scale,
+        );
+        for (label, want) in [
+            ("fitted value", v),
+            ("± standard error", se),
+            ("95 % interval, low", lo),
+            ("95 % interval, high", hi),
+        ] {
+            let shown = &row(label)[k + 1];
+            assert!(
+                shown_equals(shown, want),
+                "{h} {label}: page {shown}, fit --json {want}"
+            );
+        }
+    }
+    // Goodness of fit and the information criteria as fit --json gives them.
+    let text = text_of(&page);
+    for (name, key) in [
+        ("χ² = ", "chi2"),
+        ("AICc = ", "aicc"),
+        ("BIC = ", "bic"),
+        ("reduced χ² = ", "reduced_chi2"),
+    ] {
+        let at = text.find(name).unwrap_or_else(|| panic!("{name}")) + name.len();
+        let shown: String = text[at..]
+            .chars()
+            .take_while(|c| c.is_ascii_digit() || *c == '.' || *c == '-')
+            .collect::<String>()
+            .trim_end_matches('.')
+            .to_string();
+        let want = json[key].as_f64().unwrap();
+        assert!(shown_equals(&shown, want), "{name}: page {shown}, fit --json {want}");
+    }
+    // The correlation matrix: a table with ones on the diagonal, equal to the JSON's.
+    let (_, corr) = table(
+        &page,
+        "Correlation of the fitted parameters (linearised, at the optimum)",
+    );
+    for (i, r) in corr.iter().enumerate() {
+        for (j, c) in r[1..].iter().enumerate() {
+            let want = json["correlation"][i][j].as_f64().unwrap();
+            assert!(
+                (c.parse::<f64>().unwrap() - want).abs() <= 5e-4 + 1e-12,
+                "r[{i}][{j}] {c} vs {want}"
+            );
+        }
+    }
+    assert!(page.contains("Identifiability"), "identifiability is reported");
+    assert_eq!(fit_svgs, 1, "one data-vs-fit drawing");
+}
+
+#[test]
+fn the_comparison_section_ranks_the_rivals() {
+    let scratch = Scratch::new("rival");
+    let page = render(
+        "networks/photoswitch.toml",
+        &[
+            "--data",
+            "demo-data/fit/experiments.toml",
+            "--rival",
+            "networks/photoswitch-side-product.toml",
+        ],
+        &scratch,
+    );
+    check_self_contained("rival", &page);
+    for id in ["fit", "comparison"] {
+        assert!(page.contains(&format!(" id=\"{id}\"")), "section {id}");
+        assert!(page.contains(&format!("href=\"#{id}\"")), "{id} in the contents");
+    }
+    assert_eq!(
+        svgs(section_of(&page, "comparison")).len(),
+        1,
+        "one drawing of every fit"
+    );
+    let (head, rows) = table(&page, "Rival networks ranked by AICc");
+    assert_eq!(rows.len(), 2);
+    let col = |name: &str| {
+        head.iter()
+            .position(|h| h.starts_with(name))
+            .unwrap_or_else(|| panic!("{name}"))
+    };
+    let (aicc, delta, weight) = (col("AICc"), col("ΔAICc"), col("Akaike weight"));
+    let a: Vec<f64> = rows.iter().map(|r| r[aicc].parse().unwrap()).collect();
+    assert!(a[0] <= a[1], "ranked by AICc: {a:?}");
+    assert_eq!(rows[0][delta], "0");
+    // Akaike weights w_i = exp(-Δ_i/2) / Σ exp(-Δ_j/2) (Burnham and Anderson, Model Selection and
+    // Multimodel Inference, 2nd ed. 2002, section 2.9; from memory).
+    let e: Vec<f64> = a.iter().map(|x| (-(x - a[0]) / 2.0).exp()).collect();
+    for (r, ei) in rows.iter().zip(&e) {
+        let w: f64 = r[weight].parse().unwrap();
+        assert!((w - ei / e.iter().sum::<f64>()).abs() <= 6e-4, "{r:?}");
+    }
+    // The ranked photoswitch row repeats the fit section's AICc.
+    let own = rows
+        .iter()
+        .find(|r| r[1] == "networks/photoswitch.toml")
+        .expect("the network itself is ranked");
+    let text = text_of(&page);
+    let at = text.find("AICc = ").unwrap() + "AICc = ".len();
+    assert!(
+        text[at..].starts_with(&own[aicc]),
+        "{} vs {}",
+        own[aicc],
+        &text[at..at + 12]
+    );
+    assert!(
+        text.contains(
+            "largest disagreement between networks/photoswitch.toml and networks/photoswitch-side-product.toml"
+        ),
+        "where the best two disagree"
+    );
+}
+
+#[test]
+fn rivals_and_free_keys_need_data() {
+    let scratch = Scratch::new("needs-data");
+    let out = scratch.0.join("x.html");
+    for extra in [
+        ["--rival", "networks/photoswitch-side-product.toml"],
+        ["--free", "photo.E to Z.quantum_yield"],
+    ] {
+        let mut args = vec!["report", "networks/photoswitch.toml", "-o", out.to_str().unwrap()];
+        args.extend_from_slice(&extra);
+        let o = run(&args);
+        assert!(!o.status.success(), "{extra:?} without --data is refused");
+        assert!(
+            String::from_utf8_lossy(&o.stderr).contains("--data"),
+            "{extra:?}: the error names --data"
+        );
+        assert!(!out.exists(), "no page written");
+    }
+}

@@ -2,9 +2,8 @@
 
 use super::fit::{fit_one, read_data};
 use photoledger::Error;
-use photoledger::fit::akaike_weights;
-use photoledger::fit::compare;
 use photoledger::fit::mechanism::FitOptions;
+use photoledger::fit::run;
 use photoledger::report::fit::{self as rf, Ranked};
 use photoledger::report::write_atomic;
 use std::path::PathBuf;
@@ -65,35 +64,35 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<()> {
             .filter_map(|f| f.strip_prefix(&format!("{name}:")))
             .flat_map(|k| k.split(',').map(|s| s.trim().to_string()))
             .collect();
-        let (_, result, curves, predicted) = fit_one(file, &[], &free, &experiments, &opts).map_err(|e| match e {
+        let (_, fitted) = fit_one(file, &[], &free, &experiments, &opts).map_err(|e| match e {
             Error::Usage(m) => Error::Usage(format!("{name}: {m}")),
             Error::Numerical(m) => Error::Numerical(format!("{name}: {m}")),
             other => other,
         })?;
-        fits.push((name, result, curves, predicted));
+        fits.push((name, fitted));
     }
-    let weights = akaike_weights(&fits.iter().map(|f| f.1.aicc).collect::<Vec<_>>());
-    let mut order: Vec<usize> = (0..fits.len()).collect();
-    order.sort_by(|&i, &j| fits[i].1.aicc.total_cmp(&fits[j].1.aicc));
-    let disagreement = if order.len() >= 2 {
-        let (a0, b0) = (&fits[order[0]], &fits[order[1]]);
-        compare::disagreement(&experiments, &a0.2, &b0.2).map(|d| compare::describe(&d, &a0.0, &b0.0))
-    } else {
-        None
-    };
+    let named: Vec<(String, &run::Fitted)> = fits.iter().map(|(n, f)| (n.clone(), f)).collect();
+    let run::Ranking {
+        order,
+        weights,
+        disagreement,
+    } = run::rank(&named, &experiments);
     let ranked: Vec<Ranked> = order
         .iter()
         .map(|&i| Ranked {
             network: fits[i].0.clone(),
-            fit: fits[i].1.clone(),
+            fit: fits[i].1.result.clone(),
             weight: weights[i],
         })
         .collect();
     let text = rf::compare_text(&ranked, disagreement.as_deref());
     let json = rf::compare_json(&ranked, disagreement.as_deref());
     let best = &fits[order[0]];
-    let rows = rf::rows(&experiments, &best.3);
-    let models: Vec<(String, Vec<_>)> = order.iter().map(|&i| (fits[i].0.clone(), fits[i].2.clone())).collect();
+    let rows = rf::rows(&experiments, &best.1.predicted);
+    let models: Vec<(String, Vec<_>)> = order
+        .iter()
+        .map(|&i| (fits[i].0.clone(), fits[i].1.curves.clone()))
+        .collect();
     write_atomic(&a.out.join("ranking.txt"), text.as_bytes())?;
     write_atomic(
         &a.out.join("ranking.json"),

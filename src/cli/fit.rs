@@ -2,7 +2,8 @@
 
 use photoledger::Error;
 use photoledger::file::data::{self, Experiment};
-use photoledger::fit::mechanism::{self, Accuracy, FitOptions, Setup};
+use photoledger::fit::mechanism::FitOptions;
+use photoledger::fit::run;
 use photoledger::report::{fit as rf, write_atomic};
 use std::path::{Path, PathBuf};
 
@@ -43,19 +44,6 @@ pub fn read_data(paths: &[PathBuf]) -> photoledger::Result<Vec<Experiment>> {
     Ok(all)
 }
 
-/// The free keys: given ones, else the file's `[fit] free`.
-pub fn free_keys(loaded: &photoledger::file::Loaded, given: &[String]) -> Vec<String> {
-    let given: Vec<String> = given
-        .iter()
-        .map(|k| k.trim().to_string())
-        .filter(|k| !k.is_empty())
-        .collect();
-    if !given.is_empty() {
-        return given;
-    }
-    loaded.doc.fit.as_ref().map_or(Vec::new(), |f| f.get_ref().free.clone())
-}
-
 /// A progress bar on stderr when it is a terminal.
 pub fn bar(n: usize, what: &str) -> indicatif::ProgressBar {
     use std::io::IsTerminal;
@@ -70,15 +58,10 @@ pub fn bar(n: usize, what: &str) -> indicatif::ProgressBar {
     b
 }
 
-/// A fitted network: the file as read, the fit, dense curves and the predictions at the data.
-pub type Fitted = (
-    photoledger::file::Loaded,
-    photoledger::fit::FitResult,
-    Vec<mechanism::Curve>,
-    Vec<Vec<f64>>,
-);
+/// A fitted network: the file as read, and its fit.
+pub type Fitted = (photoledger::file::Loaded, run::Fitted);
 
-/// Fit one network; returns the setup's pieces the caller needs.
+/// Load `file` and fit it (a progress bar on a terminal).
 pub fn fit_one(
     file: &Path,
     set: &[String],
@@ -88,19 +71,10 @@ pub fn fit_one(
 ) -> photoledger::Result<Fitted> {
     let loaded = photoledger::file::load(file)?;
     let base = photoledger::Overrides::parse(set).map_err(Error::Usage)?.pairs();
-    let keys = free_keys(&loaded, free);
-    let setup = Setup::new(&loaded, base.clone(), experiments, &keys, Accuracy::default())?;
     let pb = bar(opts.starts.max(1), &file.display().to_string());
-    let result = mechanism::fit(&setup, opts, &|| pb.inc(1))?;
+    let fitted = run::fit_loaded(&loaded, base, free, experiments, opts, &|| pb.inc(1))?;
     pb.finish_and_clear();
-    let x = result.solution.values.clone();
-    let curves = mechanism::curves(&setup, &x, 300)?;
-    let predicted = experiments
-        .iter()
-        .map(|e| setup.predict(e, &x).map(|p| p.points))
-        .collect::<photoledger::Result<Vec<_>>>()?;
-    drop(setup);
-    Ok((loaded, result, curves, predicted))
+    Ok((loaded, fitted))
 }
 
 pub fn run(a: &FitArgs) -> photoledger::Result<()> {
@@ -110,7 +84,12 @@ pub fn run(a: &FitArgs) -> photoledger::Result<()> {
         seed: a.seed,
         ..FitOptions::default()
     };
-    let (loaded, result, curves, predicted) = fit_one(&a.file, &a.set, &a.free, &experiments, &opts)?;
+    let (loaded, fitted) = fit_one(&a.file, &a.set, &a.free, &experiments, &opts)?;
+    let run::Fitted {
+        result,
+        curves,
+        predicted,
+    } = fitted;
     let stem = a
         .file
         .file_stem()

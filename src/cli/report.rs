@@ -1,8 +1,10 @@
-//! `photoledger report FILE [--until DURATION] [--target EXPR] [--barrier-window DURATION] -o report.html`:
+//! `photoledger report FILE [--until DURATION] [--target EXPR] [--barrier-window DURATION]
+//! [--data DATA... [--free KEYS] [--rival OTHER.toml ...]] -o report.html`:
 //! run what applies to the network and write one self-contained HTML page.
 
 use super::{NetworkArgs, load, print_warnings};
 use photoledger::Error;
+use photoledger::fit::mechanism::FitOptions;
 use photoledger::model::Model;
 use photoledger::report::html::{self, Meta, date};
 use photoledger::report::write_atomic;
@@ -26,6 +28,16 @@ pub struct ReportArgs {
     /// Add barrier verdicts on every step with a rate against this window, e.g. "10 min".
     #[arg(long, value_name = "DURATION")]
     pub barrier_window: Option<String>,
+    /// Fit the network to these data (time-course CSV or experiments TOML files, repeatable) and
+    /// add a fit section, as `fit` does.
+    #[arg(long, num_args = 1.., value_name = "FILE")]
+    pub data: Vec<PathBuf>,
+    /// Free parameters as --set keys, comma-separated or repeated (default: the file's [fit] free list).
+    #[arg(long, value_delimiter = ',', value_name = "KEYS", requires = "data")]
+    pub free: Vec<String>,
+    /// A rival network to fit to the same data and rank against this one, as `compare` does (repeatable).
+    #[arg(long, value_name = "OTHER.toml", requires = "data")]
+    pub rival: Vec<PathBuf>,
     /// Where to write the page (default: the network file's name followed by "-report.html").
     #[arg(short = 'o', long = "out", value_name = "HTML")]
     pub out: Option<PathBuf>,
@@ -73,7 +85,26 @@ pub fn run(a: &ReportArgs) -> photoledger::Result<()> {
         target: a.target.clone(),
     };
     let model = Model::compile(&net);
-    let found = study::run(&net, &model, &opts)?;
+    let mut found = study::run(&net, &model, &opts)?;
+    if !a.data.is_empty() {
+        let experiments = super::fit::read_data(&a.data)?;
+        let loaded = photoledger::file::load(&a.net.file)?;
+        let base = photoledger::Overrides::parse(&a.net.set).map_err(Error::Usage)?.pairs();
+        let rivals = a
+            .rival
+            .iter()
+            .map(|p| photoledger::file::load(p).map(|l| (p.display().to_string(), l)))
+            .collect::<photoledger::Result<Vec<_>>>()?;
+        found.fit = Some(study::fit_study(
+            &a.net.file.display().to_string(),
+            &loaded,
+            base,
+            &a.free,
+            experiments,
+            &rivals,
+            &FitOptions::default(),
+        )?);
+    }
     let meta = Meta {
         command_line: command_line(),
         date: date::now_utc(),

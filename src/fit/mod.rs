@@ -6,5 +6,6 @@
 pub mod compare;
 pub mod lsq;
 pub mod mechanism;
+pub mod run;
 
 pub use mechanism::{FitOptions, FitResult, Setup, akaike_weights, fit};

@@ -11,6 +11,7 @@ pub mod conditions;
 pub mod date;
 pub mod diagram;
 pub mod escape;
+pub mod fit;
 pub mod header;
 pub mod kinetics;
 pub mod page;
@@ -31,7 +32,7 @@ pub struct Meta {
 }
 
 /// Ids and titles of the sections, in page order (the contents list and the tests use them).
-pub const SECTIONS: [(&str, &str); 8] = [
+pub const SECTIONS: [(&str, &str); 10] = [
     ("safety", "Safety and conditions"),
     ("network", "The network"),
     ("concentrations", "Concentrations over time"),
@@ -39,6 +40,8 @@ pub const SECTIONS: [(&str, &str); 8] = [
     ("chain", "One molecule's path: the absorbing Markov chain"),
     ("plan", "The plan: time to the target"),
     ("barriers", "Barrier verdicts"),
+    ("fit", "Fit to the data"),
+    ("comparison", "Rival networks compared"),
     ("run", "How this was computed"),
 ];
 
@@ -56,6 +59,12 @@ pub fn render(net: &Network, model: &Model, study: &Study, meta: &Meta) -> Strin
     }
     if let Some(b) = &study.barrier {
         parts.push(("barriers", barrier::section(b, net.conditions.temperature)));
+    }
+    if let Some(f) = &study.fit {
+        parts.push(("fit", fit::section(f)));
+        if let Some(c) = fit::comparison(f) {
+            parts.push(("comparison", c));
+        }
     }
     parts.push(("run", kinetics::run_section(model, study, meta)));
     let title_of = |id: &str| SECTIONS.iter().find(|(i, _)| *i == id).map_or("", |(_, t)| *t);
