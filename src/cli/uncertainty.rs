@@ -78,17 +78,7 @@ fn read(path: &Path) -> photoledger::Result<String> {
 
 fn base_overrides(set: &[String]) -> photoledger::Result<Vec<(String, String)>> {
     // Same reading as every other command's --set.
-    photoledger::Overrides::parse(set).map_err(Error::Usage)?;
-    Ok(set
-        .iter()
-        .filter_map(|s| s.split_once('='))
-        .map(|(k, v)| {
-            (
-                k.trim().to_string(),
-                v.trim().trim_matches('"').trim_matches('\'').to_string(),
-            )
-        })
-        .collect())
+    Ok(photoledger::Overrides::parse(set).map_err(Error::Usage)?.pairs())
 }
 
 /// Run `uncertainty`.

@@ -259,7 +259,7 @@ pub fn data_svg(title: &str, rows: &[Row], models: &[(String, Vec<Curve>)]) -> S
             "</svg>",
             &format!(
                 "<text x=\"120\" y=\"552\" font-family=\"sans-serif\" font-size=\"13\">{}</text></svg>",
-                names.join("; ").replace('&', "&amp;").replace('<', "&lt;")
+                crate::report::html::escape::esc(&names.join("; "))
             ),
             1,
         );

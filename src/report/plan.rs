@@ -432,15 +432,6 @@ pub fn sweep_csv(axis: &SweepAxis, points: &[SweepPoint]) -> String {
     s
 }
 
-const PALETTE: [RGBColor; 6] = [
-    RGBColor(31, 119, 180),
-    RGBColor(214, 39, 40),
-    RGBColor(44, 160, 44),
-    RGBColor(148, 103, 189),
-    RGBColor(255, 127, 14),
-    RGBColor(23, 190, 207),
-];
-
 /// An x–y plot with points and lines, either axis logarithmic, as SVG text.
 fn xy_plot(
     title: &str,
@@ -501,7 +492,7 @@ fn xy_plot(
                             .label_style(("sans-serif", 15))
                             .draw()?;
                         for (i, (name, pts)) in series.iter().enumerate() {
-                            let col = PALETTE[i % PALETTE.len()];
+                            let col = super::simulation::PALETTE[i % super::simulation::PALETTE.len()];
                             let p: Vec<(f64, f64)> = pts
                                 .iter()
                                 .cloned()
