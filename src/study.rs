@@ -53,6 +53,8 @@ pub struct BarrierStudy {
     pub probability: f64,
     /// One verdict per step or channel with a rate.
     pub rows: Vec<Verdict>,
+    /// The hot ground-state channels: yields before cooling.
+    pub hot: Vec<barrier::HotVerdict>,
 }
 
 /// Everything a study found.
@@ -299,6 +301,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
             window,
             probability: BARRIER_PROBABILITY,
             rows: barrier::network_verdicts(net, window, BARRIER_PROBABILITY)?,
+            hot: barrier::hot_verdicts(net),
         }),
         None => None,
     };

@@ -199,6 +199,24 @@ fn hot_channels_take_the_engine_yields_and_the_rest_cools() {
     assert!((x[(0, 0)] - f[0]).abs() < 1e-15);
     assert!((x[(0, 1)] - f[1]).abs() < 1e-15);
     assert!((x[(0, 2)] - y.cooled).abs() < 1e-9);
+    // the barrier verdicts list the hot channels with the same yields, the starting energy and
+    // τ from the file, and k(E)·τ from RRKM at the starting energy
+    let hv = photoledger::barrier::hot_verdicts(&net);
+    assert_eq!(hv.len(), 2);
+    for (v, want) in hv.iter().zip(&y.probabilities) {
+        assert!((v.fraction - want).abs() <= 1e-9 * want.max(1e-300));
+        assert!((v.energy - photon).abs() < 1e-6 * photon && (v.cooling - 3e-12).abs() < 1e-24);
+    }
+    let k_b = photoledger::rates::rrkm::Rrkm::new(&reactant, &ts_b, 14.0 * kcal, 1.0, grain, photon + grain)
+        .unwrap()
+        .rate(photon)
+        .unwrap();
+    assert!(
+        (hv[0].rate_at_start - k_b).abs() <= 1e-6 * k_b,
+        "{} vs {k_b}",
+        hv[0].rate_at_start
+    );
+    assert!(hv[0].words().contains("%"));
     // a higher barrier lowers that channel's yield (a monotonic check on the computed values)
     let higher = net_in(&dir, &hot_text("16 kcal/mol", "18 kcal/mol", "photon", "3 ps")).unwrap();
     assert!(hot_fractions(&higher)[0] < f[0]);

@@ -11,6 +11,8 @@
 //!   energy), by bisection on E₀ with RRKM k(E).
 //! * [`network_verdicts`]: barrier, rate, half-life and verdict for each thermal step and each
 //!   rate channel of the transients.
+//! * [`hot_verdicts`]: the channels of hot ground states, which are yields before cooling and
+//!   not rates, so a time window does not apply to them: the share that reacts, k(E)·τ.
 //! * [`k_table`]: k(E), ρ(E) and W(E) over an energy range.
 
 use crate::error::{Error, Result};
@@ -256,6 +258,76 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
         }
     }
     Ok(out)
+}
+
+/// One channel of a hot ground state, from [`hot_verdicts`]. A hot molecule reacts or cools
+/// within a few cooling times τ of the photon (ps to ns in solution), so the question is the
+/// share that reacts before cooling, not whether a window is long enough.
+#[derive(Debug, Clone, PartialEq)]
+pub struct HotVerdict {
+    /// Display name, "TRANSIENT channel N -> TARGET".
+    pub name: String,
+    /// Zero-point-corrected barrier E₀, J/mol.
+    pub barrier: f64,
+    /// Excess energy the hot molecule starts with, J/mol.
+    pub energy: f64,
+    /// Cooling time constant τ, s.
+    pub cooling: f64,
+    /// RRKM k(E) at the starting energy, s⁻¹.
+    pub rate_at_start: f64,
+    /// Yield of this channel before cooling (dimensionless).
+    pub fraction: f64,
+}
+
+impl HotVerdict {
+    /// k(E)·τ at the starting energy: well above 1 the channel outruns cooling at first, well
+    /// below 1 most molecules cool before crossing.
+    pub fn competition(&self) -> f64 {
+        self.rate_at_start * self.cooling
+    }
+
+    /// "reacts before cooling in 42.0 % of hot molecules" and what decides it.
+    pub fn words(&self) -> String {
+        let share = format!("{:.3} %", 100.0 * self.fraction);
+        if self.fraction >= 0.5 {
+            format!("reacts before cooling in {share} of hot molecules")
+        } else if self.competition() >= 1.0 {
+            format!("outruns cooling at first but loses to the other channels or to cooling: {share}")
+        } else {
+            format!("mostly cools first: {share} react")
+        }
+    }
+}
+
+/// The hot channels of every hot ground state in `net`, with their computed yields.
+pub fn hot_verdicts(net: &Network) -> Vec<HotVerdict> {
+    let mut out = Vec::new();
+    for tr in &net.transients {
+        for (ci, c) in tr.channels.iter().enumerate() {
+            if let Branching::Hot {
+                fraction,
+                barrier,
+                energy,
+                cooling,
+                rate_at_start,
+            } = c.branching
+            {
+                let target = match &c.target {
+                    crate::network::Target::Species(terms) => net.side(terms),
+                    crate::network::Target::Transient(j) => net.transients[*j].name.clone(),
+                };
+                out.push(HotVerdict {
+                    name: format!("{} channel {} -> {}", tr.name, ci + 1, target),
+                    barrier,
+                    energy,
+                    cooling,
+                    rate_at_start,
+                    fraction,
+                });
+            }
+        }
+    }
+    out
 }
 
 /// One row of [`k_table`].

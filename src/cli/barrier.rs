@@ -352,5 +352,6 @@ fn network(a: &BarrierArgs, file: &std::path::Path, p: f64) -> photoledger::Resu
         "{}",
         report::verdicts_text(&rows, window, p, net.conditions.temperature)
     );
+    print!("{}", report::hot_verdicts_text(&barrier::hot_verdicts(&net)));
     Ok(())
 }

@@ -2,7 +2,7 @@
 //! SVG. Energies are shown in kJ/mol and kcal/mol (the engine works in J/mol), densities per
 //! cm⁻¹.
 
-use crate::barrier::{KRow, Verdict};
+use crate::barrier::{HotVerdict, KRow, Verdict};
 use crate::units::{Quantity, parse};
 use plotters::prelude::*;
 use std::fmt::Write;
@@ -140,6 +140,43 @@ pub fn hot_yields_text(rows: &[HotRow], cooled: f64, energy: f64, cooling: f64, 
     let _ = writeln!(
         s,
         "  RRKM k(E) from Beyer–Swinehart counts on a {grain} grain; the channels compete while the energy decays"
+    );
+    s
+}
+
+/// The hot ground-state channels of a network: yields before cooling, for which a time window
+/// does not apply. Empty when the network has none.
+pub fn hot_verdicts_text(rows: &[HotVerdict]) -> String {
+    let mut s = String::new();
+    if rows.is_empty() {
+        return s;
+    }
+    let _ = writeln!(
+        s,
+        "Hot ground-state channels (they react or cool within a few τ of the photon, so the window does not apply):"
+    );
+    let width = rows.iter().map(|r| r.name.chars().count()).max().unwrap_or(4).max(4);
+    let _ = writeln!(
+        s,
+        "{:<width$} {:>10} {:>10} {:>12} {:>12} {:>10}  verdict",
+        "channel", "E0 kJ/mol", "E kJ/mol", "k(E) (1/s)", "τ", "k(E)·τ"
+    );
+    for r in rows {
+        let _ = writeln!(
+            s,
+            "{:<width$} {:>10.2} {:>10.2} {:>12.3e} {:>12} {:>10.3e}  {}",
+            r.name,
+            r.barrier / 1000.0,
+            r.energy / 1000.0,
+            r.rate_at_start,
+            duration(r.cooling),
+            r.competition(),
+            r.words()
+        );
+    }
+    let _ = writeln!(
+        s,
+        "E is the excess energy at the start; the yield integrates RRKM k(E) while the energy decays with τ."
     );
     s
 }

@@ -17,6 +17,7 @@ pub fn section(b: &BarrierStudy, temperature: f64) -> String {
     );
     if b.rows.is_empty() {
         s.push_str("<p class=\"missing\">No step of this network carries a rate (fixed fractions only).</p>\n");
+        s.push_str(&hot_table(b));
         return s;
     }
     let finite = b.rows.iter().map(|r| r.half_life).filter(|t| t.is_finite());
@@ -69,6 +70,48 @@ pub fn section(b: &BarrierStudy, temperature: f64) -> String {
          steps of order two or more are pseudo-first-order at the initial concentrations of their partners and \
          quenching at the initial quencher concentration, with ΔG‡ for them referred to 1 mol/L. Channels set by \
          fixed fractions carry no rate and are not listed.",
+    ));
+    s.push_str(&hot_table(b));
+    s
+}
+
+/// The hot ground-state channels: the share that reacts before cooling (no window applies).
+fn hot_table(b: &BarrierStudy) -> String {
+    if b.hot.is_empty() {
+        return String::new();
+    }
+    let rows: Vec<String> = b
+        .hot
+        .iter()
+        .map(|r| {
+            format!(
+                "{}{}{}{}{}{}{}",
+                text_cell(&r.name),
+                num_cell(&sig(r.barrier / 1000.0, 4)),
+                num_cell(&sig(r.energy / 1000.0, 4)),
+                num_cell(&sig(r.rate_at_start, 3)),
+                num_cell(&sig(r.cooling * 1e12, 3)),
+                num_cell(&sig(r.competition(), 3)),
+                text_cell(&r.words())
+            )
+        })
+        .collect();
+    let mut s = page::table(
+        "Hot ground-state channels: yield before cooling",
+        &[
+            ("channel", false),
+            ("E₀ (kJ/mol)", true),
+            ("E (kJ/mol)", true),
+            ("k(E) (1/s)", true),
+            ("τ (ps)", true),
+            ("k(E)·τ (1)", true),
+            ("verdict", false),
+        ],
+        &rows,
+    );
+    s.push_str(&page::assumption(
+        "A hot molecule reacts or cools within a few cooling times τ of the photon, so the window does not apply: the \
+         yield integrates RRKM k(E) while the excess energy E decays exponentially with τ (set in the network file).",
     ));
     s
 }
