@@ -160,16 +160,30 @@ pub struct Verdict {
     /// ΔG‡ implied by the rate law at the network temperature, J/mol (standard state 1 mol/L
     /// for bimolecular steps).
     pub barrier: f64,
-    /// First-order (or pseudo-first-order) rate per molecule, s⁻¹: for a step of order n > 1,
-    /// k times the initial concentrations of the other reactants (the partners), so the rate
-    /// at the start; zero when a partner starts at zero.
+    /// False when the rate was given as a plain rate constant: ΔG‡ is then only what Eyring's
+    /// equation would need for that k (fluorescence or internal conversion has no barrier).
+    pub barrier_given: bool,
+    /// Rate of loss per molecule at the start, s⁻¹: for a thermal step, ν k Π cⱼ^νⱼ / c of
+    /// the reactant followed (the limiting one) at the initial concentrations; for quenching,
+    /// k₂ [quencher]; zero when a reactant starts at zero.
     pub rate: f64,
-    /// ln 2 / rate, s (infinite for a zero rate).
+    /// Time for half of the reactant followed to react, s (infinite for a zero rate).
     pub half_life: f64,
-    /// Time to reach the requested probability, −ln(1 − p) / rate, s.
+    /// Time for the requested share of the reactant followed to react, s.
     pub time_needed: f64,
     /// time_needed / window: ≤ 1 crosses within the window.
     pub factor: f64,
+}
+
+/// How a verdict reads, for counting.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Outcome {
+    /// Reaches the probability within the window.
+    Crosses,
+    /// Needs longer than the window.
+    TooSlow,
+    /// No rate at the start: a reactant or the quencher starts at zero.
+    Undetermined,
 }
 
 impl Verdict {
@@ -178,21 +192,96 @@ impl Verdict {
         self.factor <= 1.0
     }
 
-    /// "crosses within the window" or "too slow by a factor N".
-    pub fn words(&self) -> String {
+    /// Crosses, too slow, or undetermined (no rate at the start).
+    pub fn outcome(&self) -> Outcome {
         if self.crosses() {
-            "crosses within the window".into()
+            Outcome::Crosses
         } else if self.rate <= 0.0 {
-            "no rate at the start (a partner starts at zero)".into()
+            Outcome::Undetermined
         } else {
-            format!("too slow by a factor {:.3e}", self.factor)
+            Outcome::TooSlow
         }
     }
+
+    /// "crosses within the window" or "too slow by a factor N".
+    pub fn words(&self) -> String {
+        match self.outcome() {
+            Outcome::Crosses => "crosses within the window".into(),
+            Outcome::Undetermined => "no rate at the start (a reactant starts at zero)".into(),
+            Outcome::TooSlow => format!("too slow by a factor {:.3e}", self.factor),
+        }
+    }
+}
+
+/// "5 of 6 cross within the window; 1 does not." with undetermined rows counted apart.
+pub fn tally(rows: &[Verdict]) -> String {
+    let count = |o: Outcome| rows.iter().filter(|r| r.outcome() == o).count();
+    let (yes, no, open) = (
+        count(Outcome::Crosses),
+        count(Outcome::TooSlow),
+        count(Outcome::Undetermined),
+    );
+    let verb = |n: usize, one: &str, many: &str| if n == 1 { one.to_string() } else { many.to_string() };
+    let mut s = format!(
+        "{yes} of {} {} within the window; {no} {}",
+        rows.len(),
+        verb(yes, "crosses", "cross"),
+        verb(no, "does not", "do not")
+    );
+    if open > 0 {
+        s.push_str(&format!("; {open} {} no rate at the start", verb(open, "has", "have")));
+    }
+    s.push('.');
+    s
+}
+
+/// Time for a share `p` of reactant `followed` to react in the isolated step of rate
+/// r = k Π cⱼ^νⱼ (consumption νⱼ r), from the initial concentrations `c0` (mol/L):
+/// t = ∫₀^ξ* dξ / (k Π (cⱼ⁰ − νⱼ ξ)^νⱼ) with ξ* = p c⁰ / ν of the reactant followed, which must
+/// be the limiting one. Adaptive Simpson quadrature to 1e-10 relative.
+fn isolated_step_time(k: f64, terms: &[(f64, f64)], followed: usize, p: f64) -> f64 {
+    let (c_f, nu_f) = terms[followed];
+    let end = p * c_f / nu_f;
+    let f = |xi: f64| {
+        let mut r = k;
+        for &(c, nu) in terms {
+            r *= (c - nu * xi).max(0.0).powf(nu);
+        }
+        1.0 / r
+    };
+    adaptive_simpson(&f, 0.0, end, 1e-10, 48)
+}
+
+fn adaptive_simpson(f: &dyn Fn(f64) -> f64, a: f64, b: f64, rel: f64, depth: u32) -> f64 {
+    fn simpson(fa: f64, fm: f64, fb: f64, a: f64, b: f64) -> f64 {
+        (b - a) / 6.0 * (fa + 4.0 * fm + fb)
+    }
+    #[allow(clippy::too_many_arguments)]
+    fn go(f: &dyn Fn(f64) -> f64, a: f64, b: f64, fa: f64, fm: f64, fb: f64, whole: f64, tol: f64, depth: u32) -> f64 {
+        let m = 0.5 * (a + b);
+        let (lm, rm) = (0.5 * (a + m), 0.5 * (m + b));
+        let (flm, frm) = (f(lm), f(rm));
+        let left = simpson(fa, flm, fm, a, m);
+        let right = simpson(fm, frm, fb, m, b);
+        if depth == 0 || (left + right - whole).abs() <= 15.0 * tol {
+            return left + right + (left + right - whole) / 15.0;
+        }
+        go(f, a, m, fa, flm, fm, left, tol / 2.0, depth - 1) + go(f, m, b, fm, frm, fb, right, tol / 2.0, depth - 1)
+    }
+    let (fa, fm, fb) = (f(a), f(0.5 * (a + b)), f(b));
+    let whole = simpson(fa, fm, fb, a, b);
+    go(f, a, b, fa, fm, fb, whole, rel * whole.abs(), depth)
 }
 
 /// A verdict for every thermal step and every rate or quenching channel of `net`, at the
 /// network temperature, for crossing with probability `probability` within `window` s.
 /// Channels with a fixed fraction or the rest carry no rate and are left out.
+///
+/// A thermal step is taken alone from the initial concentrations (as if no other step ran):
+/// the share of its limiting reactant that reacts follows the step's own integrated rate law
+/// (first order: 1 − exp(−k t); A + B and 2 A: the second-order laws), not a pseudo-first-order
+/// rate, which holds only with the partner in large excess. Quenching is pseudo-first-order in
+/// the quencher, which is not consumed.
 pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<Vec<Verdict>> {
     check_probability(probability)?;
     if !(window.is_finite() && window > 0.0) {
@@ -200,17 +289,18 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
     }
     let t = net.conditions.temperature;
     let need = -(-probability).ln_1p();
-    let row = |name: String, kind: StepKind, law: &RateLaw, order: u32, rate: f64| {
-        let half_life = if rate > 0.0 {
-            std::f64::consts::LN_2 / rate
+    let given = |law: &RateLaw| !matches!(law, RateLaw::Constant(_));
+    let first_order = |name: String, kind: StepKind, law: &RateLaw, order: u32, rate: f64| {
+        let (half_life, time_needed) = if rate > 0.0 {
+            (std::f64::consts::LN_2 / rate, need / rate)
         } else {
-            f64::INFINITY
+            (f64::INFINITY, f64::INFINITY)
         };
-        let time_needed = if rate > 0.0 { need / rate } else { f64::INFINITY };
         Verdict {
             name,
             kind,
             barrier: law.barrier(t, order),
+            barrier_given: given(law),
             rate,
             half_life,
             time_needed,
@@ -219,25 +309,48 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
     };
     let mut out = Vec::new();
     for s in &net.thermal {
-        // pseudo-first-order: remove one molecule of the first reactant, multiply by the rest
-        let mut rate = s.k;
-        for (i, term) in s.reactants.iter().enumerate() {
-            let nu = if i == 0 {
-                term.coefficient - 1.0
-            } else {
-                term.coefficient
-            };
-            if nu > 0.0 {
-                rate *= net.species[term.species].initial.powf(nu);
-            }
-        }
+        let terms: Vec<(f64, f64)> = s
+            .reactants
+            .iter()
+            .map(|r| (net.species[r.species].initial, r.coefficient))
+            .collect();
+        // follow the limiting reactant (smallest c⁰/ν; the first on ties)
+        let followed = (0..terms.len())
+            .min_by(|&a, &b| (terms[a].0 / terms[a].1).total_cmp(&(terms[b].0 / terms[b].1)))
+            .unwrap_or(0);
         let mut name = format!("{} ({} -> {})", s.name, net.side(&s.reactants), net.side(&s.products));
         if s.order > 1
-            && let Some(first) = s.reactants.first()
+            && let Some(f) = s.reactants.get(followed)
         {
-            name.push_str(&format!(" [per {}]", net.species[first.species].name));
+            name.push_str(&format!(" [per {}]", net.species[f.species].name));
         }
-        out.push(row(name, StepKind::Thermal(s.order), &s.rate, s.order, rate));
+        if s.order <= 1 || terms.is_empty() {
+            out.push(first_order(name, StepKind::Thermal(s.order), &s.rate, s.order, s.k));
+            continue;
+        }
+        let (c_f, nu_f) = terms[followed];
+        let mut rate = if c_f > 0.0 { s.k * nu_f / c_f } else { 0.0 };
+        for &(c, nu) in &terms {
+            rate *= c.powf(nu);
+        }
+        let (half_life, time_needed) = if rate > 0.0 && rate.is_finite() {
+            (
+                isolated_step_time(s.k, &terms, followed, 0.5),
+                isolated_step_time(s.k, &terms, followed, probability),
+            )
+        } else {
+            (f64::INFINITY, f64::INFINITY)
+        };
+        out.push(Verdict {
+            name,
+            kind: StepKind::Thermal(s.order),
+            barrier: s.rate.barrier(t, s.order),
+            barrier_given: given(&s.rate),
+            rate,
+            half_life,
+            time_needed,
+            factor: time_needed / window,
+        });
     }
     for tr in &net.transients {
         for (ci, c) in tr.channels.iter().enumerate() {
@@ -247,11 +360,11 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
             };
             let name = format!("{} channel {} -> {}", tr.name, ci + 1, target);
             match &c.branching {
-                Branching::Rate { law, k } => out.push(row(name, StepKind::Channel, law, 1, *k)),
+                Branching::Rate { law, k } => out.push(first_order(name, StepKind::Channel, law, 1, *k)),
                 Branching::Quenching { partner, law, k2 } => {
                     let rate = k2 * net.species[*partner].initial;
                     let name = format!("{name} [quenched by {}]", net.species[*partner].name);
-                    out.push(row(name, StepKind::Quenching, law, 2, rate));
+                    out.push(first_order(name, StepKind::Quenching, law, 2, rate));
                 }
                 Branching::Fraction(_) | Branching::Rest | Branching::Hot { .. } => {}
             }
@@ -402,6 +515,51 @@ mod tests {
         assert!(((-k * t).exp() - 0.5).abs() < 1e-12);
         assert!(thermal_window(t, temp, 1.0, 1.0).is_err());
         assert!(thermal_window(-1.0, temp, 0.5, 1.0).is_err());
+    }
+
+    // Integrated rate laws for an isolated step (Atkins & de Paula, Physical Chemistry, the
+    // integrated second-order rate laws, `from memory` for the section): first order
+    // t = −ln(1 − p)/k; A + B with [A]₀ < [B]₀: k t = ln([B][A]₀/([A][B]₀))/([B]₀ − [A]₀);
+    // A + B equal: t½ = 1/(k [A]₀); 2 A with r = k[A]² and d[A]/dt = −2r: t½ = 1/(2 k [A]₀).
+    #[test]
+    fn isolated_step_times_follow_the_integrated_rate_laws() {
+        let rel = |a: f64, b: f64| (a - b).abs() / b;
+        let k = 0.0136;
+        // A + B, equal 10 mM
+        let t = isolated_step_time(k, &[(0.01, 1.0), (0.01, 1.0)], 0, 0.5);
+        assert!(rel(t, 1.0 / (k * 0.01)) < 1e-9, "{t}");
+        // A + B, A limiting at 10 mM against 30 mM, to 90 % of A
+        let (a0, b0, p) = (0.01, 0.03, 0.9);
+        let (a, b) = (a0 * (1.0 - p), b0 - a0 * p);
+        let want = (b * a0 / (a * b0)).ln() / (k * (b0 - a0));
+        let t = isolated_step_time(k, &[(a0, 1.0), (b0, 1.0)], 0, p);
+        assert!(rel(t, want) < 1e-9, "{t} vs {want}");
+        // 2 A
+        let t = isolated_step_time(k, &[(0.02, 2.0)], 0, 0.5);
+        assert!(rel(t, 1.0 / (2.0 * k * 0.02)) < 1e-9, "{t}");
+        // a large excess of B tends to the pseudo-first-order half-life ln 2 / (k [B]₀)
+        let t = isolated_step_time(k, &[(1e-6, 1.0), (1.0, 1.0)], 0, 0.5);
+        assert!(rel(t, std::f64::consts::LN_2 / k) < 1e-5, "{t}");
+    }
+
+    #[test]
+    fn tally_counts_undetermined_apart_and_agrees_in_number() {
+        let v = |factor: f64, rate: f64| Verdict {
+            name: "x".into(),
+            kind: StepKind::Thermal(2),
+            barrier: 0.0,
+            barrier_given: true,
+            rate,
+            half_life: 1.0,
+            time_needed: factor,
+            factor,
+        };
+        let rows = [v(0.5, 1.0), v(2.0, 1.0), v(f64::INFINITY, 0.0)];
+        assert_eq!(
+            tally(&rows),
+            "1 of 3 crosses within the window; 1 does not; 1 has no rate at the start."
+        );
+        assert_eq!(tally(&rows[..1]), "1 of 1 crosses within the window; 0 do not.");
     }
 
     #[test]

@@ -60,13 +60,14 @@ pub fn verdicts_text(rows: &[Verdict], window: f64, probability: f64, temperatur
     let width = rows.iter().map(|r| r.name.chars().count()).max().unwrap_or(4).max(4);
     let _ = writeln!(
         s,
-        "{:<width$} {:>12} {:>12} {:>14}  verdict",
+        "{:<width$} {:>13} {:>12} {:>14}  verdict",
         "step", "ΔG‡ kJ/mol", "k (1/s)", "half-life"
     );
     for r in rows {
+        let mark = if r.barrier_given { " " } else { "*" };
         let _ = writeln!(
             s,
-            "{:<width$} {:>12.2} {:>12.3e} {:>14}  {}",
+            "{:<width$} {:>12.2}{mark} {:>12.3e} {:>14}  {}",
             r.name,
             r.barrier / 1000.0,
             r.rate,
@@ -76,17 +77,19 @@ pub fn verdicts_text(rows: &[Verdict], window: f64, probability: f64, temperatur
     }
     let _ = writeln!(
         s,
-        "k is per molecule: steps of order 2 or more are pseudo-first-order (per molecule of the reactant in \
-         brackets) at the initial concentrations of their partners, and quenching at the initial quencher concentration; ΔG‡ for them is for 1 mol/L. \
-         Channels set by fixed fractions carry no rate and are not listed."
+        "Each thermal step is taken alone from the initial concentrations and follows its own integrated rate law \
+         (second-order laws for A + B and 2 A, per molecule of the limiting reactant in brackets); k is its loss rate \
+         per molecule at the start. Quenching is pseudo-first-order at the initial quencher concentration. ΔG‡ for \
+         bimolecular steps is for 1 mol/L. Channels set by fixed fractions carry no rate and are not listed."
     );
-    let slow = rows.iter().filter(|r| !r.crosses()).count();
-    let _ = writeln!(
-        s,
-        "{} of {} cross within the window; {slow} do not.",
-        rows.len() - slow,
-        rows.len()
-    );
+    if rows.iter().any(|r| !r.barrier_given) {
+        let _ = writeln!(
+            s,
+            "* rate given as a plain k: ΔG‡ is only what Eyring's equation would need for it, not a barrier \
+             (fluorescence or internal conversion has none)."
+        );
+    }
+    let _ = writeln!(s, "{}", crate::barrier::tally(rows));
     s
 }
 

@@ -26,22 +26,33 @@ pub fn section(b: &BarrierStudy, temperature: f64) -> String {
         .rows
         .iter()
         .map(|r| {
-            let cls = if r.crosses() { "yes" } else { "no" };
+            let cls = match r.outcome() {
+                crate::barrier::Outcome::Crosses => "yes",
+                crate::barrier::Outcome::TooSlow => "no",
+                crate::barrier::Outcome::Undetermined => "open",
+            };
             format!(
                 "{}{}{}{}{}<td class=\"{cls}\">{}</td>",
                 text_cell(&r.name),
-                num_cell(&sig(r.barrier / 1000.0, 4)),
-                num_cell(&sig(r.barrier / 4184.0, 4)),
+                num_cell(&format!(
+                    "{}{}",
+                    sig(r.barrier / 1000.0, 4),
+                    if r.barrier_given { "" } else { "*" }
+                )),
+                num_cell(&format!(
+                    "{}{}",
+                    sig(r.barrier / 4184.0, 4),
+                    if r.barrier_given { "" } else { "*" }
+                )),
                 num_cell(&sig(r.rate, 3)),
                 num_cell(&if r.half_life.is_finite() {
                     sig(r.half_life / tf, 3)
                 } else {
                     "never".into()
                 }),
-                esc(&if r.crosses() || r.rate <= 0.0 {
-                    r.words()
-                } else {
-                    format!("too slow by a factor {}", sig(r.factor, 3))
+                esc(&match r.outcome() {
+                    crate::barrier::Outcome::TooSlow => format!("too slow by a factor {}", sig(r.factor, 3)),
+                    _ => r.words(),
                 })
             )
         })
@@ -59,17 +70,14 @@ pub fn section(b: &BarrierStudy, temperature: f64) -> String {
         ],
         &rows,
     ));
-    let slow = b.rows.iter().filter(|r| !r.crosses()).count();
-    s.push_str(&format!(
-        "<p>{} of {} cross within the window; {slow} do not.</p>\n",
-        b.rows.len() - slow,
-        b.rows.len()
-    ));
+    s.push_str(&format!("<p>{}</p>\n", esc(&crate::barrier::tally(&b.rows))));
     s.push_str(&page::assumption(
-        "Eyring transition-state theory at the network temperature (ΔG‡ implied by each rate law); k per molecule: \
-         steps of order two or more are pseudo-first-order at the initial concentrations of their partners and \
-         quenching at the initial quencher concentration, with ΔG‡ for them referred to 1 mol/L. Channels set by \
-         fixed fractions carry no rate and are not listed.",
+        "Eyring transition-state theory at the network temperature (ΔG‡ implied by each rate law; * marks a rate \
+         given as a plain k, for which ΔG‡ is only what Eyring's equation would need, not a barrier). Each thermal \
+         step is taken alone from the initial concentrations and follows its own integrated rate law (second-order \
+         laws for A + B and 2 A, per molecule of the limiting reactant); k is its loss rate per molecule at the \
+         start. Quenching is pseudo-first-order at the initial quencher concentration. ΔG‡ for bimolecular steps \
+         refers to 1 mol/L. Channels set by fixed fractions carry no rate and are not listed.",
     ));
     s.push_str(&hot_table(b));
     s
