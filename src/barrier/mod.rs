@@ -529,7 +529,7 @@ mod tests {
         let t = isolated_step_time(k, &[(0.01, 1.0), (0.01, 1.0)], 0, 0.5);
         assert!(rel(t, 1.0 / (k * 0.01)) < 1e-9, "{t}");
         // A + B, A limiting at 10 mM against 30 mM, to 90 % of A
-        let (a0, b0, p) = (0.01, 0.03, 0.9);
+        let (a0, b0, p): (f64, f64, f64) = (0.01, 0.03, 0.9);
         let (a, b) = (a0 * (1.0 - p), b0 - a0 * p);
         let want = (b * a0 / (a * b0)).ln() / (k * (b0 - a0));
         let t = isolated_step_time(k, &[(a0, 1.0), (b0, 1.0)], 0, p);
