@@ -450,7 +450,7 @@ pub struct KRow {
     pub energy: f64,
     /// k(E), s⁻¹ (`None` where the averaged density is zero).
     pub rate: Option<f64>,
-    /// Reactant density averaged over the row's interval, per J/mol.
+    /// Reactant density averaged over the density window centred on the energy, per J/mol.
     pub density: f64,
     /// Reactant sum of states W(E).
     pub sum: f64,
@@ -459,8 +459,9 @@ pub struct KRow {
 }
 
 /// k(E), ρ(E), W(E) and W‡(E − E₀) at `points` evenly spaced energies from `from` to `to`
-/// J/mol. Each row's ρ is the count between it and the next row divided by their spacing (at
-/// least one grain), and k uses that ρ, so sparse low-energy bins do not leave holes.
+/// J/mol (rows at least one grain apart). ρ and k(E) are the ones the hot-molecule engine uses
+/// ([`Rrkm::density`], [`Rrkm::rate`]): the count averaged over the density window centred on
+/// each energy, so the table shows the k(E) behind the network's hot yields.
 pub fn k_table(rrkm: &Rrkm, from: f64, to: f64, points: usize) -> Result<Vec<KRow>> {
     if !(from.is_finite() && to.is_finite() && from >= 0.0 && to > from) {
         return Err(Error::Usage(format!(
@@ -475,15 +476,10 @@ pub fn k_table(rrkm: &Rrkm, from: f64, to: f64, points: usize) -> Result<Vec<KRo
     let mut rows = Vec::new();
     let mut e = from;
     while e <= to + 1e-9 * to.max(1.0) {
-        let density = rrkm.reactant.density_between(e, e + step).unwrap_or(0.0);
+        // the same windowed density and k(E) as the hot-molecule engine uses
+        let density = rrkm.density(e).unwrap_or(0.0);
         let ts_sum = rrkm.ts.sum_at(e - rrkm.barrier).unwrap_or(0.0);
-        let rate = if e < rrkm.barrier {
-            Some(0.0)
-        } else if density > 0.0 {
-            Some(rrkm.degeneracy * ts_sum / (PLANCK * crate::units::constants::AVOGADRO * density))
-        } else {
-            None
-        };
+        let rate = rrkm.rate(e);
         rows.push(KRow {
             energy: e,
             rate,

@@ -83,7 +83,7 @@ pub fn count_states(modes: &Modes, grain: f64, max_energy: f64) -> Result<StateC
             "the top energy must be finite and not negative, found {max_energy} J/mol"
         ));
     }
-    let bins_f = (max_energy / grain).floor() + 1.0;
+    let bins_f = bins_at_or_below(max_energy / grain) as f64 + 1.0;
     if bins_f > MAX_BINS as f64 {
         return Err(format!(
             "{bins_f:.0} bins of the grain are needed (at most {MAX_BINS}); use a coarser grain"
@@ -132,6 +132,18 @@ pub fn count_states(modes: &Modes, grain: f64, max_energy: f64) -> Result<StateC
     })
 }
 
+/// Index of the last bin at or below `x` grains. An energy given as a whole number of grains
+/// (4000 cm⁻¹ on a 10 cm⁻¹ grain) can land a rounding error below that whole number; a relative
+/// tolerance of 1e-9 counts it as the whole number, so W(E) includes the states at exactly E.
+fn bins_at_or_below(x: f64) -> usize {
+    (x + 1e-9 * x.abs().max(1.0)).floor().max(0.0) as usize
+}
+
+/// Number of bins strictly below `x` grains, with the same tolerance as [`bins_at_or_below`].
+fn bins_strictly_below(x: f64) -> usize {
+    (x - 1e-9 * x.abs().max(1.0)).ceil().max(0.0) as usize
+}
+
 /// One cm⁻¹ as a molar energy, J/mol (h c × 100 m⁻¹ × N_A).
 const WAVENUMBER: f64 = PLANCK * crate::units::constants::SPEED_OF_LIGHT * 100.0 * AVOGADRO;
 
@@ -147,8 +159,7 @@ impl StateCount {
         if e < 0.0 {
             return Some(0.0);
         }
-        let j = (e / self.grain).floor() as usize;
-        self.sums.get(j).copied()
+        self.sums.get(bins_at_or_below(e / self.grain)).copied()
     }
 
     /// Density of states averaged over [lo, hi): (W(hi) − W(lo)) / (hi − lo), per J/mol;
@@ -162,7 +173,7 @@ impl StateCount {
             if e <= 0.0 {
                 Some(0.0)
             } else {
-                let j = (e / self.grain).ceil() as usize; // bins strictly below e
+                let j = bins_strictly_below(e / self.grain);
                 if j == 0 {
                     Some(0.0)
                 } else {
@@ -233,6 +244,13 @@ impl Rrkm {
         })
     }
 
+    /// The reactant density ρ̄(E) that k(E) uses, per J/mol: the count averaged over the
+    /// density window centred on `e` (clipped at zero energy). `None` above the counted range.
+    pub fn density(&self, e: f64) -> Option<f64> {
+        let lo = (e - self.window / 2.0).max(0.0);
+        self.reactant.density_between(lo, lo + self.window)
+    }
+
     /// k(E), s⁻¹, at molar energy `e` (J/mol) for the model's barrier; see [`Rrkm::rate_over`].
     pub fn rate(&self, e: f64) -> Option<f64> {
         self.rate_over(e, self.barrier)
@@ -246,8 +264,7 @@ impl Rrkm {
             return Some(0.0);
         }
         let w = self.ts.sum_at(e - barrier)?;
-        let lo = (e - self.window / 2.0).max(0.0);
-        let rho = self.reactant.density_between(lo, lo + self.window)?;
+        let rho = self.density(e)?;
         if rho <= 0.0 {
             return None;
         }
@@ -327,6 +344,32 @@ pub fn whitten_rabinovitch(vibrations: &[f64], e: f64) -> Option<(f64, f64)> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // Direct count (common practice): modes of 1000 and 500 cm⁻¹ have 9 + 7 + 5 + 3 + 1 = 25
+    // states with energy ≤ 4000 cm⁻¹ (n₁ = 0..4 quanta of 1000, then n₂ ≤ (4000 − 1000 n₁)/500),
+    // and one mode of 1000 cm⁻¹ has 4 states ≤ 3000 cm⁻¹. The energies are whole numbers of grains
+    // that land a rounding error below them in J/mol; W(E) still counts the states at exactly E.
+    #[test]
+    fn sums_include_states_at_exactly_the_energy() {
+        let wn = crate::units::parse("1 cm-1", crate::units::Quantity::MolarEnergy).unwrap();
+        let grain = 10.0 * wn;
+        let two = Modes {
+            vibrations: vec![1000.0 * wn, 500.0 * wn],
+            ..Default::default()
+        };
+        let c = count_states(&two, grain, 6000.0 * wn).unwrap();
+        assert_eq!(c.sum_at(4000.0 * wn), Some(25.0));
+        let one = Modes {
+            vibrations: vec![1000.0 * wn],
+            ..Default::default()
+        };
+        let c = count_states(&one, grain, 6000.0 * wn).unwrap();
+        assert_eq!(c.sum_at(3000.0 * wn), Some(4.0));
+        assert_eq!(c.sum_at(2999.0 * wn), Some(3.0));
+        // states in [1000, 2000) cm⁻¹: only the one at 1000
+        let d = c.density_between(1000.0 * wn, 2000.0 * wn).unwrap();
+        assert!((d * 1000.0 * wn - 1.0).abs() < 1e-12, "{d}");
+    }
 
     #[test]
     fn one_oscillator_has_one_state_per_quantum() {
