@@ -7,7 +7,9 @@
 //! 310, 1850
 //! ```
 //! The header names each column with its unit in parentheses or brackets; a dimensionless
-//! column (relative power, quantum yield) has no unit.
+//! column (relative power, quantum yield) has no unit. Cells are split by [`records`] (the
+//! `csv` crate), so quoted cells as in RFC 4180 read back whole; the data reader (`file::data`)
+//! splits its files the same way.
 
 use std::fmt;
 use std::path::{Path, PathBuf};
@@ -61,6 +63,151 @@ pub(crate) fn split_header(cell: &str) -> (String, Option<String>) {
     (cell.to_string(), None)
 }
 
+/// One record of a CSV file: the 1-based line it starts on and its cells, trimmed and unquoted.
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct Record {
+    /// 1-based line where the record starts.
+    pub line: usize,
+    /// The cells, surrounding spaces removed, quotes undone (`"a ""b"", c"` -> `a "b", c`).
+    pub cells: Vec<String>,
+}
+
+/// Split CSV text into records with the `csv` crate, the way every CSV photoledger reads is read.
+///
+/// Cells are separated by one separator for the whole file: a comma, or a semicolon or tab when
+/// the first non-comment line has no comma (outside quotes). A cell holding the separator, a quote
+/// or a line break is quoted as in RFC 4180 §2 (`"1,2-diol"`, `"say ""hi"""`); spaces around
+/// cells are ignored, also before an opening quote (`0, "A, B", 1`). Lines starting with `#` and
+/// blank lines are skipped. Errors give the line and what is wrong.
+pub(crate) fn records(text: &str) -> Result<Vec<Record>, (usize, String)> {
+    let sep = separator(text);
+    let text = tidy(text, sep)?;
+    let mut reader = ::csv::ReaderBuilder::new()
+        .has_headers(false)
+        .flexible(true)
+        .delimiter(sep as u8)
+        .trim(::csv::Trim::All)
+        .from_reader(text.as_bytes());
+    let mut out = Vec::new();
+    for r in reader.records() {
+        let line_at = |pos: Option<&::csv::Position>| {
+            // The crate's position is where it began reading, before skipped blank lines.
+            let b = pos.map_or(0, |p| p.byte() as usize).min(text.len());
+            let start = text[b..].find(|c| c != '\r' && c != '\n').map_or(text.len(), |i| b + i);
+            1 + text[..start].matches('\n').count()
+        };
+        let r = r.map_err(|e| (line_at(e.position()), format!("cannot be read as CSV: {e}")))?;
+        if r.iter().all(str::is_empty) {
+            continue;
+        }
+        out.push(Record {
+            line: line_at(r.position()),
+            cells: r.iter().map(String::from).collect(),
+        });
+    }
+    Ok(out)
+}
+
+/// The separator: a comma, else a semicolon, else a tab, whichever the first non-comment line
+/// holds outside quotes (a comma when it holds none).
+fn separator(text: &str) -> char {
+    let first = text
+        .lines()
+        .map(str::trim)
+        .find(|l| !l.is_empty() && !l.starts_with('#'))
+        .unwrap_or("");
+    let mut quoted = false;
+    let mut seen = [false; 3];
+    for c in first.chars() {
+        match c {
+            '"' => quoted = !quoted,
+            ',' if !quoted => seen[0] = true,
+            ';' if !quoted => seen[1] = true,
+            '\t' if !quoted => seen[2] = true,
+            _ => {}
+        }
+    }
+    [',', ';', '\t']
+        .into_iter()
+        .zip(seen)
+        .find_map(|(c, s)| s.then_some(c))
+        .unwrap_or(',')
+}
+
+/// Prepare text for the `csv` crate, keeping every line break (so line numbers stay): comment
+/// lines are emptied, and spaces before an opening quote dropped (the crate takes a quote as
+/// opening only at the very start of a cell). A quote never closed is an error on its line.
+fn tidy(text: &str, sep: char) -> Result<String, (usize, String)> {
+    #[derive(PartialEq)]
+    enum At {
+        LineStart,
+        CellStart,
+        Bare,
+        Quoted,
+        QuoteInQuoted,
+        Comment,
+    }
+    let blank = |c: char| c == ' ' || (c == '\t' && sep != '\t');
+    let mut out = String::with_capacity(text.len());
+    let mut held = String::new();
+    let (mut at, mut line, mut opened) = (At::LineStart, 1, 1);
+    for c in text.chars() {
+        at = match at {
+            At::LineStart | At::CellStart if blank(c) => {
+                held.push(c);
+                at
+            }
+            At::LineStart if c == '#' => {
+                held.clear();
+                At::Comment
+            }
+            At::LineStart | At::CellStart if c == '"' => {
+                held.clear();
+                out.push(c);
+                opened = line;
+                At::Quoted
+            }
+            At::LineStart | At::CellStart | At::Bare | At::QuoteInQuoted => {
+                out.push_str(&held);
+                held.clear();
+                out.push(c);
+                if c == sep {
+                    At::CellStart
+                } else if c == '\n' {
+                    At::LineStart
+                } else if c == '"' && at == At::QuoteInQuoted {
+                    At::Quoted
+                } else {
+                    At::Bare
+                }
+            }
+            At::Quoted => {
+                out.push(c);
+                if c == '"' { At::QuoteInQuoted } else { At::Quoted }
+            }
+            At::Comment => {
+                if c == '\n' {
+                    out.push(c);
+                    At::LineStart
+                } else {
+                    At::Comment
+                }
+            }
+        };
+        if c == '\n' {
+            line += 1;
+        }
+    }
+    if at == At::Quoted {
+        return Err((
+            opened,
+            "a quoted cell opened on this line is never closed; a quote inside a quoted cell is written twice (\"\")"
+                .into(),
+        ));
+    }
+    Ok(out)
+}
+
 /// Read a two-column table from `path`.
 pub fn read(path: &Path) -> Result<Table, CsvError> {
     let text = std::fs::read_to_string(path).map_err(|e| CsvError {
@@ -80,13 +227,9 @@ pub fn parse(path: &Path, text: &str) -> Result<Table, CsvError> {
     };
     let mut header: Option<([String; 2], [Option<String>; 2])> = None;
     let mut rows = Vec::new();
-    for (i, raw) in text.lines().enumerate() {
-        let line_no = i + 1;
-        let line = raw.trim();
-        if line.is_empty() || line.starts_with('#') {
-            continue;
-        }
-        let cells: Vec<&str> = line.split([',', ';', '\t']).map(str::trim).collect();
+    for r in records(text).map_err(|(line, message)| err(line, message))? {
+        let line_no = r.line;
+        let cells: Vec<&str> = r.cells.iter().map(String::as_str).collect();
         if header.is_none() {
             if cells.len() != 2 {
                 return Err(err(
@@ -167,5 +310,46 @@ mod tests {
         let e = parse(Path::new("x.csv"), "300, 1\n").unwrap_err();
         assert!(e.message.contains("header"), "{e}");
         assert!(parse(Path::new("x.csv"), "").is_err());
+    }
+
+    fn cells(text: &str) -> Vec<(usize, Vec<String>)> {
+        records(text).unwrap().into_iter().map(|r| (r.line, r.cells)).collect()
+    }
+
+    #[test]
+    fn records_follow_rfc_4180_quoting() {
+        // RFC 4180 §2 rules 5-7: quoted fields may hold commas, line breaks and doubled quotes.
+        let got = cells("# note, \"x\n\na,\"b, c\"\r\n\"d \"\"e\"\"\", \"f\ng\"\n  # indented comment\nh ,  i\n");
+        let want = |l: usize, c: &[&str]| (l, c.iter().map(|s| s.to_string()).collect::<Vec<_>>());
+        assert_eq!(
+            got,
+            vec![
+                want(3, &["a", "b, c"]),
+                want(4, &["d \"e\"", "f\ng"]),
+                want(7, &["h", "i"]),
+            ]
+        );
+        let e = records("a,b\n1,\"2\n3,4\n").unwrap_err();
+        assert_eq!(e.0, 2);
+        assert!(e.1.contains("never closed"), "{}", e.1);
+    }
+
+    #[test]
+    fn the_separator_comes_from_the_first_line() {
+        assert_eq!(cells("x (nm); \"y, z\"\n1;2\n")[1].1, vec!["1", "2"]);
+        assert_eq!(cells("x (nm); \"y, z\"\n")[0].1[1], "y, z");
+        assert_eq!(cells("x (nm)\ty\n1\t2\n")[1].1, vec!["1", "2"]);
+        assert_eq!(cells("x (nm), y\n1, 2\n")[1].1, vec!["1", "2"]);
+    }
+
+    #[test]
+    fn a_quoted_header_cell_with_a_comma_reads() {
+        let t = parse(
+            Path::new("x.csv"),
+            "\"wavelength (nm)\",\"relative power, smoothed\"\n300,1\n",
+        )
+        .unwrap();
+        assert_eq!(t.names[1], "relative power, smoothed");
+        assert_eq!(t.rows, vec![(300.0, 1.0, 2)]);
     }
 }

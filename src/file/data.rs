@@ -7,6 +7,8 @@
 //! 0, Z-azo, 0.4, 0.5
 //! 5, Z-azo, 12.1, 0.5
 //! ```
+//! Cells are split as in RFC 4180 (`file::csv::records`): a cell holding a comma or a quote
+//! is quoted, `"a, b"`, with inner quotes doubled.
 //! The time column has a time unit; the value column a concentration unit, or none for a yield
 //! (a fraction of the initial concentration of the experiment's `yield_of` species); the
 //! optional sd column the value's unit. Without sd every row weighs the same (σ = 1 in the
@@ -30,7 +32,7 @@
 //! ```
 //! Every problem is a [`Diagnostic`] naming the file, the line and what is accepted.
 
-use super::csv::split_header;
+use super::csv::{records, split_header};
 use crate::error::{Diagnostic, Error, Origin, Result};
 use crate::units::{self, Quantity};
 use serde::Deserialize;
@@ -147,13 +149,10 @@ pub fn parse_points(path: &Path, text: &str) -> Result<Vec<Point>> {
     let layout = "a header \"time (UNIT), species, value (UNIT), sd (UNIT)\" (sd optional; value without a unit is a yield fraction)";
     let mut header: Option<Header> = None;
     let mut out = Vec::new();
-    for (i, raw) in text.lines().enumerate() {
-        let line = i + 1;
-        let l = raw.trim();
-        if l.is_empty() || l.starts_with('#') {
-            continue;
-        }
-        let cells: Vec<&str> = l.split([',', ';', '\t']).map(str::trim).collect();
+    let records = records(text).map_err(|(line, message)| bad(path, line, "row", message, layout))?;
+    for r in &records {
+        let line = r.line;
+        let cells: Vec<&str> = r.cells.iter().map(String::as_str).collect();
         let Some((tf, vf, has_sd)) = &header else {
             if !(3..=4).contains(&cells.len()) {
                 return Err(bad(path, line, "header", format!("{} columns", cells.len()), layout));
@@ -521,6 +520,23 @@ mod tests {
         assert!(e.contains("d.csv:1"), "{e}");
         let e = err("time (s), species, value (M)\n-1, A, 2\n");
         assert!(e.contains("negative"), "{e}");
+        let e = err("time (s), species, value (M)\n# c\n\n1, \"A, 2\n");
+        assert!(e.contains("d.csv:4") && e.contains("never closed"), "{e}");
+    }
+
+    #[test]
+    fn quoted_cells_keep_commas_and_quotes() {
+        // RFC 4180 §2 rules 6 and 7: a quoted field may hold commas; an inner quote is doubled.
+        let p = parse_points(
+            Path::new("d.csv"),
+            "# x, \"y\"\n\"time (min)\",species,\"value (µM)\"\r\n1,\"1,2-diol\",2\r\n\n2, \"say \"\"hi\"\"\" , 3\n",
+        )
+        .unwrap();
+        assert_eq!(p.len(), 2);
+        assert_eq!((p[0].species.as_str(), p[0].line), ("1,2-diol", 3));
+        assert_eq!((p[1].species.as_str(), p[1].line), ("say \"hi\"", 5));
+        assert_eq!(p[1].time, 120.0);
+        assert!((p[1].value - 3e-6).abs() < 1e-18);
     }
 
     #[test]

@@ -3,6 +3,7 @@
 //! cm⁻¹.
 
 use crate::barrier::{HotVerdict, KRow, Verdict};
+use crate::report::csv_out::CsvTable;
 use crate::units::{Quantity, parse};
 use plotters::prelude::*;
 use std::fmt::Write;
@@ -187,21 +188,25 @@ pub fn hot_verdicts_text(rows: &[HotVerdict]) -> String {
 /// k(E) table as CSV, units in the header.
 pub fn k_csv(rows: &[KRow]) -> String {
     let wn = wavenumber();
-    let mut s =
-        String::from("energy (kJ/mol),energy (cm-1),k (1/s),rho (states per cm-1),W reactant,W transition state\n");
+    let mut t = CsvTable::new([
+        "energy (kJ/mol)",
+        "energy (cm-1)",
+        "k (1/s)",
+        "rho (states per cm-1)",
+        "W reactant",
+        "W transition state",
+    ]);
     for r in rows {
-        let k = r.rate.map(|k| format!("{k:.6e}")).unwrap_or_default();
-        let _ = writeln!(
-            s,
-            "{:.4},{:.2},{k},{:.6e},{:.6e},{:.6e}",
-            r.energy / 1000.0,
-            r.energy / wn,
-            r.density * wn,
-            r.sum,
-            r.ts_sum
-        );
+        t.row([
+            format!("{:.4}", r.energy / 1000.0),
+            format!("{:.2}", r.energy / wn),
+            r.rate.map(|k| format!("{k:.6e}")).unwrap_or_default(),
+            format!("{:.6e}", r.density * wn),
+            format!("{:.6e}", r.sum),
+            format!("{:.6e}", r.ts_sum),
+        ]);
     }
-    s
+    t.finish()
 }
 
 /// k(E) on a log axis against E (upper panel) and ρ(E), W(E) on a log axis (lower panel), SVG.

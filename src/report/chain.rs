@@ -3,6 +3,7 @@
 
 use crate::chain::sensitivity::Sensitivity;
 use crate::chain::{Analysis, Chain, StateKind};
+use crate::report::csv_out::{CsvTable, sci};
 use crate::units::format_time;
 use plotters::prelude::*;
 use serde::Serialize;
@@ -253,24 +254,22 @@ pub fn text(s: &Summary) -> String {
 
 /// photon_counts.csv: n, P(N = n) and P(N = n, end k) for every end with a yield.
 pub fn distribution_csv(chain: &Chain, a: &Analysis) -> String {
-    let mut o = String::new();
     let Some(d) = &a.distribution else {
-        return o;
+        return String::new();
     };
     let keep: Vec<usize> = (0..a.absorbing.len()).filter(|&k| a.yields[k] > 0.0).collect();
-    o.push_str("photons absorbed,probability");
-    for &k in &keep {
-        let _ = write!(o, ",probability ending as {}", chain.states[a.absorbing[k]].name);
-    }
-    o.push('\n');
+    let mut header = vec!["photons absorbed".to_string(), "probability".to_string()];
+    header.extend(
+        keep.iter()
+            .map(|&k| format!("probability ending as {}", chain.states[a.absorbing[k]].name)),
+    );
+    let mut t = CsvTable::new(header);
     for (n, row) in d.p.iter().enumerate() {
-        let _ = write!(o, "{n},{:e}", row.iter().sum::<f64>());
-        for &k in &keep {
-            let _ = write!(o, ",{:e}", row[k]);
-        }
-        o.push('\n');
+        let mut cells = vec![n.to_string(), sci(row.iter().sum::<f64>())];
+        cells.extend(keep.iter().map(|&k| sci(row[k])));
+        t.row(cells);
     }
-    o
+    t.finish()
 }
 
 /// photon_counts.svg: histogram of P(N = n) (bars grouped when there are many counts).

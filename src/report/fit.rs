@@ -5,6 +5,7 @@ use crate::error::{Error, Result};
 use crate::file::data::Experiment;
 use crate::fit::mechanism::{Curve, Free};
 use crate::fit::{FitResult, lsq};
+use crate::report::csv_out::{CsvTable, sci};
 use crate::report::simulation::{CAUTIONS, PALETTE, time_unit};
 use crate::units::sig;
 use plotters::prelude::*;
@@ -159,13 +160,27 @@ pub fn rows(experiments: &[Experiment], predicted: &[Vec<f64>]) -> Vec<Row> {
 
 /// residuals.csv: every time-course point, measured, fitted and weighted residual.
 pub fn residuals_csv(rows: &[Row]) -> String {
-    let mut o = String::from(
-        "experiment, time (s), species, measured (M or fraction), fitted (M or fraction), sd, weighted residual\n",
-    );
+    let mut table = CsvTable::new([
+        "experiment",
+        "time (s)",
+        "species",
+        "measured (M or fraction)",
+        "fitted (M or fraction)",
+        "sd",
+        "weighted residual",
+    ]);
     for (e, t, s, y, f, sd, _) in rows {
-        let _ = writeln!(o, "{e}, {t:e}, {s}, {y:e}, {f:e}, {sd:e}, {:e}", (y - f) / sd);
+        table.row([
+            e.clone(),
+            sci(*t),
+            s.clone(),
+            sci(*y),
+            sci(*f),
+            sci(*sd),
+            sci((y - f) / sd),
+        ]);
     }
-    o
+    table.finish()
 }
 
 /// SVG of data (points) against fitted curves, one colour per (experiment, species); `models`
@@ -520,24 +535,19 @@ pub fn compare_json(ranked: &[Ranked], disagreement: Option<&str>) -> serde_json
     })
 }
 
-/// A time-course CSV of `e` (concentrations in µM, sd column), with `comment` lines on top.
+/// A time-course CSV of `e` (concentrations in µM, sd column), with `comment` lines on top (the
+/// `#` lines `file::data` skips), in the layout `file::data::parse_points` reads.
 pub fn points_csv(e: &Experiment, comment: &str) -> String {
-    let mut o = String::new();
-    for l in comment.lines() {
-        let _ = writeln!(o, "# {l}");
-    }
-    o.push_str("time (min), species, value (µM), sd (µM)\n");
+    let mut t = CsvTable::with_comments(comment, ["time (min)", "species", "value (µM)", "sd (µM)"]);
     for p in &e.points {
-        let _ = writeln!(
-            o,
-            "{}, {}, {}, {}",
+        t.row([
             sig(p.time / 60.0, 6),
-            p.species,
+            p.species.clone(),
             sig(p.value * 1e6, 5),
-            sig(p.sd * 1e6, 3)
-        );
+            sig(p.sd * 1e6, 3),
+        ]);
     }
-    o
+    t.finish()
 }
 
 #[cfg(test)]

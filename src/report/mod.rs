@@ -3,6 +3,7 @@
 
 pub mod barrier;
 pub mod chain;
+pub mod csv_out;
 pub mod diagram;
 pub mod fit;
 pub mod html;

@@ -6,6 +6,7 @@ use crate::light::{LightKind, LightSource};
 use crate::plan::actinometry::{FluxResult, Measured, NetworkFit};
 use crate::plan::target::Basis;
 use crate::plan::{Days, Direction, Flow, Plan, SweepPoint, Tube, Unreachable};
+use crate::report::csv_out::{CsvTable, opt_sci, sci};
 use crate::units::{format_concentration, format_time, sig};
 use plotters::prelude::*;
 use serde::Serialize;
@@ -402,34 +403,38 @@ pub fn sweep_csv(axis: &SweepAxis, points: &[SweepPoint]) -> String {
         .find_map(|p| p.plan.as_ref().ok())
         .map(|p| p.products.iter().map(|s| s.species.clone()).collect())
         .unwrap_or_default();
-    let mut s = format!("{},time to target (s),reached,note", axis.label);
+    let mut header = vec![
+        axis.label.clone(),
+        "time to target (s)".into(),
+        "reached".into(),
+        "note".into(),
+    ];
     for p in &products {
-        let _ = write!(s, ",{p} (mol/L),{p} selectivity (1)");
+        header.push(format!("{p} (mol/L)"));
+        header.push(format!("{p} selectivity (1)"));
     }
-    s.push('\n');
+    let mut t = CsvTable::new(header);
     for pt in points {
-        let _ = write!(s, "{:e}", pt.value * axis.unit_factor);
+        let mut cells = vec![sci(pt.value * axis.unit_factor)];
         match &pt.plan {
             Ok(p) => {
                 let note = p.unreachable.as_ref().map_or("", |u| u.why.words());
-                let _ = write!(
-                    s,
-                    ",{},{},\"{}\"",
-                    p.time.map_or(String::new(), |t| format!("{t:e}")),
-                    p.time.is_some(),
-                    note
-                );
-                for sh in &p.products {
-                    let _ = write!(s, ",{:e},{:e}", sh.formed, sh.selectivity);
+                cells.extend([opt_sci(p.time), p.time.is_some().to_string(), note.to_string()]);
+                // Matched by name so every row has the header's columns (empty where a point lacks one).
+                for name in &products {
+                    let sh = p.products.iter().find(|sh| &sh.species == name);
+                    cells.push(opt_sci(sh.map(|sh| sh.formed)));
+                    cells.push(opt_sci(sh.map(|sh| sh.selectivity)));
                 }
             }
             Err(e) => {
-                let _ = write!(s, ",,false,\"{}\"", e.replace('"', "'"));
+                cells.extend([String::new(), "false".into(), e.clone()]);
+                cells.extend(std::iter::repeat_n(String::new(), 2 * products.len()));
             }
         }
-        s.push('\n');
+        t.row(cells);
     }
-    s
+    t.finish()
 }
 
 /// An x–y plot with points and lines, either axis logarithmic, as SVG text.

@@ -4,9 +4,9 @@ use crate::kinetics::ledger::{self, Ledger};
 use crate::kinetics::{Method, Stop, Trajectory};
 use crate::model::Model;
 use crate::network::Network;
+use crate::report::csv_out::{CsvTable, opt_sci, sci};
 use plotters::prelude::*;
 use serde::Serialize;
-use std::fmt::Write;
 
 /// The cautions every report carries.
 pub const CAUTIONS: &str = "UV and intense visible light damage eyes and skin; lamps run hot; many photochemical \
@@ -18,59 +18,48 @@ absorbances add (Beer–Lambert); transients are collapsed into effective quantu
 
 /// concentrations.csv: time and every species, units in the header.
 pub fn concentrations_csv(model: &Model, tr: &Trajectory) -> String {
-    let mut s = String::from("time (s)");
-    for n in &model.species {
-        let _ = write!(s, ",{n} (mol/L)");
+    let mut header = vec!["time (s)".to_string()];
+    header.extend(model.species.iter().map(|n| format!("{n} (mol/L)")));
+    let mut t = CsvTable::new(header);
+    for (time, y) in tr.times.iter().zip(&tr.states) {
+        t.row(std::iter::once(sci(*time)).chain(y[..model.n_species()].iter().map(|v| sci(*v))));
     }
-    s.push('\n');
-    for (t, y) in tr.times.iter().zip(&tr.states) {
-        let _ = write!(s, "{t:e}");
-        for v in &y[..model.n_species()] {
-            let _ = write!(s, ",{v:e}");
-        }
-        s.push('\n');
-    }
-    s
+    t.finish()
 }
 
 /// photons.csv: cumulative photons (einstein) incident, absorbed by each absorber,
 /// background, transmitted, and per outcome; and photons per molecule of each product.
 pub fn photons_csv(model: &Model, tr: &Trajectory) -> String {
-    let mut s = String::from("time (s),incident (einstein)");
+    let mut header = vec!["time (s)".to_string(), "incident (einstein)".to_string()];
     for a in &model.absorbers {
-        let _ = write!(s, ",absorbed by {} (einstein)", model.species[*a]);
+        header.push(format!("absorbed by {} (einstein)", model.species[*a]));
     }
-    s.push_str(",background (einstein),transmitted (einstein)");
+    header.push("background (einstein)".into());
+    header.push("transmitted (einstein)".into());
     for o in &model.outcomes {
-        let _ = write!(s, ",{}{} (einstein)", o.label, if o.returns { " [return]" } else { "" });
+        header.push(format!(
+            "{}{} (einstein)",
+            o.label,
+            if o.returns { " [return]" } else { "" }
+        ));
     }
     for p in &model.products {
-        let _ = write!(s, ",photons per {} (1)", model.species[*p]);
+        header.push(format!("photons per {} (1)", model.species[*p]));
     }
-    s.push('\n');
-    for (t, y) in tr.times.iter().zip(&tr.states) {
-        let l = ledger::read(model, &tr.layout, *t, y);
-        let _ = write!(s, "{t:e},{:e}", l.incident);
-        for a in &l.by_absorber {
-            let _ = write!(s, ",{:e}", a.absorbed);
-        }
+    let mut t = CsvTable::new(header);
+    for (time, y) in tr.times.iter().zip(&tr.states) {
+        let l = ledger::read(model, &tr.layout, *time, y);
+        let mut row = vec![sci(*time), sci(l.incident)];
+        row.extend(l.by_absorber.iter().map(|a| sci(a.absorbed)));
         let bg: f64 = l.sources.iter().map(|x| x.background).sum();
         let tr_: f64 = l.sources.iter().map(|x| x.transmitted).sum();
-        let _ = write!(s, ",{bg:e},{tr_:e}");
-        for o in 0..model.outcomes.len() {
-            let _ = write!(s, ",{:e}", y[tr.layout.outcome(o)] * model.volume);
-        }
-        for p in &l.products {
-            match p.photons_per_molecule {
-                Some(v) => {
-                    let _ = write!(s, ",{v:e}");
-                }
-                None => s.push(','),
-            }
-        }
-        s.push('\n');
+        row.push(sci(bg));
+        row.push(sci(tr_));
+        row.extend((0..model.outcomes.len()).map(|o| sci(y[tr.layout.outcome(o)] * model.volume)));
+        row.extend(l.products.iter().map(|p| opt_sci(p.photons_per_molecule)));
+        t.row(row);
     }
-    s
+    t.finish()
 }
 
 /// The summary of a run, as written to summary.json.

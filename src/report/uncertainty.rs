@@ -2,6 +2,7 @@
 //! output), the samples CSV, one SVG histogram per output and a tornado chart of rank
 //! correlations.
 
+use crate::report::csv_out::{CsvTable, opt_sci, sci};
 use crate::report::simulation::CAUTIONS;
 use crate::uncertainty::{OutputSummary, QUANTILES, Record, Summary};
 use crate::units::sig;
@@ -91,37 +92,26 @@ pub fn text(s: &Summary) -> String {
     o
 }
 
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
-}
-
 /// samples.csv: index, every drawn value, every output (empty where missing), error.
 pub fn samples_csv(r: &Record) -> String {
-    let mut o = String::from("sample");
-    for c in r.header.parameters.iter().chain(&r.header.outputs) {
-        let _ = write!(o, ",{}", csv_field(&with_unit(&c.name, &c.unit)));
-    }
-    o.push_str(",error\n");
+    let mut header = vec!["sample".to_string()];
+    header.extend(
+        r.header
+            .parameters
+            .iter()
+            .chain(&r.header.outputs)
+            .map(|c| with_unit(&c.name, &c.unit)),
+    );
+    header.push("error".into());
+    let mut t = CsvTable::new(header);
     for s in &r.samples {
-        let _ = write!(o, "{}", s.index);
-        for v in &s.values {
-            let _ = write!(o, ",{v:e}");
-        }
-        for v in &s.outputs {
-            match v {
-                Some(v) => {
-                    let _ = write!(o, ",{v:e}");
-                }
-                None => o.push(','),
-            }
-        }
-        let _ = writeln!(o, ",{}", csv_field(s.error.as_deref().unwrap_or("")));
+        let mut cells = vec![s.index.to_string()];
+        cells.extend(s.values.iter().map(|v| sci(*v)));
+        cells.extend(s.outputs.iter().map(|v| opt_sci(*v)));
+        cells.push(s.error.clone().unwrap_or_default());
+        t.row(cells);
     }
-    o
+    t.finish()
 }
 
 /// A file-name-safe form of an output name: `quantum_yield[product]` -> `quantum_yield-product`.
