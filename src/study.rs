@@ -8,7 +8,7 @@
 
 use crate::barrier::{self, Verdict};
 use crate::chain::{self, Analysis};
-use crate::error::{Error, Result};
+use crate::error::Result;
 use crate::file::Loaded;
 use crate::file::data::Experiment;
 use crate::fit::mechanism::FitOptions;
@@ -111,11 +111,8 @@ pub fn fit_study(
     let rival_fits = rivals
         .par_iter()
         .map(|(name, l)| {
-            fit_run::fit_loaded(l, Vec::new(), &[], &experiments, opts, &|| {}).map_err(|e| match e {
-                Error::Usage(m) => Error::Usage(format!("{name}: {m}")),
-                Error::Numerical(m) => Error::Numerical(format!("{name}: {m}")),
-                other => other,
-            })
+            fit_run::fit_loaded(l, Vec::new(), &[], &experiments, opts, &|| {})
+                .map_err(|e| fit_run::named_error(name, e))
         })
         .collect::<Result<Vec<_>>>()?;
     let rivals: Vec<(String, Fitted)> = rivals.iter().map(|r| r.0.clone()).zip(rival_fits).collect();

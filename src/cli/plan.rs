@@ -204,7 +204,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<()> {
     });
     let name = net.about.name.clone();
     if let Some(sw) = &a.sweep {
-        let spec = plan::sweep::parse(sw, &net)?;
+        let sw = plan::sweep::parse(sw, &net)?;
         let overrides = photoledger::Overrides::parse(&a.net.set).map_err(Error::Usage)?.pairs();
         let base = plan::sweep::Base {
             loaded: &loaded,
@@ -212,8 +212,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<()> {
             network: &net,
             model: &model,
         };
-        let sw = plan::sweep::run(&base, &spec, &a.target, &adjust, &opts)?;
-        let points = &sw.points;
+        let points = plan::sweep::run(&base, &sw, &a.target, &adjust, &opts)?.points;
         write_atomic(&dir.join("sweep.csv"), rp::sweep_csv(&sw.axis, &points).as_bytes())?;
         write_atomic(
             &dir.join("sweep.svg"),
