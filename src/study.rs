@@ -7,9 +7,8 @@
 //! target is given.
 
 use crate::barrier::{self, Verdict};
-use crate::chain::build::{self, Settings, Values};
-use crate::chain::{self, Analysis, sensitivity};
-use crate::error::{Error, Result};
+use crate::chain::{self, Analysis};
+use crate::error::Result;
 use crate::file::Loaded;
 use crate::file::data::Experiment;
 use crate::fit::mechanism::FitOptions;
@@ -69,6 +68,9 @@ pub struct Study {
     /// True when the output times are spaced logarithmically because most of the change
     /// happens early ([`front_loaded`]); plots then use a log time axis.
     pub log_time: bool,
+    /// How many times the kinetics were integrated for [`Study::kinetics`] (counted; one, since
+    /// both output grids come from the same run, see [`kinetics_once`]).
+    pub integrations: usize,
     /// The chain, or why it does not apply to this network.
     pub chain: std::result::Result<ChainStudy, String>,
     /// Barrier verdicts, when a window was given.
@@ -111,11 +113,8 @@ pub fn fit_study(
     let rival_fits = rivals
         .par_iter()
         .map(|(name, l)| {
-            fit_run::fit_loaded(l, Vec::new(), &[], &experiments, opts, &|| {}).map_err(|e| match e {
-                Error::Usage(m) => Error::Usage(format!("{name}: {m}")),
-                Error::Numerical(m) => Error::Numerical(format!("{name}: {m}")),
-                other => other,
-            })
+            fit_run::fit_loaded(l, Vec::new(), &[], &experiments, opts, &|| {})
+                .map_err(|e| fit_run::named_error(name, e))
         })
         .collect::<Result<Vec<_>>>()?;
     let rivals: Vec<(String, Fitted)> = rivals.iter().map(|r| r.0.clone()).zip(rival_fits).collect();
@@ -259,17 +258,70 @@ pub fn front_loaded(tr: &Trajectory, n_species: usize) -> bool {
     changed > 0
 }
 
+/// Keep the states of `all` at the times of `grid` (both sorted; times compared exactly).
+fn on_grid(all: &Trajectory, grid: &[f64]) -> Trajectory {
+    let (times, states) = all
+        .times
+        .iter()
+        .zip(&all.states)
+        .filter(|(t, _)| grid.binary_search_by(|g| g.total_cmp(t)).is_ok())
+        .map(|(t, y)| (*t, y.clone()))
+        .unzip();
+    Trajectory {
+        times,
+        states,
+        ..all.clone()
+    }
+}
+
+/// The kinetics of a study to `until` s, integrated once: the run asks for the output times of
+/// the linear grid and of the logarithmic grid together (the BDF integrator steps independently
+/// of the output times and interpolates, so each grid's states are those a run asking for that
+/// grid alone gives; Dop853 steps to every output time, so there they agree within the
+/// tolerance), decides on the linear grid whether the run is [`front_loaded`], and keeps
+/// the logarithmic grid if it is (true returned) and the linear one if not.
+/// `integrate` runs the kinetics of `model` with the options it is given (the study passes
+/// [`kinetics::simulate`] and counts the calls).
+pub fn kinetics_once(
+    model: &Model,
+    until: f64,
+    integrate: &mut dyn FnMut(&kinetics::Options) -> Result<Trajectory>,
+) -> Result<(Trajectory, bool)> {
+    let linear = kinetics::Options::until(until);
+    let log = kinetics::Options {
+        log_time: true,
+        ..linear.clone()
+    };
+    let (lin_t, log_t) = (kinetics::output_times(&linear, 0.0), kinetics::output_times(&log, 0.0));
+    let both = kinetics::Options {
+        times: lin_t.iter().chain(&log_t).copied().collect(),
+        ..linear
+    };
+    let all = integrate(&both)?;
+    let on_linear = on_grid(&all, &lin_t);
+    if front_loaded(&on_linear, model.n_species()) {
+        Ok((on_grid(&all, &log_t), true))
+    } else {
+        Ok((on_linear, false))
+    }
+}
+
 /// The chain as `ledger` builds it by default: stirred-cell light at the initial
 /// concentrations, from the initial mixture.
 fn chain_study(model: &Model, net: &Network) -> Result<ChainStudy> {
-    let settings = Settings::default();
-    let values = Values::of(model, net);
-    let ch = build::build(model, net, &settings, &values)?;
-    let (start, note) = build::start(model, &ch, None)?;
-    let analysis = chain::analyse(&ch, &start, &chain::Options::default())?;
-    let sens = sensitivity::sensitivities(model, net, &settings, &start)?;
-    let summary = chain_report::summary(&net.about.name, &ch, &analysis, &note, &model.products, sens);
-    Ok(ChainStudy { analysis, summary })
+    let run = chain::run(model, net, &chain::ChainOptions::default())?;
+    let summary = chain_report::summary(
+        &net.about.name,
+        &run.chain,
+        &run.analysis,
+        &run.start_note,
+        &model.products,
+        run.sensitivities,
+    );
+    Ok(ChainStudy {
+        analysis: run.analysis,
+        summary,
+    })
 }
 
 /// Run the study of `net` (compiled as `model`).
@@ -289,13 +341,11 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
             "one hour, the default when the single-molecule chain does not apply; set it with --until".into(),
         ),
     };
-    let mut kinetics = kinetics::simulate(model, &kinetics::Options::until(until), &mut |_| {})?;
-    let log_time = front_loaded(&kinetics, model.n_species());
-    if log_time {
-        let mut o = kinetics::Options::until(until);
-        o.log_time = true;
-        kinetics = kinetics::simulate(model, &o, &mut |_| {})?;
-    }
+    let mut integrations = 0;
+    let (kinetics, log_time) = kinetics_once(model, until, &mut |o| {
+        integrations += 1;
+        kinetics::simulate(model, o, &mut |_| {})
+    })?;
     let barrier = match opts.barrier_window {
         Some(window) => Some(BarrierStudy {
             window,
@@ -311,6 +361,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
         until_reason,
         kinetics,
         log_time,
+        integrations,
         chain,
         barrier,
         plan,
@@ -320,7 +371,85 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
 
 #[cfg(test)]
 mod tests {
-    use super::round_up_duration;
+    use super::{kinetics_once, round_up_duration};
+    use crate::kinetics::{self, Trajectory};
+    use crate::model::Model;
+    use crate::network::{self, Overrides};
+
+    /// The bundled photoswitch (invented): under its LEDs it reaches its photostationary state
+    /// within a minute.
+    fn photoswitch() -> Model {
+        let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/networks/photoswitch.toml"))
+            .expect("bundled network");
+        let loaded = crate::file::parse_text(std::path::Path::new("photoswitch.toml"), text).expect("parses");
+        Model::compile(&network::build(&loaded, &Overrides::none()).expect("valid"))
+    }
+
+    /// The largest difference between two runs on the same grid, over the largest value.
+    fn largest_difference(a: &Trajectory, b: &Trajectory) -> f64 {
+        assert_eq!(a.times, b.times);
+        let scale = b.states.iter().flatten().fold(0.0f64, |m, v| m.max(v.abs()));
+        let d = a
+            .states
+            .iter()
+            .flatten()
+            .zip(b.states.iter().flatten())
+            .fold(0.0f64, |m, (x, y)| m.max((x - y).abs()));
+        d / scale
+    }
+
+    /// `kinetics_once` with a count of its integrations.
+    fn once(model: &Model, until: f64) -> (Trajectory, bool) {
+        let mut n = 0;
+        let r = kinetics_once(model, until, &mut |o| {
+            n += 1;
+            kinetics::simulate(model, o, &mut |_| {})
+        })
+        .expect("runs");
+        assert_eq!(n, 1, "integrated once");
+        r
+    }
+
+    #[test]
+    fn one_integration_gives_the_grid_a_separate_run_gives() {
+        let model = photoswitch();
+        // An hour: the photostationary state comes within the first tenth, so the log grid.
+        let (tr, log) = once(&model, 3600.0);
+        assert!(log, "the photoswitch settles early in an hour");
+        let mut o = kinetics::Options::until(3600.0);
+        o.log_time = true;
+        let alone = kinetics::simulate(&model, &o, &mut |_| {}).expect("runs");
+        let d = largest_difference(&tr, &alone);
+        // BDF interpolates between its own steps, so its grids are the same to the last digit;
+        // Dop853 steps to every output time, so more output times move its numbers within the
+        // tolerance asked for (rtol 1e-6 of `Options::until`).
+        assert!(d < 1e-6, "log grid: {d} relative ({:?})", alone.method);
+        // Ten seconds: still converting at the end, so the linear grid.
+        let (tr, log) = once(&model, 10.0);
+        assert!(!log, "ten seconds are not front-loaded");
+        let alone = kinetics::simulate(&model, &kinetics::Options::until(10.0), &mut |_| {}).expect("runs");
+        let d = largest_difference(&tr, &alone);
+        assert!(d < 1e-6, "linear grid: {d} relative ({:?})", alone.method);
+    }
+
+    #[test]
+    fn a_study_integrates_its_kinetics_once() {
+        let model = photoswitch();
+        let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/networks/photoswitch.toml"))
+            .expect("bundled network");
+        let loaded = crate::file::parse_text(std::path::Path::new("photoswitch.toml"), text).expect("parses");
+        let net = network::build(&loaded, &Overrides::none()).expect("valid");
+        let opts = super::StudyOptions {
+            until: Some(3600.0),
+            ..Default::default()
+        };
+        let s = super::run(&net, &model, &opts).expect("study");
+        assert!(s.log_time);
+        assert_eq!(s.integrations, 1);
+        let mut o = kinetics::Options::until(3600.0);
+        o.log_time = true;
+        assert_eq!(s.kinetics.times, kinetics::output_times(&o, 0.0), "the log grid alone");
+    }
 
     #[test]
     fn durations_round_up_to_round_numbers() {

@@ -17,8 +17,11 @@
 //! No file I/O, no printing.
 
 pub mod build;
+mod run;
 pub mod sensitivity;
 mod sparse;
+
+pub use run::{ChainOptions, ChainRun, run};
 
 use crate::error::{Error, Result};
 use serde::Serialize;

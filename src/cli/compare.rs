@@ -64,34 +64,30 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<()> {
             .filter_map(|f| f.strip_prefix(&format!("{name}:")))
             .flat_map(|k| k.split(',').map(|s| s.trim().to_string()))
             .collect();
-        let (_, fitted) = fit_one(file, &[], &free, &experiments, &opts).map_err(|e| match e {
-            Error::Usage(m) => Error::Usage(format!("{name}: {m}")),
-            Error::Numerical(m) => Error::Numerical(format!("{name}: {m}")),
-            other => other,
-        })?;
+        let (_, fitted) = fit_one(file, &[], &free, &experiments, &opts).map_err(|e| run::named_error(&name, e))?;
         fits.push((name, fitted));
     }
-    let named: Vec<(String, &run::Fitted)> = fits.iter().map(|(n, f)| (n.clone(), f)).collect();
-    let run::Ranking {
-        order,
-        weights,
-        disagreement,
-    } = run::rank(&named, &experiments);
-    let ranked: Vec<Ranked> = order
-        .iter()
-        .map(|&i| Ranked {
-            network: fits[i].0.clone(),
-            fit: fits[i].1.result.clone(),
-            weight: weights[i],
+    let cmp = run::Comparison::new(fits, &experiments);
+    let ranked: Vec<Ranked> = cmp
+        .ranked()
+        .into_iter()
+        .map(|(network, f, weight)| Ranked {
+            network: network.to_string(),
+            fit: f.result.clone(),
+            weight,
         })
         .collect();
-    let text = rf::compare_text(&ranked, disagreement.as_deref());
-    let json = rf::compare_json(&ranked, disagreement.as_deref());
-    let best = &fits[order[0]];
-    let rows = rf::rows(&experiments, &best.1.predicted);
-    let models: Vec<(String, Vec<_>)> = order
-        .iter()
-        .map(|&i| (fits[i].0.clone(), fits[i].1.curves.clone()))
+    let disagreement = cmp.ranking.disagreement.as_deref();
+    let text = rf::compare_text(&ranked, disagreement);
+    let json = rf::compare_json(&ranked, disagreement);
+    let rows = match cmp.best() {
+        Some((_, best)) => rf::rows(&experiments, &best.predicted),
+        None => Vec::new(),
+    };
+    let models: Vec<(String, Vec<_>)> = cmp
+        .ranked()
+        .into_iter()
+        .map(|(n, f, _)| (n.to_string(), f.curves.clone()))
         .collect();
     write_atomic(&a.out.join("ranking.txt"), text.as_bytes())?;
     write_atomic(

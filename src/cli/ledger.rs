@@ -3,8 +3,8 @@
 
 use super::{NetworkArgs, load, print_warnings};
 use photoledger::Error;
-use photoledger::chain::build::{self, Light, Settings, Values};
-use photoledger::chain::{self, Options, sensitivity};
+use photoledger::chain::build::{Light, Settings};
+use photoledger::chain::{self, ChainOptions, Options};
 use photoledger::model::Model;
 use photoledger::report::{chain as report, write_atomic};
 use std::path::PathBuf;
@@ -50,34 +50,46 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
             )));
         }
     };
-    let concentrations = match &a.at {
+    let at = match &a.at {
         None => None,
-        Some(d) => {
-            let t = photoledger::units::parse(d, photoledger::units::Quantity::Time).map_err(|e| {
+        Some(d) => Some(
+            photoledger::units::parse(d, photoledger::units::Quantity::Time).map_err(|e| {
                 Error::Usage(format!(
                     "--at: {e}; expected {}",
                     photoledger::units::Quantity::Time.accepted()
                 ))
-            })?;
-            let tr = photoledger::kinetics::simulate(&model, &photoledger::kinetics::Options::until(t), &mut |_| {})?;
-            eprintln!(
-                "note: concentrations taken from the kinetics at {}",
-                photoledger::units::format_time(t)
-            );
-            Some(tr.last()[..model.n_species()].to_vec())
-        }
+            })?,
+        ),
     };
-    let settings = Settings { light, concentrations };
-    let values = Values::of(&model, &net);
-    let ch = build::build(&model, &net, &settings, &values)?;
-    let (start, note) = build::start(&model, &ch, a.from.as_deref())?;
-    let opts = Options {
-        max_photons: a.max_photons,
-        ..Options::default()
+    let opts = ChainOptions {
+        settings: Settings {
+            light,
+            concentrations: None,
+        },
+        at,
+        from: a.from.clone(),
+        analysis: Options {
+            max_photons: a.max_photons,
+            ..Options::default()
+        },
+        sensitivities: true,
     };
-    let an = chain::analyse(&ch, &start, &opts)?;
-    let sens = sensitivity::sensitivities(&model, &net, &settings, &start)?;
-    let summary = report::summary(&net.about.name, &ch, &an, &note, &model.products, sens);
+    let run = chain::run(&model, &net, &opts)?;
+    if let Some(t) = at {
+        eprintln!(
+            "note: concentrations taken from the kinetics at {}",
+            photoledger::units::format_time(t)
+        );
+    }
+    let (ch, an) = (&run.chain, &run.analysis);
+    let summary = report::summary(
+        &net.about.name,
+        ch,
+        an,
+        &run.start_note,
+        &model.products,
+        run.sensitivities.clone(),
+    );
     let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
     let dir = a.out.clone().unwrap_or_else(|| {
         let stem = a
@@ -91,11 +103,11 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
     write_atomic(&dir.join("summary.json"), json.as_bytes())?;
     write_atomic(
         &dir.join("photon_counts.csv"),
-        report::distribution_csv(&ch, &an).as_bytes(),
+        report::distribution_csv(ch, an).as_bytes(),
     )?;
     write_atomic(
         &dir.join("photon_counts.svg"),
-        report::histogram_svg(&format!("{}: photons per molecule", net.about.name), &an).as_bytes(),
+        report::histogram_svg(&format!("{}: photons per molecule", net.about.name), an).as_bytes(),
     )?;
     if a.json {
         println!("{json}");

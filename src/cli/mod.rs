@@ -131,8 +131,13 @@ fn report_error(e: &Error) -> i32 {
 
 /// Load and validate the network named by `args`.
 fn load(args: &NetworkArgs) -> photoledger::Result<photoledger::Network> {
+    build(&photoledger::file::load(&args.file)?, args)
+}
+
+/// Validate a network file already read, with the `--set` overrides of `args`.
+fn build(loaded: &photoledger::file::Loaded, args: &NetworkArgs) -> photoledger::Result<photoledger::Network> {
     let overrides = photoledger::Overrides::parse(&args.set).map_err(Error::Usage)?;
-    photoledger::network::load(&args.file, &overrides).map_err(|e| match e {
+    photoledger::network::build(loaded, &overrides).map_err(|e| match e {
         // An unknown --set key is a usage error, not a broken file.
         Error::Invalid(ds)
             if !ds.is_empty()

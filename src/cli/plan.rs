@@ -1,7 +1,7 @@
 //! `photoledger plan FILE --target EXPR [--in DURATION] [--flow-tube SPEC] [--sun-hours H]
 //! [--sweep KEY=LO..HI:N] [--wall-plug EFF] [--json] [--out DIR]`.
 
-use super::{NetworkArgs, load, print_warnings};
+use super::{NetworkArgs, build, print_warnings};
 use photoledger::Error;
 use photoledger::kinetics::Schedule;
 use photoledger::light::LightKind;
@@ -113,130 +113,6 @@ fn parse_fraction(text: &str, what: &str) -> photoledger::Result<f64> {
     Ok(v)
 }
 
-/// A parsed sweep: the axis and the values.
-struct Sweep {
-    key: String,
-    axis: rp::SweepAxis,
-    values: Vec<f64>,
-}
-
-fn parse_sweep(text: &str, net: &photoledger::Network) -> photoledger::Result<Sweep> {
-    let usage = |m: String| {
-        Error::Usage(format!(
-            "--sweep \"{text}\": {m}; write KEY=LO..HI:N with KEY power, photon_flux, wavelength, temperature or \
-             concentration.NAME, e.g. power=10mW..1W:20"
-        ))
-    };
-    let (key, range) = text.split_once('=').ok_or_else(|| usage("no =".into()))?;
-    let key = key.trim();
-    let (range, n) = range
-        .rsplit_once(':')
-        .ok_or_else(|| usage("no :N (number of points)".into()))?;
-    let n: usize = n.trim().parse().map_err(|_| usage(format!("\"{n}\" is not a count")))?;
-    if !(2..=500).contains(&n) {
-        return Err(usage("between 2 and 500 points".into()));
-    }
-    let (lo, hi) = range
-        .split_once("..")
-        .ok_or_else(|| usage("no .. between the ends".into()))?;
-    let (q, log, label, factor) = match key {
-        "power" => (Quantity::Power, true, "total power (W)".to_string(), 1.0),
-        "photon_flux" => (Quantity::PhotonFlux, true, "total photon flux (einstein/s)".into(), 1.0),
-        "wavelength" => (Quantity::Wavelength, false, "wavelength (nm)".into(), 1e9),
-        "temperature" => (Quantity::Temperature, false, "temperature (K)".into(), 1.0),
-        k if k.starts_with("concentration.") => {
-            let name = &k["concentration.".len()..];
-            if net.species_index(name).is_none() {
-                return Err(usage(format!("unknown species \"{name}\"")));
-            }
-            (Quantity::Concentration, true, format!("initial {name} (mol/L)"), 1.0)
-        }
-        other => return Err(usage(format!("unknown key \"{other}\""))),
-    };
-    let p = |s: &str| units::parse(s.trim(), q).map_err(|e| usage(format!("{e}; expected {}", q.accepted())));
-    let (a, b) = (p(lo)?, p(hi)?);
-    if !(a > 0.0 && b > 0.0) || a == b {
-        return Err(usage("the ends must be positive and different".into()));
-    }
-    let values = (0..n)
-        .map(|i| {
-            let f = i as f64 / (n - 1) as f64;
-            if log { a * (b / a).powf(f) } else { a + (b - a) * f }
-        })
-        .collect();
-    Ok(Sweep {
-        key: key.to_string(),
-        axis: rp::SweepAxis {
-            label,
-            unit_factor: factor,
-            log,
-        },
-        values,
-    })
-}
-
-/// The models of a sweep.
-fn sweep_models(
-    a: &PlanArgs,
-    sw: &Sweep,
-    net: &photoledger::Network,
-    base: &Model,
-    adjust: &dyn Fn(Model) -> Model,
-) -> photoledger::Result<Vec<(f64, Model)>> {
-    let reload = |key: &str, value: String| -> photoledger::Result<Model> {
-        let mut items = a.net.set.clone();
-        items.push(format!("{key}={value}"));
-        let ov = photoledger::Overrides::parse(&items).map_err(Error::Usage)?;
-        let n = photoledger::network::load(&a.net.file, &ov)?;
-        Ok(adjust(Model::compile(&n)))
-    };
-    let mut out = Vec::new();
-    for &v in &sw.values {
-        let m = match sw.key.as_str() {
-            "power" => {
-                let p = base.total_power();
-                if p <= 0.0 {
-                    return Err(Error::Usage("--sweep power: the network has no light".into()));
-                }
-                base.with_light_scale(v / p)
-            }
-            "photon_flux" => {
-                let q = base.total_flux();
-                if q <= 0.0 {
-                    return Err(Error::Usage("--sweep photon_flux: the network has no light".into()));
-                }
-                base.with_light_scale(v / q)
-            }
-            "wavelength" => {
-                let tunable: Vec<_> = net
-                    .lights
-                    .iter()
-                    .filter(|l| matches!(l.kind, LightKind::Line { .. } | LightKind::Band { .. }))
-                    .collect();
-                let [l] = tunable.as_slice() else {
-                    return Err(Error::Usage(format!(
-                        "--sweep wavelength needs exactly one line or band source; the network has {}",
-                        tunable.len()
-                    )));
-                };
-                let field = if matches!(l.kind, LightKind::Line { .. }) {
-                    "wavelength"
-                } else {
-                    "centre"
-                };
-                reload(&format!("light.{}.{field}", l.name), format!("{} nm", v * 1e9))?
-            }
-            "temperature" => reload("conditions.temperature", format!("{v} K"))?,
-            k => {
-                let name = &k["concentration.".len()..];
-                reload(&format!("species.{name}.initial"), format!("{v} M"))?
-            }
-        };
-        out.push((v, m));
-    }
-    Ok(out)
-}
-
 /// The sun sources scaled by `sun_scale`, and the model put in the flow tube if there is one.
 fn adjust_model(mut m: Model, sun_sources: &[usize], sun_scale: f64, tube: Option<&Tube>) -> Model {
     for &s in sun_sources {
@@ -249,7 +125,9 @@ fn adjust_model(mut m: Model, sun_sources: &[usize], sun_scale: f64, tube: Optio
 }
 
 pub fn run(a: &PlanArgs) -> photoledger::Result<()> {
-    let net = load(&a.net)?;
+    // Read once: a sweep builds each point's network from the same text.
+    let loaded = photoledger::file::load(&a.net.file)?;
+    let net = build(&loaded, &a.net)?;
     print_warnings(&net);
     let mut model = Model::compile(&net);
     let horizon = units::parse(&a.horizon, Quantity::Time)
@@ -326,15 +204,15 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<()> {
     });
     let name = net.about.name.clone();
     if let Some(sw) = &a.sweep {
-        let sw = parse_sweep(sw, &net)?;
-        let models = sweep_models(a, &sw, &net, &model, &adjust)?;
-        // The target is re-read on every model: a concentration sweep moves a yield's level.
-        let mut jobs = Vec::new();
-        for (v, m) in models {
-            let t = plan::target::parse(&a.target, &m)?;
-            jobs.push((v, m, t));
-        }
-        let points = plan::sweep(jobs, &opts);
+        let sw = plan::sweep::parse(sw, &net)?;
+        let overrides = photoledger::Overrides::parse(&a.net.set).map_err(Error::Usage)?.pairs();
+        let base = plan::sweep::Base {
+            loaded: &loaded,
+            overrides: &overrides,
+            network: &net,
+            model: &model,
+        };
+        let points = plan::sweep::run(&base, &sw, &a.target, &adjust, &opts)?.points;
         write_atomic(&dir.join("sweep.csv"), rp::sweep_csv(&sw.axis, &points).as_bytes())?;
         write_atomic(
             &dir.join("sweep.svg"),

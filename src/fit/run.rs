@@ -3,7 +3,7 @@
 
 use super::compare;
 use super::mechanism::{self, Accuracy, Curve, FitOptions, FitResult, Setup};
-use crate::error::Result;
+use crate::error::{Error, Result};
 use crate::file::Loaded;
 use crate::file::data::Experiment;
 
@@ -85,5 +85,63 @@ pub fn rank(fits: &[(String, &Fitted)], experiments: &[Experiment]) -> Ranking {
         order,
         weights,
         disagreement,
+    }
+}
+
+/// `e` with the network's `name` in front of its message (usage and numerical errors; others,
+/// which name their file already, as they are).
+pub fn named_error(name: &str, e: Error) -> Error {
+    match e {
+        Error::Usage(m) => Error::Usage(format!("{name}: {m}")),
+        Error::Numerical(m) => Error::Numerical(format!("{name}: {m}")),
+        other => other,
+    }
+}
+
+/// Rival networks fitted to the same data, and their ranking.
+#[derive(Debug, Clone)]
+pub struct Comparison {
+    /// (name, fit), in input order.
+    pub fits: Vec<(String, Fitted)>,
+    /// Order by AICc, Akaike weights and the largest disagreement of the best two.
+    pub ranking: Ranking,
+}
+
+impl Comparison {
+    /// Rank `fits` (name, fit) against `experiments` ([`rank`]).
+    pub fn new(fits: Vec<(String, Fitted)>, experiments: &[Experiment]) -> Comparison {
+        let named: Vec<(String, &Fitted)> = fits.iter().map(|(n, f)| (n.clone(), f)).collect();
+        let ranking = rank(&named, experiments);
+        Comparison { fits, ranking }
+    }
+
+    /// (name, fit, Akaike weight), best (lowest AICc) first.
+    pub fn ranked(&self) -> Vec<(&str, &Fitted, f64)> {
+        self.ranking
+            .order
+            .iter()
+            .map(|&i| (self.fits[i].0.as_str(), &self.fits[i].1, self.ranking.weights[i]))
+            .collect()
+    }
+
+    /// The best fit (lowest AICc): (name, fit); None when there are no fits.
+    pub fn best(&self) -> Option<(&str, &Fitted)> {
+        self.ranking
+            .order
+            .first()
+            .map(|&i| (self.fits[i].0.as_str(), &self.fits[i].1))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn names_go_in_front_of_usage_and_numerical_errors() {
+        let e = named_error("a.toml", Error::Usage("no data".into()));
+        assert_eq!(e.to_string(), Error::Usage("a.toml: no data".into()).to_string());
+        let e = named_error("b.toml", Error::Numerical("singular".into()));
+        assert!(e.to_string().contains("b.toml: singular"), "{e}");
     }
 }

@@ -216,8 +216,9 @@ impl Trajectory {
     }
 }
 
-/// The output times for `opts`, from `start`.
-fn output_times(opts: &Options, start: f64) -> Vec<f64> {
+/// The output times for `opts`, from `start` (s): the start, then the explicit `times`, or
+/// `outputs` times spaced linearly or logarithmically up to `until`.
+pub fn output_times(opts: &Options, start: f64) -> Vec<f64> {
     if !opts.times.is_empty() {
         let mut t: Vec<f64> = opts
             .times

@@ -385,16 +385,8 @@ pub fn text(s: &PlanSummary) -> String {
     o
 }
 
-/// What a sweep varies.
-#[derive(Debug, Clone, PartialEq)]
-pub struct SweepAxis {
-    /// Label with unit, e.g. "power (W)".
-    pub label: String,
-    /// Factor from the internal value to the plotted unit.
-    pub unit_factor: f64,
-    /// Log axis.
-    pub log: bool,
-}
+/// What a sweep varies (made by `plan::sweep::parse`).
+pub use crate::plan::sweep::SweepAxis;
 
 /// sweep.csv: value, time to target, reached, and each product's concentration and selectivity.
 pub fn sweep_csv(axis: &SweepAxis, points: &[SweepPoint]) -> String {

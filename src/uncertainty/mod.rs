@@ -18,7 +18,7 @@ pub mod sampling;
 pub mod spec;
 pub mod stats;
 
-use crate::chain::{self, build as chain_build};
+use crate::chain;
 use crate::error::{Diagnostic, Error, Result, Severity};
 use crate::file::Loaded;
 use crate::kinetics::{self, Stop};
@@ -419,20 +419,19 @@ fn one_line(e: &Error) -> String {
     e.to_string().lines().next().unwrap_or("").to_string()
 }
 
+/// The chain as `ledger` runs it by default (stirred-cell light at the initial concentrations,
+/// from the initial mixture), without the photon-count distribution or sensitivities.
 fn chain_run(model: &Model, net: &Network) -> Result<(chain::Chain, chain::Analysis)> {
-    let settings = chain_build::Settings {
-        light: chain_build::Light::Stirred,
-        concentrations: None,
+    let opts = chain::ChainOptions {
+        analysis: chain::Options {
+            distribution: false,
+            ..chain::Options::default()
+        },
+        sensitivities: false,
+        ..chain::ChainOptions::default()
     };
-    let values = chain_build::Values::of(model, net);
-    let ch = chain_build::build(model, net, &settings, &values)?;
-    let (start, _) = chain_build::start(model, &ch, None)?;
-    let opts = chain::Options {
-        distribution: false,
-        ..chain::Options::default()
-    };
-    let an = chain::analyse(&ch, &start, &opts)?;
-    Ok((ch, an))
+    let run = chain::run(model, net, &opts)?;
+    Ok((run.chain, run.analysis))
 }
 
 fn column(o: &Output, model: &Model, s: &Settings) -> Column {

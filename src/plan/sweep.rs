@@ -1,0 +1,315 @@
+//! `plan --sweep`: one value swept over a range, a plan at every point.
+//!
+//! [`parse`] reads the spec (`KEY=LO..HI:N`); [`run`] builds each point's network in memory
+//! from the file as read once ([`Loaded`]) with the point's value as one more `--set` override
+//! (or, for power and photon flux, scales the compiled model's light), and plans every point in
+//! parallel (rayon). A sweep is by definition the single plan repeated at each value
+//! (`common practice`): a point gives exactly what `plan --set KEY=VALUE` gives.
+
+use super::{PlanOptions, SweepPoint};
+use crate::error::{Error, Result};
+use crate::file::Loaded;
+use crate::light::LightKind;
+use crate::model::Model;
+use crate::network::{self, Network, Overrides};
+use crate::units::{self, Quantity};
+
+/// What a sweep varies.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Swept {
+    /// Total radiant power of all sources (their ratios kept), W.
+    Power,
+    /// Total photon flux of all sources (their ratios kept), einstein/s.
+    PhotonFlux,
+    /// Wavelength (line) or centre (band) of the one tunable source, m.
+    Wavelength,
+    /// Reactor temperature, K.
+    Temperature,
+    /// Initial concentration of the named species, mol/L.
+    Concentration(String),
+}
+
+/// What a sweep varies, as drawn.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SweepAxis {
+    /// Label with unit, e.g. "power (W)".
+    pub label: String,
+    /// Factor from the internal value to the plotted unit.
+    pub unit_factor: f64,
+    /// Log axis.
+    pub log: bool,
+}
+
+/// A parsed `--sweep`: what is swept, how it is drawn and the values (SI, or mol/L).
+#[derive(Debug, Clone, PartialEq)]
+pub struct SweepSpec {
+    /// The swept quantity.
+    pub swept: Swept,
+    /// The axis of the outputs.
+    pub axis: SweepAxis,
+    /// The values, in order (log-spaced for power, photon flux and concentration; evenly
+    /// spaced for wavelength and temperature).
+    pub values: Vec<f64>,
+}
+
+/// Most points a sweep may have.
+pub const MAX_POINTS: usize = 500;
+
+/// Read `KEY=LO..HI:N` (KEY power, photon_flux, wavelength, temperature or concentration.NAME,
+/// with a unit on each end) against `net` (the species a concentration sweep names must exist).
+///
+/// Every error is an [`Error::Usage`] naming `--sweep`, the text and what is accepted.
+pub fn parse(text: &str, net: &Network) -> Result<SweepSpec> {
+    let usage = |m: String| {
+        Error::Usage(format!(
+            "--sweep \"{text}\": {m}; write KEY=LO..HI:N with KEY power, photon_flux, wavelength, temperature or \
+             concentration.NAME, e.g. power=10mW..1W:20"
+        ))
+    };
+    let (key, range) = text.split_once('=').ok_or_else(|| usage("no =".into()))?;
+    let key = key.trim();
+    let (range, n) = range
+        .rsplit_once(':')
+        .ok_or_else(|| usage("no :N (number of points)".into()))?;
+    let n: usize = n.trim().parse().map_err(|_| usage(format!("\"{n}\" is not a count")))?;
+    if !(2..=MAX_POINTS).contains(&n) {
+        return Err(usage(format!("between 2 and {MAX_POINTS} points")));
+    }
+    let (lo, hi) = range
+        .split_once("..")
+        .ok_or_else(|| usage("no .. between the ends".into()))?;
+    let (swept, q, log, label, factor) = match key {
+        "power" => (Swept::Power, Quantity::Power, true, "total power (W)".to_string(), 1.0),
+        "photon_flux" => (
+            Swept::PhotonFlux,
+            Quantity::PhotonFlux,
+            true,
+            "total photon flux (einstein/s)".into(),
+            1.0,
+        ),
+        "wavelength" => (
+            Swept::Wavelength,
+            Quantity::Wavelength,
+            false,
+            "wavelength (nm)".into(),
+            1e9,
+        ),
+        "temperature" => (
+            Swept::Temperature,
+            Quantity::Temperature,
+            false,
+            "temperature (K)".into(),
+            1.0,
+        ),
+        k if k.starts_with("concentration.") => {
+            let name = &k["concentration.".len()..];
+            if net.species_index(name).is_none() {
+                return Err(usage(format!("unknown species \"{name}\"")));
+            }
+            (
+                Swept::Concentration(name.to_string()),
+                Quantity::Concentration,
+                true,
+                format!("initial {name} (mol/L)"),
+                1.0,
+            )
+        }
+        other => return Err(usage(format!("unknown key \"{other}\""))),
+    };
+    let p = |s: &str| units::parse(s.trim(), q).map_err(|e| usage(format!("{e}; expected {}", q.accepted())));
+    let (a, b) = (p(lo)?, p(hi)?);
+    if !(a > 0.0 && b > 0.0) || a == b {
+        return Err(usage("the ends must be positive and different".into()));
+    }
+    let values = (0..n)
+        .map(|i| {
+            let f = i as f64 / (n - 1) as f64;
+            if log { a * (b / a).powf(f) } else { a + (b - a) * f }
+        })
+        .collect();
+    Ok(SweepSpec {
+        swept,
+        axis: SweepAxis {
+            label,
+            unit_factor: factor,
+            log,
+        },
+        values,
+    })
+}
+
+/// The network a sweep starts from: the file as read, the `--set` overrides given with it, and
+/// the network and model they give (the model already adjusted, as `adjust` does each point's).
+pub struct Base<'a> {
+    /// The network file as read (parsed once; each point is built from it in memory).
+    pub loaded: &'a Loaded,
+    /// The `--set` overrides of the command, in order.
+    pub overrides: &'a [(String, String)],
+    /// The network built from `loaded` with `overrides`.
+    pub network: &'a Network,
+    /// Its model, after `adjust`.
+    pub model: &'a Model,
+}
+
+/// A finished sweep: the axis and one point per value, in the order of the values.
+#[derive(Debug, Clone)]
+pub struct Sweep {
+    /// The axis of the outputs.
+    pub axis: SweepAxis,
+    /// The points, in the order of [`SweepSpec::values`].
+    pub points: Vec<SweepPoint>,
+}
+
+/// How one point's model is made.
+enum Point {
+    /// Scale every source of the base model by this factor.
+    Scale(f64),
+    /// Rebuild the network with one more override (key, value with unit).
+    Set(String, String),
+}
+
+/// The `--set` key and value text of a point, or the light factor for power and flux sweeps.
+fn point(spec: &SweepSpec, base: &Base, v: f64) -> Result<Point> {
+    let model = base.model;
+    Ok(match &spec.swept {
+        Swept::Power => {
+            let p = model.total_power();
+            if p <= 0.0 {
+                return Err(Error::Usage("--sweep power: the network has no light".into()));
+            }
+            Point::Scale(v / p)
+        }
+        Swept::PhotonFlux => {
+            let q = model.total_flux();
+            if q <= 0.0 {
+                return Err(Error::Usage("--sweep photon_flux: the network has no light".into()));
+            }
+            Point::Scale(v / q)
+        }
+        Swept::Wavelength => {
+            let tunable: Vec<_> = base
+                .network
+                .lights
+                .iter()
+                .filter(|l| matches!(l.kind, LightKind::Line { .. } | LightKind::Band { .. }))
+                .collect();
+            let [l] = tunable.as_slice() else {
+                return Err(Error::Usage(format!(
+                    "--sweep wavelength needs exactly one line or band source; the network has {}",
+                    tunable.len()
+                )));
+            };
+            let field = if matches!(l.kind, LightKind::Line { .. }) {
+                "wavelength"
+            } else {
+                "centre"
+            };
+            Point::Set(format!("light.{}.{field}", l.name), format!("{} nm", v * 1e9))
+        }
+        Swept::Temperature => Point::Set("conditions.temperature".into(), format!("{v} K")),
+        Swept::Concentration(name) => Point::Set(format!("species.{name}.initial"), format!("{v} M")),
+    })
+}
+
+/// Plan `target` (as written for `plan --target`; re-read on each point's model, since a
+/// concentration sweep moves a yield's level) at every value of `spec`, points in parallel.
+///
+/// `adjust` is applied to each rebuilt point's model as it was to `base.model` (sunlight
+/// scale, flow tube). A point whose network or target cannot be built is an error of the whole
+/// sweep (the first in the order of the values); a plan that fails is kept in its point.
+pub fn run(
+    base: &Base,
+    spec: &SweepSpec,
+    target: &str,
+    adjust: &(dyn Fn(Model) -> Model + Sync),
+    opts: &PlanOptions,
+) -> Result<Sweep> {
+    use rayon::prelude::*;
+    let points = spec
+        .values
+        .iter()
+        .map(|&v| Ok((v, point(spec, base, v)?)))
+        .collect::<Result<Vec<_>>>()?;
+    let results: Vec<Result<SweepPoint>> = points
+        .into_par_iter()
+        .map(|(value, p)| {
+            let model = match p {
+                Point::Scale(f) => base.model.with_light_scale(f),
+                Point::Set(key, text) => {
+                    let mut ov = Overrides::none();
+                    for (k, v) in base.overrides {
+                        ov = ov.with(k, v);
+                    }
+                    let net = network::build(base.loaded, &ov.with(&key, &text))?;
+                    adjust(Model::compile(&net))
+                }
+            };
+            let t = super::target::parse(target, &model)?;
+            Ok(SweepPoint {
+                value,
+                plan: super::time_to_target(&model, &t, opts).map_err(|e| e.to_string()),
+            })
+        })
+        .collect();
+    Ok(Sweep {
+        axis: spec.axis.clone(),
+        points: results.into_iter().collect::<Result<Vec<_>>>()?,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::path::Path;
+
+    fn net() -> Network {
+        let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/networks/photoswitch.toml"))
+            .expect("bundled network");
+        let loaded = crate::file::parse_text(Path::new("photoswitch.toml"), text).expect("parses");
+        network::build(&loaded, &Overrides::none()).expect("valid")
+    }
+
+    fn err(text: &str) -> String {
+        parse(text, &net()).expect_err(text).to_string()
+    }
+
+    #[test]
+    fn spec_values_and_axes() {
+        let s = parse("power=10mW..1W:3", &net()).unwrap();
+        assert_eq!(s.swept, Swept::Power);
+        assert!(s.axis.log);
+        for (v, want) in s.values.iter().zip([0.01, 0.1, 1.0]) {
+            assert!((v - want).abs() < 1e-12 * want, "{v} vs {want}");
+        }
+        let s = parse("temperature=10°C..60°C:6", &net()).unwrap();
+        assert!(!s.axis.log);
+        assert!((s.values[1] - 293.15).abs() < 1e-9);
+        let s = parse("wavelength=340nm..420nm:9", &net()).unwrap();
+        assert_eq!(s.axis.unit_factor, 1e9);
+        assert!((s.values[1] - 350e-9).abs() < 1e-18);
+        let s = parse("concentration.E-azo=1mM..100mM:5", &net()).unwrap();
+        assert_eq!(s.swept, Swept::Concentration("E-azo".into()));
+        assert!((s.values[2] - 0.01).abs() < 1e-15);
+    }
+
+    #[test]
+    fn spec_errors_name_the_option_and_what_is_accepted() {
+        let e = err("pressure=1bar..2bar:3");
+        assert!(e.contains("--sweep") && e.contains("unknown key \"pressure\""), "{e}");
+        assert!(e.contains("power, photon_flux, wavelength, temperature"), "{e}");
+        let e = err("power=10mW..1W:1");
+        assert!(e.contains("between 2 and 500 points"), "{e}");
+        let e = err("power=10mW..1W");
+        assert!(e.contains("no :N"), "{e}");
+        let e = err("power=10mW-1W:4");
+        assert!(e.contains("no .. between the ends"), "{e}");
+        let e = err("power=10..1W:4");
+        assert!(e.contains("expected"), "{e}");
+        let e = err("power=1W..1W:4");
+        assert!(e.contains("positive and different"), "{e}");
+        let e = err("concentration.nothing=1mM..2mM:3");
+        assert!(e.contains("unknown species \"nothing\""), "{e}");
+        let e = err("power=10mW..1W:many");
+        assert!(e.contains("\"many\" is not a count"), "{e}");
+    }
+}
