@@ -425,7 +425,7 @@ pub fn read(loaded: &Loaded) -> Result<Vec<Parameter>> {
         let written = written(&loaded.text, e.get_ref());
         out.push(Parameter {
             key,
-            unit: q.map(units::internal_spelling).unwrap_or_default(),
+            unit: q.map(|q| units::internal_spelling(q).to_string()).unwrap_or_default(),
             distribution: dist,
             line,
             written,
