@@ -193,9 +193,15 @@ fn rate_parameter(key: &str, field: &str, law: &RateLaw, k: f64, order: u32, tem
             let g = -GAS_CONSTANT * temperature * (k * PLANCK / (kappa * BOLTZMANN * temperature * c0)).ln();
             p(g, Some(Quantity::MolarEnergy), Range::Real)
         }
-        ("prefactor", RateLaw::Arrhenius { prefactor, .. }) => p(*prefactor, Some(Quantity::RateConstant(order)), Range::Positive),
-        ("activation", RateLaw::Arrhenius { activation, .. }) => p(*activation, Some(Quantity::MolarEnergy), Range::Real),
-        ("enthalpy", RateLaw::EyringEnthalpy { enthalpy, .. }) => p(*enthalpy, Some(Quantity::MolarEnergy), Range::Real),
+        ("prefactor", RateLaw::Arrhenius { prefactor, .. }) => {
+            p(*prefactor, Some(Quantity::RateConstant(order)), Range::Positive)
+        }
+        ("activation", RateLaw::Arrhenius { activation, .. }) => {
+            p(*activation, Some(Quantity::MolarEnergy), Range::Real)
+        }
+        ("enthalpy", RateLaw::EyringEnthalpy { enthalpy, .. }) => {
+            p(*enthalpy, Some(Quantity::MolarEnergy), Range::Real)
+        }
         ("entropy", RateLaw::EyringEnthalpy { entropy, .. }) => p(*entropy, Some(Quantity::MolarEntropy), Range::Real),
         (
             "transmission",
@@ -258,7 +264,11 @@ pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
             return unknown("a species takes only `initial`");
         };
         return match net.species_index(name) {
-            Some(i) => Ok(p(net.species[i].initial, Some(Quantity::Concentration), Range::Positive)),
+            Some(i) => Ok(p(
+                net.species[i].initial,
+                Some(Quantity::Concentration),
+                Range::Positive,
+            )),
             None => unknown(&format!("no species called \"{name}\"")),
         };
     }
@@ -275,7 +285,9 @@ pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
             ("power", _, Some(_)) => Ok(p(l.power(), Some(Quantity::Power), Range::Positive)),
             ("photon_flux", _, Some(Intensity::PhotonFlux(q))) => Ok(p(q, Some(Quantity::PhotonFlux), Range::Positive)),
             ("photon_flux", _, Some(_)) => Ok(p(l.photon_flux(), Some(Quantity::PhotonFlux), Range::Positive)),
-            ("wavelength", LightKind::Line { wavelength }, _) => Ok(p(*wavelength, Some(Quantity::Length), Range::Positive)),
+            ("wavelength", LightKind::Line { wavelength }, _) => {
+                Ok(p(*wavelength, Some(Quantity::Length), Range::Positive))
+            }
             ("centre", LightKind::Band { centre, .. }, _) => Ok(p(*centre, Some(Quantity::Length), Range::Positive)),
             ("fwhm", LightKind::Band { fwhm, .. }, _) => Ok(p(*fwhm, Some(Quantity::Length), Range::Positive)),
             ("scale", LightKind::Sun { scale, .. }, _) => Ok(p(*scale, None, Range::Positive)),

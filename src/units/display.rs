@@ -172,9 +172,7 @@ pub fn quantity_of_spelling(unit: &str) -> Option<Quantity> {
     if unit.is_empty() {
         return None;
     }
-    super::ALL
-        .into_iter()
-        .find(|q| super::internal_spelling(*q) == unit)
+    super::ALL.into_iter().find(|q| super::internal_spelling(*q) == unit)
 }
 
 /// [`quantity`] for a value whose internal unit is spelled `unit` ("" for a plain number); a
@@ -188,7 +186,7 @@ pub fn readable(unit: &str, v: f64) -> (f64, String) {
 
 #[cfg(test)]
 mod tests {
-    use super::super::{parse, ALL};
+    use super::super::{ALL, parse};
     use super::*;
 
     #[test]
@@ -263,7 +261,11 @@ mod tests {
         }
         for q in ALL {
             let (x, u) = quantity(Some(q), 2.5e-3);
-            let text = if u.is_empty() { format!("{x}") } else { format!("{x} {u}") };
+            let text = if u.is_empty() {
+                format!("{x}")
+            } else {
+                format!("{x} {u}")
+            };
             let v = parse(&text, q).unwrap_or_else(|e| panic!("{text}: {e}"));
             assert!((v - 2.5e-3).abs() <= 1e-9 * 2.5e-3, "{text} -> {v}");
         }
