@@ -140,48 +140,70 @@ pub fn rate_constant(order: u32) -> &'static str {
     SPELLINGS[(order as usize).min(SPELLINGS.len() - 1)]
 }
 
-/// The display form of a value of quantity `q` given in the internal unit: (value in the display
-/// unit, the unit's spelling; "" for a plain number).
+/// The display unit of quantity `q` (None: a plain number) for values of magnitude up to
+/// `magnitude` in the internal unit: (internal units per display unit, spelling; "" for a plain
+/// number). Divide a value by the first to show it in the second.
 ///
 /// Energies in kJ/mol, entropies in J/(mol K), rate constants by order ([`rate_constant`]),
 /// lengths and wavelengths below 10 µm in nm (the trade's unit for light) and otherwise in m,
-/// molar absorption coefficients in L mol⁻¹ cm⁻¹ (common practice); durations, concentrations, powers and photon fluxes by their ladders.
-pub fn quantity(q: Option<Quantity>, v: f64) -> (f64, String) {
-    let scaled = |ladder: &Ladder| {
-        let (f, u) = pick(v, ladder);
-        (v / f, u.to_string())
+/// molar absorption coefficients in L mol⁻¹ cm⁻¹ (common practice); durations, concentrations,
+/// powers and photon fluxes by their ladders and the module's rule.
+pub fn unit(q: Option<Quantity>, magnitude: f64) -> (f64, String) {
+    let from = |ladder: &Ladder| {
+        let (f, u) = pick(magnitude, ladder);
+        (f, u.to_string())
     };
     match q {
-        None => (v, String::new()),
-        Some(Quantity::MolarEnergy) => (v / 1000.0, "kJ/mol".into()),
-        Some(Quantity::RateConstant(n)) => (v, rate_constant(n).into()),
-        Some(Quantity::Wavelength | Quantity::Length) if v.abs() < 1e-5 => (v * 1e9, "nm".into()),
-        Some(Quantity::Time) => scaled(&TIME),
-        Some(Quantity::Concentration) => scaled(&CONCENTRATION),
-        Some(Quantity::Power) => scaled(&POWER),
-        Some(Quantity::PhotonFlux) => scaled(&PHOTON_FLUX),
-        Some(Quantity::MolarAbsorption) => (super::epsilon_to_per_cm(v), "L/(mol cm)".into()),
-        Some(q) => (v, super::internal_spelling(q).into()),
+        None => (1.0, String::new()),
+        Some(Quantity::MolarEnergy) => (1000.0, "kJ/mol".into()),
+        Some(Quantity::RateConstant(n)) => (1.0, rate_constant(n).into()),
+        Some(Quantity::Wavelength | Quantity::Length) if magnitude.abs() < 1e-5 => (1e-9, "nm".into()),
+        Some(Quantity::Time) => from(&TIME),
+        Some(Quantity::Concentration) => from(&CONCENTRATION),
+        Some(Quantity::Power) => from(&POWER),
+        Some(Quantity::PhotonFlux) => from(&PHOTON_FLUX),
+        Some(Quantity::MolarAbsorption) => (super::epsilon_from_per_cm(1.0), "L/(mol cm)".into()),
+        Some(q) => (1.0, super::internal_spelling(q).into()),
     }
 }
 
-/// The quantity whose internal unit is spelled `unit` by [`super::internal_spelling`] ("J/mol",
-/// "/(M s)", "M", ...); `None` for "" (a plain number) and for a spelling that is not one of them.
+/// A value of quantity `q` given in the internal unit, in its display unit ([`unit`]):
+/// (value in the display unit, spelling).
+pub fn quantity(q: Option<Quantity>, v: f64) -> (f64, String) {
+    let (f, u) = unit(q, v);
+    (v / f, u)
+}
+
+/// The quantity whose internal unit `unit` spells: [`super::internal_spelling`] ("J/mol",
+/// "/(M s)", "M", ...) or any other spelling of exactly one internal unit ("mol/L", "L/(mol s)").
+/// `None` for "" (a plain number) and for anything else.
 pub fn quantity_of_spelling(unit: &str) -> Option<Quantity> {
     let unit = unit.trim();
     if unit.is_empty() {
         return None;
     }
-    super::ALL.into_iter().find(|q| super::internal_spelling(*q) == unit)
+    if let Some(q) = super::ALL.into_iter().find(|q| super::internal_spelling(*q) == unit) {
+        return Some(q);
+    }
+    match super::identify(&format!("1 {unit}")) {
+        Ok((q, v)) if (v - 1.0).abs() < 1e-12 => Some(q),
+        _ => None,
+    }
 }
 
-/// [`quantity`] for a value whose internal unit is spelled `unit` ("" for a plain number); a
-/// spelling that is no internal one is kept as it is.
-pub fn readable(unit: &str, v: f64) -> (f64, String) {
-    match quantity_of_spelling(unit) {
-        Some(q) => quantity(Some(q), v),
-        None => (v, unit.trim().to_string()),
+/// [`unit`] for values whose internal unit is spelled `spelling` ("" for a plain number); a
+/// spelling of no internal unit is kept as it is, with factor 1.
+pub fn readable_unit(spelling: &str, magnitude: f64) -> (f64, String) {
+    match quantity_of_spelling(spelling) {
+        Some(q) => unit(Some(q), magnitude),
+        None => (1.0, spelling.trim().to_string()),
     }
+}
+
+/// [`quantity`] for a value whose internal unit is spelled `spelling` (see [`readable_unit`]).
+pub fn readable(spelling: &str, v: f64) -> (f64, String) {
+    let (f, u) = readable_unit(spelling, v);
+    (v / f, u)
 }
 
 #[cfg(test)]
@@ -281,5 +303,9 @@ mod tests {
         assert_eq!(readable("furlong", 2.0), (2.0, "furlong".into()));
         assert_eq!(quantity_of_spelling("M/s"), Some(Quantity::RateConstant(0)));
         assert_eq!(quantity_of_spelling("/(M3 s)"), Some(Quantity::RateConstant(4)));
+        assert_eq!(quantity_of_spelling("mol/L"), Some(Quantity::Concentration));
+        assert_eq!(quantity_of_spelling("mM"), None);
+        assert_eq!(readable_unit("mol/L", 2e-3), (1e-3, "mM".into()));
+        assert_eq!(readable("s", 7200.0), (2.0, "h".into()));
     }
 }
