@@ -209,17 +209,10 @@ fn plan_study(model: &Model, target: &str) -> Result<PlanStudy> {
     })
 }
 
-/// A round duration at least `t` s: 1, 2 or 5 times a power of ten of s, min, h or d.
+/// A round duration at least `t` s: 1, 2 or 5 times a power of ten of the unit the duration is
+/// shown in (`units::display::time`), so the horizon reads as a round number in reports.
 pub fn round_up_duration(t: f64) -> f64 {
-    let unit = if t >= 2.0 * 86_400.0 {
-        86_400.0
-    } else if t >= 2.0 * 3600.0 {
-        3600.0
-    } else if t >= 120.0 {
-        60.0
-    } else {
-        1.0
-    };
+    let (unit, _) = crate::units::display::time(t);
     let v = t / unit;
     let p = 10f64.powf(v.log10().floor());
     let m = [1.0, 2.0, 5.0, 10.0]
@@ -460,5 +453,7 @@ mod tests {
         assert_eq!(round_up_duration(8.67 * 3600.0), 10.0 * 3600.0);
         assert_eq!(round_up_duration(3.0 * 86_400.0), 5.0 * 86_400.0);
         assert_eq!(round_up_duration(2.0 * 3600.0), 2.0 * 3600.0);
+        assert_eq!(round_up_duration(5400.0), 2.0 * 3600.0); // 1.5 h, shown in h
+        assert_eq!(round_up_duration(0.0), 0.0);
     }
 }

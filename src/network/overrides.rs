@@ -28,6 +28,7 @@ use super::{Branching, Network, PhotoOutcome, ThermalStep};
 use crate::light::{Intensity, LightKind, Spectrum};
 use crate::rates::RateLaw;
 use crate::units::constants::{BOLTZMANN, GAS_CONSTANT, PLANCK, STANDARD_CONCENTRATION};
+use crate::units::{self, Quantity};
 use std::cell::RefCell;
 use std::collections::BTreeSet;
 
@@ -142,8 +143,12 @@ pub struct Parameter {
     pub key: String,
     /// Current value in the internal unit (SI; mol/L for concentrations).
     pub value: f64,
-    /// Unit of `value` as written in a `--set` value ("" for plain numbers), e.g. "J/mol".
+    /// Unit of `value` as written in a `--set` value ("" for plain numbers), e.g. "J/mol":
+    /// `units::internal_spelling` of `quantity`.
     pub unit: &'static str,
+    /// What the value is (None for a plain number: yields, fractions, scales); shown with
+    /// `units::display::quantity`.
+    pub quantity: Option<Quantity>,
     /// Values it may take.
     pub range: Range,
 }
@@ -159,30 +164,25 @@ impl Parameter {
     }
 }
 
-/// Unit text of a rate constant of molecularity `order` in the internal unit.
-fn rate_unit(order: u32) -> &'static str {
-    match order {
-        1 => "/s",
-        2 => "/(M s)",
-        _ => "/(M2 s)",
+/// A parameter of `quantity` (None: a plain number), its unit spelled by `units::internal_spelling`.
+fn make(key: &str, value: f64, quantity: Option<Quantity>, range: Range) -> Parameter {
+    Parameter {
+        key: key.to_string(),
+        value,
+        unit: quantity.map_or("", units::internal_spelling),
+        quantity,
+        range,
     }
 }
 
 /// The value of a rate field of `law` (value of k at the temperature given) at `field`.
 fn rate_parameter(key: &str, field: &str, law: &RateLaw, k: f64, order: u32, temperature: f64) -> Option<Parameter> {
-    let p = |value, unit, range| {
-        Some(Parameter {
-            key: key.to_string(),
-            value,
-            unit,
-            range,
-        })
-    };
+    let p = |value, quantity, range| Some(make(key, value, quantity, range));
     match (field, law) {
-        ("k", _) => p(k, rate_unit(order), Range::Positive),
-        ("barrier", RateLaw::EyringFree { barrier, .. }) => p(*barrier, "J/mol", Range::Real),
+        ("k", _) => p(k, Some(Quantity::RateConstant(order)), Range::Positive),
+        ("barrier", RateLaw::EyringFree { barrier, .. }) => p(*barrier, Some(Quantity::MolarEnergy), Range::Real),
         // From frequencies the barrier is E₀, the zero-point-corrected threshold.
-        ("barrier", RateLaw::Frequencies { barrier, .. }) => p(*barrier, "J/mol", Range::Real),
+        ("barrier", RateLaw::Frequencies { barrier, .. }) => p(*barrier, Some(Quantity::MolarEnergy), Range::Real),
         ("barrier", law) => {
             // The Eyring ΔG‡ that gives the same k (with the law's transmission, else 1).
             let kappa = match law {
@@ -191,18 +191,24 @@ fn rate_parameter(key: &str, field: &str, law: &RateLaw, k: f64, order: u32, tem
             };
             let c0 = STANDARD_CONCENTRATION.powi(1 - order as i32);
             let g = -GAS_CONSTANT * temperature * (k * PLANCK / (kappa * BOLTZMANN * temperature * c0)).ln();
-            p(g, "J/mol", Range::Real)
+            p(g, Some(Quantity::MolarEnergy), Range::Real)
         }
-        ("prefactor", RateLaw::Arrhenius { prefactor, .. }) => p(*prefactor, rate_unit(order), Range::Positive),
-        ("activation", RateLaw::Arrhenius { activation, .. }) => p(*activation, "J/mol", Range::Real),
-        ("enthalpy", RateLaw::EyringEnthalpy { enthalpy, .. }) => p(*enthalpy, "J/mol", Range::Real),
-        ("entropy", RateLaw::EyringEnthalpy { entropy, .. }) => p(*entropy, "J/(mol K)", Range::Real),
+        ("prefactor", RateLaw::Arrhenius { prefactor, .. }) => {
+            p(*prefactor, Some(Quantity::RateConstant(order)), Range::Positive)
+        }
+        ("activation", RateLaw::Arrhenius { activation, .. }) => {
+            p(*activation, Some(Quantity::MolarEnergy), Range::Real)
+        }
+        ("enthalpy", RateLaw::EyringEnthalpy { enthalpy, .. }) => {
+            p(*enthalpy, Some(Quantity::MolarEnergy), Range::Real)
+        }
+        ("entropy", RateLaw::EyringEnthalpy { entropy, .. }) => p(*entropy, Some(Quantity::MolarEntropy), Range::Real),
         (
             "transmission",
             RateLaw::EyringFree { transmission, .. }
             | RateLaw::EyringEnthalpy { transmission, .. }
             | RateLaw::Frequencies { transmission, .. },
-        ) => p(*transmission, "", Range::Fraction),
+        ) => p(*transmission, None, Range::Fraction),
         _ => None,
     }
 }
@@ -229,12 +235,7 @@ fn name_field<'a>(rest: &'a str, fields: &[&str]) -> Option<(&'a str, &'a str)> 
 /// same rate constant; `k` on any rate reports the rate constant at the network temperature.
 pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
     let t = net.conditions.temperature;
-    let p = |value, unit, range| Parameter {
-        key: key.to_string(),
-        value,
-        unit,
-        range,
-    };
+    let p = |value, quantity, range| make(key, value, quantity, range);
     let unknown = |what: &str| {
         let keys = parameter_keys(net);
         let hint = super::suggest::closest(key, keys.iter().map(|s| s.as_str()))
@@ -247,14 +248,14 @@ pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
     let c = &net.conditions;
     if let Some(f) = key.strip_prefix("conditions.") {
         return match f {
-            "temperature" => Ok(p(c.temperature, "K", Range::Positive)),
-            "volume" => Ok(p(c.volume, "m3", Range::Positive)),
-            "path_length" => Ok(p(c.path_length, "m", Range::Positive)),
+            "temperature" => Ok(p(c.temperature, Some(Quantity::Temperature), Range::Positive)),
+            "volume" => Ok(p(c.volume, Some(Quantity::Volume), Range::Positive)),
+            "path_length" => Ok(p(c.path_length, Some(Quantity::Length), Range::Positive)),
             "irradiated_area" => match c.irradiated_area {
-                Some(a) => Ok(p(a, "m2", Range::Positive)),
+                Some(a) => Ok(p(a, Some(Quantity::Area), Range::Positive)),
                 None => Err(format!("{key}: the network gives no irradiated area")),
             },
-            "background" => Ok(p(mean_value(&c.background), "", Range::Positive)),
+            "background" => Ok(p(mean_value(&c.background), None, Range::Positive)),
             _ => unknown("no such condition"),
         };
     }
@@ -263,7 +264,11 @@ pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
             return unknown("a species takes only `initial`");
         };
         return match net.species_index(name) {
-            Some(i) => Ok(p(net.species[i].initial, "M", Range::Positive)),
+            Some(i) => Ok(p(
+                net.species[i].initial,
+                Some(Quantity::Concentration),
+                Range::Positive,
+            )),
             None => unknown(&format!("no species called \"{name}\"")),
         };
     }
@@ -276,14 +281,16 @@ pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
             return unknown(&format!("no light called \"{name}\""));
         };
         return match (field, &l.kind, l.intensity) {
-            ("power", _, Some(Intensity::Power(w))) => Ok(p(w, "W", Range::Positive)),
-            ("power", _, Some(_)) => Ok(p(l.power(), "W", Range::Positive)),
-            ("photon_flux", _, Some(Intensity::PhotonFlux(q))) => Ok(p(q, "einstein/s", Range::Positive)),
-            ("photon_flux", _, Some(_)) => Ok(p(l.photon_flux(), "einstein/s", Range::Positive)),
-            ("wavelength", LightKind::Line { wavelength }, _) => Ok(p(*wavelength, "m", Range::Positive)),
-            ("centre", LightKind::Band { centre, .. }, _) => Ok(p(*centre, "m", Range::Positive)),
-            ("fwhm", LightKind::Band { fwhm, .. }, _) => Ok(p(*fwhm, "m", Range::Positive)),
-            ("scale", LightKind::Sun { scale, .. }, _) => Ok(p(*scale, "", Range::Positive)),
+            ("power", _, Some(Intensity::Power(w))) => Ok(p(w, Some(Quantity::Power), Range::Positive)),
+            ("power", _, Some(_)) => Ok(p(l.power(), Some(Quantity::Power), Range::Positive)),
+            ("photon_flux", _, Some(Intensity::PhotonFlux(q))) => Ok(p(q, Some(Quantity::PhotonFlux), Range::Positive)),
+            ("photon_flux", _, Some(_)) => Ok(p(l.photon_flux(), Some(Quantity::PhotonFlux), Range::Positive)),
+            ("wavelength", LightKind::Line { wavelength }, _) => {
+                Ok(p(*wavelength, Some(Quantity::Length), Range::Positive))
+            }
+            ("centre", LightKind::Band { centre, .. }, _) => Ok(p(*centre, Some(Quantity::Length), Range::Positive)),
+            ("fwhm", LightKind::Band { fwhm, .. }, _) => Ok(p(*fwhm, Some(Quantity::Length), Range::Positive)),
+            ("scale", LightKind::Sun { scale, .. }, _) => Ok(p(*scale, None, Range::Positive)),
             _ => Err(format!("{key}: `{field}` does not apply to the light \"{name}\"")),
         };
     }
@@ -296,7 +303,7 @@ pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
         };
         return match (field, &s.outcome) {
             ("quantum_yield", PhotoOutcome::Products(_)) | ("efficiency", PhotoOutcome::Transient(_)) => {
-                Ok(p(mean_value(&s.quantum_yield), "", Range::Fraction))
+                Ok(p(mean_value(&s.quantum_yield), None, Range::Fraction))
             }
             ("quantum_yield", _) => Err(format!(
                 "{key}: \"{name}\" is a long-form step; set photo.{name}.efficiency or the transient's channels"
@@ -353,7 +360,7 @@ pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
             ));
         };
         return match (field, &ch.branching) {
-            ("fraction", Branching::Fraction(x)) => Ok(p(*x, "", Range::Fraction)),
+            ("fraction", Branching::Fraction(x)) => Ok(p(*x, None, Range::Fraction)),
             ("fraction", Branching::Rest) => Err(format!(
                 "{key}: this channel takes the rest; set the fractions of the other channels"
             )),
@@ -540,6 +547,14 @@ rate = { k = "1e-3 /s" }
             let again = built(&[set.as_str()]).unwrap_or_else(|e| panic!("{set}: {e:?}"));
             let back = parameter(&again, key).unwrap().value;
             assert!((back - v).abs() <= 1e-9 * v.abs(), "{set}: read back {back}");
+            // The unit is the one spelling of the key's quantity, and the value as reports show
+            // it (display unit, e.g. kJ/mol, M⁻¹ s⁻¹) sets the same value.
+            assert_eq!(p.unit, p.quantity.map_or("", units::internal_spelling), "{key}");
+            let (x, u) = units::display::quantity(p.quantity, v);
+            let shown = format!("{key}={x:e} {u}");
+            let again = built(&[shown.trim_end()]).unwrap_or_else(|e| panic!("{shown}: {e:?}"));
+            let back = parameter(&again, key).unwrap().value;
+            assert!((back - v).abs() <= 1e-9 * v.abs(), "{shown}: read back {back}");
         }
     }
 

@@ -18,35 +18,19 @@ pub fn energy(e: f64) -> String {
     format!("{:.2} kJ/mol ({:.2} kcal/mol)", e / 1000.0, e / 4184.0)
 }
 
-/// A duration in s written with a readable unit: "150 fs", "3.2 ps", "1.00 h", "2.1e3 yr".
+/// A duration in s written with a readable unit (`units::display::time`): "150.000 fs",
+/// "1.000 h", "2.10e4 yr"; "never" when infinite.
 pub fn duration(t: f64) -> String {
     if !t.is_finite() {
         return "never".into();
     }
-    const UNITS: [(f64, &str); 11] = [
-        (365.25 * 86400.0, "yr"),
-        (86400.0, "d"),
-        (3600.0, "h"),
-        (60.0, "min"),
-        (1.0, "s"),
-        (1e-3, "ms"),
-        (1e-6, "µs"),
-        (1e-9, "ns"),
-        (1e-12, "ps"),
-        (1e-15, "fs"),
-        (1e-18, "as"),
-    ];
-    for (scale, name) in UNITS {
-        if t >= scale {
-            let v = t / scale;
-            return if v >= 1e4 {
-                format!("{v:.2e} {name}")
-            } else {
-                format!("{v:.3} {name}")
-            };
-        }
+    let (scale, name) = crate::units::display::time(t);
+    let v = t / scale;
+    if v.abs() >= 1e4 || (v != 0.0 && v.abs() < 1e-3) {
+        format!("{v:.2e} {name}")
+    } else {
+        format!("{v:.3} {name}")
     }
-    format!("{t:.3e} s")
 }
 
 /// The verdict table of a network.
@@ -299,5 +283,7 @@ mod tests {
         assert_eq!(duration(150e-15), "150.000 fs");
         assert_eq!(duration(3600.0), "1.000 h");
         assert_eq!(duration(f64::INFINITY), "never");
+        assert_eq!(duration(5400.0), "1.500 h");
+        assert_eq!(duration(0.0), "0.000 s");
     }
 }

@@ -6,26 +6,15 @@ use crate::file::data::Experiment;
 use crate::fit::mechanism::{Curve, Free};
 use crate::fit::{FitResult, lsq};
 use crate::report::csv_out::{CsvTable, sci};
-use crate::report::simulation::{CAUTIONS, PALETTE, time_unit};
+use crate::report::simulation::{CAUTIONS, PALETTE};
+use crate::units::display::time as time_unit;
 use crate::units::sig;
 use plotters::prelude::*;
 use serde_json::json;
 use std::fmt::Write;
 
-/// A value in a readable unit: (scaled value, unit text).
-pub fn readable(unit: &str, v: f64) -> (f64, String) {
-    let a = v.abs();
-    match unit {
-        "J/mol" => (v / 1000.0, "kJ/mol".into()),
-        "M" if a < 1e-6 && a > 0.0 => (v * 1e9, "nM".into()),
-        "M" if a < 1e-3 && a > 0.0 => (v * 1e6, "µM".into()),
-        "M" if a < 1.0 && a > 0.0 => (v * 1e3, "mM".into()),
-        "m" if a < 1e-5 => (v * 1e9, "nm".into()),
-        "W" if a < 1.0 => (v * 1e3, "mW".into()),
-        "einstein/s" if a < 1e-3 => (v * 1e6, "µeinstein/s".into()),
-        u => (v, u.into()),
-    }
-}
+/// A value in a readable unit: (scaled value, unit text), by `units::display` (the one rule).
+pub use crate::units::display::readable;
 
 /// The value as `--set`/file text in a readable unit, 7 significant figures.
 pub fn value_text(f: &Free, v: f64) -> String {

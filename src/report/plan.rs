@@ -530,15 +530,7 @@ pub fn sweep_svg(network: &str, target: &str, axis: &SweepAxis, points: &[SweepP
         .filter_map(|p| Some((p.value * axis.unit_factor, p.plan.as_ref().ok()?.time?)))
         .collect();
     let longest = times.iter().map(|p| p.1).fold(0.0, f64::max);
-    let (div, unit) = if longest >= 2.0 * 86400.0 {
-        (86400.0, "d")
-    } else if longest >= 7200.0 {
-        (3600.0, "h")
-    } else if longest >= 120.0 {
-        (60.0, "min")
-    } else {
-        (1.0, "s")
-    };
+    let (div, unit) = crate::units::display::time(longest);
     let pts: Vec<(f64, f64)> = times.iter().map(|&(x, t)| (x, t / div)).collect();
     xy_plot(
         &format!("{network}: time to \"{target}\""),

@@ -154,19 +154,6 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
     }
 }
 
-/// Choose a time unit for axes.
-pub(crate) fn time_unit(t_end: f64) -> (f64, &'static str) {
-    if t_end >= 3.0 * 86400.0 {
-        (86400.0, "d")
-    } else if t_end >= 3.0 * 3600.0 {
-        (3600.0, "h")
-    } else if t_end >= 180.0 {
-        (60.0, "min")
-    } else {
-        (1.0, "s")
-    }
-}
-
 pub(crate) const PALETTE: [RGBColor; 10] = [
     RGBColor(31, 119, 180),
     RGBColor(214, 39, 40),
@@ -187,7 +174,7 @@ fn line_plot(title: &str, y_label: &str, times: &[f64], series: &[(String, Vec<f
         let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
         let _ = root.fill(&WHITE);
         let t_end = times.iter().cloned().fold(0.0, f64::max).max(1e-30);
-        let (tu, tname) = time_unit(t_end);
+        let (tu, tname) = crate::units::display::time(t_end);
         let ymax = series.iter().flat_map(|s| s.1.iter()).cloned().fold(0.0, f64::max);
         let (yscale, yunit) = scale_for(ymax, y_label);
         let ytop = if ymax > 0.0 { ymax / yscale * 1.05 } else { 1.0 };
@@ -250,16 +237,11 @@ fn line_plot(title: &str, y_label: &str, times: &[f64], series: &[(String, Vec<f
 /// A scale factor and axis label for values up to `max` of a quantity named `label`
 /// ("concentration" in mol/L, otherwise photons in einstein).
 fn scale_for(max: f64, label: &str) -> (f64, String) {
-    let (name, units) = if label == "concentration" {
-        ("concentration", ["M", "mM", "µM", "nM"])
+    let (name, (f, u)) = if label == "concentration" {
+        ("concentration", crate::units::display::concentration(max))
     } else {
-        ("photons", ["einstein", "millieinstein", "µeinstein", "neinstein"])
+        ("photons", crate::units::display::photons(max))
     };
-    let (f, u) = [(0.5, 1.0), (5e-4, 1e-3), (5e-7, 1e-6)]
-        .iter()
-        .zip(units)
-        .find(|((above, _), _)| max >= *above)
-        .map_or((1e-9, units[3]), |((_, f), u)| (*f, u));
     (f, format!("{name} ({u})"))
 }
 
@@ -318,4 +300,37 @@ pub fn photons_svg(net: &Network, model: &Model, tr: &Trajectory, log_time: bool
         &series,
         log_time,
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::network::overrides::Overrides;
+    use std::path::Path;
+
+    /// A bundled network run for `until` s: (network, model, trajectory).
+    fn run(until: f64) -> (Network, Model, Trajectory) {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("networks/photoswitch.toml");
+        let text = std::fs::read_to_string(&path).expect("bundled network");
+        let loaded = crate::file::parse_text(&path, text).expect("parses");
+        let net = crate::network::build(&loaded, &Overrides::none()).expect("builds");
+        let model = Model::compile(&net);
+        let tr = crate::kinetics::simulate(&model, &crate::kinetics::Options::until(until), &mut |_| {}).expect("runs");
+        (net, model, tr)
+    }
+
+    #[test]
+    fn the_plot_axis_and_the_summary_table_of_one_run_use_the_same_units() {
+        // A 2 h run: the old axis rule (3 h and above for h) drew it in min while the table said h.
+        let (net, model, tr) = run(7200.0);
+        let svg = concentrations_svg(&net, &model, &tr, false);
+        let s = summary(&net, &model, &tr, 1e-6, 1e-12);
+        let table = crate::report::summary::run_summary(&s);
+        assert!(svg.contains("time (h)"), "axis not in h");
+        assert!(table.contains(": 2 h ("), "{table}");
+        // Concentrations: the network table writes the 50 µM start in the axis unit.
+        let start = crate::report::summary::network_summary(&net);
+        assert!(start.contains("50 µM"), "{start}");
+        assert!(svg.contains("concentration (µM)"), "axis not in µM");
+    }
 }

@@ -1,17 +1,27 @@
 //! What `uncertainty` writes: the text summary (quantiles and the parameters that drive each
 //! output), the samples CSV, one SVG histogram per output and a tornado chart of rank
 //! correlations.
+//!
+//! Text and SVG show values in display units (`units::display`: kJ/mol, M⁻¹ s⁻¹, mM, h); the
+//! CSV and JSON keep the internal (SI) values with their unit named beside them.
 
 use crate::report::csv_out::{CsvTable, opt_sci, sci};
 use crate::report::simulation::CAUTIONS;
 use crate::uncertainty::{OutputSummary, QUANTILES, Record, Summary};
-use crate::units::sig;
+use crate::units::{display, sig};
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 use std::fmt::Write;
 
 fn opt(v: Option<f64>) -> String {
     v.map_or("-".into(), |x| sig(x, 4))
+}
+
+/// The display unit of an output's statistics, picked by the largest of its mean and quantiles
+/// (`units::display`): (internal units per display unit, spelling).
+fn shown_unit(x: &OutputSummary) -> (f64, String) {
+    let values = x.mean.into_iter().chain(x.quantiles.iter().filter_map(|q| q.1));
+    display::readable_unit(&x.column.unit, display::largest(values))
 }
 
 fn with_unit(name: &str, unit: &str) -> String {
@@ -48,7 +58,7 @@ pub fn text(s: &Summary) -> String {
     }
     let _ = writeln!(o, "\n  uncertain values");
     for p in &s.parameters {
-        let _ = writeln!(o, "    {:<46} {}", with_unit(&p.name, &p.unit), p.about);
+        let _ = writeln!(o, "    {:<46} {}", p.name, p.about);
     }
     let _ = write!(o, "\n  {:<40} {:>7} {:>11} {:>11}", "output", "n", "mean", "sd");
     for q in QUANTILES {
@@ -56,16 +66,17 @@ pub fn text(s: &Summary) -> String {
     }
     o.push('\n');
     for x in &s.outputs {
+        let (per, unit) = shown_unit(x);
         let _ = write!(
             o,
             "  {:<40} {:>7} {:>11} {:>11}",
-            with_unit(&x.column.name, &x.column.unit),
+            with_unit(&x.column.name, &unit),
             x.n,
-            opt(x.mean),
-            opt(x.sd)
+            opt(x.mean.map(|v| v / per)),
+            opt(x.sd.map(|v| v / per))
         );
         for (_, v) in &x.quantiles {
-            let _ = write!(o, " {:>11}", opt(*v));
+            let _ = write!(o, " {:>11}", opt(v.map(|v| v / per)));
         }
         o.push('\n');
     }
@@ -136,7 +147,13 @@ pub fn file_stem(name: &str) -> String {
 /// 97.5 % quantiles marked. Positive values spread over more than two decades are binned on a
 /// log scale. Empty string when there are no values.
 pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
-    let v: Vec<f64> = values.iter().copied().filter(|v| v.is_finite()).collect();
+    let (per, unit) = shown_unit(x);
+    let v: Vec<f64> = values
+        .iter()
+        .copied()
+        .filter(|v| v.is_finite())
+        .map(|v| v / per)
+        .collect();
     let mut svg = String::new();
     if v.is_empty() {
         return svg;
@@ -157,7 +174,7 @@ pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
     let ymax = *counts.iter().max().unwrap_or(&1) as f64 * 1.1;
     let x_desc = format!(
         "{}{}",
-        with_unit(&x.column.name, &x.column.unit),
+        with_unit(&x.column.name, &unit),
         if log { " (log scale)" } else { "" }
     );
     {
@@ -189,7 +206,7 @@ pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
                     && (*q == 0.025 || *q == 0.5 || *q == 0.975)
                     && (!log || *val > 0.0)
                 {
-                    let a = tx(*val);
+                    let a = tx(*val / per);
                     chart.draw_series(LineSeries::new([(a, 0.0), (a, ymax)], mark.stroke_width(2)))?;
                 }
             }
@@ -258,4 +275,99 @@ pub fn tornado_svg(title: &str, s: &Summary) -> String {
         let _ = root.present();
     }
     svg
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::uncertainty::{Problem, Settings, Space, spec, summarise};
+    use std::path::Path;
+
+    const NET: &str = r#"
+[about]
+name = "display units (invented)"
+invented = true
+
+[conditions]
+temperature = "298.15 K"
+volume = "1 mL"
+path_length = "1 cm"
+
+[[species]]
+name = "A"
+initial = "2 mM"
+
+[[species]]
+name = "B"
+initial = "0 M"
+product = true
+
+[[thermal]]
+name = "A to B"
+equation = "A -> B"
+rate = { barrier = "90 kJ/mol" }
+
+[[thermal]]
+name = "B to A"
+equation = "B -> A"
+rate = { k = "1e-5 /s" }
+
+[[uncertain]]
+key = "thermal.A to B.barrier"
+normal = "90 kJ/mol ± 1 kJ/mol"
+
+[[uncertain]]
+key = "thermal.B to A.k"
+uniform = ["1e-5 /s", "2e-5 /s"]
+"#;
+
+    fn run() -> (Record, Summary) {
+        let l = crate::file::parse_text(Path::new("t.toml"), NET.to_string()).expect("parses");
+        let space = Space {
+            independent: spec::read(&l).expect("entries read"),
+            ..Space::default()
+        };
+        let settings = Settings {
+            chain: false,
+            until: Some(7200.0),
+            target: None,
+        };
+        let p = Problem::new(&l, vec![], space, settings).expect("problem");
+        let r = p.record(1, 40, 0..40, &|| {});
+        let s = summarise(&r);
+        (r, s)
+    }
+
+    #[test]
+    fn text_shows_display_units_and_json_keeps_si_with_the_unit_named() {
+        let (r, s) = run();
+        let txt = text(&s);
+        // Barrier in kJ/mol, first-order rate constant in s⁻¹, concentrations in mM.
+        assert!(txt.contains("normal(mean 90 kJ/mol, sd 1 kJ/mol)"), "{txt}");
+        assert!(txt.contains("uniform(1.000e-5 s⁻¹, 2.000e-5 s⁻¹)"), "{txt}");
+        assert!(txt.contains("final[B] (mM)"), "{txt}");
+        assert!(txt.contains("final[A] (µM)"), "{txt}");
+        assert!(!txt.contains("(J/mol)") && !txt.contains("(mol/L)"), "{txt}");
+        // JSON: SI values, the unit in the field next to them.
+        let json = serde_json::to_value(&s).unwrap();
+        assert_eq!(json["parameters"][0]["unit"], "J/mol");
+        assert_eq!(json["parameters"][1]["unit"], "/s");
+        let fin = json["outputs"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|o| o["name"] == "final[B]")
+            .unwrap();
+        assert_eq!(fin["unit"], "mol/L");
+        assert!(
+            fin["mean"].as_f64().unwrap() < 2e-3 && fin["mean"].as_f64().unwrap() > 1e-4,
+            "{fin}"
+        );
+        assert!(r.samples[0].values[0] > 8e4, "drawn barrier in J/mol");
+        // The histogram's axis is in the table's unit.
+        let x = s.outputs.iter().find(|o| o.column.name == "final[B]").unwrap();
+        let col = r.header.outputs.iter().position(|c| c.name == "final[B]").unwrap();
+        let v: Vec<f64> = r.samples.iter().filter_map(|s| s.outputs[col]).collect();
+        assert!(histogram_svg("B", x, &v).contains("final[B] (mM)"));
+    }
 }

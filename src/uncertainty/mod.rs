@@ -11,7 +11,8 @@
 //! The file is read once by the caller; each sample rebuilds the network from the text already
 //! parsed ([`crate::network::build`] with overrides), so nothing here touches the disk.
 //! Units: parameter values in their stated units (internal units for `[[uncertain]]` entries,
-//! see [`spec::Parameter::unit`]); outputs as named in [`Output`].
+//! see [`spec::Parameter::unit`]; a key's unit comes from `network::overrides::parameter`);
+//! outputs as named in [`Output`]. Descriptions (`Column::about`) are written in display units.
 
 pub mod fitcov;
 pub mod sampling;
@@ -136,6 +137,8 @@ pub struct Problem<'a> {
     columns: Vec<Column>,
     notes: Vec<String>,
     network_name: String,
+    /// The internal unit of each parameter's values, from `network::overrides::parameter`.
+    param_units: Vec<String>,
 }
 
 fn fnv1a(bytes: &[u8], mut h: u64) -> u64 {
@@ -182,11 +185,21 @@ impl<'a> Problem<'a> {
             columns: Vec::new(),
             notes: Vec::new(),
             network_name: String::new(),
+            param_units: Vec::new(),
         };
         // The network as given (with --set) must be valid before anything is drawn.
         let net0 = crate::network::build(loaded, &p.overrides(&[], &[]))?;
         p.network_name = net0.about.name.clone();
         let params: Vec<spec::Parameter> = p.space.parameters().into_iter().cloned().collect();
+        // The unit of each key is what `overrides` says it is; values given with a unit of their
+        // own are drawn in that unit (an internal one, see `spec::Parameter::unit`).
+        p.param_units = params
+            .iter()
+            .map(|q| match crate::network::overrides::parameter(&net0, &q.key) {
+                Ok(k) if q.unit.is_empty() => k.unit.to_string(),
+                _ => q.unit.clone(),
+            })
+            .collect();
         let mut diags = Vec::new();
         for q in &params {
             let text = q.override_text(q.distribution.nominal());
@@ -391,14 +404,22 @@ impl<'a> Problem<'a> {
                 .space
                 .parameters()
                 .iter()
-                .map(|p| Column {
-                    name: p.key.clone(),
-                    unit: p.unit.clone(),
-                    about: if p.written.is_empty() {
-                        p.distribution.describe()
-                    } else {
-                        format!("{} (file: {})", p.distribution.describe(), p.written)
-                    },
+                .enumerate()
+                .map(|(i, p)| {
+                    let unit = self.param_units.get(i).cloned().unwrap_or_else(|| p.unit.clone());
+                    // The description in the unit a reader expects (kJ/mol, M⁻¹ s⁻¹, mM); the
+                    // values themselves stay in `unit`.
+                    let (per, shown) = units::display::readable_unit(&unit, p.distribution.nominal().abs());
+                    let about = p.distribution.describe_in(per, &shown);
+                    Column {
+                        name: p.key.clone(),
+                        unit,
+                        about: if p.written.is_empty() {
+                            about
+                        } else {
+                            format!("{about} (file: {})", p.written)
+                        },
+                    }
                 })
                 .collect(),
             outputs: self.columns.clone(),

@@ -66,15 +66,26 @@ impl Distribution {
 
     /// A short description, e.g. "normal(9.8e4, 8.4e3)".
     pub fn describe(&self) -> String {
-        let g = |v: f64| units::sig(v, 4);
+        self.describe_in(1.0, "")
+    }
+
+    /// [`Self::describe`] with every value of the parameter's kind divided by `per_unit` and
+    /// followed by `unit` (a display unit, e.g. 1000 and "kJ/mol"): "normal(mean 95 kJ/mol, sd 5 kJ/mol)".
+    /// Shape numbers (beta's α and β, a lognormal's factor) stay plain.
+    pub fn describe_in(&self, per_unit: f64, unit: &str) -> String {
+        let g = |v: f64| {
+            let x = units::sig(v / per_unit, 4);
+            if unit.is_empty() { x } else { format!("{x} {unit}") }
+        };
+        let n = |v: f64| units::sig(v, 4);
         match *self {
             Distribution::Normal { mean, sd } => format!("normal(mean {}, sd {})", g(mean), g(sd)),
             Distribution::Uniform { low, high } => format!("uniform({}, {})", g(low), g(high)),
             Distribution::Beta { alpha, beta, low, high } => {
-                format!("beta({}, {}) on [{}, {}]", g(alpha), g(beta), g(low), g(high))
+                format!("beta({}, {}) on [{}, {}]", n(alpha), n(beta), g(low), g(high))
             }
             Distribution::LogNormal { median, factor } => {
-                format!("lognormal(median {}, factor {})", g(median), g(factor))
+                format!("lognormal(median {}, factor {})", g(median), n(factor))
             }
             Distribution::FromFit { value, transform } => match transform {
                 Transform::None => format!("fit covariance, best {}", g(value)),
@@ -425,7 +436,7 @@ pub fn read(loaded: &Loaded) -> Result<Vec<Parameter>> {
         let written = written(&loaded.text, e.get_ref());
         out.push(Parameter {
             key,
-            unit: q.map(units::internal_spelling).unwrap_or_default(),
+            unit: q.map(|q| units::internal_spelling(q).to_string()).unwrap_or_default(),
             distribution: dist,
             line,
             written,

@@ -23,6 +23,9 @@
 //! | molar absorption coefficient | L mol⁻¹ m⁻¹ (so that A = ε c l with c in mol/L and l in m) |
 
 pub mod constants;
+pub mod display;
+
+pub use display::{format_concentration, format_time};
 
 use constants::{AVOGADRO, CALORIE, CELSIUS_ZERO, ELEMENTARY_CHARGE, PLANCK, SPEED_OF_LIGHT};
 
@@ -174,6 +177,8 @@ fn base(name: &str) -> Option<Unit> {
         "h" | "hr" | "hour" | "hours" => u(3600.0, TIME),
         "d" | "day" | "days" => u(86400.0, TIME),
         "week" | "weeks" => u(7.0 * 86400.0, TIME),
+        // The Julian year (common practice), as `display` writes long durations.
+        "yr" | "year" | "years" => u(display::YEAR, TIME),
         "mol" => u(1.0, [0, 0, 0, 1, 0, 0]),
         "M" => u(1000.0, CONCENTRATION),
         "L" | "l" => u(1e-3, VOLUME),
@@ -519,24 +524,29 @@ pub fn identify(text: &str) -> Result<(Quantity, f64), UnitError> {
 
 /// A unit spelling that [`parse`] reads as exactly one internal unit of `q`, so that
 /// `format!("{v:e} {}", internal_spelling(q))` writes an internal value back as text.
-pub fn internal_spelling(q: Quantity) -> String {
+///
+/// The one source of these spellings: `--set` values, fit and uncertainty files use it. Rate
+/// constants of order above 8 are spelled as order 8 (the parser reads orders up to 8).
+pub fn internal_spelling(q: Quantity) -> &'static str {
     match q {
-        Quantity::Wavelength | Quantity::Length => "m".into(),
-        Quantity::Area => "m2".into(),
-        Quantity::Volume => "m3".into(),
-        Quantity::Time => "s".into(),
-        Quantity::Temperature => "K".into(),
-        Quantity::Concentration => "M".into(),
-        Quantity::Power => "W".into(),
-        Quantity::PhotonFlux => "einstein/s".into(),
-        Quantity::Irradiance => "W/m2".into(),
-        Quantity::MolarEnergy => "J/mol".into(),
-        Quantity::MolarEntropy => "J/(mol K)".into(),
-        Quantity::RateConstant(0) => "M/s".into(),
-        Quantity::RateConstant(1) => "/s".into(),
-        Quantity::RateConstant(2) => "/(M s)".into(),
-        Quantity::RateConstant(n) => format!("/(M{} s)", n - 1),
-        Quantity::MolarAbsorption => "L/(mol m)".into(),
+        Quantity::Wavelength | Quantity::Length => "m",
+        Quantity::Area => "m2",
+        Quantity::Volume => "m3",
+        Quantity::Time => "s",
+        Quantity::Temperature => "K",
+        Quantity::Concentration => "M",
+        Quantity::Power => "W",
+        Quantity::PhotonFlux => "einstein/s",
+        Quantity::Irradiance => "W/m2",
+        Quantity::MolarEnergy => "J/mol",
+        Quantity::MolarEntropy => "J/(mol K)",
+        Quantity::RateConstant(n) => {
+            const RATE: [&str; 9] = [
+                "M/s", "/s", "/(M s)", "/(M2 s)", "/(M3 s)", "/(M4 s)", "/(M5 s)", "/(M6 s)", "/(M7 s)",
+            ];
+            RATE[(n as usize).min(RATE.len() - 1)]
+        }
+        Quantity::MolarAbsorption => "L/(mol m)",
     }
 }
 
@@ -548,45 +558,6 @@ pub fn epsilon_from_per_cm(eps_l_per_mol_cm: f64) -> f64 {
 /// Convert an internal molar absorption coefficient (L mol⁻¹ m⁻¹) to L mol⁻¹ cm⁻¹ for display.
 pub fn epsilon_to_per_cm(eps_l_per_mol_m: f64) -> f64 {
     eps_l_per_mol_m / 100.0
-}
-
-/// Format a duration in s with a unit a person reads easily ("3.2 h", "45 ms").
-pub fn format_time(t: f64) -> String {
-    let (v, u) = if t >= 86400.0 * 2.0 {
-        (t / 86400.0, "d")
-    } else if t >= 7200.0 {
-        (t / 3600.0, "h")
-    } else if t >= 120.0 {
-        (t / 60.0, "min")
-    } else if t >= 1.0 || t == 0.0 {
-        (t, "s")
-    } else if t >= 1e-3 {
-        (t * 1e3, "ms")
-    } else if t >= 1e-6 {
-        (t * 1e6, "µs")
-    } else if t >= 1e-9 {
-        (t * 1e9, "ns")
-    } else if t >= 1e-12 {
-        (t * 1e12, "ps")
-    } else {
-        (t * 1e15, "fs")
-    };
-    format!("{} {u}", sig(v, 3))
-}
-
-/// Format a concentration in mol/L with a suitable prefix ("10 mM", "2.5 µM").
-pub fn format_concentration(c: f64) -> String {
-    let a = c.abs();
-    let (v, u) = if a >= 1.0 || a == 0.0 {
-        (c, "M")
-    } else if a >= 1e-3 {
-        (c * 1e3, "mM")
-    } else if a >= 1e-6 {
-        (c * 1e6, "µM")
-    } else {
-        (c * 1e9, "nM")
-    };
-    format!("{} {u}", sig(v, 3))
 }
 
 /// `v` rounded to `n` significant figures, without trailing zeros, in plain or e-notation.
@@ -620,6 +591,14 @@ mod tests {
         assert_eq!(identify("23.5 kcal/mol").map(|x| x.0), Ok(Quantity::MolarEnergy));
         assert!(identify("3 furlongs").is_err());
         assert!(identify("3").is_err());
+        // Every order the parser reads back from its spelling, 0..=4 in particular.
+        for n in 0..=8 {
+            let q = Quantity::RateConstant(n);
+            let v = parse(&format!("7 {}", internal_spelling(q)), q).unwrap_or_else(|e| panic!("order {n}: {e}"));
+            assert!((v - 7.0).abs() < 1e-12, "order {n}: {v}");
+        }
+        assert_eq!(internal_spelling(Quantity::RateConstant(0)), "M/s");
+        assert_eq!(internal_spelling(Quantity::RateConstant(4)), "/(M3 s)");
     }
 
     use super::*;
@@ -720,7 +699,7 @@ mod tests {
         assert_eq!(sig(1200.0, 3), "1200");
         assert_eq!(sig(0.000_123_4, 2), "0.00012");
         assert_eq!(sig(1.5e-9, 2), "1.5e-9");
-        assert_eq!(format_time(5400.0), "90 min");
+        assert_eq!(format_time(5400.0), "1.5 h");
         assert_eq!(format_concentration(0.01), "10 mM");
     }
 }

@@ -188,20 +188,13 @@ fn num(v: f64) -> String {
     }
 }
 
-/// The unit of a rate constant of molecularity `order`, in mol/L and seconds.
-fn rate_unit(order: u32) -> String {
-    match order {
-        0 => "M/s".into(),
-        1 => "/s".into(),
-        2 => "/(M s)".into(),
-        3 => "/(M² s)".into(),
-        n => format!("/(M^{} s)", n - 1),
-    }
-}
-
-/// "k = 3.7e-5 /s", then "ΔG‡ 23.5 kcal/mol" for an Eyring law or "Ea …" for Arrhenius.
+/// "k = 3.7e-5 s⁻¹", then "ΔG‡ 23.5 kcal/mol" for an Eyring law or "Ea …" for Arrhenius.
 fn rate_lines(law: &RateLaw, k: f64, order: u32, temperature: f64) -> Vec<String> {
-    let mut out = vec![format!("k = {} {}", num(k), rate_unit(order))];
+    let mut out = vec![format!(
+        "k = {} {}",
+        num(k),
+        crate::units::display::rate_constant(order)
+    )];
     let kcal = |j: f64| sig(j / (1000.0 * CALORIE), 3);
     match *law {
         RateLaw::EyringFree { .. } | RateLaw::EyringEnthalpy { .. } => {
@@ -426,7 +419,6 @@ range = ["280 nm", "400 nm"]
         assert_eq!(num(1e10), "1e10");
         assert_eq!(num(0.5), "0.5");
         assert_eq!(num(250000.0), "2.5e5");
-        assert_eq!(rate_unit(2), "/(M s)");
     }
 
     #[test]
@@ -439,14 +431,14 @@ range = ["280 nm", "400 nm"]
             .flat_map(|i| i.lines.iter().map(String::as_str))
             .collect();
         for want in [
-            "k = 2.5e5 /s",
-            "k = 5e8 /s",
+            "k = 2.5e5 s⁻¹",
+            "k = 5e8 s⁻¹",
             "Φ 0.40–0.50",
             "efficiency 0.95",
             "fraction 0.30",
             "rest",
             "quenched by O2",
-            "k = 2e9 /(M s)",
+            "k = 2e9 M⁻¹ s⁻¹",
             "return",
             "280–400 nm",
         ] {

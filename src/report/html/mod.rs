@@ -83,41 +83,9 @@ pub fn render(net: &Network, model: &Model, study: &Study, meta: &Meta) -> Strin
     page::document(&title, &body)
 }
 
-/// A factor and unit name for showing values up to `max` from a `ladder` of (factor, unit),
-/// largest first: the first whose factor `max` reaches, else the last.
-pub fn pick_unit(max: f64, ladder: &[(f64, &'static str)]) -> (f64, &'static str) {
-    ladder
-        .iter()
-        .copied()
-        .find(|(f, _)| max.abs() >= *f)
-        .or_else(|| ladder.last().copied())
-        .unwrap_or((1.0, ""))
-}
-
-/// Photon amounts.
-pub const EINSTEIN: [(f64, &str); 5] = [
-    (1.0, "einstein"),
-    (1e-3, "meinstein"),
-    (1e-6, "µeinstein"),
-    (1e-9, "neinstein"),
-    (1e-12, "peinstein"),
-];
-/// Concentrations (from mol/L).
-pub const CONCENTRATION: [(f64, &str); 5] = [(1.0, "M"), (1e-3, "mM"), (1e-6, "µM"), (1e-9, "nM"), (1e-12, "pM")];
-/// Powers (from W).
-pub const POWER: [(f64, &str); 4] = [(1.0, "W"), (1e-3, "mW"), (1e-6, "µW"), (1e-9, "nW")];
-/// Times (from s).
-pub const TIME: [(f64, &str); 9] = [
-    (86_400.0, "d"),
-    (3600.0, "h"),
-    (60.0, "min"),
-    (1.0, "s"),
-    (1e-3, "ms"),
-    (1e-6, "µs"),
-    (1e-9, "ns"),
-    (1e-12, "ps"),
-    (1e-15, "fs"),
-];
+/// The unit ladders and the one rule for picking from them (the largest unit in which the
+/// largest value is at least 1) live in `units::display`; the sections use them from here.
+pub use crate::units::display::{CONCENTRATION, EINSTEIN, POWER, TIME, pick as pick_unit};
 
 /// `v` with `n` significant figures, or "—" for none.
 pub fn sig_or_dash(v: Option<f64>, n: usize) -> String {

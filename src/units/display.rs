@@ -1,0 +1,311 @@
+//! Display units: the one place that decides in which unit a value is shown.
+//!
+//! **The rule.** A value is shown in the largest unit of its ladder in which its magnitude is at
+//! least 1 ("5400 s" is "1.5 h", "5e-5 M" is "50 µM"); a magnitude below the smallest unit uses
+//! the smallest unit. Zero, NaN and infinite values use the ladder's internal unit (s, M, W,
+//! einstein). A set of values shown together (a plot axis, a table column, a histogram) uses the
+//! unit of its largest finite magnitude ([`largest`]), so a plot and a table of the same run pick
+//! the same unit. The sign never changes the choice.
+//!
+//! Every spelling here reads back with [`super::parse`] (tested), so a displayed value can be
+//! pasted into a network file or a `--set` value.
+
+use super::{Quantity, sig};
+
+/// A ladder of (how many internal units one display unit is, its spelling), largest first.
+pub type Ladder = [(f64, &'static str)];
+
+/// The Julian year, 365.25 d, in s (common practice for "yr").
+pub const YEAR: f64 = 365.25 * 86_400.0;
+
+/// Durations (from s).
+pub const TIME: [(f64, &str); 10] = [
+    (YEAR, "yr"),
+    (86_400.0, "d"),
+    (3600.0, "h"),
+    (60.0, "min"),
+    (1.0, "s"),
+    (1e-3, "ms"),
+    (1e-6, "µs"),
+    (1e-9, "ns"),
+    (1e-12, "ps"),
+    (1e-15, "fs"),
+];
+
+/// Concentrations (from mol/L).
+pub const CONCENTRATION: [(f64, &str); 5] = [(1.0, "M"), (1e-3, "mM"), (1e-6, "µM"), (1e-9, "nM"), (1e-12, "pM")];
+
+/// Photon amounts (from einstein, mol of photons).
+pub const EINSTEIN: [(f64, &str); 5] = [
+    (1.0, "einstein"),
+    (1e-3, "meinstein"),
+    (1e-6, "µeinstein"),
+    (1e-9, "neinstein"),
+    (1e-12, "peinstein"),
+];
+
+/// Photon fluxes (from einstein/s).
+pub const PHOTON_FLUX: [(f64, &str); 5] = [
+    (1.0, "einstein/s"),
+    (1e-3, "meinstein/s"),
+    (1e-6, "µeinstein/s"),
+    (1e-9, "neinstein/s"),
+    (1e-12, "peinstein/s"),
+];
+
+/// Radiant powers (from W).
+pub const POWER: [(f64, &str); 4] = [(1.0, "W"), (1e-3, "mW"), (1e-6, "µW"), (1e-9, "nW")];
+
+/// The unit of `ladder` for `value` by the module's rule: (internal units per display unit,
+/// spelling). Divide the value by the first to show it in the second.
+pub fn pick(value: f64, ladder: &Ladder) -> (f64, &'static str) {
+    let a = value.abs();
+    if a == 0.0 || !a.is_finite() {
+        return ladder
+            .iter()
+            .copied()
+            .find(|(f, _)| *f == 1.0)
+            .or_else(|| ladder.last().copied())
+            .unwrap_or((1.0, ""));
+    }
+    ladder
+        .iter()
+        .copied()
+        .find(|(f, _)| a >= *f)
+        .or_else(|| ladder.last().copied())
+        .unwrap_or((1.0, ""))
+}
+
+/// The largest finite magnitude of `values` (0 when there is none): what a set of values shown
+/// together picks its unit by.
+pub fn largest(values: impl IntoIterator<Item = f64>) -> f64 {
+    values
+        .into_iter()
+        .filter(|v| v.is_finite())
+        .fold(0.0, |m, v| m.max(v.abs()))
+}
+
+/// The display unit of a duration in s: (s per unit, spelling), e.g. `time(7200.0) == (3600.0, "h")`.
+pub fn time(seconds: f64) -> (f64, &'static str) {
+    pick(seconds, &TIME)
+}
+
+/// The display unit of a concentration in mol/L, e.g. `concentration(5e-5) == (1e-6, "µM")`.
+pub fn concentration(mol_per_l: f64) -> (f64, &'static str) {
+    pick(mol_per_l, &CONCENTRATION)
+}
+
+/// The display unit of a photon amount in einstein.
+pub fn photons(einstein: f64) -> (f64, &'static str) {
+    pick(einstein, &EINSTEIN)
+}
+
+/// The display unit of a radiant power in W.
+pub fn power(watt: f64) -> (f64, &'static str) {
+    pick(watt, &POWER)
+}
+
+/// `value` (internal unit of `ladder`) in its display unit with 3 significant figures,
+/// trailing zeros dropped: "1.5 h", "10 mM", "0 s", "NaN s".
+pub fn format(value: f64, ladder: &Ladder) -> String {
+    let (f, u) = pick(value, ladder);
+    format!("{} {u}", sig(value / f, 3))
+}
+
+/// A duration in s for reading: "1.5 h", "45 ms" (see [`format`]).
+pub fn format_time(seconds: f64) -> String {
+    format(seconds, &TIME)
+}
+
+/// A concentration in mol/L for reading: "10 mM", "2.5 µM" (see [`format`]).
+pub fn format_concentration(mol_per_l: f64) -> String {
+    format(mol_per_l, &CONCENTRATION)
+}
+
+/// The unit of a rate constant of reaction order `order` for display, with superscripts:
+/// "M s⁻¹" (order 0), "s⁻¹", "M⁻¹ s⁻¹", "M⁻² s⁻¹", ... The value is the internal one
+/// ((L/mol)^(order−1) s⁻¹, see [`super::internal_spelling`]): no factor to apply.
+pub fn rate_constant(order: u32) -> &'static str {
+    const SPELLINGS: [&str; 9] = [
+        "M s⁻¹",
+        "s⁻¹",
+        "M⁻¹ s⁻¹",
+        "M⁻² s⁻¹",
+        "M⁻³ s⁻¹",
+        "M⁻⁴ s⁻¹",
+        "M⁻⁵ s⁻¹",
+        "M⁻⁶ s⁻¹",
+        "M⁻⁷ s⁻¹",
+    ];
+    SPELLINGS[(order as usize).min(SPELLINGS.len() - 1)]
+}
+
+/// The display unit of quantity `q` (None: a plain number) for values of magnitude up to
+/// `magnitude` in the internal unit: (internal units per display unit, spelling; "" for a plain
+/// number). Divide a value by the first to show it in the second.
+///
+/// Energies in kJ/mol, entropies in J/(mol K), rate constants by order ([`rate_constant`]),
+/// lengths and wavelengths below 10 µm in nm (the trade's unit for light) and otherwise in m,
+/// molar absorption coefficients in L mol⁻¹ cm⁻¹ (common practice); durations, concentrations,
+/// powers and photon fluxes by their ladders and the module's rule.
+pub fn unit(q: Option<Quantity>, magnitude: f64) -> (f64, String) {
+    let from = |ladder: &Ladder| {
+        let (f, u) = pick(magnitude, ladder);
+        (f, u.to_string())
+    };
+    match q {
+        None => (1.0, String::new()),
+        Some(Quantity::MolarEnergy) => (1000.0, "kJ/mol".into()),
+        Some(Quantity::RateConstant(n)) => (1.0, rate_constant(n).into()),
+        Some(Quantity::Wavelength | Quantity::Length) if magnitude.abs() < 1e-5 => (1e-9, "nm".into()),
+        Some(Quantity::Time) => from(&TIME),
+        Some(Quantity::Concentration) => from(&CONCENTRATION),
+        Some(Quantity::Power) => from(&POWER),
+        Some(Quantity::PhotonFlux) => from(&PHOTON_FLUX),
+        Some(Quantity::MolarAbsorption) => (super::epsilon_from_per_cm(1.0), "L/(mol cm)".into()),
+        Some(q) => (1.0, super::internal_spelling(q).into()),
+    }
+}
+
+/// A value of quantity `q` given in the internal unit, in its display unit ([`unit`]):
+/// (value in the display unit, spelling).
+pub fn quantity(q: Option<Quantity>, v: f64) -> (f64, String) {
+    let (f, u) = unit(q, v);
+    (v / f, u)
+}
+
+/// The quantity whose internal unit `unit` spells: [`super::internal_spelling`] ("J/mol",
+/// "/(M s)", "M", ...) or any other spelling of exactly one internal unit ("mol/L", "L/(mol s)").
+/// `None` for "" (a plain number) and for anything else.
+pub fn quantity_of_spelling(unit: &str) -> Option<Quantity> {
+    let unit = unit.trim();
+    if unit.is_empty() {
+        return None;
+    }
+    if let Some(q) = super::ALL.into_iter().find(|q| super::internal_spelling(*q) == unit) {
+        return Some(q);
+    }
+    match super::identify(&format!("1 {unit}")) {
+        Ok((q, v)) if (v - 1.0).abs() < 1e-12 => Some(q),
+        _ => None,
+    }
+}
+
+/// [`unit`] for values whose internal unit is spelled `spelling` ("" for a plain number); a
+/// spelling of no internal unit is kept as it is, with factor 1.
+pub fn readable_unit(spelling: &str, magnitude: f64) -> (f64, String) {
+    match quantity_of_spelling(spelling) {
+        Some(q) => unit(Some(q), magnitude),
+        None => (1.0, spelling.trim().to_string()),
+    }
+}
+
+/// [`quantity`] for a value whose internal unit is spelled `spelling` (see [`readable_unit`]).
+pub fn readable(spelling: &str, v: f64) -> (f64, String) {
+    let (f, u) = readable_unit(spelling, v);
+    (v / f, u)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::super::{ALL, parse};
+    use super::*;
+
+    #[test]
+    fn the_largest_unit_with_a_value_of_at_least_one() {
+        assert_eq!(time(7200.0), (3600.0, "h"));
+        assert_eq!(time(3600.0), (3600.0, "h"));
+        assert_eq!(time(3599.0), (60.0, "min"));
+        assert_eq!(time(5400.0), (3600.0, "h"));
+        assert_eq!(time(59.0), (1.0, "s"));
+        assert_eq!(time(2.0 * YEAR), (YEAR, "yr"));
+        assert_eq!(time(150e-15), (1e-15, "fs"));
+        assert_eq!(time(1e-20), (1e-15, "fs"));
+        assert_eq!(concentration(5e-5), (1e-6, "µM"));
+        assert_eq!(concentration(1e-3), (1e-3, "mM"));
+        assert_eq!(concentration(55.3), (1.0, "M"));
+        assert_eq!(concentration(1e-20), (1e-12, "pM"));
+        assert_eq!(photons(2.5e-4), (1e-6, "µeinstein"));
+        assert_eq!(power(0.05), (1e-3, "mW"));
+        assert_eq!(format_time(5400.0), "1.5 h");
+        assert_eq!(format_time(7200.0), "2 h");
+        assert_eq!(format_time(0.045), "45 ms");
+        assert_eq!(format_concentration(0.01), "10 mM");
+        assert_eq!(format_concentration(2.5e-6), "2.5 µM");
+    }
+
+    #[test]
+    fn zero_negative_nan_and_infinite_values_do_not_panic() {
+        assert_eq!(time(0.0), (1.0, "s"));
+        assert_eq!(time(f64::NAN), (1.0, "s"));
+        assert_eq!(time(f64::INFINITY), (1.0, "s"));
+        assert_eq!(concentration(f64::NEG_INFINITY), (1.0, "M"));
+        assert_eq!(concentration(-5e-5), (1e-6, "µM"));
+        assert_eq!(format_time(0.0), "0 s");
+        assert_eq!(format_time(-7200.0), "-2 h");
+        assert_eq!(format_time(f64::NAN), "NaN s");
+        assert_eq!(format_concentration(f64::INFINITY), "inf M");
+        assert_eq!(largest([f64::NAN, -3.0, 2.0, f64::INFINITY]), 3.0);
+        assert_eq!(largest([]), 0.0);
+        assert_eq!(pick(1.0, &[]), (1.0, ""));
+    }
+
+    #[test]
+    fn a_plot_axis_and_a_table_of_the_same_values_agree() {
+        // Times of a 2 h run: the axis picks by its largest value, the table writes each value.
+        let times: Vec<f64> = (0..=24).map(|i| i as f64 * 300.0).collect();
+        let axis = time(largest(times.iter().copied()));
+        assert_eq!(axis, (3600.0, "h"));
+        assert!(format_time(*times.last().unwrap()).ends_with(" h"));
+        let conc = [0.01, 4e-3, 2.5e-4];
+        let axis = concentration(largest(conc));
+        assert!(format_concentration(conc[0]).ends_with(axis.1));
+    }
+
+    #[test]
+    fn every_spelling_reads_back_with_its_factor() {
+        let ladders: [(&Ladder, Quantity); 4] = [
+            (&TIME, Quantity::Time),
+            (&CONCENTRATION, Quantity::Concentration),
+            (&POWER, Quantity::Power),
+            (&PHOTON_FLUX, Quantity::PhotonFlux),
+        ];
+        for (ladder, q) in ladders {
+            for (f, u) in ladder {
+                let v = parse(&format!("2 {u}"), q).unwrap_or_else(|e| panic!("{u}: {e}"));
+                assert!((v - 2.0 * f).abs() <= 1e-12 * 2.0 * f, "{u}: {v}");
+            }
+        }
+        for order in 0..=4 {
+            let q = Quantity::RateConstant(order);
+            let v = parse(&format!("3 {}", rate_constant(order)), q).unwrap_or_else(|e| panic!("{order}: {e}"));
+            assert!((v - 3.0).abs() < 1e-12, "order {order}: {v}");
+        }
+        for q in ALL {
+            let (x, u) = quantity(Some(q), 2.5e-3);
+            let text = if u.is_empty() {
+                format!("{x}")
+            } else {
+                format!("{x} {u}")
+            };
+            let v = parse(&text, q).unwrap_or_else(|e| panic!("{text}: {e}"));
+            assert!((v - 2.5e-3).abs() <= 1e-9 * 2.5e-3, "{text} -> {v}");
+        }
+    }
+
+    #[test]
+    fn internal_spellings_map_to_display_units() {
+        assert_eq!(readable("J/mol", 95_000.0), (95.0, "kJ/mol".into()));
+        assert_eq!(readable("/(M s)", 3e7), (3e7, "M⁻¹ s⁻¹".into()));
+        assert_eq!(readable("/s", 0.04), (0.04, "s⁻¹".into()));
+        assert_eq!(readable("M", 0.002), (2.0, "mM".into()));
+        assert_eq!(readable("", 0.3), (0.3, String::new()));
+        assert_eq!(readable("furlong", 2.0), (2.0, "furlong".into()));
+        assert_eq!(quantity_of_spelling("M/s"), Some(Quantity::RateConstant(0)));
+        assert_eq!(quantity_of_spelling("/(M3 s)"), Some(Quantity::RateConstant(4)));
+        assert_eq!(quantity_of_spelling("mol/L"), Some(Quantity::Concentration));
+        assert_eq!(quantity_of_spelling("mM"), None);
+        assert_eq!(readable_unit("mol/L", 2e-3), (1e-3, "mM".into()));
+        assert_eq!(readable("s", 7200.0), (2.0, "h".into()));
+    }
+}
