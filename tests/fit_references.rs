@@ -179,9 +179,13 @@ fn keys() -> Vec<String> {
 }
 
 fn fit_on(net: &str, experiments: &[Experiment]) -> FitResult {
+    fit_with(net, experiments, &FitOptions::default())
+}
+
+fn fit_with(net: &str, experiments: &[Experiment], opts: &FitOptions) -> FitResult {
     let loaded = photoledger::file::load(Path::new(net)).unwrap();
     let setup = Setup::new(&loaded, vec![], experiments, &keys(), Accuracy::default()).unwrap();
-    mechanism::fit(&setup, &FitOptions::default(), &|| {}).unwrap()
+    mechanism::fit(&setup, opts, &|| {}).unwrap()
 }
 
 fn synthetic(seed: u64) -> Vec<Experiment> {
@@ -319,26 +323,46 @@ fn scipy_least_squares_agrees_on_the_demo_fit() {
         .collect();
     let num = |r: usize, c: usize| rows[r][c].parse::<f64>().unwrap();
     let experiments = demo();
+    // Every demo observation has an sd: by default taken as known, so the standard errors are
+    // SciPy's unscaled (JᵀJ)⁻¹ ones (column 3, curve_fit's absolute_sigma=True); with
+    // scale_errors they are the ones scaled by the reduced χ² (column 2).
     let r = fit_on(NET, &experiments);
+    assert_eq!(r.errors, mechanism::ErrorBasis::KnownSd);
+    let scaled = fit_with(
+        NET,
+        &experiments,
+        &FitOptions {
+            scale_errors: true,
+            ..FitOptions::default()
+        },
+    );
+    assert_eq!(scaled.errors, mechanism::ErrorBasis::ScaledOnRequest);
+    for (fit, col, what) in [(&r, 3, "sd known"), (&scaled, 2, "scaled")] {
+        let s = &fit.solution;
+        assert!(
+            rel(s.standard_errors[0], num(0, col)) < 1e-2,
+            "{what}: se Φ {} vs {}",
+            s.standard_errors[0],
+            num(0, col)
+        );
+        assert!(
+            rel(s.standard_errors[1], num(1, col)) < 1e-2,
+            "{what}: se ΔG‡ {} vs {}",
+            s.standard_errors[1],
+            num(1, col)
+        );
+    }
+    // The same optimum either way; only the covariance differs, by the reduced χ².
+    assert_eq!(scaled.solution.values, r.solution.values);
     let s = &r.solution;
+    let ratio = scaled.solution.standard_errors[0] / s.standard_errors[0];
+    assert!(rel(ratio, s.reduced_chi2.sqrt()) < 1e-9, "{ratio}");
     assert!(rel(s.values[0], num(0, 1)) < 1e-5, "Φ {} vs {}", s.values[0], num(0, 1));
     assert!(
         rel(s.values[1], num(1, 1)) < 1e-6,
         "ΔG‡ {} vs {}",
         s.values[1],
         num(1, 1)
-    );
-    assert!(
-        rel(s.standard_errors[0], num(0, 2)) < 1e-2,
-        "se Φ {} vs {}",
-        s.standard_errors[0],
-        num(0, 2)
-    );
-    assert!(
-        rel(s.standard_errors[1], num(1, 2)) < 1e-2,
-        "se ΔG‡ {} vs {}",
-        s.standard_errors[1],
-        num(1, 2)
     );
     assert!(rel(s.chi2, num(2, 1)) < 1e-5, "χ² {} vs {}", s.chi2, num(2, 1));
 }
@@ -409,6 +433,23 @@ fn fit_and_compare_through_the_binary() {
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     let j: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(j["parameters"].as_array().unwrap().len(), 2);
+    // Every demo observation has an sd: unscaled by default, scaled with --scale-errors.
+    assert_eq!(j["standard_errors_scaled"], false);
+    let summary = std::fs::read_to_string(out.join("summary.txt")).unwrap();
+    assert!(summary.contains("not scaled by the reduced χ²"), "{summary}");
+    let scaled = dir.join("scaled");
+    let o = run(&[
+        "fit",
+        NET,
+        "--data",
+        EXPERIMENTS,
+        "--out",
+        scaled.to_str().unwrap(),
+        "--scale-errors",
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(text.contains("scaled by the reduced χ², as asked (--scale-errors)"), "{text}");
     for f in [
         "summary.txt",
         "fit.json",

@@ -1,7 +1,7 @@
 //! Fitting a network's parameters to experiments: each evaluation applies the parameter values
 //! as `--set` overrides, builds and compiles the network, and integrates it to the data times.
 
-use super::lsq::{self, Identifiability, Settings, Solution, Transform};
+use super::lsq::{self, ErrorScale, Identifiability, Settings, Solution, Transform};
 use crate::error::{Diagnostic, Error, Result};
 use crate::file::Loaded;
 use crate::file::data::{EndpointKind, Experiment};
@@ -347,8 +347,12 @@ pub struct FitOptions {
     /// Seed of the random starts (each start has its own stream, so results do not depend on
     /// the number of threads).
     pub seed: u64,
-    /// Least-squares settings.
+    /// Least-squares settings (their `errors` field is set by the fit from the data and
+    /// `scale_errors`).
     pub settings: Settings,
+    /// Scale the standard errors by the reduced χ² even when every observation has an sd
+    /// (by default given sd are taken as known and the covariance is left unscaled).
+    pub scale_errors: bool,
 }
 
 impl Default for FitOptions {
@@ -362,7 +366,54 @@ impl Default for FitOptions {
                 gtol: 1e-10,
                 patience: 100,
                 step: 1e-4,
+                errors: ErrorScale::ReducedChi2,
             },
+            scale_errors: false,
+        }
+    }
+}
+
+/// Why the standard errors are, or are not, scaled by the reduced χ².
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ErrorBasis {
+    /// Every observation has an sd, taken as known: covariance (JᵀJ)⁻¹ unscaled.
+    KnownSd,
+    /// Every observation has an sd, and scaling by the reduced χ² was asked for.
+    ScaledOnRequest,
+    /// Some observations have no sd: σ is estimated from the scatter, covariance × reduced χ².
+    EstimatedSd,
+}
+
+impl ErrorBasis {
+    /// The basis for data that are `weighted` (every observation has an sd) with `scale_errors`.
+    pub fn choose(weighted: bool, scale_errors: bool) -> Self {
+        match (weighted, scale_errors) {
+            (false, _) => ErrorBasis::EstimatedSd,
+            (true, true) => ErrorBasis::ScaledOnRequest,
+            (true, false) => ErrorBasis::KnownSd,
+        }
+    }
+
+    /// How the least-squares core scales the covariance.
+    pub fn scale(self) -> ErrorScale {
+        match self {
+            ErrorBasis::KnownSd => ErrorScale::Unscaled,
+            _ => ErrorScale::ReducedChi2,
+        }
+    }
+
+    /// What was done and why, in words.
+    pub fn describe(self) -> &'static str {
+        match self {
+            ErrorBasis::KnownSd => {
+                "standard errors not scaled by the reduced χ²: every observation has an sd, taken as known                  (intervals with the normal 97.5 % point; --scale-errors scales them)"
+            }
+            ErrorBasis::ScaledOnRequest => {
+                "standard errors scaled by the reduced χ², as asked (--scale-errors), though every observation                  has an sd (intervals with Student t, n − p degrees of freedom)"
+            }
+            ErrorBasis::EstimatedSd => {
+                "standard errors scaled by the reduced χ²: some observations have no sd, so σ is estimated from                  the scatter (intervals with Student t, n − p degrees of freedom)"
+            }
         }
     }
 }
@@ -391,6 +442,8 @@ pub struct FitResult {
     pub n: usize,
     /// True when every observation had a standard deviation.
     pub weighted: bool,
+    /// Whether and why the standard errors are scaled by the reduced χ².
+    pub errors: ErrorBasis,
     /// −2 ln L at the optimum (χ² with given σ; n ln(χ²/n) when σ is estimated).
     pub minus_two_log_likelihood: f64,
     /// Number of estimated quantities (free parameters, plus σ when estimated).
@@ -436,10 +489,17 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn() + Sync)) -> Re
     let transforms = setup.transforms();
     let all = starts(setup, opts);
     let res = |x: &[f64]| setup.residuals(x);
+    let obs = setup.observations();
+    let weighted = obs.iter().all(|o| o.2);
+    let errors = ErrorBasis::choose(weighted, opts.scale_errors);
+    let settings = Settings {
+        errors: errors.scale(),
+        ..opts.settings
+    };
     let outcomes: Vec<std::result::Result<Solution, String>> = all
         .par_iter()
         .map(|x0| {
-            let r = lsq::fit(&res, x0, &transforms, &opts.settings).map_err(|e| e.0);
+            let r = lsq::fit(&res, x0, &transforms, &settings).map_err(|e| e.0);
             progress();
             r
         })
@@ -475,9 +535,7 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn() + Sync)) -> Re
             Identifiability::Loose(i) => format!("{}: the standard error exceeds the value", names[*i]),
         })
         .collect();
-    let obs = setup.observations();
     let n = obs.len();
-    let weighted = obs.iter().all(|o| o.2);
     let p = setup.free.len();
     let (m2ll, k) = if weighted {
         (solution.chi2, p)
@@ -499,6 +557,7 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn() + Sync)) -> Re
         warnings,
         n,
         weighted,
+        errors,
         minus_two_log_likelihood: m2ll,
         k,
         aicc,

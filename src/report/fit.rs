@@ -98,12 +98,8 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
             let _ = writeln!(o, "  {:<w$}  {}", r.free[i].key, row.join("  "));
         }
     }
-    let _ = writeln!(
-        o,
-        "\nχ² = {}, reduced χ² = {} (standard errors are scaled by the reduced χ²)",
-        sig(s.chi2, 6),
-        sig(s.reduced_chi2, 4)
-    );
+    let _ = writeln!(o, "\nχ² = {}, reduced χ² = {}", sig(s.chi2, 6), sig(s.reduced_chi2, 4));
+    let _ = writeln!(o, "{}", r.errors.describe());
     let _ = writeln!(o, "AICc = {}, BIC = {}", sig(r.aicc, 6), sig(r.bic, 6));
     if r.warnings.is_empty() {
         let _ = writeln!(o, "identifiability: no warnings");
@@ -131,7 +127,8 @@ pub fn fit_json(network: &str, r: &FitResult) -> serde_json::Value {
         "weighted": r.weighted, "aicc": r.aicc, "bic": r.bic, "minus_two_log_likelihood": r.minus_two_log_likelihood,
         "warnings": r.warnings, "termination": s.termination,
         "starts": r.starts.iter().map(|x| json!({"start": x.start, "chi2": x.chi2.as_ref().ok(), "failure": x.chi2.as_ref().err()})).collect::<Vec<_>>(),
-        "t_975": lsq::t_quantile(0.975, s.dof),
+        "t_975": lsq::t_quantile(0.975, s.dof), "interval_quantile_975": s.quantile,
+        "standard_errors_scaled": r.errors.scale() == lsq::ErrorScale::ReducedChi2, "standard_errors": r.errors.describe(),
     })
 }
 

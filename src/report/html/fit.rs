@@ -58,10 +58,10 @@ pub fn section(f: &FitStudy) -> String {
     let h: Vec<(&str, bool)> = headers.iter().map(|(t, n)| (t.as_str(), *n)).collect();
     o.push_str(&page::table("Fitted parameters", &h, &rows));
     o.push_str(&format!(
-        "<p>χ² = <strong>{}</strong>, reduced χ² = <strong>{}</strong> (standard errors are scaled by the reduced \
-         χ²); AICc = {}, BIC = {}.{}</p>\n",
+        "<p>χ² = <strong>{}</strong>, reduced χ² = <strong>{}</strong> ({}); AICc = {}, BIC = {}.{}</p>\n",
         esc(&sig(s.chi2, 6)),
         esc(&sig(s.reduced_chi2, 4)),
+        esc(r.errors.describe()),
         esc(&sig(r.aicc, 6)),
         esc(&sig(r.bic, 6)),
         if r.weighted {
