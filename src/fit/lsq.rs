@@ -3,7 +3,8 @@
 //!
 //! Bounds are kept by transformation, never by clipping: a value in [0, 1] is fitted as
 //! z = logit(x), a positive value as z = ln x, anything else as itself. The Jacobian is taken by
-//! central differences on the transformed scale. Standard errors come from (JᵀJ)⁻¹ of the
+//! central differences on the transformed scale; 95 % intervals are taken on that scale and
+//! transformed back, so they keep the range too. Standard errors come from (JᵀJ)⁻¹ of the
 //! weighted residuals at the optimum in the natural parameters, either as they are (σ known:
 //! [`ErrorScale::Unscaled`]) or scaled by the reduced χ² (σ estimated from the scatter:
 //! [`ErrorScale::ReducedChi2`], the default of [`Settings`]; it is what the NIST StRD certified
@@ -67,6 +68,15 @@ impl Transform {
                 let x = self.inverse(z);
                 x * (1.0 - x)
             }
+        }
+    }
+
+    /// The name of the fitting scale: "natural", "log" or "logit".
+    pub fn scale_name(self) -> &'static str {
+        match self {
+            Transform::Identity => "natural",
+            Transform::Log => "log",
+            Transform::Logistic => "logit",
         }
     }
 
@@ -151,7 +161,9 @@ pub struct Solution {
     /// The 97.5 % quantile the intervals use: Student t with dof degrees of freedom when scaled,
     /// the normal one when unscaled.
     pub quantile: f64,
-    /// 95 % intervals value ± quantile × se.
+    /// 95 % intervals, computed on the fitting scale and transformed back (so they stay inside
+    /// the range): [x(z − q se_z), x(z + q se_z)] with se_z = se / |dx/dz|, q = `quantile`. For an
+    /// untransformed parameter this is value ± q × se.
     pub intervals: Vec<(f64, f64)>,
     /// Correlation matrix.
     pub correlation: DMatrix<f64>,
@@ -326,10 +338,14 @@ fn statistics(
         ErrorScale::ReducedChi2 => t_quantile(0.975, dof),
         ErrorScale::Unscaled => normal_quantile(0.975),
     };
-    let intervals = values
-        .iter()
-        .zip(&standard_errors)
-        .map(|(v, s)| (v - quantile * s, v + quantile * s))
+    // On the fitting scale: the standard error of z by the same delta method, se_z = se / |dx/dz|.
+    let intervals = (0..p)
+        .map(|j| {
+            let t = transforms[j];
+            let half = quantile * standard_errors[j] / t.slope(z[j]).abs();
+            let (a, b) = (t.inverse(z[j] - half), t.inverse(z[j] + half));
+            (a.min(b), a.max(b))
+        })
         .collect();
     Ok(Solution {
         values,
@@ -474,8 +490,42 @@ mod tests {
         // Scaled by the reduced χ²: the two differ by √(χ²/dof), and use Student t with 4 dof (2.776).
         assert!((s.standard_errors[1] / u.standard_errors[1] - s.reduced_chi2.sqrt()).abs() < 1e-8);
         assert!((s.quantile - 2.7764).abs() < 1e-3);
-        let (lo, hi) = u.intervals[1];
-        assert!((hi - lo - 2.0 * u.quantile * u.standard_errors[1]).abs() < 1e-9);
+        // Untransformed: the interval is value ± q se, exactly.
+        for j in 0..2 {
+            let (v, q, se) = (u.values[j], u.quantile, u.standard_errors[j]);
+            assert_eq!(u.intervals[j], (v - q * se, v + q * se));
+        }
+    }
+
+    #[test]
+    fn a_fraction_near_one_keeps_its_interval_inside_the_range() {
+        // Two readings of a quantum yield, 0.97 and 0.99 with σ = 0.02 known: the estimate is the
+        // mean 0.98 with se = σ/√2 = 0.01414 (common practice), and value ± 1.96 se would reach
+        // 1.0077. From the logit scale the interval stays inside (0, 1).
+        let m = |p: &[f64]| Some(vec![(0.97 - p[0]) / 0.02, (0.99 - p[0]) / 0.02]);
+        let known = Settings {
+            errors: ErrorScale::Unscaled,
+            ..Settings::default()
+        };
+        let s = fit(&m, &[0.5], &[Transform::Logistic], &known).unwrap();
+        let (v, se) = (s.values[0], s.standard_errors[0]);
+        assert!((v - 0.98).abs() < 1e-9, "{v}");
+        assert!((se - 0.02 / 2f64.sqrt()).abs() < 1e-6, "natural-scale se {se}");
+        assert!(v + s.quantile * se > 1.0, "the natural-scale interval would leave [0, 1]");
+        let (lo, hi) = s.intervals[0];
+        assert!(0.0 < lo && lo < v && v < hi && hi < 1.0, "[{lo}, {hi}]");
+        let z = Transform::Logistic.forward(v);
+        let half = s.quantile * se / (v * (1.0 - v));
+        let want = (Transform::Logistic.inverse(z - half), Transform::Logistic.inverse(z + half));
+        assert!((lo - want.0).abs() < 1e-9 && (hi - want.1).abs() < 1e-9, "[{lo}, {hi}] vs {want:?}");
+        // A positive value from the log scale: the interval is v·exp(∓q se/v), never below 0.
+        let m = |p: &[f64]| Some(vec![(0.05 - p[0]) / 0.04, (0.01 - p[0]) / 0.04]);
+        let s = fit(&m, &[0.1], &[Transform::Log], &known).unwrap();
+        let (v, se) = (s.values[0], s.standard_errors[0]);
+        assert!(v - s.quantile * se < 0.0, "the natural-scale interval would go below 0");
+        let (lo, hi) = s.intervals[0];
+        assert!((lo - v * (-s.quantile * se / v).exp()).abs() < 1e-12 && lo > 0.0, "{lo}");
+        assert!((hi - v * (s.quantile * se / v).exp()).abs() < 1e-12, "{hi}");
     }
 
     #[test]

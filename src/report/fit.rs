@@ -82,6 +82,18 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
     }
     let _ = writeln!(
         o,
+        "\n95 % intervals are taken on the fitting scale and transformed back, so they stay in range \
+         (± se is the natural-scale, delta-method one):"
+    );
+    for f in &r.free {
+        let how = match f.transform {
+            lsq::Transform::Identity => "interval on the natural scale (value ± q se)".to_string(),
+            t => format!("interval from the {} scale", t.scale_name()),
+        };
+        let _ = writeln!(o, "  {:<w$}  {how}", f.key);
+    }
+    let _ = writeln!(
+        o,
         "\nstart values: {}",
         r.free
             .iter()
@@ -120,6 +132,7 @@ pub fn fit_json(network: &str, r: &FitResult) -> serde_json::Value {
         "parameters": r.free.iter().enumerate().map(|(i, f)| json!({
             "key": f.key, "unit": f.unit, "start": f.start, "value": s.values[i],
             "standard_error": s.standard_errors[i], "interval_95": [s.intervals[i].0, s.intervals[i].1],
+            "interval_scale": f.transform.scale_name(),
         })).collect::<Vec<_>>(),
         "correlation": (0..p).map(|i| (0..p).map(|j| s.correlation[(i, j)]).collect::<Vec<_>>()).collect::<Vec<_>>(),
         "covariance": (0..p).map(|i| (0..p).map(|j| s.covariance[(i, j)]).collect::<Vec<_>>()).collect::<Vec<_>>(),
