@@ -406,13 +406,13 @@ impl ErrorBasis {
     pub fn describe(self) -> &'static str {
         match self {
             ErrorBasis::KnownSd => {
-                "standard errors not scaled by the reduced χ²: every observation has an sd, taken as known                  (intervals with the normal 97.5 % point; --scale-errors scales them)"
+                "standard errors not scaled by the reduced χ²: every observation has an sd, taken as known (intervals with the normal 97.5 % point; --scale-errors scales them)"
             }
             ErrorBasis::ScaledOnRequest => {
-                "standard errors scaled by the reduced χ², as asked (--scale-errors), though every observation                  has an sd (intervals with Student t, n − p degrees of freedom)"
+                "standard errors scaled by the reduced χ², as asked (--scale-errors), though every observation has an sd (intervals with Student t, n − p degrees of freedom)"
             }
             ErrorBasis::EstimatedSd => {
-                "standard errors scaled by the reduced χ²: some observations have no sd, so σ is estimated from                  the scatter (intervals with Student t, n − p degrees of freedom)"
+                "standard errors scaled by the reduced χ²: some observations have no sd, so σ is estimated from the scatter (intervals with Student t, n − p degrees of freedom)"
             }
         }
     }
