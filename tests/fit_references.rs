@@ -305,7 +305,10 @@ fn transformed_bounds_keep_a_fraction_inside() {
     assert!(s.values[0] < 1.0 && s.values[0] > 0.999, "{}", s.values[0]);
     // Its 95 % interval is taken on the logit scale, so it stays inside [0, 1] too.
     let (lo, hi) = s.intervals[0];
-    assert!((0.0..=1.0).contains(&lo) && (0.0..=1.0).contains(&hi) && lo <= hi, "[{lo}, {hi}]");
+    assert!(
+        (0.0..=1.0).contains(&lo) && (0.0..=1.0).contains(&hi) && lo <= hi,
+        "[{lo}, {hi}]"
+    );
     assert!(
         s.warnings(&[lsq::Transform::Logistic])
             .contains(&lsq::Identifiability::AtBound(0))
@@ -419,6 +422,51 @@ fn end_points_agree_with_the_time_course_and_lifetimes_with_the_rates() {
 }
 
 #[test]
+fn a_quantum_yield_per_photon_absorbed_by_the_reactant_and_per_photon_absorbed_by_the_sample() {
+    // Quantum yield: molecules per photon absorbed by the reactant (IUPAC Glossary of terms used
+    // in photochemistry, 3rd ed., Pure Appl. Chem. 79 (2007) 293). In the first 10 ms under the
+    // UV LED almost no Z-azo exists yet, so the Z-azo formed per photon absorbed by E-azo is the
+    // file's Φ(E→Z) = 0.12 (Z's own photoreaction back takes about 0.01 % of it by then).
+    use photoledger::file::data::{Endpoint, EndpointKind};
+    let loaded = photoledger::file::load(Path::new(NET)).unwrap();
+    let ep = |kind| Endpoint {
+        kind,
+        value: 0.1,
+        sd: 0.01,
+        weighted: true,
+        file: "x.toml".into(),
+        line: 1,
+    };
+    let mut d = demo();
+    d.truncate(1);
+    d[0].points.clear();
+    d[0].until = Some(0.01);
+    d[0].endpoints = vec![
+        ep(EndpointKind::ReactantQuantumYield("Z-azo".into(), "E-azo".into())),
+        ep(EndpointKind::QuantumYield("Z-azo".into())),
+    ];
+    let setup = Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).unwrap();
+    let p = setup.predict(&d[0], &setup.start()).unwrap();
+    assert!(
+        rel(p.endpoints[0], 0.12) < 3e-4,
+        "per photon absorbed by E-azo: {}",
+        p.endpoints[0]
+    );
+    assert!(p.endpoints[1] <= p.endpoints[0], "{:?}", p.endpoints);
+    // After an hour under both LEDs Z-azo takes much of the light: per photon absorbed by the
+    // whole sample the yield is clearly lower than per photon absorbed by E-azo.
+    let mut both = d[0].clone();
+    both.set.retain(|(k, _)| k != "light.blue LED.power");
+    both.until = Some(3600.0);
+    let p = setup.predict(&both, &setup.start()).unwrap();
+    assert!(p.endpoints[1] < 0.9 * p.endpoints[0], "{:?}", p.endpoints);
+    // A reactant that absorbs nothing is an error naming the line.
+    let mut d = demo();
+    d[0].endpoints = vec![ep(EndpointKind::ReactantQuantumYield("Z-azo".into(), "nothing".into()))];
+    assert!(Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).is_err());
+}
+
+#[test]
 fn fit_and_compare_through_the_binary() {
     let bin = env!("CARGO_BIN_EXE_photoledger");
     let dir = std::env::temp_dir().join(format!("pl-fit-{}", std::process::id()));
@@ -452,7 +500,10 @@ fn fit_and_compare_through_the_binary() {
     ]);
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     let text = String::from_utf8_lossy(&o.stdout);
-    assert!(text.contains("scaled by the reduced χ², as asked (--scale-errors)"), "{text}");
+    assert!(
+        text.contains("scaled by the reduced χ², as asked (--scale-errors)"),
+        "{text}"
+    );
     for f in [
         "summary.txt",
         "fit.json",

@@ -485,7 +485,11 @@ mod tests {
         let xm = x.iter().sum::<f64>() / n;
         let sxx: f64 = x.iter().map(|v| (v - xm).powi(2)).sum();
         assert_eq!(u.errors, ErrorScale::Unscaled);
-        assert!((u.standard_errors[1] - sigma / sxx.sqrt()).abs() < 1e-8, "{}", u.standard_errors[1]);
+        assert!(
+            (u.standard_errors[1] - sigma / sxx.sqrt()).abs() < 1e-8,
+            "{}",
+            u.standard_errors[1]
+        );
         assert!((u.quantile - 1.959964).abs() < 1e-5);
         // Scaled by the reduced χ²: the two differ by √(χ²/dof), and use Student t with 4 dof (2.776).
         assert!((s.standard_errors[1] / u.standard_errors[1] - s.reduced_chi2.sqrt()).abs() < 1e-8);
@@ -511,20 +515,32 @@ mod tests {
         let (v, se) = (s.values[0], s.standard_errors[0]);
         assert!((v - 0.98).abs() < 1e-9, "{v}");
         assert!((se - 0.02 / 2f64.sqrt()).abs() < 1e-6, "natural-scale se {se}");
-        assert!(v + s.quantile * se > 1.0, "the natural-scale interval would leave [0, 1]");
+        assert!(
+            v + s.quantile * se > 1.0,
+            "the natural-scale interval would leave [0, 1]"
+        );
         let (lo, hi) = s.intervals[0];
         assert!(0.0 < lo && lo < v && v < hi && hi < 1.0, "[{lo}, {hi}]");
         let z = Transform::Logistic.forward(v);
         let half = s.quantile * se / (v * (1.0 - v));
-        let want = (Transform::Logistic.inverse(z - half), Transform::Logistic.inverse(z + half));
-        assert!((lo - want.0).abs() < 1e-9 && (hi - want.1).abs() < 1e-9, "[{lo}, {hi}] vs {want:?}");
+        let want = (
+            Transform::Logistic.inverse(z - half),
+            Transform::Logistic.inverse(z + half),
+        );
+        assert!(
+            (lo - want.0).abs() < 1e-9 && (hi - want.1).abs() < 1e-9,
+            "[{lo}, {hi}] vs {want:?}"
+        );
         // A positive value from the log scale: the interval is v·exp(∓q se/v), never below 0.
         let m = |p: &[f64]| Some(vec![(0.05 - p[0]) / 0.04, (0.01 - p[0]) / 0.04]);
         let s = fit(&m, &[0.1], &[Transform::Log], &known).unwrap();
         let (v, se) = (s.values[0], s.standard_errors[0]);
         assert!(v - s.quantile * se < 0.0, "the natural-scale interval would go below 0");
         let (lo, hi) = s.intervals[0];
-        assert!((lo - v * (-s.quantile * se / v).exp()).abs() < 1e-12 && lo > 0.0, "{lo}");
+        assert!(
+            (lo - v * (-s.quantile * se / v).exp()).abs() < 1e-12 && lo > 0.0,
+            "{lo}"
+        );
         assert!((hi - v * (s.quantile * se / v).exp()).abs() < 1e-12, "{hi}");
     }
 

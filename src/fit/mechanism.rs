@@ -199,6 +199,22 @@ impl<'a> Setup<'a> {
                     EndpointKind::Ratio(a, b) if !known(a) || !known(b) => {
                         return Err(bad(format!("no species \"{a}\" or \"{b}\"")));
                     }
+                    EndpointKind::ReactantQuantumYield(s, a) => {
+                        if !known(s) || !known(a) {
+                            return Err(bad(format!("no species \"{s}\" or \"{a}\"")));
+                        }
+                        let model = Model::compile(&net);
+                        let absorbs = net.species_index(a).is_some_and(|i| model.absorbers.contains(&i));
+                        if !absorbs {
+                            return Err(located(
+                                &ep.file,
+                                ep.line,
+                                "endpoints.absorber",
+                                format!("\"{a}\" absorbs no light in this network"),
+                                "a species with an epsilon at the light's wavelengths".into(),
+                            ));
+                        }
+                    }
                     EndpointKind::Lifetime(t) => lifetime(&net, t)
                         .map_err(|m| {
                             located(
@@ -288,9 +304,21 @@ impl<'a> Setup<'a> {
                 EndpointKind::Final(s) => end[idx(s)],
                 EndpointKind::Yield(s) => end[idx(s)] / basis,
                 EndpointKind::Ratio(a, b) => end[idx(a)] / end[idx(b)],
+                // Per photon absorbed by the whole sample (every absorber, inner filters included).
                 EndpointKind::QuantumYield(s) => {
                     let l = kinetics::ledger::read(&model, &traj.layout, until, end);
                     (end[idx(s)] - first[idx(s)]) * model.volume / l.absorbed
+                }
+                // Per photon absorbed by the reactant alone (IUPAC Glossary of terms used in
+                // photochemistry, 3rd ed., Pure Appl. Chem. 79 (2007) 293, "quantum yield").
+                EndpointKind::ReactantQuantumYield(s, a) => {
+                    let l = kinetics::ledger::read(&model, &traj.layout, until, end);
+                    let by = l
+                        .by_absorber
+                        .iter()
+                        .find(|b| &b.species == a)
+                        .map_or(0.0, |b| b.absorbed);
+                    (end[idx(s)] - first[idx(s)]) * model.volume / by
                 }
                 EndpointKind::Lifetime(t) => lifetime(&net, t).map_err(Error::Usage)?,
             };

@@ -53,7 +53,9 @@ pub fn section(f: &FitStudy) -> String {
         row("± standard error", &|i| sig(s.standard_errors[i] * scales[i], 3)),
         row("95 % interval, low", &|i| sig(s.intervals[i].0 * scales[i], 5)),
         row("95 % interval, high", &|i| sig(s.intervals[i].1 * scales[i], 5)),
-        row("95 % interval taken on the", &|i| format!("{} scale", r.free[i].transform.scale_name())),
+        row("95 % interval taken on the", &|i| {
+            format!("{} scale", r.free[i].transform.scale_name())
+        }),
         row("start (the file's value)", &|i| sig(r.free[i].start * scales[i], 6)),
     ];
     let h: Vec<(&str, bool)> = headers.iter().map(|(t, n)| (t.as_str(), *n)).collect();
