@@ -9,8 +9,10 @@ each experiment's overrides from demo-data/fit/experiments.toml, and fits the tw
 parameters photoledger fits by default -- the E -> Z quantum yield and the Eyring barrier of
 the thermal Z -> E step -- with scipy.optimize.least_squares (trust-region reflective, tight
 tolerances) to the sd-weighted residuals of the time courses and the Z/E ratio end point.
-Standard errors: (J^T J)^-1 at the optimum scaled by the reduced chi-square. It writes the
-values, standard errors and chi-square as CSV on standard output;
+Standard errors both ways, from (J^T J)^-1 at the optimum: scaled by the reduced chi-square
+(sigma estimated from the scatter; curve_fit's absolute_sigma=False) and unscaled (the sd taken
+as known; curve_fit's absolute_sigma=True). It writes the values, both standard errors and
+chi-square as CSV on standard output;
 tests/fit_references.rs compares photoledger's fit with that file and never runs Python.
 
 How to run
@@ -123,15 +125,19 @@ def main():
     r = fit.fun
     chi2 = float(r @ r)
     dof = len(r) - 2
-    cov = np.linalg.inv(fit.jac.T @ fit.jac) * chi2 / dof
-    se = np.sqrt(np.diag(cov))
+    cov_absolute = np.linalg.inv(fit.jac.T @ fit.jac)
+    se_absolute = np.sqrt(np.diag(cov_absolute))
+    se = np.sqrt(np.diag(cov_absolute * chi2 / dof))
     o = sys.stdout
     o.write("# SciPy fit of demo-data/fit/ to networks/photoswitch.toml, written by scripts/scipy_fit_reference.py\n")
     o.write(f"# scipy {scipy.__version__}, numpy {np.__version__}: least_squares trf, solve_ivp Radau rtol 1e-11\n")
-    o.write("parameter,value,standard error,unit\n")
-    o.write(f"photo.E to Z.quantum_yield,{float(fit.x[0])!r},{float(se[0])!r},\n")
-    o.write(f"thermal.thermal Z to E.barrier,{float(fit.x[1]) * 1000.0!r},{float(se[1]) * 1000.0!r},J/mol\n")
-    o.write(f"chi2,{chi2!r},,\n")
+    o.write("parameter,value,standard error scaled by reduced chi2,standard error with sd known,unit\n")
+    o.write(f"photo.E to Z.quantum_yield,{float(fit.x[0])!r},{float(se[0])!r},{float(se_absolute[0])!r},\n")
+    o.write(
+        f"thermal.thermal Z to E.barrier,{float(fit.x[1]) * 1000.0!r},{float(se[1]) * 1000.0!r},"
+        f"{float(se_absolute[1]) * 1000.0!r},J/mol\n"
+    )
+    o.write(f"chi2,{chi2!r},,,\n")
 
 
 if __name__ == "__main__":

@@ -179,9 +179,13 @@ fn keys() -> Vec<String> {
 }
 
 fn fit_on(net: &str, experiments: &[Experiment]) -> FitResult {
+    fit_with(net, experiments, &FitOptions::default())
+}
+
+fn fit_with(net: &str, experiments: &[Experiment], opts: &FitOptions) -> FitResult {
     let loaded = photoledger::file::load(Path::new(net)).unwrap();
     let setup = Setup::new(&loaded, vec![], experiments, &keys(), Accuracy::default()).unwrap();
-    mechanism::fit(&setup, &FitOptions::default(), &|| {}).unwrap()
+    mechanism::fit(&setup, opts, &|| {}).unwrap()
 }
 
 fn synthetic(seed: u64) -> Vec<Experiment> {
@@ -299,6 +303,12 @@ fn transformed_bounds_keep_a_fraction_inside() {
     let m = |p: &[f64]| Some(vec![(1.2 - p[0]) / 0.01, (1.2 - p[0]) / 0.01]);
     let s = lsq::fit(&m, &[0.5], &[lsq::Transform::Logistic], &lsq::Settings::default()).unwrap();
     assert!(s.values[0] < 1.0 && s.values[0] > 0.999, "{}", s.values[0]);
+    // Its 95 % interval is taken on the logit scale, so it stays inside [0, 1] too.
+    let (lo, hi) = s.intervals[0];
+    assert!(
+        (0.0..=1.0).contains(&lo) && (0.0..=1.0).contains(&hi) && lo <= hi,
+        "[{lo}, {hi}]"
+    );
     assert!(
         s.warnings(&[lsq::Transform::Logistic])
             .contains(&lsq::Identifiability::AtBound(0))
@@ -319,26 +329,46 @@ fn scipy_least_squares_agrees_on_the_demo_fit() {
         .collect();
     let num = |r: usize, c: usize| rows[r][c].parse::<f64>().unwrap();
     let experiments = demo();
+    // Every demo observation has an sd: by default taken as known, so the standard errors are
+    // SciPy's unscaled (JᵀJ)⁻¹ ones (column 3, curve_fit's absolute_sigma=True); with
+    // scale_errors they are the ones scaled by the reduced χ² (column 2).
     let r = fit_on(NET, &experiments);
+    assert_eq!(r.errors, mechanism::ErrorBasis::KnownSd);
+    let scaled = fit_with(
+        NET,
+        &experiments,
+        &FitOptions {
+            scale_errors: true,
+            ..FitOptions::default()
+        },
+    );
+    assert_eq!(scaled.errors, mechanism::ErrorBasis::ScaledOnRequest);
+    for (fit, col, what) in [(&r, 3, "sd known"), (&scaled, 2, "scaled")] {
+        let s = &fit.solution;
+        assert!(
+            rel(s.standard_errors[0], num(0, col)) < 1e-2,
+            "{what}: se Φ {} vs {}",
+            s.standard_errors[0],
+            num(0, col)
+        );
+        assert!(
+            rel(s.standard_errors[1], num(1, col)) < 1e-2,
+            "{what}: se ΔG‡ {} vs {}",
+            s.standard_errors[1],
+            num(1, col)
+        );
+    }
+    // The same optimum either way; only the covariance differs, by the reduced χ².
+    assert_eq!(scaled.solution.values, r.solution.values);
     let s = &r.solution;
+    let ratio = scaled.solution.standard_errors[0] / s.standard_errors[0];
+    assert!(rel(ratio, s.reduced_chi2.sqrt()) < 1e-9, "{ratio}");
     assert!(rel(s.values[0], num(0, 1)) < 1e-5, "Φ {} vs {}", s.values[0], num(0, 1));
     assert!(
         rel(s.values[1], num(1, 1)) < 1e-6,
         "ΔG‡ {} vs {}",
         s.values[1],
         num(1, 1)
-    );
-    assert!(
-        rel(s.standard_errors[0], num(0, 2)) < 1e-2,
-        "se Φ {} vs {}",
-        s.standard_errors[0],
-        num(0, 2)
-    );
-    assert!(
-        rel(s.standard_errors[1], num(1, 2)) < 1e-2,
-        "se ΔG‡ {} vs {}",
-        s.standard_errors[1],
-        num(1, 2)
     );
     assert!(rel(s.chi2, num(2, 1)) < 1e-5, "χ² {} vs {}", s.chi2, num(2, 1));
 }
@@ -392,6 +422,51 @@ fn end_points_agree_with_the_time_course_and_lifetimes_with_the_rates() {
 }
 
 #[test]
+fn a_quantum_yield_per_photon_absorbed_by_the_reactant_and_per_photon_absorbed_by_the_sample() {
+    // Quantum yield: molecules per photon absorbed by the reactant (IUPAC Glossary of terms used
+    // in photochemistry, 3rd ed., Pure Appl. Chem. 79 (2007) 293). In the first 10 ms under the
+    // UV LED almost no Z-azo exists yet, so the Z-azo formed per photon absorbed by E-azo is the
+    // file's Φ(E→Z) = 0.12 (Z's own photoreaction back takes about 0.01 % of it by then).
+    use photoledger::file::data::{Endpoint, EndpointKind};
+    let loaded = photoledger::file::load(Path::new(NET)).unwrap();
+    let ep = |kind| Endpoint {
+        kind,
+        value: 0.1,
+        sd: 0.01,
+        weighted: true,
+        file: "x.toml".into(),
+        line: 1,
+    };
+    let mut d = demo();
+    d.truncate(1);
+    d[0].points.clear();
+    d[0].until = Some(0.01);
+    d[0].endpoints = vec![
+        ep(EndpointKind::ReactantQuantumYield("Z-azo".into(), "E-azo".into())),
+        ep(EndpointKind::QuantumYield("Z-azo".into())),
+    ];
+    let setup = Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).unwrap();
+    let p = setup.predict(&d[0], &setup.start()).unwrap();
+    assert!(
+        rel(p.endpoints[0], 0.12) < 3e-4,
+        "per photon absorbed by E-azo: {}",
+        p.endpoints[0]
+    );
+    assert!(p.endpoints[1] <= p.endpoints[0], "{:?}", p.endpoints);
+    // After an hour under both LEDs Z-azo takes much of the light: per photon absorbed by the
+    // whole sample the yield is clearly lower than per photon absorbed by E-azo.
+    let mut both = d[0].clone();
+    both.set.retain(|(k, _)| k != "light.blue LED.power");
+    both.until = Some(3600.0);
+    let p = setup.predict(&both, &setup.start()).unwrap();
+    assert!(p.endpoints[1] < 0.9 * p.endpoints[0], "{:?}", p.endpoints);
+    // A reactant that absorbs nothing is an error naming the line.
+    let mut d = demo();
+    d[0].endpoints = vec![ep(EndpointKind::ReactantQuantumYield("Z-azo".into(), "nothing".into()))];
+    assert!(Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).is_err());
+}
+
+#[test]
 fn fit_and_compare_through_the_binary() {
     let bin = env!("CARGO_BIN_EXE_photoledger");
     let dir = std::env::temp_dir().join(format!("pl-fit-{}", std::process::id()));
@@ -409,6 +484,26 @@ fn fit_and_compare_through_the_binary() {
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     let j: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(j["parameters"].as_array().unwrap().len(), 2);
+    // Every demo observation has an sd: unscaled by default, scaled with --scale-errors.
+    assert_eq!(j["standard_errors_scaled"], false);
+    let summary = std::fs::read_to_string(out.join("summary.txt")).unwrap();
+    assert!(summary.contains("not scaled by the reduced χ²"), "{summary}");
+    let scaled = dir.join("scaled");
+    let o = run(&[
+        "fit",
+        NET,
+        "--data",
+        EXPERIMENTS,
+        "--out",
+        scaled.to_str().unwrap(),
+        "--scale-errors",
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        text.contains("scaled by the reduced χ², as asked (--scale-errors)"),
+        "{text}"
+    );
     for f in [
         "summary.txt",
         "fit.json",

@@ -1,4 +1,4 @@
-//! `photoledger fit FILE --data DATA... [--free KEYS] [--out DIR] [--json] [--starts N] [--seed S]`.
+//! `photoledger fit FILE --data DATA... [--free KEYS] [--out DIR] [--json] [--starts N] [--seed S] [--scale-errors]`.
 
 use photoledger::Error;
 use photoledger::file::data::{self, Experiment};
@@ -33,6 +33,10 @@ pub struct FitArgs {
     /// Seed of the random starts.
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
+    /// Scale the standard errors by the reduced χ² even when every observation has an sd
+    /// (by default given sd are taken as known).
+    #[arg(long)]
+    pub scale_errors: bool,
 }
 
 /// Read every data argument.
@@ -82,6 +86,7 @@ pub fn run(a: &FitArgs) -> photoledger::Result<()> {
     let opts = FitOptions {
         starts: a.starts.max(1),
         seed: a.seed,
+        scale_errors: a.scale_errors,
         ..FitOptions::default()
     };
     let (loaded, fitted) = fit_one(&a.file, &a.set, &a.free, &experiments, &opts)?;

@@ -27,6 +27,7 @@
 //!   { kind = "yield", species = "Z-azo", value = 0.6, sd = 0.02 },
 //!   { kind = "ratio", species = "Z-azo", over = "E-azo", value = 1.5, sd = 0.1 },
 //!   { kind = "quantum_yield", species = "Z-azo", value = 0.12, sd = 0.01 },
+//!   { kind = "reactant_quantum_yield", species = "Z-azo", absorber = "E-azo", value = 0.15, sd = 0.01 },
 //!   { kind = "lifetime", transient = "S1", value = "1.5 ns", sd = "0.1 ns" },
 //! ]
 //! ```
@@ -70,8 +71,15 @@ pub enum EndpointKind {
     Yield(String),
     /// End concentration of the first species over the second.
     Ratio(String, String),
-    /// Molecules of a species formed per photon absorbed over the run.
+    /// Net molecules of a species formed over the run (final − initial) per photon absorbed by
+    /// the whole sample: every absorbing species, inner filters included (the solvent and vessel
+    /// background not counted).
     QuantumYield(String),
+    /// Net molecules of the first species formed over the run per photon absorbed by the second
+    /// (the reactant) alone: the quantum yield as usually measured, per photon absorbed by the
+    /// reactant (IUPAC Glossary of terms used in photochemistry, 3rd ed., Pure Appl. Chem. 79
+    /// (2007) 293, "quantum yield").
+    ReactantQuantumYield(String, String),
     /// Lifetime of a transient, s: 1 / (sum of its decay rates at the initial concentrations).
     Lifetime(String),
 }
@@ -313,6 +321,7 @@ struct RawEndpoint {
     species: Option<String>,
     over: Option<String>,
     transient: Option<String>,
+    absorber: Option<String>,
     value: toml::Value,
     sd: Option<toml::Value>,
 }
@@ -393,6 +402,10 @@ pub fn parse_experiments(path: &Path, text: &str) -> Result<Vec<Experiment>> {
                     None,
                 ),
                 "quantum_yield" => (EndpointKind::QuantumYield(need(&ep.species, "species")?), None),
+                "reactant_quantum_yield" => (
+                    EndpointKind::ReactantQuantumYield(need(&ep.species, "species")?, need(&ep.absorber, "absorber")?),
+                    None,
+                ),
                 "lifetime" => (
                     EndpointKind::Lifetime(need(&ep.transient, "transient")?),
                     Some(Quantity::Time),
@@ -403,7 +416,7 @@ pub fn parse_experiments(path: &Path, text: &str) -> Result<Vec<Experiment>> {
                         eline,
                         &format!("{ef}.kind"),
                         format!("unknown kind \"{k}\""),
-                        "final, yield, ratio, quantum_yield or lifetime",
+                        "final, yield, ratio, quantum_yield, reactant_quantum_yield or lifetime",
                     ));
                 }
             };
@@ -558,6 +571,19 @@ endpoints = [
         );
         assert_eq!(e[0].endpoints[1].kind, EndpointKind::Lifetime("S1".into()));
         assert!((e[0].endpoints[1].value - 2e-9).abs() < 1e-20);
+        let rq = t.replace(
+            "{ kind = \"final\", species = \"B\", value = \"2 mM\", sd = \"0.1 mM\" }",
+            "{ kind = \"reactant_quantum_yield\", species = \"B\", absorber = \"A\", value = 0.3, sd = 0.02 }",
+        );
+        let r = parse_experiments(Path::new("e.toml"), &rq).unwrap();
+        assert_eq!(
+            r[0].endpoints[0].kind,
+            EndpointKind::ReactantQuantumYield("B".into(), "A".into())
+        );
+        let m = parse_experiments(Path::new("e.toml"), &rq.replace(", absorber = \"A\"", ""))
+            .unwrap_err()
+            .to_string();
+        assert!(m.contains("e.toml:7") && m.contains("needs `absorber`"), "{m}");
         let bad = t.replace("\"2 ns\"", "2");
         let m = parse_experiments(Path::new("e.toml"), &bad).unwrap_err().to_string();
         assert!(m.contains("e.toml:8") && m.contains("has no unit"), "{m}");

@@ -3,13 +3,28 @@
 //!
 //! Bounds are kept by transformation, never by clipping: a value in [0, 1] is fitted as
 //! z = logit(x), a positive value as z = ln x, anything else as itself. The Jacobian is taken by
-//! central differences on the transformed scale. Standard errors come from (JᵀJ)⁻¹ of the
-//! weighted residuals at the optimum in the natural parameters, scaled by the reduced χ²
-//! (common practice; it is what the NIST StRD certified standard deviations are).
+//! central differences on the transformed scale; 95 % intervals are taken on that scale and
+//! transformed back, so they keep the range too. Standard errors come from (JᵀJ)⁻¹ of the
+//! weighted residuals at the optimum in the natural parameters, either as they are (σ known:
+//! [`ErrorScale::Unscaled`]) or scaled by the reduced χ² (σ estimated from the scatter:
+//! [`ErrorScale::ReducedChi2`], the default of [`Settings`]; it is what the NIST StRD certified
+//! standard deviations are). Bevington & Robinson, Data Reduction and Error Analysis for the
+//! Physical Sciences, 3rd ed., 2003, ch. 8 (`from memory` for the chapter); SciPy's `curve_fit`
+//! documents the same choice as `absolute_sigma`.
 
 use levenberg_marquardt::{LeastSquaresProblem, LevenbergMarquardt};
 use nalgebra::{DMatrix, DVector, Dyn, Owned};
-use statrs::distribution::{ContinuousCDF, StudentsT};
+use statrs::distribution::{ContinuousCDF, Normal, StudentsT};
+
+/// How the covariance of the parameters is scaled.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ErrorScale {
+    /// σ estimated from the scatter: (JᵀJ)⁻¹ × reduced χ², intervals with Student t (n − p dof).
+    ReducedChi2,
+    /// σ known (the residuals are divided by given standard deviations): (JᵀJ)⁻¹ as it is,
+    /// intervals with the normal quantile (common practice: nothing is estimated from the scatter).
+    Unscaled,
+}
 
 /// How a parameter is kept in its range while fitting.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -56,6 +71,15 @@ impl Transform {
         }
     }
 
+    /// The name of the fitting scale: "natural", "log" or "logit".
+    pub fn scale_name(self) -> &'static str {
+        match self {
+            Transform::Identity => "natural",
+            Transform::Log => "log",
+            Transform::Logistic => "logit",
+        }
+    }
+
     /// True when the fitted value sits at (numerically on) the edge of the range.
     pub fn at_bound(self, z: f64) -> bool {
         match self {
@@ -91,6 +115,8 @@ pub struct Settings {
     pub patience: usize,
     /// Relative central-difference step on the transformed scale.
     pub step: f64,
+    /// How the covariance is scaled.
+    pub errors: ErrorScale,
 }
 
 impl Default for Settings {
@@ -101,6 +127,7 @@ impl Default for Settings {
             gtol: 1e-12,
             patience: 200,
             step: 1e-6,
+            errors: ErrorScale::ReducedChi2,
         }
     }
 }
@@ -124,11 +151,19 @@ pub struct Solution {
     pub dof: usize,
     /// χ² / dof (NaN when dof is 0).
     pub reduced_chi2: f64,
-    /// Covariance of the natural parameters, (JᵀJ)⁻¹ × reduced χ² (pseudo-inverse if singular).
+    /// How the covariance was scaled.
+    pub errors: ErrorScale,
+    /// Covariance of the natural parameters, (JᵀJ)⁻¹, × reduced χ² with
+    /// [`ErrorScale::ReducedChi2`] (pseudo-inverse if singular).
     pub covariance: DMatrix<f64>,
     /// Standard errors √diag(covariance).
     pub standard_errors: Vec<f64>,
-    /// 95 % intervals value ± t(0.975, dof) × se.
+    /// The 97.5 % quantile the intervals use: Student t with dof degrees of freedom when scaled,
+    /// the normal one when unscaled.
+    pub quantile: f64,
+    /// 95 % intervals, computed on the fitting scale and transformed back (so they stay inside
+    /// the range): [x(z − q se_z), x(z + q se_z)] with se_z = se / |dx/dz|, q = `quantile`. For an
+    /// untransformed parameter this is value ± q × se.
     pub intervals: Vec<(f64, f64)>,
     /// Correlation matrix.
     pub correlation: DMatrix<f64>,
@@ -289,18 +324,28 @@ fn statistics(
         .clone()
         .pseudo_inverse(1e-14)
         .map_err(|e| FitFailure(format!("the information matrix cannot be inverted: {e}")))?;
-    let scale = if reduced_chi2.is_finite() { reduced_chi2 } else { 1.0 };
+    let scale = match settings.errors {
+        ErrorScale::ReducedChi2 if reduced_chi2.is_finite() => reduced_chi2,
+        _ => 1.0,
+    };
     let covariance = DMatrix::from_fn(p, p, |i, j| inv_scaled[(i, j)] / (d[i] * d[j]) * scale);
     let standard_errors: Vec<f64> = (0..p).map(|i| covariance[(i, i)].max(0.0).sqrt()).collect();
     let correlation = DMatrix::from_fn(p, p, |i, j| {
         let s = standard_errors[i] * standard_errors[j];
         if s > 0.0 { covariance[(i, j)] / s } else { f64::NAN }
     });
-    let t = t_quantile(0.975, dof);
-    let intervals = values
-        .iter()
-        .zip(&standard_errors)
-        .map(|(v, s)| (v - t * s, v + t * s))
+    let quantile = match settings.errors {
+        ErrorScale::ReducedChi2 => t_quantile(0.975, dof),
+        ErrorScale::Unscaled => normal_quantile(0.975),
+    };
+    // On the fitting scale: the standard error of z by the same delta method, se_z = se / |dx/dz|.
+    let intervals = (0..p)
+        .map(|j| {
+            let t = transforms[j];
+            let half = quantile * standard_errors[j] / t.slope(z[j]).abs();
+            let (a, b) = (t.inverse(z[j] - half), t.inverse(z[j] + half));
+            (a.min(b), a.max(b))
+        })
         .collect();
     Ok(Solution {
         values,
@@ -309,8 +354,10 @@ fn statistics(
         chi2,
         dof,
         reduced_chi2,
+        errors: settings.errors,
         covariance,
         standard_errors,
+        quantile,
         intervals,
         correlation,
         rcond,
@@ -325,6 +372,11 @@ pub fn t_quantile(p: f64, dof: usize) -> f64 {
         return f64::NAN;
     }
     StudentsT::new(0.0, 1.0, dof as f64).map_or(f64::NAN, |t| t.inverse_cdf(p))
+}
+
+/// The `p` quantile of the standard normal distribution (statrs).
+pub fn normal_quantile(p: f64) -> f64 {
+    Normal::new(0.0, 1.0).map_or(f64::NAN, |n| n.inverse_cdf(p))
 }
 
 /// A warning about what the data cannot pin down.
@@ -412,6 +464,84 @@ mod tests {
         assert!((s.standard_errors[1] - (s2 / sxx).sqrt()).abs() < 1e-7);
         assert!((s.standard_errors[0] - (s2 * (1.0 / n + xm * xm / sxx)).sqrt()).abs() < 1e-7);
         assert!(s.warnings(&[Transform::Identity; 2]).is_empty());
+    }
+
+    #[test]
+    fn known_sigma_leaves_the_covariance_unscaled() {
+        // y = a + b x with σ = 0.2 on every point taken as known: se(b)² = σ² / Σ(x − x̄)²
+        // whatever the scatter (closed form of weighted linear regression, common practice),
+        // and the interval uses the normal 97.5 % point 1.95996 (any statistics table).
+        let x = [0.0, 1.0, 2.0, 3.0, 4.0, 5.0];
+        let y = [1.1, 2.9, 5.2, 7.1, 8.8, 11.2];
+        let sigma = 0.2;
+        let m = |p: &[f64]| Some(x.iter().zip(&y).map(|(x, y)| (y - (p[0] + p[1] * x)) / sigma).collect());
+        let known = Settings {
+            errors: ErrorScale::Unscaled,
+            ..Settings::default()
+        };
+        let u = fit(&m, &[0.0, 1.0], &[Transform::Identity; 2], &known).unwrap();
+        let s = fit(&m, &[0.0, 1.0], &[Transform::Identity; 2], &Settings::default()).unwrap();
+        let n = x.len() as f64;
+        let xm = x.iter().sum::<f64>() / n;
+        let sxx: f64 = x.iter().map(|v| (v - xm).powi(2)).sum();
+        assert_eq!(u.errors, ErrorScale::Unscaled);
+        assert!(
+            (u.standard_errors[1] - sigma / sxx.sqrt()).abs() < 1e-8,
+            "{}",
+            u.standard_errors[1]
+        );
+        assert!((u.quantile - 1.959964).abs() < 1e-5);
+        // Scaled by the reduced χ²: the two differ by √(χ²/dof), and use Student t with 4 dof (2.776).
+        assert!((s.standard_errors[1] / u.standard_errors[1] - s.reduced_chi2.sqrt()).abs() < 1e-8);
+        assert!((s.quantile - 2.7764).abs() < 1e-3);
+        // Untransformed: the interval is value ± q se, exactly.
+        for j in 0..2 {
+            let (v, q, se) = (u.values[j], u.quantile, u.standard_errors[j]);
+            assert_eq!(u.intervals[j], (v - q * se, v + q * se));
+        }
+    }
+
+    #[test]
+    fn a_fraction_near_one_keeps_its_interval_inside_the_range() {
+        // Two readings of a quantum yield, 0.97 and 0.99 with σ = 0.02 known: the estimate is the
+        // mean 0.98 with se = σ/√2 = 0.01414 (common practice), and value ± 1.96 se would reach
+        // 1.0077. From the logit scale the interval stays inside (0, 1).
+        let m = |p: &[f64]| Some(vec![(0.97 - p[0]) / 0.02, (0.99 - p[0]) / 0.02]);
+        let known = Settings {
+            errors: ErrorScale::Unscaled,
+            ..Settings::default()
+        };
+        let s = fit(&m, &[0.5], &[Transform::Logistic], &known).unwrap();
+        let (v, se) = (s.values[0], s.standard_errors[0]);
+        assert!((v - 0.98).abs() < 1e-9, "{v}");
+        assert!((se - 0.02 / 2f64.sqrt()).abs() < 1e-6, "natural-scale se {se}");
+        assert!(
+            v + s.quantile * se > 1.0,
+            "the natural-scale interval would leave [0, 1]"
+        );
+        let (lo, hi) = s.intervals[0];
+        assert!(0.0 < lo && lo < v && v < hi && hi < 1.0, "[{lo}, {hi}]");
+        let z = Transform::Logistic.forward(v);
+        let half = s.quantile * se / (v * (1.0 - v));
+        let want = (
+            Transform::Logistic.inverse(z - half),
+            Transform::Logistic.inverse(z + half),
+        );
+        assert!(
+            (lo - want.0).abs() < 1e-9 && (hi - want.1).abs() < 1e-9,
+            "[{lo}, {hi}] vs {want:?}"
+        );
+        // A positive value from the log scale: the interval is v·exp(∓q se/v), never below 0.
+        let m = |p: &[f64]| Some(vec![(0.05 - p[0]) / 0.04, (0.01 - p[0]) / 0.04]);
+        let s = fit(&m, &[0.1], &[Transform::Log], &known).unwrap();
+        let (v, se) = (s.values[0], s.standard_errors[0]);
+        assert!(v - s.quantile * se < 0.0, "the natural-scale interval would go below 0");
+        let (lo, hi) = s.intervals[0];
+        assert!(
+            (lo - v * (-s.quantile * se / v).exp()).abs() < 1e-12 && lo > 0.0,
+            "{lo}"
+        );
+        assert!((hi - v * (s.quantile * se / v).exp()).abs() < 1e-12, "{hi}");
     }
 
     #[test]

@@ -1,7 +1,7 @@
 //! Fitting a network's parameters to experiments: each evaluation applies the parameter values
 //! as `--set` overrides, builds and compiles the network, and integrates it to the data times.
 
-use super::lsq::{self, Identifiability, Settings, Solution, Transform};
+use super::lsq::{self, ErrorScale, Identifiability, Settings, Solution, Transform};
 use crate::error::{Diagnostic, Error, Result};
 use crate::file::Loaded;
 use crate::file::data::{EndpointKind, Experiment};
@@ -199,6 +199,22 @@ impl<'a> Setup<'a> {
                     EndpointKind::Ratio(a, b) if !known(a) || !known(b) => {
                         return Err(bad(format!("no species \"{a}\" or \"{b}\"")));
                     }
+                    EndpointKind::ReactantQuantumYield(s, a) => {
+                        if !known(s) || !known(a) {
+                            return Err(bad(format!("no species \"{s}\" or \"{a}\"")));
+                        }
+                        let model = Model::compile(&net);
+                        let absorbs = net.species_index(a).is_some_and(|i| model.absorbers.contains(&i));
+                        if !absorbs {
+                            return Err(located(
+                                &ep.file,
+                                ep.line,
+                                "endpoints.absorber",
+                                format!("\"{a}\" absorbs no light in this network"),
+                                "a species with an epsilon at the light's wavelengths".into(),
+                            ));
+                        }
+                    }
                     EndpointKind::Lifetime(t) => lifetime(&net, t)
                         .map_err(|m| {
                             located(
@@ -288,9 +304,21 @@ impl<'a> Setup<'a> {
                 EndpointKind::Final(s) => end[idx(s)],
                 EndpointKind::Yield(s) => end[idx(s)] / basis,
                 EndpointKind::Ratio(a, b) => end[idx(a)] / end[idx(b)],
+                // Per photon absorbed by the whole sample (every absorber, inner filters included).
                 EndpointKind::QuantumYield(s) => {
                     let l = kinetics::ledger::read(&model, &traj.layout, until, end);
                     (end[idx(s)] - first[idx(s)]) * model.volume / l.absorbed
+                }
+                // Per photon absorbed by the reactant alone (IUPAC Glossary of terms used in
+                // photochemistry, 3rd ed., Pure Appl. Chem. 79 (2007) 293, "quantum yield").
+                EndpointKind::ReactantQuantumYield(s, a) => {
+                    let l = kinetics::ledger::read(&model, &traj.layout, until, end);
+                    let by = l
+                        .by_absorber
+                        .iter()
+                        .find(|b| &b.species == a)
+                        .map_or(0.0, |b| b.absorbed);
+                    (end[idx(s)] - first[idx(s)]) * model.volume / by
                 }
                 EndpointKind::Lifetime(t) => lifetime(&net, t).map_err(Error::Usage)?,
             };
@@ -347,8 +375,12 @@ pub struct FitOptions {
     /// Seed of the random starts (each start has its own stream, so results do not depend on
     /// the number of threads).
     pub seed: u64,
-    /// Least-squares settings.
+    /// Least-squares settings (their `errors` field is set by the fit from the data and
+    /// `scale_errors`).
     pub settings: Settings,
+    /// Scale the standard errors by the reduced χ² even when every observation has an sd
+    /// (by default given sd are taken as known and the covariance is left unscaled).
+    pub scale_errors: bool,
 }
 
 impl Default for FitOptions {
@@ -362,7 +394,54 @@ impl Default for FitOptions {
                 gtol: 1e-10,
                 patience: 100,
                 step: 1e-4,
+                errors: ErrorScale::ReducedChi2,
             },
+            scale_errors: false,
+        }
+    }
+}
+
+/// Why the standard errors are, or are not, scaled by the reduced χ².
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ErrorBasis {
+    /// Every observation has an sd, taken as known: covariance (JᵀJ)⁻¹ unscaled.
+    KnownSd,
+    /// Every observation has an sd, and scaling by the reduced χ² was asked for.
+    ScaledOnRequest,
+    /// Some observations have no sd: σ is estimated from the scatter, covariance × reduced χ².
+    EstimatedSd,
+}
+
+impl ErrorBasis {
+    /// The basis for data that are `weighted` (every observation has an sd) with `scale_errors`.
+    pub fn choose(weighted: bool, scale_errors: bool) -> Self {
+        match (weighted, scale_errors) {
+            (false, _) => ErrorBasis::EstimatedSd,
+            (true, true) => ErrorBasis::ScaledOnRequest,
+            (true, false) => ErrorBasis::KnownSd,
+        }
+    }
+
+    /// How the least-squares core scales the covariance.
+    pub fn scale(self) -> ErrorScale {
+        match self {
+            ErrorBasis::KnownSd => ErrorScale::Unscaled,
+            _ => ErrorScale::ReducedChi2,
+        }
+    }
+
+    /// What was done and why, in words.
+    pub fn describe(self) -> &'static str {
+        match self {
+            ErrorBasis::KnownSd => {
+                "standard errors not scaled by the reduced χ²: every observation has an sd, taken as known (intervals with the normal 97.5 % point; --scale-errors scales them)"
+            }
+            ErrorBasis::ScaledOnRequest => {
+                "standard errors scaled by the reduced χ², as asked (--scale-errors), though every observation has an sd (intervals with Student t, n − p degrees of freedom)"
+            }
+            ErrorBasis::EstimatedSd => {
+                "standard errors scaled by the reduced χ²: some observations have no sd, so σ is estimated from the scatter (intervals with Student t, n − p degrees of freedom)"
+            }
         }
     }
 }
@@ -391,6 +470,8 @@ pub struct FitResult {
     pub n: usize,
     /// True when every observation had a standard deviation.
     pub weighted: bool,
+    /// Whether and why the standard errors are scaled by the reduced χ².
+    pub errors: ErrorBasis,
     /// −2 ln L at the optimum (χ² with given σ; n ln(χ²/n) when σ is estimated).
     pub minus_two_log_likelihood: f64,
     /// Number of estimated quantities (free parameters, plus σ when estimated).
@@ -436,10 +517,17 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn() + Sync)) -> Re
     let transforms = setup.transforms();
     let all = starts(setup, opts);
     let res = |x: &[f64]| setup.residuals(x);
+    let obs = setup.observations();
+    let weighted = obs.iter().all(|o| o.2);
+    let errors = ErrorBasis::choose(weighted, opts.scale_errors);
+    let settings = Settings {
+        errors: errors.scale(),
+        ..opts.settings
+    };
     let outcomes: Vec<std::result::Result<Solution, String>> = all
         .par_iter()
         .map(|x0| {
-            let r = lsq::fit(&res, x0, &transforms, &opts.settings).map_err(|e| e.0);
+            let r = lsq::fit(&res, x0, &transforms, &settings).map_err(|e| e.0);
             progress();
             r
         })
@@ -475,9 +563,7 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn() + Sync)) -> Re
             Identifiability::Loose(i) => format!("{}: the standard error exceeds the value", names[*i]),
         })
         .collect();
-    let obs = setup.observations();
     let n = obs.len();
-    let weighted = obs.iter().all(|o| o.2);
     let p = setup.free.len();
     let (m2ll, k) = if weighted {
         (solution.chi2, p)
@@ -499,6 +585,7 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn() + Sync)) -> Re
         warnings,
         n,
         weighted,
+        errors,
         minus_two_log_likelihood: m2ll,
         k,
         aicc,

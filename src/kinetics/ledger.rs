@@ -41,9 +41,12 @@ pub struct ProductCost {
     pub species: String,
     /// Amount formed, mol (final minus initial).
     pub formed: f64,
-    /// Photons absorbed by all species per molecule formed (None when none formed).
+    /// Photons absorbed by the whole sample (all absorbing species, inner filters included; the
+    /// background not counted) per molecule formed (None when none formed).
     pub photons_per_molecule: Option<f64>,
-    /// Apparent quantum yield: molecules formed per photon absorbed.
+    /// Apparent quantum yield: molecules formed per photon absorbed by the whole sample (not per
+    /// photon absorbed by the reactant, the usual measured Φ: IUPAC Glossary of terms used in
+    /// photochemistry, 3rd ed., Pure Appl. Chem. 79 (2007) 293).
     pub apparent_quantum_yield: Option<f64>,
 }
 

@@ -72,6 +72,18 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
     }
     let _ = writeln!(
         o,
+        "\n95 % intervals are taken on the fitting scale and transformed back, so they stay in range \
+         (± se is the natural-scale, delta-method one):"
+    );
+    for f in &r.free {
+        let how = match f.transform {
+            lsq::Transform::Identity => "interval on the natural scale (value ± q se)".to_string(),
+            t => format!("interval from the {} scale", t.scale_name()),
+        };
+        let _ = writeln!(o, "  {:<w$}  {how}", f.key);
+    }
+    let _ = writeln!(
+        o,
         "\nstart values: {}",
         r.free
             .iter()
@@ -88,12 +100,8 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
             let _ = writeln!(o, "  {:<w$}  {}", r.free[i].key, row.join("  "));
         }
     }
-    let _ = writeln!(
-        o,
-        "\nχ² = {}, reduced χ² = {} (standard errors are scaled by the reduced χ²)",
-        sig(s.chi2, 6),
-        sig(s.reduced_chi2, 4)
-    );
+    let _ = writeln!(o, "\nχ² = {}, reduced χ² = {}", sig(s.chi2, 6), sig(s.reduced_chi2, 4));
+    let _ = writeln!(o, "{}", r.errors.describe());
     let _ = writeln!(o, "AICc = {}, BIC = {}", sig(r.aicc, 6), sig(r.bic, 6));
     if r.warnings.is_empty() {
         let _ = writeln!(o, "identifiability: no warnings");
@@ -114,6 +122,7 @@ pub fn fit_json(network: &str, r: &FitResult) -> serde_json::Value {
         "parameters": r.free.iter().enumerate().map(|(i, f)| json!({
             "key": f.key, "unit": f.unit, "start": f.start, "value": s.values[i],
             "standard_error": s.standard_errors[i], "interval_95": [s.intervals[i].0, s.intervals[i].1],
+            "interval_scale": f.transform.scale_name(),
         })).collect::<Vec<_>>(),
         "correlation": (0..p).map(|i| (0..p).map(|j| s.correlation[(i, j)]).collect::<Vec<_>>()).collect::<Vec<_>>(),
         "covariance": (0..p).map(|i| (0..p).map(|j| s.covariance[(i, j)]).collect::<Vec<_>>()).collect::<Vec<_>>(),
@@ -121,7 +130,8 @@ pub fn fit_json(network: &str, r: &FitResult) -> serde_json::Value {
         "weighted": r.weighted, "aicc": r.aicc, "bic": r.bic, "minus_two_log_likelihood": r.minus_two_log_likelihood,
         "warnings": r.warnings, "termination": s.termination,
         "starts": r.starts.iter().map(|x| json!({"start": x.start, "chi2": x.chi2.as_ref().ok(), "failure": x.chi2.as_ref().err()})).collect::<Vec<_>>(),
-        "t_975": lsq::t_quantile(0.975, s.dof),
+        "t_975": lsq::t_quantile(0.975, s.dof), "interval_quantile_975": s.quantile,
+        "standard_errors_scaled": r.errors.scale() == lsq::ErrorScale::ReducedChi2, "standard_errors": r.errors.describe(),
     })
 }
 

@@ -308,7 +308,7 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
                 Some(n) => {
                     let _ = writeln!(
                         o,
-                        "  {:<16} {} mol formed, {} photons absorbed per molecule (apparent Φ {})",
+                        "  {:<16} {} mol formed, {} photons absorbed per molecule (apparent Φ {}, per photon absorbed by the whole sample)",
                         pr.species,
                         sig(pr.formed, 4),
                         sig(n, 4),

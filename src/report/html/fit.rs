@@ -53,15 +53,18 @@ pub fn section(f: &FitStudy) -> String {
         row("± standard error", &|i| sig(s.standard_errors[i] * scales[i], 3)),
         row("95 % interval, low", &|i| sig(s.intervals[i].0 * scales[i], 5)),
         row("95 % interval, high", &|i| sig(s.intervals[i].1 * scales[i], 5)),
+        row("95 % interval taken on the", &|i| {
+            format!("{} scale", r.free[i].transform.scale_name())
+        }),
         row("start (the file's value)", &|i| sig(r.free[i].start * scales[i], 6)),
     ];
     let h: Vec<(&str, bool)> = headers.iter().map(|(t, n)| (t.as_str(), *n)).collect();
     o.push_str(&page::table("Fitted parameters", &h, &rows));
     o.push_str(&format!(
-        "<p>χ² = <strong>{}</strong>, reduced χ² = <strong>{}</strong> (standard errors are scaled by the reduced \
-         χ²); AICc = {}, BIC = {}.{}</p>\n",
+        "<p>χ² = <strong>{}</strong>, reduced χ² = <strong>{}</strong> ({}); AICc = {}, BIC = {}.{}</p>\n",
         esc(&sig(s.chi2, 6)),
         esc(&sig(s.reduced_chi2, 4)),
+        esc(r.errors.describe()),
         esc(&sig(r.aicc, 6)),
         esc(&sig(r.bic, 6)),
         if r.weighted {

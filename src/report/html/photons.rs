@@ -335,7 +335,10 @@ pub fn section(model: &Model, tr: &Trajectory) -> String {
                 ("product", false),
                 (&hf, true),
                 ("photons per molecule formed (photons)", true),
-                ("apparent Φ (mol/einstein)", true),
+                (
+                    "apparent Φ, per photon absorbed by the whole sample (mol/einstein)",
+                    true,
+                ),
             ],
             &rows,
         ));
