@@ -133,8 +133,13 @@ pub struct Share {
     pub species: String,
     /// Concentration formed, mol/L (final minus initial).
     pub formed: f64,
-    /// Share of all products formed (selectivity), 0..1.
+    /// Selectivity: mol formed per mol of the reference reagent consumed (IUPAC Gold Book,
+    /// "selectivity", `from memory`), 0 when none of it was consumed. Above 1 for a product made
+    /// two or more per reagent molecule; a co-product not derived from the reagent (a scavenger's
+    /// product) shows it only through the stoichiometry that links them.
     pub selectivity: f64,
+    /// The reference reagent: the target's yield reference, else the limiting reagent.
+    pub reference: Option<String>,
 }
 
 /// The answer for one model and target.
@@ -328,7 +333,11 @@ pub fn time_to_target(model: &Model, target: &Target, opts: &PlanOptions) -> Res
         .cloned()
         .filter(|&p| model.initial[p] < 1.0)
         .collect();
-    let products = shares(model, opts.products.as_deref().unwrap_or(&default), y_dose);
+    let reference = match &target.basis {
+        target::Basis::YieldOf { reference, .. } => model.species_index(reference),
+        _ => target::limiting_reagent(model),
+    };
+    let products = shares(model, opts.products.as_deref().unwrap_or(&default), y_dose, reference);
     Ok(Plan {
         target: target.clone(),
         time,
@@ -399,16 +408,20 @@ fn dose(model: &Model, tr: &Trajectory, target: &Target, t: f64, y: &[f64]) -> D
     }
 }
 
-/// Species `which` formed at state `y` and their selectivities (shares of the total formed).
-fn shares(model: &Model, which: &[usize], y: &[f64]) -> Vec<Share> {
-    let formed: Vec<(usize, f64)> = which.iter().map(|&p| (p, (y[p] - model.initial[p]).max(0.0))).collect();
-    let total: f64 = formed.iter().map(|x| x.1).sum();
-    formed
-        .into_iter()
-        .map(|(p, f)| Share {
-            species: model.species[p].clone(),
-            formed: f,
-            selectivity: if total > 0.0 { f / total } else { 0.0 },
+/// Species `which` formed at state `y` and their selectivities: mol formed per mol of
+/// `reference` consumed.
+fn shares(model: &Model, which: &[usize], y: &[f64], reference: Option<usize>) -> Vec<Share> {
+    let consumed = reference.map_or(0.0, |r| (model.initial[r] - y[r]).max(0.0));
+    which
+        .iter()
+        .map(|&p| {
+            let f = (y[p] - model.initial[p]).max(0.0);
+            Share {
+                species: model.species[p].clone(),
+                formed: f,
+                selectivity: if consumed > 0.0 { f / consumed } else { 0.0 },
+                reference: reference.map(|r| model.species[r].clone()),
+            }
         })
         .collect()
 }
@@ -555,10 +568,17 @@ impl Tube {
         std::f64::consts::PI * 0.25 * self.inner_diameter * self.inner_diameter * self.length * 1000.0
     }
 
-    /// The model in this tube: path length = inner diameter, volume = the tube's, the sources'
-    /// photon flux unchanged (it is the flux entering the irradiated tubing).
+    /// The model in this tube: path length = inner diameter, volume = the tube's, the
+    /// background absorbance scaled with the path (Beer–Lambert, taking the background as the
+    /// solvent's), the sources' photon flux unchanged (it is the flux entering the tubing).
     pub fn apply(&self, model: &Model) -> Model {
         let mut m = model.clone();
+        if model.path > 0.0 {
+            let r = self.inner_diameter / model.path;
+            for a in &mut m.background {
+                *a *= r;
+            }
+        }
         m.path = self.inner_diameter;
         m.volume = self.volume_litres();
         m

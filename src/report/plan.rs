@@ -17,7 +17,8 @@ pub use super::simulation::CAUTIONS;
 /// The flow approximation, stated wherever a flow rate is given.
 pub const FLOW_APPROXIMATION: &str = "plug flow treated as a batch over the residence time τ = V/Q (no axial \
 dispersion, no radial concentration or light gradients beyond Beer–Lambert across the tube); optical path = \
-inner diameter; the sources' photon flux is taken as the flux entering the irradiated tubing";
+inner diameter; the background absorbance scales with the path (taken as the solvent's; a wall's share would \
+not); the sources' photon flux is taken as the flux entering the irradiated tubing";
 
 /// Electrical energy from a wall-plug efficiency.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -373,10 +374,13 @@ pub fn text(s: &PlanSummary) -> String {
         for p in formed {
             let _ = writeln!(
                 o,
-                "  {:<16} {:>12}  selectivity {} %",
+                "  {:<16} {:>12}  selectivity {} %{}",
                 p.species,
                 format_concentration(p.formed),
-                sig(p.selectivity * 100.0, 4)
+                sig(p.selectivity * 100.0, 4),
+                p.reference
+                    .as_ref()
+                    .map_or(String::new(), |r| format!(" (mol per mol {r} consumed)"))
             );
         }
     }
@@ -403,7 +407,7 @@ pub fn sweep_csv(axis: &SweepAxis, points: &[SweepPoint]) -> String {
     ];
     for p in &products {
         header.push(format!("{p} (mol/L)"));
-        header.push(format!("{p} selectivity (1)"));
+        header.push(format!("{p} selectivity (mol per mol reference consumed)"));
     }
     let mut t = CsvTable::new(header);
     for pt in points {
@@ -541,8 +545,8 @@ pub fn sweep_svg(network: &str, target: &str, axis: &SweepAxis, points: &[SweepP
     )
 }
 
-/// selectivity.svg: each product's share at the target time against the swept value
-/// (None when fewer than two products form).
+/// selectivity.svg: each product's selectivity at the target time (mol formed per 100 mol of
+/// the reference reagent consumed) against the swept value (None when fewer than two form).
 pub fn selectivity_svg(network: &str, axis: &SweepAxis, points: &[SweepPoint]) -> Option<String> {
     let names: Vec<String> = points
         .iter()
@@ -572,16 +576,24 @@ pub fn selectivity_svg(network: &str, axis: &SweepAxis, points: &[SweepPoint]) -
         xy_plot(
             &format!("{network}: selectivity at the target"),
             (&axis.label, axis.log),
-            ("share of products formed (%)", false),
+            ("formed per reagent consumed (%)", false),
             &series,
-            Some((0.0, 100.0)),
+            None,
         )
     })
 }
 
 /// The sweep as a text table.
 pub fn sweep_text(axis: &SweepAxis, points: &[SweepPoint]) -> String {
-    let mut o = format!("{:>14}  {:>14}  products (selectivity)\n", axis.label, "time to target");
+    let reference = points
+        .iter()
+        .find_map(|p| p.plan.as_ref().ok())
+        .and_then(|p| p.products.first())
+        .and_then(|s| s.reference.clone());
+    let what = reference.map_or("selectivity".to_string(), |r| {
+        format!("selectivity: formed per {r} consumed")
+    });
+    let mut o = format!("{:>14}  {:>14}  products ({what})\n", axis.label, "time to target");
     for p in points {
         let v = sig(p.value * axis.unit_factor, 4);
         match &p.plan {

@@ -83,9 +83,16 @@ pub fn section(p: &PlanStudy) -> String {
             })
             .collect();
         let h = format!("formed ({cu})");
+        let sel = plan
+            .products
+            .first()
+            .and_then(|x| x.reference.as_ref())
+            .map_or("selectivity (%)".to_string(), |r| {
+                format!("selectivity: per {r} consumed (%)")
+            });
         s.push_str(&page::table(
             "Products at that time",
-            &[("product", false), (&h, true), ("share of the products (%)", true)],
+            &[("product", false), (&h, true), (&sel, true)],
             &rows,
         ));
     }
