@@ -749,7 +749,30 @@ impl<'a> Builder<'a> {
             };
             let src = LightSource::new(name.clone(), lk, intensity, window);
             if src.bins.is_empty() {
-                self.error(&field, &at, "carries no photons inside its from/to window", None);
+                // The window is a filter on the emitted spectrum: one that keeps nothing is an
+                // error for every kind (a line outside it as much as a band).
+                let (lo, hi) = LightSource::new(name.clone(), src.kind.clone(), intensity, (0.0, f64::INFINITY))
+                    .extent()
+                    .unwrap_or((0.0, 0.0));
+                let nm = |m: f64| format!("{} nm", units::sig(m * 1e9, 5));
+                let (key, edge) = if hi < window.0 {
+                    ("from", nm(window.0))
+                } else {
+                    ("to", nm(window.1))
+                };
+                let (emits, keep) = if lo == hi {
+                    (format!("at {}", nm(lo)), format!("includes {}", nm(lo)))
+                } else {
+                    (format!("over {}–{}", nm(lo), nm(hi)), format!("overlaps {}–{}", nm(lo), nm(hi)))
+                };
+                self.error(
+                    &format!("{field}.{key}"),
+                    &at,
+                    format!("\"{edge}\" leaves no photons: the source emits {emits}, all outside its from/to window"),
+                    Some(format!(
+                        "from/to is a filter that cuts the emitted spectrum: give a window that {keep}, or drop from/to"
+                    )),
+                );
                 continue;
             }
             out.push(src);

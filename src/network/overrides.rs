@@ -277,9 +277,9 @@ pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
         };
         return match (field, &l.kind, l.intensity) {
             ("power", _, Some(Intensity::Power(w))) => Ok(p(w, "W", Range::Positive)),
-            ("power", _, Some(_)) => Ok(p(l.power(), "W", Range::Positive)),
+            ("power", _, Some(_)) => Ok(p(l.emitted_power, "W", Range::Positive)),
             ("photon_flux", _, Some(Intensity::PhotonFlux(q))) => Ok(p(q, "einstein/s", Range::Positive)),
-            ("photon_flux", _, Some(_)) => Ok(p(l.photon_flux(), "einstein/s", Range::Positive)),
+            ("photon_flux", _, Some(_)) => Ok(p(l.emitted_photon_flux, "einstein/s", Range::Positive)),
             ("wavelength", LightKind::Line { wavelength }, _) => Ok(p(*wavelength, "m", Range::Positive)),
             ("centre", LightKind::Band { centre, .. }, _) => Ok(p(*centre, "m", Range::Positive)),
             ("fwhm", LightKind::Band { fwhm, .. }, _) => Ok(p(*fwhm, "m", Range::Positive)),
