@@ -336,7 +336,11 @@ mod tests {
         // A photon flux is also the whole source's.
         let s = band(Intensity::PhotonFlux(2e-6), (0.0, 390e-9));
         assert!((s.emitted_photon_flux - 2e-6).abs() < 1e-18);
-        assert!(s.photon_flux() > 0.9e-6 && s.photon_flux() < 1.1e-6, "{}", s.photon_flux());
+        assert!(
+            s.photon_flux() > 0.9e-6 && s.photon_flux() < 1.1e-6,
+            "{}",
+            s.photon_flux()
+        );
         // No window: nothing is cut.
         let s = band(Intensity::Power(3.0), (0.0, f64::INFINITY));
         assert!(!s.window_cuts() && (s.power() - 3.0).abs() < 1e-12);

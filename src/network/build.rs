@@ -165,9 +165,8 @@ impl<'a> Builder<'a> {
         };
         let thermal = self.thermal(doc, &resolver, t);
         let photo = self.photo(doc, &resolver);
-        let flux: f64 = lights.iter().map(|l| l.photon_flux()).sum();
-        let photon = (flux > 0.0).then(|| lights.iter().map(|l| l.power()).sum::<f64>() / flux);
-        let transients = self.transients(doc, &resolver, &transient_heads, t, photon);
+        let photon = absorbed_photon_energy(doc, &transient_heads, &lights, &species, &photo);
+        let transients = self.transients(doc, &resolver, &transient_heads, t, &photon);
         let mut net = Network {
             source: Some(self.loaded.path.clone()),
             about,
@@ -763,7 +762,10 @@ impl<'a> Builder<'a> {
                 let (emits, keep) = if lo == hi {
                     (format!("at {}", nm(lo)), format!("includes {}", nm(lo)))
                 } else {
-                    (format!("over {}–{}", nm(lo), nm(hi)), format!("overlaps {}–{}", nm(lo), nm(hi)))
+                    (
+                        format!("over {}–{}", nm(lo), nm(hi)),
+                        format!("overlaps {}–{}", nm(lo), nm(hi)),
+                    )
                 };
                 self.error(
                     &format!("{field}.{key}"),
@@ -1517,7 +1519,7 @@ impl<'a> Builder<'a> {
         names: &Names,
         heads: &[(String, TransientKind)],
         temperature: f64,
-        photon: Option<f64>,
+        photon: &[AbsorbedEnergy],
     ) -> Vec<Transient> {
         let mut out = Vec::new();
         for (i, t) in doc.transient.iter().enumerate() {
@@ -1529,6 +1531,7 @@ impl<'a> Builder<'a> {
                     name,
                     kind,
                     channels: Vec::new(),
+                    energy_from: None,
                 });
                 continue;
             }
@@ -1706,7 +1709,12 @@ impl<'a> Builder<'a> {
             }
             // A channel already reported as broken would only add follow-on errors about sums.
             let complete = channels.len() == t.get_ref().channels.len() && !hot_broken;
-            let hot_ok = complete && self.hot_yields(&field, t, kind, &hot, &mut channels, photon);
+            let hot_ok = complete && self.hot_yields(&field, t, kind, &hot, &mut channels, &photon[i]);
+            let photon_energy = t
+                .get_ref()
+                .energy
+                .as_ref()
+                .is_some_and(|e| e.get_ref().trim() == "photon");
             if complete && hot_ok {
                 self.check_channels(&field, &at, &channels);
             }
@@ -1714,6 +1722,7 @@ impl<'a> Builder<'a> {
                 name,
                 kind,
                 channels: channels.into_iter().map(|c| c.0).collect(),
+                energy_from: (photon_energy && !hot.is_empty()).then(|| photon[i].describe()),
             });
         }
         out
@@ -1893,4 +1902,107 @@ fn unused_override(loaded: &Loaded, key: &str) -> Diagnostic {
 pub(super) struct Names<'a> {
     species: &'a [Species],
     transients: &'a [(String, TransientKind)],
+}
+
+/// The mean molar energy of the photons that lead to one transient (for `energy = "photon"`).
+#[derive(Debug, Clone, PartialEq)]
+pub(super) struct AbsorbedEnergy {
+    /// Mean molar photon energy, J/mol; None when no absorbed photon leads there.
+    pub energy: Option<f64>,
+    /// Names of the absorbing species of the photochemical steps that reach the transient.
+    pub absorbers: Vec<String>,
+}
+
+impl AbsorbedEnergy {
+    /// The weighting in words, for `check`.
+    pub fn describe(&self) -> String {
+        format!(
+            "starting energy = mean energy of the photons taken up by {} on the way here, each wavelength bin \
+             weighted by ε(λ)·Φ(λ)·q(λ) (optically thin; Φ the step's efficiency or quantum yield)",
+            if self.absorbers.is_empty() {
+                "(no absorber)".to_string()
+            } else {
+                self.absorbers.join(", ")
+            }
+        )
+    }
+}
+
+/// For every transient, the mean molar energy of the photons that its absorbers take up: the
+/// photochemical steps whose transient reaches it (directly or through other transients'
+/// channels) count, each wavelength bin of every light weighted by ε_absorber(λ) · Φ_step(λ) ·
+/// q(λ) (q the bin's photon flux, einstein/s; Φ zero outside the step's range). This is the
+/// optically thin weighting: what each absorber takes up per molecule, whatever its
+/// concentration and the inner filter of others.
+fn absorbed_photon_energy(
+    doc: &schema::NetworkFile,
+    heads: &[(String, TransientKind)],
+    lights: &[LightSource],
+    species: &[Species],
+    photo: &[PhotoStep],
+) -> Vec<AbsorbedEnergy> {
+    let n = heads.len();
+    // Transient -> transient edges straight from the file (the built channels come later).
+    let next: Vec<Vec<usize>> = doc
+        .transient
+        .iter()
+        .map(|t| {
+            t.get_ref()
+                .channels
+                .iter()
+                .filter_map(|c| {
+                    let to = c.get_ref().to.as_ref()?.get_ref().trim().to_string();
+                    heads.iter().position(|h| !h.0.is_empty() && h.0 == to)
+                })
+                .collect()
+        })
+        .collect();
+    let reach = |from: usize| {
+        let mut seen = vec![false; n];
+        let mut stack = vec![from];
+        while let Some(j) = stack.pop() {
+            if j < n && !seen[j] {
+                seen[j] = true;
+                stack.extend(next.get(j).into_iter().flatten().copied());
+            }
+        }
+        seen
+    };
+    let steps: Vec<(&PhotoStep, Vec<bool>)> = photo
+        .iter()
+        .filter_map(|s| match s.outcome {
+            PhotoOutcome::Transient(k) => Some((s, reach(k))),
+            PhotoOutcome::Products(_) => None,
+        })
+        .collect();
+    (0..n)
+        .map(|i| {
+            let leading: Vec<&PhotoStep> = steps.iter().filter(|(_, r)| r[i]).map(|(s, _)| *s).collect();
+            let mut absorbers: Vec<String> = Vec::new();
+            for s in &leading {
+                if let Some(sp) = species.get(s.absorber)
+                    && !absorbers.contains(&sp.name)
+                {
+                    absorbers.push(sp.name.clone());
+                }
+            }
+            let (mut w, mut we) = (0.0, 0.0);
+            for b in lights.iter().flat_map(|l| &l.bins) {
+                let take: f64 = leading
+                    .iter()
+                    .map(|s| {
+                        let eps = species.get(s.absorber).and_then(|sp| sp.epsilon.as_ref());
+                        eps.map_or(0.0, |e| e.at(b.wavelength)) * s.yield_at(b.wavelength)
+                    })
+                    .sum::<f64>()
+                    * b.flux;
+                w += take;
+                we += take * crate::units::constants::molar_photon_energy(b.wavelength);
+            }
+            AbsorbedEnergy {
+                energy: (w > 0.0 && we.is_finite()).then(|| we / w),
+                absorbers,
+            }
+        })
+        .collect()
 }

@@ -98,7 +98,11 @@ pub fn network_summary(net: &Network) -> String {
             if l.window_cuts() { "in " } else { "(" },
             sig(lo * 1e9, 4),
             sig(hi * 1e9, 4),
-            if l.window_cuts() { " (from/to cuts the emitted light)" } else { ")" }
+            if l.window_cuts() {
+                " (from/to cuts the emitted light)"
+            } else {
+                ")"
+            }
         );
     }
     let _ = writeln!(s, "\nspecies");
@@ -255,6 +259,9 @@ pub fn network_summary(net: &Network) -> String {
                     to,
                     if ch.returns { "   (return)" } else { "" }
                 );
+            }
+            if let Some(e) = &t.energy_from {
+                let _ = writeln!(s, "       {e}");
             }
         }
     }
