@@ -55,6 +55,8 @@ pub(super) struct Places {
     pub(super) thermal: Vec<Origin>,
     pub(super) photo: Vec<Origin>,
     pub(super) transients: Vec<Origin>,
+    /// Where `conditions.irradiated_area` was given.
+    pub(super) irradiated_area: Origin,
 }
 
 pub(super) fn span<T>(s: &Spanned<T>) -> Origin {
@@ -232,7 +234,10 @@ impl<'a> Builder<'a> {
         let f = self.field(c.path_length.as_ref(), Some("conditions.path_length"));
         let path_length = self.required("conditions.path_length", f, &at, Quantity::Length);
         let irradiated_area = match self.field(c.irradiated_area.as_ref(), Some("conditions.irradiated_area")) {
-            Some(f) => Some(self.positive("conditions.irradiated_area", &f, Quantity::Area)?),
+            Some(f) => {
+                self.at.irradiated_area = f.origin.clone();
+                Some(self.positive("conditions.irradiated_area", &f, Quantity::Area)?)
+            }
             None => None,
         };
         let background = if let Some(v) = self.overrides.get("conditions.background") {
