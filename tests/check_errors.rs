@@ -1741,3 +1741,60 @@ fn a_lit_column_larger_than_the_volume_warns() {
     r.expect_code(0);
     assert!(!r.stderr.contains("lit solution"), "{}", r.stderr);
 }
+
+// A percentage is accepted wherever a share is: 12 % = 0.12 (common practice).
+#[test]
+fn percentages_are_accepted_for_shares() {
+    let qy = |v: &str| edit(SWITCH, "quantum_yield = 0.12", &format!("quantum_yield = {v}"));
+    let percent = summary_of("qy-pc", &qy("\"12 %\""), &[]);
+    assert_eq!(percent, summary_of("qy-num", &qy("0.12"), &[]));
+    let small = summary_of("qy-small-pc", &qy("\"0.12 %\""), &[]);
+    assert_eq!(small, summary_of("qy-small", &qy("0.0012"), &[]));
+    assert_ne!(percent, small);
+    // on the command line too
+    assert_eq!(
+        summary_of(
+            "qy-set",
+            &qy("0.5"),
+            &["--set", "photo.E-azo -> Z-azo (hν).quantum_yield=12 %"]
+        ),
+        percent
+    );
+    // efficiency and channel fractions
+    let ring = |eff: &str, f: &str| {
+        let t = edit(
+            RING,
+            "excites = \"S1\"",
+            &format!("excites = \"S1\"\nefficiency = {eff}"),
+        );
+        edit(
+            &t,
+            "{ to = \"open\", fraction = 0.4 }",
+            &format!("{{ to = \"open\", fraction = {f} }}"),
+        )
+    };
+    assert_eq!(
+        summary_of("ring-pc", &ring("\"95 %\"", "\"40 %\""), &[]),
+        summary_of("ring-num", &ring("0.95", "0.4"), &[])
+    );
+    // a misspelt percentage names the field and what is accepted
+    let (_s, p, r) = check_text("qy-bad", &qy("\"12 percent\""), &[]);
+    assert_invalid(&r);
+    diag(
+        &r.stderr,
+        "error",
+        &p,
+        Some(loc(&qy("\"12 percent\""), "\"12 percent\"")),
+        "photo[0].quantum_yield",
+    )
+    .says(&["\"12 percent\" is not a number or a percentage", "\"12 %\""]);
+    let (_s, _p, r) = check_text("eff-bad", &ring("\"95 percent\"", "0.4"), &[]);
+    assert_invalid(&r);
+    assert_contains(
+        &r.stderr,
+        &["photo[0].efficiency", "not a number or a percentage", "\"30 %\""],
+    );
+    let (_s, _p, r) = check_text("qy-over", &qy("\"120 %\""), &[]);
+    assert_invalid(&r);
+    assert_contains(&r.stderr, &["photo[0].quantum_yield", "1.2 is above 1"]);
+}

@@ -214,7 +214,7 @@ pub struct Photo {
     /// Long form: the transient reached on absorption.
     pub excites: Option<Text>,
     /// Long form: fraction of absorptions that reach the transient (default 1; the rest return).
-    pub efficiency: Option<Spanned<f64>>,
+    pub efficiency: Option<Spanned<toml::Value>>,
     /// Wavelength window `["300 nm", "400 nm"]` in which this step applies.
     pub range: Option<Spanned<Vec<String>>>,
 }

@@ -305,6 +305,18 @@ impl<'a> Builder<'a> {
                     None
                 }
             },
+            // A dimensionless value may be a percentage: "12 %" is 0.12.
+            Valued::Text(s) if q.is_none() => match units::fraction(s) {
+                Ok(x) if x >= 0.0 => Some(Spectrum::Constant { value: x, at: None }),
+                Ok(x) => {
+                    self.error(field, &at, format!("{x} must be a non-negative number"), None);
+                    None
+                }
+                Err(m) => {
+                    self.error(field, &at, m, Some(format!("expected {table_help}")));
+                    None
+                }
+            },
             Valued::Text(s) => {
                 self.error(
                     field,
@@ -1141,16 +1153,43 @@ impl<'a> Builder<'a> {
         r
     }
 
+    /// A share from the file: a number, or a percentage string such as "12 %" (= 0.12); range
+    /// checks are the caller's.
+    fn share(&mut self, field: &str, at: &Origin, v: &toml::Value) -> Option<f64> {
+        let r = match v {
+            toml::Value::Float(x) => Ok(*x),
+            toml::Value::Integer(x) => Ok(*x as f64),
+            toml::Value::String(s) => units::fraction(s),
+            other => Err(format!("{other} is not a number")),
+        };
+        match r {
+            Ok(x) => Some(x),
+            Err(m) => {
+                self.error(
+                    field,
+                    at,
+                    m,
+                    Some("a number such as 0.3, or a percentage such as \"30 %\"".into()),
+                );
+                None
+            }
+        }
+    }
+
     /// A number in [0, 1] given with `--set` (quantum yield, efficiency).
     fn fraction_given(&mut self, field: &str, v: &str) -> Option<f64> {
-        match v.parse::<f64>() {
+        match units::fraction(v) {
             Ok(x) if (0.0..=1.0).contains(&x) => Some(x),
             _ => {
                 self.error(
                     field,
                     &Origin::CommandLine,
                     format!("\"{v}\" is not a number in [0, 1]"),
-                    Some("a plain number such as 0.25 (it replaces a table by one value at every wavelength)".into()),
+                    Some(
+                        "a number such as 0.25 or a percentage such as \"25 %\" (it replaces a table by one value at \
+                         every wavelength)"
+                            .into(),
+                    ),
                 );
                 None
             }
@@ -1470,7 +1509,9 @@ impl<'a> Builder<'a> {
                         },
                         (None, e) => match e {
                             Some(v) => {
-                                let x = *v.get_ref();
+                                let Some(x) = self.share(&format!("{field}.efficiency"), &span(v), v.get_ref()) else {
+                                    continue;
+                                };
                                 if !(0.0..=1.0).contains(&x) || x == 0.0 {
                                     self.error(
                                         &format!("{field}.efficiency"),
@@ -1619,7 +1660,7 @@ impl<'a> Builder<'a> {
                 let ck = format!("transient.{name}.channels[{j}]");
                 let fraction = match (&e.fraction, &e.rate) {
                     // The channel taking the rest has no number of its own to set.
-                    (Some(f), None) if !matches!(f.get_ref(), toml::Value::String(_)) => {
+                    (Some(f), None) if !matches!(f.get_ref(), toml::Value::String(s) if s.trim() == "rest") => {
                         match self.overrides.get(&format!("{ck}.fraction")) {
                             Some(v) => Some(Spanned::new(
                                 0..0,
@@ -1634,11 +1675,9 @@ impl<'a> Builder<'a> {
                 let branching = match (&fraction, &e.rate, &e.quencher) {
                     (Some(f), None, None) => match f.get_ref() {
                         toml::Value::String(s) if s.trim() == "rest" => Branching::Rest,
-                        toml::Value::Float(_) | toml::Value::Integer(_) => {
-                            let x = match f.get_ref() {
-                                toml::Value::Float(x) => *x,
-                                toml::Value::Integer(x) => *x as f64,
-                                _ => unreachable!(),
+                        toml::Value::Float(_) | toml::Value::Integer(_) | toml::Value::String(_) => {
+                            let Some(x) = self.share(&format!("{cf}.fraction"), &origin(f), f.get_ref()) else {
+                                continue;
                             };
                             if !(0.0..=1.0).contains(&x) {
                                 self.error(
