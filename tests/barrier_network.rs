@@ -284,9 +284,18 @@ fn bundled_networks_validate_and_the_flow_hot_branch_is_computed() {
     else {
         panic!("the first channel of product-hot is a hot channel");
     };
-    let flux: f64 = net.lights.iter().map(|l| l.photon_flux()).sum();
-    let photon: f64 = net.lights.iter().map(|l| l.power()).sum::<f64>() / flux;
-    assert!((energy - photon).abs() < 1e-9 * photon);
+    // energy = "photon": the mean molar photon energy of what the product (the absorber of
+    // the step that reaches product-hot) takes up, each bin weighted by ε(λ)·Φ·q(λ) (optically thin).
+    let product = &net.species[net.species_index("product").unwrap()];
+    let eps = product.epsilon.as_ref().unwrap();
+    let bins: Vec<_> = net.lights.iter().flat_map(|l| l.bins.iter()).collect();
+    let w: f64 = bins.iter().map(|b| eps.at(b.wavelength) * b.flux).sum();
+    let we: f64 = bins
+        .iter()
+        .map(|b| eps.at(b.wavelength) * b.flux * PLANCK * SPEED_OF_LIGHT * AVOGADRO / b.wavelength)
+        .sum();
+    let photon = we / w;
+    assert!((energy - photon).abs() < 1e-9 * photon, "{energy} vs {photon}");
     let freq = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data/frequencies/flow-product.txt");
     let f = photoledger::file::frequencies::read(&freq).unwrap();
     let ts = f.ts.unwrap();
@@ -526,4 +535,85 @@ fn cli_several_hot_channels() {
     ]);
     assert_eq!(code, 2);
     assert!(err.contains("write FILE=E0"), "{err}");
+}
+
+/// `hot_text` with A absorbing only below 420 nm (a table, zero beyond) and `lights` as the light.
+fn hot_text_lit(lights: &str) -> String {
+    let base_light = "[[light]]\nkind = \"line\"\nwavelength = \"365 nm\"\npower = \"10 mW\"\n";
+    hot_text("14 kcal/mol", "18 kcal/mol", "photon", "3 ps")
+        .replacen(base_light, lights, 1)
+        .replacen(
+            "epsilon = { at = \"365 nm\", value = \"2000 L/(mol cm)\" }",
+            "epsilon = { wavelength_unit = \"nm\", unit = \"L/(mol cm)\", points = [[300, 1000], [365, 2000], [420, 0]] }",
+            1,
+        )
+}
+
+fn hot_energy(net: &Network) -> f64 {
+    match net.transients[0].channels[0].branching {
+        Branching::Hot { energy, .. } => energy,
+        _ => panic!("the first channel is hot"),
+    }
+}
+
+fn line(name: &str, nm: f64, mw: f64) -> String {
+    format!("[[light]]\nname = \"{name}\"\nkind = \"line\"\nwavelength = \"{nm} nm\"\npower = \"{mw} mW\"\n")
+}
+
+// energy = "photon" is the mean energy of the photons the absorber takes up: a line it does not
+// absorb changes neither the energy nor the yields; with two absorbed lines it is the ε·q-weighted
+// mean, E = Σ εᵢ qᵢ Eᵢ / Σ εᵢ qᵢ with qᵢ = Pᵢ / Eᵢ and Eᵢ = h c N_A / λᵢ (CODATA 2018), i.e.
+// Σ εᵢ Pᵢ / Σ εᵢ qᵢ (optically thin weighting, common practice).
+#[test]
+fn photon_energy_counts_only_the_photons_the_absorber_takes_up() {
+    let dir = scratch("hot-photon");
+    write_ts_c(&dir);
+    let one = net_in(&dir, &hot_text_lit(&line("uv", 365.0, 10.0))).unwrap();
+    let extra = format!("{}{}", line("uv", 365.0, 10.0), line("red", 650.0, 3000.0));
+    let two = net_in(&dir, &hot_text_lit(&extra)).unwrap();
+    let e365 = PLANCK * SPEED_OF_LIGHT * AVOGADRO / 365e-9;
+    assert!((hot_energy(&one) - e365).abs() < 1e-9 * e365, "{}", hot_energy(&one));
+    assert_eq!(hot_energy(&one), hot_energy(&two));
+    assert_eq!(hot_fractions(&one), hot_fractions(&two));
+    // Two absorbed lines: 10 mW at 365 nm (ε 2000) and 20 mW at 400 nm (ε 2000·20/55 on the table).
+    let both = format!("{}{}", line("uv", 365.0, 10.0), line("violet", 400.0, 20.0));
+    let net = net_in(&dir, &hot_text_lit(&both)).unwrap();
+    let (eps1, eps2) = (2000.0, 2000.0 * 20.0 / 55.0);
+    let (p1, p2) = (10e-3, 20e-3);
+    let e400 = PLANCK * SPEED_OF_LIGHT * AVOGADRO / 400e-9;
+    let want = (eps1 * p1 + eps2 * p2) / (eps1 * p1 / e365 + eps2 * p2 / e400);
+    assert!(
+        (hot_energy(&net) - want).abs() < 1e-9 * want,
+        "{} vs {want}",
+        hot_energy(&net)
+    );
+    // and not the plain mean of the incident photons (the two differ by about 7 kJ/mol here)
+    let plain = (p1 + p2) / (p1 / e365 + p2 / e400);
+    assert!((want - plain).abs() > 1000.0, "{want} {plain}");
+    // a line the absorber takes up none of, alone: a clear error on the energy key
+    let err = net_in(&dir, &hot_text_lit(&line("red", 650.0, 3000.0))).unwrap_err();
+    assert!(
+        err.contains("energy") && err.contains("take up none of the light"),
+        "{err}"
+    );
+}
+
+// The reviewer's case: an unrelated 650 nm, 3 W line added to the flow reactor (the product does
+// not absorb beyond 435 nm) leaves the product-hot yield as it was.
+#[test]
+fn an_unabsorbed_line_leaves_the_flow_hot_yield_alone() {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("networks");
+    let text = std::fs::read_to_string(dir.join("flow-cyclization.toml")).unwrap();
+    let red = "\n[[light]]\nname = \"red\"\nkind = \"line\"\nwavelength = \"650 nm\"\npower = \"3 W\"\n";
+    let plain = net_in(&dir, &text).unwrap();
+    let lit = net_in(&dir, &format!("{text}{red}")).unwrap();
+    let y = |n: &Network| {
+        let i = n.transient_index("product-hot").unwrap();
+        match n.transients[i].channels[0].branching {
+            Branching::Hot { fraction, energy, .. } => (fraction, energy),
+            _ => panic!("hot channel"),
+        }
+    };
+    assert_eq!(y(&plain), y(&lit));
+    assert!(y(&plain).0 > 0.0);
 }

@@ -1625,3 +1625,176 @@ fn a_conditions_error_does_not_hide_the_others() {
     );
     assert_contains(&r.stderr, &["2 errors"]);
 }
+
+// ---------------------------------------------------------------------------------------------
+// Light windows, lit geometry, percentages
+// ---------------------------------------------------------------------------------------------
+
+/// `check`'s stdout with the scratch path taken out, so two runs can be compared.
+fn summary_of(tag: &str, text: &str, extra: &[&str]) -> String {
+    let (_s, p, r) = check_text(tag, text, extra);
+    r.expect_code(0);
+    r.stdout.replace(&p.display().to_string(), "NET").replace(tag, "NAME")
+}
+
+// from/to is a filter that cuts: a 3 W band at 390 nm (FWHM 14 nm) behind a long-pass filter at
+// its centre keeps half its power, as a Gaussian is symmetric about its centre (common practice).
+#[test]
+fn a_window_cuts_a_band_and_check_says_so() {
+    let text = edit(
+        SWITCH,
+        "kind = \"line\"\nwavelength = \"365 nm\"\npower = \"20 mW\"",
+        "kind = \"band\"\ncentre = \"390 nm\"\nfwhm = \"14 nm\"\npower = \"3 W\"\nfrom = \"390 nm\"",
+    );
+    let (_s, _p, r) = check_text("band-window", &text, &[]);
+    r.expect_code(0);
+    assert_contains(
+        &r.stdout,
+        &[
+            "3000 mW emitted, 1500 mW",
+            "in 390–418 nm",
+            "from/to cuts the emitted light",
+        ],
+    );
+    // without the window nothing is cut and nothing is said about it
+    let (_s, _p, r) = check_text("band-open", &edit(&text, "from = \"390 nm\"\n", ""), &[]);
+    r.expect_code(0);
+    assert_contains(&r.stdout, &["3000 mW = "]);
+    assert!(!r.stdout.contains("emitted"), "{}", r.stdout);
+}
+
+#[test]
+fn a_line_outside_its_window_is_an_error() {
+    let text = edit(SWITCH, "power = \"20 mW\"", "power = \"20 mW\"\nfrom = \"400 nm\"");
+    let (_s, p, r) = check_text("line-window", &text, &[]);
+    assert_invalid(&r);
+    diag(
+        &r.stderr,
+        "error",
+        &p,
+        Some(table_of(&text, "name = \"UV LED\"")),
+        "light[0].from",
+    )
+    .says(&["\"400 nm\" leaves no photons", "emits at 365 nm"])
+    .helps(&["a window that includes 365 nm", "or drop from/to"]);
+    // and a band wholly outside its window, the same way (here beyond `to`)
+    let band = edit(
+        SWITCH,
+        "kind = \"line\"\nwavelength = \"365 nm\"\npower = \"20 mW\"",
+        "kind = \"band\"\ncentre = \"450 nm\"\nfwhm = \"10 nm\"\npower = \"20 mW\"\nto = \"400 nm\"",
+    );
+    let (_s, p, r) = check_text("band-window-out", &band, &[]);
+    assert_invalid(&r);
+    diag(
+        &r.stderr,
+        "error",
+        &p,
+        Some(table_of(&band, "name = \"UV LED\"")),
+        "light[0].to",
+    )
+    .says(&["\"400 nm\" leaves no photons", "emits over 430 nm–470 nm"])
+    .helps(&["overlaps 430 nm–470 nm"]);
+}
+
+// The lit column (area × path length) cannot exceed the volume: 4 cm² × 1 cm = 4 mL > 3 mL.
+#[test]
+fn a_lit_column_larger_than_the_volume_warns() {
+    let with_area = |a: &str| {
+        edit(
+            SWITCH,
+            "path_length = \"1 cm\"",
+            &format!("path_length = \"1 cm\"\nirradiated_area = \"{a}\""),
+        )
+    };
+    let text = with_area("4 cm2");
+    let (_s, p, r) = check_text("lit-column", &text, &[]);
+    assert_valid_with_warnings(&r, &p, 1);
+    diag(
+        &r.stderr,
+        "warning",
+        &p,
+        Some(loc(&text, "\"4 cm2\"")),
+        "conditions.irradiated_area",
+    )
+    .says(&[
+        "4 cm2 × 1 cm = 4 mL",
+        "conditions.volume = 3 mL",
+        "1.33×",
+        "impossible geometry",
+    ])
+    .helps(&["make volume at least irradiated_area × path_length (4 mL)"]);
+    // equal (within 1 %) and smaller columns are fine: a stirred vessel partly lit
+    for a in ["3 cm2", "3.02 cm2", "1 cm2"] {
+        let (_s, _p, r) = check_text("lit-column-ok", &with_area(a), &[]);
+        r.expect_code(0);
+        assert!(!r.stderr.contains("warning"), "{a}: {}", r.stderr);
+    }
+    // the reviewer's case: the pool's 0.25 m² × 3 cm = 7.5 L put into 1 L
+    let pool = Path::new(env!("CARGO_MANIFEST_DIR")).join("networks/prebiotic-pool.toml");
+    let r = check(&pool, &["--set", "conditions.volume=1 L"]);
+    r.expect_code(0);
+    assert_contains(
+        &r.stderr,
+        &["conditions.irradiated_area", "0.25 m2 × 3 cm = 7.5 L", "= 1 L (7.5×)"],
+    );
+    let r = check(&pool, &[]);
+    r.expect_code(0);
+    assert!(!r.stderr.contains("lit solution"), "{}", r.stderr);
+}
+
+// A percentage is accepted wherever a share is: 12 % = 0.12 (common practice).
+#[test]
+fn percentages_are_accepted_for_shares() {
+    let qy = |v: &str| edit(SWITCH, "quantum_yield = 0.12", &format!("quantum_yield = {v}"));
+    let percent = summary_of("qy-pc", &qy("\"12 %\""), &[]);
+    assert_eq!(percent, summary_of("qy-num", &qy("0.12"), &[]));
+    let small = summary_of("qy-small-pc", &qy("\"0.12 %\""), &[]);
+    assert_eq!(small, summary_of("qy-small", &qy("0.0012"), &[]));
+    assert_ne!(percent, small);
+    // on the command line too
+    assert_eq!(
+        summary_of(
+            "qy-set",
+            &qy("0.5"),
+            &["--set", "photo.E-azo -> Z-azo (hν).quantum_yield=12 %"]
+        ),
+        percent
+    );
+    // efficiency and channel fractions
+    let ring = |eff: &str, f: &str| {
+        let t = edit(
+            RING,
+            "excites = \"S1\"",
+            &format!("excites = \"S1\"\nefficiency = {eff}"),
+        );
+        edit(
+            &t,
+            "{ to = \"open\", fraction = 0.4 }",
+            &format!("{{ to = \"open\", fraction = {f} }}"),
+        )
+    };
+    assert_eq!(
+        summary_of("ring-pc", &ring("\"95 %\"", "\"40 %\""), &[]),
+        summary_of("ring-num", &ring("0.95", "0.4"), &[])
+    );
+    // a misspelt percentage names the field and what is accepted
+    let (_s, p, r) = check_text("qy-bad", &qy("\"12 percent\""), &[]);
+    assert_invalid(&r);
+    diag(
+        &r.stderr,
+        "error",
+        &p,
+        Some(loc(&qy("\"12 percent\""), "\"12 percent\"")),
+        "photo[0].quantum_yield",
+    )
+    .says(&["\"12 percent\" is not a number or a percentage", "\"12 %\""]);
+    let (_s, _p, r) = check_text("eff-bad", &ring("\"95 percent\"", "0.4"), &[]);
+    assert_invalid(&r);
+    assert_contains(
+        &r.stderr,
+        &["photo[0].efficiency", "not a number or a percentage", "\"30 %\""],
+    );
+    let (_s, _p, r) = check_text("qy-over", &qy("\"120 %\""), &[]);
+    assert_invalid(&r);
+    assert_contains(&r.stderr, &["photo[0].quantum_yield", "1.2 is above 1"]);
+}

@@ -214,7 +214,7 @@ pub struct Photo {
     /// Long form: the transient reached on absorption.
     pub excites: Option<Text>,
     /// Long form: fraction of absorptions that reach the transient (default 1; the rest return).
-    pub efficiency: Option<Spanned<f64>>,
+    pub efficiency: Option<Spanned<toml::Value>>,
     /// Wavelength window `["300 nm", "400 nm"]` in which this step applies.
     pub range: Option<Spanned<Vec<String>>>,
 }
@@ -233,7 +233,7 @@ pub struct Transient {
     /// Free text.
     pub note: Option<Text>,
     /// Hot ground state with `hot` channels: the excess vibrational energy it starts with above
-    /// its zero-point level, e.g. "85 kcal/mol", or "photon" (the mean incident photon energy).
+    /// its zero-point level, e.g. "85 kcal/mol", or "photon" (the mean energy of the photons its absorbers take up, ε·Φ·q weighted).
     pub energy: Option<Text>,
     /// Hot ground state: time constant of the exponential cooling of the excess energy, e.g. "5 ps".
     pub cooling_time: Option<Text>,

@@ -1,10 +1,16 @@
 //! Light sources and their photons, as bins of (wavelength, photon flux).
 //!
 //! Every source, whatever its kind, is turned into a list of [`PhotonBin`]s whose fluxes sum
-//! to the source's total photon flux entering the sample (einstein/s). A line is one bin; a
-//! band, a tabulated lamp and sunlight are quadratures of their spectral power, each bin
-//! carrying the photons of its share of the spectrum at its own photon energy. Engines then
-//! only ever see bins, so adding a source kind means writing one function that returns bins.
+//! to the photon flux entering the sample (einstein/s). A line is one bin; a band, a tabulated
+//! lamp and sunlight are quadratures of their spectral power, each bin carrying the photons of
+//! its share of the spectrum at its own photon energy. Engines then only ever see bins, so
+//! adding a source kind means writing one function that returns bins.
+//!
+//! The stated intensity (power or photon flux; for sunlight the scaled reference spectrum) is
+//! always that of the whole source as emitted. A wavelength window (`from`/`to`) is a filter
+//! that cuts: the bins keep only the part of the emitted spectrum inside it, so a long-pass
+//! filter at the centre of a band keeps about half of the band's power. This holds for every
+//! kind alike.
 
 pub mod solar;
 pub mod spectrum;
@@ -68,33 +74,48 @@ pub struct LightSource {
     pub name: String,
     /// Kind and shape.
     pub kind: LightKind,
-    /// Total intensity (None for sunlight, whose intensity follows from the table).
+    /// Total intensity of the whole source as emitted, before the window cuts (None for
+    /// sunlight, whose intensity follows from the table).
     pub intensity: Option<Intensity>,
-    /// Wavelength window kept (m), inclusive.
+    /// Wavelength window (m), inclusive: a filter that cuts the emitted spectrum.
     pub window: (f64, f64),
-    /// The photons, sorted by wavelength.
+    /// The photons inside the window, sorted by wavelength.
     pub bins: Vec<PhotonBin>,
+    /// Radiant power of the whole source as emitted (before the window cuts), W.
+    pub emitted_power: f64,
+    /// Photon flux of the whole source as emitted (before the window cuts), einstein/s.
+    pub emitted_photon_flux: f64,
 }
 
 impl LightSource {
-    /// Build a source and its photon bins.
+    /// Build a source and its photon bins: `intensity` is that of the whole source, `window`
+    /// (m) cuts the emitted spectrum.
     pub fn new(name: String, kind: LightKind, intensity: Option<Intensity>, window: (f64, f64)) -> Self {
-        let bins = bins_for(&kind, intensity, window);
+        let (bins, emitted) = bins_for(&kind, intensity, window);
+        let emitted_power = emitted.iter().map(|b| b.flux * molar_photon_energy(b.wavelength)).sum();
+        let emitted_photon_flux = emitted.iter().map(|b| b.flux).sum();
         LightSource {
             name,
             kind,
             intensity,
             window,
             bins,
+            emitted_power,
+            emitted_photon_flux,
         }
     }
 
-    /// Total photon flux, einstein/s.
+    /// Whether the window cuts away any of the emitted power (more than 1 part in 10⁹).
+    pub fn window_cuts(&self) -> bool {
+        self.power() < self.emitted_power * (1.0 - 1e-9)
+    }
+
+    /// Photon flux inside the window, einstein/s.
     pub fn photon_flux(&self) -> f64 {
         self.bins.iter().map(|b| b.flux).sum()
     }
 
-    /// Total radiant power, W.
+    /// Radiant power inside the window, W.
     pub fn power(&self) -> f64 {
         self.bins
             .iter()
@@ -128,31 +149,52 @@ fn quadrature(shape: &[(f64, f64)]) -> (Vec<PhotonBin>, f64) {
     (bins, total)
 }
 
-/// Scale bins of a shape to the requested intensity.
-fn scale_to(mut bins: Vec<PhotonBin>, shape_power: f64, intensity: Option<Intensity>) -> Vec<PhotonBin> {
-    let factor = match intensity {
+/// The factor that brings the whole (unclipped) shape, of power `shape_power` W and photon
+/// flux `shape_flux` einstein/s, to the stated intensity.
+fn scale_factor(shape_power: f64, shape_flux: f64, intensity: Option<Intensity>) -> f64 {
+    match intensity {
         Some(Intensity::Power(p)) if shape_power > 0.0 => p / shape_power,
-        Some(Intensity::PhotonFlux(q)) => {
-            let flux: f64 = bins.iter().map(|b| b.flux).sum();
-            if flux > 0.0 { q / flux } else { 0.0 }
-        }
-        _ => 1.0,
+        Some(Intensity::PhotonFlux(q)) if shape_flux > 0.0 => q / shape_flux,
+        Some(_) => 0.0,
+        None => 1.0,
+    }
+}
+
+/// The part of a sampled spectrum inside `window` (m), with the value interpolated at each
+/// edge that falls between two samples, so the cut lies at the window's edge.
+fn clip(shape: &[(f64, f64)], window: (f64, f64)) -> Vec<(f64, f64)> {
+    let (lo, hi) = window;
+    let mut out: Vec<(f64, f64)> = Vec::with_capacity(shape.len() + 2);
+    let (first, last) = match (shape.first(), shape.last()) {
+        (Some(f), Some(l)) => (f.0, l.0),
+        _ => return out,
     };
-    for b in &mut bins {
+    if lo > first && lo < last && !shape.iter().any(|p| p.0 == lo) {
+        out.push((lo, spectrum::interpolate(shape, lo, Outside::Zero)));
+    }
+    out.extend(shape.iter().copied().filter(|p| p.0 >= lo && p.0 <= hi));
+    if hi > first && hi < last && !shape.iter().any(|p| p.0 == hi) {
+        out.push((hi, spectrum::interpolate(shape, hi, Outside::Zero)));
+    }
+    out
+}
+
+/// The emitted spectrum `shape` (any scale) brought to `intensity` as a whole, then cut to
+/// `window`: (bins inside the window, bins of the whole source).
+fn cut(shape: &[(f64, f64)], intensity: Option<Intensity>, window: (f64, f64)) -> (Vec<PhotonBin>, Vec<PhotonBin>) {
+    let (mut whole, p) = quadrature(shape);
+    let q: f64 = whole.iter().map(|b| b.flux).sum();
+    let factor = scale_factor(p, q, intensity);
+    let (mut inside, _) = quadrature(&clip(shape, window));
+    for b in whole.iter_mut().chain(inside.iter_mut()) {
         b.flux *= factor;
     }
-    bins.retain(|b| b.flux > 0.0);
-    bins
+    whole.retain(|b| b.flux > 0.0);
+    inside.retain(|b| b.flux > 0.0);
+    (inside, whole)
 }
 
-fn clip(shape: Vec<(f64, f64)>, window: (f64, f64)) -> Vec<(f64, f64)> {
-    shape
-        .into_iter()
-        .filter(|p| p.0 >= window.0 && p.0 <= window.1)
-        .collect()
-}
-
-fn bins_for(kind: &LightKind, intensity: Option<Intensity>, window: (f64, f64)) -> Vec<PhotonBin> {
+fn bins_for(kind: &LightKind, intensity: Option<Intensity>, window: (f64, f64)) -> (Vec<PhotonBin>, Vec<PhotonBin>) {
     match kind {
         LightKind::Line { wavelength } => {
             let flux = match intensity {
@@ -160,10 +202,16 @@ fn bins_for(kind: &LightKind, intensity: Option<Intensity>, window: (f64, f64)) 
                 Some(Intensity::PhotonFlux(q)) => q,
                 None => 0.0,
             };
-            vec![PhotonBin {
+            let whole = vec![PhotonBin {
                 wavelength: *wavelength,
                 flux,
-            }]
+            }];
+            let inside = whole
+                .iter()
+                .copied()
+                .filter(|b| b.wavelength >= window.0 && b.wavelength <= window.1)
+                .collect();
+            (inside, whole)
         }
         LightKind::Band { centre, fwhm } => {
             // Gaussian spectral power, sampled out to ±2 FWHM (beyond which less than 1e-5 of the
@@ -179,24 +227,16 @@ fn bins_for(kind: &LightKind, intensity: Option<Intensity>, window: (f64, f64)) 
                 })
                 .filter(|p| p.0 > 0.0)
                 .collect();
-            let shape = clip(shape, window);
-            let (bins, p) = quadrature(&shape);
-            scale_to(bins, p, intensity)
+            cut(&shape, intensity, window)
         }
-        LightKind::Lamp { relative_power, .. } => {
-            let shape = clip(relative_power.clone(), window);
-            let (bins, p) = quadrature(&shape);
-            scale_to(bins, p, intensity)
-        }
+        LightKind::Lamp { relative_power, .. } => cut(relative_power, intensity, window),
         LightKind::Sun { scale, area } => {
             // W m⁻² nm⁻¹ -> W per m of wavelength over the area: × 1e9 nm/m × area.
             let shape: Vec<(f64, f64)> = solar::global_tilt()
                 .iter()
                 .map(|&(wl_nm, e)| (wl_nm * 1e-9, e * 1e9 * scale * area))
                 .collect();
-            let shape = clip(shape, window);
-            let (bins, _) = quadrature(&shape);
-            bins.into_iter().filter(|b| b.flux > 0.0).collect()
+            cut(&shape, None, window)
         }
     }
 }
@@ -262,5 +302,84 @@ mod tests {
             (0.0, f64::INFINITY),
         );
         assert!((s.photon_flux() - 2e-6).abs() < 1e-18);
+    }
+
+    fn band(power: Intensity, window: (f64, f64)) -> LightSource {
+        LightSource::new(
+            "uva".into(),
+            LightKind::Band {
+                centre: 390e-9,
+                fwhm: 14e-9,
+            },
+            Some(power),
+            window,
+        )
+    }
+
+    #[test]
+    fn a_window_cuts_a_band_and_keeps_the_stated_power_as_emitted() {
+        // 3 W band at 390 nm, FWHM 14 nm, long-pass from 390 nm: a Gaussian is symmetric about
+        // its centre, so half its power lies above it (common practice): 1.5 W in the window.
+        let s = band(Intensity::Power(3.0), (390e-9, f64::INFINITY));
+        assert!((s.emitted_power - 3.0).abs() < 1e-12, "{}", s.emitted_power);
+        assert!((s.power() - 1.5).abs() < 1e-3, "{}", s.power());
+        assert!(s.window_cuts());
+        let (lo, hi) = s.extent().unwrap();
+        assert!((lo - 390e-9).abs() < 1e-15 && (hi - 418e-9).abs() < 1e-15, "{lo} {hi}");
+        // An edge between samples is cut at the edge: above 395 nm lies
+        // ½ erfc((395 − 390)/(σ √2)) of a Gaussian's power, σ = FWHM / √(8 ln 2) (common practice).
+        let s = band(Intensity::Power(3.0), (395e-9, f64::INFINITY));
+        let sigma = 14.0 / (8.0 * std::f64::consts::LN_2).sqrt();
+        let want = 3.0 * 0.5 * statrs::function::erf::erfc(5.0 / (sigma * std::f64::consts::SQRT_2));
+        // The trapezoid rule on the 0.35 nm grid errs by about h²/12 · f'(395 nm) there: 3e-4 of it.
+        assert!((s.power() - want).abs() / want < 1e-3, "{} vs {want}", s.power());
+        // A photon flux is also the whole source's.
+        let s = band(Intensity::PhotonFlux(2e-6), (0.0, 390e-9));
+        assert!((s.emitted_photon_flux - 2e-6).abs() < 1e-18);
+        assert!(
+            s.photon_flux() > 0.9e-6 && s.photon_flux() < 1.1e-6,
+            "{}",
+            s.photon_flux()
+        );
+        // No window: nothing is cut.
+        let s = band(Intensity::Power(3.0), (0.0, f64::INFINITY));
+        assert!(!s.window_cuts() && (s.power() - 3.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn a_window_cuts_a_lamp_table_the_same_way() {
+        // A triangular lamp spectrum 380-400-420 nm: symmetric, so a window from 400 nm keeps half.
+        let lamp = LightKind::Lamp {
+            file: "tri.csv".into(),
+            relative_power: vec![(380e-9, 0.0), (400e-9, 1.0), (420e-9, 0.0)],
+        };
+        let s = LightSource::new("lamp".into(), lamp.clone(), Some(Intensity::Power(2.0)), (400e-9, 1.0));
+        assert!((s.emitted_power - 2.0).abs() < 1e-12);
+        assert!((s.power() - 1.0).abs() < 1e-12, "{}", s.power());
+        // 410 nm falls between samples: above it lies (½ · 10 · 0.5)/(½ · 40 · 1) = 1/8 of the power.
+        let s = LightSource::new("lamp".into(), lamp, Some(Intensity::Power(2.0)), (410e-9, 1.0));
+        assert!((s.power() - 0.25).abs() < 1e-12, "{}", s.power());
+    }
+
+    #[test]
+    fn a_line_outside_its_window_carries_no_photons() {
+        let s = LightSource::new(
+            "uv".into(),
+            LightKind::Line { wavelength: 365e-9 },
+            Some(Intensity::Power(1.0)),
+            (400e-9, f64::INFINITY),
+        );
+        assert!(s.bins.is_empty());
+        assert!((s.emitted_power - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn a_window_cuts_sunlight_to_its_uv_part() {
+        // ASTM G173-03 global tilt, trapezoid over the table: 1000.37 W/m² in all, 46.10 W/m² over
+        // 280-400 nm (ASTM G173-03, Standard Tables for Reference Solar Spectral Irradiances, 2003).
+        let sun = LightKind::Sun { scale: 1.0, area: 1.0 };
+        let s = LightSource::new("sun".into(), sun, None, (280e-9, 400e-9));
+        assert!((s.power() - 46.10).abs() < 0.01, "{}", s.power());
+        assert!((s.emitted_power - 1000.37).abs() < 0.01, "{}", s.emitted_power);
     }
 }

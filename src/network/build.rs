@@ -55,6 +55,8 @@ pub(super) struct Places {
     pub(super) thermal: Vec<Origin>,
     pub(super) photo: Vec<Origin>,
     pub(super) transients: Vec<Origin>,
+    /// Where `conditions.irradiated_area` was given.
+    pub(super) irradiated_area: Origin,
 }
 
 pub(super) fn span<T>(s: &Spanned<T>) -> Origin {
@@ -165,9 +167,8 @@ impl<'a> Builder<'a> {
         };
         let thermal = self.thermal(doc, &resolver, t);
         let photo = self.photo(doc, &resolver);
-        let flux: f64 = lights.iter().map(|l| l.photon_flux()).sum();
-        let photon = (flux > 0.0).then(|| lights.iter().map(|l| l.power()).sum::<f64>() / flux);
-        let transients = self.transients(doc, &resolver, &transient_heads, t, photon);
+        let photon = absorbed_photon_energy(doc, &transient_heads, &lights, &species, &photo);
+        let transients = self.transients(doc, &resolver, &transient_heads, t, &photon);
         let mut net = Network {
             source: Some(self.loaded.path.clone()),
             about,
@@ -233,7 +234,10 @@ impl<'a> Builder<'a> {
         let f = self.field(c.path_length.as_ref(), Some("conditions.path_length"));
         let path_length = self.required("conditions.path_length", f, &at, Quantity::Length);
         let irradiated_area = match self.field(c.irradiated_area.as_ref(), Some("conditions.irradiated_area")) {
-            Some(f) => Some(self.positive("conditions.irradiated_area", &f, Quantity::Area)?),
+            Some(f) => {
+                self.at.irradiated_area = f.origin.clone();
+                Some(self.positive("conditions.irradiated_area", &f, Quantity::Area)?)
+            }
             None => None,
         };
         let background = if let Some(v) = self.overrides.get("conditions.background") {
@@ -298,6 +302,18 @@ impl<'a> Builder<'a> {
                         format!("{x} has no unit and no wavelength"),
                         Some(format!("expected {table_help}; values are {}", q.accepted())),
                     );
+                    None
+                }
+            },
+            // A dimensionless value may be a percentage: "12 %" is 0.12.
+            Valued::Text(s) if q.is_none() => match units::fraction(s) {
+                Ok(x) if x >= 0.0 => Some(Spectrum::Constant { value: x, at: None }),
+                Ok(x) => {
+                    self.error(field, &at, format!("{x} must be a non-negative number"), None);
+                    None
+                }
+                Err(m) => {
+                    self.error(field, &at, m, Some(format!("expected {table_help}")));
                     None
                 }
             },
@@ -749,7 +765,33 @@ impl<'a> Builder<'a> {
             };
             let src = LightSource::new(name.clone(), lk, intensity, window);
             if src.bins.is_empty() {
-                self.error(&field, &at, "carries no photons inside its from/to window", None);
+                // The window is a filter on the emitted spectrum: one that keeps nothing is an
+                // error for every kind (a line outside it as much as a band).
+                let (lo, hi) = LightSource::new(name.clone(), src.kind.clone(), intensity, (0.0, f64::INFINITY))
+                    .extent()
+                    .unwrap_or((0.0, 0.0));
+                let nm = |m: f64| format!("{} nm", units::sig(m * 1e9, 5));
+                let (key, edge) = if hi < window.0 {
+                    ("from", nm(window.0))
+                } else {
+                    ("to", nm(window.1))
+                };
+                let (emits, keep) = if lo == hi {
+                    (format!("at {}", nm(lo)), format!("includes {}", nm(lo)))
+                } else {
+                    (
+                        format!("over {}–{}", nm(lo), nm(hi)),
+                        format!("overlaps {}–{}", nm(lo), nm(hi)),
+                    )
+                };
+                self.error(
+                    &format!("{field}.{key}"),
+                    &at,
+                    format!("\"{edge}\" leaves no photons: the source emits {emits}, all outside its from/to window"),
+                    Some(format!(
+                        "from/to is a filter that cuts the emitted spectrum: give a window that {keep}, or drop from/to"
+                    )),
+                );
                 continue;
             }
             out.push(src);
@@ -1111,16 +1153,43 @@ impl<'a> Builder<'a> {
         r
     }
 
+    /// A share from the file: a number, or a percentage string such as "12 %" (= 0.12); range
+    /// checks are the caller's.
+    fn share(&mut self, field: &str, at: &Origin, v: &toml::Value) -> Option<f64> {
+        let r = match v {
+            toml::Value::Float(x) => Ok(*x),
+            toml::Value::Integer(x) => Ok(*x as f64),
+            toml::Value::String(s) => units::fraction(s),
+            other => Err(format!("{other} is not a number")),
+        };
+        match r {
+            Ok(x) => Some(x),
+            Err(m) => {
+                self.error(
+                    field,
+                    at,
+                    m,
+                    Some("a number such as 0.3, or a percentage such as \"30 %\"".into()),
+                );
+                None
+            }
+        }
+    }
+
     /// A number in [0, 1] given with `--set` (quantum yield, efficiency).
     fn fraction_given(&mut self, field: &str, v: &str) -> Option<f64> {
-        match v.parse::<f64>() {
+        match units::fraction(v) {
             Ok(x) if (0.0..=1.0).contains(&x) => Some(x),
             _ => {
                 self.error(
                     field,
                     &Origin::CommandLine,
                     format!("\"{v}\" is not a number in [0, 1]"),
-                    Some("a plain number such as 0.25 (it replaces a table by one value at every wavelength)".into()),
+                    Some(
+                        "a number such as 0.25 or a percentage such as \"25 %\" (it replaces a table by one value at \
+                         every wavelength)"
+                            .into(),
+                    ),
                 );
                 None
             }
@@ -1440,7 +1509,9 @@ impl<'a> Builder<'a> {
                         },
                         (None, e) => match e {
                             Some(v) => {
-                                let x = *v.get_ref();
+                                let Some(x) = self.share(&format!("{field}.efficiency"), &span(v), v.get_ref()) else {
+                                    continue;
+                                };
                                 if !(0.0..=1.0).contains(&x) || x == 0.0 {
                                     self.error(
                                         &format!("{field}.efficiency"),
@@ -1494,7 +1565,7 @@ impl<'a> Builder<'a> {
         names: &Names,
         heads: &[(String, TransientKind)],
         temperature: f64,
-        photon: Option<f64>,
+        photon: &[AbsorbedEnergy],
     ) -> Vec<Transient> {
         let mut out = Vec::new();
         for (i, t) in doc.transient.iter().enumerate() {
@@ -1506,6 +1577,7 @@ impl<'a> Builder<'a> {
                     name,
                     kind,
                     channels: Vec::new(),
+                    energy_from: None,
                 });
                 continue;
             }
@@ -1588,7 +1660,7 @@ impl<'a> Builder<'a> {
                 let ck = format!("transient.{name}.channels[{j}]");
                 let fraction = match (&e.fraction, &e.rate) {
                     // The channel taking the rest has no number of its own to set.
-                    (Some(f), None) if !matches!(f.get_ref(), toml::Value::String(_)) => {
+                    (Some(f), None) if !matches!(f.get_ref(), toml::Value::String(s) if s.trim() == "rest") => {
                         match self.overrides.get(&format!("{ck}.fraction")) {
                             Some(v) => Some(Spanned::new(
                                 0..0,
@@ -1603,11 +1675,9 @@ impl<'a> Builder<'a> {
                 let branching = match (&fraction, &e.rate, &e.quencher) {
                     (Some(f), None, None) => match f.get_ref() {
                         toml::Value::String(s) if s.trim() == "rest" => Branching::Rest,
-                        toml::Value::Float(_) | toml::Value::Integer(_) => {
-                            let x = match f.get_ref() {
-                                toml::Value::Float(x) => *x,
-                                toml::Value::Integer(x) => *x as f64,
-                                _ => unreachable!(),
+                        toml::Value::Float(_) | toml::Value::Integer(_) | toml::Value::String(_) => {
+                            let Some(x) = self.share(&format!("{cf}.fraction"), &origin(f), f.get_ref()) else {
+                                continue;
                             };
                             if !(0.0..=1.0).contains(&x) {
                                 self.error(
@@ -1683,7 +1753,12 @@ impl<'a> Builder<'a> {
             }
             // A channel already reported as broken would only add follow-on errors about sums.
             let complete = channels.len() == t.get_ref().channels.len() && !hot_broken;
-            let hot_ok = complete && self.hot_yields(&field, t, kind, &hot, &mut channels, photon);
+            let hot_ok = complete && self.hot_yields(&field, t, kind, &hot, &mut channels, &photon[i]);
+            let photon_energy = t
+                .get_ref()
+                .energy
+                .as_ref()
+                .is_some_and(|e| e.get_ref().trim() == "photon");
             if complete && hot_ok {
                 self.check_channels(&field, &at, &channels);
             }
@@ -1691,6 +1766,7 @@ impl<'a> Builder<'a> {
                 name,
                 kind,
                 channels: channels.into_iter().map(|c| c.0).collect(),
+                energy_from: (photon_energy && !hot.is_empty()).then(|| photon[i].describe()),
             });
         }
         out
@@ -1870,4 +1946,107 @@ fn unused_override(loaded: &Loaded, key: &str) -> Diagnostic {
 pub(super) struct Names<'a> {
     species: &'a [Species],
     transients: &'a [(String, TransientKind)],
+}
+
+/// The mean molar energy of the photons that lead to one transient (for `energy = "photon"`).
+#[derive(Debug, Clone, PartialEq)]
+pub(super) struct AbsorbedEnergy {
+    /// Mean molar photon energy, J/mol; None when no absorbed photon leads there.
+    pub energy: Option<f64>,
+    /// Names of the absorbing species of the photochemical steps that reach the transient.
+    pub absorbers: Vec<String>,
+}
+
+impl AbsorbedEnergy {
+    /// The weighting in words, for `check`.
+    pub fn describe(&self) -> String {
+        format!(
+            "starting energy = mean energy of the photons taken up by {} on the way here, each wavelength bin \
+             weighted by ε(λ)·Φ(λ)·q(λ) (optically thin; Φ the step's efficiency or quantum yield)",
+            if self.absorbers.is_empty() {
+                "(no absorber)".to_string()
+            } else {
+                self.absorbers.join(", ")
+            }
+        )
+    }
+}
+
+/// For every transient, the mean molar energy of the photons that its absorbers take up: the
+/// photochemical steps whose transient reaches it (directly or through other transients'
+/// channels) count, each wavelength bin of every light weighted by ε_absorber(λ) · Φ_step(λ) ·
+/// q(λ) (q the bin's photon flux, einstein/s; Φ zero outside the step's range). This is the
+/// optically thin weighting: what each absorber takes up per molecule, whatever its
+/// concentration and the inner filter of others.
+fn absorbed_photon_energy(
+    doc: &schema::NetworkFile,
+    heads: &[(String, TransientKind)],
+    lights: &[LightSource],
+    species: &[Species],
+    photo: &[PhotoStep],
+) -> Vec<AbsorbedEnergy> {
+    let n = heads.len();
+    // Transient -> transient edges straight from the file (the built channels come later).
+    let next: Vec<Vec<usize>> = doc
+        .transient
+        .iter()
+        .map(|t| {
+            t.get_ref()
+                .channels
+                .iter()
+                .filter_map(|c| {
+                    let to = c.get_ref().to.as_ref()?.get_ref().trim().to_string();
+                    heads.iter().position(|h| !h.0.is_empty() && h.0 == to)
+                })
+                .collect()
+        })
+        .collect();
+    let reach = |from: usize| {
+        let mut seen = vec![false; n];
+        let mut stack = vec![from];
+        while let Some(j) = stack.pop() {
+            if j < n && !seen[j] {
+                seen[j] = true;
+                stack.extend(next.get(j).into_iter().flatten().copied());
+            }
+        }
+        seen
+    };
+    let steps: Vec<(&PhotoStep, Vec<bool>)> = photo
+        .iter()
+        .filter_map(|s| match s.outcome {
+            PhotoOutcome::Transient(k) => Some((s, reach(k))),
+            PhotoOutcome::Products(_) => None,
+        })
+        .collect();
+    (0..n)
+        .map(|i| {
+            let leading: Vec<&PhotoStep> = steps.iter().filter(|(_, r)| r[i]).map(|(s, _)| *s).collect();
+            let mut absorbers: Vec<String> = Vec::new();
+            for s in &leading {
+                if let Some(sp) = species.get(s.absorber)
+                    && !absorbers.contains(&sp.name)
+                {
+                    absorbers.push(sp.name.clone());
+                }
+            }
+            let (mut w, mut we) = (0.0, 0.0);
+            for b in lights.iter().flat_map(|l| &l.bins) {
+                let take: f64 = leading
+                    .iter()
+                    .map(|s| {
+                        let eps = species.get(s.absorber).and_then(|sp| sp.epsilon.as_ref());
+                        eps.map_or(0.0, |e| e.at(b.wavelength)) * s.yield_at(b.wavelength)
+                    })
+                    .sum::<f64>()
+                    * b.flux;
+                w += take;
+                we += take * crate::units::constants::molar_photon_energy(b.wavelength);
+            }
+            AbsorbedEnergy {
+                energy: (w > 0.0 && we.is_finite()).then(|| we / w),
+                absorbers,
+            }
+        })
+        .collect()
 }

@@ -6,6 +6,7 @@ use super::build::Builder;
 use super::formula::{self, Composition};
 use super::*;
 use crate::error::Origin;
+use crate::units::sig;
 use std::collections::BTreeSet;
 
 impl Builder<'_> {
@@ -15,7 +16,54 @@ impl Builder<'_> {
         self.check_yield_sums(net);
         self.check_balance(net);
         self.check_light(net);
+        self.check_geometry(net);
         self.check_unused(net);
+    }
+
+    /// The lit column (irradiated area × path length) cannot hold more solution than the
+    /// volume: if it does, all the light that crosses it would be put into the smaller volume and
+    /// every rate per volume would be too high by their ratio. A lit column smaller than the
+    /// volume is a stirred vessel partly in the light and is fine.
+    fn check_geometry(&mut self, net: &Network) {
+        let c = &net.conditions;
+        let Some(area) = c.irradiated_area else {
+            return;
+        };
+        let column = area * c.path_length;
+        if column <= c.volume * 1.01 {
+            return;
+        }
+        let vol = |v: f64| {
+            if v >= 1e-3 {
+                format!("{} L", sig(v * 1e3, 4))
+            } else {
+                format!("{} mL", sig(v * 1e6, 4))
+            }
+        };
+        let area_s = if area >= 1e-2 {
+            format!("{} m2", sig(area, 4))
+        } else {
+            format!("{} cm2", sig(area * 1e4, 4))
+        };
+        self.warn(
+            "conditions.irradiated_area",
+            &self.at.irradiated_area.clone(),
+            format!(
+                "irradiated_area × path_length = {area_s} × {} cm = {} of lit solution, more than conditions.volume = \
+                 {} ({}×): impossible geometry, the light crossing that column would all go into the smaller volume \
+                 and rates per volume would be {}× too high",
+                sig(c.path_length * 100.0, 4),
+                vol(column),
+                vol(c.volume),
+                sig(column / c.volume, 3),
+                sig(column / c.volume, 3)
+            ),
+            Some(format!(
+                "make volume at least irradiated_area × path_length ({}), or reduce irradiated_area or path_length; \
+                 a lit column smaller than the volume (a stirred vessel partly lit) is fine",
+                vol(column)
+            )),
+        );
     }
 
     fn transient_at(&self, i: usize) -> Origin {

@@ -340,7 +340,8 @@ impl Builder<'_> {
     }
 
     /// Compute the yields of the hot channels of transient `t` (file entry) and put them into
-    /// `channels`. `photon` is the mean molar energy of the incident photons, J/mol.
+    /// `channels`. `photon` is the mean molar energy of the photons its absorbers take up, J/mol
+    /// (see `absorbed_photon_energy` in build.rs), used for `energy = "photon"`.
     pub(super) fn hot_yields(
         &mut self,
         field: &str,
@@ -348,7 +349,7 @@ impl Builder<'_> {
         kind: TransientKind,
         specs: &[HotSpec],
         channels: &mut [(Channel, Origin)],
-        photon: Option<f64>,
+        photon: &super::build::AbsorbedEnergy,
     ) -> bool {
         let at = span(t);
         let e = t.get_ref();
@@ -414,15 +415,23 @@ impl Builder<'_> {
                 None
             }
             Some(t) if t.get_ref().trim() == "photon" => {
-                if photon.is_none() {
+                if photon.energy.is_none() {
+                    let why = if photon.absorbers.is_empty() {
+                        "no photochemical step leads to this transient".to_string()
+                    } else {
+                        format!(
+                            "its absorber(s) ({}) take up none of the light",
+                            photon.absorbers.join(", ")
+                        )
+                    };
                     self.error(
                         &format!("{field}.energy"),
                         &span(t),
-                        "\"photon\" needs a [[light]] with photons",
+                        format!("\"photon\" is the mean energy of the photons absorbed on the way here, but {why}"),
                         Some("give the energy, e.g. \"85 kcal/mol\"".into()),
                     );
                 }
-                photon
+                photon.energy
             }
             Some(t) => self.positive(
                 &format!("{field}.energy"),

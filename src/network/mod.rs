@@ -252,6 +252,9 @@ pub struct Transient {
     pub kind: TransientKind,
     /// Outgoing channels.
     pub channels: Vec<Channel>,
+    /// For a hot ground state with `energy = "photon"`: how its starting energy was found (for
+    /// display), e.g. the absorbers whose absorbed photons it is the mean energy of.
+    pub energy_from: Option<String>,
 }
 
 /// A node of the network graph.

@@ -282,9 +282,9 @@ pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
         };
         return match (field, &l.kind, l.intensity) {
             ("power", _, Some(Intensity::Power(w))) => Ok(p(w, Some(Quantity::Power), Range::Positive)),
-            ("power", _, Some(_)) => Ok(p(l.power(), Some(Quantity::Power), Range::Positive)),
+            ("power", _, Some(_)) => Ok(p(l.emitted_power, Some(Quantity::Power), Range::Positive)),
             ("photon_flux", _, Some(Intensity::PhotonFlux(q))) => Ok(p(q, Some(Quantity::PhotonFlux), Range::Positive)),
-            ("photon_flux", _, Some(_)) => Ok(p(l.photon_flux(), Some(Quantity::PhotonFlux), Range::Positive)),
+            ("photon_flux", _, Some(_)) => Ok(p(l.emitted_photon_flux, Some(Quantity::PhotonFlux), Range::Positive)),
             ("wavelength", LightKind::Line { wavelength }, _) => {
                 Ok(p(*wavelength, Some(Quantity::Length), Range::Positive))
             }

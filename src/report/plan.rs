@@ -774,5 +774,14 @@ pub fn light_block_for(src: &LightSource, flux: &Measured, origin: &str) -> Stri
         },
         k => k.clone(),
     };
-    light_block(&src.name, &kind, window, flux, origin)
+    // The block's photon_flux is the whole source's (the window cuts it again when read back).
+    let whole = src.emitted_photon_flux / src.photon_flux().max(1e-300);
+    let flux = match src.kind {
+        LightKind::Sun { .. } => *flux,
+        _ => Measured {
+            value: flux.value * whole,
+            sigma: flux.sigma * whole,
+        },
+    };
+    light_block(&src.name, &kind, window, &flux, origin)
 }

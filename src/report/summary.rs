@@ -81,15 +81,28 @@ pub fn network_summary(net: &Network) -> String {
             LightKind::Sun { scale, .. } => format!("sunlight, ASTM G173-03 global tilt × {}", sig(*scale, 4)),
         };
         let (lo, hi) = l.extent().unwrap_or((0.0, 0.0));
+        // The stated intensity is the whole source's; a from/to window cuts it (a filter).
+        let emitted = if l.window_cuts() {
+            format!("{} mW emitted, ", sig(l.emitted_power * 1e3, 4))
+        } else {
+            String::new()
+        };
         let _ = writeln!(
             s,
-            "  {:<14} {:<42} {} mW = {} µeinstein/s ({}–{} nm)",
+            "  {:<14} {:<42} {}{} mW = {} µeinstein/s {}{}–{} nm{}",
             l.name,
             what,
+            emitted,
             sig(l.power() * 1e3, 4),
             sig(l.photon_flux() * 1e6, 4),
+            if l.window_cuts() { "in " } else { "(" },
             sig(lo * 1e9, 4),
-            sig(hi * 1e9, 4)
+            sig(hi * 1e9, 4),
+            if l.window_cuts() {
+                " (from/to cuts the emitted light)"
+            } else {
+                ")"
+            }
         );
     }
     let _ = writeln!(s, "\nspecies");
@@ -246,6 +259,9 @@ pub fn network_summary(net: &Network) -> String {
                     to,
                     if ch.returns { "   (return)" } else { "" }
                 );
+            }
+            if let Some(e) = &t.energy_from {
+                let _ = writeln!(s, "       {e}");
             }
         }
     }

@@ -550,6 +550,22 @@ pub fn internal_spelling(q: Quantity) -> &'static str {
     }
 }
 
+/// A dimensionless share (quantum yield, efficiency, channel fraction): a plain number, or a
+/// percentage written with `%` ("12 %" = 0.12). Range checks are the caller's.
+pub fn fraction(text: &str) -> Result<f64, String> {
+    let t = text.trim();
+    let (num, per) = match t.strip_suffix('%') {
+        Some(n) => (n.trim_end(), 100.0),
+        None => (t, 1.0),
+    };
+    match num.parse::<f64>() {
+        Ok(x) if x.is_finite() => Ok(x / per),
+        _ => Err(format!(
+            "\"{text}\" is not a number or a percentage (write 0.12 or \"12 %\")"
+        )),
+    }
+}
+
 /// Convert a molar absorption coefficient from the trade's L mol⁻¹ cm⁻¹ to the internal L mol⁻¹ m⁻¹.
 pub fn epsilon_from_per_cm(eps_l_per_mol_cm: f64) -> f64 {
     eps_l_per_mol_cm * 100.0
@@ -701,5 +717,16 @@ mod tests {
         assert_eq!(sig(1.5e-9, 2), "1.5e-9");
         assert_eq!(format_time(5400.0), "1.5 h");
         assert_eq!(format_concentration(0.01), "10 mM");
+    }
+
+    #[test]
+    fn fractions_and_percentages() {
+        // 12 % = 0.12, 0.12 % = 0.0012 (common practice: per cent is a factor 1/100).
+        assert_eq!(fraction("12 %").unwrap(), 0.12);
+        assert!((fraction("0.12%").unwrap() - 0.0012).abs() < 1e-18);
+        assert_eq!(fraction(" 0.3 ").unwrap(), 0.3);
+        assert!(fraction("12 percent").is_err());
+        assert!(fraction("%").is_err());
+        assert!(fraction("inf %").is_err());
     }
 }
