@@ -483,3 +483,70 @@ channels = [{{ to = "B", fraction = {p} }}, {{ to = "A", fraction = "rest" }}]
     let e = eta.elasticity_photons[b].unwrap();
     assert!((e + 1.0).abs() < 1e-3, "d ln photons / d ln η = {e}, want −1");
 }
+
+/// Two short-form photo steps of one absorber, A -> P1 with Φ₁ and A -> P2 with Φ₂ (the rest of
+/// the photons return A): the molecule ends in P1 with probability Y₁ = Φ₁/(Φ₁ + Φ₂) (the
+/// absorption probabilities of Grinstead & Snell §11.2 for this two-end chain), so
+/// dY₁/dΦ₁ = Φ₂/(Φ₁ + Φ₂)². The sensitivity is shown per unit Φ₁ with the value Φ₁ itself, and
+/// both returns of an excited state to the same species get their own labels.
+#[test]
+fn yield_sensitivity_is_per_unit_quantum_yield() {
+    let (p1, p2) = (0.2, 0.3);
+    let net = network(&format!(
+        "{CELL}{}",
+        format_args!(
+            r#"
+[[species]]
+name = "A"
+initial = "10 µM"
+epsilon = {{ at = "365 nm", value = "1000 L/(mol cm)" }}
+[[species]]
+name = "P1"
+[[species]]
+name = "P2"
+[[photo]]
+name = "first"
+equation = "A -> P1"
+quantum_yield = {p1}
+[[photo]]
+name = "second"
+equation = "A -> P2"
+quantum_yield = {p2}
+"#
+        )
+    ));
+    let model = Model::compile(&net);
+    let settings = Settings::default();
+    let c = build::build(&model, &net, &settings, &Values::of(&model, &net)).unwrap();
+    let start = from_state(&c, 0);
+    let a = analyse(&c, &start, &Options::default()).unwrap();
+    let e1 = a.absorbing.iter().position(|&s| c.states[s].name == "P1").unwrap();
+    assert!(rel(a.yields[e1], p1 / (p1 + p2)) < 1e-12);
+    let s = chain::sensitivity::sensitivities(&model, &net, &settings, &start).unwrap();
+    let x = s.iter().find(|x| x.parameter.contains("\"first\"")).unwrap();
+    assert!(x.parameter.starts_with("quantum yield"), "{}", x.parameter);
+    assert!(rel(x.value, p1) < 1e-12, "shown {}", x.value);
+    let want = p2 / ((p1 + p2) * (p1 + p2));
+    assert!(
+        rel(x.yield_derivative[e1], want) < 1e-6,
+        "{} vs {want}",
+        x.yield_derivative[e1]
+    );
+}
+
+/// Every counted return of the bundled networks has its own label (an O₂-quenching return and
+/// a decay return to the same species were both called "return S* -> S").
+#[test]
+fn counted_returns_have_distinct_labels() {
+    for f in ["flow-cyclization", "prebiotic-pool", "photoswitch"] {
+        let path = format!("{}/networks/{f}.toml", env!("CARGO_MANIFEST_DIR"));
+        let loaded = photoledger::file::load(std::path::Path::new(&path)).unwrap();
+        let net = photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap();
+        let model = Model::compile(&net);
+        let c = build::build(&model, &net, &Settings::default(), &Values::of(&model, &net)).unwrap();
+        let mut seen = std::collections::HashSet::new();
+        for k in &c.counted {
+            assert!(seen.insert(k.label.clone()), "{f}: {} twice", k.label);
+        }
+    }
+}

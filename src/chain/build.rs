@@ -75,6 +75,9 @@ pub struct Parameter {
     pub slot: Slot,
     /// Its value (1 for yield factors).
     pub value: f64,
+    /// What one unit of `value` is worth when shown: the mean quantum yield or efficiency for a
+    /// yield factor (so the report shows Φ itself and derivatives per unit Φ), 1 otherwise.
+    pub shown_per_unit: f64,
     /// Unit of `value`, written out.
     pub unit: &'static str,
     /// True when it is a rate constant given by a barrier (Eyring or Arrhenius), so that
@@ -168,10 +171,21 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
                 .filter(|(_, y)| **y > 0.0)
                 .map(|(k, y)| 1.0 + (1.0 - used[slot * nb + k]) / y)
                 .fold(f64::INFINITY, f64::min);
+            let word = match step.outcome {
+                crate::network::PhotoOutcome::Products(_) => "quantum yield",
+                crate::network::PhotoOutcome::Transient(_) => "efficiency",
+            };
+            let mean = match &step.quantum_yield {
+                crate::light::Spectrum::Constant { value, .. } => *value,
+                crate::light::Spectrum::Table { points, .. } => {
+                    points.iter().map(|p| p.1).sum::<f64>() / points.len().max(1) as f64
+                }
+            };
             out.push(Parameter {
-                label: format!("quantum yield of \"{}\" (factor on its spectrum)", step.name),
+                label: format!("{word} of \"{}\" (scaled over its spectrum)", step.name),
                 slot: Slot::YieldFactor(p),
                 value: 1.0,
+                shown_per_unit: if mean > 0.0 { mean } else { 1.0 },
                 unit: "1",
                 barrier: false,
                 upper,
@@ -199,6 +213,7 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
                 unit,
                 barrier,
                 upper: if unit == "1" { 1.0 } else { f64::INFINITY },
+                shown_per_unit: 1.0,
             });
         }
     }
@@ -211,6 +226,7 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
             unit: if order == 1 { "1/s" } else { "L/(mol s)" },
             barrier: net.thermal.get(r).is_some_and(|t| is_barrier(&t.rate)),
             upper: f64::INFINITY,
+            shown_per_unit: 1.0,
         });
     }
     out
@@ -477,10 +493,18 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
             };
             let mv = chain.add_move(ns + t, to, p, false);
             if ch.returns {
-                chain.counted.push(Counted {
-                    label: format!("return {} -> {}", tr.name, target_name(net, &ch.target)),
-                    mv,
-                });
+                let mut label = format!("return {} -> {}", tr.name, target_name(net, &ch.target));
+                if let Branching::Quenching { partner, .. } = &ch.branching {
+                    label.push_str(&format!(" [quenched by {}]", net.species[*partner].name));
+                } else if tr.channels.iter().enumerate().any(|(cj, other)| {
+                    cj != ci
+                        && other.returns
+                        && other.target == ch.target
+                        && !matches!(other.branching, Branching::Quenching { .. })
+                }) {
+                    label.push_str(&format!(" (channel {})", ci + 1));
+                }
+                chain.counted.push(Counted { label, mv });
             }
         }
         if let Branching::Quenching { partner, .. } = tr

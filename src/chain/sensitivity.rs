@@ -60,6 +60,7 @@ pub fn sensitivities(model: &Model, net: &Network, settings: &Settings, start: &
             unit,
             barrier,
             upper,
+            shown_per_unit,
         } = p;
         if !(value > 0.0 && value.is_finite()) {
             continue;
@@ -92,9 +93,11 @@ pub fn sensitivities(model: &Model, net: &Network, settings: &Settings, start: &
         } else {
             (None, None)
         };
+        // show a yield factor as the quantum yield itself: d yield / dΦ = (d yield / d factor) / Φ
+        let yield_derivative = yield_derivative.into_iter().map(|d| d / shown_per_unit).collect();
         out.push(Sensitivity {
             parameter: label,
-            value,
+            value: value * shown_per_unit,
             unit: unit.to_string(),
             elasticity_photons,
             yield_derivative,
