@@ -477,3 +477,99 @@ fn flow_tube_scales_the_background_with_the_path() {
     }
     assert!(m.background.iter().any(|b| *b > 0.0));
 }
+
+fn numeric_leaves(v: &serde_json::Value, path: String, out: &mut Vec<String>) {
+    match v {
+        serde_json::Value::Number(_) => out.push(path),
+        serde_json::Value::Array(a) => {
+            // a tuple of plain values is described as a whole ("power.sources[]")
+            for x in a {
+                if x.is_array() {
+                    out.push(format!("{path}[]"));
+                } else {
+                    numeric_leaves(x, format!("{path}[]"), out);
+                }
+            }
+        }
+        serde_json::Value::Object(m) => {
+            for (k, x) in m {
+                let p = if path.is_empty() {
+                    k.clone()
+                } else {
+                    format!("{path}.{k}")
+                };
+                numeric_leaves(x, p, out);
+            }
+        }
+        _ => {}
+    }
+}
+
+// Units written out at the edges (common practice for this project's outputs): every number in
+// plan's summary.json has its unit in the `units` table, for the plain, --in, --wall-plug,
+// --flow-tube and --sun-hours answers.
+#[test]
+fn every_number_in_the_plan_json_has_a_unit() {
+    let root = env!("CARGO_MANIFEST_DIR");
+    let runs: [&[&str]; 4] = [
+        &[
+            "networks/photoswitch.toml",
+            "--target",
+            "Z-azo > 30 %",
+            "--in",
+            "10 min",
+            "--wall-plug",
+            "30 %",
+        ],
+        &[
+            "networks/flow-cyclization.toml",
+            "--target",
+            "product > 80 %",
+            "--flow-tube",
+            "ID=1.6 mm, length=10 m",
+        ],
+        &[
+            "networks/prebiotic-pool.toml",
+            "--target",
+            "closed > 20 %",
+            "--sun-hours",
+            "8",
+        ],
+        &[
+            "networks/prebiotic-pool.toml",
+            "--target",
+            "product > 10 %",
+            "--sun-hours",
+            "8",
+        ],
+    ];
+    for args in runs {
+        let out = std::process::Command::new(env!("CARGO_BIN_EXE_photoledger"))
+            .current_dir(root)
+            .arg("plan")
+            .args(args)
+            .arg("--json")
+            .arg("--out")
+            .arg(std::env::temp_dir().join(format!("photoledger-plan-units-{}", std::process::id())))
+            .output()
+            .unwrap();
+        assert!(
+            out.status.success(),
+            "{args:?}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        let units = v["units"].as_object().expect("a units table");
+        let mut leaves = Vec::new();
+        numeric_leaves(&v, String::new(), &mut leaves);
+        assert!(leaves.len() > 10, "{args:?}: {leaves:?}");
+        for leaf in leaves {
+            // enum variants sit one level down: target.basis.YieldOf.fraction
+            let key = match leaf.strip_prefix("target.basis.") {
+                Some(rest) => format!("target.basis.*.{}", rest.rsplit('.').next().unwrap()),
+                None => leaf.clone(),
+            };
+            assert!(units.contains_key(&key), "{args:?}: no unit for {leaf}");
+        }
+    }
+}

@@ -111,6 +111,62 @@ pub struct PlanSummary {
     pub rtol: f64,
     /// Safety cautions.
     pub cautions: String,
+    /// The unit of every number above, by field path ("dose.incident": "einstein"); SI
+    /// throughout except concentrations in mol/L and volumes in L.
+    pub units: std::collections::BTreeMap<&'static str, &'static str>,
+}
+
+/// The units of [`PlanSummary`]'s numbers, by field path.
+pub fn summary_units() -> std::collections::BTreeMap<&'static str, &'static str> {
+    [
+        ("time", "s"),
+        ("target.level", "mol/L"),
+        ("target.basis.*.fraction", "1"),
+        ("dose.lit_time", "s"),
+        ("dose.incident", "einstein"),
+        ("dose.absorbed", "einstein"),
+        ("dose.incident_per_litre", "einstein/L"),
+        ("dose.absorbed_per_litre", "einstein/L"),
+        ("dose.amount", "mol"),
+        ("dose.incident_per_mol", "einstein/mol"),
+        ("dose.absorbed_per_mol", "einstein/mol"),
+        ("dose.power", "W"),
+        ("dose.radiant_energy", "J"),
+        ("dose.radiant_per_mol", "J/mol"),
+        ("electrical.efficiency", "1"),
+        ("electrical.power", "W"),
+        ("electrical.energy", "J"),
+        ("electrical.per_mol", "J/mol"),
+        ("products[].formed", "mol/L"),
+        ("products[].selectivity", "mol per mol of products[].reference consumed"),
+        ("power.duration", "s"),
+        ("power.scale", "1"),
+        ("power.sources[]", "[name, W, einstein/s]"),
+        ("power.evaluations", "count"),
+        ("power.tolerance", "1"),
+        ("sun.days.day", "count (1 = the first day)"),
+        ("flow.tube.inner_diameter", "m"),
+        ("flow.tube.length", "m"),
+        ("flow.volume", "L"),
+        ("flow.flow.residence_time", "s"),
+        ("flow.flow.flow_rate", "L/s"),
+        ("flow.flow.throughput", "mol/s"),
+        ("flow.flow_ml_per_min", "mL/min"),
+        ("flow.throughput_mol_per_h", "mol/h"),
+        ("sun.sun_hours", "h"),
+        ("sun.scale", "1"),
+        ("sun.days.days", "d"),
+        ("sun.days.lit_hours", "h"),
+        ("sun.days.fraction_of_lit", "1"),
+        ("unreachable.final_level", "mol/L"),
+        ("unreachable.best_level", "mol/L"),
+        ("unreachable.best_time", "s"),
+        ("unreachable.horizon", "s"),
+        ("unreachable.consumers[].rate", "mol/(L s)"),
+        ("rtol", "1"),
+    ]
+    .into_iter()
+    .collect()
 }
 
 /// The target level in words.
@@ -187,7 +243,13 @@ pub fn summary(
         ),
         rtol,
         cautions: CAUTIONS.into(),
+        units: summary_units(),
     }
+}
+
+/// An energy per mole always in kJ (so the radiant and the electrical figure compare at a glance).
+fn energy_per_mol(j: f64) -> String {
+    format!("{} kJ", sig(j / 1e3, 4))
 }
 
 fn energy(j: f64) -> String {
@@ -318,7 +380,7 @@ pub fn text(s: &PlanSummary) -> String {
             format_time(d.lit_time),
             energy(d.radiant_energy),
             d.radiant_per_mol
-                .map_or(String::new(), |v| format!(" ({} per {what})", energy(v)))
+                .map_or(String::new(), |v| format!(" ({} per {what})", energy_per_mol(v)))
         );
     }
     if let Some(e) = &s.electrical {
@@ -329,7 +391,7 @@ pub fn text(s: &PlanSummary) -> String {
             power_text(e.power),
             energy(e.energy),
             e.per_mol
-                .map_or(String::new(), |v| format!(" ({} per {what})", energy(v)))
+                .map_or(String::new(), |v| format!(" ({} per {what})", energy_per_mol(v)))
         );
     }
     if let Some(p) = &s.power {
