@@ -617,3 +617,41 @@ fn an_unabsorbed_line_leaves_the_flow_hot_yield_alone() {
     assert_eq!(y(&plain), y(&lit));
     assert!(y(&plain).0 > 0.0);
 }
+
+// A catalysed step A + cat -> B + cat: the catalyst is not used up, so A decays first order
+// with k[cat]₀ and t½ = ln 2 / (k [cat]₀) (integrated first-order law, common practice); the
+// verdict follows A, not the catalyst at its lower concentration.
+#[test]
+fn a_catalyst_is_not_the_limiting_reactant() {
+    let text = r#"
+[about]
+name = "invented catalysed step"
+invented = true
+[conditions]
+temperature = "298.15 K"
+volume = "1 mL"
+path_length = "1 cm"
+[[species]]
+name = "A"
+initial = "10 mM"
+[[species]]
+name = "cat"
+initial = "1 mM"
+[[species]]
+name = "B"
+[[thermal]]
+name = "catalysed"
+equation = "A + cat -> B + cat"
+rate = { k = "2 /(M s)" }
+"#;
+    let net = net_in(&scratch("cat"), text).unwrap();
+    let v = photoledger::barrier::network_verdicts(&net, 3600.0, 0.5).unwrap();
+    assert!(v[0].name.contains("[per A]"), "{}", v[0].name);
+    let want = std::f64::consts::LN_2 / (2.0 * 1e-3);
+    assert!(
+        (v[0].half_life - want).abs() < 1e-8 * want,
+        "{} vs {want}",
+        v[0].half_life
+    );
+    assert!((v[0].rate - 2.0 * 1e-3).abs() < 1e-15);
+}

@@ -236,16 +236,17 @@ pub fn tally(rows: &[Verdict]) -> String {
 }
 
 /// Time for a share `p` of reactant `followed` to react in the isolated step of rate
-/// r = k Π cⱼ^νⱼ (consumption νⱼ r), from the initial concentrations `c0` (mol/L):
-/// t = ∫₀^ξ* dξ / (k Π (cⱼ⁰ − νⱼ ξ)^νⱼ) with ξ* = p c⁰ / ν of the reactant followed, which must
-/// be the limiting one. Adaptive Simpson quadrature to 1e-10 relative.
-fn isolated_step_time(k: f64, terms: &[(f64, f64)], followed: usize, p: f64) -> f64 {
-    let (c_f, nu_f) = terms[followed];
-    let end = p * c_f / nu_f;
+/// r = k Π cⱼ^νⱼ, each `terms` entry being (cⱼ⁰ mol/L, order νⱼ, net consumption nⱼ per event:
+/// reactant minus product coefficient, so a catalyst has nⱼ = 0 and stays at cⱼ⁰):
+/// t = ∫₀^ξ* dξ / (k Π (cⱼ⁰ − nⱼ ξ)^νⱼ) with ξ* = p c⁰ / n of the reactant followed, which must
+/// be the limiting one among those consumed. Adaptive Simpson quadrature to 1e-10 relative.
+fn isolated_step_time(k: f64, terms: &[(f64, f64, f64)], followed: usize, p: f64) -> f64 {
+    let (c_f, _, n_f) = terms[followed];
+    let end = p * c_f / n_f;
     let f = |xi: f64| {
         let mut r = k;
-        for &(c, nu) in terms {
-            r *= (c - nu * xi).max(0.0).powf(nu);
+        for &(c, nu, n) in terms {
+            r *= (c - n * xi).max(0.0).powf(nu);
         }
         1.0 / r
     };
@@ -309,15 +310,26 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
     };
     let mut out = Vec::new();
     for s in &net.thermal {
-        let terms: Vec<(f64, f64)> = s
+        // (c⁰, order, net consumption): a species on both sides (a catalyst) is not used up
+        let terms: Vec<(f64, f64, f64)> = s
             .reactants
             .iter()
-            .map(|r| (net.species[r.species].initial, r.coefficient))
+            .map(|r| {
+                let made: f64 = s
+                    .products
+                    .iter()
+                    .filter(|x| x.species == r.species)
+                    .map(|x| x.coefficient)
+                    .sum();
+                (net.species[r.species].initial, r.coefficient, r.coefficient - made)
+            })
             .collect();
-        // follow the limiting reactant (smallest c⁰/ν; the first on ties)
+        // follow the limiting reactant among those consumed (smallest c⁰/n; the first on ties)
         let followed = (0..terms.len())
-            .min_by(|&a, &b| (terms[a].0 / terms[a].1).total_cmp(&(terms[b].0 / terms[b].1)))
-            .unwrap_or(0);
+            .filter(|&a| terms[a].2 > 0.0)
+            .min_by(|&a, &b| (terms[a].0 / terms[a].2).total_cmp(&(terms[b].0 / terms[b].2)));
+        let consumed = followed.is_some();
+        let followed = followed.unwrap_or(0);
         let mut name = format!("{} ({} -> {})", s.name, net.side(&s.reactants), net.side(&s.products));
         if s.order > 1
             && let Some(f) = s.reactants.get(followed)
@@ -328,9 +340,9 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
             out.push(first_order(name, StepKind::Thermal(s.order), &s.rate, s.order, s.k));
             continue;
         }
-        let (c_f, nu_f) = terms[followed];
-        let mut rate = if c_f > 0.0 { s.k * nu_f / c_f } else { 0.0 };
-        for &(c, nu) in &terms {
+        let (c_f, _, n_f) = terms[followed];
+        let mut rate = if c_f > 0.0 && consumed { s.k * n_f / c_f } else { 0.0 };
+        for &(c, nu, _) in &terms {
             rate *= c.powf(nu);
         }
         let (half_life, time_needed) = if rate > 0.0 && rate.is_finite() {
@@ -522,20 +534,23 @@ mod tests {
         let rel = |a: f64, b: f64| (a - b).abs() / b;
         let k = 0.0136;
         // A + B, equal 10 mM
-        let t = isolated_step_time(k, &[(0.01, 1.0), (0.01, 1.0)], 0, 0.5);
+        let t = isolated_step_time(k, &[(0.01, 1.0, 1.0), (0.01, 1.0, 1.0)], 0, 0.5);
         assert!(rel(t, 1.0 / (k * 0.01)) < 1e-9, "{t}");
         // A + B, A limiting at 10 mM against 30 mM, to 90 % of A
         let (a0, b0, p): (f64, f64, f64) = (0.01, 0.03, 0.9);
         let (a, b) = (a0 * (1.0 - p), b0 - a0 * p);
         let want = (b * a0 / (a * b0)).ln() / (k * (b0 - a0));
-        let t = isolated_step_time(k, &[(a0, 1.0), (b0, 1.0)], 0, p);
+        let t = isolated_step_time(k, &[(a0, 1.0, 1.0), (b0, 1.0, 1.0)], 0, p);
         assert!(rel(t, want) < 1e-9, "{t} vs {want}");
         // 2 A
-        let t = isolated_step_time(k, &[(0.02, 2.0)], 0, 0.5);
+        let t = isolated_step_time(k, &[(0.02, 2.0, 2.0)], 0, 0.5);
         assert!(rel(t, 1.0 / (2.0 * k * 0.02)) < 1e-9, "{t}");
         // a large excess of B tends to the pseudo-first-order half-life ln 2 / (k [B]₀)
-        let t = isolated_step_time(k, &[(1e-6, 1.0), (1.0, 1.0)], 0, 0.5);
+        let t = isolated_step_time(k, &[(1e-6, 1.0, 1.0), (1.0, 1.0, 1.0)], 0, 0.5);
         assert!(rel(t, std::f64::consts::LN_2 / k) < 1e-5, "{t}");
+        // A + cat -> B + cat: the catalyst is not consumed, so A decays first order in k[cat]₀
+        let t = isolated_step_time(k, &[(0.01, 1.0, 1.0), (1e-3, 1.0, 0.0)], 0, 0.5);
+        assert!(rel(t, std::f64::consts::LN_2 / (k * 1e-3)) < 1e-9, "{t}");
     }
 
     #[test]
