@@ -113,7 +113,7 @@ fn sweep_writes_csv_and_well_formed_svg() {
     let csv = std::fs::read_to_string(dir.join("sweep.csv")).unwrap();
     let rows: Vec<&str> = csv.lines().collect();
     assert_eq!(rows.len(), 5, "{csv}");
-    assert!(rows[0].starts_with("total power (W),time to target (s)"));
+    assert!(rows[0].starts_with("total power emitted (W),time to target (s)"));
     // Times fall as the power rises.
     let t: Vec<f64> = rows[1..]
         .iter()

@@ -79,12 +79,18 @@ pub fn parse(text: &str, net: &Network) -> Result<SweepSpec> {
         .split_once("..")
         .ok_or_else(|| usage("no .. between the ends".into()))?;
     let (swept, q, log, label, factor) = match key {
-        "power" => (Swept::Power, Quantity::Power, true, "total power (W)".to_string(), 1.0),
+        "power" => (
+            Swept::Power,
+            Quantity::Power,
+            true,
+            "total power emitted (W)".to_string(),
+            1.0,
+        ),
         "photon_flux" => (
             Swept::PhotonFlux,
             Quantity::PhotonFlux,
             true,
-            "total photon flux (einstein/s)".into(),
+            "total photon flux emitted (einstein/s)".into(),
             1.0,
         ),
         "wavelength" => (
@@ -170,17 +176,18 @@ enum Point {
 
 /// The `--set` key and value text of a point, or the light factor for power and flux sweeps.
 fn point(spec: &SweepSpec, base: &Base, v: f64) -> Result<Point> {
-    let model = base.model;
     Ok(match &spec.swept {
+        // the swept value is the emitted total, as `power` and `photon_flux` in the file are
+        // (a from/to window then cuts it in the same proportion)
         Swept::Power => {
-            let p = model.total_power();
+            let p: f64 = base.network.lights.iter().map(|l| l.emitted_power).sum();
             if p <= 0.0 {
                 return Err(Error::Usage("--sweep power: the network has no light".into()));
             }
             Point::Scale(v / p)
         }
         Swept::PhotonFlux => {
-            let q = model.total_flux();
+            let q: f64 = base.network.lights.iter().map(|l| l.emitted_photon_flux).sum();
             if q <= 0.0 {
                 return Err(Error::Usage("--sweep photon_flux: the network has no light".into()));
             }

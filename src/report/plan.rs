@@ -466,6 +466,7 @@ pub fn sweep_csv(axis: &SweepAxis, points: &[SweepPoint]) -> String {
         "time to target (s)".into(),
         "reached".into(),
         "note".into(),
+        "selectivity reference".into(),
     ];
     for p in &products {
         header.push(format!("{p} (mol/L)"));
@@ -477,7 +478,13 @@ pub fn sweep_csv(axis: &SweepAxis, points: &[SweepPoint]) -> String {
         match &pt.plan {
             Ok(p) => {
                 let note = p.unreachable.as_ref().map_or("", |u| u.why.words());
-                cells.extend([opt_sci(p.time), p.time.is_some().to_string(), note.to_string()]);
+                let reference = p.products.first().and_then(|x| x.reference.clone()).unwrap_or_default();
+                cells.extend([
+                    opt_sci(p.time),
+                    p.time.is_some().to_string(),
+                    note.to_string(),
+                    reference,
+                ]);
                 // Matched by name so every row has the header's columns (empty where a point lacks one).
                 for name in &products {
                     let sh = p.products.iter().find(|sh| &sh.species == name);
@@ -486,7 +493,7 @@ pub fn sweep_csv(axis: &SweepAxis, points: &[SweepPoint]) -> String {
                 }
             }
             Err(e) => {
-                cells.extend([String::new(), "false".into(), e.clone()]);
+                cells.extend([String::new(), "false".into(), e.clone(), String::new()]);
                 cells.extend(std::iter::repeat_n(String::new(), 2 * products.len()));
             }
         }
