@@ -175,12 +175,7 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
                 crate::network::PhotoOutcome::Products(_) => "quantum yield",
                 crate::network::PhotoOutcome::Transient(_) => "efficiency",
             };
-            let mean = match &step.quantum_yield {
-                crate::light::Spectrum::Constant { value, .. } => *value,
-                crate::light::Spectrum::Table { points, .. } => {
-                    points.iter().map(|p| p.1).sum::<f64>() / points.len().max(1) as f64
-                }
-            };
+            let mean = step.quantum_yield.mean();
             out.push(Parameter {
                 label: format!("{word} of \"{}\" (scaled over its spectrum)", step.name),
                 slot: Slot::YieldFactor(p),

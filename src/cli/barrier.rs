@@ -70,13 +70,8 @@ fn quantity(flag: &str, text: &str, q: Quantity) -> photoledger::Result<f64> {
 }
 
 fn probability(text: &str) -> photoledger::Result<f64> {
-    let t = text.trim();
-    let (num, scale) = match t.strip_suffix('%') {
-        Some(n) => (n.trim(), 100.0),
-        None => (t, 1.0),
-    };
-    match num.parse::<f64>() {
-        Ok(v) if v.is_finite() && v / scale > 0.0 && v / scale < 1.0 => Ok(v / scale),
+    match units::fraction(text) {
+        Ok(v) if v > 0.0 && v < 1.0 => Ok(v),
         _ => Err(Error::Usage(format!(
             "--probability \"{text}\": expected a fraction strictly between 0 and 1 (0.5) or a percentage (\"50 %\")"
         ))),

@@ -95,16 +95,7 @@ fn parse_tube(spec: &str) -> photoledger::Result<Tube> {
 
 /// "30 %" or "0.3".
 fn parse_fraction(text: &str, what: &str) -> photoledger::Result<f64> {
-    let t = text.trim();
-    let v = match t.strip_suffix('%') {
-        Some(p) => p.trim().parse::<f64>().map(|v| v / 100.0),
-        None => t.parse::<f64>(),
-    }
-    .map_err(|_| {
-        Error::Usage(format!(
-            "{what} \"{text}\": expected a fraction such as 0.3 or \"30 %\""
-        ))
-    })?;
+    let v = photoledger::units::fraction(text).map_err(|e| Error::Usage(format!("{what}: {e}")))?;
     if !(v > 0.0 && v <= 1.0) {
         return Err(Error::Usage(format!(
             "{what} \"{text}\": must be above 0 and at most 100 %"

@@ -30,6 +30,15 @@ pub enum Spectrum {
 }
 
 impl Spectrum {
+    /// The plain mean of its values: the constant, or the mean of the table's points (0 for an
+    /// empty table). For labels and `--set` read-back, not for integrals over wavelength.
+    pub fn mean(&self) -> f64 {
+        match self {
+            Spectrum::Constant { value, .. } => *value,
+            Spectrum::Table { points, .. } => points.iter().map(|p| p.1).sum::<f64>() / points.len().max(1) as f64,
+        }
+    }
+
     /// The value at `wavelength` (m).
     pub fn at(&self, wavelength: f64) -> f64 {
         match self {

@@ -25,7 +25,7 @@
 //! with the unit to write it back and the range it may take: fitting and sampling use it.
 
 use super::{Branching, Network, PhotoOutcome, ThermalStep};
-use crate::light::{Intensity, LightKind, Spectrum};
+use crate::light::{Intensity, LightKind};
 use crate::rates::RateLaw;
 use crate::units::constants::{BOLTZMANN, GAS_CONSTANT, PLANCK, STANDARD_CONCENTRATION};
 use crate::units::{self, Quantity};
@@ -214,13 +214,6 @@ fn rate_parameter(key: &str, field: &str, law: &RateLaw, k: f64, order: u32, tem
 }
 
 /// The mean of a spectrum's values (a constant's value), as a start for one number replacing it.
-fn mean_value(s: &Spectrum) -> f64 {
-    match s {
-        Spectrum::Constant { value, .. } => *value,
-        Spectrum::Table { points, .. } => points.iter().map(|p| p.1).sum::<f64>() / points.len() as f64,
-    }
-}
-
 /// Split `rest` ("NAME.FIELD") at the last dot, where FIELD is one of `fields`.
 fn name_field<'a>(rest: &'a str, fields: &[&str]) -> Option<(&'a str, &'a str)> {
     let (name, field) = rest.rsplit_once('.')?;
@@ -255,7 +248,7 @@ pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
                 Some(a) => Ok(p(a, Some(Quantity::Area), Range::Positive)),
                 None => Err(format!("{key}: the network gives no irradiated area")),
             },
-            "background" => Ok(p(mean_value(&c.background), None, Range::Positive)),
+            "background" => Ok(p(c.background.mean(), None, Range::Positive)),
             _ => unknown("no such condition"),
         };
     }
@@ -303,7 +296,7 @@ pub fn parameter(net: &Network, key: &str) -> Result<Parameter, String> {
         };
         return match (field, &s.outcome) {
             ("quantum_yield", PhotoOutcome::Products(_)) | ("efficiency", PhotoOutcome::Transient(_)) => {
-                Ok(p(mean_value(&s.quantum_yield), None, Range::Fraction))
+                Ok(p(s.quantum_yield.mean(), None, Range::Fraction))
             }
             ("quantum_yield", _) => Err(format!(
                 "{key}: \"{name}\" is a long-form step; set photo.{name}.efficiency or the transient's channels"
