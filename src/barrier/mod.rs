@@ -364,13 +364,9 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
             factor: time_needed / window,
         });
     }
-    for tr in &net.transients {
+    for (ti, tr) in net.transients.iter().enumerate() {
         for (ci, c) in tr.channels.iter().enumerate() {
-            let target = match &c.target {
-                crate::network::Target::Species(terms) => net.side(terms),
-                crate::network::Target::Transient(j) => net.transients[*j].name.clone(),
-            };
-            let name = format!("{} channel {} -> {}", tr.name, ci + 1, target);
+            let name = net.channel_name(ti, ci);
             match &c.branching {
                 Branching::Rate { law, k } => out.push(first_order(name, StepKind::Channel, law, 1, *k)),
                 Branching::Quenching { partner, law, k2 } => {
@@ -427,7 +423,7 @@ impl HotVerdict {
 /// The hot channels of every hot ground state in `net`, with their computed yields.
 pub fn hot_verdicts(net: &Network) -> Vec<HotVerdict> {
     let mut out = Vec::new();
-    for tr in &net.transients {
+    for (ti, tr) in net.transients.iter().enumerate() {
         for (ci, c) in tr.channels.iter().enumerate() {
             if let Branching::Hot {
                 fraction,
@@ -437,12 +433,8 @@ pub fn hot_verdicts(net: &Network) -> Vec<HotVerdict> {
                 rate_at_start,
             } = c.branching
             {
-                let target = match &c.target {
-                    crate::network::Target::Species(terms) => net.side(terms),
-                    crate::network::Target::Transient(j) => net.transients[*j].name.clone(),
-                };
                 out.push(HotVerdict {
-                    name: format!("{} channel {} -> {}", tr.name, ci + 1, target),
+                    name: net.channel_name(ti, ci),
                     barrier,
                     energy,
                     cooling,

@@ -228,14 +228,7 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
 }
 
 fn target_name(net: &Network, t: &Target) -> String {
-    match t {
-        Target::Transient(k) => net.transients[*k].name.clone(),
-        Target::Species(terms) => terms
-            .iter()
-            .map(|x| net.species[x.species].name.clone())
-            .collect::<Vec<_>>()
-            .join(" + "),
-    }
+    net.target_name(t)
 }
 
 /// Per-molecule photon absorption rate of each absorber slot per bin, s⁻¹.

@@ -339,6 +339,25 @@ impl Network {
     }
 
     /// The equation of a list of terms, e.g. "2 A + B".
+    /// Where a channel leads, for labels: the species side ("2 B + C") or the transient's name.
+    pub fn target_name(&self, t: &Target) -> String {
+        match t {
+            Target::Species(terms) => self.side(terms),
+            Target::Transient(j) => self.transients[*j].name.clone(),
+        }
+    }
+
+    /// "TRANSIENT channel N -> TARGET" for channel `ci` (0-based) of transient `t`.
+    pub fn channel_name(&self, t: usize, ci: usize) -> String {
+        let tr = &self.transients[t];
+        format!(
+            "{} channel {} -> {}",
+            tr.name,
+            ci + 1,
+            self.target_name(&tr.channels[ci].target)
+        )
+    }
+
     pub fn side(&self, terms: &[Term]) -> String {
         terms
             .iter()
