@@ -319,7 +319,11 @@ fn chain_study(model: &Model, net: &Network) -> Result<ChainStudy> {
 
 /// Run the study of `net` (compiled as `model`).
 pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
-    let chain = chain_study(model, net).map_err(|e| e.to_string());
+    let chain = chain_study(model, net).map_err(|e| match e {
+        // No end state: the reason alone, without the diagnostic's "error:" and file.
+        crate::Error::Invalid(ds) => ds.iter().map(|d| d.message.as_str()).collect::<Vec<_>>().join("; "),
+        e => e.to_string(),
+    });
     let (until, until_reason) = match (opts.until, &chain) {
         (Some(t), _) => (t, "as asked (--until)".to_string()),
         (None, Ok(c)) if c.summary.time_mean_s.is_finite() && c.summary.time_mean_s > 0.0 => (

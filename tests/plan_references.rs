@@ -154,7 +154,9 @@ fn light_for_a_given_time_follows_one_over_power() {
     let target = plan::target::parse("P > 50 %", &m).unwrap();
     let t1 = plan_time(&m, "P > 50 %");
     let want = 600.0;
-    let s = plan::power_for_time(&m, &target, want, &PlanOptions::default()).unwrap();
+    let s = plan::power_for_time(&m, &target, want, &PlanOptions::default())
+        .unwrap()
+        .unwrap();
     assert!(rel(s.scale, t1 / want) < 2e-6, "scale {} vs {}", s.scale, t1 / want);
     assert!(rel(s.plan.time.unwrap(), want) < plan::POWER_TOLERANCE);
 }

@@ -181,6 +181,32 @@ impl Chain {
         self.moves.len() - 1
     }
 
+    /// The states from which no absorbing state can be reached (a molecule there would cycle
+    /// forever), by a reverse search from the absorbing states over moves of positive probability.
+    pub fn stuck(&self) -> Vec<&str> {
+        let n = self.states.len();
+        let mut into: Vec<Vec<usize>> = vec![Vec::new(); n];
+        for m in &self.moves {
+            if m.probability > 0.0 && m.from < n && m.to < n && !self.states[m.from].absorbing {
+                into[m.to].push(m.from);
+            }
+        }
+        let mut reach: Vec<bool> = self.states.iter().map(|s| s.absorbing).collect();
+        let mut stack: Vec<usize> = (0..n).filter(|&i| reach[i]).collect();
+        while let Some(i) = stack.pop() {
+            for &j in &into[i] {
+                if !reach[j] {
+                    reach[j] = true;
+                    stack.push(j);
+                }
+            }
+        }
+        (0..n)
+            .filter(|&i| !reach[i])
+            .map(|i| self.states[i].name.as_str())
+            .collect()
+    }
+
     /// Check the chain: probabilities finite and in [0, 1], rows of transient states summing to
     /// one, and every transient state able to reach an absorbing one.
     pub fn validate(&self) -> Result<()> {
@@ -209,27 +235,7 @@ impl Chain {
                 )));
             }
         }
-        // Reverse search from the absorbing states.
-        let mut into: Vec<Vec<usize>> = vec![Vec::new(); n];
-        for m in &self.moves {
-            if m.probability > 0.0 && !self.states[m.from].absorbing {
-                into[m.to].push(m.from);
-            }
-        }
-        let mut reach: Vec<bool> = self.states.iter().map(|s| s.absorbing).collect();
-        let mut stack: Vec<usize> = (0..n).filter(|&i| reach[i]).collect();
-        while let Some(i) = stack.pop() {
-            for &j in &into[i] {
-                if !reach[j] {
-                    reach[j] = true;
-                    stack.push(j);
-                }
-            }
-        }
-        let stuck: Vec<&str> = (0..n)
-            .filter(|&i| !reach[i])
-            .map(|i| self.states[i].name.as_str())
-            .collect();
+        let stuck = self.stuck();
         if !stuck.is_empty() {
             return Err(Error::Numerical(format!(
                 "a molecule in {} can never reach a product or a species with no way out, so it would cycle \

@@ -5,7 +5,7 @@
 use super::build::{self, Settings, Values};
 use super::sensitivity::{self, Sensitivity};
 use super::{Analysis, Chain, Options};
-use crate::error::Result;
+use crate::error::{Diagnostic, Error, Result};
 use crate::kinetics;
 use crate::model::Model;
 use crate::network::Network;
@@ -66,6 +66,10 @@ pub fn run(model: &Model, net: &Network, opts: &ChainOptions) -> Result<ChainRun
     }
     let values = Values::of(model, net);
     let chain = build::build(model, net, &settings, &values)?;
+    let stuck = chain.stuck();
+    if !stuck.is_empty() {
+        return Err(no_end(net, &stuck));
+    }
     let (start, start_note) = build::start(model, &chain, opts.from.as_deref())?;
     let analysis = super::analyse(&chain, &start, &opts.analysis)?;
     let sensitivities = if opts.sensitivities {
@@ -81,4 +85,25 @@ pub fn run(model: &Model, net: &Network, opts: &ChainOptions) -> Result<ChainRun
         analysis,
         sensitivities,
     })
+}
+
+/// The network cannot answer "where does one molecule end?": from the `stuck` states no molecule
+/// ever reaches an end (a closed photoswitch). Invalid input for the chain, named in the file.
+fn no_end(net: &Network, stuck: &[&str]) -> Error {
+    let mut d = Diagnostic::error(
+        "",
+        format!(
+            "no end state: a molecule in {} never reaches a product or a species with no way out, so \
+             the single-molecule chain has no answer",
+            stuck.join(", ")
+        ),
+    )
+    .with_help(
+        "name a product (`product = true` on a [[species]]) or give one of them a way out; \
+         `simulate` follows the whole mixture, which needs no end",
+    );
+    if let Some(f) = &net.source {
+        d = d.in_file(f);
+    }
+    Error::invalid(d)
 }

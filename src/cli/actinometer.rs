@@ -1,5 +1,6 @@
 //! `photoledger actinometer ferrioxalate ...` and `photoledger actinometer network FILE --step NAME --data CSV`.
 
+use super::output::{out, outln};
 use super::{NetworkArgs, load, print_warnings};
 use photoledger::Error;
 use photoledger::light::LightKind;
@@ -230,15 +231,15 @@ fn ferrioxalate(a: &FerrioxalateArgs) -> photoledger::Result<()> {
     write_atomic(&dir.join("result.json"), js.as_bytes())?;
     write_atomic(&dir.join("light.toml"), block.as_bytes())?;
     if a.json {
-        println!("{js}");
+        outln!("{js}")?;
     } else {
-        print!("{}", rp::ferrioxalate_text(&r, wl, &yield_note, &eps_note));
-        println!(
+        out!("{}", rp::ferrioxalate_text(&r, wl, &yield_note, &eps_note))?;
+        outln!(
             "\nlight block for a network file (also in {}/light.toml):\n",
             dir.display()
-        );
-        print!("{block}");
-        println!("\ncaution: {}", rp::CAUTIONS);
+        )?;
+        out!("{block}")?;
+        outln!("\ncaution: {}", rp::CAUTIONS)?;
     }
     Ok(())
 }
@@ -341,15 +342,15 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
     write_atomic(&dir.join("result.json"), js.as_bytes())?;
     write_atomic(&dir.join("light.toml"), blocks.as_bytes())?;
     if a.json {
-        println!("{js}");
+        outln!("{js}")?;
     } else {
-        print!("{}", rp::network_fit_text(&fit, &net.species[sp].name, &a.step));
-        println!(
+        out!("{}", rp::network_fit_text(&fit, &net.species[sp].name, &a.step))?;
+        outln!(
             "\nlight blocks to replace the network's (also in {}/light.toml):\n",
             dir.display()
-        );
-        print!("{blocks}");
-        println!("caution: {}", rp::CAUTIONS);
+        )?;
+        out!("{blocks}")?;
+        outln!("caution: {}", rp::CAUTIONS)?;
     }
     Ok(())
 }

@@ -1,6 +1,7 @@
 //! `photoledger barrier`: the largest barrier crossed in a window (thermal or hot molecule),
 //! verdicts on every step of a network, and k(E) tables.
 
+use super::output::{noteln, out, outln};
 use photoledger::Error;
 use photoledger::barrier::{self, HotLimit};
 use photoledger::file::frequencies;
@@ -125,19 +126,19 @@ fn thermal(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
     }
     let g = barrier::thermal_window(window, t, p, kappa)?;
     let k = barrier::eyring_rate(g, t, kappa);
-    println!(
+    outln!(
         "Largest barrier crossed with {:.0} % probability within {} at {t:.2} K:",
         p * 100.0,
         report::duration(window)
-    );
-    println!(
+    )?;
+    outln!(
         "  ΔG‡ = {} (Eyring, unimolecular, κ = {kappa:.4}{note})",
         report::energy(g)
-    );
-    println!(
+    )?;
+    outln!(
         "  rate at that barrier {k:.4e} /s, half-life {}",
         report::duration(std::f64::consts::LN_2 / k)
-    );
+    )?;
     Ok(())
 }
 
@@ -152,7 +153,7 @@ fn read_pair(path: &std::path::Path) -> photoledger::Result<frequencies::Frequen
     }
     let ts = f.ts.as_ref().map_or(0, |t| t.vibrations.len());
     if ts + 1 != f.reactant.vibrations.len() {
-        eprintln!(
+        noteln!(
             "warning: {}: the reactant has {} real frequencies and the transition state {ts}; usually the \
              transition state has one fewer (the reaction coordinate)",
             path.display(),
@@ -188,31 +189,31 @@ fn hot(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
         HotLimit::Cooling(t) => format!("before cooling (exponential, τ = {})", report::duration(t)),
         HotLimit::Window(t) => format!("within {} at constant energy", report::duration(t)),
     };
-    println!(
+    outln!(
         "Hot molecule with {} above its zero-point level, crossing with {:.0} % probability {how}:",
         report::energy(e),
         p * 100.0
-    );
+    )?;
     match w.barrier {
         Some(b) => {
-            println!("  largest zero-point-corrected barrier E0 = {}", report::energy(b));
+            outln!("  largest zero-point-corrected barrier E0 = {}", report::energy(b))?;
             if let Some(k) = w.rate_at_barrier {
-                println!("  k(E) at that barrier {k:.4e} /s");
+                outln!("  k(E) at that barrier {k:.4e} /s")?;
             }
         }
-        None => println!(
+        None => outln!(
             "  no barrier: even E0 = 0 gives only {:.2} % (RRKM, σ = {})",
             w.probability_at_zero * 100.0,
             f.degeneracy
-        ),
+        )?,
     }
-    println!(
+    outln!(
         "  RRKM with Beyer–Swinehart counts on a {} grain, σ = {}, {} reactant and {} transition-state vibrations",
         a.grain,
         f.degeneracy,
         f.reactant.vibrations.len(),
         ts.vibrations.len()
-    );
+    )?;
     Ok(())
 }
 
@@ -281,7 +282,7 @@ fn hot_channels(a: &BarrierArgs) -> photoledger::Result<()> {
             probability: *p,
         })
         .collect();
-    print!("{}", report::hot_yields_text(&rows, y.cooled, e, cooling, &a.grain));
+    out!("{}", report::hot_yields_text(&rows, y.cooled, e, cooling, &a.grain))?;
     Ok(())
 }
 
@@ -320,7 +321,7 @@ fn k_of_e(a: &BarrierArgs) -> photoledger::Result<()> {
     write_atomic(&csv, report::k_csv(&rows).as_bytes())?;
     let title = format!("RRKM k(E), E0 = {}", a.barrier.as_deref().unwrap_or(""));
     write_atomic(&svg, report::k_svg(&rows, &title).as_bytes())?;
-    println!(
+    outln!(
         "k(E) for E0 = {} at {} energies from {} to {} (grain {}, σ = {}); largest frequency rounding {:.3} cm-1",
         report::energy(e0),
         rows.len(),
@@ -329,8 +330,8 @@ fn k_of_e(a: &BarrierArgs) -> photoledger::Result<()> {
         a.grain,
         f.degeneracy,
         rrkm.reactant.rounding.max(rrkm.ts.rounding) / units::parse("1 cm-1", Quantity::MolarEnergy).unwrap_or(1.0)
-    );
-    println!("wrote {} and {}", csv.display(), svg.display());
+    )?;
+    outln!("wrote {} and {}", csv.display(), svg.display())?;
     Ok(())
 }
 
@@ -343,10 +344,10 @@ fn network(a: &BarrierArgs, file: &std::path::Path, p: f64) -> photoledger::Resu
     let net = super::load(&args)?;
     super::print_warnings(&net);
     let rows = barrier::network_verdicts(&net, window, p)?;
-    print!(
+    out!(
         "{}",
         report::verdicts_text(&rows, window, p, net.conditions.temperature)
-    );
-    print!("{}", report::hot_verdicts_text(&barrier::hot_verdicts(&net)));
+    )?;
+    out!("{}", report::hot_verdicts_text(&barrier::hot_verdicts(&net)))?;
     Ok(())
 }

@@ -1,6 +1,7 @@
 //! `photoledger bench [FILE...]`: time the kinetics on networks and on a generated large one.
 
 use super::load;
+use super::output::outln;
 use photoledger::bench::{Size, large_network};
 use photoledger::kinetics::{self, Method, Options};
 use photoledger::model::Model;
@@ -55,17 +56,17 @@ fn chain_bench(states: usize) -> photoledger::Result<()> {
     let d = analyse(&c, &pi, &Options::default())?;
     let full = t1.elapsed().as_secs_f64();
     let n = d.distribution.as_ref().map_or(0, |x| x.p.len());
-    println!(
+    outln!(
         "generated chain: {} states, {} moves (built in {built:.3} s)",
         c.states.len(),
         c.moves.len()
-    );
-    println!("  yields, visits, photon mean and variance, mean time (one LU, four solves): {moments:.3} s");
-    println!(
+    )?;
+    outln!("  yields, visits, photon mean and variance, mean time (one LU, four solves): {moments:.3} s")?;
+    outln!(
         "  the same plus P(N = n) for n = 0..{} (second LU, one solve per n): {full:.3} s",
         n.saturating_sub(1)
-    );
-    println!("  mean photons {:.4}, yields {:?}", a.photons_total, a.yields);
+    )?;
+    outln!("  mean photons {:.4}, yields {:?}", a.photons_total, a.yields)?;
     Ok(())
 }
 
@@ -132,15 +133,33 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
     if a.dense_too {
         rows.push(time(&name, &model, until, Some(false))?);
     }
-    println!(
+    outln!(
         "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>10}",
-        "network", "species", "reactions", "bins", "method", "steps", "RHS", "J·v", "LU", "wall (s)"
-    );
+        "network",
+        "species",
+        "reactions",
+        "bins",
+        "method",
+        "steps",
+        "RHS",
+        "J·v",
+        "LU",
+        "wall (s)"
+    )?;
     for r in rows {
-        println!(
+        outln!(
             "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>10.3}",
-            r.name, r.species, r.reactions, r.bins, r.method, r.steps, r.rhs, r.jv, r.setups, r.seconds
-        );
+            r.name,
+            r.species,
+            r.reactions,
+            r.bins,
+            r.method,
+            r.steps,
+            r.rhs,
+            r.jv,
+            r.setups,
+            r.seconds
+        )?;
     }
     Ok(())
 }

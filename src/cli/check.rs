@@ -1,16 +1,17 @@
 //! `photoledger check FILE`: validate and summarise.
 
+use super::output::{out, outln};
 use super::{NetworkArgs, load, print_warnings};
 
 pub fn run(args: &NetworkArgs, quiet: bool) -> photoledger::Result<()> {
     let net = load(args)?;
     if !quiet {
-        print!("{}", photoledger::report::summary::network_summary(&net));
-        println!();
+        out!("{}", photoledger::report::summary::network_summary(&net))?;
+        outln!()?;
     }
     print_warnings(&net);
     let w = net.warnings.len();
-    println!(
+    outln!(
         "valid: {}{}",
         args.file.display(),
         if w > 0 {
@@ -18,6 +19,6 @@ pub fn run(args: &NetworkArgs, quiet: bool) -> photoledger::Result<()> {
         } else {
             String::new()
         }
-    );
+    )?;
     Ok(())
 }

@@ -1,6 +1,7 @@
 //! `photoledger compare A.toml B.toml ... --data DATA... [--free A.toml:KEY,KEY ...]`.
 
 use super::fit::{fit_one, read_data};
+use super::output::{out, outln};
 use photoledger::Error;
 use photoledger::fit::mechanism::FitOptions;
 use photoledger::fit::run;
@@ -99,10 +100,10 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<()> {
         rf::data_svg("data and each network's fit", &rows, &models).as_bytes(),
     )?;
     if a.json {
-        println!("{}", serde_json::to_string_pretty(&json).unwrap_or_default());
+        outln!("{}", serde_json::to_string_pretty(&json).unwrap_or_default())?;
     } else {
-        print!("{text}");
-        println!("wrote {}/ ranking.txt ranking.json fits.svg", a.out.display());
+        out!("{text}")?;
+        outln!("wrote {}/ ranking.txt ranking.json fits.svg", a.out.display())?;
     }
     Ok(())
 }

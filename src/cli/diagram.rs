@@ -1,5 +1,6 @@
 //! `photoledger diagram FILE -o network.svg [--dot]`.
 
+use super::output::{out, outln};
 use super::{NetworkArgs, load, print_warnings};
 use std::path::Path;
 
@@ -7,10 +8,10 @@ pub fn run(args: &NetworkArgs, out: &Path, dot: bool) -> photoledger::Result<()>
     let net = load(args)?;
     print_warnings(&net);
     if dot {
-        print!("{}", photoledger::report::diagram::dot(&net));
+        out!("{}", photoledger::report::diagram::dot(&net))?;
         return Ok(());
     }
     photoledger::report::write_atomic(out, photoledger::report::diagram::svg(&net).as_bytes())?;
-    println!("wrote {}", out.display());
+    outln!("wrote {}", out.display())?;
     Ok(())
 }

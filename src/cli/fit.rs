@@ -1,5 +1,6 @@
 //! `photoledger fit FILE --data DATA... [--free KEYS] [--out DIR] [--json] [--starts N] [--seed S] [--scale-errors]`.
 
+use super::output::{out, outln};
 use photoledger::Error;
 use photoledger::file::data::{self, Experiment};
 use photoledger::fit::mechanism::FitOptions;
@@ -123,13 +124,13 @@ pub fn run(a: &FitArgs) -> photoledger::Result<()> {
     )?;
     write_atomic(&out.join(format!("{stem}.fitted.toml")), fitted.as_bytes())?;
     if a.json {
-        println!("{}", serde_json::to_string_pretty(&json).unwrap_or_default());
+        outln!("{}", serde_json::to_string_pretty(&json).unwrap_or_default())?;
     } else {
-        print!("{text}");
-        println!(
+        out!("{text}")?;
+        outln!(
             "wrote {}/ summary.txt fit.json residuals.csv fit.svg residuals.svg {stem}.fitted.toml",
             out.display()
-        );
+        )?;
     }
     Ok(())
 }

@@ -1,6 +1,7 @@
 //! `photoledger ledger FILE [--from SPECIES] [--json] [--out DIR]`: follow one molecule through
 //! the network as an absorbing Markov chain.
 
+use super::output::{noteln, out, outln};
 use super::{NetworkArgs, load, print_warnings};
 use photoledger::Error;
 use photoledger::chain::build::{Light, Settings};
@@ -76,7 +77,7 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
     };
     let run = chain::run(&model, &net, &opts)?;
     if let Some(t) = at {
-        eprintln!(
+        noteln!(
             "note: concentrations taken from the kinetics at {}",
             photoledger::units::format_time(t)
         );
@@ -110,13 +111,13 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
         report::histogram_svg(&format!("{}: photons per molecule", net.about.name), an).as_bytes(),
     )?;
     if a.json {
-        println!("{json}");
+        outln!("{json}")?;
     } else {
-        print!("{}", report::text(&summary));
-        println!(
+        out!("{}", report::text(&summary))?;
+        outln!(
             "wrote {}/ (summary.json, photon_counts.csv, photon_counts.svg)",
             dir.display()
-        );
+        )?;
     }
     Ok(())
 }

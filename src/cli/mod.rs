@@ -1,8 +1,6 @@
-//! The command line: clap definitions, one function per command, errors printed once here.
-//!
-//! Exit codes: 0 success, 1 invalid input (a network or data file that fails its checks),
-//! 2 usage error (bad arguments, unknown --set key), 3 a file could not be read or written,
-//! 4 a numerical engine could not finish.
+//! The command line: clap definitions, one function per command, errors printed once here
+//! (each begins "error:" and goes to standard error), exit codes from one table, [`Exit`].
+//! Every command prints through [`output`] (a closed standard output ends printing quietly).
 
 mod actinometer;
 mod barrier;
@@ -12,12 +10,14 @@ mod compare;
 mod diagram;
 mod fit;
 mod ledger;
+mod output;
 mod plan;
 mod report;
 mod simulate;
 mod uncertainty;
 
 use clap::{Parser, Subcommand};
+use output::noteln;
 use photoledger::Error;
 use std::path::PathBuf;
 
@@ -86,13 +86,71 @@ enum Command {
     },
 }
 
+/// The exit code of every command: the one table. README's "Exit codes" table mirrors
+/// [`Exit::TABLE`] word for word (a test in this module checks it).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Exit {
+    /// The command did what was asked.
+    Success = 0,
+    /// Invalid input: a network or data file fails its checks, or the network cannot answer
+    /// the question asked (`ledger` on a network with no end).
+    Invalid = 1,
+    /// Usage error: bad arguments or options, an unknown `--set` key.
+    Usage = 2,
+    /// A file could not be read or written (standard output included, except a closed pipe).
+    File = 3,
+    /// A numerical engine could not finish.
+    Numerical = 4,
+    /// Answered: the target is not reachable (`plan`, with or without `--in`).
+    Unreachable = 5,
+    /// Stopped at a limit (evaluations or time) before converging; the best point is reported.
+    /// Reserved for the fitting commands' limits.
+    #[allow(dead_code)]
+    StoppedAtLimit = 6,
+}
+
+impl Exit {
+    /// Every code with its meaning, as README's table lists them.
+    #[cfg_attr(not(test), allow(dead_code))]
+    pub const TABLE: [(Exit, &'static str); 7] = [
+        (
+            Exit::Success,
+            "success (also when standard output is closed early, as by `| head`)",
+        ),
+        (
+            Exit::Invalid,
+            "invalid input: a network or data file fails its checks (every problem listed with file, line, column, field, what was found and what is accepted), or the network cannot answer the question (`ledger` on a network where no molecule can end)",
+        ),
+        (
+            Exit::Usage,
+            "usage error: bad arguments or options, an unknown `--set` key",
+        ),
+        (Exit::File, "a file could not be read or written"),
+        (Exit::Numerical, "a numerical engine could not finish"),
+        (
+            Exit::Unreachable,
+            "answered: the target is not reachable (`plan`, with or without `--in`; the answer is printed)",
+        ),
+        (
+            Exit::StoppedAtLimit,
+            "stopped at a limit (evaluations or time) before converging; the best point found is reported",
+        ),
+    ];
+
+    /// The process exit code.
+    pub fn code(self) -> i32 {
+        self as i32
+    }
+}
+
 /// Run the command line; returns the process exit code.
 pub fn run() -> i32 {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
         Err(e) => {
+            // clap's own messages begin "error:"; --help and --version print to stdout.
             let _ = e.print();
-            return if e.use_stderr() { 2 } else { 0 };
+            return if e.use_stderr() { Exit::Usage } else { Exit::Success }.code();
         }
     };
     let result = match cli.command {
@@ -103,29 +161,40 @@ pub fn run() -> i32 {
         Command::Barrier(a) => barrier::run(&a),
         Command::Ledger(a) => ledger::run(&a),
         Command::Uncertainty(a) => uncertainty::run(&a),
-        Command::Plan(a) => plan::run(&a),
+        Command::Plan(a) => return exit_of(plan::run(&a)),
         Command::Actinometer(a) => actinometer::run(&a),
         Command::Report(a) => report::run(&a),
         Command::Fit(a) => fit::run(&a),
         Command::Compare(a) => compare::run(&a),
     };
+    exit_of(result.map(|()| Exit::Success))
+}
+
+/// The exit code of a command's result, printing its error once.
+fn exit_of(result: photoledger::Result<Exit>) -> i32 {
     match result {
-        Ok(()) => 0,
-        Err(e) => report_error(&e),
+        Ok(code) => code.code(),
+        Err(e) => report_error(&e).code(),
     }
 }
 
-/// Print an error once and map it to the exit code.
-fn report_error(e: &Error) -> i32 {
-    eprintln!("{e}");
+/// Print an error once, beginning "error:", and map it to the exit code.
+fn report_error(e: &Error) -> Exit {
+    let text = e.to_string();
+    // Diagnostics begin "error:" themselves; the other errors carry only their message.
+    if text.starts_with("error:") {
+        noteln!("{text}");
+    } else {
+        noteln!("error: {text}");
+    }
     match e {
         Error::Invalid(_) => {
-            eprintln!("invalid: see the problems above");
-            1
+            noteln!("invalid: see the problems above");
+            Exit::Invalid
         }
-        Error::Usage(_) => 2,
-        Error::Io { .. } => 3,
-        Error::Numerical(_) => 4,
+        Error::Usage(_) => Exit::Usage,
+        Error::Io { .. } => Exit::File,
+        Error::Numerical(_) => Exit::Numerical,
     }
 }
 
@@ -160,6 +229,6 @@ fn build(loaded: &photoledger::file::Loaded, args: &NetworkArgs) -> photoledger:
 /// Print warnings to stderr.
 fn print_warnings(net: &photoledger::Network) {
     for w in &net.warnings {
-        eprintln!("{w}");
+        noteln!("{w}");
     }
 }

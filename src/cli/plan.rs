@@ -1,7 +1,8 @@
 //! `photoledger plan FILE --target EXPR [--in DURATION] [--flow-tube SPEC] [--sun-hours H]
 //! [--sweep KEY=LO..HI:N] [--wall-plug EFF] [--json] [--out DIR]`.
 
-use super::{NetworkArgs, build, print_warnings};
+use super::output::{out, outln};
+use super::{Exit, NetworkArgs, build, print_warnings};
 use photoledger::Error;
 use photoledger::kinetics::Schedule;
 use photoledger::light::LightKind;
@@ -115,7 +116,9 @@ fn adjust_model(mut m: Model, sun_sources: &[usize], sun_scale: f64, tube: Optio
     }
 }
 
-pub fn run(a: &PlanArgs) -> photoledger::Result<()> {
+/// Plan; [`Exit::Unreachable`] when the answer is that the target is not reachable (the
+/// closest approach and why are printed), with or without `--in`.
+pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
     // Read once: a sweep builds each point's network from the same text.
     let loaded = photoledger::file::load(&a.net.file)?;
     let net = build(&loaded, &a.net)?;
@@ -228,27 +231,44 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<()> {
                 .collect();
             let j = serde_json::json!({"network": name, "target": a.target, "swept": sw.axis.label, "points": rows,
                 "cautions": rp::CAUTIONS});
-            println!(
+            outln!(
                 "{}",
                 serde_json::to_string_pretty(&j).map_err(|e| Error::Numerical(e.to_string()))?
-            );
+            )?;
         } else {
-            println!("sweep of {} for \"{}\" on {name}", sw.axis.label, a.target);
-            print!("{}", rp::sweep_text(&sw.axis, &points));
-            println!(
+            outln!("sweep of {} for \"{}\" on {name}", sw.axis.label, a.target)?;
+            out!("{}", rp::sweep_text(&sw.axis, &points))?;
+            outln!(
                 "wrote {}/ (sweep.csv, sweep.svg{})",
                 dir.display(),
                 if sel.is_some() { ", selectivity.svg" } else { "" }
-            );
-            println!("caution: {}", rp::CAUTIONS);
+            )?;
+            outln!("caution: {}", rp::CAUTIONS)?;
         }
-        return Ok(());
+        return Ok(Exit::Success);
     }
     let (result, power) = match &a.within {
         Some(d) => {
             let d = units::parse(d, Quantity::Time)
                 .map_err(|e| Error::Usage(format!("--in: {e}; expected {}", Quantity::Time.accepted())))?;
-            let ps = plan::power_for_time(&model, &target, d, &opts)?;
+            let ps = match plan::power_for_time(&model, &target, d, &opts)? {
+                Ok(ps) => ps,
+                Err(no) => {
+                    if a.json {
+                        let j = serde_json::json!({"network": name, "target": a.target, "in_s": d,
+                            "reachable": false, "why": no.why, "evaluations": no.evaluations});
+                        outln!(
+                            "{}",
+                            serde_json::to_string_pretty(&j).map_err(|e| Error::Numerical(e.to_string()))?
+                        )?;
+                    } else {
+                        outln!("\"{}\" in {} on {name}: not reachable", a.target, units::format_time(d))?;
+                        outln!("  {}", no.why)?;
+                        outln!("  (run without --in for the closest approach at the file's light, and why)")?;
+                    }
+                    return Ok(Exit::Unreachable);
+                }
+            };
             let sources = (0..model.sources.len())
                 .map(|s| {
                     (
@@ -301,13 +321,17 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<()> {
         simulation::concentrations_svg(&net, &run_model, &result.trajectory, false).as_bytes(),
     )?;
     if a.json {
-        println!("{json}");
+        outln!("{json}")?;
     } else {
-        print!("{}", rp::text(&summary));
-        println!(
+        out!("{}", rp::text(&summary))?;
+        outln!(
             "wrote {}/ (summary.json, concentrations.csv, concentrations.svg)",
             dir.display()
-        );
+        )?;
     }
-    Ok(())
+    Ok(if result.time.is_some() {
+        Exit::Success
+    } else {
+        Exit::Unreachable
+    })
 }

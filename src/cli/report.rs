@@ -2,6 +2,7 @@
 //! [--data DATA... [--free KEYS] [--rival OTHER.toml ...]] -o report.html`:
 //! run what applies to the network and write one self-contained HTML page.
 
+use super::output::{noteln, outln};
 use super::{NetworkArgs, load, print_warnings};
 use photoledger::Error;
 use photoledger::fit::mechanism::FitOptions;
@@ -121,8 +122,8 @@ pub fn run(a: &ReportArgs) -> photoledger::Result<()> {
     });
     write_atomic(&out, page.as_bytes())?;
     if let Err(why) = &found.chain {
-        eprintln!("note: no single-molecule section: {why}");
+        noteln!("note: no single-molecule section: {why}");
     }
-    println!("wrote {} ({} kB)", out.display(), page.len().div_ceil(1024));
+    outln!("wrote {} ({} kB)", out.display(), page.len().div_ceil(1024))?;
     Ok(())
 }

@@ -1,5 +1,6 @@
 //! `photoledger simulate FILE --until DURATION [--out DIR] [--json]`.
 
+use super::output::{noteln, out, outln};
 use super::{NetworkArgs, load, print_warnings};
 use photoledger::Error;
 use photoledger::kinetics::{self, Method, Options};
@@ -115,18 +116,20 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {
         simulation::photons_svg(&net, &model, &tr, a.log_time).as_bytes(),
     )?;
     if a.json {
-        println!("{json}");
+        outln!("{json}")?;
     } else {
-        print!("{}", photoledger::report::summary::run_summary(&summary));
-        println!(
+        out!("{}", photoledger::report::summary::run_summary(&summary))?;
+        outln!(
             "wrote {}/ (concentrations.csv, photons.csv, summary.json, concentrations.svg, photons.svg)",
             dir.display()
-        );
+        )?;
     }
     for n in &summary.negative_concentrations {
-        eprintln!(
+        noteln!(
             "warning: {} went negative ({:e} mol/L at {} s) beyond the tolerance; tighten --rtol/--atol",
-            n.0, n.2, n.1
+            n.0,
+            n.2,
+            n.1
         );
     }
     Ok(())

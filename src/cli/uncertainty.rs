@@ -2,6 +2,7 @@
 //! [--from-fit FIT.json] [--shard K/N] [--json] [--out DIR]`, and
 //! `photoledger uncertainty merge SHARD.json... [--json] [--out DIR]`.
 
+use super::output::{out, outln};
 use photoledger::Error;
 use photoledger::report::{uncertainty as report, write_atomic};
 use photoledger::uncertainty::{self, Problem, Record, Settings, Space, fitcov::FitBlock, spec};
@@ -147,13 +148,13 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<()> {
         let name = format!("shard-{k}-of-{n}.json");
         let json = serde_json::to_string(&record).map_err(|e| Error::Numerical(e.to_string()))?;
         write_atomic(&dir.join(&name), json.as_bytes())?;
-        println!(
+        outln!(
             "wrote {}/{name}: samples {}..{} of {}; join all N with `photoledger uncertainty merge`",
             dir.display(),
             record.header.first,
             record.header.end,
             total
-        );
+        )?;
         return Ok(());
     }
     write_all(&record, &dir, a.json)
@@ -203,13 +204,13 @@ fn write_all(record: &Record, dir: &Path, json: bool) -> photoledger::Result<()>
         write_atomic(&dir.join("tornado.svg"), tornado.as_bytes())?;
     }
     if json {
-        println!("{summary_json}");
+        outln!("{summary_json}")?;
     } else {
-        print!("{}", report::text(&summary));
-        println!(
+        out!("{}", report::text(&summary))?;
+        outln!(
             "wrote {}/ (summary.txt, summary.json, samples.csv, samples.json, histograms/, tornado.svg)",
             dir.display()
-        );
+        )?;
     }
     Ok(())
 }

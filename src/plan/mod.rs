@@ -439,13 +439,33 @@ pub struct PowerSolve {
     pub tolerance: f64,
 }
 
+/// The answer of [`power_for_time`] when no light scale in its range reaches the target in the
+/// time asked: the target is not reachable in that time (a photostationary state below the
+/// level at every light, or thermal steps too slow whatever the light).
+#[derive(Debug, Clone)]
+pub struct NoLightScale {
+    /// Why, in words: the range of scales tried, and whether any of them reached the target.
+    pub why: String,
+    /// True when no scale tried reached the target at all (within the plan's horizon).
+    pub unreachable_at_every_scale: bool,
+    /// Plans evaluated.
+    pub evaluations: usize,
+}
+
 /// Relative tolerance of [`power_for_time`] on the time to target.
 pub const POWER_TOLERANCE: f64 = 1e-6;
 
 /// The factor on all light sources that makes the time to `target` equal `duration` (s):
 /// a root of g(x) = ln t(eˣ) − ln T, where x is the log of the factor, bracketed from the
 /// 1/power guess and closed by the Illinois variant of regula falsi until |t/T − 1| < 1e-6.
-pub fn power_for_time(model: &Model, target: &Target, duration: f64, opts: &PlanOptions) -> Result<PowerSolve> {
+/// `Ok(Err(..))` is an answer, not a failure: no factor between 1e-9 and 1e9 reaches the target
+/// in `duration`.
+pub fn power_for_time(
+    model: &Model,
+    target: &Target,
+    duration: f64,
+    opts: &PlanOptions,
+) -> Result<std::result::Result<PowerSolve, NoLightScale>> {
     if !(duration > 0.0 && duration.is_finite()) {
         return Err(Error::Usage("the time to reach the target must be positive".into()));
     }
@@ -462,12 +482,12 @@ pub fn power_for_time(model: &Model, target: &Target, duration: f64, opts: &Plan
     };
     let (g0, p0) = eval(0.0)?;
     if g0.abs() < POWER_TOLERANCE {
-        return Ok(PowerSolve {
+        return Ok(Ok(PowerSolve {
             scale: 1.0,
             plan: p0,
             evaluations,
             tolerance: POWER_TOLERANCE,
-        });
+        }));
     }
     // Bracket: lo has g > 0 (too slow), hi has g < 0 (too fast).
     let mut lo: Option<(f64, f64)> = None;
@@ -493,25 +513,29 @@ pub fn power_for_time(model: &Model, target: &Target, duration: f64, opts: &Plan
         };
         x += step;
         if x.abs() > limit {
-            return Err(Error::Numerical(format!(
-                "no light scale between 1e-9 and 1e9 times the file's reaches \"{}\" in the time asked{}",
-                target.text,
-                if g.is_finite() {
-                    ""
-                } else {
-                    " (unreachable at every scale tried)"
-                }
-            )));
+            return Ok(Err(NoLightScale {
+                why: format!(
+                    "no light between 1e-9 and 1e9 times the file's reaches \"{}\" in the time asked{}",
+                    target.text,
+                    if g.is_finite() {
+                        ""
+                    } else {
+                        " (not reached at all at any scale tried)"
+                    }
+                ),
+                unreachable_at_every_scale: !g.is_finite(),
+                evaluations,
+            }));
         }
         let (gn, pn) = eval(x)?;
         g = gn;
         if g.abs() < POWER_TOLERANCE {
-            return Ok(PowerSolve {
+            return Ok(Ok(PowerSolve {
                 scale: x.exp(),
                 plan: pn,
                 evaluations,
                 tolerance: POWER_TOLERANCE,
-            });
+            }));
         }
     }
     let (mut a, mut b) = (lo.expect("bracketed"), hi.expect("bracketed"));
@@ -526,12 +550,12 @@ pub fn power_for_time(model: &Model, target: &Target, duration: f64, opts: &Plan
         };
         let (gm, pm) = eval(xm)?;
         if gm.abs() < POWER_TOLERANCE || (a.0 - b.0).abs() < 1e-12 {
-            return Ok(PowerSolve {
+            return Ok(Ok(PowerSolve {
                 scale: xm.exp(),
                 plan: pm,
                 evaluations,
                 tolerance: POWER_TOLERANCE,
-            });
+            }));
         }
         if gm > 0.0 {
             a = (xm, gm);
