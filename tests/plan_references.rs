@@ -555,8 +555,9 @@ fn every_number_in_the_plan_json_has_a_unit() {
             .arg(std::env::temp_dir().join(format!("photoledger-plan-units-{}", std::process::id())))
             .output()
             .unwrap();
+        // 0, or 5 for a target not reached (an answer, with its JSON).
         assert!(
-            out.status.success(),
+            matches!(out.status.code(), Some(0 | 5)),
             "{args:?}: {}",
             String::from_utf8_lossy(&out.stderr)
         );

@@ -232,3 +232,33 @@ fn print_warnings(net: &photoledger::Network) {
         noteln!("{w}");
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::Exit;
+
+    /// README's exit-code table is [`Exit::TABLE`], row for row (a `|` in a cell written `\|`).
+    #[test]
+    fn readme_exit_code_table_mirrors_the_enum() {
+        let readme = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/README.md")).unwrap();
+        let lines: Vec<&str> = readme.lines().collect();
+        let head = lines
+            .iter()
+            .position(|l| *l == "| code | meaning |")
+            .expect("README has the exit-code table");
+        let rows: Vec<&str> = lines[head + 2..]
+            .iter()
+            .take_while(|l| l.starts_with('|'))
+            .copied()
+            .collect();
+        let want: Vec<String> = Exit::TABLE
+            .iter()
+            .map(|(c, m)| format!("| {} | {} |", c.code(), m.replace('|', "\\|")))
+            .collect();
+        assert_eq!(rows, want);
+        // Codes are distinct and in order.
+        for (i, (c, _)) in Exit::TABLE.iter().enumerate() {
+            assert_eq!(c.code(), i as i32);
+        }
+    }
+}
