@@ -82,7 +82,8 @@ fn unreachable_target_says_why_with_the_level_reached() {
         ])
         .output()
         .expect("runs");
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    // Answered, not failed: the documented code 5 (README, "Exit codes"), with the JSON.
+    assert_eq!(out.status.code(), Some(5), "{}", String::from_utf8_lossy(&out.stderr));
     let js: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(js["reached"], false);
     assert_eq!(js["unreachable"]["why"], "Photostationary");
