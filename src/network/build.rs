@@ -133,6 +133,22 @@ impl<'a> Builder<'a> {
         Some(v)
     }
 
+    /// A quantity that may be zero but not negative (a light's intensity: zero is a dark run).
+    fn non_negative(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
+        let v = self.quantity(field, f, q)?;
+        if v < 0.0 {
+            self.error(
+                field,
+                &f.origin,
+                format!("\"{}\" is negative", f.value),
+                Some(format!("expected zero or more: {}", q.accepted())),
+            );
+            return None;
+        }
+        // "-0 mW" is zero.
+        Some(if v == 0.0 { 0.0 } else { v })
+    }
+
     fn required(&mut self, field: &str, f: Option<Field>, at: &Origin, q: Quantity) -> Option<f64> {
         match f {
             Some(f) => self.positive(field, &f, q),
@@ -626,11 +642,12 @@ impl<'a> Builder<'a> {
                     _ => (p, q),
                 };
                 match (p, q) {
+                    // Zero is a light switched off (a dark run), not a mistake.
                     (Some(p), None) => self
-                        .positive(&format!("{field}.power"), &p, Quantity::Power)
+                        .non_negative(&format!("{field}.power"), &p, Quantity::Power)
                         .map(Intensity::Power),
                     (None, Some(q)) => self
-                        .positive(&format!("{field}.photon_flux"), &q, Quantity::PhotonFlux)
+                        .non_negative(&format!("{field}.photon_flux"), &q, Quantity::PhotonFlux)
                         .map(Intensity::PhotonFlux),
                     (Some(_), Some(_)) => {
                         self.error(
@@ -730,12 +747,12 @@ impl<'a> Builder<'a> {
                         None => e.scale.as_ref().map(|s| (*s.get_ref(), span(s))),
                     };
                     let (scale, sat) = scale.unwrap_or((1.0, at.clone()));
-                    if !scale.is_finite() || scale <= 0.0 {
+                    if !scale.is_finite() || scale < 0.0 {
                         self.error(
                             &format!("{field}.scale"),
                             &sat,
-                            format!("{scale} must be a positive factor"),
-                            Some("e.g. scale = 0.5 for half the reference sunlight".into()),
+                            format!("{scale} must be a finite factor of zero or more"),
+                            Some("e.g. scale = 0.5 for half the reference sunlight, 0 for none".into()),
                         );
                         continue;
                     }
