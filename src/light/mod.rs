@@ -382,6 +382,28 @@ mod tests {
     }
 
     #[test]
+    fn a_source_switched_off_keeps_its_wavelengths_with_no_photons() {
+        // Zero power is a dark run, not an empty source: the bins stay where the source emits
+        // (so a window and the single-wavelength ε check still see them), each with zero flux.
+        let off = band(Intensity::Power(0.0), (0.0, f64::INFINITY));
+        let on = band(Intensity::Power(3.0), (0.0, f64::INFINITY));
+        assert_eq!(off.bins.len(), on.bins.len());
+        assert_eq!(off.extent(), on.extent());
+        assert!(off.bins.iter().all(|b| b.flux == 0.0));
+        assert_eq!((off.power(), off.photon_flux(), off.emitted_power), (0.0, 0.0, 0.0));
+        let line = LightSource::new(
+            "uv".into(),
+            LightKind::Line { wavelength: 365e-9 },
+            Some(Intensity::PhotonFlux(0.0)),
+            (0.0, f64::INFINITY),
+        );
+        assert_eq!(line.extent(), Some((365e-9, 365e-9)));
+        let sun = LightSource::new("sun".into(), LightKind::Sun { scale: 0.0, area: 1.0 }, None, (280e-9, 4000e-9));
+        assert_eq!(sun.extent(), Some((280e-9, 4000e-9)));
+        assert_eq!(sun.power(), 0.0);
+    }
+
+    #[test]
     fn a_window_cuts_sunlight_to_its_uv_part() {
         // ASTM G173-03 global tilt, trapezoid over the table: 1000.37 W/m² in all, 46.10 W/m² over
         // 280-400 nm (ASTM G173-03, Standard Tables for Reference Solar Spectral Irradiances, 2003).
