@@ -1014,7 +1014,11 @@ fn a_single_wavelength_epsilon_away_from_a_line_is_an_error() {
         "species \"E-azo\".epsilon",
     )
     .says(&["one value given at 330 nm", "the light \"UV LED\" is a line at 365 nm"])
-    .helps(&["as a table", "from = \"320 nm\", to = \"340 nm\"", "value = \"21000 L/(mol cm)\""]);
+    .helps(&[
+        "as a table",
+        "from = \"320 nm\", to = \"340 nm\"",
+        "value = \"21000 L/(mol cm)\"",
+    ]);
 }
 
 #[test]
@@ -1650,7 +1654,11 @@ fn a_window_cuts_a_band_and_check_says_so() {
         "kind = \"band\"\ncentre = \"390 nm\"\nfwhm = \"14 nm\"\npower = \"3 W\"\nfrom = \"390 nm\"",
     );
     // under a band, a single ε needs the window where it holds
-    let text = edit(&text, "value = \"21000 L/(mol cm)\" }", "value = \"21000 L/(mol cm)\", from = \"340 nm\", to = \"440 nm\" }");
+    let text = edit(
+        &text,
+        "value = \"21000 L/(mol cm)\" }",
+        "value = \"21000 L/(mol cm)\", from = \"340 nm\", to = \"440 nm\" }",
+    );
     let (_s, _p, r) = check_text("band-window", &text, &[]);
     r.expect_code(0);
     assert_contains(

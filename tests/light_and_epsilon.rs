@@ -87,7 +87,9 @@ fn edit(text: &str, from: &str, to: &str) -> String {
 /// 1-based line and column of the first `needle` in `text`.
 #[track_caller]
 fn loc(text: &str, needle: &str) -> (usize, usize) {
-    let at = text.find(needle).unwrap_or_else(|| panic!("{needle:?} not in the network"));
+    let at = text
+        .find(needle)
+        .unwrap_or_else(|| panic!("{needle:?} not in the network"));
     let before = &text[..at];
     (
         before.matches('\n').count() + 1,
@@ -193,7 +195,10 @@ fn a_single_epsilon_under_sunlight_is_an_error_naming_the_light_and_the_fix() {
     let (p, r) = run_on(&s, POND, "check", &[]);
     r.code(1);
     let (msg, help) = error_at(&r.stderr, &p, loc(POND, "{ at = \"310 nm\""), "species \"A\".epsilon");
-    assert_contains(&msg, &["one value given at 310 nm", "the light \"sun\" spans 280–4000 nm"]);
+    assert_contains(
+        &msg,
+        &["one value given at 310 nm", "the light \"sun\" spans 280–4000 nm"],
+    );
     assert_contains(
         &help,
         &[
@@ -210,10 +215,18 @@ fn a_single_epsilon_under_sunlight_is_an_error_naming_the_light_and_the_fix() {
         args.push(out.to_str().unwrap());
         let (_, r) = run_on(&s, POND, cmd, &args);
         r.code(1);
-        assert!(!r.stdout.contains("reached after") && !r.stdout.contains("final concentrations"), "{}", r.stdout);
+        assert!(
+            !r.stdout.contains("reached after") && !r.stdout.contains("final concentrations"),
+            "{}",
+            r.stdout
+        );
     }
     // The fix the help gives is valid, and ε is then zero outside 300–320 nm.
-    let fixed = edit(POND, "value = \"8000 L/(mol cm)\" }", "value = \"8000 L/(mol cm)\", from = \"300 nm\", to = \"320 nm\" }");
+    let fixed = edit(
+        POND,
+        "value = \"8000 L/(mol cm)\" }",
+        "value = \"8000 L/(mol cm)\", from = \"300 nm\", to = \"320 nm\" }",
+    );
     let (_, r) = run_on(&s, &fixed, "check", &[]);
     r.code(0);
     assert!(!r.stderr.contains("warning"), "{}", r.stderr);
@@ -236,7 +249,8 @@ fn a_single_epsilon_holds_for_lines_within_one_nanometre() {
     let (_, r) = run_on(&s, SWITCH, "check", &["--set", "light.UV LED.wavelength=405 nm"]);
     r.code(1);
     assert_contains(&r.stderr, &["\"UV LED\" is a line at 405 nm"]);
-    let two = format!("{SWITCH}\n[[light]]\nname = \"blue\"\nkind = \"line\"\nwavelength = \"450 nm\"\npower = \"0 mW\"\n");
+    let two =
+        format!("{SWITCH}\n[[light]]\nname = \"blue\"\nkind = \"line\"\nwavelength = \"450 nm\"\npower = \"0 mW\"\n");
     let (_, r) = run_on(&s, &two, "check", &[]);
     r.code(1);
     assert_contains(&r.stderr, &["\"blue\" is a line at 450 nm"]);
@@ -259,7 +273,11 @@ fn a_window_on_a_single_epsilon_is_the_value_inside_and_zero_outside() {
         "kind = \"line\"\nwavelength = \"365 nm\"",
         "kind = \"band\"\ncentre = \"365 nm\"\nfwhm = \"12 nm\"",
     );
-    let text = edit(&band, "value = \"21000 L/(mol cm)\" }", "value = \"21000 L/(mol cm)\", from = \"355 nm\", to = \"375 nm\" }");
+    let text = edit(
+        &band,
+        "value = \"21000 L/(mol cm)\" }",
+        "value = \"21000 L/(mol cm)\", from = \"355 nm\", to = \"375 nm\" }",
+    );
     let net = network(&text).unwrap();
     assert!(net.warnings.is_empty(), "{:?}", net.warnings);
     let eps = net.species[0].epsilon.as_ref().unwrap();
@@ -274,10 +292,18 @@ fn a_window_on_a_single_epsilon_is_the_value_inside_and_zero_outside() {
     let no_at = edit(&text, "at = \"365 nm\", ", "");
     assert_eq!(network(&no_at).unwrap().species[0].epsilon, net.species[0].epsilon);
     // a window the light misses: valid, but the absorber takes no light (a warning says so)
-    let missed = edit(&text, "from = \"355 nm\", to = \"375 nm\"", "from = \"300 nm\", to = \"320 nm\"");
+    let missed = edit(
+        &text,
+        "from = \"355 nm\", to = \"375 nm\"",
+        "from = \"300 nm\", to = \"320 nm\"",
+    );
     let missed = edit(&missed, "at = \"365 nm\", ", "at = \"310 nm\", ");
     let w = network(&missed).unwrap().warnings;
-    assert!(w.iter().any(|d| d.message.contains("is zero at every wavelength of the light")), "{w:?}");
+    assert!(
+        w.iter()
+            .any(|d| d.message.contains("is zero at every wavelength of the light")),
+        "{w:?}"
+    );
 }
 
 #[test]
@@ -285,7 +311,11 @@ fn a_broken_window_is_an_error_naming_the_field() {
     let s = Scratch::new("windows");
     let base = "value = \"21000 L/(mol cm)\" }";
     for (to, field, says) in [
-        ("value = \"21000 L/(mol cm)\", from = \"355 nm\" }", "species \"E\".epsilon", "`from` and `to` go together"),
+        (
+            "value = \"21000 L/(mol cm)\", from = \"355 nm\" }",
+            "species \"E\".epsilon",
+            "`from` and `to` go together",
+        ),
         (
             "value = \"21000 L/(mol cm)\", from = \"375 nm\", to = \"355 nm\" }",
             "species \"E\".epsilon.from",
@@ -322,7 +352,12 @@ fn a_broken_window_is_an_error_naming_the_field() {
     );
     let (p, r) = run_on(&s, &text, "check", &[]);
     r.code(1);
-    let (msg, _) = error_at(&r.stderr, &p, loc(&text, "{ at = \"365 nm\", value = 0.12"), "photo[0].quantum_yield");
+    let (msg, _) = error_at(
+        &r.stderr,
+        &p,
+        loc(&text, "{ at = \"365 nm\", value = 0.12"),
+        "photo[0].quantum_yield",
+    );
     assert_contains(&msg, &["`from`/`to` bound a single ε value"]);
 }
 
@@ -351,7 +386,9 @@ fn the_readme_spectra_examples_are_valid() {
         let swap = |t: &str| edit(t, "epsilon = { at = \"365 nm\", value = \"21000 L/(mol cm)\" }", line);
         let one_value = !line.contains("from") && line.contains("at = ");
         run_on(&s, &swap(SWITCH), "check", &[]).1.code(0);
-        run_on(&s, &swap(&band), "check", &[]).1.code(if one_value { 1 } else { 0 });
+        run_on(&s, &swap(&band), "check", &[])
+            .1
+            .code(if one_value { 1 } else { 0 });
     }
 }
 
@@ -389,8 +426,12 @@ fn finite_everywhere(what: &str, text: &str) {
 #[test]
 fn a_light_at_zero_power_is_a_dark_run() {
     let s = Scratch::new("dark");
-    run_on(&s, SWITCH, "check", &["--set", "light.UV LED.power=0 mW"]).1.code(0);
-    run_on(&s, SWITCH, "check", &["--set", "light.UV LED.photon_flux=0 einstein/s"]).1.code(0);
+    run_on(&s, SWITCH, "check", &["--set", "light.UV LED.power=0 mW"])
+        .1
+        .code(0);
+    run_on(&s, SWITCH, "check", &["--set", "light.UV LED.photon_flux=0 einstein/s"])
+        .1
+        .code(0);
     let dark = edit(SWITCH, "power = \"20 mW\"", "power = \"0 mW\"");
     let (_, r) = run_on(&s, &dark, "check", &[]);
     r.code(0);
@@ -400,7 +441,12 @@ fn a_light_at_zero_power_is_a_dark_run() {
     let dark = edit(&dark, "initial = \"0 M\"", "initial = \"10 µM\"");
     let dark = edit(&dark, "initial = \"50 µM\"", "initial = \"50 µM\"\nproduct = true");
     let out = s.dir.join("sim");
-    let (_, r) = run_on(&s, &dark, "simulate", &["--until", "1 h", "--out", out.to_str().unwrap()]);
+    let (_, r) = run_on(
+        &s,
+        &dark,
+        "simulate",
+        &["--until", "1 h", "--out", out.to_str().unwrap()],
+    );
     r.code(0);
     assert_contains(
         &r.stdout,
@@ -415,19 +461,32 @@ fn a_light_at_zero_power_is_a_dark_run() {
         finite_everywhere(f, &std::fs::read_to_string(out.join(f)).unwrap());
     }
     // Z after 1 h in the dark: 10 µM · exp(−1e-4 /s · 3600 s) = 6.977 µM (first-order decay).
-    let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
+    let json: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
     let z = json["final_concentrations_mol_per_l"][1][1].as_f64().unwrap();
     assert!((z / (10e-6 * (-0.36f64).exp()) - 1.0).abs() < 1e-5, "{z}");
     assert_eq!(json["photons"]["incident"].as_f64(), Some(0.0));
     // plan: no light is why the target is out of reach; --in has nothing to scale
-    let (_, r) = run_on(&s, &dark, "plan", &["--target", "E < 10 %", "--out", s.dir.join("plan").to_str().unwrap()]);
+    let (_, r) = run_on(
+        &s,
+        &dark,
+        "plan",
+        &["--target", "E < 10 %", "--out", s.dir.join("plan").to_str().unwrap()],
+    );
     r.code(0);
     assert_contains(&r.stdout, &["NOT REACHABLE: no light"]);
     let (_, r) = run_on(
         &s,
         &dark,
         "plan",
-        &["--target", "E < 10 %", "--in", "1 h", "--out", s.dir.join("plan2").to_str().unwrap()],
+        &[
+            "--target",
+            "E < 10 %",
+            "--in",
+            "1 h",
+            "--out",
+            s.dir.join("plan2").to_str().unwrap(),
+        ],
     );
     r.code(2);
     assert_contains(&r.stderr, &["the light of the file is zero"]);
@@ -436,7 +495,10 @@ fn a_light_at_zero_power_is_a_dark_run() {
     let (_, r) = run_on(&s, &dark, "report", &["--out", html.to_str().unwrap()]);
     r.code(0);
     let page = std::fs::read_to_string(&html).unwrap();
-    assert!(page.contains("<td class=\"num\">off</td>"), "no 'off' in the light table");
+    assert!(
+        page.contains("<td class=\"num\">off</td>"),
+        "no 'off' in the light table"
+    );
     assert!(!page.contains("NaN"));
 }
 
@@ -460,7 +522,12 @@ fn negative_and_non_finite_light_values_are_errors_naming_the_field() {
         assert_contains(&r.stderr, &["light[0].power", says]);
     }
     for value in ["+inf nm", "-inf nm", "nan nm"] {
-        let (_, r) = run_on(&s, SWITCH, "check", &["--set", &format!("light.UV LED.wavelength={value}")]);
+        let (_, r) = run_on(
+            &s,
+            SWITCH,
+            "check",
+            &["--set", &format!("light.UV LED.wavelength={value}")],
+        );
         r.code(1);
         assert_contains(&r.stderr, &["light[0].wavelength", "is not a finite number"]);
     }
@@ -468,9 +535,15 @@ fn negative_and_non_finite_light_values_are_errors_naming_the_field() {
     let (_, r) = run_on(&s, &neg, "check", &[]);
     r.code(1);
     assert_contains(&r.stderr, &["light[0].photon_flux", "is negative"]);
-    run_on(&s, SWITCH, "check", &["--set", "light.UV LED.power=-0 mW"]).1.code(0);
+    run_on(&s, SWITCH, "check", &["--set", "light.UV LED.power=-0 mW"])
+        .1
+        .code(0);
     // sunlight's scale: zero is darkness, a negative or infinite factor an error
-    let sun = edit(POND, "value = \"8000 L/(mol cm)\" }", "value = \"8000 L/(mol cm)\", from = \"300 nm\", to = \"320 nm\" }");
+    let sun = edit(
+        POND,
+        "value = \"8000 L/(mol cm)\" }",
+        "value = \"8000 L/(mol cm)\", from = \"300 nm\", to = \"320 nm\" }",
+    );
     run_on(&s, &sun, "check", &["--set", "light.sun.scale=0"]).1.code(0);
     for (set, file) in [("inf", "inf"), ("-0.5", "-0.5"), ("nan", "nan")] {
         let (_, r) = run_on(&s, &sun, "check", &["--set", &format!("light.sun.scale={set}")]);
@@ -503,15 +576,33 @@ fn simulate_follows_a_daily_light_schedule() {
     let s = Scratch::new("schedule");
     // a weak light so the conversion takes days
     let slow = edit(SWITCH, "power = \"20 mW\"", "power = \"0.001 mW\"");
-    let photo_only = edit(&slow, "[[thermal]]\nequation = \"Z -> E\"\nrate = { k = \"1e-4 /s\" }\n", "");
+    let photo_only = edit(
+        &slow,
+        "[[thermal]]\nequation = \"Z -> E\"\nrate = { k = \"1e-4 /s\" }\n",
+        "",
+    );
     let dir = |n: &str| s.dir.join(n).to_str().unwrap().to_string();
-    let (_, day) = run_on(&s, &photo_only, "simulate", &["--until", "1 d", "--rtol", "1e-9", "--out", &dir("day")]);
+    let (_, day) = run_on(
+        &s,
+        &photo_only,
+        "simulate",
+        &["--until", "1 d", "--rtol", "1e-9", "--out", &dir("day")],
+    );
     day.code(0);
     let (_, sched) = run_on(
         &s,
         &photo_only,
         "simulate",
-        &["--until", "2 d", "--sun-hours", "12", "--rtol", "1e-9", "--out", &dir("sched")],
+        &[
+            "--until",
+            "2 d",
+            "--sun-hours",
+            "12",
+            "--rtol",
+            "1e-9",
+            "--out",
+            &dir("sched"),
+        ],
     );
     sched.code(0);
     assert_contains(
@@ -530,7 +621,10 @@ fn simulate_follows_a_daily_light_schedule() {
         assert!((x - y).abs() <= 1e-6 * 50e-6, "species {k}: {x} vs {y}");
     }
     // incident photons count the lit time only: the same day of light
-    let (x, y) = (a["photons"]["incident"].as_f64().unwrap(), b["photons"]["incident"].as_f64().unwrap());
+    let (x, y) = (
+        a["photons"]["incident"].as_f64().unwrap(),
+        b["photons"]["incident"].as_f64().unwrap(),
+    );
     assert!((x / y - 1.0).abs() < 1e-12, "{x} vs {y}");
     assert_eq!(b["light_schedule"]["lit_time_s"].as_f64(), Some(86400.0));
     assert!(a["light_schedule"].is_null());
@@ -539,23 +633,49 @@ fn simulate_follows_a_daily_light_schedule() {
     let at_dusk = c.iter().find(|r| r.0 == 43200.0).expect("dusk is an output").1.clone();
     assert!(c.iter().any(|r| r.0 == 86400.0), "dawn is an output");
     for (t, y) in c.iter().filter(|r| r.0 > 43200.0 && r.0 <= 86400.0) {
-        assert!((y[1] - at_dusk[1]).abs() <= 1e-12, "Z moved at night ({t} s): {} vs {}", y[1], at_dusk[1]);
+        assert!(
+            (y[1] - at_dusk[1]).abs() <= 1e-12,
+            "Z moved at night ({t} s): {} vs {}",
+            y[1],
+            at_dusk[1]
+        );
     }
     // with the thermal step, Z relaxes through the night: exp(−1e-4 /s × 12 h) = 0.01333 of it
     let (_, r) = run_on(
         &s,
         &slow,
         "simulate",
-        &["--until", "2 d", "--sun-hours", "12", "--rtol", "1e-9", "--atol", "1e-16 M", "--out", &dir("thermal")],
+        &[
+            "--until",
+            "2 d",
+            "--sun-hours",
+            "12",
+            "--rtol",
+            "1e-9",
+            "--atol",
+            "1e-16 M",
+            "--out",
+            &dir("thermal"),
+        ],
     );
     r.code(0);
     let c = rows(&std::fs::read_to_string(Path::new(&dir("thermal")).join("concentrations.csv")).unwrap());
-    let z = |t: f64| c.iter().find(|r| r.0 == t).unwrap_or_else(|| panic!("no output at {t} s")).1[1];
+    let z = |t: f64| {
+        c.iter()
+            .find(|r| r.0 == t)
+            .unwrap_or_else(|| panic!("no output at {t} s"))
+            .1[1]
+    };
     let want = z(43200.0) * (-4.32f64).exp();
     assert!((z(86400.0) / want - 1.0).abs() < 1e-5, "{} vs {want}", z(86400.0));
     // the schedule is checked like plan's
     for h in ["0", "25", "nan"] {
-        let (_, r) = run_on(&s, &slow, "simulate", &["--until", "1 d", "--sun-hours", h, "--out", &dir("bad")]);
+        let (_, r) = run_on(
+            &s,
+            &slow,
+            "simulate",
+            &["--until", "1 d", "--sun-hours", h, "--out", &dir("bad")],
+        );
         r.code(2);
         assert_contains(&r.stderr, &["--sun-hours", "must be above 0 and at most 24"]);
     }

@@ -32,7 +32,10 @@ fn run(dir: &Path, name: &str, args: &[&str]) -> (i32, String) {
         .stderr(Stdio::from(file))
         .status()
         .expect("run photoledger");
-    (status.code().unwrap_or(-1), std::fs::read_to_string(&path).expect("read output"))
+    (
+        status.code().unwrap_or(-1),
+        std::fs::read_to_string(&path).expect("read output"),
+    )
 }
 
 #[test]
@@ -57,12 +60,29 @@ fn each_command_prints_each_warning_once_before_its_results() {
     std::fs::write(&net, text).unwrap();
     let net = net.to_str().unwrap().to_string();
     let out = |n: &str| s.dir.join(n).to_str().unwrap().to_string();
-    let data = root.join("demo-data/fit/experiments.toml").to_str().unwrap().to_string();
+    let data = root
+        .join("demo-data/fit/experiments.toml")
+        .to_str()
+        .unwrap()
+        .to_string();
     let target = "Z-azo > 10 %";
     let runs: Vec<(&str, Vec<String>)> = vec![
         ("check", vec!["check".into(), net.clone()]),
-        ("diagram", vec!["diagram".into(), net.clone(), "--out".into(), out("n.svg")]),
-        ("simulate", vec!["simulate".into(), net.clone(), "--until".into(), "1 h".into(), "--out".into(), out("sim")]),
+        (
+            "diagram",
+            vec!["diagram".into(), net.clone(), "--out".into(), out("n.svg")],
+        ),
+        (
+            "simulate",
+            vec![
+                "simulate".into(),
+                net.clone(),
+                "--until".into(),
+                "1 h".into(),
+                "--out".into(),
+                out("sim"),
+            ],
+        ),
         (
             "simulate, a schedule",
             vec![
@@ -76,7 +96,17 @@ fn each_command_prints_each_warning_once_before_its_results() {
                 out("sim2"),
             ],
         ),
-        ("plan", vec!["plan".into(), net.clone(), "--target".into(), target.into(), "--out".into(), out("p1")]),
+        (
+            "plan",
+            vec![
+                "plan".into(),
+                net.clone(),
+                "--target".into(),
+                target.into(),
+                "--out".into(),
+                out("p1"),
+            ],
+        ),
         (
             "plan, a schedule",
             vec![
@@ -92,7 +122,16 @@ fn each_command_prints_each_warning_once_before_its_results() {
         ),
         (
             "plan --in",
-            vec!["plan".into(), net.clone(), "--target".into(), target.into(), "--in".into(), "1 min".into(), "--out".into(), out("p3")],
+            vec![
+                "plan".into(),
+                net.clone(),
+                "--target".into(),
+                target.into(),
+                "--in".into(),
+                "1 min".into(),
+                "--out".into(),
+                out("p3"),
+            ],
         ),
         (
             "plan --sweep",
@@ -108,13 +147,43 @@ fn each_command_prints_each_warning_once_before_its_results() {
             ],
         ),
         ("ledger", vec!["ledger".into(), net.clone(), "--out".into(), out("l")]),
-        ("report", vec!["report".into(), net.clone(), "--until".into(), "1 h".into(), "--out".into(), out("r.html")]),
-        ("barrier", vec!["barrier".into(), net.clone(), "--window".into(), "1 h".into()]),
+        (
+            "report",
+            vec![
+                "report".into(),
+                net.clone(),
+                "--until".into(),
+                "1 h".into(),
+                "--out".into(),
+                out("r.html"),
+            ],
+        ),
+        (
+            "barrier",
+            vec!["barrier".into(), net.clone(), "--window".into(), "1 h".into()],
+        ),
         (
             "uncertainty",
-            vec!["uncertainty".into(), net.clone(), "--samples".into(), "3".into(), "--out".into(), out("u")],
+            vec![
+                "uncertainty".into(),
+                net.clone(),
+                "--samples".into(),
+                "3".into(),
+                "--out".into(),
+                out("u"),
+            ],
         ),
-        ("fit", vec!["fit".into(), net.clone(), "--data".into(), data, "--out".into(), out("f")]),
+        (
+            "fit",
+            vec![
+                "fit".into(),
+                net.clone(),
+                "--data".into(),
+                data,
+                "--out".into(),
+                out("f"),
+            ],
+        ),
     ];
     for (name, args) in runs {
         let args: Vec<&str> = args.iter().map(String::as_str).collect();
@@ -127,7 +196,10 @@ fn each_command_prints_each_warning_once_before_its_results() {
         // above the verdict they count towards.
         let start = if name == "check" {
             let verdict = text.find("valid: ").expect("a verdict");
-            assert!(text.find(WARNING).unwrap() < verdict, "check: the verdict before the warning\n{text}");
+            assert!(
+                text.find(WARNING).unwrap() < verdict,
+                "check: the verdict before the warning\n{text}"
+            );
             text[..text.find(WARNING).unwrap()].rfind("\n\n").map_or(0, |i| i + 2)
         } else {
             0
@@ -138,7 +210,8 @@ fn each_command_prints_each_warning_once_before_its_results() {
             "{name}: results before the warning\n{text}"
         );
         assert!(
-            text.lines().any(|l| !l.starts_with("warning: ") && !l.starts_with("  ")),
+            text.lines()
+                .any(|l| !l.starts_with("warning: ") && !l.starts_with("  ")),
             "{name}: no results\n{text}"
         );
     }

@@ -541,7 +541,9 @@ pub fn start(model: &Model, chain: &Chain, from: Option<&str>) -> Result<(Vec<f6
         })?;
         pi[i] = 1.0;
         let note = if chain.states[i].absorbing && model.total_flux() <= 0.0 {
-            format!("started from {name}, which has no way out in the dark (no light: every source is at zero): it stays as it is")
+            format!(
+                "started from {name}, which has no way out in the dark (no light: every source is at zero): it stays as it is"
+            )
         } else if chain.states[i].absorbing {
             format!("started from {name}, which has no way out: it stays as it is")
         } else {

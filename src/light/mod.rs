@@ -398,7 +398,12 @@ mod tests {
             (0.0, f64::INFINITY),
         );
         assert_eq!(line.extent(), Some((365e-9, 365e-9)));
-        let sun = LightSource::new("sun".into(), LightKind::Sun { scale: 0.0, area: 1.0 }, None, (280e-9, 4000e-9));
+        let sun = LightSource::new(
+            "sun".into(),
+            LightKind::Sun { scale: 0.0, area: 1.0 },
+            None,
+            (280e-9, 4000e-9),
+        );
         assert_eq!(sun.extent(), Some((280e-9, 4000e-9)));
         assert_eq!(sun.power(), 0.0);
     }

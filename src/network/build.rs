@@ -472,7 +472,9 @@ impl<'a> Builder<'a> {
                     &format!("{field}.at"),
                     at,
                     format!("{} nm lies outside the window {}–{} nm", nm(w), nm(lo), nm(hi)),
-                    Some("the window is where the value holds, so it contains the wavelength it was measured at".into()),
+                    Some(
+                        "the window is where the value holds, so it contains the wavelength it was measured at".into(),
+                    ),
                 );
                 None
             }

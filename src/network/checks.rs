@@ -336,12 +336,19 @@ impl Builder<'_> {
                 .lights
                 .iter()
                 .filter_map(|l| Some((l, l.extent()?)))
-                .filter(|(_, (lo, hi))| (lo - w).abs() > SINGLE_EPSILON_TOLERANCE || (hi - w).abs() > SINGLE_EPSILON_TOLERANCE)
+                .filter(|(_, (lo, hi))| {
+                    (lo - w).abs() > SINGLE_EPSILON_TOLERANCE || (hi - w).abs() > SINGLE_EPSILON_TOLERANCE
+                })
                 .map(|(l, (lo, hi))| {
                     if lo == hi {
                         format!("\"{}\" is a line at {}", l.name, nm(lo))
                     } else {
-                        format!("\"{}\" spans {}–{} nm", l.name, crate::units::sig(lo * 1e9, 5), crate::units::sig(hi * 1e9, 5))
+                        format!(
+                            "\"{}\" spans {}–{} nm",
+                            l.name,
+                            crate::units::sig(lo * 1e9, 5),
+                            crate::units::sig(hi * 1e9, 5)
+                        )
                     }
                 })
                 .collect();

@@ -306,7 +306,11 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         o,
         "  incident        {}{}",
         sig(p.incident, 4),
-        if dark { "  (no light: every source is at zero)" } else { "" }
+        if dark {
+            "  (no light: every source is at zero)"
+        } else {
+            ""
+        }
     );
     for a in &p.by_absorber {
         let share = if dark {
