@@ -944,7 +944,7 @@ fn an_absorber_with_no_epsilon_warns() {
         "absorbs in a photochemical step but has no molar absorption coefficient",
         "takes no light",
     ])
-    .helps(&["epsilon = { at = \"365 nm\""]);
+    .helps(&["epsilon over the light's wavelengths", "points = [["]);
 }
 
 #[test]
@@ -998,20 +998,27 @@ fn an_unused_species_that_absorbs_is_called_an_inner_filter() {
     .says(&["nothing produces or consumes it", "inner filter"]);
 }
 
+// One ε measured at 330 nm says nothing about the absorber at the 365 nm of the LED line: an
+// error at the ε itself naming the light, with the two ways out (common practice: ε changes
+// across a band, so a value holds at the wavelength it was measured at).
 #[test]
-fn a_single_wavelength_epsilon_used_far_away_warns() {
+fn a_single_wavelength_epsilon_away_from_a_line_is_an_error() {
     let text = edit(SWITCH, "at = \"365 nm\", value", "at = \"330 nm\", value");
     let (_s, p, r) = check_text("epsilon-far", &text, &[]);
-    assert_valid_with_warnings(&r, &p, 1);
+    assert_invalid(&r);
     diag(
         &r.stderr,
-        "warning",
+        "error",
         &p,
-        Some(table_of(&text, "name = \"E-azo\"")),
+        Some(loc(&text, "{ at = \"330 nm\"")),
         "species \"E-azo\".epsilon",
     )
-    .says(&["given only at 330 nm", "more than 10 nm"])
-    .helps(&["a table"]);
+    .says(&["one value given at 330 nm", "the light \"UV LED\" is a line at 365 nm"])
+    .helps(&[
+        "as a table",
+        "from = \"320 nm\", to = \"340 nm\"",
+        "value = \"21000 L/(mol cm)\"",
+    ]);
 }
 
 #[test]
@@ -1645,6 +1652,12 @@ fn a_window_cuts_a_band_and_check_says_so() {
         SWITCH,
         "kind = \"line\"\nwavelength = \"365 nm\"\npower = \"20 mW\"",
         "kind = \"band\"\ncentre = \"390 nm\"\nfwhm = \"14 nm\"\npower = \"3 W\"\nfrom = \"390 nm\"",
+    );
+    // under a band, a single ε needs the window where it holds
+    let text = edit(
+        &text,
+        "value = \"21000 L/(mol cm)\" }",
+        "value = \"21000 L/(mol cm)\", from = \"340 nm\", to = \"440 nm\" }",
     );
     let (_s, _p, r) = check_text("band-window", &text, &[]);
     r.expect_code(0);

@@ -170,9 +170,9 @@ fn fit_and_uncertainty_csvs_keep_names_with_commas_and_quotes() {
     std::fs::write(
         &exp,
         format!(
-            "[[experiment]]\nname = {:?}\ndata = {:?}\nset = {{ \"light.blue LED.power\" = \"0.001 µW\" }}\n\n\
-             [[experiment]]\nname = \"dark\"\ndata = {:?}\nset = {{ \"light.UV LED.power\" = \"0.001 µW\", \
-             \"light.blue LED.power\" = \"0.001 µW\", \"species.E-azo.initial\" = \"10 µM\", \
+            "[[experiment]]\nname = {:?}\ndata = {:?}\nset = {{ \"light.blue LED.power\" = \"0 mW\" }}\n\n\
+             [[experiment]]\nname = \"dark\"\ndata = {:?}\nset = {{ \"light.UV LED.power\" = \"0 mW\", \
+             \"light.blue LED.power\" = \"0 mW\", \"species.E-azo.initial\" = \"10 µM\", \
              \"species.Z-azo.initial\" = \"40 µM\" }}\n",
             EXPERIMENT,
             data.join("uv-only.csv").to_str().unwrap(),

@@ -506,7 +506,7 @@ epsilon = { wavelength_unit = "nm", unit = "L/(mol cm)", points = [[330, 18000],
 [[species]]
 name = "Z-azo"
 formula = "C12H10N2"
-epsilon = { at = "450 nm", value = "1500 L/(mol cm)" }
+epsilon = { at = "450 nm", value = "1500 L/(mol cm)", from = "330 nm", to = "500 nm" }
 
 [[photo]]
 equation = "E-azo -> Z-azo"

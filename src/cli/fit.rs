@@ -75,6 +75,12 @@ pub fn fit_one(
     opts: &FitOptions,
 ) -> photoledger::Result<Fitted> {
     let loaded = photoledger::file::load(file)?;
+    // The network as given (before any experiment's conditions): its warnings, once, first.
+    let args = super::NetworkArgs {
+        file: file.to_path_buf(),
+        set: set.to_vec(),
+    };
+    super::print_warnings(&super::build(&loaded, &args)?);
     let base = photoledger::Overrides::parse(set).map_err(Error::Usage)?.pairs();
     let pb = bar(opts.starts.max(1), &file.display().to_string());
     let fitted = run::fit_loaded(&loaded, base, free, experiments, opts, &|| pb.inc(1))?;

@@ -7,6 +7,7 @@ mod barrier;
 mod bench;
 mod check;
 mod compare;
+mod daylight;
 mod diagram;
 mod fit;
 mod ledger;

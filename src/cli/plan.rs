@@ -1,11 +1,10 @@
 //! `photoledger plan FILE --target EXPR [--in DURATION] [--flow-tube SPEC] [--sun-hours H]
 //! [--sweep KEY=LO..HI:N] [--wall-plug EFF] [--json] [--out DIR]`.
 
+use super::daylight::DaylightArgs;
 use super::output::{out, outln};
 use super::{Exit, NetworkArgs, build, print_warnings};
 use photoledger::Error;
-use photoledger::kinetics::Schedule;
-use photoledger::light::LightKind;
 use photoledger::model::Model;
 use photoledger::plan::{self, PlanOptions, Tube};
 use photoledger::report::plan as rp;
@@ -30,14 +29,9 @@ pub struct PlanArgs {
     /// tube's; gives the flow rate and throughput.
     #[arg(long, value_name = "SPEC")]
     pub flow_tube: Option<String>,
-    /// Hours of light a day (all sources switch together; made for sunlight): dark hours are
-    /// integrated with the light off, and the answer is given in days.
-    #[arg(long, value_name = "HOURS")]
-    pub sun_hours: Option<f64>,
-    /// Factor on every sunlight source's ASTM G173-03 spectrum (shade, depth, another atmosphere),
-    /// on top of the file's scale.
-    #[arg(long, value_name = "FACTOR", default_value_t = 1.0)]
-    pub sun_scale: f64,
+    /// The daily light schedule (--sun-hours; the answer is then given in days) and --sun-scale.
+    #[command(flatten)]
+    pub daylight: DaylightArgs,
     /// Sweep one value: power=10mW..1W:20, photon_flux=..., wavelength=340nm..420nm:9,
     /// temperature=10°C..60°C:6, concentration.NAME=1mM..100mM:5 (power, photon flux and
     /// concentration log-spaced; wavelength and temperature evenly spaced).
@@ -105,11 +99,9 @@ fn parse_fraction(text: &str, what: &str) -> photoledger::Result<f64> {
     Ok(v)
 }
 
-/// The sun sources scaled by `sun_scale`, and the model put in the flow tube if there is one.
-fn adjust_model(mut m: Model, sun_sources: &[usize], sun_scale: f64, tube: Option<&Tube>) -> Model {
-    for &s in sun_sources {
-        m = m.with_source_scale(s, sun_scale);
-    }
+/// The sun sources scaled by `--sun-scale`, and the model put in the flow tube if there is one.
+fn adjust_model(m: Model, day: &DaylightArgs, sun_sources: &[usize], tube: Option<&Tube>) -> Model {
+    let m = day.scale_sun(m, sun_sources);
     match tube {
         Some(t) => t.apply(&m),
         None => m,
@@ -137,31 +129,10 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
             "--in and --sweep answer different questions; give one".into(),
         ));
     }
-    if !(a.sun_scale > 0.0 && a.sun_scale.is_finite()) {
-        return Err(Error::Usage(format!(
-            "--sun-scale {}: must be a positive factor",
-            a.sun_scale
-        )));
-    }
-    let schedule = match a.sun_hours {
-        Some(h) if h > 0.0 && h <= 24.0 => Some(Schedule::daily(h)),
-        Some(h) => return Err(Error::Usage(format!("--sun-hours {h}: must be above 0 and at most 24"))),
-        None => None,
-    };
-    let sun_sources: Vec<usize> = net
-        .lights
-        .iter()
-        .enumerate()
-        .filter(|(_, l)| matches!(l.kind, LightKind::Sun { .. }))
-        .map(|(i, _)| i)
-        .collect();
-    if a.sun_scale != 1.0 && sun_sources.is_empty() {
-        return Err(Error::Usage(
-            "--sun-scale: the network has no light of kind \"sun\"".into(),
-        ));
-    }
-    let adjust = |m: Model| adjust_model(m, &sun_sources, a.sun_scale, tube.as_ref());
-    model = adjust_model(model, &sun_sources, a.sun_scale, tube.as_ref());
+    let schedule = a.daylight.schedule()?;
+    let sun_sources = a.daylight.sun_sources(&net)?;
+    let adjust = |m: Model| adjust_model(m, &a.daylight, &sun_sources, tube.as_ref());
+    model = adjust_model(model, &a.daylight, &sun_sources, tube.as_ref());
     let target = plan::target::parse(&a.target, &model)?;
     let products = match &a.products {
         None => None,
@@ -302,7 +273,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
     });
     let sun = schedule.map(|s| rp::SunAnswer {
         sun_hours: s.lit / 3600.0,
-        scale: a.sun_scale,
+        scale: a.daylight.sun_scale,
         days: result.time.map(|t| plan::days(&s, t)),
     });
     let summary = rp::summary(&name, &result, a.rtol, efficiency, power, flow, sun);

@@ -1,5 +1,6 @@
 //! `photoledger simulate FILE --until DURATION [--out DIR] [--json]`.
 
+use super::daylight::DaylightArgs;
 use super::output::{noteln, out, outln};
 use super::{NetworkArgs, load, print_warnings};
 use photoledger::Error;
@@ -43,6 +44,9 @@ pub struct SimulateArgs {
     /// (--until is then the longest time to wait).
     #[arg(long, value_name = "CONDITION")]
     pub stop_when: Option<String>,
+    /// The daily light schedule (--sun-hours) and --sun-scale, as for `plan`.
+    #[command(flatten)]
+    pub daylight: DaylightArgs,
 }
 
 /// Read "NAME < LEVEL" or "NAME > LEVEL" (the planning target syntax) into an event.
@@ -65,8 +69,10 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {
         "dop853" => Method::Dop853,
         m => return Err(Error::Usage(format!("--method {m}: expected auto, bdf or dop853"))),
     };
-    let model = Model::compile(&net);
+    let sun = a.daylight.sun_sources(&net)?;
+    let model = a.daylight.scale_sun(Model::compile(&net), &sun);
     let mut opts = Options::until(until);
+    opts.schedule = a.daylight.schedule()?;
     opts.method = method;
     opts.rtol = a.rtol;
     opts.atol = atol;
@@ -115,6 +121,15 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {
         &dir.join("photons.svg"),
         simulation::photons_svg(&net, &model, &tr, a.log_time).as_bytes(),
     )?;
+    // Warnings about the run come before its results, like the network's.
+    for n in &summary.negative_concentrations {
+        noteln!(
+            "warning: {} went negative ({:e} mol/L at {} s) beyond the tolerance; tighten --rtol/--atol",
+            n.0,
+            n.2,
+            n.1
+        );
+    }
     if a.json {
         outln!("{json}")?;
     } else {
@@ -123,14 +138,6 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {
             "wrote {}/ (concentrations.csv, photons.csv, summary.json, concentrations.svg, photons.svg)",
             dir.display()
         )?;
-    }
-    for n in &summary.negative_concentrations {
-        noteln!(
-            "warning: {} went negative ({:e} mol/L at {} s) beyond the tolerance; tighten --rtol/--atol",
-            n.0,
-            n.2,
-            n.1
-        );
     }
     Ok(())
 }

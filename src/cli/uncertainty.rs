@@ -94,6 +94,12 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<()> {
         return Err(Error::Usage("--samples must be at least 1".into()));
     }
     let loaded = photoledger::file::load(file)?;
+    // The network as given (before any sample's values): its warnings, once, first.
+    let args = super::NetworkArgs {
+        file: file.clone(),
+        set: a.set.clone(),
+    };
+    super::print_warnings(&super::build(&loaded, &args)?);
     let mut space = Space {
         independent: spec::read(&loaded)?,
         fit: None,

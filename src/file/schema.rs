@@ -104,6 +104,11 @@ pub struct SpectrumTable {
     pub at: Option<String>,
     /// The value at `at`, e.g. "5000 L/(mol cm)".
     pub value: Option<toml::Value>,
+    /// With `to`: the shortest wavelength at which a single ε `value` holds, e.g. "355 nm"
+    /// (the value is zero outside the window).
+    pub from: Option<String>,
+    /// With `from`: the longest wavelength at which a single ε `value` holds, e.g. "375 nm".
+    pub to: Option<String>,
     /// A CSV file relative to the network file, two columns with units in the header.
     pub file: Option<String>,
 }

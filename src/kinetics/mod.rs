@@ -210,6 +210,13 @@ impl Trajectory {
         self.schedule.map_or(t, |s| s.lit_time(t))
     }
 
+    /// The photon ledger of `model` (the model this trajectory was run on) at output `k`, with
+    /// the incident photons counted over the lit time only when the run followed a schedule.
+    pub fn ledger(&self, model: &Model, k: usize) -> ledger::Ledger {
+        let t = self.times[k];
+        ledger::read_lit(model, &self.layout, t, self.lit_time(t), &self.states[k])
+    }
+
     /// Concentration of species `i` at each output time.
     pub fn series(&self, i: usize) -> Vec<f64> {
         self.states.iter().map(|s| s[i]).collect()

@@ -179,18 +179,26 @@ fn clip(shape: &[(f64, f64)], window: (f64, f64)) -> Vec<(f64, f64)> {
     out
 }
 
-/// The emitted spectrum `shape` (any scale) brought to `intensity` as a whole, then cut to
-/// `window`: (bins inside the window, bins of the whole source).
-fn cut(shape: &[(f64, f64)], intensity: Option<Intensity>, window: (f64, f64)) -> (Vec<PhotonBin>, Vec<PhotonBin>) {
+/// The emitted spectrum `shape` (any scale) brought to `intensity` as a whole and multiplied by
+/// `factor`, then cut to `window`: (bins inside the window, bins of the whole source).
+///
+/// The bins are those where the shape emits, whatever the intensity: a source switched off
+/// (zero power, photon flux or scale) keeps its wavelengths with zero photons in each.
+fn cut(
+    shape: &[(f64, f64)],
+    intensity: Option<Intensity>,
+    factor: f64,
+    window: (f64, f64),
+) -> (Vec<PhotonBin>, Vec<PhotonBin>) {
     let (mut whole, p) = quadrature(shape);
     let q: f64 = whole.iter().map(|b| b.flux).sum();
-    let factor = scale_factor(p, q, intensity);
+    let factor = scale_factor(p, q, intensity) * factor;
     let (mut inside, _) = quadrature(&clip(shape, window));
+    whole.retain(|b| b.flux > 0.0);
+    inside.retain(|b| b.flux > 0.0);
     for b in whole.iter_mut().chain(inside.iter_mut()) {
         b.flux *= factor;
     }
-    whole.retain(|b| b.flux > 0.0);
-    inside.retain(|b| b.flux > 0.0);
     (inside, whole)
 }
 
@@ -227,16 +235,16 @@ fn bins_for(kind: &LightKind, intensity: Option<Intensity>, window: (f64, f64)) 
                 })
                 .filter(|p| p.0 > 0.0)
                 .collect();
-            cut(&shape, intensity, window)
+            cut(&shape, intensity, 1.0, window)
         }
-        LightKind::Lamp { relative_power, .. } => cut(relative_power, intensity, window),
+        LightKind::Lamp { relative_power, .. } => cut(relative_power, intensity, 1.0, window),
         LightKind::Sun { scale, area } => {
             // W m⁻² nm⁻¹ -> W per m of wavelength over the area: × 1e9 nm/m × area.
             let shape: Vec<(f64, f64)> = solar::global_tilt()
                 .iter()
-                .map(|&(wl_nm, e)| (wl_nm * 1e-9, e * 1e9 * scale * area))
+                .map(|&(wl_nm, e)| (wl_nm * 1e-9, e * 1e9 * area))
                 .collect();
-            cut(&shape, None, window)
+            cut(&shape, None, *scale, window)
         }
     }
 }
@@ -371,6 +379,33 @@ mod tests {
         );
         assert!(s.bins.is_empty());
         assert!((s.emitted_power - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn a_source_switched_off_keeps_its_wavelengths_with_no_photons() {
+        // Zero power is a dark run, not an empty source: the bins stay where the source emits
+        // (so a window and the single-wavelength ε check still see them), each with zero flux.
+        let off = band(Intensity::Power(0.0), (0.0, f64::INFINITY));
+        let on = band(Intensity::Power(3.0), (0.0, f64::INFINITY));
+        assert_eq!(off.bins.len(), on.bins.len());
+        assert_eq!(off.extent(), on.extent());
+        assert!(off.bins.iter().all(|b| b.flux == 0.0));
+        assert_eq!((off.power(), off.photon_flux(), off.emitted_power), (0.0, 0.0, 0.0));
+        let line = LightSource::new(
+            "uv".into(),
+            LightKind::Line { wavelength: 365e-9 },
+            Some(Intensity::PhotonFlux(0.0)),
+            (0.0, f64::INFINITY),
+        );
+        assert_eq!(line.extent(), Some((365e-9, 365e-9)));
+        let sun = LightSource::new(
+            "sun".into(),
+            LightKind::Sun { scale: 0.0, area: 1.0 },
+            None,
+            (280e-9, 4000e-9),
+        );
+        assert_eq!(sun.extent(), Some((280e-9, 4000e-9)));
+        assert_eq!(sun.power(), 0.0);
     }
 
     #[test]

@@ -52,6 +52,8 @@ pub(super) struct Builder<'a> {
 #[derive(Default)]
 pub(super) struct Places {
     pub(super) species: Vec<Origin>,
+    /// Where each species' `epsilon` was given (its table when it has none).
+    pub(super) epsilon: Vec<Origin>,
     pub(super) thermal: Vec<Origin>,
     pub(super) photo: Vec<Origin>,
     pub(super) transients: Vec<Origin>,
@@ -131,6 +133,22 @@ impl<'a> Builder<'a> {
             return None;
         }
         Some(v)
+    }
+
+    /// A quantity that may be zero but not negative (a light's intensity: zero is a dark run).
+    fn non_negative(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
+        let v = self.quantity(field, f, q)?;
+        if v < 0.0 {
+            self.error(
+                field,
+                &f.origin,
+                format!("\"{}\" is negative", f.value),
+                Some(format!("expected zero or more: {}", q.accepted())),
+            );
+            return None;
+        }
+        // "-0 mW" is zero.
+        Some(if v == 0.0 { 0.0 } else { v })
     }
 
     fn required(&mut self, field: &str, f: Option<Field>, at: &Origin, q: Quantity) -> Option<f64> {
@@ -280,7 +298,8 @@ impl<'a> Builder<'a> {
         let table_help = match q {
             Some(_) => {
                 "a table: { points = [[300, 1200], [365, 5000]], wavelength_unit = \"nm\", unit = \"L/(mol cm)\" }, \
-                        one value: { at = \"365 nm\", value = \"5000 L/(mol cm)\" }, or a CSV: { file = \"spectra/x.csv\" }"
+                        one value: { at = \"365 nm\", value = \"5000 L/(mol cm)\" } (for a line at 365 nm; under a broader light \
+                        add the window where it holds: from = \"355 nm\", to = \"375 nm\"), or a CSV: { file = \"spectra/x.csv\" }"
             }
             None => {
                 "a number, a table: { points = [[300, 0.2], [365, 0.3]], wavelength_unit = \"nm\" }, or a CSV: { file = \"x.csv\" }"
@@ -345,6 +364,129 @@ impl<'a> Builder<'a> {
         }
     }
 
+    /// One value: `at` the wavelength it was measured at, optionally (for ε, and then `at` may
+    /// be left out) `from`/`to`, the window in which the value holds: a box, zero outside. A
+    /// value with no window is a constant whose `at` the whole-network check compares with the
+    /// light (`checks::check_single_epsilon`).
+    fn single_value(
+        &mut self,
+        field: &str,
+        at: &Origin,
+        t: &SpectrumTable,
+        q: Option<Quantity>,
+        help: &str,
+    ) -> Option<Spectrum> {
+        let wl = |b: &mut Self, key: &str, text: &String| {
+            b.positive(
+                &format!("{field}.{key}"),
+                &Field {
+                    value: text.clone(),
+                    origin: at.clone(),
+                },
+                Quantity::Wavelength,
+            )
+        };
+        let window = match (&t.from, &t.to) {
+            (None, None) => None,
+            _ if q != Some(Quantity::MolarAbsorption) => {
+                self.error(
+                    field,
+                    at,
+                    "`from`/`to` bound a single ε value; this field takes a table for values that change with wavelength",
+                    Some(format!("expected {help}")),
+                );
+                return None;
+            }
+            (Some(f), Some(to)) => {
+                let (lo, hi) = (wl(self, "from", f), wl(self, "to", to));
+                let (lo, hi) = (lo?, hi?);
+                if lo >= hi {
+                    self.error(&format!("{field}.from"), at, "`from` must be shorter than `to`", None);
+                    return None;
+                }
+                Some((lo, hi))
+            }
+            _ => {
+                self.error(
+                    field,
+                    at,
+                    "`from` and `to` go together: the window in which the value holds",
+                    Some(
+                        "e.g. epsilon = { at = \"365 nm\", value = \"5000 L/(mol cm)\", from = \"355 nm\", to = \"375 nm\" }"
+                            .into(),
+                    ),
+                );
+                return None;
+            }
+        };
+        let Some(val) = &t.value else {
+            self.error(field, at, "`at` needs a `value`", Some(format!("expected {help}")));
+            return None;
+        };
+        let measured = match &t.at {
+            Some(w) => Some(wl(self, "at", w)?),
+            None if window.is_some() => None,
+            None => {
+                self.error(
+                    field,
+                    at,
+                    "`value` needs `at`, the wavelength it holds at",
+                    Some(format!("expected {help}")),
+                );
+                return None;
+            }
+        };
+        let value = match (val, q) {
+            (toml::Value::String(s), Some(q)) => self.quantity(
+                &format!("{field}.value"),
+                &Field {
+                    value: s.clone(),
+                    origin: at.clone(),
+                },
+                q,
+            )?,
+            (toml::Value::Float(x), None) => *x,
+            (toml::Value::Integer(x), None) => *x as f64,
+            (other, Some(q)) => {
+                self.error(
+                    &format!("{field}.value"),
+                    at,
+                    format!("{other} has no unit"),
+                    Some(format!("expected {}", q.accepted())),
+                );
+                return None;
+            }
+            (other, None) => {
+                self.error(&format!("{field}.value"), at, format!("{other} is not a number"), None);
+                return None;
+            }
+        };
+        if !value.is_finite() || value < 0.0 {
+            self.error(&format!("{field}.value"), at, "must be zero or positive", None);
+            return None;
+        }
+        match (window, measured) {
+            (Some((lo, hi)), Some(w)) if w < lo || w > hi => {
+                let nm = |m: f64| units::sig(m * 1e9, 5);
+                self.error(
+                    &format!("{field}.at"),
+                    at,
+                    format!("{} nm lies outside the window {}–{} nm", nm(w), nm(lo), nm(hi)),
+                    Some(
+                        "the window is where the value holds, so it contains the wavelength it was measured at".into(),
+                    ),
+                );
+                None
+            }
+            // The same value across the window, zero outside it: a two-point table.
+            (Some((lo, hi)), _) => Some(Spectrum::Table {
+                points: vec![(lo, value), (hi, value)],
+                outside: Outside::Zero,
+            }),
+            (None, w) => Some(Spectrum::Constant { value, at: w }),
+        }
+    }
+
     fn spectrum_table(
         &mut self,
         field: &str,
@@ -354,69 +496,19 @@ impl<'a> Builder<'a> {
         outside: Outside,
         help: &str,
     ) -> Option<Spectrum> {
-        let forms = [
-            t.points.is_some(),
-            t.at.is_some() || t.value.is_some(),
-            t.file.is_some(),
-        ];
+        let single = t.at.is_some() || t.value.is_some() || t.from.is_some() || t.to.is_some();
+        let forms = [t.points.is_some(), single, t.file.is_some()];
         if forms.iter().filter(|x| **x).count() != 1 {
             self.error(
                 field,
                 at,
-                "give exactly one of points, at/value or file",
+                "give exactly one of points, at/value (with an optional from/to window) or file",
                 Some(format!("expected {help}")),
             );
             return None;
         }
-        // One value at one wavelength.
-        if t.at.is_some() || t.value.is_some() {
-            let (Some(w), Some(val)) = (&t.at, &t.value) else {
-                self.error(
-                    field,
-                    at,
-                    "`at` and `value` go together",
-                    Some(format!("expected {help}")),
-                );
-                return None;
-            };
-            let wl = self.positive(
-                &format!("{field}.at"),
-                &Field {
-                    value: w.clone(),
-                    origin: at.clone(),
-                },
-                Quantity::Wavelength,
-            )?;
-            let value = match (val, q) {
-                (toml::Value::String(s), Some(q)) => self.quantity(
-                    &format!("{field}.value"),
-                    &Field {
-                        value: s.clone(),
-                        origin: at.clone(),
-                    },
-                    q,
-                )?,
-                (toml::Value::Float(x), None) => *x,
-                (toml::Value::Integer(x), None) => *x as f64,
-                (other, Some(q)) => {
-                    self.error(
-                        &format!("{field}.value"),
-                        at,
-                        format!("{other} has no unit"),
-                        Some(format!("expected {}", q.accepted())),
-                    );
-                    return None;
-                }
-                (other, None) => {
-                    self.error(&format!("{field}.value"), at, format!("{other} is not a number"), None);
-                    return None;
-                }
-            };
-            if !value.is_finite() || value < 0.0 {
-                self.error(&format!("{field}.value"), at, "must be zero or positive", None);
-                return None;
-            }
-            return Some(Spectrum::Constant { value, at: Some(wl) });
+        if single {
+            return self.single_value(field, at, t, q, help);
         }
         // Inline points.
         let (raw, wl_unit, val_unit, where_) = if let Some(points) = &t.points {
@@ -626,11 +718,12 @@ impl<'a> Builder<'a> {
                     _ => (p, q),
                 };
                 match (p, q) {
+                    // Zero is a light switched off (a dark run), not a mistake.
                     (Some(p), None) => self
-                        .positive(&format!("{field}.power"), &p, Quantity::Power)
+                        .non_negative(&format!("{field}.power"), &p, Quantity::Power)
                         .map(Intensity::Power),
                     (None, Some(q)) => self
-                        .positive(&format!("{field}.photon_flux"), &q, Quantity::PhotonFlux)
+                        .non_negative(&format!("{field}.photon_flux"), &q, Quantity::PhotonFlux)
                         .map(Intensity::PhotonFlux),
                     (Some(_), Some(_)) => {
                         self.error(
@@ -730,12 +823,12 @@ impl<'a> Builder<'a> {
                         None => e.scale.as_ref().map(|s| (*s.get_ref(), span(s))),
                     };
                     let (scale, sat) = scale.unwrap_or((1.0, at.clone()));
-                    if !scale.is_finite() || scale <= 0.0 {
+                    if !scale.is_finite() || scale < 0.0 {
                         self.error(
                             &format!("{field}.scale"),
                             &sat,
-                            format!("{scale} must be a positive factor"),
-                            Some("e.g. scale = 0.5 for half the reference sunlight".into()),
+                            format!("{scale} must be a finite factor of zero or more"),
+                            Some("e.g. scale = 0.5 for half the reference sunlight, 0 for none".into()),
                         );
                         continue;
                     }
@@ -853,6 +946,7 @@ impl<'a> Builder<'a> {
                 None => None,
             };
             self.at.species.push(at.clone());
+            self.at.epsilon.push(e.epsilon.as_ref().map_or(at.clone(), span));
             out.push(Species {
                 name,
                 initial,

@@ -9,6 +9,11 @@ use crate::error::Origin;
 use crate::units::sig;
 use std::collections::BTreeSet;
 
+/// How far (m) a light's photons may lie from the wavelength of a single ε value: 1 nm, about
+/// the spectral bandwidth of a bench spectrophotometer and the precision to which lines and
+/// spectra are quoted (common practice).
+pub const SINGLE_EPSILON_TOLERANCE: f64 = 1e-9;
+
 impl Builder<'_> {
     pub(super) fn check_network(&mut self, net: &mut Network) {
         self.check_exits(net);
@@ -290,7 +295,11 @@ impl Builder<'_> {
                     &format!("species \"{}\".epsilon", s.name),
                     &at,
                     "it absorbs in a photochemical step but has no molar absorption coefficient, so it takes no light",
-                    Some("add epsilon, e.g. epsilon = { at = \"365 nm\", value = \"5000 L/(mol cm)\" }".into()),
+                    Some(
+                        "add epsilon over the light's wavelengths, e.g. epsilon = { wavelength_unit = \"nm\", \
+                         unit = \"L/(mol cm)\", points = [[350, 4000], [365, 5000], [380, 3000]] }"
+                            .into(),
+                    ),
                 ),
                 Some(eps) => {
                     let absorbs = net
@@ -306,23 +315,66 @@ impl Builder<'_> {
                             None,
                         );
                     }
-                    if let Spectrum::Constant { at: Some(w), .. } = eps {
-                        let far = net
-                            .lights
-                            .iter()
-                            .filter_map(|l| l.extent())
-                            .any(|(lo, hi)| (lo - w).abs() > 10e-9 || (hi - w).abs() > 10e-9);
-                        if far {
-                            self.warn(
-                                &format!("species \"{}\".epsilon", s.name),
-                                &at,
-                                format!("is given only at {} nm but the light reaches more than 10 nm from it; the value is used at every wavelength", crate::units::sig(w * 1e9, 5)),
-                                Some("give a table over the light's wavelengths".into()),
-                            );
-                        }
-                    }
                 }
             }
+        }
+        self.check_single_epsilon(net);
+    }
+
+    /// A single ε `value` given `at` one wavelength describes the absorber there and nowhere
+    /// else: it is used only when every photon of every light (switched on or not) lies within
+    /// [`SINGLE_EPSILON_TOLERANCE`] of that wavelength. Under anything broader, or a line
+    /// elsewhere, it is an error naming the light; the fix is a table, or a window (`from`/`to`)
+    /// in which the value holds.
+    fn check_single_epsilon(&mut self, net: &Network) {
+        let nm = |m: f64| format!("{} nm", crate::units::sig(m * 1e9, 5));
+        for (i, s) in net.species.iter().enumerate() {
+            let Some(Spectrum::Constant { value, at: Some(w) }) = s.epsilon else {
+                continue;
+            };
+            let far: Vec<String> = net
+                .lights
+                .iter()
+                .filter_map(|l| Some((l, l.extent()?)))
+                .filter(|(_, (lo, hi))| {
+                    (lo - w).abs() > SINGLE_EPSILON_TOLERANCE || (hi - w).abs() > SINGLE_EPSILON_TOLERANCE
+                })
+                .map(|(l, (lo, hi))| {
+                    if lo == hi {
+                        format!("\"{}\" is a line at {}", l.name, nm(lo))
+                    } else {
+                        format!(
+                            "\"{}\" spans {}–{} nm",
+                            l.name,
+                            crate::units::sig(lo * 1e9, 5),
+                            crate::units::sig(hi * 1e9, 5)
+                        )
+                    }
+                })
+                .collect();
+            if far.is_empty() {
+                continue;
+            }
+            let at = self.at.epsilon.get(i).cloned().unwrap_or_default();
+            let v = crate::units::sig(crate::units::epsilon_to_per_cm(value), 5);
+            let (lo, hi) = (nm(w - 10e-9), nm(w + 10e-9));
+            self.error(
+                &format!("species \"{}\".epsilon", s.name),
+                &at,
+                format!(
+                    "one value given at {} would stand for ε at every wavelength of the light, but the light {}",
+                    nm(w),
+                    far.join(" and the light ")
+                ),
+                Some(format!(
+                    "a single ε holds at its own wavelength (within {}) only: give ε over the light's wavelengths \
+                     as a table (points = [[...]] with wavelength_unit and unit, or file = \"x.csv\"), or state the \
+                     window where this value holds, zero outside it: \
+                     epsilon = {{ at = \"{}\", value = \"{v} L/(mol cm)\", from = \"{lo}\", to = \"{hi}\" }}",
+                    nm(SINGLE_EPSILON_TOLERANCE),
+                    nm(w),
+                )),
+            );
         }
     }
 

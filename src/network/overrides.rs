@@ -446,15 +446,15 @@ photon_flux = "1 µeinstein/s"
 [[species]]
 name = "A"
 initial = "1 mM"
-epsilon = { at = "365 nm", value = "1000 L/(mol cm)" }
+epsilon = { at = "365 nm", value = "1000 L/(mol cm)", from = "300 nm", to = "450 nm" }
 
 [[species]]
 name = "B"
-epsilon = { at = "365 nm", value = "500 L/(mol cm)" }
+epsilon = { at = "365 nm", value = "500 L/(mol cm)", from = "300 nm", to = "450 nm" }
 
 [[species]]
 name = "C"
-epsilon = { at = "365 nm", value = "100 L/(mol cm)" }
+epsilon = { at = "365 nm", value = "100 L/(mol cm)", from = "300 nm", to = "450 nm" }
 
 [[species]]
 name = "Q"

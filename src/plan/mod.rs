@@ -58,6 +58,8 @@ pub enum Why {
     Exhausted,
     /// Still changing at the horizon.
     Horizon,
+    /// No light enters the sample (every source at zero) and the dark steps stopped short.
+    Dark,
 }
 
 impl Why {
@@ -69,6 +71,7 @@ impl Why {
             }
             Why::Exhausted => "a steady state with nothing left to convert: the material went elsewhere",
             Why::Horizon => "the concentrations were still changing at the horizon",
+            Why::Dark => "no light: every source is at zero, and the dark steps alone came to rest short of it",
         }
     }
 }
@@ -292,6 +295,8 @@ pub fn time_to_target(model: &Model, target: &Target, opts: &PlanOptions) -> Res
                 .sum();
             let why = if productive * t > 1e-6 * scale {
                 Why::Photostationary
+            } else if model.total_flux() <= 0.0 {
+                Why::Dark
             } else {
                 Why::Exhausted
             };
@@ -468,6 +473,13 @@ pub fn power_for_time(
 ) -> Result<std::result::Result<PowerSolve, NoLightScale>> {
     if !(duration > 0.0 && duration.is_finite()) {
         return Err(Error::Usage("the time to reach the target must be positive".into()));
+    }
+    if model.total_flux() <= 0.0 {
+        return Err(Error::Usage(
+            "the light of the file is zero (every source switched off): no factor on it brings any light; \
+             give a source a power or photon flux (--set light.NAME.power=...)"
+                .into(),
+        ));
     }
     let mut evaluations = 0;
     let mut eval = |x: f64| -> Result<(f64, Plan)> {

@@ -174,6 +174,18 @@ enum Point {
     Set(String, String),
 }
 
+/// Why a power or photon-flux sweep has nothing to scale.
+fn no_light(key: &str, base: &Base) -> String {
+    if base.network.lights.is_empty() {
+        format!("--sweep {key}: the network has no light")
+    } else {
+        format!(
+            "--sweep {key}: every source of the file is at zero, and the sweep scales the file's light; \
+             give the sources their relative powers first (--set light.NAME.power=...)"
+        )
+    }
+}
+
 /// The `--set` key and value text of a point, or the light factor for power and flux sweeps.
 fn point(spec: &SweepSpec, base: &Base, v: f64) -> Result<Point> {
     Ok(match &spec.swept {
@@ -182,14 +194,14 @@ fn point(spec: &SweepSpec, base: &Base, v: f64) -> Result<Point> {
         Swept::Power => {
             let p: f64 = base.network.lights.iter().map(|l| l.emitted_power).sum();
             if p <= 0.0 {
-                return Err(Error::Usage("--sweep power: the network has no light".into()));
+                return Err(Error::Usage(no_light("power", base)));
             }
             Point::Scale(v / p)
         }
         Swept::PhotonFlux => {
             let q: f64 = base.network.lights.iter().map(|l| l.emitted_photon_flux).sum();
             if q <= 0.0 {
-                return Err(Error::Usage("--sweep photon_flux: the network has no light".into()));
+                return Err(Error::Usage(no_light("photon_flux", base)));
             }
             Point::Scale(v / q)
         }

@@ -693,6 +693,7 @@ fn short(w: crate::plan::Why) -> &'static str {
         crate::plan::Why::Photostationary => "photostationary",
         crate::plan::Why::Exhausted => "material used up",
         crate::plan::Why::Horizon => "horizon",
+        crate::plan::Why::Dark => "no light",
     }
 }
 

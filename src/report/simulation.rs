@@ -1,6 +1,6 @@
 //! What a kinetics run writes: concentration and photon CSVs, the summary JSON, and plots.
 
-use crate::kinetics::ledger::{self, Ledger};
+use crate::kinetics::ledger::Ledger;
 use crate::kinetics::{Method, Stop, Trajectory};
 use crate::model::Model;
 use crate::network::Network;
@@ -47,8 +47,8 @@ pub fn photons_csv(model: &Model, tr: &Trajectory) -> String {
         header.push(format!("photons per {} (1)", model.species[*p]));
     }
     let mut t = CsvTable::new(header);
-    for (time, y) in tr.times.iter().zip(&tr.states) {
-        let l = ledger::read(model, &tr.layout, *time, y);
+    for (k, (time, y)) in tr.times.iter().zip(&tr.states).enumerate() {
+        let l = tr.ledger(model, k);
         let mut row = vec![sci(*time), sci(l.incident)];
         row.extend(l.by_absorber.iter().map(|a| sci(a.absorbed)));
         let bg: f64 = l.sources.iter().map(|x| x.background).sum();
@@ -85,10 +85,23 @@ pub struct Summary {
     pub photons: Ledger,
     /// Species that went negative beyond tolerance: (species, time s, value mol/L).
     pub negative_concentrations: Vec<(String, f64, f64)>,
+    /// The daily light schedule the run followed (None: the light was on throughout).
+    pub light_schedule: Option<LightSchedule>,
     /// Model assumptions.
     pub assumptions: String,
     /// Safety cautions.
     pub cautions: String,
+}
+
+/// A light schedule in the summary: on for the first `lit_per_period_s` of every `period_s`.
+#[derive(Debug, Serialize)]
+pub struct LightSchedule {
+    /// Length of one cycle, s (86400 for a day).
+    pub period_s: f64,
+    /// Lit time at the start of each cycle, s.
+    pub lit_per_period_s: f64,
+    /// Time the light was on over the whole run, s.
+    pub lit_time_s: f64,
 }
 
 /// Integrator details in the summary.
@@ -143,12 +156,17 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
         },
         final_concentrations_mol_per_l: model.species.iter().cloned().zip(y.iter().copied()).collect(),
         photon_unit: "einstein".into(),
-        photons: ledger::read(model, &tr.layout, t, y),
+        photons: tr.ledger(model, tr.times.len() - 1),
         negative_concentrations: tr
             .negatives
             .iter()
             .map(|n| (model.species[n.species].clone(), n.time, n.value))
             .collect(),
+        light_schedule: tr.schedule.map(|s| LightSchedule {
+            period_s: s.period,
+            lit_per_period_s: s.lit,
+            lit_time_s: tr.lit_time(t),
+        }),
         assumptions: ASSUMPTIONS.into(),
         cautions: CAUTIONS.into(),
     }
@@ -263,12 +281,7 @@ pub fn concentrations_svg(net: &Network, model: &Model, tr: &Trajectory, log_tim
 
 /// photons.svg: cumulative photons incident, absorbed by each species, background and transmitted.
 pub fn photons_svg(net: &Network, model: &Model, tr: &Trajectory, log_time: bool) -> String {
-    let ledgers: Vec<Ledger> = tr
-        .times
-        .iter()
-        .zip(&tr.states)
-        .map(|(t, y)| ledger::read(model, &tr.layout, *t, y))
-        .collect();
+    let ledgers: Vec<Ledger> = (0..tr.times.len()).map(|k| tr.ledger(model, k)).collect();
     let mut series = vec![(
         "incident".to_string(),
         ledgers.iter().map(|l| l.incident).collect::<Vec<_>>(),

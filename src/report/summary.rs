@@ -280,43 +280,72 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         crate::units::format_time(s.end_time_s),
         s.stopped_by
     );
+    if let Some(d) = &s.light_schedule {
+        let every = if d.period_s == 86400.0 {
+            "a day".to_string()
+        } else {
+            format!("every {}", crate::units::format_time(d.period_s))
+        };
+        let _ = writeln!(
+            o,
+            "light on {} {every} (all sources together): lit {} of {}; the dark hours integrated with the light off",
+            crate::units::format_time(d.lit_per_period_s),
+            crate::units::format_time(d.lit_time_s),
+            crate::units::format_time(s.end_time_s)
+        );
+    }
     let _ = writeln!(o, "\nfinal concentrations");
     for (n, c) in &s.final_concentrations_mol_per_l {
         let _ = writeln!(o, "  {n:<16} {:>12}", format_concentration(*c));
     }
     let p = &s.photons;
     let _ = writeln!(o, "\nphotons (einstein)");
-    let _ = writeln!(o, "  incident        {}", sig(p.incident, 4));
-    for a in &p.by_absorber {
-        let share = if p.incident > 0.0 {
-            100.0 * a.absorbed / p.incident
+    // A dark run (every source at zero) has no shares of the incident light to give.
+    let dark = p.incident <= 0.0;
+    let _ = writeln!(
+        o,
+        "  incident        {}{}",
+        sig(p.incident, 4),
+        if dark {
+            "  (no light: every source is at zero)"
         } else {
-            0.0
+            ""
+        }
+    );
+    for a in &p.by_absorber {
+        let share = if dark {
+            "no light".to_string()
+        } else {
+            format!(
+                "{}% of incident; {} returned, {} productive",
+                sig(100.0 * a.absorbed / p.incident, 3),
+                sig(a.returned, 3),
+                sig(a.productive, 3)
+            )
         };
         let _ = writeln!(
             o,
-            "  absorbed by {:<16} {:>10}  ({}% of incident; {} returned, {} productive)",
+            "  absorbed by {:<16} {:>10}  ({share})",
             a.species,
             sig(a.absorbed, 4),
-            sig(share, 3),
-            sig(a.returned, 3),
-            sig(a.productive, 3)
         );
     }
     let bg: f64 = p.sources.iter().map(|x| x.background).sum();
     let tr: f64 = p.sources.iter().map(|x| x.transmitted).sum();
     let _ = writeln!(o, "  background      {}", sig(bg, 4));
     let _ = writeln!(o, "  transmitted     {}", sig(tr, 4));
-    let _ = writeln!(
-        o,
-        "  balance         incident − absorbed − background − transmitted = {} of incident",
-        sig(p.balance_error, 2)
-    );
-    let _ = writeln!(
-        o,
-        "  inner filters   {}% of incident photons taken by species that never react or by the background",
-        sig(100.0 * p.inner_filter_fraction, 3)
-    );
+    if !dark {
+        let _ = writeln!(
+            o,
+            "  balance         incident − absorbed − background − transmitted = {} of incident",
+            sig(p.balance_error, 2)
+        );
+        let _ = writeln!(
+            o,
+            "  inner filters   {}% of incident photons taken by species that never react or by the background",
+            sig(100.0 * p.inner_filter_fraction, 3)
+        );
+    }
     if !p.products.is_empty() {
         let _ = writeln!(o, "\nproducts");
         for pr in &p.products {
@@ -329,6 +358,15 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
                         sig(pr.formed, 4),
                         sig(n, 4),
                         sig(1.0 / n, 3)
+                    );
+                }
+                // Formed by dark steps alone: no photon cost to give.
+                None if pr.formed > 0.0 => {
+                    let _ = writeln!(
+                        o,
+                        "  {:<16} {} mol formed, no photons absorbed (formed by thermal steps alone)",
+                        pr.species,
+                        sig(pr.formed, 4)
                     );
                 }
                 None => {

@@ -87,7 +87,12 @@ pub fn section(net: &Network, model: &Model) -> String {
                 "{}{}{}{}{}",
                 text_cell(&model.sources[k]),
                 num_cell(&range),
-                num_cell(&sig(mean * 1e9, 4)),
+                // A source switched off has no photon-weighted mean.
+                if mean.is_finite() {
+                    num_cell(&sig(mean * 1e9, 4))
+                } else {
+                    num_cell("off")
+                },
                 num_cell(&sig(flux * 1e6, 4)),
                 num_cell(&sig(power * 1e3, 4))
             )

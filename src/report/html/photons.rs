@@ -6,7 +6,7 @@ use super::escape::{esc, inline_svg};
 use super::page::{self, figure, num_cell, text_cell};
 use super::{EINSTEIN, pick_unit, sig_or_dash};
 use crate::kinetics::Trajectory;
-use crate::kinetics::ledger::{self, Ledger};
+use crate::kinetics::ledger::Ledger;
 use crate::model::Model;
 use crate::units::{format_time, sig};
 use std::fmt::Write;
@@ -132,7 +132,7 @@ fn bars_svg(title: &str, bars: &[Bar], legend: &[(String, &'static str)]) -> Str
 /// The ledger at the end of the run: two pictures and their tables.
 pub fn section(model: &Model, tr: &Trajectory) -> String {
     let t = *tr.times.last().unwrap_or(&0.0);
-    let l: Ledger = ledger::read(model, &tr.layout, t, tr.last());
+    let l: Ledger = tr.ledger(model, tr.times.len() - 1);
     let (f, u) = pick_unit(l.incident, &EINSTEIN);
     let mut s = format!(
         "<p>Photons counted from the start to the end of the run ({}). In all {} {u} entered the sample; \
