@@ -51,8 +51,9 @@ pub struct ProductCost {
     pub apparent_quantum_yield: Option<f64>,
 }
 
-/// A product formed only thermally from reagents no photon made (a co-product such as the
-/// water of a condensation): it has no photon cost.
+/// A thermal co-product (such as the water of a condensation or a scavenger's adduct): neither
+/// formed by a photochemical step nor the principal product of a thermal step fed by a
+/// photoproduct ([`crate::model::lineage`]). It has no photon cost.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct ThermalProduct {
     /// Species name.
@@ -92,7 +93,7 @@ pub struct Ledger {
     pub by_absorber: Vec<AbsorberLedger>,
     /// Products reached through a photochemical step, with their photon costs.
     pub products: Vec<ProductCost>,
-    /// Products formed thermally from reagents no photon made: no photon cost.
+    /// Thermal co-products: no photon cost.
     pub thermal_products: Vec<ThermalProduct>,
     /// Incident photons in all, einstein.
     pub incident: f64,

@@ -311,8 +311,9 @@ impl Model {
         self.products.iter().copied().filter(|&p| self.lineage.photoproduct[p]).collect()
     }
 
-    /// The model's products formed only by thermal steps from reagents no photon made
-    /// (co-products such as the water of a condensation): no photon cost.
+    /// The model's thermal co-products (such as the water of a condensation): neither formed by
+    /// a photochemical step nor the principal product of a thermal step fed by a photoproduct
+    /// ([`lineage`]); no photon cost.
     pub fn thermal_products(&self) -> Vec<usize> {
         self.products.iter().copied().filter(|&p| !self.lineage.photoproduct[p]).collect()
     }

@@ -459,7 +459,7 @@ pub fn selectivity_text(p: &crate::plan::Share) -> String {
         return String::new();
     };
     let (Some(sel), Some(most)) = (p.selectivity, p.stoichiometric_max) else {
-        return format!("no selectivity: not formed from {r} (a co-product of other reagents)");
+        return format!("no selectivity: a co-product, not the principal product of a route from {r}");
     };
     let mut t = format!("selectivity {} % (mol per mol {r} consumed", sig(sel * 100.0, 4));
     if sel > most * (1.0 + 1e-6) {

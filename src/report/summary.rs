@@ -321,7 +321,8 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         sig(100.0 * p.unproductive_fraction, 3)
     );
     if !p.products.is_empty() {
-        let _ = writeln!(o, "\nproducts reached through a photochemical step");
+        let _ = writeln!(o, "\nproducts reached through a photochemical step (formed by one, or the principal product, most atoms other than H, \
+             of a thermal step fed by one)");
         for pr in &p.products {
             match pr.photons_per_molecule {
                 Some(n) => {
@@ -343,7 +344,8 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
     if !p.thermal_products.is_empty() {
         let _ = writeln!(
             o,
-            "\nformed thermally, no photon cost (co-products of thermal steps from reagents no photon made)"
+            "\nformed thermally, no photon cost (co-products: the other products of such thermal steps, or of steps no \
+             photoproduct feeds)"
         );
         for pr in &p.thermal_products {
             let _ = writeln!(o, "  {:<16} {} mol formed", pr.species, sig(pr.formed, 4));

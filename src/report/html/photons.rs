@@ -360,7 +360,7 @@ pub fn section(model: &Model, tr: &Trajectory) -> String {
             .collect();
         let _ = writeln!(
             s,
-            "<p>Formed thermally, no photon cost (co-products of thermal steps from reagents no photon made): {}.</p>",
+            "<p>Formed thermally, no photon cost (thermal co-products: neither formed by a photochemical step nor the principal product of a thermal step fed by a photoproduct): {}.</p>",
             esc(&list.join(", "))
         );
     }
