@@ -29,7 +29,13 @@ fn names<T>(v: &[T], f: impl Fn(&T) -> &str) -> Vec<String> {
 /// A --hν--> B, then B + C -> D + E in the dark (invented). `formulas` gives every species a
 /// formula (E is water, D carries B's skeleton).
 fn small(formulas: bool) -> String {
-    let f = |x: &str| if formulas { format!("formula = \"{x}\"") } else { String::new() };
+    let f = |x: &str| {
+        if formulas {
+            format!("formula = \"{x}\"")
+        } else {
+            String::new()
+        }
+    };
     format!(
         r#"
 [about]
@@ -97,7 +103,10 @@ fn water_of_a_dark_condensation_has_no_photon_cost() {
     let text = photoledger::report::summary::run_summary(&photoledger::report::simulation::summary(
         &net, &model, &tr, 1e-6, 1e-12,
     ));
-    let water = text.lines().find(|l| l.trim_start().starts_with("H2O ") && l.contains("formed")).unwrap();
+    let water = text
+        .lines()
+        .find(|l| l.trim_start().starts_with("H2O ") && l.contains("formed"))
+        .unwrap();
     assert!(!water.contains("photons"), "{water}");
     assert!(text.contains("formed thermally, no photon cost"), "{text}");
 }
@@ -207,7 +216,10 @@ fn the_inner_filter_counts_the_product_that_takes_the_light() {
     assert!((l.unproductive - none).abs() < 1e-12 * none);
     let s = photoledger::report::simulation::summary(&net, &model, &tr, 1e-6, 1e-12);
     let text = photoledger::report::summary::run_summary(&s);
-    assert!(text.contains("anything other than the photoreactants of the reaction followed"), "{text}");
+    assert!(
+        text.contains("anything other than the photoreactants of the reaction followed"),
+        "{text}"
+    );
     assert!(text.contains("led to no reaction"), "{text}");
     // Following every photoreaction: the product's own photochemistry makes it a reactant, and
     // the figure is what is taken by species with no photochemistry and the background.

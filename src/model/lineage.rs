@@ -48,11 +48,9 @@ impl Lineage {
     pub fn new(net: &Network, reactions: &[Reaction], outcomes: &[Outcome]) -> Lineage {
         let n = net.species.len();
         let mut edges: Vec<Vec<(usize, f64)>> = vec![Vec::new(); n];
-        let mut add = |from: usize, to: usize, ratio: f64| {
-            match edges[from].iter_mut().find(|e| e.0 == to) {
-                Some(e) => e.1 = e.1.max(ratio),
-                None => edges[from].push((to, ratio)),
-            }
+        let mut add = |from: usize, to: usize, ratio: f64| match edges[from].iter_mut().find(|e| e.0 == to) {
+            Some(e) => e.1 = e.1.max(ratio),
+            None => edges[from].push((to, ratio)),
         };
         for r in reactions {
             let formed: Vec<(usize, f64)> = r.net.iter().copied().filter(|x| x.1 > 0.0).collect();
@@ -113,9 +111,9 @@ impl Lineage {
         for _ in 0..n.max(1) {
             let mut changed = false;
             let mut next = level.clone();
-            for s in 0..n {
-                let Some(x) = level[s] else { continue };
-                for &(t, r) in &self.edges[s] {
+            for (out, x) in self.edges.iter().zip(&level) {
+                let Some(x) = *x else { continue };
+                for &(t, r) in out {
                     let v: f64 = x * r;
                     if best[t].is_none_or(|b| v > b * (1.0 + 1e-12)) {
                         best[t] = Some(v);
@@ -134,8 +132,28 @@ impl Lineage {
         best
     }
 
-    /// True when `to` is `from` or reached from it.
-    pub fn reaches(&self, from: usize, to: usize) -> bool {
-        from == to || self.from(from)[to].is_some()
+    /// Per species: true when it is one of `targets` or becomes one along the steps.
+    pub fn leads_to(&self, targets: &[usize]) -> Vec<bool> {
+        let n = self.edges.len();
+        let mut back: Vec<Vec<usize>> = vec![Vec::new(); n];
+        for (s, out) in self.edges.iter().enumerate() {
+            for &(t, _) in out {
+                back[t].push(s);
+            }
+        }
+        let mut hit = vec![false; n];
+        let mut todo: Vec<usize> = targets.to_vec();
+        for &t in targets {
+            hit[t] = true;
+        }
+        while let Some(t) = todo.pop() {
+            for &s in &back[t] {
+                if !hit[s] {
+                    hit[s] = true;
+                    todo.push(s);
+                }
+            }
+        }
+        hit
     }
 }

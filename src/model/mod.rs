@@ -292,12 +292,9 @@ impl Model {
     /// or a species that becomes one of them ([`lineage::Lineage`]).
     pub fn follow(&mut self, species: Vec<usize>) {
         let mut reactant = vec![false; self.absorbers.len()];
+        let toward = self.lineage.leads_to(&species);
         for o in &self.outcomes {
-            let leads = species.is_empty()
-                || o.net.iter().filter(|x| x.1 > 0.0).any(|&(s, _)| {
-                    let reach = self.lineage.from(s);
-                    species.iter().any(|&f| f == s || reach[f].is_some())
-                });
+            let leads = species.is_empty() || o.net.iter().any(|&(s, v)| v > 0.0 && toward[s]);
             if leads && !o.returns {
                 reactant[o.slot] = true;
             }
@@ -308,14 +305,22 @@ impl Model {
 
     /// The model's products reached through a photochemical step, in [`Model::products`] order.
     pub fn photoproducts(&self) -> Vec<usize> {
-        self.products.iter().copied().filter(|&p| self.lineage.photoproduct[p]).collect()
+        self.products
+            .iter()
+            .copied()
+            .filter(|&p| self.lineage.photoproduct[p])
+            .collect()
     }
 
     /// The model's thermal co-products (such as the water of a condensation): neither formed by
     /// a photochemical step nor the principal product of a thermal step fed by a photoproduct
     /// ([`lineage`]); no photon cost.
     pub fn thermal_products(&self) -> Vec<usize> {
-        self.products.iter().copied().filter(|&p| !self.lineage.photoproduct[p]).collect()
+        self.products
+            .iter()
+            .copied()
+            .filter(|&p| !self.lineage.photoproduct[p])
+            .collect()
     }
 
     /// Number of species (the length of a concentration vector).

@@ -142,7 +142,10 @@ pub fn summary_units() -> std::collections::BTreeMap<&'static str, &'static str>
             "products[].selectivity",
             "mol per mol of products[].reference consumed (null: not formed from it)",
         ),
-        ("products[].stoichiometric_max", "mol per mol of products[].reference consumed"),
+        (
+            "products[].stoichiometric_max",
+            "mol per mol of products[].reference consumed",
+        ),
         ("power.duration", "s"),
         ("power.scale", "1"),
         ("power.sources[]", "[name, W, einstein/s]"),

@@ -321,8 +321,11 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         sig(100.0 * p.unproductive_fraction, 3)
     );
     if !p.products.is_empty() {
-        let _ = writeln!(o, "\nproducts reached through a photochemical step (formed by one, or the principal product, most atoms other than H, \
-             of a thermal step fed by one)");
+        let _ = writeln!(
+            o,
+            "\nproducts reached through a photochemical step (formed by one, or the principal product, most atoms other than H, \
+             of a thermal step fed by one)"
+        );
         for pr in &p.products {
             match pr.photons_per_molecule {
                 Some(n) => {
