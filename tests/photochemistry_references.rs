@@ -429,7 +429,7 @@ quantum_yield = 0.5
         assert!(rel(ppm, (by_a.absorbed + by_b.absorbed) / formed) < 1e-12);
         assert!(ppm > 1.0 / phi, "the inner filter must cost photons: {ppm}");
         let wasted = l.sources[0].background + by_b.absorbed;
-        assert!(rel(l.inner_filter_fraction, wasted / l.incident) < 1e-12);
+        assert!(rel(l.inner_filter.fraction, wasted / l.incident) < 1e-12);
     }
     // By the end B takes most of the light.
     let l = ledger::read(&model, &tr.layout, tr.times[tr.times.len() - 1], tr.last());

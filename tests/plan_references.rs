@@ -374,7 +374,7 @@ fn sweep_runs_in_order_and_reports_selectivity() {
         assert_eq!(pts[i].value, *s);
         assert!(rel(t[i], t[0] / s) < 1e-6);
         // A -> P alone: one P per A consumed (mass balance, common practice)
-        let sel = pts[i].plan.as_ref().unwrap().products[0].selectivity;
+        let sel = pts[i].plan.as_ref().unwrap().products[0].selectivity.unwrap();
         assert!((sel - 1.0).abs() < 1e-9, "{sel}");
     }
 }

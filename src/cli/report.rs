@@ -85,7 +85,11 @@ pub fn run(a: &ReportArgs) -> photoledger::Result<()> {
             .transpose()?,
         target: a.target.clone(),
     };
-    let model = Model::compile(&net);
+    let mut model = Model::compile(&net);
+    if let Some(t) = &opts.target {
+        // The photon ledger follows the target's species (its inner filter and photoreactants).
+        model.follow(vec![photoledger::plan::target::parse(t, &model)?.species]);
+    }
     let mut found = study::run(&net, &model, &opts)?;
     if !a.data.is_empty() {
         let experiments = super::fit::read_data(&a.data)?;

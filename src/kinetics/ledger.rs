@@ -34,7 +34,8 @@ pub struct AbsorberLedger {
     pub productive: f64,
 }
 
-/// A product and its photon cost.
+/// A product reached through a photochemical step ([`crate::model::lineage`]) and its photon
+/// cost.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct ProductCost {
     /// Species name.
@@ -50,6 +51,35 @@ pub struct ProductCost {
     pub apparent_quantum_yield: Option<f64>,
 }
 
+/// A thermal co-product (such as the water of a condensation or a scavenger's adduct): neither
+/// formed by a photochemical step nor the principal product of a thermal step fed by a
+/// photoproduct ([`crate::model::lineage`]). It has no photon cost.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct ThermalProduct {
+    /// Species name.
+    pub species: String,
+    /// Amount formed, mol (final minus initial).
+    pub formed: f64,
+}
+
+/// The inner filter of the followed reaction: light absorbed by anything other than its
+/// photoreactants ([`crate::model::Model::follow`]).
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct InnerFilter {
+    /// The species whose formation is followed (the named products or the target); empty:
+    /// every photoreaction.
+    pub followed: Vec<String>,
+    /// The followed reaction's photoreactants: absorbers of the photochemical steps that lead
+    /// to the followed species.
+    pub reactants: Vec<String>,
+    /// Photons absorbed by each other absorbing species, einstein.
+    pub by_species: Vec<(String, f64)>,
+    /// Photons absorbed by the background (solvent, vessel), einstein.
+    pub background: f64,
+    /// All of these (other species and background) as a fraction of the incident photons.
+    pub fraction: f64,
+}
+
 /// The whole ledger at one time.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Ledger {
@@ -61,17 +91,23 @@ pub struct Ledger {
     pub absorbers: Vec<String>,
     /// Per absorber.
     pub by_absorber: Vec<AbsorberLedger>,
-    /// Products.
+    /// Products reached through a photochemical step, with their photon costs.
     pub products: Vec<ProductCost>,
+    /// Thermal co-products: no photon cost.
+    pub thermal_products: Vec<ThermalProduct>,
     /// Incident photons in all, einstein.
     pub incident: f64,
     /// Absorbed by species in all, einstein.
     pub absorbed: f64,
     /// Relative mismatch |incident − absorbed − background − transmitted| / incident.
     pub balance_error: f64,
-    /// Fraction of the incident photons absorbed by species that never react (inner filters)
-    /// and by the background.
-    pub inner_filter_fraction: f64,
+    /// The followed reaction's inner filter.
+    pub inner_filter: InnerFilter,
+    /// Photons absorbed by species that led to no reaction (returned the molecule unchanged, or
+    /// taken by a species with no photochemistry), einstein; the background is not counted.
+    pub unproductive: f64,
+    /// [`Ledger::unproductive`] as a fraction of the incident photons.
+    pub unproductive_fraction: f64,
 }
 
 /// Read the ledger at time `t` from state `y` of `model` (light on throughout).
@@ -104,18 +140,17 @@ pub fn read_lit(model: &Model, layout: &LedgerLayout, t: f64, lit: f64, y: &[f64
     }
     let incident: f64 = sources.iter().map(|s| s.incident).sum();
     let mut by_absorber = Vec::new();
-    let mut wasted = sources.iter().map(|s| s.background).sum::<f64>();
+    let background: f64 = sources.iter().map(|s| s.background).sum();
+    let mut unproductive = 0.0;
     for (slot, name) in absorbers.iter().enumerate() {
         let absorbed: f64 = sources.iter().map(|s| s.absorbed[slot]).sum();
         let mut outcomes = Vec::new();
         let mut productive = 0.0;
         let mut returned_listed = 0.0;
-        let mut has_photo = false;
         for (o, out) in model.outcomes.iter().enumerate() {
             if out.slot != slot {
                 continue;
             }
-            has_photo = true;
             let p = y[layout.outcome(o)] * v;
             if out.returns {
                 returned_listed += p;
@@ -124,9 +159,7 @@ pub fn read_lit(model: &Model, layout: &LedgerLayout, t: f64, lit: f64, y: &[f64
             }
             outcomes.push((out.label.clone(), p));
         }
-        if !has_photo {
-            wasted += absorbed;
-        }
+        unproductive += (absorbed - productive).max(0.0);
         let returned = (absorbed - productive).max(returned_listed);
         by_absorber.push(AbsorberLedger {
             species: name.clone(),
@@ -138,9 +171,9 @@ pub fn read_lit(model: &Model, layout: &LedgerLayout, t: f64, lit: f64, y: &[f64
     }
     let absorbed: f64 = by_absorber.iter().map(|a| a.absorbed).sum();
     let products = model
-        .products
-        .iter()
-        .map(|&i| {
+        .photoproducts()
+        .into_iter()
+        .map(|i| {
             let formed = (y[i] - model.initial[i]) * v;
             let ok = formed > 0.0 && absorbed > 0.0;
             ProductCost {
@@ -151,12 +184,39 @@ pub fn read_lit(model: &Model, layout: &LedgerLayout, t: f64, lit: f64, y: &[f64
             }
         })
         .collect();
+    let thermal_products = model
+        .thermal_products()
+        .into_iter()
+        .map(|i| ThermalProduct {
+            species: model.species[i].clone(),
+            formed: (y[i] - model.initial[i]) * v,
+        })
+        .collect();
+    let frac = |x: f64| if incident > 0.0 { x / incident } else { 0.0 };
+    let mut reactants = Vec::new();
+    let mut by_species = Vec::new();
+    for (slot, a) in by_absorber.iter().enumerate() {
+        if model.followed_reactant.get(slot).copied().unwrap_or(false) {
+            reactants.push(a.species.clone());
+        } else {
+            by_species.push((a.species.clone(), a.absorbed));
+        }
+    }
+    let other: f64 = by_species.iter().map(|x| x.1).sum::<f64>() + background;
+    let inner_filter = InnerFilter {
+        followed: model.followed.iter().map(|&i| model.species[i].clone()).collect(),
+        reactants,
+        by_species,
+        background,
+        fraction: frac(other),
+    };
     Ledger {
         time: t,
         sources,
         absorbers,
         by_absorber,
         products,
+        thermal_products,
         incident,
         absorbed,
         balance_error: if incident > 0.0 {
@@ -164,6 +224,8 @@ pub fn read_lit(model: &Model, layout: &LedgerLayout, t: f64, lit: f64, y: &[f64
         } else {
             0.0
         },
-        inner_filter_fraction: if incident > 0.0 { wasted / incident } else { 0.0 },
+        inner_filter,
+        unproductive,
+        unproductive_fraction: frac(unproductive),
     }
 }

@@ -12,6 +12,7 @@
 //! which is recomputed as quencher concentrations change.
 
 pub mod absorption;
+pub mod lineage;
 pub mod rhs;
 pub mod transients;
 
@@ -92,6 +93,15 @@ pub struct Model {
     pub collapse: Collapse,
     /// Species named as products, or produced and never consumed (the chain's absorbing states).
     pub products: Vec<usize>,
+    /// What each species becomes, and which species a photon made ([`lineage`]).
+    pub lineage: lineage::Lineage,
+    /// The species whose formation the ledger follows: the network's named products, or a
+    /// command's target ([`Model::follow`]); empty: every photoreaction.
+    pub followed: Vec<usize>,
+    /// Per absorber slot: true when one of its photochemical steps leads to a followed species
+    /// (every absorber with a photochemical step when nothing is followed): the followed
+    /// reaction's photoreactants.
+    pub followed_reactant: Vec<bool>,
 }
 
 impl Model {
@@ -99,7 +109,7 @@ impl Model {
     pub fn compile(net: &Network) -> Model {
         let species: Vec<String> = net.species.iter().map(|s| s.name.clone()).collect();
         let initial: Vec<f64> = net.species.iter().map(|s| s.initial).collect();
-        let reactions = net
+        let reactions: Vec<Reaction> = net
             .thermal
             .iter()
             .map(|t| {
@@ -252,7 +262,9 @@ impl Model {
         let products = (0..net.species.len())
             .filter(|&i| net.species[i].product || (produced[i] && !consumed[i]))
             .collect();
-        Model {
+        let lineage = lineage::Lineage::new(net, &reactions, &outcomes);
+        let named: Vec<usize> = (0..net.species.len()).filter(|&i| net.species[i].product).collect();
+        let mut model = Model {
             species,
             initial,
             temperature: net.conditions.temperature,
@@ -267,7 +279,48 @@ impl Model {
             outcomes,
             collapse,
             products,
+            lineage,
+            followed: Vec::new(),
+            followed_reactant: Vec::new(),
+        };
+        model.follow(named);
+        model
+    }
+
+    /// Follow the formation of `species` in the photon ledger (empty: every photoreaction):
+    /// its photoreactants are the absorbers of the photochemical steps that form one of them
+    /// or a species that becomes one of them ([`lineage::Lineage`]).
+    pub fn follow(&mut self, species: Vec<usize>) {
+        let mut reactant = vec![false; self.absorbers.len()];
+        let toward = self.lineage.leads_to(&species);
+        for o in &self.outcomes {
+            let leads = species.is_empty() || o.net.iter().any(|&(s, v)| v > 0.0 && toward[s]);
+            if leads && !o.returns {
+                reactant[o.slot] = true;
+            }
         }
+        self.followed = species;
+        self.followed_reactant = reactant;
+    }
+
+    /// The model's products reached through a photochemical step, in [`Model::products`] order.
+    pub fn photoproducts(&self) -> Vec<usize> {
+        self.products
+            .iter()
+            .copied()
+            .filter(|&p| self.lineage.photoproduct[p])
+            .collect()
+    }
+
+    /// The model's thermal co-products (such as the water of a condensation): neither formed by
+    /// a photochemical step nor the principal product of a thermal step fed by a photoproduct
+    /// ([`lineage`]); no photon cost.
+    pub fn thermal_products(&self) -> Vec<usize> {
+        self.products
+            .iter()
+            .copied()
+            .filter(|&p| !self.lineage.photoproduct[p])
+            .collect()
     }
 
     /// Number of species (the length of a concentration vector).

@@ -137,10 +137,13 @@ pub struct Share {
     /// Concentration formed, mol/L (final minus initial).
     pub formed: f64,
     /// Selectivity: mol formed per mol of the reference reagent consumed (IUPAC Gold Book,
-    /// "selectivity", `from memory`), 0 when none of it was consumed. Above 1 for a product made
-    /// two or more per reagent molecule; a co-product not derived from the reagent (a scavenger's
-    /// product) shows it only through the stoichiometry that links them.
-    pub selectivity: f64,
+    /// "selectivity", `from memory`), 0 when none of it was consumed; None when the species is
+    /// not formed from the reference (a co-product of other reagents, such as a scavenger's
+    /// product: [`crate::model::lineage`]) or there is no reference.
+    pub selectivity: Option<f64>,
+    /// The most mol of it the stoichiometry forms per mol of the reference consumed, along any
+    /// route of the network (1 for an isomer, 2 for `A -> 2 B`); None when not formed from it.
+    pub stoichiometric_max: Option<f64>,
     /// The reference reagent: the target's yield reference, else the limiting reagent.
     pub reference: Option<String>,
 }
@@ -414,17 +417,20 @@ fn dose(model: &Model, tr: &Trajectory, target: &Target, t: f64, y: &[f64]) -> D
 }
 
 /// Species `which` formed at state `y` and their selectivities: mol formed per mol of
-/// `reference` consumed.
+/// `reference` consumed, for the species formed from it.
 fn shares(model: &Model, which: &[usize], y: &[f64], reference: Option<usize>) -> Vec<Share> {
     let consumed = reference.map_or(0.0, |r| (model.initial[r] - y[r]).max(0.0));
+    let from = reference.map(|r| model.lineage.from(r));
     which
         .iter()
         .map(|&p| {
             let f = (y[p] - model.initial[p]).max(0.0);
+            let most = from.as_ref().and_then(|d| d[p]);
             Share {
                 species: model.species[p].clone(),
                 formed: f,
-                selectivity: if consumed > 0.0 { f / consumed } else { 0.0 },
+                selectivity: most.map(|_| if consumed > 0.0 { f / consumed } else { 0.0 }),
+                stoichiometric_max: most,
                 reference: reference.map(|r| model.species[r].clone()),
             }
         })

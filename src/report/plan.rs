@@ -138,7 +138,14 @@ pub fn summary_units() -> std::collections::BTreeMap<&'static str, &'static str>
         ("electrical.energy", "J"),
         ("electrical.per_mol", "J/mol"),
         ("products[].formed", "mol/L"),
-        ("products[].selectivity", "mol per mol of products[].reference consumed"),
+        (
+            "products[].selectivity",
+            "mol per mol of products[].reference consumed (null: not formed from it)",
+        ),
+        (
+            "products[].stoichiometric_max",
+            "mol per mol of products[].reference consumed",
+        ),
         ("power.duration", "s"),
         ("power.scale", "1"),
         ("power.sources[]", "[name, W, einstein/s]"),
@@ -436,19 +443,39 @@ pub fn text(s: &PlanSummary) -> String {
         for p in formed {
             let _ = writeln!(
                 o,
-                "  {:<16} {:>12}  selectivity {} %{}",
+                "  {:<16} {:>12}  {}",
                 p.species,
                 format_concentration(p.formed),
-                sig(p.selectivity * 100.0, 4),
-                p.reference
-                    .as_ref()
-                    .map_or(String::new(), |r| format!(" (mol per mol {r} consumed)"))
+                selectivity_text(p)
             );
         }
     }
     let _ = writeln!(o, "method: {}", s.method);
     let _ = writeln!(o, "caution: {}", s.cautions);
     o
+}
+
+/// A product's selectivity in words: the share with its reference, the stoichiometric ceiling
+/// when it is not 1 (or when the share exceeds it), or why there is none.
+pub fn selectivity_text(p: &crate::plan::Share) -> String {
+    let Some(r) = &p.reference else {
+        return String::new();
+    };
+    let (Some(sel), Some(most)) = (p.selectivity, p.stoichiometric_max) else {
+        return format!("no selectivity: a co-product, not the principal product of a route from {r}");
+    };
+    let mut t = format!("selectivity {} % (mol per mol {r} consumed", sig(sel * 100.0, 4));
+    if sel > most * (1.0 + 1e-6) {
+        let _ = write!(
+            t,
+            "; above the stoichiometric {} %: it also forms by routes that do not start from {r}",
+            sig(most * 100.0, 4)
+        );
+    } else if (most - 1.0).abs() > 1e-9 {
+        let _ = write!(t, "; the stoichiometry allows up to {} %", sig(most * 100.0, 4));
+    }
+    t.push(')');
+    t
 }
 
 /// What a sweep varies (made by `plan::sweep::parse`).
@@ -489,7 +516,7 @@ pub fn sweep_csv(axis: &SweepAxis, points: &[SweepPoint]) -> String {
                 for name in &products {
                     let sh = p.products.iter().find(|sh| &sh.species == name);
                     cells.push(opt_sci(sh.map(|sh| sh.formed)));
-                    cells.push(opt_sci(sh.map(|sh| sh.selectivity)));
+                    cells.push(opt_sci(sh.and_then(|sh| sh.selectivity)));
                 }
             }
             Err(e) => {
@@ -634,7 +661,7 @@ pub fn selectivity_svg(network: &str, axis: &SweepAxis, points: &[SweepPoint]) -
                     .iter()
                     .filter_map(|p| {
                         let pl = p.plan.as_ref().ok()?;
-                        Some((p.value * axis.unit_factor, pl.products.get(i)?.selectivity * 100.0))
+                        Some((p.value * axis.unit_factor, pl.products.get(i)?.selectivity? * 100.0))
                     })
                     .collect(),
             )
@@ -675,7 +702,10 @@ pub fn sweep_text(axis: &SweepAxis, points: &[SweepPoint]) -> String {
                     .products
                     .iter()
                     .filter(|s| s.formed > 0.0)
-                    .map(|s| format!("{} {} %", s.species, sig(s.selectivity * 100.0, 3)))
+                    .map(|s| match s.selectivity {
+                        Some(x) => format!("{} {} %", s.species, sig(x * 100.0, 3)),
+                        None => format!("{} (not formed from the reference)", s.species),
+                    })
                     .collect::<Vec<_>>()
                     .join(", ");
                 let _ = writeln!(o, "{v:>14}  {t:>14}  {prods}");

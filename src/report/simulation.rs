@@ -28,7 +28,8 @@ pub fn concentrations_csv(model: &Model, tr: &Trajectory) -> String {
 }
 
 /// photons.csv: cumulative photons (einstein) incident, absorbed by each absorber,
-/// background, transmitted, and per outcome; and photons per molecule of each product.
+/// background, transmitted, and per outcome; and photons per molecule of each product reached
+/// through a photochemical step (thermal co-products have no photon cost).
 pub fn photons_csv(model: &Model, tr: &Trajectory) -> String {
     let mut header = vec!["time (s)".to_string(), "incident (einstein)".to_string()];
     for a in &model.absorbers {
@@ -43,8 +44,8 @@ pub fn photons_csv(model: &Model, tr: &Trajectory) -> String {
             if o.returns { " [return]" } else { "" }
         ));
     }
-    for p in &model.products {
-        header.push(format!("photons per {} (1)", model.species[*p]));
+    for p in model.photoproducts() {
+        header.push(format!("photons per {} (1)", model.species[p]));
     }
     let mut t = CsvTable::new(header);
     for (k, (time, y)) in tr.times.iter().zip(&tr.states).enumerate() {

@@ -340,14 +340,21 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
             "  balance         incident − absorbed − background − transmitted = {} of incident",
             sig(p.balance_error, 2)
         );
+        let (figure, detail) = inner_filter_text(p);
+        let _ = writeln!(o, "  inner filter    {figure}\n                  ({detail})");
         let _ = writeln!(
             o,
-            "  inner filters   {}% of incident photons taken by species that never react or by the background",
-            sig(100.0 * p.inner_filter_fraction, 3)
+            "  no reaction     {}% of incident photons absorbed by species and led to no reaction (returned the molecule \
+             unchanged, or taken by a species with no photochemistry; the background is its own line)",
+            sig(100.0 * p.unproductive_fraction, 3)
         );
     }
     if !p.products.is_empty() {
-        let _ = writeln!(o, "\nproducts");
+        let _ = writeln!(
+            o,
+            "\nproducts reached through a photochemical step (formed by one, or the principal product, most atoms other than H, \
+             of a thermal step fed by one)"
+        );
         for pr in &p.products {
             match pr.photons_per_molecule {
                 Some(n) => {
@@ -375,6 +382,16 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
             }
         }
     }
+    if !p.thermal_products.is_empty() {
+        let _ = writeln!(
+            o,
+            "\nformed thermally, no photon cost (co-products: the other products of such thermal steps, or of steps no \
+             photoproduct feeds)"
+        );
+        for pr in &p.thermal_products {
+            let _ = writeln!(o, "  {:<16} {} mol formed", pr.species, sig(pr.formed, 4));
+        }
+    }
     let m = &s.method;
     let _ = writeln!(
         o,
@@ -384,4 +401,36 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
     let _ = writeln!(o, "assumes     {}", s.assumptions);
     let _ = writeln!(o, "caution     {}", s.cautions);
     o
+}
+
+/// The inner filter in words: its share of the incident photons with what it means, and (second)
+/// the reaction followed and who took the light.
+pub fn inner_filter_text(p: &crate::kinetics::ledger::Ledger) -> (String, String) {
+    let f = &p.inner_filter;
+    let pct = |x: f64| {
+        if p.incident > 0.0 {
+            format!("{}%", sig(100.0 * x / p.incident, 3))
+        } else {
+            "0%".into()
+        }
+    };
+    let followed = if f.followed.is_empty() {
+        "every photoreaction".to_string()
+    } else {
+        f.followed.join(", ")
+    };
+    let reactants = if f.reactants.is_empty() {
+        "no photochemical step leads to it, so all absorbed light counts".to_string()
+    } else {
+        format!("photoreactants {}", f.reactants.join(", "))
+    };
+    let mut taken: Vec<String> = f.by_species.iter().map(|(n, x)| format!("{n} {}", pct(*x))).collect();
+    taken.push(format!("background {}", pct(f.background)));
+    (
+        format!(
+            "{}% of incident photons: light absorbed by anything other than the photoreactants of the reaction followed",
+            sig(100.0 * f.fraction, 3)
+        ),
+        format!("followed: {followed}; {reactants}; taken by {}", taken.join(", ")),
+    )
 }

@@ -264,6 +264,15 @@ pub fn section(model: &Model, tr: &Trajectory) -> String {
         &[("destination", false), (&h, true), ("share of incident (%)", true)],
         &rows,
     ));
+    let (figure, detail) = crate::report::summary::inner_filter_text(&l);
+    let _ = writeln!(
+        s,
+        "<p>Inner filter: {} ({}).</p>\n<p>Absorbed and led to no reaction: {} % of the incident photons, taken by species \
+         that returned the molecule unchanged or have no photochemistry (the background is counted apart).</p>",
+        esc(&figure),
+        esc(&detail),
+        esc(&sig(100.0 * l.unproductive_fraction, 3))
+    );
     let rows: Vec<String> = l
         .by_absorber
         .iter()
@@ -330,7 +339,7 @@ pub fn section(model: &Model, tr: &Trajectory) -> String {
             .collect();
         let hf = format!("formed ({um})");
         s.push_str(&page::table(
-            "Photon cost of each product over the run",
+            "Photon cost of each product reached through a photochemical step, over the run",
             &[
                 ("product", false),
                 (&hf, true),
@@ -343,9 +352,22 @@ pub fn section(model: &Model, tr: &Trajectory) -> String {
             &rows,
         ));
     }
+    if !l.thermal_products.is_empty() {
+        let list: Vec<String> = l
+            .thermal_products
+            .iter()
+            .map(|p| format!("{} {} mol", p.species, sig(p.formed, 4)))
+            .collect();
+        let _ = writeln!(
+            s,
+            "<p>Formed thermally, no photon cost (thermal co-products: neither formed by a photochemical step nor the principal product of a thermal step fed by a photoproduct): {}.</p>",
+            esc(&list.join(", "))
+        );
+    }
     s.push_str(&page::assumption(
         "at each wavelength the fraction absorbed is 1 − 10^(−A), shared among absorbers in proportion to εcl and \
-         with the background; the photon cost counts every photon absorbed by any species, inner filters included.",
+         with the background; the photon cost counts every photon absorbed by any species, inner filters included, and is given only for \
+         products reached through a photochemical step.",
     ));
     s
 }

@@ -78,7 +78,7 @@ pub fn section(p: &PlanStudy) -> String {
                     "{}{}{}",
                     text_cell(&x.species),
                     num_cell(&sig(x.formed / cf, 4)),
-                    num_cell(&sig(100.0 * x.selectivity, 3))
+                    num_cell(&x.selectivity.map_or("—".to_string(), |v| sig(100.0 * v, 3)))
                 )
             })
             .collect();
@@ -95,6 +95,15 @@ pub fn section(p: &PlanStudy) -> String {
             &[("product", false), (&h, true), (&sel, true)],
             &rows,
         ));
+        let notes: Vec<String> = plan
+            .products
+            .iter()
+            .filter(|x| x.reference.is_some() && (x.selectivity.is_none() || x.stoichiometric_max != Some(1.0)))
+            .map(|x| format!("{}: {}", x.species, crate::report::plan::selectivity_text(x)))
+            .collect();
+        if !notes.is_empty() {
+            s.push_str(&format!("<p>{}.</p>\n", esc(&notes.join("; "))));
+        }
     }
     if !p.alternatives.is_empty() {
         let times: Vec<f64> = p.alternatives.iter().filter_map(|a| a.time).collect();
