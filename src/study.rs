@@ -308,9 +308,11 @@ fn chain_study(model: &Model, net: &Network) -> Result<ChainStudy> {
         &run.chain,
         &run.analysis,
         &run.start_note,
+        &run.light,
         &model.products,
-        run.sensitivities,
-    );
+        run.sensitivities.clone(),
+    )
+    .with_check(chain::agreement::check(model, net, &run, None)?);
     Ok(ChainStudy {
         analysis: run.analysis,
         summary,
