@@ -83,7 +83,12 @@ impl Agreement {
 /// Check the chain `run` of `net` (compiled as `model`) against the kinetics, or say why the
 /// check does not apply (a start other than the initial mixture, an end that is no species, no
 /// limiting reagent).
-pub fn check(model: &Model, net: &Network, run: &ChainRun, from: Option<&str>) -> Result<std::result::Result<Agreement, String>> {
+pub fn check(
+    model: &Model,
+    net: &Network,
+    run: &ChainRun,
+    from: Option<&str>,
+) -> Result<std::result::Result<Agreement, String>> {
     if from.is_some() {
         return Ok(Err(
             "the kinetics start from the initial mixture, not from one species, so the check needs the default start"
@@ -132,7 +137,15 @@ pub fn check(model: &Model, net: &Network, run: &ChainRun, from: Option<&str>) -
     let reasons = if agree {
         Vec::new()
     } else {
-        reasons(model, net, run, plan.state(), plan.time.unwrap_or(plan.trajectory.times.last().copied().unwrap_or(0.0)), end)?
+        reasons(
+            model,
+            net,
+            run,
+            plan.state(),
+            plan.time
+                .unwrap_or(plan.trajectory.times.last().copied().unwrap_or(0.0)),
+            end,
+        )?
     };
     Ok(Ok(Agreement {
         chain_time_s: tau,
@@ -157,7 +170,11 @@ pub fn check(model: &Model, net: &Network, run: &ChainRun, from: Option<&str>) -
 /// of the kinetics at time `t` against the chain's assumptions.
 fn reasons(model: &Model, net: &Network, run: &ChainRun, y: &[f64], t: f64, end: usize) -> Result<Vec<String>> {
     let ns = model.n_species();
-    let c0 = run.settings.concentrations.clone().unwrap_or_else(|| model.initial.clone());
+    let c0 = run
+        .settings
+        .concentrations
+        .clone()
+        .unwrap_or_else(|| model.initial.clone());
     let at = format_time(t);
     let mut out = Vec::new();
     // Light per absorbing molecule: the chain's against the stirred cell at the kinetics' state.
@@ -193,7 +210,9 @@ fn reasons(model: &Model, net: &Network, run: &ChainRun, y: &[f64], t: f64, end:
                 if filters.len() == 1 { "it" } else { "they" },
                 if filters.len() == 1 { "s" } else { "" }
             ),
-            Light::Stirred => "the chain shares the light at its concentrations, the kinetics at the ones reached".into(),
+            Light::Stirred => {
+                "the chain shares the light at its concentrations, the kinetics at the ones reached".into()
+            }
         };
         out.push(format!(
             "light: a molecule of {} absorbs {} photons/s in the chain but {} photons/s in the kinetics at {at}, \
@@ -247,9 +266,7 @@ fn reasons(model: &Model, net: &Network, run: &ChainRun, y: &[f64], t: f64, end:
         ));
     }
     if out.is_empty() {
-        out.push(
-            "the path has several slow steps in a row, so the time to an end is far from one exponential".into(),
-        );
+        out.push("the path has several slow steps in a row, so the time to an end is far from one exponential".into());
     }
     Ok(out)
 }
