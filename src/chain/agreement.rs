@@ -157,10 +157,11 @@ pub fn check(
         ratio,
         agree,
         method: format!(
-            "a molecule taking one exponential step has ended by the mean time with probability 1 − 1/e, so the \
-             kinetics (from the initial mixture, file's light, inner filter included) should have turned \
-             (1 − 1/e) × the chain's yield of {end_name} of the limiting reagent {ref_name} into {end_name} by then; \
-             exact for first-order steps, a yardstick otherwise, so only a factor over {FACTOR} counts"
+            "a molecule taking one exponential step has ended by the mean time with probability 1 − 1/e, so by \
+             then the kinetics (from the initial mixture under the file's light, inner filter included) should have \
+             turned (1 − 1/e) × Y of the limiting reagent {ref_name} into {end_name}, Y being the chain's yield of \
+             {end_name} (1:1); exact for first-order steps, a yardstick otherwise, so only a factor over {FACTOR} \
+             counts; one kinetics run, stopped at that level by root finding"
         ),
         reasons,
     }))
