@@ -133,7 +133,7 @@ pub fn check(
         },
     )?;
     let ratio = plan.time.map(|t| t / tau);
-    let agree = ratio.is_some_and(|r| r <= FACTOR && r >= 1.0 / FACTOR);
+    let agree = ratio.is_some_and(|r| (1.0 / FACTOR..=FACTOR).contains(&r));
     let reasons = if agree {
         Vec::new()
     } else {
