@@ -23,7 +23,7 @@ use crate::report::chain::{self as chain_report, Summary};
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct StudyOptions {
     /// Irradiation time, s (None: from the kinetics, [`plan::horizon::automatic`]: until the
-    /// target, or 95 % conversion of the limiting reagent, or nothing changes, rounded up to a
+    /// target, or 99 % conversion of the limiting reagent, or nothing changes, rounded up to a
     /// round number).
     pub until: Option<f64>,
     /// Window for barrier verdicts, s (None: no verdicts).
