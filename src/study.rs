@@ -22,8 +22,9 @@ use crate::report::chain::{self as chain_report, Summary};
 /// What to run.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct StudyOptions {
-    /// Irradiation time, s (None: three times the chain's mean time to an end, rounded up to
-    /// a round number, or one hour when the chain does not apply).
+    /// Irradiation time, s (None: from the kinetics, [`plan::horizon::automatic`]: until the
+    /// target, or 99 % conversion of the limiting reagent, or nothing changes, rounded up to a
+    /// round number).
     pub until: Option<f64>,
     /// Window for barrier verdicts, s (None: no verdicts).
     pub barrier_window: Option<f64>,
@@ -63,6 +64,9 @@ pub struct Study {
     pub until: f64,
     /// How that time was chosen (for the report).
     pub until_reason: String,
+    /// The automatic horizon found from the kinetics, when no time was asked for
+    /// ([`plan::horizon::automatic`]: a stated conversion, or nothing changing, capped).
+    pub horizon: Option<plan::horizon::Horizon>,
     /// The kinetics run, with the photon ledger in its states.
     pub kinetics: Trajectory,
     /// True when the output times are spaced logarithmically because most of the change
@@ -308,9 +312,11 @@ fn chain_study(model: &Model, net: &Network) -> Result<ChainStudy> {
         &run.chain,
         &run.analysis,
         &run.start_note,
+        &run.light,
         &model.products,
-        run.sensitivities,
-    );
+        run.sensitivities.clone(),
+    )
+    .with_check(chain::agreement::check(model, net, &run, None)?);
     Ok(ChainStudy {
         analysis: run.analysis,
         summary,
@@ -324,19 +330,28 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
         crate::Error::Invalid(ds) => ds.iter().map(|d| d.message.as_str()).collect::<Vec<_>>().join("; "),
         e => e.to_string(),
     });
-    let (until, until_reason) = match (opts.until, &chain) {
-        (Some(t), _) => (t, "as asked (--until)".to_string()),
-        (None, Ok(c)) if c.summary.time_mean_s.is_finite() && c.summary.time_mean_s > 0.0 => (
-            round_up_duration(3.0 * c.summary.time_mean_s),
-            format!(
-                "three times the mean time a molecule takes to reach an end ({}), rounded up; set it with --until",
-                crate::units::format_time(c.summary.time_mean_s)
-            ),
-        ),
-        (None, _) => (
-            3600.0,
-            "one hour, the default when the single-molecule chain does not apply; set it with --until".into(),
-        ),
+    let (until, until_reason, horizon) = match opts.until {
+        Some(t) => (t, "as asked (--until)".to_string(), None),
+        None => {
+            let target = opts
+                .target
+                .as_deref()
+                .map(|t| plan::target::parse(t, model))
+                .transpose()?;
+            let h = plan::horizon::automatic(model, target.as_ref())?;
+            let until = round_up_duration(h.time);
+            let reason = match h.ended {
+                plan::horizon::Ended::NothingConsumed => {
+                    format!("{}, so one hour by default; set it with --until", h.reason())
+                }
+                _ => format!(
+                    "from the kinetics: {}; rounded up to {}; set it with --until",
+                    h.reason(),
+                    crate::units::format_time(until)
+                ),
+            };
+            (until, reason, Some(h))
+        }
     };
     let mut integrations = 0;
     let (kinetics, log_time) = kinetics_once(model, until, &mut |o| {
@@ -356,6 +371,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
     Ok(Study {
         until,
         until_reason,
+        horizon,
         kinetics,
         log_time,
         integrations,

@@ -219,14 +219,16 @@ fn sections_follow_what_was_asked_and_what_applies() {
     assert!(page.contains("does not apply to this network"), "photoswitch chain");
     // It reaches its photostationary state in the first minute: the time axis turns logarithmic.
     assert!(page.contains("Time on a log scale"), "photoswitch time axis");
-    // The pool has one: its table, histogram and sensitivities are there, and the run length
-    // defaults to a multiple of the molecule's mean time.
+    // The pool has one: its table, histogram and sensitivities are there, with the chain's
+    // check against the kinetics; the run length comes from the kinetics (the stated
+    // conversion of the limiting reagent).
     let page = render("networks/prebiotic-pool.toml", &[], &scratch);
     for want in [
         "How a followed molecule ends",
         "Photon-count distribution",
         "Largest sensitivities",
-        "three times the mean time",
+        "% conversion of aldehyde is reached",
+        "id=\"chain-check\"",
     ] {
         assert!(page.contains(want), "pool: {want}");
     }

@@ -16,12 +16,13 @@
 //! Units: times in s, rates in s⁻¹; photon counts are per molecule followed.
 //! No file I/O, no printing.
 
+pub mod agreement;
 pub mod build;
 mod run;
 pub mod sensitivity;
 mod sparse;
 
-pub use run::{ChainOptions, ChainRun, run};
+pub use run::{ChainOptions, ChainRun, light_words, run};
 
 use crate::error::{Error, Result};
 use serde::Serialize;

@@ -51,6 +51,8 @@ pub struct ChainRun {
     pub start_note: String,
     /// Settings the chain was built with (concentrations filled in when `at` was given).
     pub settings: Settings,
+    /// The light the chain assumes, in words (for every place that prints its times).
+    pub light: String,
     /// The analysis.
     pub analysis: Analysis,
     /// Sensitivities of the yields (empty when not asked for).
@@ -64,6 +66,7 @@ pub fn run(model: &Model, net: &Network, opts: &ChainOptions) -> Result<ChainRun
         let tr = kinetics::simulate(model, &kinetics::Options::until(t), &mut |_| {})?;
         settings.concentrations = Some(tr.last()[..model.n_species()].to_vec());
     }
+    let light = light_words(&settings, opts.at);
     let values = Values::of(model, net);
     let chain = build::build(model, net, &settings, &values)?;
     let stuck = chain.stuck();
@@ -82,6 +85,7 @@ pub fn run(model: &Model, net: &Network, opts: &ChainOptions) -> Result<ChainRun
         start,
         start_note,
         settings,
+        light,
         analysis,
         sensitivities,
     })
@@ -106,4 +110,20 @@ fn no_end(net: &Network, stuck: &[&str]) -> Error {
         d = d.in_file(f);
     }
     Error::invalid(d)
+}
+
+/// The light the chain assumes, in words: the stirred cell's share at which concentrations
+/// (`at`: taken from the kinetics after that many s), or the optically thin limit.
+pub fn light_words(settings: &Settings, at: Option<f64>) -> String {
+    match (settings.light, at, &settings.concentrations) {
+        (build::Light::Thin, ..) => {
+            "optically thin limit over the irradiated area (no inner filter, no light shared)".into()
+        }
+        (build::Light::Stirred, Some(t), _) => format!(
+            "stirred cell, light shared at the concentrations the kinetics reach after {}",
+            crate::units::format_time(t)
+        ),
+        (build::Light::Stirred, None, Some(_)) => "stirred cell, light shared at the given concentrations".into(),
+        (build::Light::Stirred, None, None) => "stirred cell, light shared at the initial concentrations".into(),
+    }
 }

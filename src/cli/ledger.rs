@@ -88,9 +88,11 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
         ch,
         an,
         &run.start_note,
+        &run.light,
         &model.products,
         run.sensitivities.clone(),
-    );
+    )
+    .with_check(chain::agreement::check(&model, &net, &run, a.from.as_deref())?);
     let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
     let dir = a.out.clone().unwrap_or_else(|| {
         let stem = a

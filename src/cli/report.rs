@@ -18,8 +18,8 @@ use std::path::PathBuf;
 pub struct ReportArgs {
     #[command(flatten)]
     pub net: NetworkArgs,
-    /// How long to irradiate, e.g. "2 h" (default: three times the mean time a molecule takes to
-    /// reach an end, rounded up, or one hour when there is no end).
+    /// How long to irradiate, e.g. "2 h" (default: from the kinetics, until the --target or 99 %
+    /// conversion of the limiting reagent, or until nothing changes, capped at a year, rounded up).
     #[arg(long, value_name = "DURATION")]
     pub until: Option<String>,
     /// Add a plan for this target (as for `plan --target`), e.g. "product > 80 %": time to it,

@@ -11,6 +11,7 @@
 //! No file I/O, no printing: results are structs for `report::plan`.
 
 pub mod actinometry;
+pub mod horizon;
 pub mod sweep;
 pub mod target;
 

@@ -1,6 +1,7 @@
 //! What `ledger` writes: the summary (text and JSON), the photon-count distribution as CSV,
 //! and its histogram as SVG.
 
+use crate::chain::agreement::Agreement;
 use crate::chain::sensitivity::Sensitivity;
 use crate::chain::{Analysis, Chain, StateKind};
 use crate::report::csv_out::{CsvTable, sci};
@@ -65,6 +66,13 @@ pub struct Summary {
     pub photons_per_molecule: f64,
     /// Mean time to an end per molecule followed, s.
     pub time_mean_s: f64,
+    /// The light the chain's times assume, in words.
+    pub light: String,
+    /// The chain's mean time checked against the kinetics (None: not checked, see
+    /// `kinetics_check_skipped`).
+    pub kinetics_check: Option<Agreement>,
+    /// Why the check against the kinetics was not made, when it was not.
+    pub kinetics_check_skipped: Option<String>,
     /// Expected visits to every non-absorbing state.
     pub visits: Vec<Visit>,
     /// Expected returns per return channel, and photons that changed nothing.
@@ -82,12 +90,15 @@ pub struct Summary {
     pub sensitivities: Vec<Sensitivity>,
 }
 
-/// Build the summary; `products` says which absorbing states are products.
+/// Build the summary; `products` says which absorbing states are products, `light` the light
+/// the chain assumes (as [`crate::chain::light_words`] writes it); the check against the
+/// kinetics is added with [`Summary::with_check`].
 pub fn summary(
     network: &str,
     chain: &Chain,
     a: &Analysis,
     start: &str,
+    light: &str,
     products: &[usize],
     mut sens: Vec<Sensitivity>,
 ) -> Summary {
@@ -142,6 +153,9 @@ pub fn summary(
         ends,
         photons_per_molecule: a.photons_total,
         time_mean_s: a.time_total,
+        light: light.to_string(),
+        kinetics_check: None,
+        kinetics_check_skipped: Some("not made".into()),
         visits,
         returns,
         distribution_tail: a.distribution.as_ref().map(|d| d.tail),
@@ -153,6 +167,23 @@ pub fn summary(
             crate::chain::sensitivity::STEP
         ),
         sensitivities: sens,
+    }
+}
+
+impl Summary {
+    /// The summary with the chain's check against the kinetics ([`crate::chain::agreement::check`]).
+    pub fn with_check(mut self, check: std::result::Result<Agreement, String>) -> Summary {
+        match check {
+            Ok(a) => {
+                self.kinetics_check = Some(a);
+                self.kinetics_check_skipped = None;
+            }
+            Err(why) => {
+                self.kinetics_check = None;
+                self.kinetics_check_skipped = Some(why);
+            }
+        }
+        self
     }
 }
 
@@ -195,10 +226,26 @@ pub fn text(s: &Summary) -> String {
     }
     let _ = writeln!(
         o,
-        "  photons absorbed per molecule followed: {:.4}; mean time to an end: {}",
+        "  photons absorbed per molecule followed: {:.4}; mean time to an end: {} (light: {})",
         s.photons_per_molecule,
-        format_time(s.time_mean_s)
+        format_time(s.time_mean_s),
+        s.light
     );
+    match (&s.kinetics_check, &s.kinetics_check_skipped) {
+        (Some(a), _) => {
+            let _ = writeln!(o, "  {}", a.headline());
+            if !a.agree {
+                for r in &a.reasons {
+                    let _ = writeln!(o, "    why: {r}");
+                }
+            }
+            let _ = writeln!(o, "    (how: {})", a.method);
+        }
+        (None, Some(why)) => {
+            let _ = writeln!(o, "  kinetics check not made: {why}");
+        }
+        (None, None) => {}
+    }
     let _ = writeln!(o, "\n  cycles (expected per molecule followed)");
     for r in &s.returns {
         let _ = writeln!(o, "    {:>14.4}  {}", r.expected, r.channel);

@@ -11,6 +11,31 @@ use std::fmt::Write;
 /// How many sensitivities the report lists.
 pub const TOP_SENSITIVITIES: usize = 8;
 
+/// The chain's mean time against the kinetics: the verdict, and why they differ when they do.
+fn kinetics_check(sm: &crate::report::chain::Summary) -> String {
+    let Some(a) = &sm.kinetics_check else {
+        return sm.kinetics_check_skipped.as_ref().map_or_else(String::new, |why| {
+            format!(
+                "<p class=\"note\">The chain's mean time was not checked against the kinetics: {}.</p>\n",
+                esc(why)
+            )
+        });
+    };
+    let headline = esc(&upper_first(&a.headline()));
+    let mut s = if a.agree {
+        format!("<p id=\"chain-check\" class=\"note\">{headline}.</p>\n")
+    } else {
+        let mut d = format!("<div id=\"chain-check\" class=\"caution\"><p>{headline}. Why:</p>\n<ul>\n");
+        for r in &a.reasons {
+            let _ = writeln!(d, "<li>{}</li>", esc(r));
+        }
+        d.push_str("</ul></div>\n");
+        d
+    };
+    let _ = writeln!(s, "<p class=\"note\">How the check is made: {}.</p>", esc(&a.method));
+    s
+}
+
 /// The chain's results, or why the chain does not apply to this network.
 pub fn section(chain: &Result<ChainStudy, String>) -> String {
     let c = match chain {
@@ -27,12 +52,14 @@ pub fn section(chain: &Result<ChainStudy, String>) -> String {
     let sm = &c.summary;
     let mut s = format!(
         "<p>{}. The chain has {} states. A molecule absorbs on average {} photons before it ends; it takes {} \
-         under the light.</p>\n",
+         under the light (light assumed: {}).</p>\n",
         esc(&upper_first(&sm.start)),
         sm.states,
         esc(&sig(sm.photons_per_molecule, 4)),
-        esc(&format_time(sm.time_mean_s))
+        esc(&format_time(sm.time_mean_s)),
+        esc(&sm.light)
     );
+    s.push_str(&kinetics_check(sm));
     for n in &sm.notes {
         s.push_str(&page::assumption(n));
     }

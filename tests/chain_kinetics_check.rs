@@ -1,0 +1,186 @@
+//! The chain's mean time against the kinetics, and the report's horizon from the kinetics.
+//!
+//! A single photoreaction A → B in the optically thin limit has a closed form: every A
+//! molecule absorbs at σ E and reacts with Φ, so the mean time is 1/k with k = Φ σ E and the
+//! kinetics convert 1 − 1/e of A at t = 1/k (`common practice`). There the chain and the
+//! kinetics must agree and nothing may be flagged. The bundled prebiotic pool (invented) shares
+//! the light at the start, where its absorber is 0 M, and linearises its condensation at the
+//! initial 10 mM: the check must flag it and say why.
+
+use photoledger::chain::build::{Light, Settings};
+use photoledger::chain::{self, ChainOptions, agreement};
+use photoledger::file::parse_text;
+use photoledger::model::Model;
+use photoledger::network::{Network, Overrides, build as build_network};
+use photoledger::plan::Why;
+use photoledger::plan::horizon::{self, Ended};
+use photoledger::report::chain as chain_report;
+use photoledger::report::html::{self, Meta};
+use photoledger::study::{self, StudyOptions};
+use std::path::Path;
+
+fn network(text: &str) -> Network {
+    let l = parse_text(Path::new("test.toml"), text.to_string()).expect("parses");
+    build_network(&l, &Overrides::none()).expect("valid")
+}
+
+fn bundled(name: &str) -> Network {
+    let path = format!("{}/networks/{name}", env!("CARGO_MANIFEST_DIR"));
+    network(&std::fs::read_to_string(path).expect("bundled network"))
+}
+
+/// One A → B photoreaction, Φ = 0.5, ε = 1000 L mol⁻¹ cm⁻¹ at 365 nm, 1 nM of A (absorbance
+/// 1e-6: optically thin), 1 mW at 365 nm on 1 cm² over a 1 cm path (V = S l = 1 mL).
+const THIN: &str = r#"
+[conditions]
+temperature = "298.15 K"
+volume = "1 mL"
+path_length = "1 cm"
+irradiated_area = "1 cm2"
+[[light]]
+kind = "line"
+wavelength = "365 nm"
+power = "1 mW"
+[[species]]
+name = "A"
+initial = "1 nM"
+epsilon = { at = "365 nm", value = "1000 L/(mol cm)" }
+[[species]]
+name = "B"
+[[photo]]
+equation = "A -> B"
+quantum_yield = 0.5
+"#;
+
+/// k = Φ σ E: σ = 1000 ln(10) ε / N_A (ε in L mol⁻¹ cm⁻¹, σ in cm²), E = P λ / (h c S)
+/// photons cm⁻² s⁻¹ (`common practice`; CODATA 2018 exact h, c, N_A).
+fn thin_rate() -> f64 {
+    let (h, c, na) = (6.626_070_15e-34, 299_792_458.0, 6.022_140_76e23);
+    let sigma_cm2 = 1000.0 * std::f64::consts::LN_10 * 1000.0 / na;
+    let photons_per_cm2_s = 1e-3 * 365e-9 / (h * c) / 1.0;
+    0.5 * sigma_cm2 * photons_per_cm2_s
+}
+
+#[test]
+fn thin_single_step_chain_time_is_one_over_k_and_agrees_with_the_kinetics() {
+    let net = network(THIN);
+    let model = Model::compile(&net);
+    let opts = ChainOptions {
+        settings: Settings {
+            light: Light::Thin,
+            concentrations: None,
+        },
+        sensitivities: false,
+        ..ChainOptions::default()
+    };
+    let run = chain::run(&model, &net, &opts).expect("chain");
+    let k = thin_rate();
+    let tau = run.analysis.time_total;
+    assert!(
+        (tau * k - 1.0).abs() < 1e-9,
+        "chain mean time {tau} s, 1/k = {} s",
+        1.0 / k
+    );
+    let check = agreement::check(&model, &net, &run, None)
+        .expect("runs")
+        .expect("applies");
+    // The kinetics use the cell's absorbance, g(A) → ln 10 at A = 1e-6: 1/k within 1e-5.
+    let t = check.kinetics_time_s.expect("reached");
+    assert!((t * k - 1.0).abs() < 1e-5, "kinetics {t} s, 1/k = {} s", 1.0 / k);
+    assert!(check.agree && check.reasons.is_empty(), "{check:?}");
+    let summary = chain_report::summary(
+        "thin",
+        &run.chain,
+        &run.analysis,
+        &run.start_note,
+        &run.light,
+        &model.products,
+        Vec::new(),
+    )
+    .with_check(Ok(check));
+    let text = chain_report::text(&summary);
+    assert!(text.contains("(light: optically thin limit"), "{text}");
+    assert!(text.contains("they agree"), "{text}");
+    assert!(!text.contains("DISAGREE") && !text.contains("why:"), "{text}");
+}
+
+#[test]
+fn prebiotic_pool_chain_time_is_flagged_with_its_reasons() {
+    let net = bundled("prebiotic-pool.toml");
+    let model = Model::compile(&net);
+    let run = chain::run(&model, &net, &ChainOptions::default()).expect("chain");
+    let check = agreement::check(&model, &net, &run, None)
+        .expect("runs")
+        .expect("applies");
+    assert!(!check.agree, "{check:?}");
+    assert!(check.ratio.expect("reached") > 10.0, "{check:?}");
+    let all = check.reasons.join("\n");
+    assert!(all.contains("adduct") && all.contains("inner filter"), "{all}");
+    assert!(all.contains("\"condensation\" is linearised"), "{all}");
+    let summary = chain_report::summary(
+        &net.about.name,
+        &run.chain,
+        &run.analysis,
+        &run.start_note,
+        &run.light,
+        &model.products,
+        Vec::new(),
+    )
+    .with_check(Ok(check));
+    let text = chain_report::text(&summary);
+    assert!(
+        text.contains("mean time to an end: 2.89 h (light: stirred cell, light shared at the initial concentrations)"),
+        "{text}"
+    );
+    assert!(text.contains("DISAGREE") && text.contains("why: light:"), "{text}");
+    let json = serde_json::to_value(&summary).expect("json");
+    assert_eq!(json["kinetics_check"]["agree"], false);
+    assert!(json["light"].as_str().unwrap().starts_with("stirred cell"));
+}
+
+#[test]
+fn prebiotic_pool_report_covers_the_chemistry_and_says_why_it_ends() {
+    let net = bundled("prebiotic-pool.toml");
+    let model = Model::compile(&net);
+    let s = study::run(&net, &model, &StudyOptions::default()).expect("study");
+    let h = s.horizon.as_ref().expect("automatic horizon");
+    assert!(matches!(h.ended, Ended::Reached(_)), "{:?}", h.ended);
+    let conv = format!(
+        "{} % conversion of aldehyde is reached",
+        photoledger::units::sig(100.0 * horizon::DEFAULT_CONVERSION, 3)
+    );
+    assert!(s.until_reason.contains(&conv), "{}", s.until_reason);
+    let last = s.kinetics.last();
+    let (ald, prod) = (
+        model.species_index("aldehyde").unwrap(),
+        model.species_index("product").unwrap(),
+    );
+    // The stated conversion is reached, and with it most of the product (10 mM at 1:1).
+    assert!(last[ald] <= (1.0 - horizon::DEFAULT_CONVERSION) * 10e-3 * (1.0 + 1e-6));
+    assert!(last[prod] >= 0.5 * 10e-3, "product {} M at {} s", last[prod], s.until);
+    // The report says it, and shows the chain's disagreement with the kinetics.
+    let meta = Meta {
+        command_line: "photoledger report prebiotic-pool.toml".into(),
+        date: "2026-12-02 00:00 UTC".into(),
+    };
+    let page = html::render(&net, &model, &s, &meta);
+    assert!(page.contains(&conv), "horizon reason in the page");
+    assert!(page.contains("<div id=\"chain-check\" class=\"caution\">"));
+    assert!(page.contains("light assumed: stirred cell, light shared at the initial concentrations"));
+}
+
+#[test]
+fn a_photostationary_switch_ends_when_nothing_changes() {
+    let net = bundled("photoswitch.toml");
+    let model = Model::compile(&net);
+    let h = horizon::automatic(&model, None).expect("horizon");
+    assert!(
+        matches!(h.ended, Ended::Steady(Why::Photostationary, _)),
+        "{:?}",
+        h.ended
+    );
+    assert!(h.reason().contains("nothing changes any more"), "{}", h.reason());
+    // The report's run then ends at a round time at least that long.
+    let s = study::run(&net, &model, &StudyOptions::default()).expect("study");
+    assert!(s.until >= h.time && s.until <= 2.5 * h.time);
+}
