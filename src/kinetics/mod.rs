@@ -197,6 +197,9 @@ pub struct Trajectory {
     pub negatives: Vec<Negative>,
     /// The light schedule the run followed (None: light on throughout).
     pub schedule: Option<Schedule>,
+    /// The absolute tolerance the run was integrated to, mol/L: concentrations within it of
+    /// zero are round-off (`units::display::ZeroWithin`).
+    pub atol: f64,
 }
 
 impl Trajectory {
@@ -208,6 +211,11 @@ impl Trajectory {
     /// Time the light was on between 0 and `t`, s.
     pub fn lit_time(&self, t: f64) -> f64 {
         self.schedule.map_or(t, |s| s.lit_time(t))
+    }
+
+    /// The round-off limit of the run's concentrations: its absolute tolerance.
+    pub fn zero_within(&self) -> crate::units::display::ZeroWithin {
+        crate::units::display::ZeroWithin(self.atol)
     }
 
     /// Concentration of species `i` at each output time.
@@ -471,6 +479,7 @@ pub fn simulate_from(
         stop: run.stop,
         negatives,
         schedule: opts.schedule,
+        atol: opts.atol,
     })
 }
 
