@@ -25,7 +25,12 @@ fn an_intermediate_formed_during_the_run_gets_a_rate_and_a_time() {
     let window = 3600.0;
     // Without a run the oxidation of the dihydro intermediate (0 M at the start) has no rate.
     let alone = barrier::network_verdicts(&net, window, 0.5, None).unwrap();
-    let ox = |rows: &[barrier::Verdict]| rows.iter().find(|r| r.name.starts_with("oxidation by iodine")).cloned().unwrap();
+    let ox = |rows: &[barrier::Verdict]| {
+        rows.iter()
+            .find(|r| r.name.starts_with("oxidation by iodine"))
+            .cloned()
+            .unwrap()
+    };
     assert_eq!(ox(&alone).outcome(), Outcome::Undetermined);
 
     let tr = run(&net, window);
@@ -39,8 +44,16 @@ fn an_intermediate_formed_during_the_run_gets_a_rate_and_a_time() {
         net.species.iter().position(|s| s.name == "I2").unwrap(),
     );
     let k = 8.0; // the file's 8 /(M s)
-    let largest = tr.states.iter().map(|y| k * y[d].max(0.0) * y[i2].max(0.0)).fold(0.0, f64::max);
-    assert!((at.step_rate - largest).abs() <= 1e-12 * largest, "{} vs {largest}", at.step_rate);
+    let largest = tr
+        .states
+        .iter()
+        .map(|y| k * y[d].max(0.0) * y[i2].max(0.0))
+        .fold(0.0, f64::max);
+    assert!(
+        (at.step_rate - largest).abs() <= 1e-12 * largest,
+        "{} vs {largest}",
+        at.step_rate
+    );
     // Followed per dihydro (the limiting reactant there), the loss rate per molecule is the
     // pseudo-first-order k [I2] (mass action, IUPAC rate convention: `common practice`).
     let c_i2 = at.concentrations.iter().find(|(n, _)| n == "I2").unwrap().1;
@@ -50,7 +63,10 @@ fn an_intermediate_formed_during_the_run_gets_a_rate_and_a_time() {
     assert!(v.half_life > 4.0 && v.half_life < 10.0, "{}", v.half_life);
     assert_eq!(v.outcome(), Outcome::Crosses);
     let w = v.words();
-    assert!(w.contains("judged where it runs fastest") && w.contains("dihydro") && w.contains("I2"), "{w}");
+    assert!(
+        w.contains("judged where it runs fastest") && w.contains("dihydro") && w.contains("I2"),
+        "{w}"
+    );
     // Every step of the bundled network now has a verdict.
     assert!(rows.iter().all(|r| r.outcome() != Outcome::Undetermined));
 }
@@ -84,7 +100,11 @@ rate = { k = "2 /(M s)" }
     let v = &barrier::network_verdicts(&net, 60.0, 0.5, Some(&tr)).unwrap()[0];
     assert_eq!(v.outcome(), Outcome::Undetermined);
     assert!(v.judged_at.is_none());
-    assert!(v.words().contains("stays within the tolerance of zero"), "{}", v.words());
+    assert!(
+        v.words().contains("stays within the tolerance of zero"),
+        "{}",
+        v.words()
+    );
 }
 
 #[test]
@@ -97,9 +117,18 @@ fn the_command_judges_intermediates_and_prints_factors_plainly() {
     assert!(out.status.success(), "{text}");
     assert!(!text.contains("no rate at the start"), "{text}");
     let ox = text.lines().find(|l| l.starts_with("oxidation by iodine")).unwrap();
-    assert!(ox.contains("too slow by a factor ") && ox.contains("judged where it runs fastest"), "{ox}");
+    assert!(
+        ox.contains("too slow by a factor ") && ox.contains("judged where it runs fastest"),
+        "{ox}"
+    );
     // "too slow by a factor 4.869", never "4.869e0"
-    let factor = ox.split("too slow by a factor ").nth(1).unwrap().split(';').next().unwrap();
+    let factor = ox
+        .split("too slow by a factor ")
+        .nth(1)
+        .unwrap()
+        .split(';')
+        .next()
+        .unwrap();
     assert!(!factor.contains('e') && factor.parse::<f64>().is_ok(), "{factor}");
     let ring = text.lines().find(|l| l.starts_with("dark ring opening")).unwrap();
     assert!(ring.ends_with("too slow by a factor 1211"), "{ring}");

@@ -324,7 +324,12 @@ fn adaptive_simpson(f: &dyn Fn(f64) -> f64, a: f64, b: f64, rel: f64, depth: u32
 /// index, that rate, the cleaned concentrations there). `None` when it is zero throughout.
 fn fastest(run: &Trajectory, n_species: usize, rate: &dyn Fn(&[f64]) -> f64) -> Option<(usize, f64, Vec<f64>)> {
     let z = run.zero_within();
-    let clean = |y: &[f64]| -> Vec<f64> { y[..n_species.min(y.len())].iter().map(|&v| z.shown(v).max(0.0)).collect() };
+    let clean = |y: &[f64]| -> Vec<f64> {
+        y[..n_species.min(y.len())]
+            .iter()
+            .map(|&v| z.shown(v).max(0.0))
+            .collect()
+    };
     let mut best: Option<(usize, f64)> = None;
     for (i, y) in run.states.iter().enumerate() {
         let r = rate(&clean(y));
@@ -351,7 +356,12 @@ fn fastest(run: &Trajectory, n_species: usize, rate: &dyn Fn(&[f64]) -> f64) -> 
 /// k Π cⱼ^νⱼ is largest ([`Verdict::judged_at`]), taken alone from there as above; without
 /// `run`, or when the rate stays zero (within the run's absolute tolerance) throughout, it is
 /// left undetermined.
-pub fn network_verdicts(net: &Network, window: f64, probability: f64, run: Option<&Trajectory>) -> Result<Vec<Verdict>> {
+pub fn network_verdicts(
+    net: &Network,
+    window: f64,
+    probability: f64,
+    run: Option<&Trajectory>,
+) -> Result<Vec<Verdict>> {
     check_probability(probability)?;
     if !(window.is_finite() && window > 0.0) {
         return Err(Error::Usage(format!("window: {window} s must be a positive duration")));
@@ -388,7 +398,11 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64, run: Optio
             out.push(first_order(name, StepKind::Thermal(s.order), &s.rate, s.order, s.k));
             continue;
         }
-        let step_rate = |c: &[f64]| s.reactants.iter().fold(s.k, |r, x| r * c[x.species].powf(x.coefficient));
+        let step_rate = |c: &[f64]| {
+            s.reactants
+                .iter()
+                .fold(s.k, |r, x| r * c[x.species].powf(x.coefficient))
+        };
         let mut conc = start.clone();
         let mut judged_at = None;
         let zero_start = step_rate(&start) <= 0.0;
@@ -690,7 +704,7 @@ mod tests {
         let rows = [v(0.5, 1.0), v(2.0, 1.0), v(f64::INFINITY, 0.0)];
         assert_eq!(
             tally(&rows),
-            "1 of 3 crosses within the window; 1 does not; 1 has no rate at the start."
+            "1 of 3 crosses within the window; 1 does not; 1 has no rate (a reactant stays at zero)."
         );
         assert_eq!(tally(&rows[..1]), "1 of 1 crosses within the window; 0 do not.");
     }

@@ -110,7 +110,9 @@ pub fn text(s: &Summary) -> String {
         for (q, v) in &x.quantiles {
             let cell = match v {
                 Some(v) => opt(Some(z.shown(*v) / per)),
-                None if x.beyond_horizon.contains(q) => format!("> {}", sig(x.column.censored_above.unwrap_or(0.0) / per, 4)),
+                None if x.beyond_horizon.contains(q) => {
+                    format!("> {}", sig(x.column.censored_above.unwrap_or(0.0) / per, 4))
+                }
                 None => "-".into(),
             };
             let _ = write!(o, " {cell:>11}");
@@ -129,7 +131,10 @@ pub fn text(s: &Summary) -> String {
             x.column.name, x.censored
         );
     }
-    if s.outputs.iter().any(|x| x.column.zero_within.is_some() || x.column.zero_within_relative.is_some()) {
+    if s.outputs
+        .iter()
+        .any(|x| x.column.zero_within.is_some() || x.column.zero_within_relative.is_some())
+    {
         let atol = s.outputs.iter().find_map(|x| x.column.zero_within);
         let _ = writeln!(
             o,

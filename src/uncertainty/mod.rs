@@ -685,17 +685,17 @@ pub fn summarise(r: &Record) -> Summary {
                 .iter()
                 .map(|s| s.outputs[j].or(horizon).unwrap_or(f64::NAN))
                 .collect();
-            let mut v: Vec<f64> = ok.iter().filter_map(|s| s.outputs[j]).filter(|x| x.is_finite()).collect();
+            let mut v: Vec<f64> = ok
+                .iter()
+                .filter_map(|s| s.outputs[j])
+                .filter(|x| x.is_finite())
+                .collect();
             let censored = if horizon.is_some() {
                 ok.iter().filter(|s| s.outputs[j].is_none()).count()
             } else {
                 0
             };
-            let (mean, sd) = if censored > 0 {
-                (None, None)
-            } else {
-                stats::mean_sd(&v)
-            };
+            let (mean, sd) = if censored > 0 { (None, None) } else { stats::mean_sd(&v) };
             v.sort_by(f64::total_cmp);
             let quantiles: Vec<(f64, Option<stats::Censored>)> = QUANTILES
                 .iter()

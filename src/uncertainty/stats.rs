@@ -42,7 +42,9 @@ pub fn quantile_censored(sorted: &[f64], censored: usize, p: f64) -> Option<Cens
     let hi = if h > lo as f64 { (lo + 1).min(n - 1) } else { lo };
     if hi < seen {
         let hi = (lo + 1).min(seen - 1);
-        Some(Censored::Value(sorted[lo] + (h - lo as f64) * (sorted[hi] - sorted[lo])))
+        Some(Censored::Value(
+            sorted[lo] + (h - lo as f64) * (sorted[hi] - sorted[lo]),
+        ))
     } else {
         Some(Censored::Beyond)
     }
