@@ -362,7 +362,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
         Some(window) => Some(BarrierStudy {
             window,
             probability: BARRIER_PROBABILITY,
-            rows: barrier::network_verdicts(net, window, BARRIER_PROBABILITY)?,
+            rows: barrier::network_verdicts(net, window, BARRIER_PROBABILITY, Some(&kinetics))?,
             hot: barrier::hot_verdicts(net),
         }),
         None => None,

@@ -645,7 +645,7 @@ equation = "A + cat -> B + cat"
 rate = { k = "2 /(M s)" }
 "#;
     let net = net_in(&scratch("cat"), text).unwrap();
-    let v = photoledger::barrier::network_verdicts(&net, 3600.0, 0.5).unwrap();
+    let v = photoledger::barrier::network_verdicts(&net, 3600.0, 0.5, None).unwrap();
     assert!(v[0].name.contains("[per A]"), "{}", v[0].name);
     let want = std::f64::consts::LN_2 / (2.0 * 1e-3);
     assert!(

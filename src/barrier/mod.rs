@@ -16,12 +16,14 @@
 //! * [`k_table`]: k(E), ρ(E) and W(E) over an energy range.
 
 use crate::error::{Error, Result};
+use crate::kinetics::Trajectory;
 use crate::network::{Branching, Network};
 use crate::rates::hot::hot_yields;
 use crate::rates::partition::Modes;
 use crate::rates::rrkm::Rrkm;
 use crate::rates::{RateLaw, eyring};
 use crate::units::constants::{BOLTZMANN, GAS_CONSTANT, PLANCK};
+use crate::units::display;
 
 fn check_probability(p: f64) -> Result<()> {
     if p.is_finite() && p > 0.0 && p < 1.0 {
@@ -173,6 +175,24 @@ pub struct Verdict {
     pub time_needed: f64,
     /// time_needed / window: ≤ 1 crosses within the window.
     pub factor: f64,
+    /// Set when a reactant (or the quencher) starts at 0 M and the step was judged instead at
+    /// the concentrations a kinetics run reaches, where the step runs fastest.
+    pub judged_at: Option<JudgedAt>,
+    /// End of the kinetics run looked at, s, when one was (for a step whose reactant starts at
+    /// 0 M); `None` when none was given.
+    pub run_until: Option<f64>,
+}
+
+/// Where a step whose reactant starts at 0 M was judged: the output time of the kinetics run at
+/// which its rate k Π cⱼ^νⱼ (quenching: k₂ [quencher]) is largest.
+#[derive(Debug, Clone, PartialEq)]
+pub struct JudgedAt {
+    /// Time, s.
+    pub time: f64,
+    /// The reactants' (or the quencher's) concentrations there: (name, mol/L).
+    pub concentrations: Vec<(String, f64)>,
+    /// The rate of the step there, mol L⁻¹ s⁻¹ (quenching: per excited molecule, s⁻¹).
+    pub step_rate: f64,
 }
 
 /// How a verdict reads, for counting.
@@ -182,7 +202,8 @@ pub enum Outcome {
     Crosses,
     /// Needs longer than the window.
     TooSlow,
-    /// No rate at the start: a reactant or the quencher starts at zero.
+    /// No rate: a reactant or the quencher starts at zero and no kinetics run was given, or it
+    /// stays within the run's absolute tolerance of zero throughout the run.
     Undetermined,
 }
 
@@ -203,13 +224,34 @@ impl Verdict {
         }
     }
 
-    /// "crosses within the window" or "too slow by a factor N".
+    /// "crosses within the window" or "too slow by a factor 2.019", with where the step was
+    /// judged when a reactant starts at 0 M.
     pub fn words(&self) -> String {
-        match self.outcome() {
-            Outcome::Crosses => "crosses within the window".into(),
-            Outcome::Undetermined => "no rate at the start (a reactant starts at zero)".into(),
-            Outcome::TooSlow => format!("too slow by a factor {:.3e}", self.factor),
+        let mut w = match self.outcome() {
+            Outcome::Crosses => "crosses within the window".to_string(),
+            Outcome::Undetermined => match self.run_until {
+                Some(t) => format!(
+                    "no rate: a reactant stays within the tolerance of zero over the whole run ({})",
+                    crate::units::format_time(t)
+                ),
+                None => "no rate at the start (a reactant starts at zero)".into(),
+            },
+            Outcome::TooSlow => format!("too slow by a factor {}", display::number(self.factor)),
+        };
+        if let Some(j) = &self.judged_at {
+            let at: Vec<String> = j
+                .concentrations
+                .iter()
+                .map(|(n, c)| format!("{n} {}", crate::units::format_concentration(*c)))
+                .collect();
+            w.push_str(&format!(
+                "; judged where it runs fastest in the kinetics run to {}: at {} ({})",
+                crate::units::format_time(self.run_until.unwrap_or(j.time)),
+                crate::units::format_time(j.time),
+                at.join(", ")
+            ));
         }
+        w
     }
 }
 
@@ -229,7 +271,10 @@ pub fn tally(rows: &[Verdict]) -> String {
         verb(no, "does not", "do not")
     );
     if open > 0 {
-        s.push_str(&format!("; {open} {} no rate at the start", verb(open, "has", "have")));
+        s.push_str(&format!(
+            "; {open} {} no rate (a reactant stays at zero)",
+            verb(open, "has", "have")
+        ));
     }
     s.push('.');
     s
@@ -274,6 +319,27 @@ fn adaptive_simpson(f: &dyn Fn(f64) -> f64, a: f64, b: f64, rel: f64, depth: u32
     go(f, a, b, fa, fm, fb, whole, rel * whole.abs(), depth)
 }
 
+/// The largest of `rate(state)` over the output states of `run`, with the concentrations
+/// cleaned of round-off (values within the run's absolute tolerance of zero read 0): (output
+/// index, that rate, the cleaned concentrations there). `None` when it is zero throughout.
+fn fastest(run: &Trajectory, n_species: usize, rate: &dyn Fn(&[f64]) -> f64) -> Option<(usize, f64, Vec<f64>)> {
+    let z = run.zero_within();
+    let clean = |y: &[f64]| -> Vec<f64> {
+        y[..n_species.min(y.len())]
+            .iter()
+            .map(|&v| z.shown(v).max(0.0))
+            .collect()
+    };
+    let mut best: Option<(usize, f64)> = None;
+    for (i, y) in run.states.iter().enumerate() {
+        let r = rate(&clean(y));
+        if r.is_finite() && r > 0.0 && best.is_none_or(|(_, b)| r > b) {
+            best = Some((i, r));
+        }
+    }
+    best.map(|(i, r)| (i, r, clean(&run.states[i])))
+}
+
 /// A verdict for every thermal step and every rate or quenching channel of `net`, at the
 /// network temperature, for crossing with probability `probability` within `window` s.
 /// Channels with a fixed fraction or the rest carry no rate and are left out.
@@ -283,7 +349,19 @@ fn adaptive_simpson(f: &dyn Fn(f64) -> f64, a: f64, b: f64, rel: f64, depth: u32
 /// (first order: 1 − exp(−k t); A + B and 2 A: the second-order laws), not a pseudo-first-order
 /// rate, which holds only with the partner in large excess. Quenching is pseudo-first-order in
 /// the quencher, which is not consumed.
-pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<Vec<Verdict>> {
+///
+/// A step with a reactant (or a quencher) at 0 M at the start has no rate there. With `run`, a
+/// kinetics run of the network (species first in each state, as [`Trajectory`] holds them),
+/// such a step is judged instead from the concentrations at the output time where its rate
+/// k Π cⱼ^νⱼ is largest ([`Verdict::judged_at`]), taken alone from there as above; without
+/// `run`, or when the rate stays zero (within the run's absolute tolerance) throughout, it is
+/// left undetermined.
+pub fn network_verdicts(
+    net: &Network,
+    window: f64,
+    probability: f64,
+    run: Option<&Trajectory>,
+) -> Result<Vec<Verdict>> {
     check_probability(probability)?;
     if !(window.is_finite() && window > 0.0) {
         return Err(Error::Usage(format!("window: {window} s must be a positive duration")));
@@ -291,6 +369,8 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
     let t = net.conditions.temperature;
     let need = -(-probability).ln_1p();
     let given = |law: &RateLaw| !matches!(law, RateLaw::Constant(_));
+    let n_species = net.species.len();
+    let run_until = run.and_then(|r| r.times.last().copied());
     let first_order = |name: String, kind: StepKind, law: &RateLaw, order: u32, rate: f64| {
         let (half_life, time_needed) = if rate > 0.0 {
             (std::f64::consts::LN_2 / rate, need / rate)
@@ -306,63 +386,48 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
             half_life,
             time_needed,
             factor: time_needed / window,
+            judged_at: None,
+            run_until: None,
         }
     };
+    let start: Vec<f64> = net.species.iter().map(|x| x.initial).collect();
     let mut out = Vec::new();
     for s in &net.thermal {
-        // (c⁰, order, net consumption): a species on both sides (a catalyst) is not used up
-        let terms: Vec<(f64, f64, f64)> = s
-            .reactants
-            .iter()
-            .map(|r| {
-                let made: f64 = s
-                    .products
-                    .iter()
-                    .filter(|x| x.species == r.species)
-                    .map(|x| x.coefficient)
-                    .sum();
-                (net.species[r.species].initial, r.coefficient, r.coefficient - made)
-            })
-            .collect();
-        // follow the limiting reactant among those consumed (smallest c⁰/n; the first on ties)
-        let followed = (0..terms.len())
-            .filter(|&a| terms[a].2 > 0.0)
-            .min_by(|&a, &b| (terms[a].0 / terms[a].2).total_cmp(&(terms[b].0 / terms[b].2)));
-        let consumed = followed.is_some();
-        let followed = followed.unwrap_or(0);
-        let mut name = format!("{} ({} -> {})", s.name, net.side(&s.reactants), net.side(&s.products));
-        if s.order > 1
-            && let Some(f) = s.reactants.get(followed)
-        {
-            name.push_str(&format!(" [per {}]", net.species[f.species].name));
-        }
-        if s.order <= 1 || terms.is_empty() {
+        let name = format!("{} ({} -> {})", s.name, net.side(&s.reactants), net.side(&s.products));
+        if s.order <= 1 || s.reactants.is_empty() {
             out.push(first_order(name, StepKind::Thermal(s.order), &s.rate, s.order, s.k));
             continue;
         }
-        let (c_f, _, n_f) = terms[followed];
-        let mut rate = if c_f > 0.0 && consumed { s.k * n_f / c_f } else { 0.0 };
-        for &(c, nu, _) in &terms {
-            rate *= c.powf(nu);
-        }
-        let (half_life, time_needed) = if rate > 0.0 && rate.is_finite() {
-            (
-                isolated_step_time(s.k, &terms, followed, 0.5),
-                isolated_step_time(s.k, &terms, followed, probability),
-            )
-        } else {
-            (f64::INFINITY, f64::INFINITY)
+        let step_rate = |c: &[f64]| {
+            s.reactants
+                .iter()
+                .fold(s.k, |r, x| r * c[x.species].powf(x.coefficient))
         };
-        out.push(Verdict {
-            name,
-            kind: StepKind::Thermal(s.order),
-            barrier: s.rate.barrier(t, s.order),
-            barrier_given: given(&s.rate),
-            rate,
-            half_life,
-            time_needed,
-            factor: time_needed / window,
-        });
+        let mut conc = start.clone();
+        let mut judged_at = None;
+        let zero_start = step_rate(&start) <= 0.0;
+        if zero_start
+            && let Some(tr) = run
+            && let Some((i, r, c)) = fastest(tr, n_species, &step_rate)
+        {
+            let mut at: Vec<(String, f64)> = Vec::new();
+            for x in &s.reactants {
+                let n = &net.species[x.species].name;
+                if !at.iter().any(|(m, _)| m == n) {
+                    at.push((n.clone(), c[x.species]));
+                }
+            }
+            judged_at = Some(JudgedAt {
+                time: tr.times[i],
+                concentrations: at,
+                step_rate: r,
+            });
+            conc = c;
+        }
+        let mut v = thermal_verdict(net, s, &conc, name, probability, window);
+        v.judged_at = judged_at;
+        v.run_until = if zero_start { run_until } else { None };
+        out.push(v);
     }
     for (ti, tr) in net.transients.iter().enumerate() {
         for (ci, c) in tr.channels.iter().enumerate() {
@@ -370,15 +435,92 @@ pub fn network_verdicts(net: &Network, window: f64, probability: f64) -> Result<
             match &c.branching {
                 Branching::Rate { law, k } => out.push(first_order(name, StepKind::Channel, law, 1, *k)),
                 Branching::Quenching { partner, law, k2 } => {
-                    let rate = k2 * net.species[*partner].initial;
-                    let name = format!("{name} [quenched by {}]", net.species[*partner].name);
-                    out.push(first_order(name, StepKind::Quenching, law, 2, rate));
+                    let q = &net.species[*partner].name;
+                    let name = format!("{name} [quenched by {q}]");
+                    let mut rate = k2 * start[*partner];
+                    let mut judged_at = None;
+                    let zero_start = rate <= 0.0;
+                    if zero_start
+                        && let Some(tr) = run
+                        && let Some((i, r, c)) = fastest(tr, n_species, &|c: &[f64]| k2 * c[*partner])
+                    {
+                        rate = r;
+                        judged_at = Some(JudgedAt {
+                            time: tr.times[i],
+                            concentrations: vec![(q.clone(), c[*partner])],
+                            step_rate: r,
+                        });
+                    }
+                    let mut v = first_order(name, StepKind::Quenching, law, 2, rate);
+                    v.judged_at = judged_at;
+                    v.run_until = if zero_start { run_until } else { None };
+                    out.push(v);
                 }
                 Branching::Fraction(_) | Branching::Rest | Branching::Hot { .. } => {}
             }
         }
     }
     Ok(out)
+}
+
+/// The verdict on thermal step `s` (order 2 or more) taken alone from concentrations `conc`
+/// (mol/L, by species), following its limiting reactant by its integrated rate law.
+fn thermal_verdict(
+    net: &Network,
+    s: &crate::network::ThermalStep,
+    conc: &[f64],
+    mut name: String,
+    probability: f64,
+    window: f64,
+) -> Verdict {
+    // (c, order, net consumption): a species on both sides (a catalyst) is not used up
+    let terms: Vec<(f64, f64, f64)> = s
+        .reactants
+        .iter()
+        .map(|r| {
+            let made: f64 = s
+                .products
+                .iter()
+                .filter(|x| x.species == r.species)
+                .map(|x| x.coefficient)
+                .sum();
+            (conc[r.species], r.coefficient, r.coefficient - made)
+        })
+        .collect();
+    // follow the limiting reactant among those consumed (smallest c/n; the first on ties)
+    let followed = (0..terms.len())
+        .filter(|&a| terms[a].2 > 0.0)
+        .min_by(|&a, &b| (terms[a].0 / terms[a].2).total_cmp(&(terms[b].0 / terms[b].2)));
+    let consumed = followed.is_some();
+    let followed = followed.unwrap_or(0);
+    if let Some(f) = s.reactants.get(followed) {
+        name.push_str(&format!(" [per {}]", net.species[f.species].name));
+    }
+    let (c_f, _, n_f) = terms[followed];
+    let mut rate = if c_f > 0.0 && consumed { s.k * n_f / c_f } else { 0.0 };
+    for &(c, nu, _) in &terms {
+        rate *= c.powf(nu);
+    }
+    let (half_life, time_needed) = if rate > 0.0 && rate.is_finite() {
+        (
+            isolated_step_time(s.k, &terms, followed, 0.5),
+            isolated_step_time(s.k, &terms, followed, probability),
+        )
+    } else {
+        (f64::INFINITY, f64::INFINITY)
+    };
+    Verdict {
+        name,
+        kind: StepKind::Thermal(s.order),
+        barrier: s.rate.barrier(net.conditions.temperature, s.order),
+        barrier_given: !matches!(s.rate, RateLaw::Constant(_)),
+        rate,
+        half_life,
+        time_needed,
+        factor: time_needed / window,
+        judged_at: None,
+        run_until: None,
+    }
 }
 
 /// One channel of a hot ground state, from [`hot_verdicts`]. A hot molecule reacts or cools
@@ -556,11 +698,13 @@ mod tests {
             half_life: 1.0,
             time_needed: factor,
             factor,
+            judged_at: None,
+            run_until: None,
         };
         let rows = [v(0.5, 1.0), v(2.0, 1.0), v(f64::INFINITY, 0.0)];
         assert_eq!(
             tally(&rows),
-            "1 of 3 crosses within the window; 1 does not; 1 has no rate at the start."
+            "1 of 3 crosses within the window; 1 does not; 1 has no rate (a reactant stays at zero)."
         );
         assert_eq!(tally(&rows[..1]), "1 of 1 crosses within the window; 0 do not.");
     }

@@ -5,6 +5,7 @@ use super::output::{noteln, out, outln};
 use photoledger::Error;
 use photoledger::barrier::{self, HotLimit};
 use photoledger::file::frequencies;
+use photoledger::kinetics;
 use photoledger::rates::hot::{HotReaction, rrkm_yields};
 use photoledger::rates::{rrkm::Rrkm, wigner::wigner};
 use photoledger::report::{barrier as report, write_atomic};
@@ -343,7 +344,31 @@ fn network(a: &BarrierArgs, file: &std::path::Path, p: f64) -> photoledger::Resu
     };
     let net = super::load(&args)?;
     super::print_warnings(&net);
-    let rows = barrier::network_verdicts(&net, window, p)?;
+    let mut rows = barrier::network_verdicts(&net, window, p, None)?;
+    if rows.iter().any(|r| r.outcome() == barrier::Outcome::Undetermined) {
+        // A reactant starts at 0 M: run the kinetics over the window (linear and logarithmic
+        // output grids together, so both early and late peaks are seen) and judge those steps
+        // at the concentrations reached.
+        let model = photoledger::model::Model::compile(&net);
+        let linear = kinetics::Options::until(window);
+        let log = kinetics::Options {
+            log_time: true,
+            ..linear.clone()
+        };
+        let opts = kinetics::Options {
+            times: kinetics::output_times(&linear, 0.0)
+                .into_iter()
+                .chain(kinetics::output_times(&log, 0.0))
+                .collect(),
+            ..linear
+        };
+        match kinetics::simulate(&model, &opts, &mut |_| {}) {
+            Ok(tr) => rows = barrier::network_verdicts(&net, window, p, Some(&tr))?,
+            Err(e) => noteln!(
+                "warning: the kinetics over the window failed ({e}); steps whose reactants start at 0 M are left undetermined"
+            ),
+        }
+    }
     out!(
         "{}",
         report::verdicts_text(&rows, window, p, net.conditions.temperature)

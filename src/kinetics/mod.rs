@@ -197,6 +197,9 @@ pub struct Trajectory {
     pub negatives: Vec<Negative>,
     /// The light schedule the run followed (None: light on throughout).
     pub schedule: Option<Schedule>,
+    /// The absolute tolerance the run was integrated to, mol/L: concentrations within it of
+    /// zero are round-off (`units::display::ZeroWithin`).
+    pub atol: f64,
 }
 
 impl Trajectory {
@@ -215,6 +218,11 @@ impl Trajectory {
     pub fn ledger(&self, model: &Model, k: usize) -> ledger::Ledger {
         let t = self.times[k];
         ledger::read_lit(model, &self.layout, t, self.lit_time(t), &self.states[k])
+    }
+
+    /// The round-off limit of the run's concentrations: its absolute tolerance.
+    pub fn zero_within(&self) -> crate::units::display::ZeroWithin {
+        crate::units::display::ZeroWithin(self.atol)
     }
 
     /// Concentration of species `i` at each output time.
@@ -478,6 +486,7 @@ pub fn simulate_from(
         stop: run.stop,
         negatives,
         schedule: opts.schedule,
+        atol: opts.atol,
     })
 }
 

@@ -64,8 +64,10 @@ pub fn verdicts_text(rows: &[Verdict], window: f64, probability: f64, temperatur
         s,
         "Each thermal step is taken alone from the initial concentrations and follows its own integrated rate law \
          (second-order laws for A + B and 2 A, per molecule of the limiting reactant in brackets); k is its loss rate \
-         per molecule at the start. Quenching is pseudo-first-order at the initial quencher concentration. ΔG‡ for \
-         bimolecular steps is for 1 mol/L. Channels set by fixed fractions carry no rate and are not listed."
+         per molecule at the start. Quenching is pseudo-first-order at the initial quencher concentration. A step with \
+         a reactant (or quencher) at 0 M at the start is judged instead where its rate is largest in a kinetics run of \
+         the network over the window, taken alone from the concentrations there (its verdict says when and at what). \
+         ΔG‡ for bimolecular steps is for 1 mol/L. Channels set by fixed fractions carry no rate and are not listed."
     );
     if rows.iter().any(|r| !r.barrier_given) {
         let _ = writeln!(

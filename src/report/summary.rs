@@ -295,8 +295,15 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         );
     }
     let _ = writeln!(o, "\nfinal concentrations");
+    // round-off within the integrator's absolute tolerance of zero reads 0 (summary.json keeps
+    // the raw values beside its `atol`)
+    let zero = crate::units::display::ZeroWithin(s.method.atol);
     for (n, c) in &s.final_concentrations_mol_per_l {
-        let _ = writeln!(o, "  {n:<16} {:>12}", format_concentration(*c));
+        let _ = writeln!(
+            o,
+            "  {n:<16} {:>12}",
+            crate::units::display::format_concentration_within(*c, zero)
+        );
     }
     let p = &s.photons;
     let _ = writeln!(o, "\nphotons (einstein)");

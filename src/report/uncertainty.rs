@@ -8,7 +8,7 @@
 use crate::report::csv_out::{CsvTable, opt_sci, sci};
 use crate::report::simulation::CAUTIONS;
 use crate::uncertainty::{OutputSummary, QUANTILES, Record, Summary};
-use crate::units::{display, sig};
+use crate::units::{self, display, sig};
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 use std::fmt::Write;
@@ -24,6 +24,33 @@ fn shown_unit(x: &OutputSummary) -> (f64, String) {
     display::readable_unit(&x.column.unit, display::largest(values))
 }
 
+/// The round-off limit of an output's statistics (`units::display::ZeroWithin`): its column's
+/// absolute limit (the kinetics' tolerance for concentrations) or its relative one times the
+/// output's largest magnitude (chain outputs).
+pub fn zero_within(x: &OutputSummary) -> display::ZeroWithin {
+    if let Some(a) = x.column.zero_within {
+        return display::ZeroWithin(a);
+    }
+    match x.column.zero_within_relative {
+        Some(rel) => {
+            let values = x.mean.into_iter().chain(x.quantiles.iter().filter_map(|q| q.1));
+            display::ZeroWithin::relative(display::largest(values), rel)
+        }
+        None => display::ZeroWithin::NONE,
+    }
+}
+
+/// "30 d" for a censored output's horizon in the row's unit (`per`, `unit`).
+fn horizon_text(x: &OutputSummary, per: f64, unit: &str) -> Option<String> {
+    x.column.censored_above.map(|h| {
+        if unit.is_empty() {
+            sig(h / per, 4)
+        } else {
+            format!("{} {unit}", sig(h / per, 4))
+        }
+    })
+}
+
 fn with_unit(name: &str, unit: &str) -> String {
     if unit.is_empty() {
         name.to_string()
@@ -35,6 +62,10 @@ fn with_unit(name: &str, unit: &str) -> String {
 /// True when an output spreads beyond rounding (sd above 1e-9 of |mean|): only then is a
 /// ranking of its drivers meaningful.
 pub fn varies(x: &OutputSummary) -> bool {
+    if x.censored > 0 {
+        // some samples reach the level and some do not: that alone is a spread
+        return x.n > 0;
+    }
     match (x.mean, x.sd) {
         (Some(m), Some(sd)) => sd > 1e-9 * m.abs() && sd > 0.0,
         _ => false,
@@ -67,18 +98,54 @@ pub fn text(s: &Summary) -> String {
     o.push('\n');
     for x in &s.outputs {
         let (per, unit) = shown_unit(x);
+        let z = zero_within(x);
         let _ = write!(
             o,
             "  {:<40} {:>7} {:>11} {:>11}",
             with_unit(&x.column.name, &unit),
             x.n,
-            opt(x.mean.map(|v| v / per)),
-            opt(x.sd.map(|v| v / per))
+            opt(x.mean.map(|v| z.shown(v) / per)),
+            opt(x.sd.map(|v| z.shown(v) / per))
         );
-        for (_, v) in &x.quantiles {
-            let _ = write!(o, " {:>11}", opt(v.map(|v| v / per)));
+        for (q, v) in &x.quantiles {
+            let cell = match v {
+                Some(v) => opt(Some(z.shown(*v) / per)),
+                None if x.beyond_horizon.contains(q) => {
+                    format!("> {}", sig(x.column.censored_above.unwrap_or(0.0) / per, 4))
+                }
+                None => "-".into(),
+            };
+            let _ = write!(o, " {cell:>11}");
         }
         o.push('\n');
+    }
+    for x in s.outputs.iter().filter(|x| x.censored > 0) {
+        let (per, unit) = shown_unit(x);
+        let h = horizon_text(x, per, &unit).unwrap_or_default();
+        let all = x.n + x.censored;
+        let _ = writeln!(
+            o,
+            "  {}: {} of {all} samples never reached it within {h} (right-censored, kept): its quantiles are over all \
+             {all}, \"> {h}\" where one falls among them; mean and sd are not defined with censored samples; in the \
+             ranking below they count as {h}, tied above every reached value.",
+            x.column.name, x.censored
+        );
+    }
+    if s.outputs
+        .iter()
+        .any(|x| x.column.zero_within.is_some() || x.column.zero_within_relative.is_some())
+    {
+        let atol = s.outputs.iter().find_map(|x| x.column.zero_within);
+        let _ = writeln!(
+            o,
+            "  round-off shown as 0: {}chain statistics within {} of their output's largest value \
+             (double-precision sparse LU solve); samples.csv and summary.json keep the raw numbers.",
+            atol.map_or(String::new(), |a| format!(
+                "concentrations within the kinetics' absolute tolerance ({}) of zero; ",
+                display::format_concentration(a)
+            )),
+            sig(display::CHAIN_ROUNDOFF, 2)
+        );
     }
     let _ = writeln!(
         o,
@@ -148,12 +215,22 @@ pub fn file_stem(name: &str) -> String {
 /// log scale. Empty string when there are no values.
 pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
     let (per, unit) = shown_unit(x);
+    let z = zero_within(x);
     let v: Vec<f64> = values
         .iter()
         .copied()
         .filter(|v| v.is_finite())
-        .map(|v| v / per)
+        .map(|v| z.shown(v) / per)
         .collect();
+    let title = match horizon_text(x, per, &unit) {
+        Some(h) if x.censored > 0 => format!(
+            "{title} ({} of {} not reached within {h}, not drawn)",
+            x.censored,
+            x.n + x.censored
+        ),
+        _ => title.to_string(),
+    };
+    let title = title.as_str();
     let mut svg = String::new();
     if v.is_empty() {
         return svg;
@@ -221,18 +298,25 @@ pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
 /// tornado.svg: for each output with a spread, a bar per parameter of Spearman's ρ, the
 /// largest |ρ| at the top.
 pub fn tornado_svg(title: &str, s: &Summary) -> String {
-    let rows: Vec<(String, f64)> = s
-        .outputs
+    let shown: Vec<&OutputSummary> = s.outputs.iter().filter(|x| varies(x)).collect();
+    // Every output that varies gets its bars: up to 6 each, fewer when many outputs share the
+    // chart (about 60 bars in all, at least 2 each).
+    let per_output = (60 / shown.len().max(1)).clamp(2, 6);
+    let rows: Vec<(String, f64)> = shown
         .iter()
-        .filter(|x| varies(x))
         .flat_map(|x| {
+            let name = match x.column.censored_above {
+                Some(h) if x.censored > 0 => {
+                    format!("{} (not reached = {})", x.column.name, units::format_time(h))
+                }
+                _ => x.column.name.clone(),
+            };
             x.drivers
                 .iter()
-                .take(6)
-                .filter_map(|d| Some((format!("{} ← {}", x.column.name, d.parameter), d.spearman?)))
+                .take(per_output)
+                .filter_map(|d| Some((format!("{name} ← {}", d.parameter), d.spearman?)))
                 .collect::<Vec<_>>()
         })
-        .take(60)
         .collect();
     let mut svg = String::new();
     if rows.is_empty() {

@@ -35,6 +35,9 @@ pub use sampling::Space;
 /// The quantiles reported, as fractions.
 pub const QUANTILES: [f64; 5] = [0.025, 0.25, 0.5, 0.75, 0.975];
 
+/// The absolute tolerance of each sample's kinetics, mol/L (`kinetics::Options::until`'s).
+pub const KINETICS_ATOL: f64 = 1e-12;
+
 /// The format word of a samples record.
 pub const FORMAT: &str = "photoledger uncertainty samples 1";
 
@@ -61,6 +64,19 @@ pub struct Column {
     pub unit: String,
     /// What it is.
     pub about: String,
+    /// Round-off limit in `unit`: values within it of zero are not distinguishable from zero by
+    /// the computation (the kinetics' absolute tolerance for concentrations). Text and plots show
+    /// them as 0; CSV and JSON keep the raw numbers.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub zero_within: Option<f64>,
+    /// Round-off limit as a fraction of the output's largest magnitude (chain outputs:
+    /// `units::display::CHAIN_ROUNDOFF`), used like `zero_within`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub zero_within_relative: Option<f64>,
+    /// Right-censoring horizon in `unit`: a sample that ran without error but has no value did
+    /// not reach it within this time (time to a target): counted as censored, never dropped.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub censored_above: Option<f64>,
 }
 
 /// What one output reads from a sample's results.
@@ -316,6 +332,7 @@ impl<'a> Problem<'a> {
             Some(t) => {
                 let mut o = kinetics::Options::until(t);
                 o.outputs = 2;
+                o.atol = KINETICS_ATOL;
                 let tr = kinetics::simulate(&model, &o, &mut |_| {})?;
                 Some(tr.last()[..model.n_species()].to_vec())
             }
@@ -329,6 +346,7 @@ impl<'a> Problem<'a> {
                 } else {
                     let mut o = kinetics::Options::until(t);
                     o.outputs = 2;
+                    o.atol = KINETICS_ATOL;
                     o.event = Some(tg.event());
                     match kinetics::simulate(&model, &o, &mut |_| {})?.stop {
                         Stop::Event(te) => Some(te),
@@ -419,6 +437,9 @@ impl<'a> Problem<'a> {
                         } else {
                             format!("{about} (file: {})", p.written)
                         },
+                        zero_within: None,
+                        zero_within_relative: None,
+                        censored_above: None,
                     }
                 })
                 .collect(),
@@ -460,7 +481,11 @@ fn column(o: &Output, model: &Model, s: &Settings) -> Column {
         name,
         unit: unit.into(),
         about,
+        zero_within: None,
+        zero_within_relative: Some(units::display::CHAIN_ROUNDOFF),
+        censored_above: None,
     };
+    let horizon = units::format_time(s.until.unwrap_or(0.0));
     match o {
         Output::Yield(n) => c(
             format!("yield[{n}]"),
@@ -477,23 +502,32 @@ fn column(o: &Output, model: &Model, s: &Settings) -> Column {
             "",
             format!("chain: photons absorbed per molecule of {n} made (1 / quantum yield)"),
         ),
-        Output::Final(i) => c(
-            format!("final[{}]", model.species[*i]),
-            "mol/L",
-            format!(
-                "kinetics: concentration of {} at {}",
-                model.species[*i],
-                units::format_time(s.until.unwrap_or(0.0))
-            ),
-        ),
-        Output::TimeToTarget => c(
-            "time_to_target".into(),
-            "s",
-            format!(
-                "kinetics: time until the target is reached (missing where not reached by {})",
-                units::format_time(s.until.unwrap_or(0.0))
-            ),
-        ),
+        Output::Final(i) => Column {
+            zero_within: Some(KINETICS_ATOL),
+            zero_within_relative: None,
+            ..c(
+                format!("final[{}]", model.species[*i]),
+                "mol/L",
+                format!(
+                    "kinetics: concentration of {} at {horizon} (round-off within the absolute tolerance {} mol/L of zero)",
+                    model.species[*i],
+                    units::sig(KINETICS_ATOL, 3)
+                ),
+            )
+        },
+        Output::TimeToTarget => Column {
+            zero_within: None,
+            zero_within_relative: None,
+            censored_above: s.until,
+            ..c(
+                "time_to_target".into(),
+                "s",
+                format!(
+                    "kinetics: time until the target is reached; a sample without a value did not reach it within \
+                     {horizon} (right-censored at {horizon})"
+                ),
+            )
+        },
     }
 }
 
@@ -583,14 +617,22 @@ pub struct OutputSummary {
     pub column: Column,
     /// Samples with a value.
     pub n: usize,
-    /// Samples without one (failed, or e.g. target not reached).
+    /// Samples without one that are not censored (failed samples).
     pub missing: usize,
-    /// Mean.
+    /// Samples that ran but never reached the output's level within the horizon
+    /// ([`Column::censored_above`]): right-censored, counted in the quantiles as "beyond".
+    pub censored: usize,
+    /// Mean (of the samples with a value; None when any is censored: not defined then).
     pub mean: Option<f64>,
-    /// Sample standard deviation.
+    /// Sample standard deviation (None when any sample is censored).
     pub sd: Option<f64>,
-    /// (fraction, value) at [`QUANTILES`].
+    /// (fraction, value) at [`QUANTILES`], over every sample that ran, censored ones included;
+    /// the value is None where the quantile falls among the censored samples (see
+    /// `beyond_horizon`) or there are no values.
     pub quantiles: Vec<(f64, Option<f64>)>,
+    /// The fractions of [`QUANTILES`] whose quantile lies beyond the horizon: not reached
+    /// within [`Column::censored_above`].
+    pub beyond_horizon: Vec<f64>,
     /// Parameters by decreasing |Spearman ρ| (a tornado ranking).
     pub drivers: Vec<Driver>,
 }
@@ -637,10 +679,28 @@ pub fn summarise(r: &Record) -> Summary {
         .iter()
         .enumerate()
         .map(|(j, col)| {
-            let y: Vec<f64> = ok.iter().map(|s| s.outputs[j].unwrap_or(f64::NAN)).collect();
-            let mut v: Vec<f64> = y.iter().copied().filter(|x| x.is_finite()).collect();
-            let (mean, sd) = stats::mean_sd(&v);
+            // A censored sample (ran, no value) ranks at the horizon: above every reached value.
+            let horizon = col.censored_above;
+            let y: Vec<f64> = ok
+                .iter()
+                .map(|s| s.outputs[j].or(horizon).unwrap_or(f64::NAN))
+                .collect();
+            let mut v: Vec<f64> = ok
+                .iter()
+                .filter_map(|s| s.outputs[j])
+                .filter(|x| x.is_finite())
+                .collect();
+            let censored = if horizon.is_some() {
+                ok.iter().filter(|s| s.outputs[j].is_none()).count()
+            } else {
+                0
+            };
+            let (mean, sd) = if censored > 0 { (None, None) } else { stats::mean_sd(&v) };
             v.sort_by(f64::total_cmp);
+            let quantiles: Vec<(f64, Option<stats::Censored>)> = QUANTILES
+                .iter()
+                .map(|&q| (q, stats::quantile_censored(&v, censored, q)))
+                .collect();
             let mut drivers: Vec<Driver> = r
                 .header
                 .parameters
@@ -659,10 +719,27 @@ pub fn summarise(r: &Record) -> Summary {
             OutputSummary {
                 column: col.clone(),
                 n: v.len(),
-                missing: r.samples.len() - v.len(),
+                missing: r.samples.len() - v.len() - censored,
+                censored,
                 mean,
                 sd,
-                quantiles: QUANTILES.iter().map(|&q| (q, stats::quantile(&v, q))).collect(),
+                beyond_horizon: quantiles
+                    .iter()
+                    .filter(|(_, x)| *x == Some(stats::Censored::Beyond))
+                    .map(|(q, _)| *q)
+                    .collect(),
+                quantiles: quantiles
+                    .iter()
+                    .map(|(q, x)| {
+                        (
+                            *q,
+                            match x {
+                                Some(stats::Censored::Value(v)) => Some(*v),
+                                _ => None,
+                            },
+                        )
+                    })
+                    .collect(),
                 drivers,
             }
         })

@@ -16,6 +16,40 @@ pub fn quantile(sorted: &[f64], p: f64) -> Option<f64> {
     Some(sorted[lo] + (h - lo as f64) * (sorted[hi] - sorted[lo]))
 }
 
+/// A quantile of right-censored values: a value, or beyond the censoring horizon.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Censored {
+    /// The quantile, from the values observed.
+    Value(f64),
+    /// The quantile falls among the censored samples: above the horizon, not known.
+    Beyond,
+}
+
+/// Quantile `p` of `sorted` finite observed values together with `censored` more that lie
+/// beyond every observed one (right-censored at a horizon no smaller than the largest observed
+/// value): definition 7 of Hyndman & Fan over all n = observed + censored samples, with
+/// h = (n − 1) p; the quantile is a value when both order statistics it interpolates between
+/// (only x⌊h⌋ when h is whole) are observed, and [`Censored::Beyond`] otherwise. With no
+/// censored samples this is [`quantile`]. None for no samples.
+pub fn quantile_censored(sorted: &[f64], censored: usize, p: f64) -> Option<Censored> {
+    let seen = sorted.len();
+    let n = seen + censored;
+    if n == 0 {
+        return None;
+    }
+    let h = (n - 1) as f64 * p.clamp(0.0, 1.0);
+    let lo = h.floor() as usize;
+    let hi = if h > lo as f64 { (lo + 1).min(n - 1) } else { lo };
+    if hi < seen {
+        let hi = (lo + 1).min(seen - 1);
+        Some(Censored::Value(
+            sorted[lo] + (h - lo as f64) * (sorted[hi] - sorted[lo]),
+        ))
+    } else {
+        Some(Censored::Beyond)
+    }
+}
+
 /// Mean and sample standard deviation (n − 1 in the denominator; None for fewer than 2 values).
 pub fn mean_sd(v: &[f64]) -> (Option<f64>, Option<f64>) {
     let n = v.len();
@@ -142,5 +176,24 @@ mod tests {
         assert!((spearman(&x, &y).unwrap() - 1.0).abs() < 1e-15);
         let z: Vec<f64> = x.iter().map(|v| -v.exp()).collect();
         assert!((spearman(&x, &z).unwrap() + 1.0).abs() < 1e-15);
+    }
+
+    // Right-censored quantiles: with no censoring they are definition 7 (Hyndman & Fan 1996);
+    // with censored samples above every observed one, the order statistics of all n samples
+    // (Klein & Moeschberger, Survival Analysis, 2003, ch. 4: with no censoring before the last
+    // observation the Kaplan-Meier estimate is the empirical distribution, `from memory`).
+    #[test]
+    fn censored_quantiles_count_every_sample() {
+        let v = [1.0, 2.0, 3.0, 4.0];
+        for p in [0.0, 0.25, 0.5, 0.9, 1.0] {
+            assert_eq!(quantile_censored(&v, 0, p), quantile(&v, p).map(Censored::Value));
+        }
+        // 4 observed + 4 censored: the median (h = 3.5) interpolates x4 and a censored one.
+        assert_eq!(quantile_censored(&v, 4, 0.5), Some(Censored::Beyond));
+        // 4 observed + 3 censored: the median (h = 3 exactly) is x4, observed.
+        assert_eq!(quantile_censored(&v, 3, 0.5), Some(Censored::Value(4.0)));
+        assert_eq!(quantile_censored(&v, 4, 0.25), Some(Censored::Value(2.75)));
+        assert_eq!(quantile_censored(&[], 3, 0.025), Some(Censored::Beyond));
+        assert_eq!(quantile_censored(&[], 0, 0.5), None);
     }
 }

@@ -122,6 +122,49 @@ pub fn format_concentration(mol_per_l: f64) -> String {
     format(mol_per_l, &CONCENTRATION)
 }
 
+/// A plain number for reading, 4 significant figures, trailing zeros dropped: "2.019", "150",
+/// "0.0125"; scientific only below 1e-4 or from 1e6 in magnitude ("1.5e7"). For ratios and
+/// factors, which have no unit.
+pub fn number(value: f64) -> String {
+    sig(value, 4)
+}
+
+/// The round-off limit of a computed value: magnitudes at most this are not distinguishable
+/// from zero by the computation that made them (an integrator's absolute tolerance, in the
+/// value's internal unit). Shown values within it read 0; CSV and JSON keep the raw number and
+/// state the limit beside it.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct ZeroWithin(pub f64);
+
+/// Relative round-off of a statistic of the Markov-chain solve (a yield, a quantum yield, their
+/// standard deviation): a sparse LU solve in double precision is good to about 1e-13 to 1e-12
+/// of the largest value on well-conditioned chains (machine ε ≈ 2.2e-16 times a condition
+/// number up to ~1e3 times growth); 1e-10 leaves a margin of a hundred for worse ones.
+pub const CHAIN_ROUNDOFF: f64 = 1e-10;
+
+impl ZeroWithin {
+    /// No limit: every value shown as computed.
+    pub const NONE: ZeroWithin = ZeroWithin(0.0);
+
+    /// `rel` of the magnitude `scale` (e.g. [`CHAIN_ROUNDOFF`] of a mean).
+    pub fn relative(scale: f64, rel: f64) -> Self {
+        ZeroWithin((scale.abs() * rel).max(0.0))
+    }
+
+    /// The value to show: 0 when its magnitude is within the limit (so round-off such as
+    /// −1.6e-15 mol/L reads 0, never a negative concentration), otherwise the value itself.
+    /// NaN and infinite values pass through unchanged.
+    pub fn shown(self, value: f64) -> f64 {
+        if value.abs() <= self.0 { 0.0 } else { value }
+    }
+}
+
+/// [`format_concentration`] of a computed concentration with round-off limit `zero` (the
+/// integrator's absolute tolerance): "0 M" within it, e.g. for −1.58e-15 mol/L at atol 1e-12.
+pub fn format_concentration_within(mol_per_l: f64, zero: ZeroWithin) -> String {
+    format_concentration(zero.shown(mol_per_l))
+}
+
 /// The unit of a rate constant of reaction order `order` for display, with superscripts:
 /// "M s⁻¹" (order 0), "s⁻¹", "M⁻¹ s⁻¹", "M⁻² s⁻¹", ... The value is the internal one
 /// ((L/mol)^(order−1) s⁻¹, see [`super::internal_spelling`]): no factor to apply.
@@ -248,6 +291,23 @@ mod tests {
         assert_eq!(largest([f64::NAN, -3.0, 2.0, f64::INFINITY]), 3.0);
         assert_eq!(largest([]), 0.0);
         assert_eq!(pick(1.0, &[]), (1.0, ""));
+    }
+
+    #[test]
+    fn round_off_within_the_tolerance_reads_zero_and_factors_read_plainly() {
+        // An integrator's absolute tolerance of 1e-12 mol/L: -1.58e-15 is round-off, -2e-12 is not.
+        let atol = ZeroWithin(1e-12);
+        assert_eq!(format_concentration_within(-1.58e-15, atol), "0 M");
+        assert_eq!(format_concentration_within(-0.0, atol), "0 M");
+        assert_eq!(format_concentration_within(-2e-12, atol), "-2 pM");
+        assert_eq!(format_concentration_within(5e-5, atol), "50 µM");
+        assert!(atol.shown(f64::NAN).is_nan());
+        // A chain statistic: sd 7.067e-14 of a mean of 1 is round-off.
+        assert_eq!(ZeroWithin::relative(1.0, CHAIN_ROUNDOFF).shown(7.067e-14), 0.0);
+        assert_eq!(ZeroWithin::relative(1.0, CHAIN_ROUNDOFF).shown(1e-6), 1e-6);
+        assert_eq!(number(2.019), "2.019");
+        assert_eq!(number(150.0), "150");
+        assert_eq!(number(0.0125), "0.0125");
     }
 
     #[test]

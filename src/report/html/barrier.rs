@@ -50,10 +50,7 @@ pub fn section(b: &BarrierStudy, temperature: f64) -> String {
                 } else {
                     "never".into()
                 }),
-                esc(&match r.outcome() {
-                    crate::barrier::Outcome::TooSlow => format!("too slow by a factor {}", sig(r.factor, 3)),
-                    _ => r.words(),
-                })
+                esc(&r.words())
             )
         })
         .collect();
@@ -76,8 +73,9 @@ pub fn section(b: &BarrierStudy, temperature: f64) -> String {
          given as a plain k, for which ΔG‡ is only what Eyring's equation would need, not a barrier). Each thermal \
          step is taken alone from the initial concentrations and follows its own integrated rate law (second-order \
          laws for A + B and 2 A, per molecule of the limiting reactant); k is its loss rate per molecule at the \
-         start. Quenching is pseudo-first-order at the initial quencher concentration. ΔG‡ for bimolecular steps \
-         refers to 1 mol/L. Channels set by fixed fractions carry no rate and are not listed.",
+         start. Quenching is pseudo-first-order at the initial quencher concentration. A step with a reactant (or \
+         quencher) at 0 M at the start is judged instead where it runs fastest in the study's kinetics run, from the \
+         concentrations there (its verdict says when and at what). ΔG‡ for bimolecular steps refers to 1 mol/L. Channels set by fixed fractions carry no rate and are not listed.",
     ));
     s.push_str(&hot_table(b));
     s

@@ -37,7 +37,8 @@ pub fn section(net: &Network, model: &Model, study: &Study) -> String {
     let (f, u) = pick_unit(max, &CONCENTRATION);
     let rows: Vec<String> = (0..model.n_species())
         .map(|i| {
-            let (c0, c1) = (model.initial[i], last[i]);
+            // round-off within the run's absolute tolerance of zero reads 0
+            let (c0, c1) = (model.initial[i], tr.zero_within().shown(last[i]));
             format!(
                 "{}{}{}{}",
                 text_cell(&model.species[i]),
