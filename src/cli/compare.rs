@@ -1,6 +1,6 @@
 //! `photoledger compare A.toml B.toml ... --data DATA... [--free A.toml:KEY,KEY ...]`.
 
-use super::fit::{fit_one, read_data};
+use super::fit::{Limits, fit_one, not_converged, read_data};
 use photoledger::Error;
 use photoledger::fit::mechanism::FitOptions;
 use photoledger::fit::run;
@@ -32,15 +32,17 @@ pub struct CompareArgs {
     /// Seed of the random starts.
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
+    #[command(flatten)]
+    pub limits: Limits,
 }
 
 pub fn run(a: &CompareArgs) -> photoledger::Result<()> {
     let experiments = read_data(&a.data)?;
-    let opts = FitOptions {
+    let opts = a.limits.apply(FitOptions {
         starts: a.starts.max(1),
         seed: a.seed,
         ..FitOptions::default()
-    };
+    })?;
     for f in &a.free {
         let Some((file, _)) = f.rsplit_once(".toml:") else {
             return Err(Error::Usage(format!("--free {f}: expected FILE.toml:KEY,KEY")));
@@ -103,6 +105,9 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<()> {
     } else {
         print!("{text}");
         println!("wrote {}/ ranking.txt ranking.json fits.svg", a.out.display());
+    }
+    for r in &ranked {
+        not_converged(&r.network, &r.fit)?;
     }
     Ok(())
 }
