@@ -305,7 +305,10 @@ fn transformed_bounds_keep_a_fraction_inside() {
     assert!(s.values[0] <= 1.0 && s.values[0] > 0.999, "{}", s.values[0]);
     // On the edge of its range it has no linearised error: none is claimed (NaN).
     let (lo, hi) = s.intervals[0];
-    assert!(lo.is_nan() && hi.is_nan() && s.standard_errors[0].is_nan(), "[{lo}, {hi}]");
+    assert!(
+        lo.is_nan() && hi.is_nan() && s.standard_errors[0].is_nan(),
+        "[{lo}, {hi}]"
+    );
     assert!(
         s.warnings(&[lsq::Transform::Logistic])
             .contains(&lsq::Identifiability::AtBound(0))
@@ -622,7 +625,12 @@ fn goodness_of_fit_flags_a_wrong_model_and_passes_the_right_one() {
     let json = photoledger::report::fit::fit_json("n", &wrong);
     assert_eq!(json["goodness_of_fit"]["model_describes_data"], false);
     // The dark relaxation leaves its residuals in long runs of one sign.
-    let dark = wrong.goodness.runs.iter().find(|r| r.experiment == "dark relaxation").unwrap();
+    let dark = wrong
+        .goodness
+        .runs
+        .iter()
+        .find(|r| r.experiment == "dark relaxation")
+        .unwrap();
     assert!(dark.fails(), "{dark:?}");
 
     // Without sd (weight 1 in the unit: the scatter estimates σ) only the runs can judge.
@@ -644,7 +652,11 @@ fn goodness_of_fit_flags_a_wrong_model_and_passes_the_right_one() {
         &no_sd(d),
         &FitOptions::default(),
     );
-    assert!(wrong.goodness.chi2.is_none() && wrong.goodness.fails(), "{:?}", wrong.goodness.lines());
+    assert!(
+        wrong.goodness.chi2.is_none() && wrong.goodness.fails(),
+        "{:?}",
+        wrong.goodness.lines()
+    );
 }
 
 #[test]
@@ -653,7 +665,12 @@ fn the_evaluation_cap_and_the_time_limit_stop_a_fit_at_its_best_point() {
     let start_chi2 = {
         let loaded = photoledger::file::load(Path::new(NET)).unwrap();
         let setup = Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).unwrap();
-        setup.residuals(&setup.start()).unwrap().iter().map(|r| r * r).sum::<f64>()
+        setup
+            .residuals(&setup.start())
+            .unwrap()
+            .iter()
+            .map(|r| r * r)
+            .sum::<f64>()
     };
     let seen = std::sync::Mutex::new(Vec::new());
     let capped = {
@@ -668,7 +685,11 @@ fn the_evaluation_cap_and_the_time_limit_stop_a_fit_at_its_best_point() {
     assert_eq!(capped.stopped, Some(lsq::Stop::EvaluationCap(6)));
     assert!(!capped.solution.converged);
     // The best point reached, no worse than the start, with its χ².
-    assert!(capped.solution.chi2 <= start_chi2, "{} vs {start_chi2}", capped.solution.chi2);
+    assert!(
+        capped.solution.chi2 <= start_chi2,
+        "{} vs {start_chi2}",
+        capped.solution.chi2
+    );
     assert!(capped.solution.evaluations <= 6);
     // Progress was reported through the callback, up to the cap and no further.
     let seen = seen.into_inner().unwrap();
@@ -691,7 +712,11 @@ fn the_evaluation_cap_and_the_time_limit_stop_a_fit_at_its_best_point() {
             ..FitOptions::default()
         },
     );
-    assert!(matches!(timed.stopped, Some(lsq::Stop::TimeLimit(_))), "{:?}", timed.stopped);
+    assert!(
+        matches!(timed.stopped, Some(lsq::Stop::TimeLimit(_))),
+        "{:?}",
+        timed.stopped
+    );
     // Without limits reached: converged, and said so.
     let full = fit_on(NET, &d);
     assert!(full.stopped.is_none() && full.solution.converged);
@@ -728,11 +753,23 @@ fn three_parameter_demo_fit_converges() {
     ];
     let t = std::time::Instant::now();
     let r = fit_keys(&[], &free, &demo(), &FitOptions::default());
-    assert!(r.stopped.is_none() && r.solution.converged, "{}", r.solution.termination);
-    assert!(r.warnings.iter().any(|w| w.contains("photo.Z to E.quantum_yield ended on the edge")));
+    assert!(
+        r.stopped.is_none() && r.solution.converged,
+        "{}",
+        r.solution.termination
+    );
+    assert!(
+        r.warnings
+            .iter()
+            .any(|w| w.contains("photo.Z to E.quantum_yield ended on the edge"))
+    );
     // The barrier is pinned by the dark relaxation whatever the yields (96.17 kJ/mol when the
     // two yields are fitted alone with Φ(Z→E) held at 1).
-    assert!((r.solution.values[2] - 96_174.0).abs() < 50.0, "{:?}", r.solution.values);
+    assert!(
+        (r.solution.values[2] - 96_174.0).abs() < 50.0,
+        "{:?}",
+        r.solution.values
+    );
     assert!(r.solution.standard_errors[2].is_finite() && r.solution.standard_errors[1].is_nan());
     eprintln!("three-parameter demo fit: {:.1} s", t.elapsed().as_secs_f64());
 }

@@ -531,7 +531,10 @@ fn the_fit_section_agrees_with_fit_json() {
     let method = &json["interval_method"];
     assert_eq!(method["distribution"], "normal", "{method}");
     // The normal 97.5 % point 1.959964 (common practice: any statistics table).
-    assert!((method["quantile_975"].as_f64().unwrap() - 1.959964).abs() < 1e-6, "{method}");
+    assert!(
+        (method["quantile_975"].as_f64().unwrap() - 1.959964).abs() < 1e-6,
+        "{method}"
+    );
     let said = method["text"].as_str().unwrap();
     assert!(text.contains(said), "the page states \"{said}\"");
     assert!(!text.contains("Student t"), "the page names a second interval method");

@@ -65,9 +65,8 @@ impl Limits {
         let time_limit = match &self.time_limit {
             None => None,
             Some(text) => {
-                let t = units::parse(text, Quantity::Time).map_err(|e| {
-                    Error::Usage(format!("--time-limit: {e}; expected {}", Quantity::Time.accepted()))
-                })?;
+                let t = units::parse(text, Quantity::Time)
+                    .map_err(|e| Error::Usage(format!("--time-limit: {e}; expected {}", Quantity::Time.accepted())))?;
                 if !(t > 0.0 && t.is_finite()) {
                     return Err(Error::Usage(format!(
                         "--time-limit \"{text}\": the time must be positive"

@@ -133,7 +133,13 @@ pub fn runs_distribution(n1: usize, n2: usize) -> Vec<f64> {
         return p;
     }
     // ln C(a, b), −∞ when b > a (no way).
-    let lc = |a: usize, b: usize| if b > a { f64::NEG_INFINITY } else { ln_binomial(a as u64, b as u64) };
+    let lc = |a: usize, b: usize| {
+        if b > a {
+            f64::NEG_INFINITY
+        } else {
+            ln_binomial(a as u64, b as u64)
+        }
+    };
     let total = lc(n, n1);
     for (r, slot) in p.iter_mut().enumerate().skip(2) {
         let k = r / 2;

@@ -321,7 +321,10 @@ impl Problem<'_> {
             return None;
         }
         *self.evaluations.borrow_mut() += 1;
-        let r = self.model.residuals(&self.natural(z)).filter(|r| r.iter().all(|v| v.is_finite()));
+        let r = self
+            .model
+            .residuals(&self.natural(z))
+            .filter(|r| r.iter().all(|v| v.is_finite()));
         if let Some(r) = &r {
             let chi2: f64 = r.iter().map(|v| v * v).sum();
             let mut best = self.best.borrow_mut();
@@ -523,7 +526,13 @@ fn statistics(
     }
     let standard_errors: Vec<f64> = (0..p).map(|i| covariance[(i, i)].max(0.0).sqrt()).collect();
     let standard_errors: Vec<f64> = (0..p)
-        .map(|i| if inside.contains(&i) { standard_errors[i] } else { f64::NAN })
+        .map(|i| {
+            if inside.contains(&i) {
+                standard_errors[i]
+            } else {
+                f64::NAN
+            }
+        })
         .collect();
     let correlation = DMatrix::from_fn(p, p, |i, j| {
         let s = standard_errors[i] * standard_errors[j];
@@ -836,7 +845,11 @@ mod tests {
         assert!(s.values[0] > 1.0 - 1e-6, "{}", s.values[0]);
         assert!(s.standard_errors[0].is_nan() && s.intervals[0].0.is_nan());
         assert!((s.values[1] - 2.1).abs() < 1e-9);
-        assert!((s.standard_errors[1] - 0.1 / 2f64.sqrt()).abs() < 1e-6, "{}", s.standard_errors[1]);
+        assert!(
+            (s.standard_errors[1] - 0.1 / 2f64.sqrt()).abs() < 1e-6,
+            "{}",
+            s.standard_errors[1]
+        );
         assert!(s.warnings(&t).contains(&Identifiability::AtBound(0)));
         // The logistic slope stays positive far out, where x(1 − x) rounds to 0.
         assert!(Transform::Logistic.slope(40.0) > 0.0 && Transform::Logistic.slope(-40.0) > 0.0);

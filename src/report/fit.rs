@@ -72,14 +72,7 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
         } else {
             ("—".to_string(), "on the edge of its range".to_string())
         };
-        let _ = writeln!(
-            o,
-            "{:<w$}  {:>14}  {:>12}  {:>31}  {u}",
-            f.key,
-            sig(v, 6),
-            se,
-            interval,
-        );
+        let _ = writeln!(o, "{:<w$}  {:>14}  {:>12}  {:>31}  {u}", f.key, sig(v, 6), se, interval,);
     }
     let _ = writeln!(
         o,

@@ -18,7 +18,11 @@ fn unit_label(unit: &str) -> String {
 
 /// `v` to `n` figures, or "— (on the edge)" when it is not defined.
 fn or_edge(v: f64, n: usize) -> String {
-    if v.is_finite() { sig(v, n) } else { "— (on the edge)".into() }
+    if v.is_finite() {
+        sig(v, n)
+    } else {
+        "— (on the edge)".into()
+    }
 }
 
 /// The fit section.
