@@ -741,7 +741,7 @@ fn the_evaluation_cap_and_the_time_limit_stop_a_fit_at_its_best_point() {
 /// The three-parameter fit of the demo (both quantum yields and the barrier): the data fix only
 /// a combination of the two yields, and the best χ² lies where Φ(Z→E) reaches 1, the edge of
 /// its range. On the main branch of December 2026 this fit never ended (the covariance at that
-/// edge held 0/0, and the SVD looped on it). Release build: about 10 s; ignored in debug runs
+/// edge held 0/0, and the SVD looped on it). Release build: about 3 s; ignored in debug runs
 /// for its length (`cargo test --release --test fit_references -- --ignored three`).
 #[test]
 #[ignore]
