@@ -113,11 +113,11 @@ pub fn fit_study(
     opts: &FitOptions,
 ) -> Result<FitStudy> {
     use rayon::prelude::*;
-    let fitted = fit_run::fit_loaded(loaded, base, free, &experiments, opts, &|| {})?;
+    let fitted = fit_run::fit_loaded(loaded, base, free, &experiments, opts, &|_| {})?;
     let rival_fits = rivals
         .par_iter()
         .map(|(name, l)| {
-            fit_run::fit_loaded(l, Vec::new(), &[], &experiments, opts, &|| {})
+            fit_run::fit_loaded(l, Vec::new(), &[], &experiments, opts, &|_| {})
                 .map_err(|e| fit_run::named_error(name, e))
         })
         .collect::<Result<Vec<_>>>()?;

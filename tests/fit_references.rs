@@ -185,7 +185,7 @@ fn fit_on(net: &str, experiments: &[Experiment]) -> FitResult {
 fn fit_with(net: &str, experiments: &[Experiment], opts: &FitOptions) -> FitResult {
     let loaded = photoledger::file::load(Path::new(net)).unwrap();
     let setup = Setup::new(&loaded, vec![], experiments, &keys(), Accuracy::default()).unwrap();
-    mechanism::fit(&setup, opts, &|| {}).unwrap()
+    mechanism::fit(&setup, opts, &|_| {}).unwrap()
 }
 
 fn synthetic(seed: u64) -> Vec<Experiment> {
@@ -302,11 +302,11 @@ fn transformed_bounds_keep_a_fraction_inside() {
     // A fraction whose data say 1.2 stays below 1 and is flagged on its bound.
     let m = |p: &[f64]| Some(vec![(1.2 - p[0]) / 0.01, (1.2 - p[0]) / 0.01]);
     let s = lsq::fit(&m, &[0.5], &[lsq::Transform::Logistic], &lsq::Settings::default()).unwrap();
-    assert!(s.values[0] < 1.0 && s.values[0] > 0.999, "{}", s.values[0]);
-    // Its 95 % interval is taken on the logit scale, so it stays inside [0, 1] too.
+    assert!(s.values[0] <= 1.0 && s.values[0] > 0.999, "{}", s.values[0]);
+    // On the edge of its range it has no linearised error: none is claimed (NaN).
     let (lo, hi) = s.intervals[0];
     assert!(
-        (0.0..=1.0).contains(&lo) && (0.0..=1.0).contains(&hi) && lo <= hi,
+        lo.is_nan() && hi.is_nan() && s.standard_errors[0].is_nan(),
         "[{lo}, {hi}]"
     );
     assert!(
@@ -579,11 +579,197 @@ fn multi_start_is_the_same_on_one_thread_and_on_two() {
     };
     let on = |n: usize| {
         let pool = rayon::ThreadPoolBuilder::new().num_threads(n).build().unwrap();
-        pool.install(|| mechanism::fit(&setup, &opts, &|| {}).unwrap())
+        pool.install(|| mechanism::fit(&setup, &opts, &|_| {}).unwrap())
     };
     let (a, b) = (on(1), on(2));
     assert_eq!(a.starts, b.starts);
     assert_eq!(a.solution.values, b.solution.values);
     assert_eq!(a.starts.len(), 3);
     assert_ne!(a.starts[1].start, a.starts[2].start, "each start draws its own values");
+}
+
+// ---------------------------------------------------------------------------------------------
+// Does the model describe the data? And a search that must end.
+
+/// A fit of `free` keys with `base` overrides on `experiments`.
+fn fit_keys(base: &[(&str, &str)], free: &[&str], experiments: &[Experiment], opts: &FitOptions) -> FitResult {
+    let loaded = photoledger::file::load(Path::new(NET)).unwrap();
+    let base = base.iter().map(|(k, v)| (k.to_string(), v.to_string())).collect();
+    let free: Vec<String> = free.iter().map(|k| k.to_string()).collect();
+    let setup = Setup::new(&loaded, base, experiments, &free, Accuracy::default()).unwrap();
+    mechanism::fit(&setup, opts, &|_| {}).unwrap()
+}
+
+#[test]
+fn goodness_of_fit_flags_a_wrong_model_and_passes_the_right_one() {
+    // Synthetic data from the true parameters with the sd of each point (seeded).
+    let d = synthetic(7);
+    let right = fit_on(NET, &d);
+    let g = &right.goodness;
+    let c = g.chi2.expect("every point has an sd: the χ² test applies");
+    assert!(!g.fails(), "the right model: {:?}", g.lines());
+    assert!(c.p_upper > 0.01 && right.solution.reduced_chi2 < 2.0, "{c:?}");
+    assert_eq!(g.runs.len(), 2, "two experiments with time courses: {:?}", g.runs);
+    // A wrong model: the thermal barrier held 1.5 kcal/mol too high (relaxation ~12 × slower),
+    // only the quantum yield free. The reduced χ² is far above 1 and the verdict says so.
+    let wrong = fit_keys(
+        &[("thermal.thermal Z to E.barrier", "24.5 kcal/mol")],
+        &["photo.E to Z.quantum_yield"],
+        &d,
+        &FitOptions::default(),
+    );
+    assert!(wrong.solution.reduced_chi2 > 20.0, "{}", wrong.solution.reduced_chi2);
+    assert!(wrong.goodness.chi2.unwrap().fails() && wrong.goodness.fails());
+    let text = photoledger::report::fit::fit_text("n", &wrong);
+    assert!(text.contains("the model does not describe the data"), "{text}");
+    let json = photoledger::report::fit::fit_json("n", &wrong);
+    assert_eq!(json["goodness_of_fit"]["model_describes_data"], false);
+    // The dark relaxation leaves its residuals in long runs of one sign.
+    let dark = wrong
+        .goodness
+        .runs
+        .iter()
+        .find(|r| r.experiment == "dark relaxation")
+        .unwrap();
+    assert!(dark.fails(), "{dark:?}");
+
+    // Without sd (weight 1 in the unit: the scatter estimates σ) only the runs can judge.
+    let no_sd = |mut d: Vec<Experiment>| {
+        for e in &mut d {
+            for p in &mut e.points {
+                p.sd = 1e-6;
+                p.weighted = false;
+            }
+        }
+        d
+    };
+    let right = fit_on(NET, &no_sd(d.clone()));
+    assert!(right.goodness.chi2.is_none());
+    assert!(!right.goodness.fails(), "{:?}", right.goodness.lines());
+    let wrong = fit_keys(
+        &[("thermal.thermal Z to E.barrier", "24.5 kcal/mol")],
+        &["photo.E to Z.quantum_yield"],
+        &no_sd(d),
+        &FitOptions::default(),
+    );
+    assert!(
+        wrong.goodness.chi2.is_none() && wrong.goodness.fails(),
+        "{:?}",
+        wrong.goodness.lines()
+    );
+}
+
+#[test]
+fn the_evaluation_cap_and_the_time_limit_stop_a_fit_at_its_best_point() {
+    let d = demo();
+    let start_chi2 = {
+        let loaded = photoledger::file::load(Path::new(NET)).unwrap();
+        let setup = Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).unwrap();
+        setup
+            .residuals(&setup.start())
+            .unwrap()
+            .iter()
+            .map(|r| r * r)
+            .sum::<f64>()
+    };
+    let seen = std::sync::Mutex::new(Vec::new());
+    let capped = {
+        let loaded = photoledger::file::load(Path::new(NET)).unwrap();
+        let setup = Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).unwrap();
+        let opts = FitOptions {
+            max_evaluations: 6,
+            ..FitOptions::default()
+        };
+        mechanism::fit(&setup, &opts, &|p| seen.lock().unwrap().push(*p)).unwrap()
+    };
+    assert_eq!(capped.stopped, Some(lsq::Stop::EvaluationCap(6)));
+    assert!(!capped.solution.converged);
+    // The best point reached, no worse than the start, with its χ².
+    assert!(
+        capped.solution.chi2 <= start_chi2,
+        "{} vs {start_chi2}",
+        capped.solution.chi2
+    );
+    assert!(capped.solution.evaluations <= 6);
+    // Progress was reported through the callback, up to the cap and no further.
+    let seen = seen.into_inner().unwrap();
+    assert!(seen.len() >= 6 && seen.iter().all(|p| p.evaluations <= 6 && p.max_evaluations == 6));
+    assert!(seen.last().unwrap().starts_done == 1);
+    let text = photoledger::report::fit::fit_text("n", &capped);
+    assert!(
+        text.contains("NOT CONVERGED: stopped at the cap of 6 model evaluations"),
+        "{text}"
+    );
+    let json = photoledger::report::fit::fit_json("n", &capped);
+    assert_eq!(json["converged"], false);
+    assert!(json["not_converged"].as_str().unwrap().contains("best point reached"));
+    // A time limit already past stops the search at once (the start itself is evaluated first).
+    let timed = fit_with(
+        NET,
+        &d,
+        &FitOptions {
+            time_limit: Some(std::time::Duration::from_nanos(1)),
+            ..FitOptions::default()
+        },
+    );
+    assert!(
+        matches!(timed.stopped, Some(lsq::Stop::TimeLimit(_))),
+        "{:?}",
+        timed.stopped
+    );
+    // Without limits reached: converged, and said so.
+    let full = fit_on(NET, &d);
+    assert!(full.stopped.is_none() && full.solution.converged);
+    assert_eq!(photoledger::report::fit::fit_json("n", &full)["converged"], true);
+
+    // Through the binary: the best point is written and printed, and the exit code is 6 (stopped at a limit).
+    let bin = env!("CARGO_BIN_EXE_photoledger");
+    let out = std::env::temp_dir().join(format!("pl-fit-cap-{}", std::process::id()));
+    let o = std::process::Command::new(bin)
+        .args(["fit", NET, "--data", EXPERIMENTS, "--max-evaluations", "6", "--out"])
+        .arg(&out)
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(6), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(String::from_utf8_lossy(&o.stdout).contains("NOT CONVERGED"));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("did not converge"));
+    let j: serde_json::Value = serde_json::from_slice(&std::fs::read(out.join("fit.json")).unwrap()).unwrap();
+    assert_eq!(j["converged"], false);
+    let _ = std::fs::remove_dir_all(&out);
+}
+
+/// The three-parameter fit of the demo (both quantum yields and the barrier): the data fix only
+/// a combination of the two yields, and the best χ² lies where Φ(Z→E) reaches 1, the edge of
+/// its range. On the main branch of December 2026 this fit never ended (the covariance at that
+/// edge held 0/0, and the SVD looped on it). Release build: about 3 s; ignored in debug runs
+/// for its length (`cargo test --release --test fit_references -- --ignored three`).
+#[test]
+#[ignore]
+fn three_parameter_demo_fit_converges() {
+    let free = [
+        "photo.E to Z.quantum_yield",
+        "photo.Z to E.quantum_yield",
+        "thermal.thermal Z to E.barrier",
+    ];
+    let t = std::time::Instant::now();
+    let r = fit_keys(&[], &free, &demo(), &FitOptions::default());
+    assert!(
+        r.stopped.is_none() && r.solution.converged,
+        "{}",
+        r.solution.termination
+    );
+    assert!(
+        r.warnings
+            .iter()
+            .any(|w| w.contains("photo.Z to E.quantum_yield ended on the edge"))
+    );
+    // The barrier is pinned by the dark relaxation whatever the yields (96.17 kJ/mol when the
+    // two yields are fitted alone with Φ(Z→E) held at 1).
+    assert!(
+        (r.solution.values[2] - 96_174.0).abs() < 50.0,
+        "{:?}",
+        r.solution.values
+    );
+    assert!(r.solution.standard_errors[2].is_finite() && r.solution.standard_errors[1].is_nan());
+    eprintln!("three-parameter demo fit: {:.1} s", t.elapsed().as_secs_f64());
 }

@@ -527,6 +527,23 @@ fn the_fit_section_agrees_with_fit_json() {
         }
     }
     assert!(page.contains("Identifiability"), "identifiability is reported");
+    // One interval method, stated alike by the page and the JSON (from the engine's one value):
+    // every observation of the demo data has an sd, so the normal 97.5 % point, and the page
+    // must not name Student t anywhere.
+    let method = &json["interval_method"];
+    assert_eq!(method["distribution"], "normal", "{method}");
+    // The normal 97.5 % point 1.959964 (common practice: any statistics table).
+    assert!(
+        (method["quantile_975"].as_f64().unwrap() - 1.959964).abs() < 1e-6,
+        "{method}"
+    );
+    let said = method["text"].as_str().unwrap();
+    assert!(text.contains(said), "the page states \"{said}\"");
+    assert!(!text.contains("Student t"), "the page names a second interval method");
+    // The goodness-of-fit verdict beside identifiability, as the JSON gives it.
+    let verdict = json["goodness_of_fit"]["verdict"].as_str().unwrap();
+    assert!(text.contains(verdict), "the page gives the verdict \"{verdict}\"");
+    assert_eq!(json["goodness_of_fit"]["model_describes_data"], true);
     assert_eq!(fit_svgs, 1, "one data-vs-fit drawing");
 }
 

@@ -1,6 +1,7 @@
 //! `photoledger compare A.toml B.toml ... --data DATA... [--free A.toml:KEY,KEY ...]`.
 
-use super::fit::{fit_one, read_data};
+use super::Exit;
+use super::fit::{Limits, fit_one, not_converged, read_data};
 use super::output::{out, outln};
 use photoledger::Error;
 use photoledger::fit::mechanism::FitOptions;
@@ -33,15 +34,17 @@ pub struct CompareArgs {
     /// Seed of the random starts.
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
+    #[command(flatten)]
+    pub limits: Limits,
 }
 
-pub fn run(a: &CompareArgs) -> photoledger::Result<()> {
+pub fn run(a: &CompareArgs) -> photoledger::Result<Exit> {
     let experiments = read_data(&a.data)?;
-    let opts = FitOptions {
+    let opts = a.limits.apply(FitOptions {
         starts: a.starts.max(1),
         seed: a.seed,
         ..FitOptions::default()
-    };
+    })?;
     for f in &a.free {
         let Some((file, _)) = f.rsplit_once(".toml:") else {
             return Err(Error::Usage(format!("--free {f}: expected FILE.toml:KEY,KEY")));
@@ -105,5 +108,11 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<()> {
         out!("{text}")?;
         outln!("wrote {}/ ranking.txt ranking.json fits.svg", a.out.display())?;
     }
-    Ok(())
+    let mut code = Exit::Success;
+    for r in &ranked {
+        if not_converged(&r.network, &r.fit) != Exit::Success {
+            code = Exit::StoppedAtLimit;
+        }
+    }
+    Ok(code)
 }

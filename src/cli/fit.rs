@@ -1,11 +1,14 @@
-//! `photoledger fit FILE --data DATA... [--free KEYS] [--out DIR] [--json] [--starts N] [--seed S] [--scale-errors]`.
+//! `photoledger fit FILE --data DATA... [--free KEYS] [--out DIR] [--json] [--starts N] [--seed S] [--scale-errors]
+//! [--max-evaluations N] [--time-limit TIME]`.
 
-use super::output::{out, outln};
+use super::Exit;
+use super::output::{noteln, out, outln};
 use photoledger::Error;
 use photoledger::file::data::{self, Experiment};
-use photoledger::fit::mechanism::FitOptions;
+use photoledger::fit::mechanism::{DEFAULT_MAX_EVALUATIONS, FitOptions, Progress};
 use photoledger::fit::run;
 use photoledger::report::{fit as rf, write_atomic};
+use photoledger::units::{self, Quantity};
 use std::path::{Path, PathBuf};
 
 /// Options of `fit`.
@@ -38,6 +41,48 @@ pub struct FitArgs {
     /// (by default given sd are taken as known).
     #[arg(long)]
     pub scale_errors: bool,
+    #[command(flatten)]
+    pub limits: Limits,
+}
+
+/// When a search gives up: shared by `fit` and `compare`.
+#[derive(clap::Args, Debug, Clone)]
+pub struct Limits {
+    /// Stop after this many model evaluations over all starts (each integrates every experiment
+    /// once); the best point so far is reported as not converged.
+    #[arg(long, default_value_t = DEFAULT_MAX_EVALUATIONS, value_name = "N")]
+    pub max_evaluations: usize,
+    /// Stop after this much wall-clock time, e.g. "10 min" (default: no limit); the best point
+    /// so far is reported as not converged.
+    #[arg(long, value_name = "TIME")]
+    pub time_limit: Option<String>,
+}
+
+impl Limits {
+    /// `opts` with these limits.
+    pub fn apply(&self, opts: FitOptions) -> photoledger::Result<FitOptions> {
+        if self.max_evaluations == 0 {
+            return Err(Error::Usage("--max-evaluations must be at least 1".into()));
+        }
+        let time_limit = match &self.time_limit {
+            None => None,
+            Some(text) => {
+                let t = units::parse(text, Quantity::Time)
+                    .map_err(|e| Error::Usage(format!("--time-limit: {e}; expected {}", Quantity::Time.accepted())))?;
+                if !(t > 0.0 && t.is_finite()) {
+                    return Err(Error::Usage(format!(
+                        "--time-limit \"{text}\": the time must be positive"
+                    )));
+                }
+                Some(std::time::Duration::from_secs_f64(t))
+            }
+        };
+        Ok(FitOptions {
+            max_evaluations: self.max_evaluations,
+            time_limit,
+            ..opts
+        })
+    }
 }
 
 /// Read every data argument.
@@ -49,18 +94,32 @@ pub fn read_data(paths: &[PathBuf]) -> photoledger::Result<Vec<Experiment>> {
     Ok(all)
 }
 
-/// A progress bar on stderr when it is a terminal.
-pub fn bar(n: usize, what: &str) -> indicatif::ProgressBar {
+/// A progress bar of model evaluations against the cap on stderr, hidden when stderr is not a
+/// terminal.
+pub fn bar(cap: usize, what: &str) -> indicatif::ProgressBar {
     use std::io::IsTerminal;
     if !std::io::stderr().is_terminal() {
         return indicatif::ProgressBar::hidden();
     }
-    let b = indicatif::ProgressBar::new(n as u64);
-    if let Ok(s) = indicatif::ProgressStyle::with_template("{msg} [{bar:30}] {pos}/{len} starts") {
+    let b = indicatif::ProgressBar::new(cap as u64);
+    if let Ok(s) =
+        indicatif::ProgressStyle::with_template("{prefix} [{bar:30}] {pos}/{len} evaluations, {elapsed} {msg}")
+    {
         b.set_style(s);
     }
-    b.set_message(what.to_string());
+    b.set_prefix(what.to_string());
     b
+}
+
+/// Show `p` on the bar: evaluations used, starts finished and the best χ² so far.
+fn show(b: &indicatif::ProgressBar, p: &Progress) {
+    b.set_position(p.evaluations as u64);
+    let chi2 = if p.best_chi2.is_finite() {
+        photoledger::units::sig(p.best_chi2, 5)
+    } else {
+        "–".into()
+    };
+    b.set_message(format!("(start {}/{} done; best χ² {chi2})", p.starts_done, p.starts));
 }
 
 /// A fitted network: the file as read, and its fit.
@@ -82,20 +141,21 @@ pub fn fit_one(
     };
     super::print_warnings(&super::build(&loaded, &args)?);
     let base = photoledger::Overrides::parse(set).map_err(Error::Usage)?.pairs();
-    let pb = bar(opts.starts.max(1), &file.display().to_string());
-    let fitted = run::fit_loaded(&loaded, base, free, experiments, opts, &|| pb.inc(1))?;
+    let pb = bar(opts.max_evaluations, &file.display().to_string());
+    let fitted = run::fit_loaded(&loaded, base, free, experiments, opts, &|p| show(&pb, p));
     pb.finish_and_clear();
+    let fitted = fitted?;
     Ok((loaded, fitted))
 }
 
-pub fn run(a: &FitArgs) -> photoledger::Result<()> {
+pub fn run(a: &FitArgs) -> photoledger::Result<Exit> {
     let experiments = read_data(&a.data)?;
-    let opts = FitOptions {
+    let opts = a.limits.apply(FitOptions {
         starts: a.starts.max(1),
         seed: a.seed,
         scale_errors: a.scale_errors,
         ..FitOptions::default()
-    };
+    })?;
     let (loaded, fitted) = fit_one(&a.file, &a.set, &a.free, &experiments, &opts)?;
     let run::Fitted {
         result,
@@ -138,5 +198,20 @@ pub fn run(a: &FitArgs) -> photoledger::Result<()> {
             out.display()
         )?;
     }
-    Ok(())
+    Ok(not_converged(&name, &result))
+}
+
+/// A fit stopped before converging is a numerical failure for the exit code (4), after its best
+/// point has been printed and written.
+pub fn not_converged(name: &str, r: &photoledger::fit::FitResult) -> Exit {
+    match r.stopped {
+        None => Exit::Success,
+        Some(s) => {
+            noteln!(
+                "{name}: the fit did not converge ({}); the best point so far was reported and written, marked not converged",
+                s.describe()
+            );
+            Exit::StoppedAtLimit
+        }
+    }
 }

@@ -105,8 +105,7 @@ pub enum Exit {
     /// Answered: the target is not reachable (`plan`, with or without `--in`).
     Unreachable = 5,
     /// Stopped at a limit (evaluations or time) before converging; the best point is reported.
-    /// Reserved for the fitting commands' limits.
-    #[allow(dead_code)]
+    /// `fit` and `compare` at `--max-evaluations` or `--time-limit`.
     StoppedAtLimit = 6,
 }
 
@@ -134,7 +133,7 @@ impl Exit {
         ),
         (
             Exit::StoppedAtLimit,
-            "stopped at a limit (evaluations or time) before converging; the best point found is reported",
+            "stopped at a limit (`fit`, `compare`: `--max-evaluations` or `--time-limit`) before converging; the best point found is reported and written, marked not converged",
         ),
     ];
 
@@ -165,8 +164,8 @@ pub fn run() -> i32 {
         Command::Plan(a) => return exit_of(plan::run(&a)),
         Command::Actinometer(a) => actinometer::run(&a),
         Command::Report(a) => report::run(&a),
-        Command::Fit(a) => fit::run(&a),
-        Command::Compare(a) => compare::run(&a),
+        Command::Fit(a) => return exit_of(fit::run(&a)),
+        Command::Compare(a) => return exit_of(compare::run(&a)),
     };
     exit_of(result.map(|()| Exit::Success))
 }

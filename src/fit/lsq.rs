@@ -15,6 +15,10 @@
 use levenberg_marquardt::{LeastSquaresProblem, LevenbergMarquardt};
 use nalgebra::{DMatrix, DVector, Dyn, Owned};
 use statrs::distribution::{ContinuousCDF, Normal, StudentsT};
+use std::cell::RefCell;
+use std::sync::Mutex;
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::time::{Duration, Instant};
 
 /// How the covariance of the parameters is scaled.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -64,9 +68,10 @@ impl Transform {
         match self {
             Transform::Identity => 1.0,
             Transform::Log => z.exp(),
+            // x(1 − x) written so that it does not round to 0 far out on either side.
             Transform::Logistic => {
-                let x = self.inverse(z);
-                x * (1.0 - x)
+                let e = (-z.abs()).exp();
+                e / ((1.0 + e) * (1.0 + e))
             }
         }
     }
@@ -111,7 +116,8 @@ pub struct Settings {
     pub xtol: f64,
     /// Orthogonality of residuals and Jacobian columns below which the search stops.
     pub gtol: f64,
-    /// Evaluation budget, in multiples of (number of parameters + 1).
+    /// The search's own budget of residual evaluations (Jacobians not counted), in multiples of
+    /// (number of parameters + 1); a [`Budget`] caps every evaluation, Jacobians included.
     pub patience: usize,
     /// Relative central-difference step on the transformed scale.
     pub step: f64,
@@ -169,18 +175,136 @@ pub struct Solution {
     pub correlation: DMatrix<f64>,
     /// Reciprocal condition number of JᵀJ scaled to unit diagonal (near 0: not identifiable).
     pub rcond: f64,
-    /// Residual evaluations used.
+    /// Model evaluations used by this search (Jacobian columns included).
     pub evaluations: usize,
     /// How the search ended, in words.
     pub termination: String,
+    /// False when the search stopped before meeting its tolerances (an evaluation cap or a time
+    /// limit): the values are then the best point reached, not an optimum.
+    pub converged: bool,
 }
 
-/// The problem as the LM crate sees it: transformed parameters.
+/// Why a search stopped before converging.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Stop {
+    /// The cap on model evaluations (over every start) was reached.
+    EvaluationCap(usize),
+    /// The wall-clock limit was reached, s.
+    TimeLimit(f64),
+    /// The search's own budget ([`Settings::patience`]) was used up.
+    Patience,
+}
+
+impl Stop {
+    /// The reason in words.
+    pub fn describe(&self) -> String {
+        match self {
+            Stop::EvaluationCap(n) => format!("stopped at the cap of {n} model evaluations"),
+            Stop::TimeLimit(s) => format!("stopped at the time limit of {} s", crate::units::sig(*s, 3)),
+            Stop::Patience => "stopped: the search's own evaluation budget was used up".into(),
+        }
+    }
+}
+
+/// Limits shared by every start of a fit (a cap on model evaluations and an optional
+/// wall-clock limit), and what they have seen so far: evaluations used and the best χ².
+#[derive(Debug)]
+pub struct Budget {
+    max_evaluations: usize,
+    limit: Option<Duration>,
+    started: Instant,
+    used: AtomicUsize,
+    state: Mutex<(Option<Stop>, f64)>,
+}
+
+impl Budget {
+    /// At most `max_evaluations` model evaluations, and at most `limit` of wall-clock time.
+    pub fn new(max_evaluations: usize, limit: Option<Duration>) -> Self {
+        Budget {
+            max_evaluations,
+            limit,
+            started: Instant::now(),
+            used: AtomicUsize::new(0),
+            state: Mutex::new((None, f64::INFINITY)),
+        }
+    }
+
+    /// No limits.
+    pub fn unlimited() -> Self {
+        Budget::new(usize::MAX, None)
+    }
+
+    /// The cap on model evaluations.
+    pub fn max_evaluations(&self) -> usize {
+        self.max_evaluations
+    }
+
+    /// Model evaluations used so far.
+    pub fn used(&self) -> usize {
+        self.used.load(Ordering::Relaxed)
+    }
+
+    /// Time since the budget was made.
+    pub fn elapsed(&self) -> Duration {
+        self.started.elapsed()
+    }
+
+    /// The lowest χ² seen so far (∞ before the first evaluation).
+    pub fn best_chi2(&self) -> f64 {
+        self.state.lock().map_or(f64::INFINITY, |s| s.1)
+    }
+
+    /// Why the searches were stopped, if they were.
+    pub fn stopped(&self) -> Option<Stop> {
+        self.state.lock().ok().and_then(|s| s.0)
+    }
+
+    fn stop(&self, why: Stop) {
+        if let Ok(mut s) = self.state.lock()
+            && s.0.is_none()
+        {
+            s.0 = Some(why);
+        }
+    }
+
+    /// Take one evaluation; false (and the reason recorded) when a limit is reached.
+    fn take(&self) -> bool {
+        if self.stopped().is_some() {
+            return false;
+        }
+        if self.used.fetch_add(1, Ordering::Relaxed) >= self.max_evaluations {
+            self.stop(Stop::EvaluationCap(self.max_evaluations));
+            return false;
+        }
+        if let Some(l) = self.limit
+            && self.started.elapsed() >= l
+        {
+            self.stop(Stop::TimeLimit(l.as_secs_f64()));
+            return false;
+        }
+        true
+    }
+
+    fn offer(&self, chi2: f64) {
+        if let Ok(mut s) = self.state.lock()
+            && chi2 < s.1
+        {
+            s.1 = chi2;
+        }
+    }
+}
+
+/// The problem as the LM crate sees it: transformed parameters. Every evaluation is taken
+/// from the budget, and the best point seen (χ², z) is kept for a search that is stopped.
 struct Problem<'a> {
     model: &'a dyn Residuals,
     transforms: &'a [Transform],
     z: DVector<f64>,
     step: f64,
+    budget: &'a Budget,
+    tick: &'a (dyn Fn(&Budget) + Sync),
+    best: RefCell<Option<(f64, Vec<f64>)>>,
+    evaluations: RefCell<usize>,
 }
 
 impl Problem<'_> {
@@ -189,8 +313,28 @@ impl Problem<'_> {
     }
 
     fn eval(&self, z: &[f64]) -> Option<Vec<f64>> {
-        let r = self.model.residuals(&self.natural(z))?;
-        r.iter().all(|v| v.is_finite()).then_some(r)
+        // The start is always evaluated (counted, never refused), so a stopped search has a point.
+        let first = *self.evaluations.borrow() == 0;
+        if first {
+            self.budget.used.fetch_add(1, Ordering::Relaxed);
+        } else if !self.budget.take() {
+            return None;
+        }
+        *self.evaluations.borrow_mut() += 1;
+        let r = self
+            .model
+            .residuals(&self.natural(z))
+            .filter(|r| r.iter().all(|v| v.is_finite()));
+        if let Some(r) = &r {
+            let chi2: f64 = r.iter().map(|v| v * v).sum();
+            let mut best = self.best.borrow_mut();
+            if best.as_ref().is_none_or(|b| chi2 < b.0) {
+                *best = Some((chi2, z.to_vec()));
+            }
+            self.budget.offer(chi2);
+        }
+        (self.tick)(self.budget);
+        r
     }
 }
 
@@ -234,12 +378,26 @@ impl LeastSquaresProblem<f64, Dyn, Dyn> for Problem<'_> {
     }
 }
 
-/// Fit `model` from natural `start` values with the given transforms.
+/// Fit `model` from natural `start` values with the given transforms, without limits.
 pub fn fit(
     model: &dyn Residuals,
     start: &[f64],
     transforms: &[Transform],
     settings: &Settings,
+) -> Result<Solution, FitFailure> {
+    fit_within(model, start, transforms, settings, &Budget::unlimited(), &|_| {})
+}
+
+/// Fit `model` from natural `start` values with the given transforms, every model evaluation
+/// taken from `budget` and followed by a call of `tick`. When the budget runs out the search
+/// ends at the best point it has seen, marked not converged ([`Solution::converged`]).
+pub fn fit_within(
+    model: &dyn Residuals,
+    start: &[f64],
+    transforms: &[Transform],
+    settings: &Settings,
+    budget: &Budget,
+    tick: &(dyn Fn(&Budget) + Sync),
 ) -> Result<Solution, FitFailure> {
     assert_eq!(start.len(), transforms.len(), "one transform per parameter");
     let z0: Vec<f64> = start.iter().zip(transforms).map(|(x, t)| t.forward(*x)).collect();
@@ -248,6 +406,10 @@ pub fn fit(
         transforms,
         z: DVector::from_vec(z0),
         step: settings.step,
+        budget,
+        tick,
+        best: RefCell::new(None),
+        evaluations: RefCell::new(0),
     };
     if problem.residuals().is_none() {
         return Err(FitFailure("the model cannot be evaluated at the start".into()));
@@ -259,25 +421,29 @@ pub fn fit(
         .with_patience(settings.patience)
         .minimize(problem);
     use levenberg_marquardt::TerminationReason as T;
-    let termination = match report.termination {
-        T::Converged { .. } => "converged".to_string(),
-        T::Orthogonal => "converged (gradient orthogonal to residuals)".to_string(),
-        T::ResidualsZero => "converged (residuals zero)".to_string(),
-        T::NoImprovementPossible(w) => format!("converged to machine precision ({w})"),
-        T::LostPatience => "stopped: evaluation budget used up".to_string(),
-        other => return Err(FitFailure(format!("the search failed: {other:?}"))),
+    let stop = match &report.termination {
+        T::User(_) if budget.stopped().is_some() => budget.stopped(),
+        T::LostPatience => Some(Stop::Patience),
+        _ => None,
     };
-    let z: Vec<f64> = problem.z.iter().copied().collect();
+    let termination = match (stop, report.termination) {
+        (Some(s), _) => format!("{}; the best point reached is reported, not an optimum", s.describe()),
+        (None, T::Converged { .. }) => "converged".to_string(),
+        (None, T::Orthogonal) => "converged (gradient orthogonal to residuals)".to_string(),
+        (None, T::ResidualsZero) => "converged (residuals zero)".to_string(),
+        (None, T::NoImprovementPossible(w)) => format!("converged to machine precision ({w})"),
+        (None, other) => return Err(FitFailure(format!("the search failed: {other:?}"))),
+    };
+    let evaluations = *problem.evaluations.borrow();
+    // A stopped search may have left the parameters at an untried step: take the best point seen.
+    let z: Vec<f64> = match (stop, problem.best.borrow().as_ref()) {
+        (Some(_), Some((_, z))) => z.clone(),
+        _ => problem.z.iter().copied().collect(),
+    };
     let values = problem.natural(&z);
-    statistics(
-        model,
-        values,
-        z,
-        transforms,
-        settings,
-        report.number_of_evaluations,
-        termination,
-    )
+    let mut s = statistics(model, values, z, transforms, settings, evaluations, termination)?;
+    s.converged = stop.is_none();
+    Ok(s)
 }
 
 /// Linearised statistics at the optimum `values` (natural) with fitted values `z`.
@@ -305,31 +471,69 @@ fn statistics(
     };
     let jz = jacobian(&eval, &z, settings.step)
         .ok_or_else(|| FitFailure("the model cannot be evaluated next to the optimum".into()))?;
-    let mut jx = jz.clone();
-    for (j, t) in transforms.iter().enumerate() {
-        let s = t.slope(z[j]);
-        jx.column_mut(j).scale_mut(1.0 / s);
+    // A parameter on the edge of its range has no linearised error (the data bound it from one
+    // side at most): it is held at its value and the others' errors are conditional on it.
+    let inside: Vec<usize> = (0..p).filter(|&j| !transforms[j].at_bound(z[j])).collect();
+    let m = inside.len();
+    let mut jx = DMatrix::zeros(n, m);
+    for (k, &j) in inside.iter().enumerate() {
+        let s = transforms[j].slope(z[j]);
+        jx.set_column(k, &(jz.column(j) / s));
+    }
+    if jx.iter().any(|v| !v.is_finite()) {
+        return Err(FitFailure(
+            "the Jacobian at the optimum is not finite, so no errors can be given".into(),
+        ));
     }
     let info = jx.transpose() * &jx;
     // Scale to unit diagonal before judging the conditioning (units differ between parameters).
-    let d: Vec<f64> = (0..p).map(|i| info[(i, i)].sqrt().max(f64::MIN_POSITIVE)).collect();
-    let scaled = DMatrix::from_fn(p, p, |i, j| info[(i, j)] / (d[i] * d[j]));
-    let eig = scaled.clone().symmetric_eigen();
-    let (lo, hi) = eig
-        .eigenvalues
-        .iter()
-        .fold((f64::INFINITY, 0.0f64), |(lo, hi), &e| (lo.min(e), hi.max(e)));
-    let rcond = if hi > 0.0 { (lo / hi).max(0.0) } else { 0.0 };
-    let inv_scaled = scaled
-        .clone()
-        .pseudo_inverse(1e-14)
-        .map_err(|e| FitFailure(format!("the information matrix cannot be inverted: {e}")))?;
+    let d: Vec<f64> = (0..m).map(|i| info[(i, i)].sqrt().max(f64::MIN_POSITIVE)).collect();
+    let scaled = DMatrix::from_fn(m, m, |i, j| info[(i, j)] / (d[i] * d[j]));
+    // Bounded iterations: the decompositions end (with an error) rather than loop.
+    const MAX_SWEEPS: usize = 10_000;
+    let rcond = if m == 0 {
+        0.0
+    } else {
+        let eig = scaled
+            .clone()
+            .try_symmetric_eigen(f64::EPSILON, MAX_SWEEPS)
+            .ok_or_else(|| FitFailure("the information matrix has no eigen-decomposition".into()))?;
+        let (lo, hi) = eig
+            .eigenvalues
+            .iter()
+            .fold((f64::INFINITY, 0.0f64), |(lo, hi), &e| (lo.min(e), hi.max(e)));
+        if hi > 0.0 { (lo / hi).max(0.0) } else { 0.0 }
+    };
+    let inv_scaled = if m == 0 {
+        DMatrix::zeros(0, 0)
+    } else {
+        scaled
+            .clone()
+            .try_svd(true, true, f64::EPSILON, MAX_SWEEPS)
+            .ok_or_else(|| FitFailure("the information matrix cannot be decomposed".into()))?
+            .pseudo_inverse(1e-14)
+            .map_err(|e| FitFailure(format!("the information matrix cannot be inverted: {e}")))?
+    };
     let scale = match settings.errors {
         ErrorScale::ReducedChi2 if reduced_chi2.is_finite() => reduced_chi2,
         _ => 1.0,
     };
-    let covariance = DMatrix::from_fn(p, p, |i, j| inv_scaled[(i, j)] / (d[i] * d[j]) * scale);
+    let mut covariance = DMatrix::from_element(p, p, f64::NAN);
+    for (a, &i) in inside.iter().enumerate() {
+        for (b, &j) in inside.iter().enumerate() {
+            covariance[(i, j)] = inv_scaled[(a, b)] / (d[a] * d[b]) * scale;
+        }
+    }
     let standard_errors: Vec<f64> = (0..p).map(|i| covariance[(i, i)].max(0.0).sqrt()).collect();
+    let standard_errors: Vec<f64> = (0..p)
+        .map(|i| {
+            if inside.contains(&i) {
+                standard_errors[i]
+            } else {
+                f64::NAN
+            }
+        })
+        .collect();
     let correlation = DMatrix::from_fn(p, p, |i, j| {
         let s = standard_errors[i] * standard_errors[j];
         if s > 0.0 { covariance[(i, j)] / s } else { f64::NAN }
@@ -338,7 +542,8 @@ fn statistics(
         ErrorScale::ReducedChi2 => t_quantile(0.975, dof),
         ErrorScale::Unscaled => normal_quantile(0.975),
     };
-    // On the fitting scale: the standard error of z by the same delta method, se_z = se / |dx/dz|.
+    // On the fitting scale: the standard error of z by the same delta method, se_z = se / |dx/dz|
+    // (NaN, no interval, for a parameter on the edge).
     let intervals = (0..p)
         .map(|j| {
             let t = transforms[j];
@@ -363,7 +568,71 @@ fn statistics(
         rcond,
         evaluations,
         termination,
+        converged: true,
     })
+}
+
+/// How the 95 % intervals were made: the one statement every report prints (text, HTML, JSON).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum IntervalMethod {
+    /// Student t with `dof` degrees of freedom (σ estimated from the scatter).
+    StudentT {
+        /// Degrees of freedom n − p.
+        dof: usize,
+        /// Its 97.5 % point.
+        quantile: f64,
+    },
+    /// The normal distribution (σ known).
+    Normal {
+        /// Its 97.5 % point.
+        quantile: f64,
+    },
+}
+
+impl IntervalMethod {
+    /// The distribution's name as JSON gives it: "student_t" or "normal".
+    pub fn name(&self) -> &'static str {
+        match self {
+            IntervalMethod::StudentT { .. } => "student_t",
+            IntervalMethod::Normal { .. } => "normal",
+        }
+    }
+
+    /// The 97.5 % point used.
+    pub fn quantile(&self) -> f64 {
+        match self {
+            IntervalMethod::StudentT { quantile, .. } | IntervalMethod::Normal { quantile } => *quantile,
+        }
+    }
+
+    /// In words, e.g. "95 % intervals from Student t with 12 degrees of freedom (97.5 % point 2.179)".
+    pub fn describe(&self) -> String {
+        match self {
+            IntervalMethod::StudentT { dof, quantile } => format!(
+                "95 % intervals from Student t with {dof} degrees of freedom (97.5 % point {})",
+                crate::units::sig(*quantile, 4)
+            ),
+            IntervalMethod::Normal { quantile } => format!(
+                "95 % intervals from the normal distribution (97.5 % point {}), the sd being taken as known",
+                crate::units::sig(*quantile, 4)
+            ),
+        }
+    }
+}
+
+impl Solution {
+    /// How the intervals of this solution were made (from the same scale and quantile they used).
+    pub fn interval_method(&self) -> IntervalMethod {
+        match self.errors {
+            ErrorScale::ReducedChi2 => IntervalMethod::StudentT {
+                dof: self.dof,
+                quantile: self.quantile,
+            },
+            ErrorScale::Unscaled => IntervalMethod::Normal {
+                quantile: self.quantile,
+            },
+        }
+    }
 }
 
 /// The `p` quantile of Student's t with `dof` degrees of freedom (statrs); NaN for dof 0.
@@ -542,6 +811,49 @@ mod tests {
             "{lo}"
         );
         assert!((hi - v * (s.quantile * se / v).exp()).abs() < 1e-12, "{hi}");
+    }
+
+    #[test]
+    fn a_fraction_the_data_push_past_its_range_ends_on_the_edge() {
+        // Readings 1.3 and 1.4 (σ = 0.02) of a quantity kept in [0, 1], and 2.0 and 2.2 (σ = 0.1)
+        // of an unbounded one: the first ends on its edge, 1 (in floating point exactly, so
+        // dx/dz of the logistic rounds to 0 there), the second at the mean 2.1 with se
+        // 0.1/√2 (common practice). The fit must end (on the main branch of December 2026 the
+        // covariance held 0/0 and the SVD never returned), with no error claimed for the first.
+        let (tx, rx) = std::sync::mpsc::channel();
+        std::thread::spawn(move || {
+            let m = |p: &[f64]| {
+                Some(vec![
+                    (1.3 - p[0]) / 0.02,
+                    (1.4 - p[0]) / 0.02,
+                    (2.0 - p[1]) / 0.1,
+                    (2.2 - p[1]) / 0.1,
+                ])
+            };
+            let known = Settings {
+                errors: ErrorScale::Unscaled,
+                ..Settings::default()
+            };
+            let t = [Transform::Logistic, Transform::Identity];
+            let _ = tx.send((fit(&m, &[0.5, 0.0], &t, &known), t));
+        });
+        let (s, t) = rx
+            .recv_timeout(std::time::Duration::from_secs(60))
+            .expect("the fit must end");
+        let s = s.unwrap();
+        assert!(s.converged, "{}", s.termination);
+        assert!(s.values[0] > 1.0 - 1e-6, "{}", s.values[0]);
+        assert!(s.standard_errors[0].is_nan() && s.intervals[0].0.is_nan());
+        assert!((s.values[1] - 2.1).abs() < 1e-9);
+        assert!(
+            (s.standard_errors[1] - 0.1 / 2f64.sqrt()).abs() < 1e-6,
+            "{}",
+            s.standard_errors[1]
+        );
+        assert!(s.warnings(&t).contains(&Identifiability::AtBound(0)));
+        // The logistic slope stays positive far out, where x(1 − x) rounds to 0.
+        assert!(Transform::Logistic.slope(40.0) > 0.0 && Transform::Logistic.slope(-40.0) > 0.0);
+        assert!((Transform::Logistic.slope(40.0) / (-40f64).exp() - 1.0).abs() < 1e-12);
     }
 
     #[test]

@@ -1,7 +1,8 @@
 //! Fitting a network's parameters to experiments: each evaluation applies the parameter values
 //! as `--set` overrides, builds and compiles the network, and integrates it to the data times.
 
-use super::lsq::{self, ErrorScale, Identifiability, Settings, Solution, Transform};
+use super::goodness::{Goodness, RunsTest};
+use super::lsq::{self, Budget, ErrorScale, Identifiability, Settings, Solution, Transform};
 use crate::error::{Diagnostic, Error, Result};
 use crate::file::Loaded;
 use crate::file::data::{EndpointKind, Experiment};
@@ -381,7 +382,15 @@ pub struct FitOptions {
     /// Scale the standard errors by the reduced χ² even when every observation has an sd
     /// (by default given sd are taken as known and the covariance is left unscaled).
     pub scale_errors: bool,
+    /// Cap on model evaluations over all starts (each evaluation integrates every experiment
+    /// once; a Jacobian costs two per free parameter). Default [`DEFAULT_MAX_EVALUATIONS`].
+    pub max_evaluations: usize,
+    /// Optional wall-clock limit on the search.
+    pub time_limit: Option<std::time::Duration>,
 }
+
+/// The default cap on model evaluations of a fit, over all starts.
+pub const DEFAULT_MAX_EVALUATIONS: usize = 2000;
 
 impl Default for FitOptions {
     fn default() -> Self {
@@ -397,8 +406,27 @@ impl Default for FitOptions {
                 errors: ErrorScale::ReducedChi2,
             },
             scale_errors: false,
+            max_evaluations: DEFAULT_MAX_EVALUATIONS,
+            time_limit: None,
         }
     }
+}
+
+/// How far a fit has got, as reported to the progress callback.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Progress {
+    /// Model evaluations used so far, over all starts.
+    pub evaluations: usize,
+    /// The cap on them.
+    pub max_evaluations: usize,
+    /// The lowest χ² seen so far (∞ before the first evaluation).
+    pub best_chi2: f64,
+    /// Starts finished.
+    pub starts_done: usize,
+    /// Starts in all.
+    pub starts: usize,
+    /// Time since the search began, s.
+    pub elapsed: f64,
 }
 
 /// Why the standard errors are, or are not, scaled by the reduced χ².
@@ -430,17 +458,18 @@ impl ErrorBasis {
         }
     }
 
-    /// What was done and why, in words.
+    /// What was done and why, in words (the interval method is stated once, by
+    /// [`lsq::Solution::interval_method`]).
     pub fn describe(self) -> &'static str {
         match self {
             ErrorBasis::KnownSd => {
-                "standard errors not scaled by the reduced χ²: every observation has an sd, taken as known (intervals with the normal 97.5 % point; --scale-errors scales them)"
+                "standard errors not scaled by the reduced χ²: every observation has an sd, taken as known (--scale-errors scales them)"
             }
             ErrorBasis::ScaledOnRequest => {
-                "standard errors scaled by the reduced χ², as asked (--scale-errors), though every observation has an sd (intervals with Student t, n − p degrees of freedom)"
+                "standard errors scaled by the reduced χ², as asked (--scale-errors), though every observation has an sd"
             }
             ErrorBasis::EstimatedSd => {
-                "standard errors scaled by the reduced χ²: some observations have no sd, so σ is estimated from the scatter (intervals with Student t, n − p degrees of freedom)"
+                "standard errors scaled by the reduced χ²: some observations have no sd, so σ is estimated from the scatter"
             }
         }
     }
@@ -472,6 +501,12 @@ pub struct FitResult {
     pub weighted: bool,
     /// Whether and why the standard errors are scaled by the reduced χ².
     pub errors: ErrorBasis,
+    /// Whether the model describes the data: χ² against its degrees of freedom (sd given) and
+    /// the runs of residual signs per experiment.
+    pub goodness: Goodness,
+    /// Why the search was stopped before converging (None: it converged); the solution is then
+    /// the best point reached.
+    pub stopped: Option<lsq::Stop>,
     /// −2 ln L at the optimum (χ² with given σ; n ln(χ²/n) when σ is estimated).
     pub minus_two_log_likelihood: f64,
     /// Number of estimated quantities (free parameters, plus σ when estimated).
@@ -511,9 +546,11 @@ pub fn starts(setup: &Setup, opts: &FitOptions) -> Vec<Vec<f64>> {
     out
 }
 
-/// Fit: every start in parallel (rayon), the best χ² kept (ties to the earlier start);
-/// `progress` is called once per finished start.
-pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn() + Sync)) -> Result<FitResult> {
+/// Fit: every start in parallel (rayon), the best χ² kept (ties to the earlier start), within
+/// the evaluation cap and time limit of `opts` (on either, each start ends at the best point it
+/// reached and the result says so in [`FitResult::stopped`]); `progress` is called after every
+/// model evaluation and every finished start.
+pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn(&Progress) + Sync)) -> Result<FitResult> {
     let transforms = setup.transforms();
     let all = starts(setup, opts);
     let res = |x: &[f64]| setup.residuals(x);
@@ -524,11 +561,24 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn() + Sync)) -> Re
         errors: errors.scale(),
         ..opts.settings
     };
+    let budget = Budget::new(opts.max_evaluations, opts.time_limit);
+    let done = std::sync::atomic::AtomicUsize::new(0);
+    let report = |b: &Budget| {
+        progress(&Progress {
+            evaluations: b.used().min(b.max_evaluations()),
+            max_evaluations: b.max_evaluations(),
+            best_chi2: b.best_chi2(),
+            starts_done: done.load(std::sync::atomic::Ordering::Relaxed),
+            starts: all.len(),
+            elapsed: b.elapsed().as_secs_f64(),
+        })
+    };
     let outcomes: Vec<std::result::Result<Solution, String>> = all
         .par_iter()
         .map(|x0| {
-            let r = lsq::fit(&res, x0, &transforms, &settings).map_err(|e| e.0);
-            progress();
+            let r = lsq::fit_within(&res, x0, &transforms, &settings, &budget, &report).map_err(|e| e.0);
+            done.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+            report(&budget);
             r
         })
         .collect();
@@ -559,7 +609,10 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn() + Sync)) -> Re
             Identifiability::Correlated(i, j, c) => {
                 format!("{} and {} correlate ({c:+.3}): the data mostly fix a combination of them", names[*i], names[*j])
             }
-            Identifiability::AtBound(i) => format!("{} ended on the edge of its range", names[*i]),
+            Identifiability::AtBound(i) => format!(
+                "{} ended on the edge of its range: it has no standard error or interval, and the others' are given with it held there",
+                names[*i]
+            ),
             Identifiability::Loose(i) => format!("{}: the standard error exceeds the value", names[*i]),
         })
         .collect();
@@ -571,6 +624,8 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn() + Sync)) -> Re
         (n as f64 * (solution.chi2 / n as f64).ln(), p + 1)
     };
     let (aicc, bic) = criteria(m2ll, k, n);
+    let goodness = goodness(setup, &solution, weighted);
+    let stopped = (!solution.converged).then(|| budget.stopped().unwrap_or(lsq::Stop::Patience));
     Ok(FitResult {
         free: setup.free.clone(),
         starts: all
@@ -586,11 +641,57 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn() + Sync)) -> Re
         n,
         weighted,
         errors,
+        goodness,
+        stopped,
         minus_two_log_likelihood: m2ll,
         k,
         aicc,
         bic,
     })
+}
+
+/// The goodness-of-fit checks at `solution`: the χ² test when every observation has a given sd
+/// (`weighted`), and the runs of residual signs of each experiment's time courses, each
+/// species in time order (end points are single values and take no part).
+fn goodness(setup: &Setup, solution: &Solution, weighted: bool) -> Goodness {
+    let mut runs = Vec::new();
+    let mut at = 0;
+    for e in setup.experiments {
+        let r = &solution.residuals[at..at + e.points.len()];
+        at += e.points.len() + e.endpoints.len();
+        let mut species: Vec<&str> = Vec::new();
+        for p in &e.points {
+            if !species.contains(&p.species.as_str()) {
+                species.push(&p.species);
+            }
+        }
+        if species.is_empty() {
+            continue;
+        }
+        let sequences: Vec<Vec<f64>> = species
+            .iter()
+            .map(|s| {
+                let mut v: Vec<(f64, f64)> = e
+                    .points
+                    .iter()
+                    .zip(r)
+                    .filter(|(p, _)| p.species == *s)
+                    .map(|(p, r)| (p.time, *r))
+                    .collect();
+                v.sort_by(|a, b| a.0.total_cmp(&b.0));
+                v.into_iter().map(|x| x.1).collect()
+            })
+            .collect();
+        runs.push(RunsTest::new(&e.name, &sequences));
+    }
+    Goodness {
+        chi2: if weighted {
+            super::goodness::Chi2Test::new(solution.chi2, solution.dof)
+        } else {
+            None
+        },
+        runs,
+    }
 }
 
 /// AICc and BIC from −2 ln L, the number of estimated quantities `k` and observations `n`

@@ -4,6 +4,7 @@
 //! linearised statistics); the photochemical fit builds on it.
 
 pub mod compare;
+pub mod goodness;
 pub mod lsq;
 pub mod mechanism;
 pub mod run;

@@ -2,7 +2,7 @@
 //! `report` commands share (they read the files; this runs the engines on what was read).
 
 use super::compare;
-use super::mechanism::{self, Accuracy, Curve, FitOptions, FitResult, Setup};
+use super::mechanism::{self, Accuracy, Curve, FitOptions, FitResult, Progress, Setup};
 use crate::error::{Error, Result};
 use crate::file::Loaded;
 use crate::file::data::Experiment;
@@ -33,14 +33,15 @@ pub struct Fitted {
 }
 
 /// Fit `loaded` (with `base` overrides for every experiment) to `experiments`, freeing `free`
-/// keys (empty: the file's `[fit] free` list); `progress` is called once per start.
+/// keys (empty: the file's `[fit] free` list); `progress` is called as the search goes
+/// ([`mechanism::fit`]).
 pub fn fit_loaded(
     loaded: &Loaded,
     base: Vec<(String, String)>,
     free: &[String],
     experiments: &[Experiment],
     opts: &FitOptions,
-    progress: &(dyn Fn() + Sync),
+    progress: &(dyn Fn(&Progress) + Sync),
 ) -> Result<Fitted> {
     let keys = free_keys(loaded, free);
     let setup = Setup::new(loaded, base, experiments, &keys, Accuracy::default())?;

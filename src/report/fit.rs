@@ -45,12 +45,15 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
     );
     let _ = writeln!(
         o,
-        "search   {} ({} evaluations); {} start(s), {} converged",
+        "search   {} ({} evaluations); {} start(s), {} ended with a χ²",
         s.termination,
         s.evaluations,
         r.starts.len(),
         r.starts.iter().filter(|x| x.chi2.is_ok()).count()
     );
+    if let Some(stop) = &r.stopped {
+        let _ = writeln!(o, "\n{}", not_converged_text(stop, s.chi2));
+    }
     let w = r.free.iter().map(|f| f.key.chars().count()).max().unwrap_or(8).max(9);
     let _ = writeln!(
         o,
@@ -61,14 +64,15 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
         let (v, u) = readable(f.unit, s.values[i]);
         let scale = if s.values[i] != 0.0 { v / s.values[i] } else { 1.0 };
         let (lo, hi) = s.intervals[i];
-        let _ = writeln!(
-            o,
-            "{:<w$}  {:>14}  {:>12}  {:>31}  {u}",
-            f.key,
-            sig(v, 6),
-            sig(s.standard_errors[i] * scale, 3),
-            format!("[{}, {}]", sig(lo * scale, 5), sig(hi * scale, 5)),
-        );
+        let (se, interval) = if s.standard_errors[i].is_finite() {
+            (
+                sig(s.standard_errors[i] * scale, 3),
+                format!("[{}, {}]", sig(lo * scale, 5), sig(hi * scale, 5)),
+            )
+        } else {
+            ("—".to_string(), "on the edge of its range".to_string())
+        };
+        let _ = writeln!(o, "{:<w$}  {:>14}  {:>12}  {:>31}  {u}", f.key, sig(v, 6), se, interval,);
     }
     let _ = writeln!(
         o,
@@ -102,7 +106,12 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
     }
     let _ = writeln!(o, "\nχ² = {}, reduced χ² = {}", sig(s.chi2, 6), sig(s.reduced_chi2, 4));
     let _ = writeln!(o, "{}", r.errors.describe());
+    let _ = writeln!(o, "{}", s.interval_method().describe());
     let _ = writeln!(o, "AICc = {}, BIC = {}", sig(r.aicc, 6), sig(r.bic, 6));
+    let _ = writeln!(o, "\ngoodness of fit: {}", r.goodness.verdict());
+    for line in r.goodness.lines() {
+        let _ = writeln!(o, "  {line}");
+    }
     if r.warnings.is_empty() {
         let _ = writeln!(o, "identifiability: no warnings");
     }
@@ -113,10 +122,38 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
     o
 }
 
+/// The message of a fit stopped before converging, with the χ² of the best point reached.
+pub fn not_converged_text(stop: &lsq::Stop, chi2: f64) -> String {
+    format!(
+        "NOT CONVERGED: {}. The values below are the best point reached (χ² = {}), not an optimum, and \
+         their errors describe that point only; raise --max-evaluations or --time-limit, or free fewer parameters.",
+        stop.describe(),
+        sig(chi2, 6)
+    )
+}
+
+/// The goodness-of-fit checks as JSON.
+fn goodness_json(g: &crate::fit::goodness::Goodness) -> serde_json::Value {
+    json!({
+        "model_describes_data": !g.fails(),
+        "verdict": g.verdict(),
+        "significance_level": crate::fit::goodness::ALPHA,
+        "chi2_test": g.chi2.map(|c| json!({
+            "chi2": c.chi2, "dof": c.dof, "p_upper": c.p_upper, "fails": c.fails(), "chi2_too_small": c.too_small(),
+        })),
+        "runs_tests": g.runs.iter().map(|t| json!({
+            "experiment": t.experiment, "positive": t.positive, "negative": t.negative, "runs": t.runs,
+            "expected_runs": t.expected, "p_lower": t.p_lower, "fails": t.fails(),
+        })).collect::<Vec<_>>(),
+        "lines": g.lines(),
+    })
+}
+
 /// The fit as JSON (internal units named per parameter).
 pub fn fit_json(network: &str, r: &FitResult) -> serde_json::Value {
     let s = &r.solution;
     let p = r.free.len();
+    let method = s.interval_method();
     json!({
         "network": network,
         "parameters": r.free.iter().enumerate().map(|(i, f)| json!({
@@ -128,9 +165,14 @@ pub fn fit_json(network: &str, r: &FitResult) -> serde_json::Value {
         "covariance": (0..p).map(|i| (0..p).map(|j| s.covariance[(i, j)]).collect::<Vec<_>>()).collect::<Vec<_>>(),
         "chi2": s.chi2, "reduced_chi2": s.reduced_chi2, "dof": s.dof, "observations": r.n,
         "weighted": r.weighted, "aicc": r.aicc, "bic": r.bic, "minus_two_log_likelihood": r.minus_two_log_likelihood,
-        "warnings": r.warnings, "termination": s.termination,
+        "warnings": r.warnings, "termination": s.termination, "converged": r.stopped.is_none(),
+        "not_converged": r.stopped.as_ref().map(|st| not_converged_text(st, s.chi2)), "evaluations": s.evaluations,
+        "goodness_of_fit": goodness_json(&r.goodness),
         "starts": r.starts.iter().map(|x| json!({"start": x.start, "chi2": x.chi2.as_ref().ok(), "failure": x.chi2.as_ref().err()})).collect::<Vec<_>>(),
-        "t_975": lsq::t_quantile(0.975, s.dof), "interval_quantile_975": s.quantile,
+        "interval_method": json!({
+            "distribution": method.name(), "quantile_975": method.quantile(), "text": method.describe(),
+            "dof": match method { lsq::IntervalMethod::StudentT { dof, .. } => Some(dof), _ => None },
+        }),
         "standard_errors_scaled": r.errors.scale() == lsq::ErrorScale::ReducedChi2, "standard_errors": r.errors.describe(),
     })
 }
@@ -464,7 +506,11 @@ pub fn fitted_toml(text: &str, free: &[Free], values: &[f64], se: &[f64]) -> Res
     for ((f, v), s) in free.iter().zip(values).zip(se) {
         let (x, u) = readable(f.unit, *v);
         let scale = if *v != 0.0 { x / v } else { 1.0 };
-        let _ = writeln!(head, "#   {} = {} ± {} {u}", f.key, sig(x, 7), sig(s * scale, 3));
+        if s.is_finite() {
+            let _ = writeln!(head, "#   {} = {} ± {} {u}", f.key, sig(x, 7), sig(s * scale, 3));
+        } else {
+            let _ = writeln!(head, "#   {} = {} {u} (on the edge of its range)", f.key, sig(x, 7));
+        }
     }
     Ok(format!("{head}{doc}"))
 }

@@ -16,12 +16,28 @@ fn unit_label(unit: &str) -> String {
     }
 }
 
+/// `v` to `n` figures, or "— (on the edge)" when it is not defined.
+fn or_edge(v: f64, n: usize) -> String {
+    if v.is_finite() {
+        sig(v, n)
+    } else {
+        "— (on the edge)".into()
+    }
+}
+
 /// The fit section.
 pub fn section(f: &FitStudy) -> String {
     let r = &f.fitted.result;
     let s = &r.solution;
     let names: Vec<String> = f.experiments.iter().map(|e| format!("“{}”", e.name)).collect();
-    let mut o = format!(
+    let mut o = String::new();
+    if let Some(stop) = &r.stopped {
+        o.push_str(&format!(
+            "<div class=\"caution\"><strong>{}</strong></div>\n",
+            esc(&rf::not_converged_text(stop, s.chi2))
+        ));
+    }
+    o.push_str(&format!(
         "<p>{} fitted to {} observations from {} experiment(s) ({}): {} free parameter(s), {} degrees of freedom; \
          search ended: {} after {} evaluations.</p>\n",
         esc(&f.network),
@@ -32,7 +48,7 @@ pub fn section(f: &FitStudy) -> String {
         s.dof,
         esc(&s.termination),
         s.evaluations
-    );
+    ));
     // Parameters as columns, so each header carries its unit.
     let mut headers: Vec<(String, bool)> = vec![("".into(), false)];
     let mut scales = Vec::new();
@@ -50,9 +66,9 @@ pub fn section(f: &FitStudy) -> String {
     };
     let rows = vec![
         row("fitted value", &|i| sig(s.values[i] * scales[i], 6)),
-        row("± standard error", &|i| sig(s.standard_errors[i] * scales[i], 3)),
-        row("95 % interval, low", &|i| sig(s.intervals[i].0 * scales[i], 5)),
-        row("95 % interval, high", &|i| sig(s.intervals[i].1 * scales[i], 5)),
+        row("± standard error", &|i| or_edge(s.standard_errors[i] * scales[i], 3)),
+        row("95 % interval, low", &|i| or_edge(s.intervals[i].0 * scales[i], 5)),
+        row("95 % interval, high", &|i| or_edge(s.intervals[i].1 * scales[i], 5)),
         row("95 % interval taken on the", &|i| {
             format!("{} scale", r.free[i].transform.scale_name())
         }),
@@ -92,6 +108,20 @@ pub fn section(f: &FitStudy) -> String {
             &rows,
         ));
     }
+    let goodness = format!(
+        "<strong>Goodness of fit</strong>: {}<ul>\n{}</ul>",
+        esc(&r.goodness.verdict()),
+        r.goodness
+            .lines()
+            .iter()
+            .map(|l| format!("<li>{}</li>\n", esc(l)))
+            .collect::<String>()
+    );
+    if r.goodness.fails() {
+        o.push_str(&format!("<div class=\"caution\">{goodness}</div>\n"));
+    } else {
+        o.push_str(&format!("<div>{goodness}</div>\n"));
+    }
     if r.warnings.is_empty() {
         o.push_str("<p>Identifiability: no warnings.</p>\n");
     } else {
@@ -118,11 +148,12 @@ pub fn section(f: &FitStudy) -> String {
         esc(&f.network),
         esc(&stem)
     ));
-    o.push_str(&page::assumption(
+    o.push_str(&page::assumption(&format!(
         "Least squares weighted by each point's standard deviation; standard errors, intervals and correlations \
-         from the linearised model at the optimum (Student t for the 95 % intervals), which can understate the \
-         uncertainty of strongly non-linear or poorly determined parameters.",
-    ));
+         from the linearised model at the optimum ({}), which can understate the uncertainty of strongly \
+         non-linear or poorly determined parameters.",
+        s.interval_method().describe()
+    )));
     o
 }
 
