@@ -473,7 +473,8 @@ fn a_light_at_zero_power_is_a_dark_run() {
         "plan",
         &["--target", "E < 10 %", "--out", s.dir.join("plan").to_str().unwrap()],
     );
-    r.code(0);
+    // Exit 5: answered, the target is not reachable (README, "Exit codes").
+    r.code(5);
     assert_contains(&r.stdout, &["NOT REACHABLE: no light"]);
     let (_, r) = run_on(
         &s,
