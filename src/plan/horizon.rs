@@ -89,7 +89,7 @@ fn goal_words(target: &Target) -> String {
 /// starts above zero is consumed.
 pub fn default_target(model: &Model) -> Option<Target> {
     let reagent = target::limiting_reagent(model).or_else(|| {
-        let consumed = consumed(model);
+        let consumed = super::target::consumed(model);
         (0..model.n_species())
             .filter(|&i| model.initial[i] > 0.0 && consumed[i])
             .min_by(|&a, &b| model.initial[a].total_cmp(&model.initial[b]))
@@ -104,23 +104,6 @@ pub fn default_target(model: &Model) -> Option<Target> {
         level: fraction * model.initial[reagent],
         basis: Basis::OfInitial { fraction },
     })
-}
-
-fn consumed(model: &Model) -> Vec<bool> {
-    let mut c = vec![false; model.n_species()];
-    for net in model
-        .reactions
-        .iter()
-        .map(|r| &r.net)
-        .chain(model.outcomes.iter().map(|o| &o.net))
-    {
-        for &(s, v) in net {
-            if v < 0.0 {
-                c[s] = true;
-            }
-        }
-    }
-    c
 }
 
 /// The automatic horizon of `model`: until `target` (or [`default_target`]) is met, or until

@@ -84,8 +84,16 @@ impl Target {
 /// The limiting reagent: the species with the smallest positive initial concentration below
 /// 1 mol/L (solvents excluded) among those some step consumes, or None.
 pub fn limiting_reagent(model: &Model) -> Option<usize> {
-    let n = model.n_species();
-    let mut consumed = vec![false; n];
+    let consumed = consumed(model);
+    (0..model.n_species())
+        .filter(|&i| model.initial[i] > 0.0 && model.initial[i] < 1.0 && consumed[i])
+        .min_by(|&a, &b| model.initial[a].total_cmp(&model.initial[b]))
+}
+
+/// For each species, whether some reaction or photochemical outcome consumes it (a negative net
+/// coefficient).
+pub fn consumed(model: &Model) -> Vec<bool> {
+    let mut c = vec![false; model.n_species()];
     for net in model
         .reactions
         .iter()
@@ -94,13 +102,11 @@ pub fn limiting_reagent(model: &Model) -> Option<usize> {
     {
         for &(s, v) in net {
             if v < 0.0 {
-                consumed[s] = true;
+                c[s] = true;
             }
         }
     }
-    (0..n)
-        .filter(|&i| model.initial[i] > 0.0 && model.initial[i] < 1.0 && consumed[i])
-        .min_by(|&a, &b| model.initial[a].total_cmp(&model.initial[b]))
+    c
 }
 
 /// Read a target such as "product > 90 %" or "A < 10 µM" on `model`; a target the start
