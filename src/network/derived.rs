@@ -18,6 +18,18 @@ use std::collections::BTreeMap;
 use std::path::PathBuf;
 use toml::Spanned;
 
+/// The hot molecule of a transient with hot channels.
+struct HotMolecule {
+    /// Starting energy, J/mol.
+    energy: f64,
+    /// Time constant of exponential cooling, s.
+    cooling: f64,
+    /// Energy grain of the state counts, J/mol.
+    grain: f64,
+    /// Its own vibrational modes.
+    reactant: Modes,
+}
+
 /// A hot channel read from its block, before the yields are computed.
 pub(super) struct HotSpec {
     /// Index of the channel in its transient.
@@ -84,80 +96,7 @@ impl Derived<'_, '_> {
                     }
                 }
             }
-            toml::Value::Array(items) => {
-                let mut modes = Modes::default();
-                let mut imaginary = Vec::new();
-                let mut ok = true;
-                for (i, item) in items.iter().enumerate() {
-                    let x = match item {
-                        toml::Value::Float(x) => *x,
-                        toml::Value::Integer(x) => *x as f64,
-                        other => {
-                            self.sink.error(
-                                &format!("{field}[{i}]"),
-                                &at,
-                                format!("{other} is not a number"),
-                                Some(LIST_HELP.into()),
-                            );
-                            ok = false;
-                            continue;
-                        }
-                    };
-                    if !x.is_finite() || x == 0.0 {
-                        self.sink.error(
-                            &format!("{field}[{i}]"),
-                            &at,
-                            format!("{x} is not a usable frequency (finite, not zero)"),
-                            Some(LIST_HELP.into()),
-                        );
-                        ok = false;
-                        continue;
-                    }
-                    let e = crate::units::parse(&format!("{} cm-1", x.abs()), Quantity::MolarEnergy).ok()?;
-                    if x < 0.0 {
-                        imaginary.push(e);
-                    } else {
-                        modes.vibrations.push(e);
-                    }
-                }
-                match (role, imaginary.len()) {
-                    (Role::Reactant, 0) | (Role::TransitionState, 1) => {}
-                    (Role::Reactant, _) => {
-                        self.sink.error(
-                            field,
-                            &at,
-                            "has a negative (imaginary) frequency, but a reactant has only real ones",
-                            Some("put the reaction coordinate in ts_frequencies".into()),
-                        );
-                        ok = false;
-                    }
-                    (Role::TransitionState, 0) => {
-                        self.sink.error(
-                            field,
-                            &at,
-                            "has no imaginary frequency (the reaction coordinate)",
-                            Some("give it as a negative number, e.g. -1250".into()),
-                        );
-                        ok = false;
-                    }
-                    (Role::TransitionState, n) => {
-                        self.sink.error(
-                            field,
-                            &at,
-                            format!("has {n} imaginary (negative) frequencies; a transition state has exactly one"),
-                            None,
-                        );
-                        ok = false;
-                    }
-                }
-                modes.imaginary = imaginary.first().copied();
-                if ok && modes.vibrations.is_empty() {
-                    self.sink
-                        .error(field, &at, "has no real frequencies", Some(LIST_HELP.into()));
-                    ok = false;
-                }
-                ok.then_some((modes, None))
-            }
+            toml::Value::Array(items) => self.inline_modes(field, &at, items, role),
             other => {
                 self.sink.error(
                     field,
@@ -168,6 +107,88 @@ impl Derived<'_, '_> {
                 None
             }
         }
+    }
+
+    /// The modes of `role` from an inline list of wavenumbers, cm⁻¹ (the imaginary one negative).
+    fn inline_modes(
+        &mut self,
+        field: &str,
+        at: &Origin,
+        items: &[toml::Value],
+        role: Role,
+    ) -> Option<(Modes, Option<f64>)> {
+        let mut modes = Modes::default();
+        let mut imaginary = Vec::new();
+        let mut ok = true;
+        for (i, item) in items.iter().enumerate() {
+            let x = match item {
+                toml::Value::Float(x) => *x,
+                toml::Value::Integer(x) => *x as f64,
+                other => {
+                    self.sink.error(
+                        &format!("{field}[{i}]"),
+                        at,
+                        format!("{other} is not a number"),
+                        Some(LIST_HELP.into()),
+                    );
+                    ok = false;
+                    continue;
+                }
+            };
+            if !x.is_finite() || x == 0.0 {
+                self.sink.error(
+                    &format!("{field}[{i}]"),
+                    at,
+                    format!("{x} is not a usable frequency (finite, not zero)"),
+                    Some(LIST_HELP.into()),
+                );
+                ok = false;
+                continue;
+            }
+            let e = crate::units::parse(&format!("{} cm-1", x.abs()), Quantity::MolarEnergy).ok()?;
+            if x < 0.0 {
+                imaginary.push(e);
+            } else {
+                modes.vibrations.push(e);
+            }
+        }
+        match (role, imaginary.len()) {
+            (Role::Reactant, 0) | (Role::TransitionState, 1) => {}
+            (Role::Reactant, _) => {
+                self.sink.error(
+                    field,
+                    at,
+                    "has a negative (imaginary) frequency, but a reactant has only real ones",
+                    Some("put the reaction coordinate in ts_frequencies".into()),
+                );
+                ok = false;
+            }
+            (Role::TransitionState, 0) => {
+                self.sink.error(
+                    field,
+                    at,
+                    "has no imaginary frequency (the reaction coordinate)",
+                    Some("give it as a negative number, e.g. -1250".into()),
+                );
+                ok = false;
+            }
+            (Role::TransitionState, n) => {
+                self.sink.error(
+                    field,
+                    at,
+                    format!("has {n} imaginary (negative) frequencies; a transition state has exactly one"),
+                    None,
+                );
+                ok = false;
+            }
+        }
+        modes.imaginary = imaginary.first().copied();
+        if ok && modes.vibrations.is_empty() {
+            self.sink
+                .error(field, at, "has no real frequencies", Some(LIST_HELP.into()));
+            ok = false;
+        }
+        ok.then_some((modes, None))
     }
 
     /// A reaction-path degeneracy from its key, else from a file, else 1.
@@ -396,6 +417,23 @@ impl Derived<'_, '_> {
             );
             ok = false;
         }
+        let molecule = self.hot_molecule(field, t, photon);
+        let (Some(m), true) = (molecule, ok) else {
+            return false;
+        };
+        self.put_hot_yields(field, &at, specs, channels, &m)
+    }
+
+    /// The hot molecule of transient `t`: its starting energy, cooling time, grain and own
+    /// frequencies, each missing or bad one reported.
+    fn hot_molecule(
+        &mut self,
+        field: &str,
+        t: &Spanned<schema::Transient>,
+        photon: &AbsorbedEnergy,
+    ) -> Option<HotMolecule> {
+        let at = span(t);
+        let e = t.get_ref();
         let missing = |k: &str| format!("is missing: a transient with hot channels needs {k}");
         let energy = match &e.energy {
             None => {
@@ -477,17 +515,33 @@ impl Derived<'_, '_> {
             }
             Some(v) => self.frequency_modes(&format!("{field}.frequencies"), v, Role::Reactant),
         };
-        let (Some(energy), Some(cooling), Some(grain), Some((reactant, _)), true) =
-            (energy, cooling, grain, reactant, ok)
-        else {
-            return false;
+        let (Some(energy), Some(cooling), Some(grain), Some((reactant, _))) = (energy, cooling, grain, reactant) else {
+            return None;
         };
+        Some(HotMolecule {
+            energy,
+            cooling,
+            grain,
+            reactant,
+        })
+    }
+
+    /// The RRKM yields of the hot channels `specs` of molecule `m`, put into `channels`.
+    fn put_hot_yields(
+        &mut self,
+        field: &str,
+        at: &Origin,
+        specs: &[HotSpec],
+        channels: &mut [(Channel, Origin)],
+        m: &HotMolecule,
+    ) -> bool {
+        let (energy, cooling, grain, reactant) = (m.energy, m.cooling, m.grain, &m.reactant);
         for s in specs {
             let origin = channels[s.channel].1.clone();
             self.mode_count(
                 &format!("{field}.channels[{}].hot.ts_frequencies", s.channel),
                 &origin,
-                &reactant,
+                reactant,
                 &s.ts,
             );
         }
@@ -499,12 +553,12 @@ impl Derived<'_, '_> {
                 degeneracy: s.degeneracy,
             })
             .collect();
-        let y = match rrkm_yields(&reactant, &reactions, energy, Some(cooling), grain) {
+        let y = match rrkm_yields(reactant, &reactions, energy, Some(cooling), grain) {
             Ok(y) => y,
             Err(m) => {
                 self.sink.error(
                     &format!("{field}.grain"),
-                    &at,
+                    at,
                     format!("the hot-molecule yields cannot be computed: {m}"),
                     None,
                 );
@@ -513,7 +567,7 @@ impl Derived<'_, '_> {
         };
         for (s, p) in specs.iter().zip(&y.probabilities) {
             let rate_at_start =
-                crate::rates::rrkm::Rrkm::new(&reactant, &s.ts, s.barrier, s.degeneracy, grain, energy + grain)
+                crate::rates::rrkm::Rrkm::new(reactant, &s.ts, s.barrier, s.degeneracy, grain, energy + grain)
                     .ok()
                     .and_then(|m| m.rate(energy))
                     .unwrap_or(0.0);
