@@ -742,60 +742,25 @@ pub fn measured(m: &Measured, unit: &str) -> String {
 }
 
 /// A `[[light]]` block that pastes into a network file: `source`'s kind and shape with the
-/// photon flux given, the uncertainty and the origin as comments.
+/// photon flux given, the uncertainty and the origin as comments (the block itself is written by
+/// [`file::write::light_block`](crate::file::write::light_block)).
 pub fn light_block(name: &str, kind: &LightKind, window: Option<(f64, f64)>, flux: &Measured, origin: &str) -> String {
-    let mut o = String::new();
-    let _ = writeln!(o, "# {origin}");
+    let mut comments = vec![origin.to_string()];
     if flux.sigma > 0.0 {
-        let _ = writeln!(
-            o,
-            "# photon flux {} einstein/s, standard uncertainty {} einstein/s ({} %)",
+        comments.push(format!(
+            "photon flux {} einstein/s, standard uncertainty {} einstein/s ({} %)",
             sig(flux.value, 6),
             sig(flux.sigma, 2),
             sig(flux.relative() * 100.0, 2)
-        );
+        ));
     }
-    let _ = writeln!(o, "[[light]]");
-    let _ = writeln!(o, "name = {}", toml_string(name));
-    let nm = |m: f64| format!("\"{} nm\"", sig(m * 1e9, 6));
-    match kind {
-        LightKind::Line { wavelength } => {
-            let _ = writeln!(o, "kind = \"line\"\nwavelength = {}", nm(*wavelength));
-        }
-        LightKind::Band { centre, fwhm } => {
-            let _ = writeln!(o, "kind = \"band\"\ncentre = {}\nfwhm = {}", nm(*centre), nm(*fwhm));
-        }
-        LightKind::Lamp { file, .. } => {
-            let _ = writeln!(
-                o,
-                "kind = \"lamp\"\nfile = {}   # as named in the original network file",
-                toml_string(file)
-            );
-        }
-        LightKind::Sun { scale, .. } => {
-            // Sunlight has no photon flux key: express the fit as its scale.
-            let _ = writeln!(o, "kind = \"sun\"\nscale = {}", sig(*scale, 8));
-            if let Some((a, b)) = window
-                && a > 0.0
-                && b.is_finite()
-            {
-                let _ = writeln!(o, "from = {}\nto = {}", nm(a), nm(b));
-            }
-            return o;
-        }
-    }
-    let _ = writeln!(o, "photon_flux = \"{:.6e} einstein/s\"", flux.value);
-    if let Some((a, b)) = window
-        && a > 0.0
-        && b.is_finite()
-    {
-        let _ = writeln!(o, "from = {}\nto = {}", nm(a), nm(b));
-    }
-    o
-}
-
-fn toml_string(s: &str) -> String {
-    format!("\"{}\"", s.replace('\\', "\\\\").replace('"', "\\\""))
+    crate::file::write::light_block(&crate::file::write::LightBlock {
+        comments,
+        name,
+        kind,
+        window,
+        photon_flux: flux.value,
+    })
 }
 
 /// The ferrioxalate result as text.
