@@ -715,6 +715,23 @@ pub fn sweep_text(axis: &SweepAxis, points: &[SweepPoint]) -> String {
             }
         }
     }
+    let missed: Vec<String> = points
+        .iter()
+        .filter(|p| p.plan.as_ref().is_ok_and(|pl| pl.time.is_none()))
+        .map(|p| sig(p.value * axis.unit_factor, 4))
+        .collect();
+    if missed.len() == points.len() {
+        let _ = writeln!(o, "NOT REACHABLE at any point of the sweep (exit 5)");
+    } else if !missed.is_empty() {
+        let _ = writeln!(
+            o,
+            "not reached at {} of {} points: {} {}",
+            missed.len(),
+            points.len(),
+            axis.label,
+            missed.join(", ")
+        );
+    }
     o
 }
 
