@@ -267,9 +267,12 @@ fn scale_for(max: f64, label: &str) -> (f64, String) {
 /// concentrations.svg.
 pub fn concentrations_svg(net: &Network, model: &Model, tr: &Trajectory, log_time: bool) -> String {
     // Solvent-like species (1 M or more at the start) would flatten every other curve.
+    // Round-off within the run's absolute tolerance of zero is drawn at 0: it neither dips
+    // below the axis nor, when a curve is all round-off, picks the axis unit (the CSV keeps it).
+    let zero = tr.zero_within();
     let series: Vec<(String, Vec<f64>)> = (0..model.n_species())
         .filter(|&i| model.initial[i] < 1.0)
-        .map(|i| (model.species[i].clone(), tr.series(i)))
+        .map(|i| (model.species[i].clone(), tr.series(i).into_iter().map(|c| zero.shown(c)).collect()))
         .collect();
     line_plot(
         &format!("{}: concentrations", net.about.name),
@@ -346,5 +349,26 @@ mod tests {
         let start = crate::report::summary::network_summary(&net);
         assert!(start.contains("50 µM"), "{start}");
         assert!(svg.contains("concentration (µM)"), "axis not in µM");
+    }
+
+    #[test]
+    fn round_off_is_drawn_at_zero_and_never_picks_the_axis_unit() {
+        // The photoswitch run with every concentration replaced by round-off inside the run's
+        // absolute tolerance (1e-12 mol/L), alternating in sign, as a species that never forms
+        // leaves it: the plot must be the plot of zeros, not curves on a fM axis below zero.
+        let (net, model, mut tr) = run(600.0);
+        let n = model.n_species();
+        let mut zeros = tr.clone();
+        for (k, (y, z)) in tr.states.iter_mut().zip(zeros.states.iter_mut()).enumerate() {
+            for i in 0..n {
+                y[i] = if (k + i) % 2 == 0 { 4e-13 } else { -7e-13 };
+                z[i] = 0.0;
+            }
+        }
+        let noisy = concentrations_svg(&net, &model, &tr, false);
+        assert!(!noisy.contains("fM"), "round-off picked the axis unit");
+        assert_eq!(noisy, concentrations_svg(&net, &model, &zeros, false));
+        // The CSV keeps the raw numbers.
+        assert!(concentrations_csv(&model, &tr).contains("-7e-13"));
     }
 }
