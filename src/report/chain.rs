@@ -263,6 +263,22 @@ pub fn text(s: &Summary) -> String {
                 }
             }
             let _ = writeln!(o, "    (how: {})", a.method);
+            match (&a.yields, &a.yields_skipped) {
+                (Some(y), _) => {
+                    let _ = writeln!(o, "  {}", y.headline());
+                    for l in y.end_lines() {
+                        let _ = writeln!(o, "    {l}");
+                    }
+                    for r in &y.reasons {
+                        let _ = writeln!(o, "    why: {r}");
+                    }
+                    let _ = writeln!(o, "    (how: {})", y.method);
+                }
+                (None, Some(why)) => {
+                    let _ = writeln!(o, "  yield check not made: {why}");
+                }
+                (None, None) => {}
+            }
         }
         (None, Some(why)) => {
             let _ = writeln!(o, "  kinetics check not made: {why}");

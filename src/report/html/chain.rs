@@ -33,6 +33,27 @@ fn kinetics_check(sm: &crate::report::chain::Summary) -> String {
         d
     };
     let _ = writeln!(s, "<p class=\"note\">How the check is made: {}.</p>", esc(&a.method));
+    match (&a.yields, &a.yields_skipped) {
+        (Some(y), _) => {
+            let class = if y.agree { "note" } else { "caution" };
+            let _ = writeln!(
+                s,
+                "<div id=\"chain-yield-check\" class=\"{class}\"><p>{}.</p>\n<ul>",
+                esc(&upper_first(&y.headline()))
+            );
+            for l in y.end_lines() {
+                let _ = writeln!(s, "<li>{}</li>", esc(&l));
+            }
+            for r in &y.reasons {
+                let _ = writeln!(s, "<li>Why: {}</li>", esc(r));
+            }
+            let _ = writeln!(s, "</ul></div>\n<p class=\"note\">How the yields are compared: {}.</p>", esc(&y.method));
+        }
+        (None, Some(why)) => {
+            let _ = writeln!(s, "<p class=\"note\">The yields were not compared: {}.</p>", esc(why));
+        }
+        (None, None) => {}
+    }
     s
 }
 
