@@ -80,6 +80,9 @@ pub struct Summary {
     pub method: MethodSummary,
     /// Final concentrations, mol/L, by species.
     pub final_concentrations_mol_per_l: Vec<(String, f64)>,
+    /// Volume of the solution, L: amounts in mol (the ledger's `formed`) are concentrations
+    /// times it, and their round-off limit is `method.atol` times it.
+    pub volume_l: f64,
     /// The unit of every photon amount in `photons`.
     pub photon_unit: String,
     /// The photon ledger at the end (amounts in einstein).
@@ -156,6 +159,7 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
             atol,
         },
         final_concentrations_mol_per_l: model.species.iter().cloned().zip(y.iter().copied()).collect(),
+        volume_l: model.volume,
         photon_unit: "einstein".into(),
         photons: tr.ledger(model, tr.times.len() - 1),
         negative_concentrations: tr
@@ -327,7 +331,12 @@ mod tests {
 
     /// A bundled network run for `until` s: (network, model, trajectory).
     fn run(until: f64) -> (Network, Model, Trajectory) {
-        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("networks/photoswitch.toml");
+        run_of("photoswitch.toml", until)
+    }
+
+    /// Bundled network `name` run for `until` s.
+    fn run_of(name: &str, until: f64) -> (Network, Model, Trajectory) {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("networks").join(name);
         let text = std::fs::read_to_string(&path).expect("bundled network");
         let loaded = crate::file::parse_text(&path, text).expect("parses");
         let net = crate::network::build(&loaded, &Overrides::none()).expect("builds");
@@ -370,5 +379,27 @@ mod tests {
         assert_eq!(noisy, concentrations_svg(&net, &model, &zeros, false));
         // The CSV keeps the raw numbers.
         assert!(concentrations_csv(&model, &tr).contains("-7e-13"));
+    }
+
+    #[test]
+    fn a_product_formed_within_round_off_has_no_photon_cost() {
+        // A photoproduct whose amount is round-off (1e-18 mol/L in 3 mL, inside atol 1e-12
+        // mol/L): its "photons per molecule" would be a ratio of noise (~1e10).
+        let (net, model, tr) = run_of("photoswitch-side-product.toml", 600.0);
+        let mut s = summary(&net, &model, &tr, 1e-6, 1e-12);
+        let real = crate::report::summary::run_summary(&s);
+        assert!(real.contains("photons absorbed per molecule (apparent Φ"), "{real}");
+        let p = s.photons.products.first_mut().expect("a photoproduct");
+        p.formed = 1e-18 * s.volume_l;
+        p.photons_per_molecule = Some(s.photons.absorbed / p.formed);
+        p.apparent_quantum_yield = Some(p.formed / s.photons.absorbed);
+        let name = p.species.clone();
+        let text = crate::report::summary::run_summary(&s);
+        let line = text
+            .lines()
+            .skip_while(|l| !l.starts_with("products reached"))
+            .find(|l| l.trim_start().starts_with(&name))
+            .expect(&text);
+        assert!(line.ends_with("none formed"), "{line}");
     }
 }
