@@ -135,8 +135,14 @@ fn prebiotic_pool_chain_time_is_flagged_with_its_reasons() {
     assert!(text.contains("DISAGREE") && text.contains("why: light:"), "{text}");
     // The yields differ too: the condensation joins an aldehyde and a dinitrile, both
     // followed, into one adduct, so the kinetics make half a product per molecule followed.
-    assert!(text.contains("yield check") && text.contains("product: chain 1, kinetics 0.49"), "{text}");
-    assert!(text.contains("why: \"condensation\" is second order and joins"), "{text}");
+    assert!(
+        text.contains("yield check") && text.contains("product: chain 1, kinetics 0.49"),
+        "{text}"
+    );
+    assert!(
+        text.contains("why: \"condensation\" is second order and joins"),
+        "{text}"
+    );
     let json = serde_json::to_value(&summary).expect("json");
     assert_eq!(json["kinetics_check"]["agree"], false);
     assert_eq!(json["kinetics_check"]["yields"]["agree"], false);
@@ -308,6 +314,12 @@ fn yields_differ_where_an_inner_filter_shifts_light_against_heat_and_say_why() {
     // B and C still account for every A consumed.
     assert!((b.kinetics + c.kinetics - 1.0).abs() < 1e-4, "{y:?}");
     let all = y.reasons.join("\n");
-    assert!(all.contains("light against heat: A leaves by light and by A -> C"), "{all}");
-    assert!(text.contains("DISAGREE by a factor of") && text.contains("why: light against heat"), "{text}");
+    assert!(
+        all.contains("light against heat: A leaves by light and by A -> C"),
+        "{all}"
+    );
+    assert!(
+        text.contains("DISAGREE by a factor of") && text.contains("why: light against heat"),
+        "{text}"
+    );
 }

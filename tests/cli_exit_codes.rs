@@ -232,7 +232,12 @@ fn every_command_given_a_target_answers_not_reachable_with_5() {
         ],
     );
     assert_eq!(code(&none), 5, "{}", stderr(&none));
-    assert_eq!(out(&none).matches("unreachable (photostationary)").count(), 3, "{}", out(&none));
+    assert_eq!(
+        out(&none).matches("unreachable (photostationary)").count(),
+        3,
+        "{}",
+        out(&none)
+    );
     assert!(out(&none).contains("NOT REACHABLE at any point"), "{}", out(&none));
     let some = run(
         &dir,
@@ -277,7 +282,14 @@ fn every_command_given_a_target_answers_not_reachable_with_5() {
     // report --target: the page is written and the code says the target is not reachable.
     let rep = run(
         &dir,
-        &["report", "networks/photoswitch.toml", "--target", "Z-azo > 90 %", "-o", "r.html"],
+        &[
+            "report",
+            "networks/photoswitch.toml",
+            "--target",
+            "Z-azo > 90 %",
+            "-o",
+            "r.html",
+        ],
     );
     assert_eq!(code(&rep), 5, "{}", stderr(&rep));
     assert!(dir.join("r.html").exists());

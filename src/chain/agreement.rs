@@ -109,10 +109,9 @@ impl Yields {
             .map(|e| {
                 let verdict = match (e.agree, e.ratio) {
                     (true, _) => "agree".to_string(),
-                    (false, Some(r)) if r > 0.0 => format!(
-                        "DISAGREE by a factor of {}",
-                        sig(if r >= 1.0 { r } else { 1.0 / r }, 3)
-                    ),
+                    (false, Some(r)) if r > 0.0 => {
+                        format!("DISAGREE by a factor of {}", sig(if r >= 1.0 { r } else { 1.0 / r }, 3))
+                    }
                     _ => "DISAGREE: the kinetics make none".to_string(),
                 };
                 format!(
@@ -402,19 +401,22 @@ fn compare_yields(model: &Model, net: &Network, run: &ChainRun) -> Result<std::r
         .filter(|&i| model.initial[i] > 0.0)
         .collect();
     let total: f64 = start.iter().map(|&i| model.initial[i]).sum();
-    if !(total > 0.0) {
+    if total.is_nan() || total <= 0.0 {
         return Ok(Err("the chain starts from no species of the initial mixture".into()));
     }
     let h = crate::plan::horizon::automatic(model, None)?;
     let Some(plan) = &h.plan else {
-        return Ok(Err(format!("the kinetics have no horizon to convert by: {}", h.reason())));
+        return Ok(Err(format!(
+            "the kinetics have no horizon to convert by: {}",
+            h.reason()
+        )));
     };
     let y = plan.state();
     let zero = plan.trajectory.zero_within();
     // The chain follows every molecule to an end; the kinetics' mixture at the horizon still
     // holds what has not reacted, so their yields are per molecule consumed.
     let consumed: f64 = start.iter().map(|&i| model.initial[i] - zero.shown(y[i])).sum();
-    if !(consumed > 0.0) {
+    if consumed.is_nan() || consumed <= 0.0 {
         return Ok(Err(format!(
             "the kinetics consume none of the start mixture by {}",
             format_time(*plan.trajectory.times.last().unwrap_or(&h.time))

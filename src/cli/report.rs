@@ -140,5 +140,9 @@ pub fn run(a: &ReportArgs) -> photoledger::Result<Exit> {
             plan.unreachable.as_ref().map_or("not reached", |u| u.why.words())
         )?;
     }
-    Ok(if missed.is_some() { Exit::Unreachable } else { Exit::Success })
+    Ok(if missed.is_some() {
+        Exit::Unreachable
+    } else {
+        Exit::Success
+    })
 }

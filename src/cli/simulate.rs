@@ -149,5 +149,9 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<Exit> {
             dir.display()
         )?;
     }
-    Ok(if missed.is_some() { Exit::Unreachable } else { Exit::Success })
+    Ok(if missed.is_some() {
+        Exit::Unreachable
+    } else {
+        Exit::Success
+    })
 }

@@ -2,8 +2,8 @@
 //! [--from-fit FIT.json] [--shard K/N] [--json] [--out DIR]`, and
 //! `photoledger uncertainty merge SHARD.json... [--json] [--out DIR]`.
 
-use super::output::{out, outln};
 use super::Exit;
+use super::output::{out, outln};
 use photoledger::Error;
 use photoledger::report::{uncertainty as report, write_atomic};
 use photoledger::uncertainty::{self, Problem, Record, Settings, Space, fitcov::FitBlock, spec};

@@ -318,12 +318,21 @@ pub fn text(s: &Summary) -> String {
         // summary.json keeps the raw derivatives
         for x in s.sensitivities.iter().take(8) {
             let (dy_zero, el_zero) = s.sensitivity_zero(x);
-            let el = x.elasticity_photons.get(main).copied().flatten().map(|v| el_zero.shown(v));
+            let el = x
+                .elasticity_photons
+                .get(main)
+                .copied()
+                .flatten()
+                .map(|v| el_zero.shown(v));
             let dy = dy_zero.shown(x.yield_derivative.get(main).copied().unwrap_or(0.0));
             let mut line = format!(
                 "    {:>9} {:>11}  {} = {:.4e} {}",
                 opt(el, |v| format!("{v:+.4}")),
-                if dy == 0.0 { "0".to_string() } else { format!("{dy:.3e}") },
+                if dy == 0.0 {
+                    "0".to_string()
+                } else {
+                    format!("{dy:.3e}")
+                },
                 x.parameter,
                 x.value,
                 x.unit

@@ -276,7 +276,12 @@ pub fn concentrations_svg(net: &Network, model: &Model, tr: &Trajectory, log_tim
     let zero = tr.zero_within();
     let series: Vec<(String, Vec<f64>)> = (0..model.n_species())
         .filter(|&i| model.initial[i] < 1.0)
-        .map(|i| (model.species[i].clone(), tr.series(i).into_iter().map(|c| zero.shown(c)).collect()))
+        .map(|i| {
+            (
+                model.species[i].clone(),
+                tr.series(i).into_iter().map(|c| zero.shown(c)).collect(),
+            )
+        })
         .collect();
     line_plot(
         &format!("{}: concentrations", net.about.name),

@@ -400,7 +400,12 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
              photoproduct feeds)"
         );
         for pr in &p.thermal_products {
-            let _ = writeln!(o, "  {:<16} {} mol formed", pr.species, sig(zero_mol.shown(pr.formed), 4));
+            let _ = writeln!(
+                o,
+                "  {:<16} {} mol formed",
+                pr.species,
+                sig(zero_mol.shown(pr.formed), 4)
+            );
         }
     }
     let m = &s.method;

@@ -326,7 +326,10 @@ mod tests {
         assert_eq!(fd.shown(4.441e-12), 0.0);
         assert_eq!(fd.shown(-1.448e-6 * 0.5), 0.0);
         assert_eq!(fd.shown(1e-3), 1e-3);
-        assert_eq!(ZeroWithin::difference_quotient(1.0, CHAIN_ROUNDOFF, 1e-4, 0.0), ZeroWithin::NONE);
+        assert_eq!(
+            ZeroWithin::difference_quotient(1.0, CHAIN_ROUNDOFF, 1e-4, 0.0),
+            ZeroWithin::NONE
+        );
         assert_eq!(number(2.019), "2.019");
         assert_eq!(number(150.0), "150");
         assert_eq!(number(0.0125), "0.0125");

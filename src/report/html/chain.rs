@@ -47,7 +47,11 @@ fn kinetics_check(sm: &crate::report::chain::Summary) -> String {
             for r in &y.reasons {
                 let _ = writeln!(s, "<li>Why: {}</li>", esc(r));
             }
-            let _ = writeln!(s, "</ul></div>\n<p class=\"note\">How the yields are compared: {}.</p>", esc(&y.method));
+            let _ = writeln!(
+                s,
+                "</ul></div>\n<p class=\"note\">How the yields are compared: {}.</p>",
+                esc(&y.method)
+            );
         }
         (None, Some(why)) => {
             let _ = writeln!(s, "<p class=\"note\">The yields were not compared: {}.</p>", esc(why));
@@ -174,7 +178,12 @@ pub fn section(chain: &Result<ChainStudy, String>) -> String {
             .map(|x| {
                 // finite-difference noise reads 0 (`Summary::sensitivity_zero`)
                 let (dy_zero, el_zero) = sm.sensitivity_zero(x);
-                let el = x.elasticity_photons.get(main).copied().flatten().map(|v| el_zero.shown(v));
+                let el = x
+                    .elasticity_photons
+                    .get(main)
+                    .copied()
+                    .flatten()
+                    .map(|v| el_zero.shown(v));
                 let dy = x.yield_derivative.get(main).copied().map(|v| dy_zero.shown(v));
                 let per_barrier = x
                     .photons_per_barrier
