@@ -151,6 +151,21 @@ impl ZeroWithin {
         ZeroWithin((scale.abs() * rel).max(0.0))
     }
 
+    /// The limit of a derivative dY/dp found by finite differences over a relative step `step`
+    /// of p (central: (Y(p(1 + h)) − Y(p(1 − h))) / (2hp)) when each Y carries round-off `rel`
+    /// of `scale`: the two round-offs together, 2·rel·scale, over the span 2h·|p|. A derivative
+    /// within it is finite-difference noise, not a dependence (a one-sided difference has twice
+    /// this noise, so the limit is the smaller, conservative one). E.g. a yield pinned at 1 by
+    /// [`CHAIN_ROUNDOFF`], p = 0.5, h = 1e-4: |dY/dp| ≤ 2e-6 reads 0.
+    pub fn difference_quotient(scale: f64, rel: f64, step: f64, p: f64) -> Self {
+        let span = step * p.abs();
+        if span > 0.0 && span.is_finite() {
+            ZeroWithin((scale.abs() * rel / span).max(0.0))
+        } else {
+            ZeroWithin::NONE
+        }
+    }
+
     /// The value to show: 0 when its magnitude is within the limit (so round-off such as
     /// −1.6e-15 mol/L reads 0, never a negative concentration), otherwise the value itself.
     /// NaN and infinite values pass through unchanged.
@@ -305,6 +320,16 @@ mod tests {
         // A chain statistic: sd 7.067e-14 of a mean of 1 is round-off.
         assert_eq!(ZeroWithin::relative(1.0, CHAIN_ROUNDOFF).shown(7.067e-14), 0.0);
         assert_eq!(ZeroWithin::relative(1.0, CHAIN_ROUNDOFF).shown(1e-6), 1e-6);
+        // A yield pinned at 1: a finite-difference derivative of 4.4e-12 over a step 1e-4 of
+        // p = 1 is round-off (limit 1e-6); 1e-3 is a dependence.
+        let fd = ZeroWithin::difference_quotient(1.0, CHAIN_ROUNDOFF, 1e-4, 1.0);
+        assert_eq!(fd.shown(4.441e-12), 0.0);
+        assert_eq!(fd.shown(-1.448e-6 * 0.5), 0.0);
+        assert_eq!(fd.shown(1e-3), 1e-3);
+        assert_eq!(
+            ZeroWithin::difference_quotient(1.0, CHAIN_ROUNDOFF, 1e-4, 0.0),
+            ZeroWithin::NONE
+        );
         assert_eq!(number(2.019), "2.019");
         assert_eq!(number(150.0), "150");
         assert_eq!(number(0.0125), "0.0125");
