@@ -161,11 +161,7 @@ pub fn summary(
         distribution_tail: a.distribution.as_ref().map(|d| d.tail),
         distribution_max_photons: a.distribution.as_ref().map(|d| d.p.len().saturating_sub(1)),
         distribution_truncated: a.distribution.as_ref().is_some_and(|d| d.truncated),
-        sensitivity_method: format!(
-            "central finite differences through the chain construction, relative step {:e}; barriers by \
-             ∂/∂E = −(k/RT) ∂/∂k",
-            crate::chain::sensitivity::STEP
-        ),
+        sensitivity_method: crate::chain::sensitivity::METHOD.to_string(),
         sensitivities: sens,
     }
 }
