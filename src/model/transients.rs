@@ -501,6 +501,46 @@ mod tests {
         build(&l, &Overrides::none()).unwrap()
     }
 
+    /// `share_derivative` against central differences of `share` (common practice: O(h²)), in
+    /// every regime of the rule: rates; fixed fractions scaled when there is no "rest" and when
+    /// they exceed one; fractions as given beside a "rest".
+    #[test]
+    fn share_derivative_matches_differences_of_share() {
+        use ShareInput::{Fixed, Rate, Rest};
+        let cases: [&[ShareInput]; 4] = [
+            &[Rate(3.0e8), Rate(1.0e9), Rate(2.5e7)],
+            &[Fixed(0.3), Fixed(0.5), Fixed(0.1)],
+            &[Fixed(0.7), Fixed(0.6), Rest],
+            &[Fixed(0.2), Fixed(0.35), Rest],
+        ];
+        for inputs in cases {
+            let totals = ShareTotals::of(inputs.iter().copied());
+            for c in 0..inputs.len() {
+                let (Fixed(x) | Rate(x)) = inputs[c] else { continue };
+                let h = 1e-5 * x;
+                let moved = |v: f64| -> Vec<ShareInput> {
+                    let mut i = inputs.to_vec();
+                    i[c] = match i[c] {
+                        Fixed(_) => Fixed(v),
+                        _ => Rate(v),
+                    };
+                    i
+                };
+                let (up, down) = (moved(x + h), moved(x - h));
+                let (tu, td) = (ShareTotals::of(up.iter().copied()), ShareTotals::of(down.iter().copied()));
+                for j in 0..inputs.len() {
+                    let fd = (tu.share(up[j]) - td.share(down[j])) / (2.0 * h);
+                    let exact = totals.share_derivative(inputs[j], j == c, inputs[c]);
+                    let scale = fd.abs().max(exact.abs()).max(1.0 / x.max(1.0));
+                    assert!(
+                        (fd - exact).abs() <= 1e-7 * scale,
+                        "{inputs:?}: ∂share[{j}]/∂input[{c}] = {exact} vs {fd}"
+                    );
+                }
+            }
+        }
+    }
+
     const BASE: &str = r#"
 [conditions]
 temperature = "298.15 K"
