@@ -56,7 +56,11 @@ fn agree(
     for (x, y) in exact.iter().zip(&fd) {
         assert_eq!(x.parameter, y.parameter);
         let p = params.iter().find(|p| p.label == x.parameter).unwrap();
-        let tol = if p.value * (1.0 + STEP) <= p.upper { rel } else { rel_bound };
+        let tol = if p.value * (1.0 + STEP) <= p.upper {
+            rel
+        } else {
+            rel_bound
+        };
         for k in 0..base.yields.len() {
             if base.yields[k] < 1e-6 {
                 continue;
@@ -97,7 +101,10 @@ fn barrier_agrees(what: &str, x: &Sensitivity, y: &Sensitivity, k: usize, rel: f
     if (a[k] - b[k]).abs() <= rel * a[k].abs().max(b[k].abs()) + abs {
         Ok(())
     } else {
-        Err(format!("{what}: d yield / d barrier [{}]: {} vs {}", x.parameter, a[k], b[k]))
+        Err(format!(
+            "{what}: d yield / d barrier [{}]: {} vs {}",
+            x.parameter, a[k], b[k]
+        ))
     }
 }
 

@@ -84,8 +84,9 @@ pub struct Parameter {
     /// ∂/∂(barrier) = −(k/RT) ∂/∂k.
     pub barrier: bool,
     /// The largest value it may take (quantum yields of one absorber sum to at most 1 in every
-    /// light bin; fractions are at most 1; rates are unbounded). At the bound a difference
-    /// quotient must look down only.
+    /// light bin; fractions are at most 1; rates are unbounded). At the bound the exact
+    /// sensitivities take the derivative from below, and the finite-difference reference looks
+    /// down only.
     pub upper: f64,
 }
 
@@ -345,7 +346,12 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
 }
 
 /// [`build`], also returning what the chain was built from.
-pub(super) fn build_parts(model: &Model, net: &Network, settings: &Settings, values: &Values) -> Result<(Chain, Parts)> {
+pub(super) fn build_parts(
+    model: &Model,
+    net: &Network,
+    settings: &Settings,
+    values: &Values,
+) -> Result<(Chain, Parts)> {
     let ns = model.n_species();
     let nt = net.transients.len();
     let c: Vec<f64> = match &settings.concentrations {

@@ -527,7 +527,10 @@ mod tests {
                     i
                 };
                 let (up, down) = (moved(x + h), moved(x - h));
-                let (tu, td) = (ShareTotals::of(up.iter().copied()), ShareTotals::of(down.iter().copied()));
+                let (tu, td) = (
+                    ShareTotals::of(up.iter().copied()),
+                    ShareTotals::of(down.iter().copied()),
+                );
                 for j in 0..inputs.len() {
                     let fd = (tu.share(up[j]) - td.share(down[j])) / (2.0 * h);
                     let exact = totals.share_derivative(inputs[j], j == c, inputs[c]);

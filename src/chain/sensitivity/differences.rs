@@ -21,7 +21,12 @@ pub const STEP: f64 = 1e-4;
 /// Sensitivities for every parameter of [`build::parameters`] by finite differences, for a
 /// molecule started from `start` (a distribution over the chain's states, which are the same
 /// for every parameter): the reference for [`super::sensitivities`].
-pub fn finite_differences(model: &Model, net: &Network, settings: &Settings, start: &[f64]) -> Result<Vec<Sensitivity>> {
+pub fn finite_differences(
+    model: &Model,
+    net: &Network,
+    settings: &Settings,
+    start: &[f64],
+) -> Result<Vec<Sensitivity>> {
     let base = Values::of(model, net);
     let opts = Options {
         distribution: false,

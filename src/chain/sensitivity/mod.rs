@@ -121,9 +121,7 @@ impl Adjoint {
         }
         let dot = |a: &[f64], b: &[f64]| a.iter().zip(b).map(|(x, y)| x * y).sum::<f64>();
         let b = (0..r).map(|k| dot(&x.v, &cols[k]) + x.pi_a[k]).collect();
-        let mm = (0..r)
-            .map(|k| dot(&x.u, &cols[k]) + dot(&x.v, &cols1[k]))
-            .collect();
+        let mm = (0..r).map(|k| dot(&x.u, &cols[k]) + dot(&x.v, &cols1[k])).collect();
         let steps = x.lu.solve(&vec![1.0; m])?;
         let kappa = 2.0 * steps.iter().fold(1.0, |a: f64, &b| a.max(b));
         Ok(Adjoint {
