@@ -265,3 +265,44 @@ proptest! {
         prop_assert!(n.unwrap() > 10);
     }
 }
+
+/// `bench --write` writes the generated network as a file `ledger` reads, and `ledger` on it
+/// reports a sensitivity for every rate constant and quantum yield, found exactly (the method
+/// note in `summary.json` says so; it named finite differences before).
+#[test]
+fn ledger_on_a_written_generated_network() {
+    let bin = env!("CARGO_BIN_EXE_photoledger");
+    let dir = std::env::temp_dir().join(format!("photoledger-chain-sens-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let run = |args: &[&str]| {
+        let o = std::process::Command::new(bin)
+            .args(args)
+            .current_dir(&dir)
+            .output()
+            .unwrap();
+        assert!(o.status.success(), "{args:?}: {}", String::from_utf8_lossy(&o.stderr));
+        String::from_utf8_lossy(&o.stdout).into_owned()
+    };
+    let said = run(&[
+        "bench",
+        "--write",
+        "gen.toml",
+        "--species",
+        "60",
+        "--steps",
+        "200",
+        "--absorbers",
+        "5",
+    ]);
+    assert!(said.contains("gen.toml"), "{said}");
+    let net = photoledger::network::load(&dir.join("gen.toml"), &Overrides::none()).unwrap();
+    assert_eq!((net.species.len(), net.thermal.len(), net.photo.len()), (60, 200, 5));
+    run(&["ledger", "gen.toml", "--out", "out"]);
+    let summary: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(dir.join("out/summary.json")).unwrap()).unwrap();
+    let method = summary["sensitivity_method"].as_str().unwrap();
+    assert!(method.starts_with("exact derivatives"), "{method}");
+    assert_eq!(summary["sensitivities"].as_array().unwrap().len(), 205);
+    let _ = std::fs::remove_dir_all(&dir);
+}
