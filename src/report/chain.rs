@@ -161,11 +161,7 @@ pub fn summary(
         distribution_tail: a.distribution.as_ref().map(|d| d.tail),
         distribution_max_photons: a.distribution.as_ref().map(|d| d.p.len().saturating_sub(1)),
         distribution_truncated: a.distribution.as_ref().is_some_and(|d| d.truncated),
-        sensitivity_method: format!(
-            "central finite differences through the chain construction, relative step {:e}; barriers by \
-             ∂/∂E = −(k/RT) ∂/∂k",
-            crate::chain::sensitivity::STEP
-        ),
+        sensitivity_method: crate::chain::sensitivity::METHOD.to_string(),
         sensitivities: sens,
     }
 }
@@ -202,15 +198,14 @@ impl Summary {
         display::ZeroWithin::relative(largest, display::CHAIN_ROUNDOFF)
     }
 
-    /// The round-off limits of sensitivity `x`: of its d yield / d p (the yields' round-off over
-    /// the finite-difference step of p, [`display::ZeroWithin::difference_quotient`]) and of
-    /// its elasticities d ln photons / d ln p (relative round-off over the step).
+    /// The round-off limits of sensitivity `x`: of its d yield / d p (the yields' round-off
+    /// against a unit relative change of p, [`display::ZeroWithin::derivative`]) and of its
+    /// elasticities d ln photons / d ln p (relative round-off).
     pub fn sensitivity_zero(&self, x: &Sensitivity) -> (display::ZeroWithin, display::ZeroWithin) {
-        let step = crate::chain::sensitivity::STEP;
         let largest = display::largest(self.ends.iter().map(|e| e.yield_fraction));
         (
-            display::ZeroWithin::difference_quotient(largest, display::CHAIN_ROUNDOFF, step, x.value),
-            display::ZeroWithin::difference_quotient(1.0, display::CHAIN_ROUNDOFF, step, 1.0),
+            display::ZeroWithin::derivative(largest, display::CHAIN_ROUNDOFF, x.value),
+            display::ZeroWithin::derivative(1.0, display::CHAIN_ROUNDOFF, 1.0),
         )
     }
 }
@@ -314,7 +309,7 @@ pub fn text(s: &Summary) -> String {
             "\n  top sensitivities for {} (d ln photons / d ln p; d yield / d p)",
             e.species
         );
-        // finite-difference noise (a yield pinned at 1 moves by round-off only) reads 0;
+        // round-off (a yield pinned at 1 moves by round-off only) reads 0;
         // summary.json keeps the raw derivatives
         for x in s.sensitivities.iter().take(8) {
             let (dy_zero, el_zero) = s.sensitivity_zero(x);

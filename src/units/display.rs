@@ -151,14 +151,12 @@ impl ZeroWithin {
         ZeroWithin((scale.abs() * rel).max(0.0))
     }
 
-    /// The limit of a derivative dY/dp found by finite differences over a relative step `step`
-    /// of p (central: (Y(p(1 + h)) − Y(p(1 − h))) / (2hp)) when each Y carries round-off `rel`
-    /// of `scale`: the two round-offs together, 2·rel·scale, over the span 2h·|p|. A derivative
-    /// within it is finite-difference noise, not a dependence (a one-sided difference has twice
-    /// this noise, so the limit is the smaller, conservative one). E.g. a yield pinned at 1 by
-    /// [`CHAIN_ROUNDOFF`], p = 0.5, h = 1e-4: |dY/dp| ≤ 2e-6 reads 0.
-    pub fn difference_quotient(scale: f64, rel: f64, step: f64, p: f64) -> Self {
-        let span = step * p.abs();
+    /// The limit of an exact derivative dY/dp when each Y carries round-off `rel` of `scale`: a
+    /// derivative whose effect over a unit relative change of p, |dY/dp|·|p|, stays within the
+    /// round-off rel·scale is not a dependence. E.g. a yield pinned at 1 by [`CHAIN_ROUNDOFF`],
+    /// p = 0.5: |dY/dp| ≤ 2e-10 reads 0. A p of 0 (or not finite) gives no limit.
+    pub fn derivative(scale: f64, rel: f64, p: f64) -> Self {
+        let span = p.abs();
         if span > 0.0 && span.is_finite() {
             ZeroWithin((scale.abs() * rel / span).max(0.0))
         } else {
@@ -320,16 +318,13 @@ mod tests {
         // A chain statistic: sd 7.067e-14 of a mean of 1 is round-off.
         assert_eq!(ZeroWithin::relative(1.0, CHAIN_ROUNDOFF).shown(7.067e-14), 0.0);
         assert_eq!(ZeroWithin::relative(1.0, CHAIN_ROUNDOFF).shown(1e-6), 1e-6);
-        // A yield pinned at 1: a finite-difference derivative of 4.4e-12 over a step 1e-4 of
-        // p = 1 is round-off (limit 1e-6); 1e-3 is a dependence.
-        let fd = ZeroWithin::difference_quotient(1.0, CHAIN_ROUNDOFF, 1e-4, 1.0);
-        assert_eq!(fd.shown(4.441e-12), 0.0);
-        assert_eq!(fd.shown(-1.448e-6 * 0.5), 0.0);
-        assert_eq!(fd.shown(1e-3), 1e-3);
-        assert_eq!(
-            ZeroWithin::difference_quotient(1.0, CHAIN_ROUNDOFF, 1e-4, 0.0),
-            ZeroWithin::NONE
-        );
+        // A yield pinned at 1: an exact derivative of 4.4e-12 at p = 1 is round-off (limit
+        // 1e-10 of the yield); 1e-6 is a dependence.
+        let d = ZeroWithin::derivative(1.0, CHAIN_ROUNDOFF, 1.0);
+        assert_eq!(d.shown(4.441e-12), 0.0);
+        assert_eq!(d.shown(-9e-11), 0.0);
+        assert_eq!(d.shown(1e-6), 1e-6);
+        assert_eq!(ZeroWithin::derivative(1.0, CHAIN_ROUNDOFF, 0.0), ZeroWithin::NONE);
         assert_eq!(number(2.019), "2.019");
         assert_eq!(number(150.0), "150");
         assert_eq!(number(0.0125), "0.0125");

@@ -176,7 +176,7 @@ pub fn section(chain: &Result<ChainStudy, String>) -> String {
             .iter()
             .take(TOP_SENSITIVITIES)
             .map(|x| {
-                // finite-difference noise reads 0 (`Summary::sensitivity_zero`)
+                // round-off reads 0 (`Summary::sensitivity_zero`)
                 let (dy_zero, el_zero) = sm.sensitivity_zero(x);
                 let el = x
                     .elasticity_photons
