@@ -323,3 +323,28 @@ fn yields_differ_where_an_inner_filter_shifts_light_against_heat_and_say_why() {
         "{text}"
     );
 }
+
+/// The time check on the inner-filter network (invented, above): the kinetics never make the
+/// (1 − 1/e) × 0.82 of A as B that the chain's yield asks for, so there is no time to compare.
+/// The check says so in words ("never turn", not "take never"), names the most B the kinetics
+/// make against that level, and points to the yield check, which says why.
+#[test]
+fn a_time_check_never_met_points_to_the_yield_check() {
+    let (check, text) = yields_of(FILTER);
+    assert!(check.kinetics_time_s.is_none() && !check.agree, "{check:?}");
+    let y = check.yields.as_ref().expect("yields compared");
+    assert!(!y.agree, "{y:?}");
+    let first = check.reasons.first().expect("a reason");
+    assert!(
+        first.contains("the kinetics make at most")
+            && first.contains("of B (")
+            && first.contains("short of the")
+            && first.contains("the yield check below"),
+        "{first}"
+    );
+    // The most B the kinetics make, as printed, is below the level the chain's yield sets.
+    let b = y.ends.iter().find(|e| e.end == "B").unwrap();
+    assert!(b.kinetics < check.fraction, "{b:?} against {}", check.fraction);
+    assert!(text.contains("the kinetics never turn 51.9 % of A into B ("), "{text}");
+    assert!(!text.contains("take never"), "{text}");
+}

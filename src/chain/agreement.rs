@@ -157,10 +157,16 @@ pub struct Agreement {
 impl Agreement {
     /// One line: the two times and the verdict.
     pub fn headline(&self) -> String {
-        let k = match (self.kinetics_time_s, &self.unreachable) {
-            (Some(t), _) => format_time(t),
-            (None, Some(why)) => format!("never ({why})"),
-            (None, None) => "never".into(),
+        let turn = format!(
+            "{} % of {} into {}",
+            sig(100.0 * self.fraction, 3),
+            self.reference,
+            self.end
+        );
+        let kinetics = match (self.kinetics_time_s, &self.unreachable) {
+            (Some(t), _) => format!("the kinetics take {} to turn {turn}", format_time(t)),
+            (None, Some(why)) => format!("the kinetics never turn {turn} ({why})"),
+            (None, None) => format!("the kinetics never turn {turn}"),
         };
         let verdict = match (self.agree, self.ratio) {
             (true, Some(r)) => format!("they agree (ratio {})", sig(r, 3)),
@@ -171,13 +177,8 @@ impl Agreement {
             _ => "they DISAGREE: the chain's time is not the time this mixture takes".into(),
         };
         format!(
-            "kinetics check: chain mean time {}; the kinetics take {} to turn {} % of {} into {}; {}",
-            format_time(self.chain_time_s),
-            k,
-            sig(100.0 * self.fraction, 3),
-            self.reference,
-            self.end,
-            verdict
+            "kinetics check: chain mean time {}; {kinetics}; {verdict}",
+            format_time(self.chain_time_s)
         )
     }
 }
@@ -236,7 +237,11 @@ pub fn check(
     )?;
     let ratio = plan.time.map(|t| t / tau);
     let agree = ratio.is_some_and(|r| (1.0 / FACTOR..=FACTOR).contains(&r));
-    let reasons = if agree {
+    let (yields, yields_skipped) = match compare_yields(model, net, run)? {
+        Ok(y) => (Some(y), None),
+        Err(why) => (None, Some(why)),
+    };
+    let mut reasons = if agree {
         Vec::new()
     } else {
         reasons(
@@ -249,10 +254,9 @@ pub fn check(
             end,
         )?
     };
-    let (yields, yields_skipped) = match compare_yields(model, net, run)? {
-        Ok(y) => (Some(y), None),
-        Err(why) => (None, Some(why)),
-    };
+    if let Some(u) = &plan.unreachable {
+        reasons.insert(0, short_of(model, &target, u, reference, yields.as_ref()));
+    }
     Ok(Ok(Agreement {
         yields,
         yields_skipped,
@@ -273,6 +277,47 @@ pub fn check(
         ),
         reasons,
     }))
+}
+
+/// Why the kinetics never reach the level of the time check: the most they make of the end,
+/// against the level the chain's yield sets; the time is then undefined, and the yield check
+/// (when it was made) is where the chain and the kinetics part.
+fn short_of(
+    model: &Model,
+    target: &Target,
+    u: &crate::plan::Unreachable,
+    reference: usize,
+    yields: Option<&Yields>,
+) -> String {
+    let (end, c_ref) = (target.species, model.initial[reference]);
+    let best = u.best_level - model.initial[end];
+    let share = if c_ref > 0.0 { best.max(0.0) / c_ref } else { 0.0 };
+    let wanted = target.level - model.initial[end];
+    let most = format!(
+        "the kinetics make at most {} of {} ({} % of {}, at {})",
+        format_concentration(best.max(0.0)),
+        target.species_name,
+        sig(100.0 * share, 3),
+        model.species[reference],
+        format_time(u.best_time)
+    );
+    let level = format!(
+        "short of the {} ({} % of {}) the chain's yield sets for this check",
+        format_concentration(wanted),
+        sig(100.0 * wanted / c_ref, 3),
+        model.species[reference]
+    );
+    match (u.why, yields) {
+        (crate::plan::Why::Horizon, _) => {
+            format!("{most}, {level}, and were still changing at {}", format_time(u.horizon))
+        }
+        (_, Some(y)) if !y.agree => format!(
+            "{most}, {level}: the chain's yield is more than this mixture makes, so there is no time to compare; the \
+             yield check below compares the yields and says why"
+        ),
+        (_, Some(_)) => format!("{most}, {level}; the yield check below compares the yields at the automatic horizon"),
+        (_, None) => format!("{most}, {level}: the chain's yield is more than this mixture makes"),
+    }
 }
 
 /// The reasons, from the model, why the chain's time and the kinetics' differ: the state `y`
