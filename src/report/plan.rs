@@ -7,6 +7,7 @@ use crate::plan::actinometry::{FluxResult, Measured, NetworkFit};
 use crate::plan::target::Basis;
 use crate::plan::{Days, Direction, Flow, Plan, SweepPoint, Tube, Unreachable};
 use crate::report::csv_out::{CsvTable, opt_sci, sci};
+use crate::report::ticks;
 use crate::units::display::{ZeroWithin, format_concentration_within};
 use crate::units::{format_concentration, format_time, sig};
 use plotters::prelude::*;
@@ -554,6 +555,13 @@ pub fn sweep_csv(axis: &SweepAxis, points: &[SweepPoint]) -> String {
     t.finish()
 }
 
+/// Drawn length of the x axis of [`xy_plot`]'s 900 × 560 px chart, px (approximate: the width
+/// less the margins and the y label area).
+const X_AXIS_PX: f64 = 787.0;
+
+/// Drawn length of its y axis, px (approximate).
+const Y_AXIS_PX: f64 = 440.0;
+
 /// An x–y plot with points and lines, either axis logarithmic, as SVG text.
 fn xy_plot(
     title: &str,
@@ -611,6 +619,8 @@ fn xy_plot(
                         c.configure_mesh()
                             .x_desc(x.0)
                             .y_desc(y.0)
+                            .x_label_formatter(&|v| ticks::label(*v))
+                            .y_label_formatter(&|v| ticks::label(*v))
                             .label_style(("sans-serif", 15))
                             .draw()?;
                         for (i, (name, pts)) in series.iter().enumerate() {
@@ -634,10 +644,25 @@ fn xy_plot(
                         }
                     }};
                 }
+                // Log axes carry round values as labels, never overlapping (`ticks`).
+                let (xb, xl) = ticks::log_ticks(x0, x1, X_AXIS_PX, false);
+                let (yb, yl) = ticks::log_ticks(y0, y1, Y_AXIS_PX, true);
+                let xlog = || {
+                    (x0..x1)
+                        .log_scale()
+                        .with_key_points(xb.clone())
+                        .with_light_points(xl.clone())
+                };
+                let ylog = || {
+                    (y0..y1)
+                        .log_scale()
+                        .with_key_points(yb.clone())
+                        .with_light_points(yl.clone())
+                };
                 match (x.1, y.1) {
-                    (true, true) => go!(b.build_cartesian_2d((x0..x1).log_scale(), (y0..y1).log_scale())?),
-                    (true, false) => go!(b.build_cartesian_2d((x0..x1).log_scale(), y0..y1)?),
-                    (false, true) => go!(b.build_cartesian_2d(x0..x1, (y0..y1).log_scale())?),
+                    (true, true) => go!(b.build_cartesian_2d(xlog(), ylog())?),
+                    (true, false) => go!(b.build_cartesian_2d(xlog(), y0..y1)?),
+                    (false, true) => go!(b.build_cartesian_2d(x0..x1, ylog())?),
                     (false, false) => go!(b.build_cartesian_2d(x0..x1, y0..y1)?),
                 }
                 Ok(())
@@ -693,6 +718,8 @@ pub fn selectivity_svg(network: &str, axis: &SweepAxis, points: &[SweepPoint]) -
             )
         })
         .collect();
+    // A co-product has no selectivity against the reference at any point: no line, no legend.
+    let series: Vec<(String, Vec<(f64, f64)>)> = series.into_iter().filter(|s| !s.1.is_empty()).collect();
     let forming = series.iter().filter(|s| s.1.iter().any(|p| p.1 > 0.0)).count();
     (forming >= 2).then(|| {
         xy_plot(
