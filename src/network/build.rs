@@ -1672,6 +1672,7 @@ impl<'a> Builder<'a> {
                     kind,
                     channels: Vec::new(),
                     energy_from: None,
+                    hot: None,
                 });
                 continue;
             }
@@ -1847,7 +1848,8 @@ impl<'a> Builder<'a> {
             }
             // A channel already reported as broken would only add follow-on errors about sums.
             let complete = channels.len() == t.get_ref().channels.len() && !hot_broken;
-            let hot_ok = complete && self.hot_yields(&field, t, kind, &hot, &mut channels, &photon[i]);
+            let mut hot_model = None;
+            let hot_ok = complete && self.hot_yields(&field, t, kind, &hot, &mut channels, &photon[i], &mut hot_model);
             let photon_energy = t
                 .get_ref()
                 .energy
@@ -1861,6 +1863,7 @@ impl<'a> Builder<'a> {
                 kind,
                 channels: channels.into_iter().map(|c| c.0).collect(),
                 energy_from: (photon_energy && !hot.is_empty()).then(|| photon[i].describe()),
+                hot: hot_model,
             });
         }
         out

@@ -350,6 +350,7 @@ impl Builder<'_> {
         specs: &[HotSpec],
         channels: &mut [(Channel, Origin)],
         photon: &super::build::AbsorbedEnergy,
+        model: &mut Option<super::HotModel>,
     ) -> bool {
         let at = span(t);
         let e = t.get_ref();
@@ -518,6 +519,21 @@ impl Builder<'_> {
                 return false;
             }
         };
+        *model = Some(super::HotModel {
+            reactant: reactant.clone(),
+            grain,
+            cooling,
+            photon_energy: e.energy.as_ref().is_some_and(|t| t.get_ref().trim() == "photon"),
+            channels: specs
+                .iter()
+                .map(|s| super::HotChannel {
+                    channel: s.channel,
+                    ts: s.ts.clone(),
+                    barrier: s.barrier,
+                    degeneracy: s.degeneracy,
+                })
+                .collect(),
+        });
         for (s, p) in specs.iter().zip(&y.probabilities) {
             let rate_at_start =
                 crate::rates::rrkm::Rrkm::new(&reactant, &s.ts, s.barrier, s.degeneracy, grain, energy + grain)
