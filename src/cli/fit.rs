@@ -139,10 +139,11 @@ pub fn fit_one(
         file: file.to_path_buf(),
         set: set.to_vec(),
     };
-    super::print_warnings(&super::build(&loaded, &args)?);
-    let base = photoledger::Overrides::parse(set).map_err(Error::Usage)?.pairs();
+    let net = super::build(&loaded, &args)?;
+    super::print_warnings(&net);
     let pb = bar(opts.max_evaluations, &file.display().to_string());
-    let fitted = run::fit_loaded(&loaded, base, free, experiments, opts, &|p| show(&pb, p));
+    let free = loaded.free_keys(free);
+    let fitted = run::fit_network(&net, &free, experiments, opts, &|p| show(&pb, p));
     pb.finish_and_clear();
     let fitted = fitted?;
     Ok((loaded, fitted))

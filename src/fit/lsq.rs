@@ -30,70 +30,7 @@ pub enum ErrorScale {
     Unscaled,
 }
 
-/// How a parameter is kept in its range while fitting.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Transform {
-    /// Unbounded: fitted as itself.
-    Identity,
-    /// Positive: fitted as ln x.
-    Log,
-    /// In [0, 1]: fitted as logit x = ln(x / (1 − x)).
-    Logistic,
-}
-
-impl Transform {
-    /// Natural value to fitted value (clamped inside the open range so a start on a bound works).
-    pub fn forward(self, x: f64) -> f64 {
-        match self {
-            Transform::Identity => x,
-            Transform::Log => x.max(f64::MIN_POSITIVE).ln(),
-            Transform::Logistic => {
-                let x = x.clamp(1e-12, 1.0 - 1e-12);
-                (x / (1.0 - x)).ln()
-            }
-        }
-    }
-
-    /// Fitted value to natural value.
-    pub fn inverse(self, z: f64) -> f64 {
-        match self {
-            Transform::Identity => z,
-            Transform::Log => z.exp(),
-            Transform::Logistic => 1.0 / (1.0 + (-z).exp()),
-        }
-    }
-
-    /// dx/dz at z.
-    pub fn slope(self, z: f64) -> f64 {
-        match self {
-            Transform::Identity => 1.0,
-            Transform::Log => z.exp(),
-            // x(1 − x) written so that it does not round to 0 far out on either side.
-            Transform::Logistic => {
-                let e = (-z.abs()).exp();
-                e / ((1.0 + e) * (1.0 + e))
-            }
-        }
-    }
-
-    /// The name of the fitting scale: "natural", "log" or "logit".
-    pub fn scale_name(self) -> &'static str {
-        match self {
-            Transform::Identity => "natural",
-            Transform::Log => "log",
-            Transform::Logistic => "logit",
-        }
-    }
-
-    /// True when the fitted value sits at (numerically on) the edge of the range.
-    pub fn at_bound(self, z: f64) -> bool {
-        match self {
-            Transform::Identity => false,
-            Transform::Log => z < -600.0,
-            Transform::Logistic => z.abs() > 14.0,
-        }
-    }
-}
+pub use crate::network::params::Transform;
 
 /// A least-squares model: weighted residuals rᵢ = (yᵢ − fᵢ(x)) / σᵢ at natural parameters x.
 pub trait Residuals: Sync {
@@ -697,7 +634,7 @@ mod tests {
         for (t, x) in [
             (Transform::Identity, -3.5),
             (Transform::Log, 2.5e-7),
-            (Transform::Logistic, 0.3),
+            (Transform::Logit, 0.3),
         ] {
             let z = t.forward(x);
             assert!((t.inverse(z) - x).abs() <= 1e-12 * x.abs());
@@ -705,8 +642,8 @@ mod tests {
             let d = (t.inverse(z + h) - t.inverse(z - h)) / (2.0 * h);
             assert!((d - t.slope(z)).abs() <= 1e-6 * d.abs());
         }
-        assert!(Transform::Logistic.at_bound(Transform::Logistic.forward(1.0)));
-        assert!(!Transform::Logistic.at_bound(Transform::Logistic.forward(0.999)));
+        assert!(Transform::Logit.at_bound(Transform::Logit.forward(1.0)));
+        assert!(!Transform::Logit.at_bound(Transform::Logit.forward(0.999)));
     }
 
     #[test]
@@ -780,7 +717,7 @@ mod tests {
             errors: ErrorScale::Unscaled,
             ..Settings::default()
         };
-        let s = fit(&m, &[0.5], &[Transform::Logistic], &known).unwrap();
+        let s = fit(&m, &[0.5], &[Transform::Logit], &known).unwrap();
         let (v, se) = (s.values[0], s.standard_errors[0]);
         assert!((v - 0.98).abs() < 1e-9, "{v}");
         assert!((se - 0.02 / 2f64.sqrt()).abs() < 1e-6, "natural-scale se {se}");
@@ -790,11 +727,11 @@ mod tests {
         );
         let (lo, hi) = s.intervals[0];
         assert!(0.0 < lo && lo < v && v < hi && hi < 1.0, "[{lo}, {hi}]");
-        let z = Transform::Logistic.forward(v);
+        let z = Transform::Logit.forward(v);
         let half = s.quantile * se / (v * (1.0 - v));
         let want = (
-            Transform::Logistic.inverse(z - half),
-            Transform::Logistic.inverse(z + half),
+            Transform::Logit.inverse(z - half),
+            Transform::Logit.inverse(z + half),
         );
         assert!(
             (lo - want.0).abs() < 1e-9 && (hi - want.1).abs() < 1e-9,
@@ -834,7 +771,7 @@ mod tests {
                 errors: ErrorScale::Unscaled,
                 ..Settings::default()
             };
-            let t = [Transform::Logistic, Transform::Identity];
+            let t = [Transform::Logit, Transform::Identity];
             let _ = tx.send((fit(&m, &[0.5, 0.0], &t, &known), t));
         });
         let (s, t) = rx
@@ -852,8 +789,8 @@ mod tests {
         );
         assert!(s.warnings(&t).contains(&Identifiability::AtBound(0)));
         // The logistic slope stays positive far out, where x(1 − x) rounds to 0.
-        assert!(Transform::Logistic.slope(40.0) > 0.0 && Transform::Logistic.slope(-40.0) > 0.0);
-        assert!((Transform::Logistic.slope(40.0) / (-40f64).exp() - 1.0).abs() < 1e-12);
+        assert!(Transform::Logit.slope(40.0) > 0.0 && Transform::Logit.slope(-40.0) > 0.0);
+        assert!((Transform::Logit.slope(40.0) / (-40f64).exp() - 1.0).abs() < 1e-12);
     }
 
     #[test]

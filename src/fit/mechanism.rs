@@ -1,23 +1,26 @@
-//! Fitting a network's parameters to experiments: each evaluation applies the parameter values
-//! as `--set` overrides, builds and compiles the network, and integrates it to the data times.
+//! Fitting a network's parameters to experiments. The network is built and validated once; each
+//! experiment's conditions and every free parameter are typed values written into a copy of it
+//! (`network::params::set`), which is compiled and integrated to the data times. No evaluation
+//! formats or parses text.
 
 use super::goodness::{Goodness, RunsTest};
-use super::lsq::{self, Budget, ErrorScale, Identifiability, Settings, Solution, Transform};
+use super::lsq::{self, Budget, ErrorScale, Identifiability, Settings, Solution};
 use crate::error::{Diagnostic, Error, Result};
-use crate::file::Loaded;
 use crate::file::data::{EndpointKind, Experiment};
 use crate::kinetics::{self, Options};
 use crate::model::Model;
-use crate::network::overrides::{self, Range};
-use crate::network::{self, Branching, Network, Overrides};
+use crate::network::params::{self, Key, Transform};
+use crate::network::{Branching, Network};
 use rand::{Rng, SeedableRng, rngs::StdRng};
 use rayon::prelude::*;
 
 /// A parameter set free in the fit.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Free {
-    /// Its `--set` key.
+    /// Its key as the user writes it.
     pub key: String,
+    /// Its typed address in the network.
+    pub address: Key,
     /// Start value from the file (internal unit).
     pub start: f64,
     /// Unit of the internal value as written in `--set`, e.g. "J/mol".
@@ -27,7 +30,7 @@ pub struct Free {
 }
 
 impl Free {
-    /// The `--set` value text for `value`.
+    /// The `--set` value text for `value` (for the fitted file written at the end).
     pub fn text(&self, value: f64) -> String {
         if self.unit.is_empty() {
             format!("{value:e}")
@@ -57,12 +60,12 @@ impl Default for Accuracy {
 
 /// A network, the data and the free parameters: everything one evaluation needs.
 pub struct Setup<'a> {
-    /// The network file as read.
-    pub loaded: &'a Loaded,
-    /// Overrides from the command line, applied to every experiment first.
-    pub base: Vec<(String, String)>,
+    /// The network as given (with the command line's values), validated once.
+    pub base: Network,
     /// The experiments.
     pub experiments: &'a [Experiment],
+    /// Each experiment's own values (its `set` list, parsed once), in experiment order.
+    conditions: Vec<Vec<(Key, f64)>>,
     /// Free parameters.
     pub free: Vec<Free>,
     /// Integration settings.
@@ -84,44 +87,56 @@ fn located(file: &std::path::Path, line: usize, field: &str, msg: String, help: 
     Error::invalid(d)
 }
 
+/// An experiment's `set` list as typed values of `net`, each key and value read once.
+fn experiment_values(net: &Network, e: &Experiment) -> Result<Vec<(Key, f64)>> {
+    let bad = |m: String| Error::Usage(format!("experiment \"{}\": set {m}", e.name));
+    let mut out = Vec::new();
+    for (k, v) in &e.set {
+        let key = Key::parse(net, k).map_err(bad)?;
+        let value = params::get(net, key)
+            .parse_value(v)
+            .map_err(|m| bad(format!("{k} = \"{v}\": {m}")))?;
+        out.push((key, value));
+    }
+    let mut trial = net.clone();
+    params::set_all(&mut trial, &out).map_err(bad)?;
+    Ok(out)
+}
+
 impl<'a> Setup<'a> {
-    /// Check the free keys and the data against the network (built with `base`).
-    pub fn new(
-        loaded: &'a Loaded,
-        base: Vec<(String, String)>,
-        experiments: &'a [Experiment],
-        free_keys: &[String],
-        accuracy: Accuracy,
-    ) -> Result<Self> {
-        let mut o = Overrides::none();
-        for (k, v) in &base {
-            o = o.with(k, v);
-        }
-        let net = network::build(loaded, &o)?;
+    /// Check the free keys and the data against `base` (the network as given, with the command
+    /// line's values).
+    pub fn new(base: &Network, experiments: &'a [Experiment], free_keys: &[String], accuracy: Accuracy) -> Result<Self> {
         if free_keys.is_empty() {
             return Err(Error::Usage(
                 "no free parameters: name them with --free or a [fit] free list".into(),
             ));
         }
-        let mut free = Vec::new();
+        let conditions = experiments
+            .iter()
+            .map(|e| experiment_values(base, e))
+            .collect::<Result<Vec<_>>>()?;
+        let mut free: Vec<Free> = Vec::new();
         for key in free_keys {
             if free.iter().any(|f: &Free| &f.key == key) {
                 return Err(Error::Usage(format!("--free {key} is named twice")));
             }
-            let p = overrides::parameter(&net, key).map_err(|m| Error::Usage(format!("--free {m}")))?;
-            let transform = match p.range {
-                Range::Fraction => Transform::Logistic,
-                Range::Positive => Transform::Log,
-                Range::Real => Transform::Identity,
-            };
+            let p = params::parameter(base, key).map_err(|m| Error::Usage(format!("--free {m}")))?;
+            let transform = Transform::for_range(p.range);
             if transform == Transform::Log && p.value <= 0.0 {
                 return Err(Error::Usage(format!(
                     "--free {key}: the start is {} and a positive value is needed; give one with --set",
                     p.value
                 )));
             }
-            for e in experiments {
-                if e.set.iter().any(|(k, _)| k == key) {
+            if let Some(other) = free.iter().find(|f| f.address.target() == p.address.target()) {
+                return Err(Error::Usage(format!(
+                    "--free {key} and {} write the same value (one replaces the other); free one of them",
+                    other.key
+                )));
+            }
+            for (e, c) in experiments.iter().zip(&conditions) {
+                if c.iter().any(|(k, _)| k.target() == p.address.target()) {
                     return Err(Error::Usage(format!(
                         "--free {key} is also set by experiment \"{}\"; a free parameter is shared by all experiments",
                         e.name
@@ -130,15 +145,16 @@ impl<'a> Setup<'a> {
             }
             free.push(Free {
                 key: key.clone(),
+                address: p.address,
                 start: p.value,
                 unit: p.unit,
                 transform,
             });
         }
         let setup = Setup {
-            loaded,
-            base,
+            base: base.clone(),
             experiments,
+            conditions,
             free,
             accuracy,
         };
@@ -244,24 +260,19 @@ impl<'a> Setup<'a> {
         self.free.iter().map(|f| f.transform).collect()
     }
 
-    /// The overrides for experiment `e` at parameter values `x`.
-    pub fn overrides(&self, e: &Experiment, x: &[f64]) -> Overrides {
-        let mut o = Overrides::none();
-        for (k, v) in &self.base {
-            o = o.with(k, v);
-        }
-        for (f, v) in self.free.iter().zip(x) {
-            o = o.with(&f.key, &f.text(*v));
-        }
-        for (k, v) in &e.set {
-            o = o.with(k, v);
-        }
-        o
-    }
-
-    /// The network of experiment `e` at `x`.
+    /// The network of experiment `e` (one of this setup's) at `x`: the base with the
+    /// experiment's values, then the free parameters, written as typed values.
     pub fn network(&self, e: &Experiment, x: &[f64]) -> Result<Network> {
-        network::build(self.loaded, &self.overrides(e, x))
+        let i = self
+            .experiments
+            .iter()
+            .position(|q| std::ptr::eq(q, e))
+            .ok_or_else(|| Error::Usage(format!("experiment \"{}\" is not one of this fit's", e.name)))?;
+        let mut net = self.base.clone();
+        params::set_all(&mut net, &self.conditions[i]).map_err(Error::Usage)?;
+        let values: Vec<(Key, f64)> = self.free.iter().map(|f| f.address).zip(x.iter().copied()).collect();
+        params::set_all(&mut net, &values).map_err(Error::Usage)?;
+        Ok(net)
     }
 
     /// The run length of experiment `e`, s.

@@ -31,6 +31,17 @@ pub fn load(path: &Path, overrides: &Overrides) -> Result<Network> {
     build(&loaded, overrides)
 }
 
+/// A 64-bit hash (FNV-1a) of every number and name of `net` that a computation uses: equal for
+/// the same network however it was written, different when any value differs (for telling
+/// whether two runs, such as shards of one sampling run, used the same network).
+pub fn fingerprint(net: &Network) -> u64 {
+    let text = format!(
+        "{:?}{:?}{:?}{:?}{:?}{:?}{:?}",
+        net.about, net.conditions, net.lights, net.species, net.thermal, net.photo, net.transients
+    );
+    text.bytes().fold(0xcbf29ce484222325, |h, b| (h ^ b as u64).wrapping_mul(0x100000001b3))
+}
+
 /// Name, description and provenance of a network.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct About {

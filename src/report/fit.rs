@@ -665,6 +665,7 @@ reverse = { prefactor = "1e10 /s", activation = "90 kJ/mol" }
                 let p = parameter(&net, k).unwrap_or_else(|e| panic!("{e}"));
                 Free {
                     key: k.to_string(),
+                    address: p.address,
                     start: p.value,
                     unit: p.unit,
                     transform: Transform::Identity,
@@ -690,6 +691,7 @@ reverse = { prefactor = "1e10 /s", activation = "90 kJ/mol" }
         }
         let bad = Free {
             key: "thermal.nothing.k".into(),
+            address: free[0].address,
             start: 1.0,
             unit: "/s",
             transform: Transform::Log,
