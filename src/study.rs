@@ -212,19 +212,6 @@ fn plan_study(model: &Model, target: &str) -> Result<PlanStudy> {
     })
 }
 
-/// A round duration at least `t` s: 1, 2 or 5 times a power of ten of the unit the duration is
-/// shown in (`units::display::time`), so the horizon reads as a round number in reports.
-pub fn round_up_duration(t: f64) -> f64 {
-    let (unit, _) = crate::units::display::time(t);
-    let v = t / unit;
-    let p = 10f64.powf(v.log10().floor());
-    let m = [1.0, 2.0, 5.0, 10.0]
-        .into_iter()
-        .find(|m| m * p >= v * (1.0 - 1e-12))
-        .unwrap_or(10.0);
-    m * p * unit
-}
-
 /// True when every species that changes noticeably (by more than 1e-3 of the largest
 /// concentration) has made 90 % of its net change within the first tenth of the run: a linear
 /// time axis would squeeze the dynamics against its left edge.
@@ -338,7 +325,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
                 .map(|t| plan::target::parse(t, model))
                 .transpose()?;
             let h = plan::horizon::automatic(model, target.as_ref())?;
-            let until = round_up_duration(h.time);
+            let until = plan::horizon::round_up(h.time);
             let reason = match h.ended {
                 plan::horizon::Ended::NothingConsumed => {
                     format!("{}, so one hour by default; set it with --until", h.reason())
@@ -383,7 +370,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
 
 #[cfg(test)]
 mod tests {
-    use super::{kinetics_once, round_up_duration};
+    use super::kinetics_once;
     use crate::kinetics::{self, Trajectory};
     use crate::model::Model;
     use crate::network::{self, Overrides};
@@ -461,18 +448,5 @@ mod tests {
         let mut o = kinetics::Options::until(3600.0);
         o.log_time = true;
         assert_eq!(s.kinetics.times, kinetics::output_times(&o, 0.0), "the log grid alone");
-    }
-
-    #[test]
-    fn durations_round_up_to_round_numbers() {
-        assert_eq!(round_up_duration(0.7), 1.0);
-        assert_eq!(round_up_duration(3.0), 5.0);
-        assert_eq!(round_up_duration(45.0), 50.0);
-        assert_eq!(round_up_duration(300.0), 300.0); // 5 min
-        assert_eq!(round_up_duration(8.67 * 3600.0), 10.0 * 3600.0);
-        assert_eq!(round_up_duration(3.0 * 86_400.0), 5.0 * 86_400.0);
-        assert_eq!(round_up_duration(2.0 * 3600.0), 2.0 * 3600.0);
-        assert_eq!(round_up_duration(5400.0), 2.0 * 3600.0); // 1.5 h, shown in h
-        assert_eq!(round_up_duration(0.0), 0.0);
     }
 }

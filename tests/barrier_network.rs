@@ -655,3 +655,78 @@ rate = { k = "2 /(M s)" }
     );
     assert!((v[0].rate - 2.0 * 1e-3).abs() < 1e-15);
 }
+
+/// A TST step named "ring" (unimolecular, κ and E₀ in the file) for the `--set` tests.
+fn ring_text() -> String {
+    format!(
+        "{BASE}{}",
+        r#"
+[[thermal]]
+name = "ring"
+equation = "A -> B"
+rate = { barrier = "21 kcal/mol", reactant_frequencies = [3010, 1650, 1220, 980, 640, 410, 180], ts_frequencies = [3005, 1600, 1190, 950, 400, 150, -1150] }
+"#
+    )
+}
+
+fn build_with(dir: &Path, text: &str, set: &[&str]) -> photoledger::error::Result<Network> {
+    let loaded = parse_text(&dir.join("net.toml"), text.to_string()).unwrap();
+    build(&loaded, &Overrides::parse(set).unwrap())
+}
+
+// `--set` reaches a rate from frequencies: `barrier` is E₀ and `transmission` is κ. In TST
+// k = κ σ (k_B T / h) (Q‡ / Q) exp(−E₀ / RT) (Eyring, J. Chem. Phys. 3 (1935) 107, `from memory`
+// as above), so with the same frequencies k(E₀ − 1 kcal/mol, κ = 0.5) / k(E₀, κ = 1) =
+// 0.5 exp(1 kcal/mol / RT).
+#[test]
+fn set_barrier_and_transmission_reach_a_rate_from_frequencies() {
+    let dir = scratch("set-tst");
+    let text = ring_text();
+    let k0 = build_with(&dir, &text, &[]).unwrap().thermal[0].k;
+    let net = build_with(
+        &dir,
+        &text,
+        &["thermal.ring.barrier=20 kcal/mol", "thermal.ring.transmission=0.5"],
+    )
+    .unwrap();
+    let t = 310.0;
+    let want = 0.5 * (1000.0 * CALORIE / AVOGADRO / (BOLTZMANN * t)).exp();
+    let ratio = net.thermal[0].k / k0;
+    assert!((ratio - want).abs() / want < 1e-9, "k ratio {ratio}, expected {want}");
+    match &net.thermal[0].rate {
+        photoledger::rates::RateLaw::Frequencies { transmission, .. } => assert_eq!(*transmission, 0.5),
+        other => panic!("the rate is no longer from frequencies: {other:?}"),
+    }
+}
+
+// A bad `--set` value on a rate from frequencies is an error of the command line, not of a line
+// of the file (the value carries no position in the file).
+#[test]
+fn a_bad_set_value_on_a_rate_from_frequencies_names_the_command_line() {
+    let dir = scratch("set-tst-bad");
+    let text = ring_text();
+    for (set, field, says) in [
+        (
+            "thermal.ring.transmission=2",
+            "thermal[0].rate.transmission",
+            "2 must lie in (0, 1]",
+        ),
+        (
+            "thermal.ring.barrier=-3 kcal/mol",
+            "thermal[0].rate.barrier",
+            "\"-3 kcal/mol\" is negative",
+        ),
+    ] {
+        let Err(photoledger::error::Error::Invalid(ds)) = build_with(&dir, &text, &[set]) else {
+            panic!("--set {set} was accepted");
+        };
+        let d = ds
+            .iter()
+            .find(|d| d.field == field)
+            .unwrap_or_else(|| panic!("no diagnostic at {field}: {ds:?}"));
+        assert!(d.message.contains(says), "{d}");
+        assert!(d.from_command_line, "not located on the command line: {d}");
+        assert_eq!(d.line_col, None, "located at a line of the file: {d}");
+        assert!(d.to_string().contains("(value given with --set)"), "{d}");
+    }
+}

@@ -133,8 +133,19 @@ fn prebiotic_pool_chain_time_is_flagged_with_its_reasons() {
         "{text}"
     );
     assert!(text.contains("DISAGREE") && text.contains("why: light:"), "{text}");
+    // The yields differ too: the condensation joins an aldehyde and a dinitrile, both
+    // followed, into one adduct, so the kinetics make half a product per molecule followed.
+    assert!(
+        text.contains("yield check") && text.contains("product: chain 1, kinetics 0.49"),
+        "{text}"
+    );
+    assert!(
+        text.contains("why: \"condensation\" is second order and joins"),
+        "{text}"
+    );
     let json = serde_json::to_value(&summary).expect("json");
     assert_eq!(json["kinetics_check"]["agree"], false);
+    assert_eq!(json["kinetics_check"]["yields"]["agree"], false);
     assert!(json["light"].as_str().unwrap().starts_with("stirred cell"));
 }
 
@@ -182,5 +193,133 @@ fn a_photostationary_switch_ends_when_nothing_changes() {
     assert!(h.reason().contains("nothing changes any more"), "{}", h.reason());
     // The report's run then ends at a round time at least that long.
     let s = study::run(&net, &model, &StudyOptions::default()).expect("study");
-    assert!(s.until >= h.time && s.until <= 2.5 * h.time);
+    assert!(s.until >= h.time && s.until <= 1.5 * h.time);
+}
+
+/// Two photoproducts from one absorber (invented): A → B (Φ 0.3) and A → C (Φ 0.1) under one
+/// line, nothing else. The branching is by quantum yields alone, whatever light A gets, so the
+/// chain's yields 0.75 and 0.25 are exactly what the kinetics make per A consumed (absorption
+/// probabilities of an absorbing chain = long-time yields of linear kinetics, `common practice`).
+const BRANCH: &str = r#"
+[conditions]
+temperature = "298.15 K"
+volume = "3 mL"
+path_length = "1 cm"
+[[light]]
+kind = "line"
+wavelength = "365 nm"
+power = "10 mW"
+[[species]]
+name = "A"
+initial = "50 µM"
+epsilon = { at = "365 nm", value = "5000 L/(mol cm)" }
+[[species]]
+name = "B"
+product = true
+[[species]]
+name = "C"
+product = true
+[[photo]]
+equation = "A -> B"
+quantum_yield = 0.3
+[[photo]]
+equation = "A -> C"
+quantum_yield = 0.1
+"#;
+
+/// Light against heat under an inner filter (invented): A leaves by light to B (Φ 1) and by
+/// heat to C (2e-3 /s); B absorbs twenty times more strongly than A. At the start A takes
+/// 0.9 of the light and 82 % of it goes to B; as B builds up it takes the light, and the rest
+/// of A goes to C: the kinetics make far less B than the chain's start-of-run branching says.
+const FILTER: &str = r#"
+[conditions]
+temperature = "298.15 K"
+volume = "3 mL"
+path_length = "1 cm"
+[[light]]
+kind = "line"
+wavelength = "365 nm"
+power = "10 mW"
+[[species]]
+name = "A"
+initial = "1 mM"
+epsilon = { at = "365 nm", value = "1000 L/(mol cm)" }
+[[species]]
+name = "B"
+product = true
+epsilon = { at = "365 nm", value = "20000 L/(mol cm)" }
+[[species]]
+name = "C"
+product = true
+[[photo]]
+equation = "A -> B"
+quantum_yield = 1.0
+[[thermal]]
+equation = "A -> C"
+rate = { k = "2e-3 /s" }
+"#;
+
+fn yields_of(text: &str) -> (agreement::Agreement, String) {
+    let net = network(text);
+    let model = Model::compile(&net);
+    let opts = ChainOptions {
+        sensitivities: false,
+        ..ChainOptions::default()
+    };
+    let run = chain::run(&model, &net, &opts).expect("chain");
+    let check = agreement::check(&model, &net, &run, None)
+        .expect("runs")
+        .expect("applies");
+    let summary = chain_report::summary(
+        "test",
+        &run.chain,
+        &run.analysis,
+        &run.start_note,
+        &run.light,
+        &model.products,
+        Vec::new(),
+    )
+    .with_check(Ok(check.clone()));
+    (check, chain_report::text(&summary))
+}
+
+#[test]
+fn yields_of_a_first_order_branching_agree_with_the_kinetics() {
+    let (check, text) = yields_of(BRANCH);
+    let y = check.yields.as_ref().expect("yields compared");
+    assert!(y.agree && y.reasons.is_empty(), "{y:?}");
+    let want = [("B", 0.75), ("C", 0.25)];
+    assert_eq!(y.ends.len(), 2, "{y:?}");
+    for (e, (name, v)) in y.ends.iter().zip(want) {
+        assert_eq!(e.end, name);
+        assert!((e.chain - v).abs() < 1e-9, "{e:?}");
+        // per A consumed at 99 % conversion: the same branching, to the tolerances
+        assert!((e.kinetics - v).abs() < 1e-5, "{e:?}");
+    }
+    assert!(text.contains("yield check: per molecule of A that reacts"), "{text}");
+    assert!(text.contains("B: chain 0.75, kinetics 0.75; agree"), "{text}");
+}
+
+#[test]
+fn yields_differ_where_an_inner_filter_shifts_light_against_heat_and_say_why() {
+    let (check, text) = yields_of(FILTER);
+    let y = check.yields.as_ref().expect("yields compared");
+    assert!(!y.agree, "{y:?}");
+    let b = y.ends.iter().find(|e| e.end == "B").unwrap();
+    let c = y.ends.iter().find(|e| e.end == "C").unwrap();
+    // The chain's branching at the start: k_light / (k_light + k) ≈ 0.82.
+    assert!((b.chain - 0.82).abs() < 0.01, "{b:?}");
+    assert!(!b.agree && b.kinetics < b.chain / 1.2, "{b:?}");
+    assert!(!c.agree && c.kinetics > c.chain * 1.2, "{c:?}");
+    // B and C still account for every A consumed.
+    assert!((b.kinetics + c.kinetics - 1.0).abs() < 1e-4, "{y:?}");
+    let all = y.reasons.join("\n");
+    assert!(
+        all.contains("light against heat: A leaves by light and by A -> C"),
+        "{all}"
+    );
+    assert!(
+        text.contains("DISAGREE by a factor of") && text.contains("why: light against heat"),
+        "{text}"
+    );
 }

@@ -213,3 +213,105 @@ fn an_unreachable_target_has_one_code_with_and_without_in() {
     assert_eq!(code(&ok), 0, "{}", stderr(&ok));
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn every_command_given_a_target_answers_not_reachable_with_5() {
+    let dir = scratch("targets");
+    let out = |o: &Output| String::from_utf8_lossy(&o.stdout).into_owned();
+    // plan --sweep: no point reaches the photoswitch's 90 % Z (photostationary) -> 5, each
+    // point marked; a sweep where some points reach it -> 0, the others named.
+    let none = run(
+        &dir,
+        &[
+            "plan",
+            "networks/photoswitch.toml",
+            "--target",
+            "Z-azo > 90 %",
+            "--sweep",
+            "power=1mW..100mW:3",
+        ],
+    );
+    assert_eq!(code(&none), 5, "{}", stderr(&none));
+    assert_eq!(
+        out(&none).matches("unreachable (photostationary)").count(),
+        3,
+        "{}",
+        out(&none)
+    );
+    assert!(out(&none).contains("NOT REACHABLE at any point"), "{}", out(&none));
+    let some = run(
+        &dir,
+        &[
+            "plan",
+            "networks/photoswitch.toml",
+            "--target",
+            "Z-azo > 30 %",
+            "--sweep",
+            "power=1uW..100mW:3",
+        ],
+    );
+    assert_eq!(code(&some), 0, "{}", stderr(&some));
+    assert!(out(&some).contains("not reached at 1 of 3 points"), "{}", out(&some));
+    // simulate --stop-when: a condition not met within --until -> 5 (the run is still written).
+    let missed = run(
+        &dir,
+        &[
+            "simulate",
+            "networks/photoswitch.toml",
+            "--until",
+            "10 min",
+            "--stop-when",
+            "Z-azo > 45 µM",
+        ],
+    );
+    assert_eq!(code(&missed), 5, "{}", stderr(&missed));
+    assert!(out(&missed).contains("NOT REACHED"), "{}", out(&missed));
+    assert!(dir.join("photoswitch/summary.json").exists());
+    let met = run(
+        &dir,
+        &[
+            "simulate",
+            "networks/photoswitch.toml",
+            "--until",
+            "10 min",
+            "--stop-when",
+            "Z-azo > 10 µM",
+        ],
+    );
+    assert_eq!(code(&met), 0, "{}", stderr(&met));
+    // report --target: the page is written and the code says the target is not reachable.
+    let rep = run(
+        &dir,
+        &[
+            "report",
+            "networks/photoswitch.toml",
+            "--target",
+            "Z-azo > 90 %",
+            "-o",
+            "r.html",
+        ],
+    );
+    assert_eq!(code(&rep), 5, "{}", stderr(&rep));
+    assert!(dir.join("r.html").exists());
+    assert!(out(&rep).contains("NOT REACHABLE"), "{}", out(&rep));
+    // uncertainty --target: no sample reaches 90 % product within an hour -> 5.
+    let unc = run(
+        &dir,
+        &[
+            "uncertainty",
+            "networks/prebiotic-pool.toml",
+            "--samples",
+            "3",
+            "--no-chain",
+            "--target",
+            "product > 90 %",
+            "--until",
+            "1 h",
+        ],
+    );
+    assert_eq!(code(&unc), 5, "{}", stderr(&unc));
+    for o in [&none, &missed, &rep, &unc] {
+        assert!(!stderr(o).contains("error:"), "an answer, not an error: {}", stderr(o));
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -136,7 +136,7 @@ fn simulate_and_plan_csvs() {
         "plan",
         net,
         "--target",
-        "Z-azo > 50 %",
+        "Z-azo > 30 %",
         "--sweep",
         "power=10mW..1W:3",
         "--out",

@@ -315,8 +315,19 @@ fn the_plan_section_agrees_with_plan() {
     let v: f64 = v.parse().expect("a number");
     // Three significant figures on the page.
     assert!((v * scale / t - 1.0).abs() < 5e-3, "{shown} vs {t} s");
-    // The photoswitch's photostationary state never reaches 60 % Z: said so, with the reason.
-    let page = render("networks/photoswitch.toml", &["--target", "Z-azo > 60 %"], &scratch);
+    // The photoswitch's photostationary state never reaches 60 % Z: said so, with the reason,
+    // the page written and the answer's code 5 ("not reachable", README's exit codes).
+    let out = scratch.0.join("unreachable.html");
+    let o = run(&[
+        "report",
+        "networks/photoswitch.toml",
+        "--target",
+        "Z-azo > 60 %",
+        "-o",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(5), "{}", String::from_utf8_lossy(&o.stderr));
+    let page = std::fs::read_to_string(&out).expect("the page is written");
     assert!(
         page.contains("Not reached: a photostationary state"),
         "unreachable target"

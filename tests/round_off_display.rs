@@ -1,6 +1,7 @@
 //! Round-off is never shown as a result: concentrations within the integrator's absolute
 //! tolerance of zero print as 0 in `simulate`'s summary, while summary.json keeps the raw
-//! numbers and names the tolerance.
+//! numbers and names the tolerance; the same in `plan`, in the plots, and in `ledger`'s
+//! sensitivities (round-off reads 0).
 
 use std::process::Command;
 
@@ -44,5 +45,120 @@ fn simulate_prints_round_off_as_zero_and_json_keeps_it() {
     // the raw value is kept: E-azo's computed final concentration, round-off and all
     let raw = json["final_concentrations_mol_per_l"][0][1].as_f64().unwrap();
     assert!(raw.abs() <= 1e-12, "{raw}");
+    let _ = std::fs::remove_dir_all(&out);
+}
+
+fn photoledger(args: &[&str], out: &std::path::Path) -> (String, std::process::Output) {
+    let run = Command::new(env!("CARGO_BIN_EXE_photoledger"))
+        .args(args)
+        .arg("--out")
+        .arg(out)
+        .output()
+        .expect("runs");
+    (String::from_utf8_lossy(&run.stdout).into_owned(), run)
+}
+
+#[test]
+fn plan_prints_round_off_as_zero_and_json_keeps_it_with_the_tolerance() {
+    // Z-azo of the side-product switch peaks at ~22 µM and then drains to the side product: at
+    // the end of the run it is round-off of the plan's atol (1e-15 mol/L), which printed as
+    // "2.31e-6 pM".
+    let out = std::env::temp_dir().join(format!("photoledger-roundoff-plan-{}", std::process::id()));
+    let (text, run) = photoledger(
+        &[
+            "plan",
+            "networks/photoswitch-side-product.toml",
+            "--target",
+            "Z-azo > 100 µM",
+        ],
+        &out,
+    );
+    assert_eq!(run.status.code(), Some(5), "{text}");
+    let line = text.lines().find(|l| l.contains("reaches at best")).expect(&text);
+    assert!(line.contains("; 0 M after"), "{line}");
+    let json: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
+    let atol = json["atol"].as_f64().expect("the tolerance is named");
+    assert_eq!(json["units"]["atol"], "mol/L");
+    let raw = json["unreachable"]["final_level"].as_f64().unwrap();
+    assert!(raw != 0.0 && raw.abs() <= atol, "raw {raw}, atol {atol}");
+    let _ = std::fs::remove_dir_all(&out);
+}
+
+/// Two photoproducts from one absorber (invented): yield of B = Φ_B / (Φ_B + Φ_C) = 0.75, so
+/// d yield_B / dΦ_B = Φ_C / (Φ_B + Φ_C)² = 0.625 and d yield_B / dΦ_C = −1.875 (exact
+/// branching of an absorbing chain, `common practice`).
+const BRANCH: &str = r#"
+[about]
+name = "two photoproducts"
+invented = true
+[conditions]
+temperature = "298.15 K"
+volume = "3 mL"
+path_length = "1 cm"
+[[light]]
+name = "LED"
+kind = "line"
+wavelength = "365 nm"
+power = "10 mW"
+[[species]]
+name = "A"
+initial = "50 µM"
+epsilon = { at = "365 nm", value = "5000 L/(mol cm)" }
+[[species]]
+name = "B"
+product = true
+[[species]]
+name = "C"
+product = true
+[[photo]]
+equation = "A -> B"
+quantum_yield = 0.3
+[[photo]]
+equation = "A -> C"
+quantum_yield = 0.1
+"#;
+
+/// The "d yield / d p" column of `ledger`'s sensitivities, in order.
+fn yield_derivatives(text: &str) -> Vec<String> {
+    text.lines()
+        .skip_while(|l| !l.contains("top sensitivities"))
+        .skip(1)
+        .take_while(|l| l.starts_with("    "))
+        .map(|l| l.split_whitespace().nth(1).unwrap().to_string())
+        .collect()
+}
+
+#[test]
+fn ledger_prints_round_off_derivatives_as_zero_and_keeps_real_sensitivities() {
+    // The side-product switch has one end: its yield is 1 whatever any parameter is, so every
+    // d yield / d p is round-off (finite differences printed -1.448e-6 and 5.787e-9; exact
+    // derivatives leave at most machine-precision residue).
+    let out = std::env::temp_dir().join(format!("photoledger-roundoff-ledger-{}", std::process::id()));
+    let (text, run) = photoledger(&["ledger", "networks/photoswitch-side-product.toml"], &out);
+    assert!(run.status.success(), "{text}");
+    let d = yield_derivatives(&text);
+    assert!(!d.is_empty(), "{text}");
+    assert!(d.iter().all(|x| x == "0"), "{d:?}\n{text}");
+    // summary.json keeps the raw derivatives.
+    let json: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
+    let raw: Vec<f64> = json["sensitivities"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|s| s["yield_derivative"][0].as_f64().unwrap())
+        .collect();
+    assert!(!raw.is_empty() && raw.iter().all(|x| x.abs() < 1e-9), "{raw:?}");
+    // A real dependence is shown.
+    std::fs::create_dir_all(&out).unwrap();
+    let file = out.join("branch.toml");
+    std::fs::write(&file, BRANCH).unwrap();
+    let out2 = out.join("branch");
+    let (text, run) = photoledger(&["ledger", file.to_str().unwrap()], &out2);
+    assert!(run.status.success(), "{text}");
+    let d: Vec<f64> = yield_derivatives(&text).iter().map(|x| x.parse().unwrap()).collect();
+    assert_eq!(d.len(), 2, "{text}");
+    assert!((d[0] - 0.625).abs() < 1e-3 && (d[1] + 1.875).abs() < 1e-3, "{d:?}");
     let _ = std::fs::remove_dir_all(&out);
 }

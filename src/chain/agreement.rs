@@ -13,6 +13,16 @@
 //! kinetics' state at t (the inner filter of species absent at the start, or the optically
 //! thin limit), the bimolecular steps linearised at concentrations the kinetics leave behind,
 //! and ends the kinetics consume further.
+//!
+//! The yields are compared too: the chain's yield of each end (per molecule followed from the
+//! start mixture) against what the kinetics have made of it per molecule of that mixture once
+//! they have converted (the automatic horizon, [`crate::plan::horizon::automatic`]: 99 %
+//! conversion of the limiting reagent, or a steady state). For first-order steps under a light
+//! share that does not change the branching, the chain's absorption probabilities are the
+//! kinetics' long-time yields exactly (`common practice`); second-order steps (linearised in
+//! the chain, or joining two followed molecules), an inner filter that shifts light against
+//! heat, ends consumed further and stoichiometry other than 1:1 make them differ legitimately,
+//! and the reasons say which applies.
 
 use super::build::{Light, absorption_rates};
 use super::{ChainRun, StateKind};
@@ -26,6 +36,94 @@ use serde::Serialize;
 
 /// Ratio beyond which the chain and the kinetics are said to disagree.
 pub const FACTOR: f64 = 2.0;
+
+/// Yields agree when within this factor of each other (or within [`YIELD_CLOSE`]): they are
+/// exact for first-order networks, so the margin only covers the 1 % left unconverted at the
+/// horizon and the tolerances; beyond it the kinetics change the outcome, not just its time.
+pub const YIELD_FACTOR: f64 = 1.2;
+
+/// Yields this close (in molecules per molecule followed) agree whatever their ratio: one
+/// percent of the start, below what NMR or HPLC tell apart in a crude mixture
+/// (`common practice`, as [`crate::plan::horizon::DEFAULT_CONVERSION`]).
+pub const YIELD_CLOSE: f64 = 0.01;
+
+/// One end's yield in the chain and in the kinetics.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct YieldCheck {
+    /// The end (a species).
+    pub end: String,
+    /// The chain's yield: probability that a molecule followed ends here.
+    pub chain: f64,
+    /// The kinetics' yield: its amount formed at the horizon per molecule of the start mixture
+    /// consumed by then (formed within the integrator's tolerance of zero counted as 0).
+    pub kinetics: f64,
+    /// Kinetics over chain (None when the chain's yield is 0).
+    pub ratio: Option<f64>,
+    /// True when they agree ([`YIELD_FACTOR`], [`YIELD_CLOSE`]).
+    pub agree: bool,
+}
+
+/// The yields of the chain's ends against the kinetics.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Yields {
+    /// The species the chain follows from (the start mixture), whose total is "per molecule".
+    pub start: Vec<String>,
+    /// Time the kinetics were read at, s.
+    pub at_s: f64,
+    /// Share of the start mixture the kinetics have consumed by then.
+    pub converted: f64,
+    /// Why the kinetics were read there (the automatic horizon in words).
+    pub horizon: String,
+    /// Every end with a yield in the chain.
+    pub ends: Vec<YieldCheck>,
+    /// True when every end agrees.
+    pub agree: bool,
+    /// Why they differ (empty when they agree).
+    pub reasons: Vec<String>,
+    /// The comparison in words.
+    pub method: String,
+}
+
+impl Yields {
+    /// One line: where the kinetics were read and the verdict; then one line per end
+    /// ([`Yields::end_lines`]).
+    pub fn headline(&self) -> String {
+        format!(
+            "yield check: per molecule of {} that reacts, the kinetics read at {} ({} % of it consumed; {}); {}",
+            self.start.join(" + "),
+            format_time(self.at_s),
+            sig(100.0 * self.converted, 3),
+            self.horizon,
+            if self.agree {
+                "they agree".to_string()
+            } else {
+                "they DISAGREE: the chain's yields are not what this mixture makes".to_string()
+            }
+        )
+    }
+
+    /// Each end: "product: chain 1, kinetics 0.47; DISAGREE by a factor of 2.13".
+    pub fn end_lines(&self) -> Vec<String> {
+        self.ends
+            .iter()
+            .map(|e| {
+                let verdict = match (e.agree, e.ratio) {
+                    (true, _) => "agree".to_string(),
+                    (false, Some(r)) if r > 0.0 => {
+                        format!("DISAGREE by a factor of {}", sig(if r >= 1.0 { r } else { 1.0 / r }, 3))
+                    }
+                    _ => "DISAGREE: the kinetics make none".to_string(),
+                };
+                format!(
+                    "{}: chain {}, kinetics {}; {verdict}",
+                    e.end,
+                    sig(e.chain, 4),
+                    sig(e.kinetics, 4)
+                )
+            })
+            .collect()
+    }
+}
 
 /// What the kinetics make of the chain's mean time.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -50,6 +148,10 @@ pub struct Agreement {
     pub method: String,
     /// Why they differ (empty when they agree).
     pub reasons: Vec<String>,
+    /// The chain's yields against the kinetics' (None: not compared, see `yields_skipped`).
+    pub yields: Option<Yields>,
+    /// Why the yields were not compared, when they were not.
+    pub yields_skipped: Option<String>,
 }
 
 impl Agreement {
@@ -147,7 +249,13 @@ pub fn check(
             end,
         )?
     };
+    let (yields, yields_skipped) = match compare_yields(model, net, run)? {
+        Ok(y) => (Some(y), None),
+        Err(why) => (None, Some(why)),
+    };
     Ok(Ok(Agreement {
+        yields,
+        yields_skipped,
         chain_time_s: tau,
         end: end_name.clone(),
         reference: ref_name.clone(),
@@ -251,14 +359,7 @@ fn reasons(model: &Model, net: &Network, run: &ChainRun, y: &[f64], t: f64, end:
         }
     }
     // The end is consumed further in the kinetics.
-    let consumers: Vec<&str> = model
-        .reactions
-        .iter()
-        .map(|r| (&r.net, r.name.as_str()))
-        .chain(model.outcomes.iter().map(|o| (&o.net, o.label.as_str())))
-        .filter(|(n, _)| n.iter().any(|&(s, v)| s == end && v < 0.0))
-        .map(|(_, name)| name)
-        .collect();
+    let consumers = consumed_by(model, end);
     if !consumers.is_empty() {
         out.push(format!(
             "{} is an end for the chain, but the kinetics consume it further ({})",
@@ -268,6 +369,248 @@ fn reasons(model: &Model, net: &Network, run: &ChainRun, y: &[f64], t: f64, end:
     }
     if out.is_empty() {
         out.push("the path has several slow steps in a row, so the time to an end is far from one exponential".into());
+    }
+    Ok(out)
+}
+
+/// The steps (thermal, and photochemical outcomes) that consume species `i`.
+fn consumed_by(model: &Model, i: usize) -> Vec<&str> {
+    model
+        .reactions
+        .iter()
+        .map(|r| (&r.net, r.name.as_str()))
+        .chain(model.outcomes.iter().map(|o| (&o.net, o.label.as_str())))
+        .filter(|(n, _)| n.iter().any(|&(s, v)| s == i && v < 0.0))
+        .map(|(_, name)| name)
+        .collect()
+}
+
+/// The chain's yield of each end against the kinetics' amount of it per molecule of the start
+/// mixture at the automatic horizon, or why they cannot be compared.
+fn compare_yields(model: &Model, net: &Network, run: &ChainRun) -> Result<std::result::Result<Yields, String>> {
+    let ns = model.n_species();
+    let a = &run.analysis;
+    let species_of = |state: usize| match run.chain.states.get(state).map(|s| &s.kind) {
+        Some(StateKind::Species(i)) => Some(*i),
+        _ => None,
+    };
+    // The start mixture: the species the chain follows, weighted by their initial amounts.
+    let start: Vec<usize> = (0..run.start.len())
+        .filter(|&s| run.start[s] > 0.0)
+        .filter_map(species_of)
+        .filter(|&i| model.initial[i] > 0.0)
+        .collect();
+    let total: f64 = start.iter().map(|&i| model.initial[i]).sum();
+    if total.is_nan() || total <= 0.0 {
+        return Ok(Err("the chain starts from no species of the initial mixture".into()));
+    }
+    let h = crate::plan::horizon::automatic(model, None)?;
+    let Some(plan) = &h.plan else {
+        return Ok(Err(format!(
+            "the kinetics have no horizon to convert by: {}",
+            h.reason()
+        )));
+    };
+    let y = plan.state();
+    let zero = plan.trajectory.zero_within();
+    // The chain follows every molecule to an end; the kinetics' mixture at the horizon still
+    // holds what has not reacted, so their yields are per molecule consumed.
+    let consumed: f64 = start.iter().map(|&i| model.initial[i] - zero.shown(y[i])).sum();
+    if consumed.is_nan() || consumed <= 0.0 {
+        return Ok(Err(format!(
+            "the kinetics consume none of the start mixture by {}",
+            format_time(*plan.trajectory.times.last().unwrap_or(&h.time))
+        )));
+    }
+    let chain_zero = crate::units::display::ZeroWithin::relative(
+        crate::units::display::largest(a.yields.iter().copied()),
+        crate::units::display::CHAIN_ROUNDOFF,
+    );
+    let mut ends = Vec::new();
+    let mut differing = Vec::new();
+    for (k, &state) in a.absorbing.iter().enumerate() {
+        let chain = chain_zero.shown(a.yields[k]);
+        let Some(i) = species_of(state) else { continue };
+        if chain <= 0.0 || i >= ns {
+            continue;
+        }
+        let kinetics = zero.shown(y[i] - model.initial[i]).max(0.0) / consumed;
+        let ratio = Some(kinetics / chain);
+        let agree = (kinetics - chain).abs() <= YIELD_CLOSE
+            || ratio.is_some_and(|r| (1.0 / YIELD_FACTOR..=YIELD_FACTOR).contains(&r));
+        if !agree {
+            differing.push(i);
+        }
+        ends.push(YieldCheck {
+            end: model.species[i].clone(),
+            chain,
+            kinetics,
+            ratio,
+            agree,
+        });
+    }
+    if ends.is_empty() {
+        return Ok(Err("no end of the chain is a species the kinetics follow".into()));
+    }
+    let at = *plan.trajectory.times.last().unwrap_or(&h.time);
+    let agree = differing.is_empty();
+    let reasons = if agree {
+        Vec::new()
+    } else {
+        yield_reasons(model, net, run, &h, y, at, &start, &differing)?
+    };
+    let names: Vec<String> = start.iter().map(|&i| model.species[i].clone()).collect();
+    Ok(Ok(Yields {
+        method: format!(
+            "the chain's yield of each end is the probability that a molecule followed from the start mixture ({}) \
+             ends there; the kinetics' is the amount of it formed by the horizon per molecule of that mixture \
+             consumed by then (amounts within the integrator's absolute tolerance of zero counted as 0); exact for first-order steps, \
+             so they agree within a factor {YIELD_FACTOR} or {} of a molecule",
+            names.join(" + "),
+            sig(YIELD_CLOSE, 2)
+        ),
+        start: names,
+        at_s: at,
+        converted: consumed / total,
+        horizon: h.reason(),
+        ends,
+        agree,
+        reasons,
+    }))
+}
+
+/// Why the chain's yields and the kinetics' differ for the `differing` ends, from the model and
+/// the kinetics' state `y` at the horizon `t`.
+#[allow(clippy::too_many_arguments)]
+fn yield_reasons(
+    model: &Model,
+    net: &Network,
+    run: &ChainRun,
+    h: &crate::plan::horizon::Horizon,
+    y: &[f64],
+    t: f64,
+    start: &[usize],
+    differing: &[usize],
+) -> Result<Vec<String>> {
+    let ns = model.n_species();
+    let at = format_time(t);
+    let c0 = run
+        .settings
+        .concentrations
+        .clone()
+        .unwrap_or_else(|| model.initial.clone());
+    let visited = |s: usize| run.analysis.visits.get(s).is_some_and(|v| *v > 0.0) || start.contains(&s);
+    let mut out = Vec::new();
+    if !matches!(h.ended, crate::plan::horizon::Ended::Reached(_)) {
+        out.push(format!("the kinetics have not converted: {}", h.reason()));
+    }
+    // Second-order steps among the species the molecule passes through.
+    for re in &model.reactions {
+        let order: u32 = re.reactants.iter().map(|x| x.1).sum();
+        if order < 2 || !re.reactants.iter().any(|&(i, _)| visited(i)) {
+            continue;
+        }
+        let followed: Vec<&str> = re
+            .reactants
+            .iter()
+            .filter(|&&(i, _)| start.contains(&i))
+            .map(|&(i, _)| model.species[i].as_str())
+            .collect();
+        if followed.len() >= 2 || re.reactants.iter().any(|&(i, n)| n >= 2 && start.contains(&i)) {
+            out.push(format!(
+                "\"{}\" is second order and joins molecules the chain follows one at a time ({}): the chain counts \
+                 each as ending on its own, the kinetics make one product of the pair",
+                re.name,
+                followed.join(", ")
+            ));
+        } else {
+            let partners: Vec<String> = re
+                .reactants
+                .iter()
+                .filter(|&&(i, _)| c0[i] > 0.0 && !start.contains(&i))
+                .map(|&(i, _)| {
+                    format!(
+                        "[{}] {} in the chain, {} in the kinetics at {at}",
+                        model.species[i],
+                        format_concentration(c0[i]),
+                        format_concentration(y[i].max(0.0))
+                    )
+                })
+                .collect();
+            out.push(format!(
+                "\"{}\" is second order: the chain takes it at fixed partner concentrations{}, so its share against \
+                 the other ways out is fixed there, while in the kinetics it changes as the partners are used up or \
+                 built up",
+                re.name,
+                if partners.is_empty() {
+                    String::new()
+                } else {
+                    format!(" ({})", partners.join("; "))
+                }
+            ));
+        }
+    }
+    // Light against heat: an absorber that also has a thermal way out branches by the light it
+    // gets, which the inner filter changes as the kinetics go on.
+    let chain_k = absorption_rates(model, net, run.settings.light, &c0)?;
+    let ode_k = absorption_rates(model, net, Light::Stirred, &y[..ns])?;
+    for (slot, &s) in model.absorbers.iter().enumerate() {
+        if !visited(s) {
+            continue;
+        }
+        let thermal: Vec<&str> = model
+            .reactions
+            .iter()
+            .filter(|r| r.reactants.iter().any(|&(i, _)| i == s))
+            .map(|r| r.name.as_str())
+            .collect();
+        let (kc, ko): (f64, f64) = (chain_k[slot].iter().sum(), ode_k[slot].iter().sum());
+        if thermal.is_empty() || kc <= 0.0 || (kc / ko.max(1e-300) < 1.5 && ko / kc < 1.5) {
+            continue;
+        }
+        out.push(format!(
+            "light against heat: {} leaves by light and by {}; a molecule of it absorbs {} photons/s in the chain but \
+             {} photons/s in the kinetics at {at} (inner filter and depletion), so its share that reacts by light \
+             differs",
+            model.species[s],
+            thermal.join(", "),
+            sig(kc, 3),
+            sig(ko, 3)
+        ));
+    }
+    // Ends the kinetics consume further, and stoichiometry other than one per molecule.
+    for &i in differing {
+        let consumers = consumed_by(model, i);
+        if !consumers.is_empty() {
+            out.push(format!(
+                "{} is an end for the chain, but the kinetics consume it further ({})",
+                model.species[i],
+                consumers.join(", ")
+            ));
+        }
+        let multiple: Vec<&str> = model
+            .reactions
+            .iter()
+            .map(|r| (&r.net, r.name.as_str()))
+            .chain(model.outcomes.iter().map(|o| (&o.net, o.label.as_str())))
+            .filter(|(n, _)| n.iter().any(|&(s, v)| s == i && v > 1.0 + 1e-9))
+            .map(|(_, name)| name)
+            .collect();
+        if !multiple.is_empty() {
+            out.push(format!(
+                "{} forms more than one per molecule in {}: the chain counts molecules followed, the kinetics \
+                 molecules formed",
+                model.species[i],
+                multiple.join(", ")
+            ));
+        }
+    }
+    if out.is_empty() {
+        out.push(
+            "none of the known causes (second-order steps, light against heat, ends consumed further, \
+             stoichiometry) applies: treat the chain's yields with care"
+                .into(),
+        );
     }
     Ok(out)
 }

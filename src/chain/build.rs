@@ -84,8 +84,9 @@ pub struct Parameter {
     /// ∂/∂(barrier) = −(k/RT) ∂/∂k.
     pub barrier: bool,
     /// The largest value it may take (quantum yields of one absorber sum to at most 1 in every
-    /// light bin; fractions are at most 1; rates are unbounded). At the bound a difference
-    /// quotient must look down only.
+    /// light bin; fractions are at most 1; rates are unbounded). At the bound the exact
+    /// sensitivities take the derivative from below, and the finite-difference reference looks
+    /// down only.
     pub upper: f64,
 }
 
@@ -282,8 +283,75 @@ fn fmt_conc(c: f64) -> String {
     crate::units::format_concentration(c)
 }
 
+/// What a species' way out depends on: the photochemical step it is (its rate ∝ the step's
+/// yield factor), the photons absorbed with no reaction (what the steps leave of the absorber's
+/// absorption), or a thermal step (its rate ∝ the step's rate constant).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(super) enum Source {
+    /// Photochemical step p.
+    Photo(usize),
+    /// Light absorbed with no reaction.
+    NoReaction,
+    /// Model reaction r.
+    Reaction(usize),
+}
+
+/// One way out of a species, per molecule.
+#[derive(Debug, Clone)]
+pub(super) struct Exit {
+    /// The species it leads to (None: removed).
+    pub to: Option<usize>,
+    /// Rate, s⁻¹.
+    pub rate: f64,
+    /// True for a photon absorption.
+    pub photon: bool,
+    /// Label when its repetitions are counted.
+    pub counted: Option<String>,
+    /// What its rate depends on.
+    pub source: Source,
+}
+
+/// What the chain was built from, beyond the chain itself: every species' ways out (before
+/// normalisation) and the concentrations used; the exact derivatives of the moves start here.
+#[derive(Debug, Clone)]
+pub(super) struct Parts {
+    /// Per species, its ways out.
+    pub exits: Vec<Vec<Exit>>,
+    /// Concentrations for light, linearisation and quenching, mol/L.
+    pub c: Vec<f64>,
+}
+
+/// What a transient's channel with branching `b` and value `value` (fraction, rate or k₂)
+/// brings to the channel shares, at concentrations `c`.
+pub(super) fn channel_input(b: &Branching, value: f64, c: &[f64]) -> ShareInput {
+    match *b {
+        Branching::Fraction(_) | Branching::Hot { .. } => ShareInput::Fixed(value),
+        Branching::Rest => ShareInput::Rest,
+        Branching::Rate { .. } => ShareInput::Rate(value),
+        Branching::Quenching { partner, .. } => ShareInput::Rate(value.max(0.0) * c[partner].max(0.0)),
+    }
+}
+
+/// The state a channel leads to (transients follow the `ns` species); None for the removed state.
+pub(super) fn channel_target(ns: usize, t: &Target) -> Option<usize> {
+    match t {
+        Target::Transient(k) => Some(ns + k),
+        Target::Species(terms) => terms.first().map(|x| x.species),
+    }
+}
+
 /// Build the chain of `model` (with the transients of `net`) at `settings`, with `values`.
 pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values) -> Result<Chain> {
+    Ok(build_parts(model, net, settings, values)?.0)
+}
+
+/// [`build`], also returning what the chain was built from.
+pub(super) fn build_parts(
+    model: &Model,
+    net: &Network,
+    settings: &Settings,
+    values: &Values,
+) -> Result<(Chain, Parts)> {
     let ns = model.n_species();
     let nt = net.transients.len();
     let c: Vec<f64> = match &settings.concentrations {
@@ -299,13 +367,7 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
     let mut chain = Chain::default();
     let kabs = absorption_rates(model, net, settings.light, &c)?;
     let nb = model.bins.len();
-    // Exit rates per species: (to, rate, photon-step label) accumulated first.
-    struct Exit {
-        to: Option<usize>, // None: removed
-        rate: f64,
-        photon: bool,
-        counted: Option<String>,
-    }
+    // Exit rates per species accumulated first.
     let mut exits: Vec<Vec<Exit>> = (0..ns).map(|_| Vec::new()).collect();
     for (slot, &a) in model.absorbers.iter().enumerate() {
         let ka: f64 = kabs[slot].iter().sum();
@@ -348,6 +410,7 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
                 rate,
                 photon: true,
                 counted,
+                source: Source::Photo(p),
             });
         }
         let rest = ka - used;
@@ -360,6 +423,7 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
                     "photon absorbed by {}, no reaction (1 − quantum yields)",
                     model.species[a]
                 )),
+                source: Source::NoReaction,
             });
         }
     }
@@ -407,6 +471,7 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
                 rate,
                 photon: false,
                 counted: None,
+                source: Source::Reaction(r),
             });
         }
     }
@@ -439,7 +504,7 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
     let mut removed_state = |chain: &mut Chain| -> usize {
         *removed.get_or_insert_with(|| chain.add_state("(nothing followed)", StateKind::Removed, true, 0.0))
     };
-    for (i, ex) in exits.into_iter().enumerate() {
+    for (i, ex) in exits.iter().enumerate() {
         if chain.states[i].absorbing {
             continue;
         }
@@ -450,8 +515,11 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
                 None => removed_state(&mut chain),
             };
             let mv = chain.add_move(i, to, e.rate / total, e.photon);
-            if let Some(label) = e.counted {
-                chain.counted.push(Counted { label, mv });
+            if let Some(label) = &e.counted {
+                chain.counted.push(Counted {
+                    label: label.clone(),
+                    mv,
+                });
             }
         }
     }
@@ -460,24 +528,16 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
         // The model's rule, on the (possibly perturbed) values: fixed fractions normalised when
         // there is no "rest" (only matters when a sensitivity moves one of them), squeezed when
         // they exceed one; rates normalised by the total.
-        let input = |ci: usize, b: &Branching| match *b {
-            Branching::Fraction(_) | Branching::Hot { .. } => ShareInput::Fixed(vals[ci]),
-            Branching::Rest => ShareInput::Rest,
-            Branching::Rate { .. } => ShareInput::Rate(vals[ci]),
-            Branching::Quenching { partner, .. } => ShareInput::Rate(vals[ci].max(0.0) * c[partner].max(0.0)),
-        };
+        let input = |ci: usize, b: &Branching| channel_input(b, vals[ci], &c);
         let totals = ShareTotals::of(tr.channels.iter().enumerate().map(|(ci, ch)| input(ci, &ch.branching)));
         for (ci, ch) in tr.channels.iter().enumerate() {
             let p = totals.share(input(ci, &ch.branching));
             if p <= 0.0 {
                 continue;
             }
-            let to = match &ch.target {
-                Target::Transient(k) => ns + k,
-                Target::Species(terms) => match terms.first() {
-                    Some(x) => x.species,
-                    None => removed_state(&mut chain),
-                },
+            let to = match channel_target(ns, &ch.target) {
+                Some(s) => s,
+                None => removed_state(&mut chain),
             };
             let mv = chain.add_move(ns + t, to, p, false);
             if ch.returns {
@@ -525,7 +585,7 @@ pub fn build(model: &Model, net: &Network, settings: &Settings, values: &Values)
                         irradiated area"
             .into(),
     });
-    Ok(chain)
+    Ok((chain, Parts { exits, c }))
 }
 
 /// The start distribution: species `from`, or the initial mixture (species that can change,

@@ -248,8 +248,39 @@ impl Chain {
     }
 }
 
-/// Analyse `chain` for a molecule started from the distribution `start` over its states.
-pub fn analyse(chain: &Chain, start: &[f64], opts: &Options) -> Result<Analysis> {
+/// The chain split into its transient and absorbing parts, with one LU of I − Q and the
+/// visits and first photon moment's vector, shared by [`analyse`] and the sensitivities.
+struct Solved {
+    /// The start distribution, normalised.
+    pi: Vec<f64>,
+    /// The transient states (chain indices), in order.
+    trans: Vec<usize>,
+    /// The absorbing states (chain indices), in order.
+    absorbing: Vec<usize>,
+    /// Per chain state, its index among the transient or among the absorbing states.
+    local: Vec<usize>,
+    /// Non-photon moves among transient states, Q₀.
+    q0: Triplets,
+    /// Photon moves among transient states, Q₁.
+    q1: Triplets,
+    /// Non-photon moves into absorbing states, R₀.
+    r0: Triplets,
+    /// Photon moves into absorbing states, R₁.
+    r1: Triplets,
+    /// The start over the transient states.
+    pi_t: Vec<f64>,
+    /// The start over the absorbing states.
+    pi_a: Vec<f64>,
+    /// LU of I − Q.
+    lu: Lu,
+    /// Expected visits v = (I − Q)⁻ᵀ π over the transient states.
+    v: Vec<f64>,
+    /// u = (I − Q)⁻ᵀ Q₁ᵀ v, expected visits after a photon weighted by photons before.
+    u: Vec<f64>,
+}
+
+/// Validate `chain`, index its states, factorise I − Q once and solve for v and u.
+fn solve(chain: &Chain, start: &[f64]) -> Result<Solved> {
     chain.validate()?;
     let n = chain.states.len();
     if start.len() != n {
@@ -308,10 +339,45 @@ pub fn analyse(chain: &Chain, start: &[f64], opts: &Options) -> Result<Analysis>
     }
     let lu = Lu::new(&a)?;
     let v = lu.solve_transpose(&pi_t)?; // visits
+    let u = lu.solve_transpose(&q1.tmul(&v))?;
+    Ok(Solved {
+        pi,
+        trans,
+        absorbing,
+        local,
+        q0,
+        q1,
+        r0,
+        r1,
+        pi_t,
+        pi_a,
+        lu,
+        v,
+        u,
+    })
+}
+
+/// Analyse `chain` for a molecule started from the distribution `start` over its states.
+pub fn analyse(chain: &Chain, start: &[f64], opts: &Options) -> Result<Analysis> {
+    let Solved {
+        pi,
+        trans,
+        absorbing,
+        q0,
+        q1,
+        r0,
+        r1,
+        pi_t,
+        pi_a,
+        lu,
+        v,
+        u,
+        ..
+    } = solve(chain, start)?;
+    let (n, m, r) = (chain.states.len(), trans.len(), absorbing.len());
     let mut yields = r0.tmul(&v);
     add(&mut yields, &r1.tmul(&v));
     add(&mut yields, &pi_a);
-    let u = lu.solve_transpose(&q1.tmul(&v))?;
     let z = lu.solve_transpose(&q1.tmul(&u))?;
     // m1_j = (Rᵀu)_j + (R₁ᵀv)_j ; m2_j (factorial) = 2 [(Rᵀz)_j + (R₁ᵀu)_j].
     let mut m1 = r0.tmul(&u);

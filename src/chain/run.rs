@@ -22,7 +22,7 @@ pub struct ChainOptions {
     pub from: Option<String>,
     /// What the analysis computes (the photon-count distribution or not).
     pub analysis: Options,
-    /// Compute the sensitivities of the yields (finite differences: one chain per parameter).
+    /// Compute the sensitivities of the yields and photon costs (exact, one factorisation).
     pub sensitivities: bool,
 }
 

@@ -31,6 +31,15 @@ impl Triplets {
         self.entries.iter().copied()
     }
 
+    /// Mx.
+    pub(super) fn mul(&self, x: &[f64]) -> Vec<f64> {
+        let mut y = vec![0.0; self.rows];
+        for &(i, j, v) in &self.entries {
+            y[i] += v * x[j];
+        }
+        y
+    }
+
     /// Mᵀx.
     pub(super) fn tmul(&self, x: &[f64]) -> Vec<f64> {
         let mut y = vec![0.0; self.cols];
@@ -62,13 +71,26 @@ impl Lu {
         Ok(Lu { n, lu: Some(lu) })
     }
 
+    /// x with Ax = b.
+    pub(super) fn solve(&self, b: &[f64]) -> Result<Vec<f64>> {
+        self.solve_with(b, false)
+    }
+
     /// x with Aᵀx = b.
     pub(super) fn solve_transpose(&self, b: &[f64]) -> Result<Vec<f64>> {
+        self.solve_with(b, true)
+    }
+
+    fn solve_with(&self, b: &[f64], transpose: bool) -> Result<Vec<f64>> {
         let Some(lu) = &self.lu else {
             return Ok(Vec::new());
         };
         let mut rhs = Mat::<f64>::from_fn(self.n, 1, |i, _| b[i]);
-        lu.solve_transpose_in_place(rhs.as_mut());
+        if transpose {
+            lu.solve_transpose_in_place(rhs.as_mut());
+        } else {
+            lu.solve_in_place(rhs.as_mut());
+        }
         let x: Vec<f64> = (0..self.n).map(|i| rhs[(i, 0)]).collect();
         if x.iter().any(|v| !v.is_finite()) {
             return Err(Error::Numerical(

@@ -32,6 +32,10 @@ pub struct BenchArgs {
     /// Instead, time the absorbing-chain analysis of a generated sparse chain of this many states.
     #[arg(long, value_name = "STATES")]
     pub chain_states: Option<usize>,
+    /// Instead, write the generated network (with --species, --steps, --absorbers) to this
+    /// network file, to run other commands on it (e.g. `ledger`).
+    #[arg(long, value_name = "FILE")]
+    pub write: Option<PathBuf>,
 }
 
 /// Time `ledger`'s analysis on a generated chain: without, then with, the photon-count distribution.
@@ -108,6 +112,25 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
     if let Some(n) = a.chain_states {
         return chain_bench(n);
     }
+    let size = Size {
+        species: a.species.max(2),
+        steps: a.steps,
+        absorbers: a.absorbers.min(a.species),
+    };
+    let text = large_network(size, 2026);
+    if let Some(path) = &a.write {
+        std::fs::write(path, &text).map_err(|source| photoledger::Error::Io {
+            path: path.clone(),
+            source,
+        })?;
+        return outln!(
+            "wrote the generated network ({} species, {} thermal steps, {} absorbers) to {}",
+            size.species,
+            size.steps,
+            size.absorbers,
+            path.display()
+        );
+    }
     let until = units::parse(&a.until, Quantity::Time)
         .map_err(|e| photoledger::Error::Usage(format!("--until: {e}; expected {}", Quantity::Time.accepted())))?;
     let mut rows = Vec::new();
@@ -119,12 +142,6 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
         let model = Model::compile(&net);
         rows.push(time(&f.display().to_string(), &model, until, None)?);
     }
-    let size = Size {
-        species: a.species.max(2),
-        steps: a.steps,
-        absorbers: a.absorbers.min(a.species),
-    };
-    let text = large_network(size, 2026);
     let loaded = photoledger::file::parse_text(std::path::Path::new("generated.toml"), text)?;
     let net = photoledger::network::build(&loaded, &photoledger::Overrides::none())?;
     let model = Model::compile(&net);

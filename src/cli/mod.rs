@@ -102,7 +102,9 @@ pub enum Exit {
     File = 3,
     /// A numerical engine could not finish.
     Numerical = 4,
-    /// Answered: the target is not reachable (`plan`, with or without `--in`).
+    /// Answered: the target is not reached: `plan` (with or without `--in`), `report --target`,
+    /// `simulate --stop-when` (not met by `--until`), `plan --sweep` (no point reaches it),
+    /// `uncertainty --target` (no sample reaches it).
     Unreachable = 5,
     /// Stopped at a limit (evaluations or time) before converging; the best point is reported.
     /// `fit` and `compare` at `--max-evaluations` or `--time-limit`.
@@ -129,7 +131,7 @@ impl Exit {
         (Exit::Numerical, "a numerical engine could not finish"),
         (
             Exit::Unreachable,
-            "answered: the target is not reachable (`plan`, with or without `--in`; the answer is printed)",
+            "answered: the target is not reachable, with the closest approach printed and the files written: `plan` (with or without `--in`), `report --target`, `simulate --stop-when` (not met within `--until`), `plan --sweep` (no point of the sweep reaches it; each point that does not is marked), `uncertainty --target` (no sample reaches it)",
         ),
         (
             Exit::StoppedAtLimit,
@@ -156,14 +158,14 @@ pub fn run() -> i32 {
     let result = match cli.command {
         Command::Check { net, quiet } => check::run(&net, quiet),
         Command::Diagram { net, out, dot } => diagram::run(&net, &out, dot),
-        Command::Simulate(a) => simulate::run(&a),
+        Command::Simulate(a) => return exit_of(simulate::run(&a)),
         Command::Bench(a) => bench::run(&a),
         Command::Barrier(a) => barrier::run(&a),
         Command::Ledger(a) => ledger::run(&a),
-        Command::Uncertainty(a) => uncertainty::run(&a),
+        Command::Uncertainty(a) => return exit_of(uncertainty::run(&a)),
         Command::Plan(a) => return exit_of(plan::run(&a)),
         Command::Actinometer(a) => actinometer::run(&a),
-        Command::Report(a) => report::run(&a),
+        Command::Report(a) => return exit_of(report::run(&a)),
         Command::Fit(a) => return exit_of(fit::run(&a)),
         Command::Compare(a) => return exit_of(compare::run(&a)),
     };

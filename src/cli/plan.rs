@@ -108,6 +108,19 @@ fn adjust_model(m: Model, day: &DaylightArgs, sun_sources: &[usize], tube: Optio
     }
 }
 
+/// The code of a sweep: success when some point reaches the target; [`Exit::Unreachable`]
+/// when none does (each point that does not is marked in the table and the CSV), unless every
+/// point failed to compute, which is [`Exit::Numerical`].
+fn sweep_exit(points: &[plan::SweepPoint]) -> Exit {
+    if points.iter().any(|p| p.plan.as_ref().is_ok_and(|pl| pl.time.is_some())) {
+        Exit::Success
+    } else if points.iter().all(|p| p.plan.is_err()) {
+        Exit::Numerical
+    } else {
+        Exit::Unreachable
+    }
+}
+
 /// Plan; [`Exit::Unreachable`] when the answer is that the target is not reachable (the
 /// closest approach and why are printed), with or without `--in`.
 pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
@@ -213,7 +226,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
             )?;
             outln!("caution: {}", rp::CAUTIONS)?;
         }
-        return Ok(Exit::Success);
+        return Ok(sweep_exit(&points));
     }
     let (result, power) = match &a.within {
         Some(d) => {

@@ -3,7 +3,7 @@
 //! run what applies to the network and write one self-contained HTML page.
 
 use super::output::{noteln, outln};
-use super::{NetworkArgs, load, print_warnings};
+use super::{Exit, NetworkArgs, load, print_warnings};
 use photoledger::Error;
 use photoledger::fit::mechanism::FitOptions;
 use photoledger::model::Model;
@@ -72,8 +72,9 @@ fn command_line() -> String {
     parts.join(" ")
 }
 
-/// Run `report`.
-pub fn run(a: &ReportArgs) -> photoledger::Result<()> {
+/// Run `report`; [`Exit::Unreachable`] when a `--target` is not reachable (the page is
+/// written all the same, its plan section saying why).
+pub fn run(a: &ReportArgs) -> photoledger::Result<Exit> {
     let net = load(&a.net)?;
     print_warnings(&net);
     let opts = StudyOptions {
@@ -134,5 +135,19 @@ pub fn run(a: &ReportArgs) -> photoledger::Result<()> {
         noteln!("note: no single-molecule section: {why}");
     }
     outln!("wrote {} ({} kB)", out.display(), page.len().div_ceil(1024))?;
-    Ok(())
+    // A target given and not reachable is the answer "not reachable" (exit 5), as for `plan`.
+    let missed = found.plan.as_ref().filter(|p| p.plan.time.is_none());
+    if let Some(p) = missed {
+        let plan = &p.plan;
+        outln!(
+            "NOT REACHABLE: \"{}\": {} (see the plan section; exit 5)",
+            plan.target.text,
+            plan.unreachable.as_ref().map_or("not reached", |u| u.why.words())
+        )?;
+    }
+    Ok(if missed.is_some() {
+        Exit::Unreachable
+    } else {
+        Exit::Success
+    })
 }

@@ -2,9 +2,9 @@
 
 use super::daylight::DaylightArgs;
 use super::output::{noteln, out, outln};
-use super::{NetworkArgs, load, print_warnings};
+use super::{Exit, NetworkArgs, load, print_warnings};
 use photoledger::Error;
-use photoledger::kinetics::{self, Method, Options};
+use photoledger::kinetics::{self, Method, Options, Stop};
 use photoledger::model::Model;
 use photoledger::report::{simulation, write_atomic};
 use photoledger::units::{self, Quantity};
@@ -56,7 +56,9 @@ fn parse_stop(text: &str, model: &Model) -> photoledger::Result<kinetics::Event>
         .map_err(|e| Error::Usage(format!("--stop-when: {e}")))
 }
 
-pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {
+/// Simulate; [`Exit::Unreachable`] when a `--stop-when` condition is not met within `--until`
+/// (the run to `--until` is printed and written all the same).
+pub fn run(a: &SimulateArgs) -> photoledger::Result<Exit> {
     let net = load(&a.net)?;
     print_warnings(&net);
     let until = units::parse(&a.until, Quantity::Time)
@@ -130,14 +132,26 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<()> {
             n.1
         );
     }
+    // A stop condition is a target: not met by --until is the answer "not reached" (exit 5).
+    let missed = a.stop_when.as_deref().filter(|_| matches!(tr.stop, Stop::EndTime));
     if a.json {
         outln!("{json}")?;
     } else {
         out!("{}", photoledger::report::summary::run_summary(&summary))?;
+        if let Some(c) = missed {
+            outln!(
+                "NOT REACHED: the stop condition \"{c}\" was not met within --until {} (exit 5)",
+                units::format_time(until)
+            )?;
+        }
         outln!(
             "wrote {}/ (concentrations.csv, photons.csv, summary.json, concentrations.svg, photons.svg)",
             dir.display()
         )?;
     }
-    Ok(())
+    Ok(if missed.is_some() {
+        Exit::Unreachable
+    } else {
+        Exit::Success
+    })
 }

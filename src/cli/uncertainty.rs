@@ -2,6 +2,7 @@
 //! [--from-fit FIT.json] [--shard K/N] [--json] [--out DIR]`, and
 //! `photoledger uncertainty merge SHARD.json... [--json] [--out DIR]`.
 
+use super::Exit;
 use super::output::{out, outln};
 use photoledger::Error;
 use photoledger::report::{uncertainty as report, write_atomic};
@@ -78,8 +79,9 @@ fn read(path: &Path) -> photoledger::Result<String> {
 }
 
 
-/// Run `uncertainty`.
-pub fn run(a: &UncertaintyArgs) -> photoledger::Result<()> {
+/// Run `uncertainty`; [`Exit::Unreachable`] when a `--target` is reached by no sample (the
+/// outputs are written all the same, every sample counted as censored).
+pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
     if let Some(MergeCommand::Merge { shards, json, out }) = &a.merge {
         return merge(shards, *json, out);
     }
@@ -158,12 +160,12 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<()> {
             record.header.end,
             total
         )?;
-        return Ok(());
+        return Ok(Exit::Success);
     }
     write_all(&record, &dir, a.json)
 }
 
-fn merge(shards: &[PathBuf], json: bool, out: &Path) -> photoledger::Result<()> {
+fn merge(shards: &[PathBuf], json: bool, out: &Path) -> photoledger::Result<Exit> {
     let mut parts = Vec::new();
     for p in shards {
         let r: Record = serde_json::from_str(&read(p)?).map_err(|e| {
@@ -182,8 +184,9 @@ fn to_json<T: serde::Serialize>(v: &T) -> photoledger::Result<String> {
     serde_json::to_string_pretty(v).map_err(|e| Error::Numerical(e.to_string()))
 }
 
-/// Write every output of a whole run (single or merged).
-fn write_all(record: &Record, dir: &Path, json: bool) -> photoledger::Result<()> {
+/// Write every output of a whole run (single or merged); [`Exit::Unreachable`] when an output
+/// with a horizon (the time to a target) was reached by no sample that ran.
+fn write_all(record: &Record, dir: &Path, json: bool) -> photoledger::Result<Exit> {
     let summary = uncertainty::summarise(record);
     let summary_json = to_json(&summary)?;
     write_atomic(&dir.join("summary.json"), summary_json.as_bytes())?;
@@ -215,5 +218,19 @@ fn write_all(record: &Record, dir: &Path, json: bool) -> photoledger::Result<()>
             dir.display()
         )?;
     }
-    Ok(())
+    let never = summary
+        .outputs
+        .iter()
+        .find(|x| x.column.censored_above.is_some() && x.n == 0 && x.censored > 0);
+    if let Some(x) = never {
+        if !json {
+            outln!(
+                "NOT REACHED: none of the {} samples that ran reached the target within --until ({}; exit 5)",
+                x.censored,
+                x.column.name
+            )?;
+        }
+        return Ok(Exit::Unreachable);
+    }
+    Ok(Exit::Success)
 }

@@ -1,14 +1,16 @@
-//! Reading network files: the TOML text, and the CSV tables it refers to.
+//! Reading network files: the TOML text, and the CSV tables it refers to; writing TOML back.
 //!
-//! This is the only module that knows the TOML layout ([`schema`]) and the only one below
-//! the CLI that touches the file system on the way in. [`load`] reads the file and every CSV it
-//! names, so that `network::build` is a pure function of what was read.
+//! This is the only module that knows the TOML layout ([`schema`] to read it, [`write`](mod@write) to write
+//! it from typed values) and the only one below the CLI that touches the file system on the way
+//! in. [`load`] reads the file and every CSV it names, so that `network::build` is a pure
+//! function of what was read.
 
 pub mod csv;
 pub mod data;
 pub mod frequencies;
 pub mod schema;
 pub mod uncertain;
+pub mod write;
 
 use crate::error::{Diagnostic, Error, Origin, Result};
 use std::collections::BTreeMap;

@@ -91,6 +91,9 @@ pub struct ShareTotals {
     pub scale: f64,
     /// Sum of the rates, s⁻¹.
     pub rates: f64,
+    /// True when the fixed fractions are scaled by 1/`fixed` (no "rest" channel, or fractions
+    /// that exceed one); false when they stand as given and "rest" takes what they leave.
+    pub normalised: bool,
 }
 
 impl ShareTotals {
@@ -104,12 +107,40 @@ impl ShareTotals {
                 ShareInput::Rate(k) => rates += k.max(0.0),
             }
         }
-        let scale = if (!rest && fixed > 0.0) || fixed > 1.0 {
-            1.0 / fixed
-        } else {
-            1.0
-        };
-        ShareTotals { fixed, scale, rates }
+        let normalised = (!rest && fixed > 0.0) || fixed > 1.0;
+        let scale = if normalised { 1.0 / fixed } else { 1.0 };
+        ShareTotals {
+            fixed,
+            scale,
+            rates,
+            normalised,
+        }
+    }
+
+    /// ∂(share of a channel with input `s`)/∂(input of channel c), where `moved` is channel c's
+    /// input (a positive fraction or rate) and `own` is true when the channel is c itself, by
+    /// differentiating [`ShareTotals::share`] exactly:
+    /// - rates, share k_j/K with K = Σ k: ∂/∂k_c = (δ_jc K − k_j)/K²;
+    /// - fixed fractions scaled by 1/F (F = Σ x): ∂(x_j/F)/∂x_c = (δ_jc F − x_j)/F², and "rest"
+    ///   (then 1 − F/F = 0) does not move;
+    /// - fixed fractions as given: ∂x_j/∂x_c = δ_jc and "rest" = 1 − F moves by −1. At F = 1
+    ///   with a "rest" channel this is the derivative from below, the side the value can move to.
+    ///
+    /// Fractions and rates of one transient do not mix: moving one kind leaves the other's
+    /// shares alone.
+    pub fn share_derivative(&self, s: ShareInput, own: bool, moved: ShareInput) -> f64 {
+        let kron = if own { 1.0 } else { 0.0 };
+        match (moved, s) {
+            (ShareInput::Rate(_), ShareInput::Rate(k)) if self.rates > 0.0 => {
+                (kron * self.rates - k.max(0.0)) / (self.rates * self.rates)
+            }
+            (ShareInput::Fixed(_), ShareInput::Fixed(x)) if self.normalised => {
+                (kron * self.fixed - x.max(0.0)) / (self.fixed * self.fixed)
+            }
+            (ShareInput::Fixed(_), ShareInput::Fixed(_)) => kron,
+            (ShareInput::Fixed(_), ShareInput::Rest) if !self.normalised => -1.0,
+            _ => 0.0,
+        }
     }
 
     /// The share (probability) of a channel with input `s`.
@@ -468,6 +499,49 @@ mod tests {
     fn net(text: &str) -> Network {
         let l = parse_text(Path::new("t.toml"), text.to_string()).unwrap();
         build(&l, &Overrides::none()).unwrap()
+    }
+
+    /// `share_derivative` against central differences of `share` (common practice: O(h²)), in
+    /// every regime of the rule: rates; fixed fractions scaled when there is no "rest" and when
+    /// they exceed one; fractions as given beside a "rest".
+    #[test]
+    fn share_derivative_matches_differences_of_share() {
+        use ShareInput::{Fixed, Rate, Rest};
+        let cases: [&[ShareInput]; 4] = [
+            &[Rate(3.0e8), Rate(1.0e9), Rate(2.5e7)],
+            &[Fixed(0.3), Fixed(0.5), Fixed(0.1)],
+            &[Fixed(0.7), Fixed(0.6), Rest],
+            &[Fixed(0.2), Fixed(0.35), Rest],
+        ];
+        for inputs in cases {
+            let totals = ShareTotals::of(inputs.iter().copied());
+            for c in 0..inputs.len() {
+                let (Fixed(x) | Rate(x)) = inputs[c] else { continue };
+                let h = 1e-5 * x;
+                let moved = |v: f64| -> Vec<ShareInput> {
+                    let mut i = inputs.to_vec();
+                    i[c] = match i[c] {
+                        Fixed(_) => Fixed(v),
+                        _ => Rate(v),
+                    };
+                    i
+                };
+                let (up, down) = (moved(x + h), moved(x - h));
+                let (tu, td) = (
+                    ShareTotals::of(up.iter().copied()),
+                    ShareTotals::of(down.iter().copied()),
+                );
+                for j in 0..inputs.len() {
+                    let fd = (tu.share(up[j]) - td.share(down[j])) / (2.0 * h);
+                    let exact = totals.share_derivative(inputs[j], j == c, inputs[c]);
+                    let scale = fd.abs().max(exact.abs()).max(1.0 / x.max(1.0));
+                    assert!(
+                        (fd - exact).abs() <= 1e-7 * scale,
+                        "{inputs:?}: ∂share[{j}]/∂input[{c}] = {exact} vs {fd}"
+                    );
+                }
+            }
+        }
     }
 
     const BASE: &str = r#"

@@ -2,7 +2,7 @@
 //! sums, element balance, and warnings about light, spectra and unused species. Also builds
 //! the petgraph graph.
 
-use super::build::Builder;
+use super::diagnostics::{Places, Sink};
 use super::formula::{self, Composition};
 use super::*;
 use crate::error::Origin;
@@ -14,8 +14,21 @@ use std::collections::BTreeSet;
 /// spectra are quoted (common practice).
 pub const SINGLE_EPSILON_TOLERANCE: f64 = 1e-9;
 
-impl Builder<'_> {
-    pub(super) fn check_network(&mut self, net: &mut Network) {
+/// Run every whole-network check on `net` (built from the file whose item positions are
+/// `at`), reporting into `sink`, and mark the channels that return to an excited species.
+pub(super) fn check_network(sink: &mut Sink, at: &Places, net: &mut Network) {
+    Checks { sink, at }.all(net);
+}
+
+/// The whole-network checks, reporting into a sink.
+struct Checks<'s, 'a> {
+    sink: &'s mut Sink<'a>,
+    /// Where each item of the network was written.
+    at: &'s Places,
+}
+
+impl Checks<'_, '_> {
+    fn all(&mut self, net: &mut Network) {
         self.check_exits(net);
         mark_returns(net);
         self.check_yield_sums(net);
@@ -50,9 +63,9 @@ impl Builder<'_> {
         } else {
             format!("{} cm2", sig(area * 1e4, 4))
         };
-        self.warn(
+        self.sink.warn(
             "conditions.irradiated_area",
-            &self.at.irradiated_area.clone(),
+            &self.at.irradiated_area,
             format!(
                 "irradiated_area × path_length = {area_s} × {} cm = {} of lit solution, more than conditions.volume = \
                  {} ({}×): impossible geometry, the light crossing that column would all go into the smaller volume \
@@ -123,7 +136,7 @@ impl Builder<'_> {
                 .map(|&i| format!("\"{}\"", net.transients[i].name))
                 .collect();
             let at = self.transient_at(stuck[0]);
-            self.error(
+            self.sink.error(
                 &format!("transient {}", names[0]),
                 &at,
                 format!(
@@ -145,7 +158,7 @@ impl Builder<'_> {
                     .all(|c| matches!(c.branching, Branching::Quenching { .. }))
             {
                 let at = self.transient_at(i);
-                self.warn(
+                self.sink.warn(
                     &format!("transient \"{}\"", t.name),
                     &at,
                     "all its channels are bimolecular quenching: with no quencher present it has no way out",
@@ -170,7 +183,7 @@ impl Builder<'_> {
         for (i, t) in net.transients.iter().enumerate() {
             if !reached[i] && !t.name.is_empty() {
                 let at = self.transient_at(i);
-                self.warn(
+                self.sink.warn(
                     &format!("transient \"{}\"", t.name),
                     &at,
                     "no photochemical step or channel leads to it",
@@ -205,7 +218,7 @@ impl Builder<'_> {
                 && s > 1.0 + 1e-9
             {
                 let at = self.at.photo.get(steps[0]).cloned().unwrap_or_default();
-                self.error(
+                self.sink.error(
                     &format!("photo steps of \"{}\"", net.species[a].name),
                     &at,
                     format!(
@@ -238,7 +251,7 @@ impl Builder<'_> {
                 let d = formula::imbalance(&l, &r);
                 if !d.is_empty() {
                     let at = self.at.thermal.get(i).cloned().unwrap_or_default();
-                    self.error(
+                    self.sink.error(
                         &format!("thermal \"{}\"", s.name),
                         &at,
                         format!(
@@ -265,7 +278,7 @@ impl Builder<'_> {
                 if let Some(r) = comp(&terms) {
                     let d = formula::imbalance(&a, &r);
                     if !d.is_empty() {
-                        self.error(
+                        self.sink.error(
                             &format!("photo \"{}\"", p.name),
                             &at,
                             format!("{} -> {}{label} is not balanced: products − absorber = {d}", net.species[p.absorber].name, net.side(&terms)),
@@ -279,7 +292,7 @@ impl Builder<'_> {
 
     fn check_light(&mut self, net: &Network) {
         if net.lights.is_empty() && !net.photo.is_empty() {
-            self.warn(
+            self.sink.warn(
                 "light",
                 &Origin::Span(0..0),
                 "there are photochemical steps but no light source",
@@ -291,7 +304,7 @@ impl Builder<'_> {
             let s = &net.species[a];
             let at = self.at.species.get(a).cloned().unwrap_or_default();
             match &s.epsilon {
-                None => self.warn(
+                None => self.sink.warn(
                     &format!("species \"{}\".epsilon", s.name),
                     &at,
                     "it absorbs in a photochemical step but has no molar absorption coefficient, so it takes no light",
@@ -308,7 +321,7 @@ impl Builder<'_> {
                         .flat_map(|l| &l.bins)
                         .any(|b| eps.at(b.wavelength) > 0.0);
                     if !absorbs {
-                        self.warn(
+                        self.sink.warn(
                             &format!("species \"{}\".epsilon", s.name),
                             &at,
                             "is zero at every wavelength of the light, so it takes no light",
@@ -358,7 +371,7 @@ impl Builder<'_> {
             let at = self.at.epsilon.get(i).cloned().unwrap_or_default();
             let v = crate::units::sig(crate::units::epsilon_to_per_cm(value), 5);
             let (lo, hi) = (nm(w - 10e-9), nm(w + 10e-9));
-            self.error(
+            self.sink.error(
                 &format!("species \"{}\".epsilon", s.name),
                 &at,
                 format!(
@@ -408,7 +421,7 @@ impl Builder<'_> {
                 } else {
                     ""
                 };
-                self.warn(
+                self.sink.warn(
                     &format!("species \"{}\"", s.name),
                     &at,
                     format!("nothing produces or consumes it{note}"),

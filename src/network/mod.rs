@@ -9,6 +9,7 @@
 mod build;
 mod checks;
 mod derived;
+mod diagnostics;
 pub mod equation;
 pub mod formula;
 pub mod overrides;

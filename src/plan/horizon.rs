@@ -23,6 +23,33 @@ pub const DEFAULT_CONVERSION: f64 = 0.99;
 /// with `--until`.
 pub const CAP: f64 = 365.25 * 86400.0;
 
+/// The steps of [`round_up`] within each power of ten: every step at most 1.5 times the one
+/// before, so rounding up never stretches a horizon by more than 1.5 (1, 2, 5 stretched 2.01
+/// to 5, 2.5 times).
+pub const ROUND_STEPS: [f64; 9] = [1.0, 1.5, 2.0, 3.0, 4.0, 5.0, 6.0, 8.0, 10.0];
+
+/// The most [`round_up`] stretches a duration: the largest ratio of neighbouring
+/// [`ROUND_STEPS`].
+pub const MAX_STRETCH: f64 = 1.5;
+
+/// A round duration at least `t` s, for an automatic horizon to read as a round number: the
+/// next of [`ROUND_STEPS`] times a power of ten of the unit the duration is shown in
+/// (`units::display::time`), at most [`MAX_STRETCH`] times `t` ("8.67 h" → "10 h", "2.01 d"
+/// → "3 d", "1.01 min" → "1.5 min").
+pub fn round_up(t: f64) -> f64 {
+    if !(t > 0.0 && t.is_finite()) {
+        return t;
+    }
+    let (unit, _) = crate::units::display::time(t);
+    let v = t / unit;
+    let p = 10f64.powf(v.log10().floor());
+    let m = ROUND_STEPS
+        .into_iter()
+        .find(|m| m * p >= v * (1.0 - 1e-12))
+        .unwrap_or(10.0);
+    m * p * unit
+}
+
 /// Why an automatic horizon ended where it did.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Ended {
@@ -134,4 +161,37 @@ pub fn automatic(model: &Model, target: Option<&Target>) -> Result<Horizon> {
         target: Some(target),
         plan: Some(plan),
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{MAX_STRETCH, round_up};
+
+    #[test]
+    fn durations_round_up_to_round_numbers() {
+        assert_eq!(round_up(0.7), 0.8);
+        assert_eq!(round_up(3.0), 3.0);
+        assert_eq!(round_up(45.0), 50.0);
+        assert_eq!(round_up(300.0), 300.0); // 5 min
+        assert_eq!(round_up(8.67 * 3600.0), 10.0 * 3600.0);
+        assert_eq!(round_up(2.01 * 86_400.0), 3.0 * 86_400.0);
+        assert_eq!(round_up(2.0 * 3600.0), 2.0 * 3600.0);
+        assert_eq!(round_up(5400.0), 1.5 * 3600.0); // 1.5 h, shown in h
+        assert_eq!(round_up(0.0), 0.0);
+    }
+
+    #[test]
+    fn rounding_up_never_stretches_a_horizon_more_than_one_and_a_half_times() {
+        // Every duration from 1 ms to 10 years on a fine log grid, unit boundaries included
+        // (59.9 s, 59.9 min, 23.9 h...): the old 1, 2, 5 ladder took 2.01 to 5 (2.49 times).
+        let mut worst: f64 = 1.0;
+        for k in 0..=20_000 {
+            let t = 1e-3 * 10f64.powf(k as f64 * 11.5 / 20_000.0);
+            let r = round_up(t);
+            assert!(r >= t * (1.0 - 1e-12), "{t} -> {r}");
+            worst = worst.max(r / t);
+        }
+        assert!(worst <= MAX_STRETCH * (1.0 + 1e-9), "stretched {worst} times");
+        assert!(worst > 1.45, "the grid should find the worst case: {worst}");
+    }
 }

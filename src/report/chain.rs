@@ -5,7 +5,7 @@ use crate::chain::agreement::Agreement;
 use crate::chain::sensitivity::Sensitivity;
 use crate::chain::{Analysis, Chain, StateKind};
 use crate::report::csv_out::{CsvTable, sci};
-use crate::units::format_time;
+use crate::units::{display, format_time};
 use plotters::prelude::*;
 use serde::Serialize;
 use std::fmt::Write;
@@ -161,11 +161,7 @@ pub fn summary(
         distribution_tail: a.distribution.as_ref().map(|d| d.tail),
         distribution_max_photons: a.distribution.as_ref().map(|d| d.p.len().saturating_sub(1)),
         distribution_truncated: a.distribution.as_ref().is_some_and(|d| d.truncated),
-        sensitivity_method: format!(
-            "central finite differences through the chain construction, relative step {:e}; barriers by \
-             ∂/∂E = −(k/RT) ∂/∂k",
-            crate::chain::sensitivity::STEP
-        ),
+        sensitivity_method: crate::chain::sensitivity::METHOD.to_string(),
         sensitivities: sens,
     }
 }
@@ -194,6 +190,26 @@ fn main_end(a: &Analysis) -> usize {
         .unwrap_or(0)
 }
 
+impl Summary {
+    /// The round-off limit of the yields: [`display::CHAIN_ROUNDOFF`] of the largest one (an end
+    /// with a yield within it is not shown as an end).
+    pub fn yield_zero(&self) -> display::ZeroWithin {
+        let largest = display::largest(self.ends.iter().map(|e| e.yield_fraction));
+        display::ZeroWithin::relative(largest, display::CHAIN_ROUNDOFF)
+    }
+
+    /// The round-off limits of sensitivity `x`: of its d yield / d p (the yields' round-off
+    /// against a unit relative change of p, [`display::ZeroWithin::derivative`]) and of its
+    /// elasticities d ln photons / d ln p (relative round-off).
+    pub fn sensitivity_zero(&self, x: &Sensitivity) -> (display::ZeroWithin, display::ZeroWithin) {
+        let largest = display::largest(self.ends.iter().map(|e| e.yield_fraction));
+        (
+            display::ZeroWithin::derivative(largest, display::CHAIN_ROUNDOFF, x.value),
+            display::ZeroWithin::derivative(1.0, display::CHAIN_ROUNDOFF, 1.0),
+        )
+    }
+}
+
 fn opt(x: Option<f64>, f: impl Fn(f64) -> String) -> String {
     x.map_or_else(|| "—".to_string(), f)
 }
@@ -212,7 +228,9 @@ pub fn text(s: &Summary) -> String {
         "  {:<22} {:>10} {:>14} {:>12} {:>12} {:>14}",
         "ends as", "yield", "photons mean", "photons sd", "quantum yld", "mean time"
     );
-    for e in s.ends.iter().filter(|e| e.yield_fraction > 1e-12) {
+    // yields within the chain's round-off of zero are no end; summary.json keeps every one
+    let zero = s.yield_zero();
+    for e in s.ends.iter().filter(|e| zero.shown(e.yield_fraction) > 0.0) {
         let _ = writeln!(
             o,
             "  {:<22} {:>10.6} {:>14} {:>12} {:>12} {:>14}",
@@ -240,6 +258,22 @@ pub fn text(s: &Summary) -> String {
                 }
             }
             let _ = writeln!(o, "    (how: {})", a.method);
+            match (&a.yields, &a.yields_skipped) {
+                (Some(y), _) => {
+                    let _ = writeln!(o, "  {}", y.headline());
+                    for l in y.end_lines() {
+                        let _ = writeln!(o, "    {l}");
+                    }
+                    for r in &y.reasons {
+                        let _ = writeln!(o, "    why: {r}");
+                    }
+                    let _ = writeln!(o, "    (how: {})", y.method);
+                }
+                (None, Some(why)) => {
+                    let _ = writeln!(o, "  yield check not made: {why}");
+                }
+                (None, None) => {}
+            }
         }
         (None, Some(why)) => {
             let _ = writeln!(o, "  kinetics check not made: {why}");
@@ -275,13 +309,25 @@ pub fn text(s: &Summary) -> String {
             "\n  top sensitivities for {} (d ln photons / d ln p; d yield / d p)",
             e.species
         );
+        // round-off (a yield pinned at 1 moves by round-off only) reads 0;
+        // summary.json keeps the raw derivatives
         for x in s.sensitivities.iter().take(8) {
-            let el = x.elasticity_photons.get(main).copied().flatten();
-            let dy = x.yield_derivative.get(main).copied().unwrap_or(0.0);
+            let (dy_zero, el_zero) = s.sensitivity_zero(x);
+            let el = x
+                .elasticity_photons
+                .get(main)
+                .copied()
+                .flatten()
+                .map(|v| el_zero.shown(v));
+            let dy = dy_zero.shown(x.yield_derivative.get(main).copied().unwrap_or(0.0));
             let mut line = format!(
-                "    {:>9} {:>11.3e}  {} = {:.4e} {}",
+                "    {:>9} {:>11}  {} = {:.4e} {}",
                 opt(el, |v| format!("{v:+.4}")),
-                dy,
+                if dy == 0.0 {
+                    "0".to_string()
+                } else {
+                    format!("{dy:.3e}")
+                },
                 x.parameter,
                 x.value,
                 x.unit
@@ -291,6 +337,7 @@ pub fn text(s: &Summary) -> String {
                 .as_ref()
                 .and_then(|b| b.get(main).copied().flatten())
             {
+                let b = if el == Some(0.0) { 0.0 } else { b };
                 let _ = write!(line, "  [d ln photons / d barrier {b:+.3} per kcal/mol]");
             }
             let _ = writeln!(o, "{line}");

@@ -1,7 +1,7 @@
 //! What `fit` and `compare` write: tables, JSON, SVG of data against fits and residuals, and the
 //! network file with fitted values put in.
 
-use crate::error::{Error, Result};
+use crate::error::Result;
 use crate::file::data::Experiment;
 use crate::fit::mechanism::{Curve, Free};
 use crate::fit::{FitResult, lsq};
@@ -358,161 +358,37 @@ pub fn residuals_svg(title: &str, rows: &[Row]) -> String {
     svg
 }
 
-/// The network file text with the fitted values put in, comments and layout kept (toml_edit),
-/// and a comment at the top recording the fit. Each key is found as the `--set` machinery
-/// reads it: conditions, `[[species]]`/`[[light]]`/`[[photo]]`/`[[thermal]]`/`[[transient]]` by
-/// name (an unnamed thermal or photo step by its equation); a `k` or `barrier` replaces the
-/// whole rate table (a barrier keeps `transmission`).
+/// The network file text with the fitted values put in, comments and layout kept, and a comment
+/// at the top recording the fit. Each value goes to its `--set` key as
+/// [`file::write::put_values`](crate::file::write::put_values) finds it (a `k` or `barrier`
+/// replaces the whole rate table; a barrier keeps `transmission`); a value with a unit is written
+/// in the readable unit of `units::display`, 7 significant figures.
 pub fn fitted_toml(text: &str, free: &[Free], values: &[f64], se: &[f64]) -> Result<String> {
-    use toml_edit::{DocumentMut, InlineTable, Item, Value, value};
-    let mut doc: DocumentMut = text
-        .parse()
-        .map_err(|e| Error::Usage(format!("the network file cannot be edited: {e}")))?;
-    let bad = |k: &str| Error::Usage(format!("{k}: cannot be located in the network file to write it back"));
-    for (f, v) in free.iter().zip(values) {
-        let key = f.key.as_str();
-        let text_v = value_text(f, *v);
-        let new: Value = if f.unit.is_empty() {
-            Value::from(*v)
-        } else {
-            Value::from(text_v.clone())
-        };
-        let find = |doc: &mut DocumentMut, array: &str, name: &str| -> Option<usize> {
-            let arr = doc.get(array)?.as_array_of_tables()?;
-            arr.iter().position(|t| {
-                let n = t.get("name").and_then(|x| x.as_str()).map(str::trim);
-                let eq = t.get("equation").and_then(|x| x.as_str()).map(str::trim);
-                let text = |k: &str| t.get(k).and_then(|x| x.as_str()).map(str::trim);
-                let long = match (text("absorber"), text("excites")) {
-                    (Some(a), Some(x)) => Some(format!("{a} + hν -> {x}")),
-                    _ => None,
-                };
-                n == Some(name)
-                    || (n.is_none()
-                        && (eq == Some(name)
-                            || eq.map(|e| format!("{e} (hν)")).as_deref() == Some(name)
-                            || long.as_deref() == Some(name)))
-            })
-        };
-        // Put `field` = new into the rate table `rate` (an inline table or a table).
-        let set_rate = |item: &mut Item, field: &str, new: Value| -> bool {
-            let keep_t = item.get("transmission").cloned();
-            if field == "k" || field == "barrier" {
-                let mut t = InlineTable::new();
-                t.insert(field, new);
-                if field == "barrier"
-                    && let Some(Item::Value(kv)) = keep_t
-                {
-                    t.insert("transmission", kv);
-                }
-                *item = Item::Value(Value::InlineTable(t));
-                return true;
-            }
-            match item {
-                Item::Value(Value::InlineTable(t)) => {
-                    t.insert(field, new);
-                    true
-                }
-                Item::Table(t) => {
-                    t.insert(field, value(new));
-                    true
-                }
-                _ => false,
-            }
-        };
-        let ok = if let Some(field) = key.strip_prefix("conditions.") {
-            doc.get_mut("conditions")
-                .and_then(|c| c.as_table_like_mut())
-                .map(|c| c.insert(field, value(new)))
-                .is_some()
-        } else if let Some((section, rest)) = key.split_once('.') {
-            match section {
-                "species" | "light" | "photo" => {
-                    let array = section;
-                    match rest.rsplit_once('.') {
-                        Some((name, field)) => match find(&mut doc, array, name) {
-                            Some(i) => {
-                                let t = doc[array].as_array_of_tables_mut().and_then(|a| a.get_mut(i));
-                                t.map(|t| t.insert(field, value(new))).is_some()
-                            }
-                            None => false,
-                        },
-                        None => false,
-                    }
-                }
-                "thermal" => {
-                    let (head, field) = rest.rsplit_once('.').ok_or_else(|| bad(key))?;
-                    let (name, which) = match head.strip_suffix(".reverse") {
-                        Some(n) if find(&mut doc, "thermal", n).is_some() => (n, "reverse"),
-                        _ => (head, "rate"),
-                    };
-                    match find(&mut doc, "thermal", name) {
-                        Some(i) => doc["thermal"]
-                            .as_array_of_tables_mut()
-                            .and_then(|a| a.get_mut(i))
-                            .and_then(|t| t.get_mut(which))
-                            .is_some_and(|item| set_rate(item, field, new)),
-                        None => false,
-                    }
-                }
-                "transient" => {
-                    let parsed = rest.rsplit_once(".channels[").and_then(|(name, tail)| {
-                        let (j, field) = tail.split_once("].")?;
-                        Some((name.to_string(), j.parse::<usize>().ok()?, field.to_string()))
-                    });
-                    match parsed {
-                        Some((name, j, field)) => match find(&mut doc, "transient", &name) {
-                            Some(i) => {
-                                let t = doc["transient"].as_array_of_tables_mut().and_then(|a| a.get_mut(i));
-                                let ch = t
-                                    .and_then(|t| t.get_mut("channels"))
-                                    .and_then(|c| c.as_array_mut())
-                                    .and_then(|a| a.get_mut(j))
-                                    .and_then(|c| c.as_inline_table_mut());
-                                match ch {
-                                    Some(c) if field == "fraction" => {
-                                        c.insert("fraction", new);
-                                        true
-                                    }
-                                    Some(c) => match c.get_mut("rate") {
-                                        Some(r) => {
-                                            let mut item = Item::Value(r.clone());
-                                            let ok = set_rate(&mut item, &field, new);
-                                            if let Item::Value(v) = item {
-                                                *r = v;
-                                            }
-                                            ok
-                                        }
-                                        None => false,
-                                    },
-                                    None => false,
-                                }
-                            }
-                            None => false,
-                        },
-                        None => false,
-                    }
-                }
-                _ => false,
-            }
-        } else {
-            false
-        };
-        if !ok {
-            return Err(bad(key));
-        }
-    }
-    let mut head = String::from("# Fitted values put in by `photoledger fit` (value ± standard error):\n");
+    use crate::file::write::{Written, put_values};
+    let written: Vec<(String, Written)> = free
+        .iter()
+        .zip(values)
+        .map(|(f, v)| {
+            let w = if f.unit.is_empty() {
+                Written::Number(*v)
+            } else {
+                let (value, unit) = readable(f.unit, *v);
+                Written::Quantity { value, unit }
+            };
+            (f.key.clone(), w)
+        })
+        .collect();
+    let mut head = vec!["Fitted values put in by `photoledger fit` (value ± standard error):".to_string()];
     for ((f, v), s) in free.iter().zip(values).zip(se) {
         let (x, u) = readable(f.unit, *v);
         let scale = if *v != 0.0 { x / v } else { 1.0 };
         if s.is_finite() {
-            let _ = writeln!(head, "#   {} = {} ± {} {u}", f.key, sig(x, 7), sig(s * scale, 3));
+            head.push(format!("  {} = {} ± {} {u}", f.key, sig(x, 7), sig(s * scale, 3)));
         } else {
-            let _ = writeln!(head, "#   {} = {} {u} (on the edge of its range)", f.key, sig(x, 7));
+            head.push(format!("  {} = {} {u} (on the edge of its range)", f.key, sig(x, 7)));
         }
     }
-    Ok(format!("{head}{doc}"))
+    put_values(text, &written, &head)
 }
 
 /// One row of a comparison.

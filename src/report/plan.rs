@@ -7,6 +7,7 @@ use crate::plan::actinometry::{FluxResult, Measured, NetworkFit};
 use crate::plan::target::Basis;
 use crate::plan::{Days, Direction, Flow, Plan, SweepPoint, Tube, Unreachable};
 use crate::report::csv_out::{CsvTable, opt_sci, sci};
+use crate::units::display::{ZeroWithin, format_concentration_within};
 use crate::units::{format_concentration, format_time, sig};
 use plotters::prelude::*;
 use serde::Serialize;
@@ -109,6 +110,9 @@ pub struct PlanSummary {
     pub method: String,
     /// Relative tolerance.
     pub rtol: f64,
+    /// Absolute tolerance of the integrator, mol/L: the text shows concentrations within it of
+    /// zero (and what is derived from them) as 0; the numbers here are the raw ones.
+    pub atol: f64,
     /// Safety cautions.
     pub cautions: String,
     /// The unit of every number above, by field path ("dose.incident": "einstein"); SI
@@ -171,6 +175,7 @@ pub fn summary_units() -> std::collections::BTreeMap<&'static str, &'static str>
         ("unreachable.horizon", "s"),
         ("unreachable.consumers[].rate", "mol/(L s)"),
         ("rtol", "1"),
+        ("atol", "mol/L"),
     ]
     .into_iter()
     .collect()
@@ -249,6 +254,7 @@ pub fn summary(
             if plan.stretches == 1 { "" } else { "es" }
         ),
         rtol,
+        atol: plan.trajectory.atol,
         cautions: CAUTIONS.into(),
         units: summary_units(),
     }
@@ -282,6 +288,9 @@ fn power_text(w: f64) -> String {
 /// The text summary.
 pub fn text(s: &PlanSummary) -> String {
     let mut o = String::new();
+    // round-off within the integrator's absolute tolerance of zero reads 0 (summary.json keeps
+    // the raw values beside its `atol`)
+    let zero = ZeroWithin(s.atol);
     let _ = writeln!(o, "plan for {}", s.network);
     let _ = writeln!(o, "target: \"{}\": {}", s.target.text, s.target_meaning);
     let d = &s.dose;
@@ -305,9 +314,9 @@ pub fn text(s: &PlanSummary) -> String {
                 o,
                 "  {} reaches at best {} (at {}); {} after {} of integration",
                 s.target.species_name,
-                format_concentration(u.best_level),
+                format_concentration_within(u.best_level, zero),
                 format_time(u.best_time),
-                format_concentration(u.final_level),
+                format_concentration_within(u.final_level, zero),
                 format_time(u.horizon)
             );
             if s.target.direction == Direction::Above && u.final_level < u.best_level * 0.999 && !u.consumers.is_empty()
@@ -429,7 +438,12 @@ pub fn text(s: &PlanSummary) -> String {
         );
         let _ = writeln!(o, "  approximation: {}", f.approximation);
     }
-    let formed: Vec<_> = s.products.iter().filter(|p| p.formed > 0.0).collect();
+    let formed: Vec<_> = s
+        .products
+        .iter()
+        .map(|p| shown_share(p, zero))
+        .filter(|p| p.formed > 0.0)
+        .collect();
     if !formed.is_empty() {
         let _ = writeln!(
             o,
@@ -440,7 +454,7 @@ pub fn text(s: &PlanSummary) -> String {
                 "at the closest approach"
             }
         );
-        for p in formed {
+        for p in &formed {
             let _ = writeln!(
                 o,
                 "  {:<16} {:>12}  {}",
@@ -453,6 +467,17 @@ pub fn text(s: &PlanSummary) -> String {
     let _ = writeln!(o, "method: {}", s.method);
     let _ = writeln!(o, "caution: {}", s.cautions);
     o
+}
+
+/// A product's share as shown: the amount formed within the integrator's tolerance `zero` of
+/// zero reads 0, and so does its selectivity (a ratio of round-off to the reagent consumed).
+pub fn shown_share(p: &crate::plan::Share, zero: ZeroWithin) -> crate::plan::Share {
+    let formed = zero.shown(p.formed);
+    crate::plan::Share {
+        formed,
+        selectivity: p.selectivity.map(|x| if formed == 0.0 { 0.0 } else { x }),
+        ..p.clone()
+    }
 }
 
 /// A product's selectivity in words: the share with its reference, the stoichiometric ceiling
@@ -661,7 +686,8 @@ pub fn selectivity_svg(network: &str, axis: &SweepAxis, points: &[SweepPoint]) -
                     .iter()
                     .filter_map(|p| {
                         let pl = p.plan.as_ref().ok()?;
-                        Some((p.value * axis.unit_factor, pl.products.get(i)?.selectivity? * 100.0))
+                        let sh = shown_share(pl.products.get(i)?, pl.trajectory.zero_within());
+                        Some((p.value * axis.unit_factor, sh.selectivity? * 100.0))
                     })
                     .collect(),
             )
@@ -701,6 +727,7 @@ pub fn sweep_text(axis: &SweepAxis, points: &[SweepPoint]) -> String {
                 let prods = pl
                     .products
                     .iter()
+                    .map(|s| shown_share(s, pl.trajectory.zero_within()))
                     .filter(|s| s.formed > 0.0)
                     .map(|s| match s.selectivity {
                         Some(x) => format!("{} {} %", s.species, sig(x * 100.0, 3)),
@@ -714,6 +741,23 @@ pub fn sweep_text(axis: &SweepAxis, points: &[SweepPoint]) -> String {
                 let _ = writeln!(o, "{v:>14}  failed: {e}");
             }
         }
+    }
+    let missed: Vec<String> = points
+        .iter()
+        .filter(|p| p.plan.as_ref().is_ok_and(|pl| pl.time.is_none()))
+        .map(|p| sig(p.value * axis.unit_factor, 4))
+        .collect();
+    if missed.len() == points.len() {
+        let _ = writeln!(o, "NOT REACHABLE at any point of the sweep (exit 5)");
+    } else if !missed.is_empty() {
+        let _ = writeln!(
+            o,
+            "not reached at {} of {} points: {} {}",
+            missed.len(),
+            points.len(),
+            axis.label,
+            missed.join(", ")
+        );
     }
     o
 }
@@ -742,60 +786,25 @@ pub fn measured(m: &Measured, unit: &str) -> String {
 }
 
 /// A `[[light]]` block that pastes into a network file: `source`'s kind and shape with the
-/// photon flux given, the uncertainty and the origin as comments.
+/// photon flux given, the uncertainty and the origin as comments (the block itself is written by
+/// [`file::write::light_block`](crate::file::write::light_block)).
 pub fn light_block(name: &str, kind: &LightKind, window: Option<(f64, f64)>, flux: &Measured, origin: &str) -> String {
-    let mut o = String::new();
-    let _ = writeln!(o, "# {origin}");
+    let mut comments = vec![origin.to_string()];
     if flux.sigma > 0.0 {
-        let _ = writeln!(
-            o,
-            "# photon flux {} einstein/s, standard uncertainty {} einstein/s ({} %)",
+        comments.push(format!(
+            "photon flux {} einstein/s, standard uncertainty {} einstein/s ({} %)",
             sig(flux.value, 6),
             sig(flux.sigma, 2),
             sig(flux.relative() * 100.0, 2)
-        );
+        ));
     }
-    let _ = writeln!(o, "[[light]]");
-    let _ = writeln!(o, "name = {}", toml_string(name));
-    let nm = |m: f64| format!("\"{} nm\"", sig(m * 1e9, 6));
-    match kind {
-        LightKind::Line { wavelength } => {
-            let _ = writeln!(o, "kind = \"line\"\nwavelength = {}", nm(*wavelength));
-        }
-        LightKind::Band { centre, fwhm } => {
-            let _ = writeln!(o, "kind = \"band\"\ncentre = {}\nfwhm = {}", nm(*centre), nm(*fwhm));
-        }
-        LightKind::Lamp { file, .. } => {
-            let _ = writeln!(
-                o,
-                "kind = \"lamp\"\nfile = {}   # as named in the original network file",
-                toml_string(file)
-            );
-        }
-        LightKind::Sun { scale, .. } => {
-            // Sunlight has no photon flux key: express the fit as its scale.
-            let _ = writeln!(o, "kind = \"sun\"\nscale = {}", sig(*scale, 8));
-            if let Some((a, b)) = window
-                && a > 0.0
-                && b.is_finite()
-            {
-                let _ = writeln!(o, "from = {}\nto = {}", nm(a), nm(b));
-            }
-            return o;
-        }
-    }
-    let _ = writeln!(o, "photon_flux = \"{:.6e} einstein/s\"", flux.value);
-    if let Some((a, b)) = window
-        && a > 0.0
-        && b.is_finite()
-    {
-        let _ = writeln!(o, "from = {}\nto = {}", nm(a), nm(b));
-    }
-    o
-}
-
-fn toml_string(s: &str) -> String {
-    format!("\"{}\"", s.replace('\\', "\\\\").replace('"', "\\\""))
+    crate::file::write::light_block(&crate::file::write::LightBlock {
+        comments,
+        name,
+        kind,
+        window,
+        photon_flux: flux.value,
+    })
 }
 
 /// The ferrioxalate result as text.

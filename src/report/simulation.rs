@@ -80,6 +80,9 @@ pub struct Summary {
     pub method: MethodSummary,
     /// Final concentrations, mol/L, by species.
     pub final_concentrations_mol_per_l: Vec<(String, f64)>,
+    /// Volume of the solution, L: amounts in mol (the ledger's `formed`) are concentrations
+    /// times it, and their round-off limit is `method.atol` times it.
+    pub volume_l: f64,
     /// The unit of every photon amount in `photons`.
     pub photon_unit: String,
     /// The photon ledger at the end (amounts in einstein).
@@ -156,6 +159,7 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
             atol,
         },
         final_concentrations_mol_per_l: model.species.iter().cloned().zip(y.iter().copied()).collect(),
+        volume_l: model.volume,
         photon_unit: "einstein".into(),
         photons: tr.ledger(model, tr.times.len() - 1),
         negative_concentrations: tr
@@ -267,9 +271,17 @@ fn scale_for(max: f64, label: &str) -> (f64, String) {
 /// concentrations.svg.
 pub fn concentrations_svg(net: &Network, model: &Model, tr: &Trajectory, log_time: bool) -> String {
     // Solvent-like species (1 M or more at the start) would flatten every other curve.
+    // Round-off within the run's absolute tolerance of zero is drawn at 0: it neither dips
+    // below the axis nor, when a curve is all round-off, picks the axis unit (the CSV keeps it).
+    let zero = tr.zero_within();
     let series: Vec<(String, Vec<f64>)> = (0..model.n_species())
         .filter(|&i| model.initial[i] < 1.0)
-        .map(|i| (model.species[i].clone(), tr.series(i)))
+        .map(|i| {
+            (
+                model.species[i].clone(),
+                tr.series(i).into_iter().map(|c| zero.shown(c)).collect(),
+            )
+        })
         .collect();
     line_plot(
         &format!("{}: concentrations", net.about.name),
@@ -324,7 +336,12 @@ mod tests {
 
     /// A bundled network run for `until` s: (network, model, trajectory).
     fn run(until: f64) -> (Network, Model, Trajectory) {
-        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("networks/photoswitch.toml");
+        run_of("photoswitch.toml", until)
+    }
+
+    /// Bundled network `name` run for `until` s.
+    fn run_of(name: &str, until: f64) -> (Network, Model, Trajectory) {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("networks").join(name);
         let text = std::fs::read_to_string(&path).expect("bundled network");
         let loaded = crate::file::parse_text(&path, text).expect("parses");
         let net = crate::network::build(&loaded, &Overrides::none()).expect("builds");
@@ -346,5 +363,48 @@ mod tests {
         let start = crate::report::summary::network_summary(&net);
         assert!(start.contains("50 µM"), "{start}");
         assert!(svg.contains("concentration (µM)"), "axis not in µM");
+    }
+
+    #[test]
+    fn round_off_is_drawn_at_zero_and_never_picks_the_axis_unit() {
+        // The photoswitch run with every concentration replaced by round-off inside the run's
+        // absolute tolerance (1e-12 mol/L), alternating in sign, as a species that never forms
+        // leaves it: the plot must be the plot of zeros, not curves on a fM axis below zero.
+        let (net, model, mut tr) = run(600.0);
+        let n = model.n_species();
+        let mut zeros = tr.clone();
+        for (k, (y, z)) in tr.states.iter_mut().zip(zeros.states.iter_mut()).enumerate() {
+            for i in 0..n {
+                y[i] = if (k + i) % 2 == 0 { 4e-13 } else { -7e-13 };
+                z[i] = 0.0;
+            }
+        }
+        let noisy = concentrations_svg(&net, &model, &tr, false);
+        assert!(!noisy.contains("fM"), "round-off picked the axis unit");
+        assert_eq!(noisy, concentrations_svg(&net, &model, &zeros, false));
+        // The CSV keeps the raw numbers.
+        assert!(concentrations_csv(&model, &tr).contains("-7e-13"));
+    }
+
+    #[test]
+    fn a_product_formed_within_round_off_has_no_photon_cost() {
+        // A photoproduct whose amount is round-off (1e-18 mol/L in 3 mL, inside atol 1e-12
+        // mol/L): its "photons per molecule" would be a ratio of noise (~1e10).
+        let (net, model, tr) = run_of("photoswitch-side-product.toml", 600.0);
+        let mut s = summary(&net, &model, &tr, 1e-6, 1e-12);
+        let real = crate::report::summary::run_summary(&s);
+        assert!(real.contains("photons absorbed per molecule (apparent Φ"), "{real}");
+        let p = s.photons.products.first_mut().expect("a photoproduct");
+        p.formed = 1e-18 * s.volume_l;
+        p.photons_per_molecule = Some(s.photons.absorbed / p.formed);
+        p.apparent_quantum_yield = Some(p.formed / s.photons.absorbed);
+        let name = p.species.clone();
+        let text = crate::report::summary::run_summary(&s);
+        let line = text
+            .lines()
+            .skip_while(|l| !l.starts_with("products reached"))
+            .find(|l| l.trim_start().starts_with(&name))
+            .expect(&text);
+        assert!(line.ends_with("none formed"), "{line}");
     }
 }

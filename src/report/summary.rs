@@ -356,6 +356,9 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
             sig(100.0 * p.unproductive_fraction, 3)
         );
     }
+    // an amount within the integrator's tolerance (atol × volume) is round-off: none formed,
+    // and no photon cost is a ratio of it
+    let zero_mol = crate::units::display::ZeroWithin(s.method.atol * s.volume_l);
     if !p.products.is_empty() {
         let _ = writeln!(
             o,
@@ -363,7 +366,8 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
              of a thermal step fed by one)"
         );
         for pr in &p.products {
-            match pr.photons_per_molecule {
+            let cost = pr.photons_per_molecule.filter(|_| zero_mol.shown(pr.formed) > 0.0);
+            match cost {
                 Some(n) => {
                     let _ = writeln!(
                         o,
@@ -375,7 +379,7 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
                     );
                 }
                 // Formed by dark steps alone: no photon cost to give.
-                None if pr.formed > 0.0 => {
+                None if zero_mol.shown(pr.formed) > 0.0 => {
                     let _ = writeln!(
                         o,
                         "  {:<16} {} mol formed, no photons absorbed (formed by thermal steps alone)",
@@ -396,7 +400,12 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
              photoproduct feeds)"
         );
         for pr in &p.thermal_products {
-            let _ = writeln!(o, "  {:<16} {} mol formed", pr.species, sig(pr.formed, 4));
+            let _ = writeln!(
+                o,
+                "  {:<16} {} mol formed",
+                pr.species,
+                sig(zero_mol.shown(pr.formed), 4)
+            );
         }
     }
     let m = &s.method;

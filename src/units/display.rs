@@ -151,6 +151,19 @@ impl ZeroWithin {
         ZeroWithin((scale.abs() * rel).max(0.0))
     }
 
+    /// The limit of an exact derivative dY/dp when each Y carries round-off `rel` of `scale`: a
+    /// derivative whose effect over a unit relative change of p, |dY/dp|·|p|, stays within the
+    /// round-off rel·scale is not a dependence. E.g. a yield pinned at 1 by [`CHAIN_ROUNDOFF`],
+    /// p = 0.5: |dY/dp| ≤ 2e-10 reads 0. A p of 0 (or not finite) gives no limit.
+    pub fn derivative(scale: f64, rel: f64, p: f64) -> Self {
+        let span = p.abs();
+        if span > 0.0 && span.is_finite() {
+            ZeroWithin((scale.abs() * rel / span).max(0.0))
+        } else {
+            ZeroWithin::NONE
+        }
+    }
+
     /// The value to show: 0 when its magnitude is within the limit (so round-off such as
     /// −1.6e-15 mol/L reads 0, never a negative concentration), otherwise the value itself.
     /// NaN and infinite values pass through unchanged.
@@ -305,6 +318,13 @@ mod tests {
         // A chain statistic: sd 7.067e-14 of a mean of 1 is round-off.
         assert_eq!(ZeroWithin::relative(1.0, CHAIN_ROUNDOFF).shown(7.067e-14), 0.0);
         assert_eq!(ZeroWithin::relative(1.0, CHAIN_ROUNDOFF).shown(1e-6), 1e-6);
+        // A yield pinned at 1: an exact derivative of 4.4e-12 at p = 1 is round-off (limit
+        // 1e-10 of the yield); 1e-6 is a dependence.
+        let d = ZeroWithin::derivative(1.0, CHAIN_ROUNDOFF, 1.0);
+        assert_eq!(d.shown(4.441e-12), 0.0);
+        assert_eq!(d.shown(-9e-11), 0.0);
+        assert_eq!(d.shown(1e-6), 1e-6);
+        assert_eq!(ZeroWithin::derivative(1.0, CHAIN_ROUNDOFF, 0.0), ZeroWithin::NONE);
         assert_eq!(number(2.019), "2.019");
         assert_eq!(number(150.0), "150");
         assert_eq!(number(0.0125), "0.0125");

@@ -33,6 +33,31 @@ fn kinetics_check(sm: &crate::report::chain::Summary) -> String {
         d
     };
     let _ = writeln!(s, "<p class=\"note\">How the check is made: {}.</p>", esc(&a.method));
+    match (&a.yields, &a.yields_skipped) {
+        (Some(y), _) => {
+            let class = if y.agree { "note" } else { "caution" };
+            let _ = writeln!(
+                s,
+                "<div id=\"chain-yield-check\" class=\"{class}\"><p>{}.</p>\n<ul>",
+                esc(&upper_first(&y.headline()))
+            );
+            for l in y.end_lines() {
+                let _ = writeln!(s, "<li>{}</li>", esc(&l));
+            }
+            for r in &y.reasons {
+                let _ = writeln!(s, "<li>Why: {}</li>", esc(r));
+            }
+            let _ = writeln!(
+                s,
+                "</ul></div>\n<p class=\"note\">How the yields are compared: {}.</p>",
+                esc(&y.method)
+            );
+        }
+        (None, Some(why)) => {
+            let _ = writeln!(s, "<p class=\"note\">The yields were not compared: {}.</p>", esc(why));
+        }
+        (None, None) => {}
+    }
     s
 }
 
@@ -63,7 +88,8 @@ pub fn section(chain: &Result<ChainStudy, String>) -> String {
     for n in &sm.notes {
         s.push_str(&page::assumption(n));
     }
-    let ends: Vec<_> = sm.ends.iter().filter(|e| e.yield_fraction > 1e-12).collect();
+    let zero = sm.yield_zero();
+    let ends: Vec<_> = sm.ends.iter().filter(|e| zero.shown(e.yield_fraction) > 0.0).collect();
     let tmax = ends.iter().filter_map(|e| e.time_mean_s).fold(0.0, f64::max);
     let (tf, tu) = pick_unit(tmax, &TIME);
     let rows: Vec<String> = ends
@@ -150,12 +176,20 @@ pub fn section(chain: &Result<ChainStudy, String>) -> String {
             .iter()
             .take(TOP_SENSITIVITIES)
             .map(|x| {
-                let el = x.elasticity_photons.get(main).copied().flatten();
-                let dy = x.yield_derivative.get(main).copied();
+                // round-off reads 0 (`Summary::sensitivity_zero`)
+                let (dy_zero, el_zero) = sm.sensitivity_zero(x);
+                let el = x
+                    .elasticity_photons
+                    .get(main)
+                    .copied()
+                    .flatten()
+                    .map(|v| el_zero.shown(v));
+                let dy = x.yield_derivative.get(main).copied().map(|v| dy_zero.shown(v));
                 let per_barrier = x
                     .photons_per_barrier
                     .as_ref()
-                    .and_then(|b| b.get(main).copied().flatten());
+                    .and_then(|b| b.get(main).copied().flatten())
+                    .map(|b| if el == Some(0.0) { 0.0 } else { b });
                 format!(
                     "{}{}{}{}{}{}",
                     text_cell(&x.parameter),

@@ -24,7 +24,10 @@ pub fn section(p: &PlanStudy) -> String {
         (None, Some(u)) => s.push_str(&format!(
             "<p class=\"lede\">Not reached: {}. Closest: {} at {}; integrated for {}.</p>\n",
             esc(u.why.words()),
-            esc(&crate::units::format_concentration(u.best_level)),
+            esc(&crate::units::display::format_concentration_within(
+                u.best_level,
+                plan.trajectory.zero_within()
+            )),
             esc(&format_time(u.best_time)),
             esc(&format_time(u.horizon))
         )),
@@ -65,9 +68,15 @@ pub fn section(p: &PlanStudy) -> String {
         ],
         &[row],
     ));
-    if !plan.products.is_empty() {
+    // round-off within the run's absolute tolerance of zero reads 0
+    let products: Vec<_> = plan
+        .products
+        .iter()
+        .map(|x| crate::report::plan::shown_share(x, plan.trajectory.zero_within()))
+        .collect();
+    if !products.is_empty() {
         let (cf, cu) = pick_unit(
-            plan.products.iter().map(|x| x.formed.abs()).fold(0.0, f64::max),
+            products.iter().map(|x| x.formed.abs()).fold(0.0, f64::max),
             &CONCENTRATION,
         );
         let rows: Vec<String> = plan

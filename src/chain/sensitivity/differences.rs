@@ -1,44 +1,32 @@
-//! Sensitivities of the yields and photon costs to every quantum yield, fraction, rate and
-//! barrier, by central finite differences through the chain construction: each parameter p is
-//! moved to p(1 ± h) with h = 1e-4, the chain rebuilt and analysed (without the distribution).
+//! The reference the exact sensitivities are checked against: central finite differences
+//! through the chain construction. Each parameter p is moved to p(1 ± h) with h = 1e-4, the
+//! chain rebuilt and analysed (without the distribution): one chain and one factorisation per
+//! parameter and side, so it is slow on large networks and kept for the tests only.
 //! At an upper bound (a quantum yield whose absorber's yields already sum to 1, a fraction of 1)
 //! the difference is one-sided, from p(1 − h) to p.
 //! For rate constants given by a barrier E (Eyring ΔG‡ or ΔH‡, Arrhenius Ea), k ∝ exp(−E/RT)
 //! at fixed temperature, so ∂/∂E = −(k/RT) ∂/∂k exactly; barriers are reported per kcal/mol.
 
-use super::build::{self, Parameter, Settings, Values};
-use super::{Analysis, Options, analyse};
+use super::Sensitivity;
+use crate::chain::build::{self, Parameter, Settings, Values};
+use crate::chain::{Analysis, Options, analyse};
 use crate::error::Result;
 use crate::model::Model;
 use crate::network::Network;
 use crate::units::constants::{CALORIE, GAS_CONSTANT};
-use serde::Serialize;
 
 /// Relative step of the finite differences.
 pub const STEP: f64 = 1e-4;
 
-/// How one parameter moves the answer, per absorbing state of the chain.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Sensitivity {
-    /// What the parameter is.
-    pub parameter: String,
-    /// Its value, in `unit`.
-    pub value: f64,
-    /// Unit of `value`, written out.
-    pub unit: String,
-    /// d ln(mean photons | end k) / d ln(parameter), per absorbing state (None where not defined).
-    pub elasticity_photons: Vec<Option<f64>>,
-    /// d(yield of k) / d(parameter), in 1/`unit`.
-    pub yield_derivative: Vec<f64>,
-    /// For a rate given by a barrier: d ln(mean photons | end k) / d(barrier), per kcal/mol.
-    pub photons_per_barrier: Option<Vec<Option<f64>>>,
-    /// For a rate given by a barrier: d(yield of k) / d(barrier), per kcal/mol.
-    pub yield_per_barrier: Option<Vec<f64>>,
-}
-
-/// Sensitivities for every parameter of [`build::parameters`], for a molecule started from
-/// `start` (a distribution over the chain's states, which are the same for every parameter).
-pub fn sensitivities(model: &Model, net: &Network, settings: &Settings, start: &[f64]) -> Result<Vec<Sensitivity>> {
+/// Sensitivities for every parameter of [`build::parameters`] by finite differences, for a
+/// molecule started from `start` (a distribution over the chain's states, which are the same
+/// for every parameter): the reference for [`super::sensitivities`].
+pub fn finite_differences(
+    model: &Model,
+    net: &Network,
+    settings: &Settings,
+    start: &[f64],
+) -> Result<Vec<Sensitivity>> {
     let base = Values::of(model, net);
     let opts = Options {
         distribution: false,

@@ -1,0 +1,161 @@
+//! From the parsed file to a validated [`Network`]: units, names, numbers.
+//!
+//! Every problem is collected (not just the first), each located in the file, into a
+//! [`Sink`]. One file per concern: `conditions.rs` (about, reactor), `spectra.rs` (spectrum-valued
+//! fields), `light.rs` (light sources), `species.rs` (species, transient names, name
+//! resolution), `rates.rs` (rate laws and their `--set` overrides, shares), `steps.rs` (thermal and
+//! photochemical steps), `transients.rs` (channels), `unused.rs` (why a `--set` key matched
+//! nothing). Checks that need the whole network are in `../checks.rs`; rates and yields derived
+//! from frequencies in `../derived.rs`; both take the same sink.
+
+mod conditions;
+mod light;
+mod rates;
+mod species;
+mod spectra;
+mod steps;
+mod transients;
+mod unused;
+
+use super::derived::{self, Derived};
+use super::diagnostics::{Field, Places, Sink, span};
+use super::overrides::Overrides;
+use super::*;
+use crate::error::{Error, Origin};
+use crate::file::Loaded;
+use crate::file::schema::Text;
+use crate::light::Spectrum;
+use crate::units::Quantity;
+use std::collections::BTreeMap;
+
+/// Validate a loaded file with overrides into a [`Network`], or every problem found.
+pub fn build(loaded: &Loaded, overrides: &Overrides) -> Result<Network> {
+    let mut b = Builder {
+        loaded,
+        overrides,
+        sink: Sink::new(&loaded.path, &loaded.text),
+        at: Places::default(),
+    };
+    let net = b.network();
+    for key in overrides.unused() {
+        let d = unused::unused_override(loaded, &key);
+        b.sink.push(d.in_file(&loaded.path));
+    }
+    let has_error = b.sink.has_error();
+    let mut diags = b.sink.into_diagnostics();
+    match net {
+        Some(mut n) if !has_error => {
+            n.warnings = diags;
+            Ok(n)
+        }
+        _ => {
+            diags.sort_by_key(|d| (std::cmp::Reverse(d.severity), d.line_col));
+            Err(Error::Invalid(diags))
+        }
+    }
+}
+
+/// The state of one build: the file, the overrides, the diagnostics and where items were.
+struct Builder<'a> {
+    loaded: &'a Loaded,
+    overrides: &'a Overrides,
+    sink: Sink<'a>,
+    /// Where each built species, thermal step and photo step was written.
+    at: Places,
+}
+
+/// The names known while resolving.
+struct Names<'a> {
+    species: &'a [Species],
+    transients: &'a [(String, TransientKind)],
+}
+
+impl<'a> Builder<'a> {
+    fn error(&mut self, field: &str, origin: &Origin, msg: impl Into<String>, help: Option<String>) {
+        self.sink.error(field, origin, msg, help);
+    }
+
+    fn warn(&mut self, field: &str, origin: &Origin, msg: impl Into<String>, help: Option<String>) {
+        self.sink.warn(field, origin, msg, help);
+    }
+
+    fn quantity(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
+        self.sink.quantity(field, f, q)
+    }
+
+    fn positive(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
+        self.sink.positive(field, f, q)
+    }
+
+    fn required(&mut self, field: &str, f: Option<Field>, at: &Origin, q: Quantity) -> Option<f64> {
+        self.sink.required(field, f, at, q)
+    }
+
+    /// The rates and yields derived from frequencies, reporting into this build's sink.
+    fn derived(&mut self) -> Derived<'_, 'a> {
+        let loaded: &'a Loaded = self.loaded;
+        Derived {
+            sink: &mut self.sink,
+            frequency_files: &loaded.frequency_files,
+        }
+    }
+
+    /// A string field from the file, or its `--set` value when `key` was given one.
+    fn field(&self, value: Option<&Text>, key: Option<&str>) -> Option<Field> {
+        if let Some(k) = key
+            && let Some(v) = self.overrides.get(k)
+        {
+            return Some(Field {
+                value: v.to_string(),
+                origin: Origin::CommandLine,
+            });
+        }
+        value.map(|t| Field {
+            value: t.get_ref().clone(),
+            origin: span(t),
+        })
+    }
+
+    fn network(&mut self) -> Option<Network> {
+        let doc = &self.loaded.doc;
+        let about = self.about(doc);
+        let conditions = self.conditions(doc);
+        let lights = self.lights(doc, conditions.as_ref());
+        let mut names: BTreeMap<String, Origin> = BTreeMap::new();
+        let species = self.species(doc, &mut names);
+        let transient_heads = self.transient_heads(doc, &mut names);
+        // With broken conditions, go on checking the rest at a stand-in temperature so every
+        // problem is listed; the network is not returned (an error was recorded).
+        let conditions = conditions.unwrap_or(Conditions {
+            temperature: 298.15,
+            volume: 1e-3,
+            path_length: 0.01,
+            irradiated_area: None,
+            background: Spectrum::Constant { value: 0.0, at: None },
+        });
+        let t = conditions.temperature;
+        let resolver = Names {
+            species: &species,
+            transients: &transient_heads,
+        };
+        let thermal = self.thermal(doc, &resolver, t);
+        let photo = self.photo(doc, &resolver);
+        let photon = derived::absorbed_photon_energy(doc, &transient_heads, &lights, &species, &photo);
+        let transients = self.transients(doc, &resolver, &transient_heads, t, &photon);
+        let mut net = Network {
+            source: Some(self.loaded.path.clone()),
+            about,
+            conditions,
+            lights,
+            species,
+            thermal,
+            photo,
+            transients,
+            graph: Default::default(),
+            warnings: Vec::new(),
+        };
+        super::checks::check_network(&mut self.sink, &self.at, &mut net);
+        net.graph = super::checks::graph(&net);
+        Some(net)
+    }
+}

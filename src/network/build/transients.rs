@@ -1,0 +1,327 @@
+//! Transients (`[[transient]]`) and their channels: where each leads, its share (a fraction,
+//! the rest, a rate, quenching by a partner, or a hot channel whose yield is computed in
+//! `../derived.rs`), and the sums of fixed fractions.
+
+use super::{Builder, Names};
+use crate::error::Origin;
+use crate::file::schema;
+use crate::network::derived::AbsorbedEnergy;
+use crate::network::diagnostics::{origin, span};
+use crate::network::{Branching, Channel, Target, Transient, TransientKind, equation};
+use crate::units;
+use toml::Spanned;
+
+impl Builder<'_> {
+    pub(super) fn transients(
+        &mut self,
+        doc: &schema::NetworkFile,
+        names: &Names,
+        heads: &[(String, TransientKind)],
+        temperature: f64,
+        photon: &[AbsorbedEnergy],
+    ) -> Vec<Transient> {
+        let mut out = Vec::new();
+        for (i, t) in doc.transient.iter().enumerate() {
+            let (name, kind) = heads[i].clone();
+            let at = span(t);
+            self.at.transients.push(at.clone());
+            if name.is_empty() {
+                out.push(Transient {
+                    name,
+                    kind,
+                    channels: Vec::new(),
+                    energy_from: None,
+                    hot: None,
+                });
+                continue;
+            }
+            let field = format!("transient \"{name}\"");
+            let mut channels = Vec::new();
+            let mut hot = Vec::new();
+            let mut hot_broken = false;
+            for (j, c) in t.get_ref().channels.iter().enumerate() {
+                let cat = span(c);
+                let cf = format!("{field}.channels[{j}]");
+                let e = c.get_ref();
+                let Some(target) = self.channel_target(&cf, c, heads, names) else {
+                    continue;
+                };
+                if let Some(h) = &e.hot {
+                    if e.fraction.is_some() || e.rate.is_some() || e.quencher.is_some() {
+                        self.error(
+                            &cf,
+                            &cat,
+                            "a hot channel takes no fraction, rate or quencher: its yield is computed",
+                            Some("give hot = { barrier, ts_frequencies } alone".into()),
+                        );
+                        hot_broken = true;
+                        continue;
+                    }
+                    match self.derived().hot_spec(&format!("{cf}.hot"), h, channels.len()) {
+                        Some(spec) => hot.push(spec),
+                        None => {
+                            hot_broken = true;
+                            continue;
+                        }
+                    }
+                    channels.push((
+                        Channel {
+                            target,
+                            branching: Branching::Hot {
+                                fraction: f64::NAN,
+                                barrier: f64::NAN,
+                                energy: f64::NAN,
+                                cooling: f64::NAN,
+                                rate_at_start: f64::NAN,
+                            },
+                            returns: false,
+                        },
+                        cat,
+                    ));
+                    continue;
+                }
+                let ck = format!("transient.{name}.channels[{j}]");
+                let Some(branching) = self.branching(&cf, c, &ck, names, temperature) else {
+                    continue;
+                };
+                channels.push((
+                    Channel {
+                        target,
+                        branching,
+                        returns: false,
+                    },
+                    cat,
+                ));
+            }
+            // A channel already reported as broken would only add follow-on errors about sums.
+            let complete = channels.len() == t.get_ref().channels.len() && !hot_broken;
+            let mut hot_model = None;
+            let hot_ok = complete
+                && self.derived().hot_yields(
+                    &field,
+                    t,
+                    kind,
+                    &hot,
+                    &mut channels,
+                    &photon[i],
+                    &mut hot_model,
+                );
+            let photon_energy = t
+                .get_ref()
+                .energy
+                .as_ref()
+                .is_some_and(|e| e.get_ref().trim() == "photon");
+            if complete && hot_ok {
+                self.check_channels(&field, &at, &channels);
+            }
+            out.push(Transient {
+                name,
+                kind,
+                channels: channels.into_iter().map(|c| c.0).collect(),
+                energy_from: (photon_energy && !hot.is_empty()).then(|| photon[i].describe()),
+                hot: hot_model,
+            });
+        }
+        out
+    }
+
+    pub(super) fn check_channels(&mut self, field: &str, at: &Origin, channels: &[(Channel, Origin)]) {
+        if channels.is_empty() {
+            self.error(
+                &format!("{field}.channels"),
+                at,
+                "the transient has no channels, so no way out",
+                Some("add channels, e.g. channels = [{ to = \"A\", fraction = \"rest\" }]".into()),
+            );
+            return;
+        }
+        let fixed = channels
+            .iter()
+            .filter(|c| c.0.branching.fixed_share().is_some() || c.0.branching == Branching::Rest)
+            .count();
+        if fixed != 0 && fixed != channels.len() {
+            self.error(
+                &format!("{field}.channels"),
+                at,
+                "mixes fixed fractions with rates",
+                Some("give every channel a fraction (with one \"rest\"), or every channel a rate: the shares then follow from the rates".into()),
+            );
+            return;
+        }
+        if fixed == 0 {
+            return;
+        }
+        let rests: Vec<&Origin> = channels
+            .iter()
+            .filter(|c| c.0.branching == Branching::Rest)
+            .map(|c| &c.1)
+            .collect();
+        if rests.len() > 1 {
+            self.error(
+                &format!("{field}.channels"),
+                rests[1],
+                "more than one channel takes the rest",
+                Some("only one channel can be \"rest\"".into()),
+            );
+            return;
+        }
+        let sum: f64 = channels
+            .iter()
+            .map(|c| c.0.branching.fixed_share().unwrap_or(0.0))
+            .sum();
+        if sum > 1.0 + 1e-9 {
+            self.error(
+                &format!("{field}.channels"),
+                at,
+                format!("the fractions sum to {}, above 1", units::sig(sum, 6)),
+                Some("fractions out of one transient sum to at most 1".into()),
+            );
+        } else if sum < 1.0 - 1e-9 && rests.is_empty() {
+            self.error(
+                &format!("{field}.channels"),
+                at,
+                format!(
+                    "the fractions sum to {} and no channel takes the rest",
+                    units::sig(sum, 6)
+                ),
+                Some(
+                    "add a return channel, e.g. { to = \"A\", fraction = \"rest\" }, or make the fractions sum to 1"
+                        .into(),
+                ),
+            );
+        }
+    }
+
+    /// Where channel `cf` leads: a transient by name, or species (products).
+    pub(super) fn channel_target(
+        &mut self,
+        cf: &str,
+        c: &Spanned<schema::Channel>,
+        heads: &[(String, TransientKind)],
+        names: &Names,
+    ) -> Option<Target> {
+        let cat = span(c);
+        let e = c.get_ref();
+        let Some(to) = &e.to else {
+            self.error(
+                &format!("{cf}.to"),
+                &cat,
+                "is missing",
+                Some("a transient name, or products such as \"B\" or \"B + C\"".into()),
+            );
+            return None;
+        };
+        let to_s = to.get_ref().trim();
+        if let Some(k) = heads.iter().position(|h| h.0 == to_s) {
+            Some(Target::Transient(k))
+        } else {
+            let raw = match equation::parse_side(to_s) {
+                Ok(r) => r,
+                Err(m) => {
+                    self.error(&format!("{cf}.to"), &span(to), m, None);
+                    return None;
+                }
+            };
+            if raw.is_empty() {
+                self.error(
+                    &format!("{cf}.to"),
+                    &span(to),
+                    "leads nowhere",
+                    Some("name a species or a transient".into()),
+                );
+                return None;
+            }
+            let terms = self.terms(&format!("{cf}.to"), &span(to), &raw, names)?;
+            Some(Target::Species(terms))
+        }
+    }
+
+    /// The share of a channel that is not hot: a fixed fraction (or the rest), a first-order
+    /// rate, or bimolecular quenching; `ck` is the `--set` prefix of its fields.
+    pub(super) fn branching(
+        &mut self,
+        cf: &str,
+        c: &Spanned<schema::Channel>,
+        ck: &str,
+        names: &Names,
+        temperature: f64,
+    ) -> Option<Branching> {
+        let cat = span(c);
+        let e = c.get_ref();
+        let fraction = match (&e.fraction, &e.rate) {
+            // The channel taking the rest has no number of its own to set.
+            (Some(f), None) if !matches!(f.get_ref(), toml::Value::String(s) if s.trim() == "rest") => {
+                match self.overrides.get(&format!("{ck}.fraction")) {
+                    Some(v) => Some(Spanned::new(
+                        0..0,
+                        v.parse::<f64>()
+                            .map_or(toml::Value::String(v.to_string()), toml::Value::Float),
+                    )),
+                    None => Some(f.clone()),
+                }
+            }
+            _ => e.fraction.clone(),
+        };
+        let branching = match (&fraction, &e.rate, &e.quencher) {
+            (Some(f), None, None) => match f.get_ref() {
+                toml::Value::String(s) if s.trim() == "rest" => Branching::Rest,
+                toml::Value::Float(_) | toml::Value::Integer(_) | toml::Value::String(_) => {
+                    let x = self.share(&format!("{cf}.fraction"), &origin(f), f.get_ref())?;
+                    if !(0.0..=1.0).contains(&x) {
+                        self.error(
+                            &format!("{cf}.fraction"),
+                            &origin(f),
+                            format!("{x} is outside [0, 1]"),
+                            Some("a fraction lies in [0, 1], or \"rest\"".into()),
+                        );
+                        return None;
+                    }
+                    Branching::Fraction(x)
+                }
+                other => {
+                    self.error(
+                        &format!("{cf}.fraction"),
+                        &origin(f),
+                        format!("{other} is not a fraction"),
+                        Some("a number in [0, 1], or \"rest\"".into()),
+                    );
+                    return None;
+                }
+            },
+            (None, Some(r), None) => {
+                let law = self.rate_law(&format!("{cf}.rate"), r, 1, ck)?;
+                let k = law.rate_constant(temperature, 1);
+                Branching::Rate { law, k }
+            }
+            (None, Some(r), Some(q)) => {
+                let partner = self.resolve_species(&format!("{cf}.quencher"), &span(q), q.get_ref().trim(), names)?;
+                let law = self.rate_law(&format!("{cf}.rate"), r, 2, ck)?;
+                let k2 = law.rate_constant(temperature, 2);
+                Branching::Quenching { partner, law, k2 }
+            }
+            (None, None, Some(_)) => {
+                self.error(
+                    &format!("{cf}.rate"),
+                    &cat,
+                    "a quenching channel needs its bimolecular rate constant",
+                    Some("e.g. rate = { k = \"1e10 /(M s)\" }".into()),
+                );
+                return None;
+            }
+            (None, None, None) => {
+                self.error(cf, &cat, "needs a fraction or a rate", Some("fraction = 0.3, fraction = \"rest\", rate = { k = \"1e9 /s\" }, rate = { barrier = \"5 kcal/mol\" }, or quencher + rate".into()));
+                return None;
+            }
+            (Some(_), Some(_), _) | (Some(_), None, Some(_)) => {
+                self.error(
+                    cf,
+                    &cat,
+                    "has both a fraction and a rate",
+                    Some("give one: a channel's share is a fixed fraction or follows from its rate".into()),
+                );
+                return None;
+            }
+        };
+        Some(branching)
+    }
+}

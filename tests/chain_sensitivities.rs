@@ -1,0 +1,308 @@
+//! The chain's exact sensitivities (one factorisation, adjoint solves, ∂N = N ∂Q N) against
+//! central finite differences through the chain construction (`finite_differences`, which
+//! rebuilds and refactorises the chain at p(1 ± h)), on the bundled networks and on random
+//! small networks. Central differences agree with the derivative to O(h²) (common practice),
+//! so with h = 1e-4 they are a reference to about 1e-8 relative.
+
+use photoledger::chain::build::{self, Settings, Values};
+use photoledger::chain::sensitivity::{STEP, Sensitivity, finite_differences, sensitivities};
+use photoledger::chain::{Options, analyse};
+use photoledger::file::parse_text;
+use photoledger::model::Model;
+use photoledger::network::{Network, Overrides, build as build_network};
+use proptest::prelude::*;
+use std::path::Path;
+
+fn network(text: &str) -> Network {
+    let l = parse_text(Path::new("test.toml"), text.to_string()).expect("parses");
+    match build_network(&l, &Overrides::none()) {
+        Ok(n) => n,
+        Err(e) => panic!("{e}\n--- network ---\n{text}"),
+    }
+}
+
+/// Compare the exact sensitivities with the finite differences, parameter by parameter and end
+/// by end, as dimensionless numbers (d yield / d ln p and d ln photons / d ln p): within `rel`
+/// of the larger, or `abs` plus the rounding of the differences. That rounding is about
+/// ε κ / h, κ the condition of I − Q, which grows with the expected visits V (a molecule going
+/// round a cycle a thousand times makes each yield good to about 1000 ε): 20 ε V / h is allowed,
+/// divided by the yield for the photons (M = m/B). Ends with a yield below 1e-6 are left out.
+/// Parameters at an upper bound, where the reference is one-sided (O(h) from below), are held
+/// to `rel_bound`.
+fn agree(
+    what: &str,
+    model: &Model,
+    net: &Network,
+    start: &[f64],
+    rel: f64,
+    rel_bound: f64,
+    abs: f64,
+) -> Result<usize, String> {
+    let settings = Settings::default();
+    let exact = sensitivities(model, net, &settings, start).map_err(|e| e.to_string())?;
+    let fd = finite_differences(model, net, &settings, start).map_err(|e| e.to_string())?;
+    let params = build::parameters(model, net);
+    let chain = build::build(model, net, &settings, &Values::of(model, net)).unwrap();
+    let mut s = start.to_vec();
+    s.resize(chain.states.len(), 0.0);
+    let base = analyse(&chain, &s, &Options::default()).unwrap();
+    if exact.len() != fd.len() {
+        return Err(format!("{what}: {} exact vs {} differences", exact.len(), fd.len()));
+    }
+    let visits: f64 = base.visits.iter().sum::<f64>().max(1.0);
+    let noise = 20.0 * f64::EPSILON * visits / STEP;
+    let close = |a: f64, b: f64, rel: f64, floor: f64| (a - b).abs() <= rel * a.abs().max(b.abs()) + abs + floor;
+    let mut checked = 0;
+    for (x, y) in exact.iter().zip(&fd) {
+        assert_eq!(x.parameter, y.parameter);
+        let p = params.iter().find(|p| p.label == x.parameter).unwrap();
+        let tol = if p.value * (1.0 + STEP) <= p.upper {
+            rel
+        } else {
+            rel_bound
+        };
+        for k in 0..base.yields.len() {
+            if base.yields[k] < 1e-6 {
+                continue;
+            }
+            let (a, b) = (x.value * x.yield_derivative[k], y.value * y.yield_derivative[k]);
+            if !close(a, b, tol, noise) {
+                return Err(format!(
+                    "{what}: d yield({}) / d ln [{}]: exact {a:e}, differences {b:e}",
+                    chain.states[base.absorbing[k]].name, x.parameter
+                ));
+            }
+            if let (Some(a), Some(b)) = (x.elasticity_photons[k], y.elasticity_photons[k]) {
+                if !close(a, b, tol, noise / base.yields[k]) {
+                    return Err(format!(
+                        "{what}: d ln photons({}) / d ln [{}]: exact {a:e}, differences {b:e}",
+                        chain.states[base.absorbing[k]].name, x.parameter
+                    ));
+                }
+                checked += 1;
+            } else if x.elasticity_photons[k].is_some() != y.elasticity_photons[k].is_some() {
+                return Err(format!("{what}: photons defined for one only ({})", x.parameter));
+            }
+            barrier_agrees(what, x, y, k, tol, abs + 2.0 * noise)?; // per kcal/mol: × 1/RT ≈ 1.7
+            checked += 1;
+        }
+    }
+    Ok(checked)
+}
+
+fn barrier_agrees(what: &str, x: &Sensitivity, y: &Sensitivity, k: usize, rel: f64, abs: f64) -> Result<(), String> {
+    let (Some(a), Some(b)) = (&x.yield_per_barrier, &y.yield_per_barrier) else {
+        return if x.yield_per_barrier.is_some() == y.yield_per_barrier.is_some() {
+            Ok(())
+        } else {
+            Err(format!("{what}: barrier for one only ({})", x.parameter))
+        };
+    };
+    if (a[k] - b[k]).abs() <= rel * a[k].abs().max(b[k].abs()) + abs {
+        Ok(())
+    } else {
+        Err(format!(
+            "{what}: d yield / d barrier [{}]: {} vs {}",
+            x.parameter, a[k], b[k]
+        ))
+    }
+}
+
+/// Every bundled network, from its initial mixture: exact = finite differences.
+#[test]
+fn bundled_networks_agree_with_finite_differences() {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("networks");
+    let mut files: Vec<_> = std::fs::read_dir(&dir)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|e| e == "toml"))
+        .collect();
+    files.sort();
+    let mut done = 0;
+    for f in files {
+        let Ok(net) = photoledger::network::load(&f, &Overrides::none()) else {
+            continue;
+        };
+        let model = Model::compile(&net);
+        let Ok(chain) = build::build(&model, &net, &Settings::default(), &Values::of(&model, &net)) else {
+            continue;
+        };
+        if !chain.stuck().is_empty() {
+            continue; // no end: `ledger` refuses these
+        }
+        let Ok((start, _)) = build::start(&model, &chain, None) else {
+            continue;
+        };
+        let n = agree(&f.display().to_string(), &model, &net, &start, 1e-6, 1e-3, 1e-9).unwrap();
+        assert!(n > 0, "{}: nothing compared", f.display());
+        done += 1;
+    }
+    assert!(done >= 3, "only {done} bundled networks have a chain");
+}
+
+struct SplitMix(u64);
+impl SplitMix {
+    fn next(&mut self) -> f64 {
+        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
+        let mut z = self.0;
+        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+        z ^= z >> 31;
+        (z >> 11) as f64 / (1u64 << 53) as f64
+    }
+    fn below(&mut self, n: usize) -> usize {
+        ((self.next() * n as f64) as usize).min(n - 1)
+    }
+    /// Log-uniform between 10^lo and 10^hi.
+    fn decades(&mut self, lo: f64, hi: f64) -> f64 {
+        10f64.powf(lo + (hi - lo) * self.next())
+    }
+}
+
+/// An invented random network: species S0..S{n−1} (S0 and S1 absorb at 365 nm, the last is a
+/// product), a chain of first-order steps S_i -> S_{i+1} so every species reaches the product,
+/// extra first-order and bimolecular steps (one by an Eyring barrier), a short-form photo step
+/// of S0 and S1, an excitation of S0 into T0 (rate channels, oxygen quenching, a barrier) and
+/// a hot transient T1 with fixed fractions and "rest". Quantum yields of one absorber stay
+/// below 0.9 and fractions below 0.8, away from the upper bounds.
+fn random_network(seed: u64) -> String {
+    let mut r = SplitMix(seed);
+    let n = 4 + r.below(4);
+    let mut s = String::from(
+        "[conditions]\ntemperature = \"298.15 K\"\nvolume = \"1 mL\"\npath_length = \"1 cm\"\n\
+         [[light]]\nkind = \"line\"\nwavelength = \"365 nm\"\npower = \"10 mW\"\n",
+    );
+    for i in 0..n {
+        s.push_str(&format!("[[species]]\nname = \"S{i}\"\n"));
+        if i < 2 {
+            s.push_str(&format!(
+                "initial = \"{:.3} µM\"\nepsilon = {{ at = \"365 nm\", value = \"{:.0} L/(mol cm)\" }}\n",
+                1.0 + 20.0 * r.next(),
+                200.0 + 5000.0 * r.next()
+            ));
+        }
+        if i == n - 1 {
+            s.push_str("product = true\n");
+        }
+    }
+    s.push_str("[[species]]\nname = \"O2\"\ninitial = \"0.25 mM\"\n");
+    let other = |r: &mut SplitMix, not: usize| {
+        let j = 1 + r.below(n - 1);
+        if j == not { (j % (n - 1)) + 1 } else { j }
+    };
+    for i in 0..n - 1 {
+        s.push_str(&format!(
+            "[[thermal]]\nequation = \"S{i} -> S{}\"\nrate = {{ k = \"{:.4e} /s\" }}\n",
+            i + 1,
+            r.decades(-4.0, 0.0)
+        ));
+    }
+    for _ in 0..1 + r.below(3) {
+        let a = r.below(n - 1);
+        let b = other(&mut r, a);
+        s.push_str(&format!(
+            "[[thermal]]\nequation = \"S{a} -> S{b}\"\nrate = {{ k = \"{:.4e} /s\" }}\n",
+            r.decades(-4.0, 0.0)
+        ));
+    }
+    let a = 2 + r.below(n - 2);
+    s.push_str(&format!(
+        "[[thermal]]\nequation = \"S{} + S1 -> S{}\"\nrate = {{ k = \"{:.4e} /(M s)\" }}\n",
+        a.min(n - 2),
+        n - 1,
+        r.decades(0.0, 4.0)
+    ));
+    s.push_str(&format!(
+        "[[thermal]]\nequation = \"S1 -> S0\"\nrate = {{ barrier = \"{:.3} kcal/mol\" }}\n",
+        19.0 + 3.0 * r.next()
+    ));
+    let (q0, eta) = (0.05 + 0.35 * r.next(), 0.1 + 0.4 * r.next());
+    s.push_str(&format!(
+        "[[photo]]\nname = \"S0 direct\"\nequation = \"S0 -> S{}\"\nquantum_yield = {q0:.4}\n",
+        other(&mut r, 0)
+    ));
+    s.push_str(&format!(
+        "[[photo]]\nname = \"S1 direct\"\nequation = \"S1 -> S{}\"\nquantum_yield = {:.4}\n",
+        other(&mut r, 1),
+        0.05 + 0.6 * r.next()
+    ));
+    s.push_str(&format!(
+        "[[photo]]\nname = \"S0 excitation\"\nabsorber = \"S0\"\nexcites = \"T0\"\nefficiency = {eta:.4}\n"
+    ));
+    s.push_str(&format!(
+        "[[transient]]\nname = \"T0\"\nkind = \"excited\"\nchannels = [\n  {{ to = \"S0\", rate = {{ k = \"{:.4e} /s\" }} }},\n  \
+         {{ to = \"T1\", rate = {{ k = \"{:.4e} /s\" }} }},\n  {{ to = \"S{}\", rate = {{ barrier = \"{:.3} kcal/mol\" }} }},\n  \
+         {{ to = \"S0\", quencher = \"O2\", rate = {{ k = \"{:.4e} /(M s)\" }} }},\n]\n",
+        r.decades(7.0, 9.0),
+        r.decades(7.0, 9.0),
+        other(&mut r, 0),
+        3.0 + 3.0 * r.next(),
+        r.decades(9.0, 10.3),
+    ));
+    let (f1, f2) = (0.05 + 0.35 * r.next(), 0.05 + 0.35 * r.next());
+    s.push_str(&format!(
+        "[[transient]]\nname = \"T1\"\nkind = \"hot\"\nchannels = [\n  {{ to = \"S{}\", fraction = {f1:.4} }},\n  \
+         {{ to = \"S{}\", fraction = {f2:.4} }},\n  {{ to = \"S0\", fraction = \"rest\" }},\n]\n",
+        other(&mut r, 0),
+        n - 1
+    ));
+    s
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(48))]
+    /// Random small networks: every exact sensitivity equals the central difference to 1e-6.
+    #[test]
+    fn random_networks_agree_with_central_differences(seed in any::<u64>(), from_s1 in any::<bool>()) {
+        let text = random_network(seed);
+        let net = network(&text);
+        let model = Model::compile(&net);
+        let chain = build::build(&model, &net, &Settings::default(), &Values::of(&model, &net)).unwrap();
+        prop_assert!(chain.stuck().is_empty(), "{}", text);
+        let (start, _) = build::start(&model, &chain, Some(if from_s1 { "S1" } else { "S0" })).unwrap();
+        let n = agree("random", &model, &net, &start, 1e-6, 1e-6, 1e-10);
+        prop_assert!(n.is_ok(), "{}\n--- network ---\n{}", n.unwrap_err(), text);
+        prop_assert!(n.unwrap() > 10);
+    }
+}
+
+/// `bench --write` writes the generated network as a file `ledger` reads, and `ledger` on it
+/// reports a sensitivity for every rate constant and quantum yield, found exactly (the method
+/// note in `summary.json` says so; it named finite differences before).
+#[test]
+fn ledger_on_a_written_generated_network() {
+    let bin = env!("CARGO_BIN_EXE_photoledger");
+    let dir = std::env::temp_dir().join(format!("photoledger-chain-sens-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let run = |args: &[&str]| {
+        let o = std::process::Command::new(bin)
+            .args(args)
+            .current_dir(&dir)
+            .output()
+            .unwrap();
+        assert!(o.status.success(), "{args:?}: {}", String::from_utf8_lossy(&o.stderr));
+        String::from_utf8_lossy(&o.stdout).into_owned()
+    };
+    let said = run(&[
+        "bench",
+        "--write",
+        "gen.toml",
+        "--species",
+        "60",
+        "--steps",
+        "200",
+        "--absorbers",
+        "5",
+    ]);
+    assert!(said.contains("gen.toml"), "{said}");
+    let net = photoledger::network::load(&dir.join("gen.toml"), &Overrides::none()).unwrap();
+    assert_eq!((net.species.len(), net.thermal.len(), net.photo.len()), (60, 200, 5));
+    run(&["ledger", "gen.toml", "--out", "out"]);
+    let summary: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(dir.join("out/summary.json")).unwrap()).unwrap();
+    let method = summary["sensitivity_method"].as_str().unwrap();
+    assert!(method.starts_with("exact derivatives"), "{method}");
+    assert_eq!(summary["sensitivities"].as_array().unwrap().len(), 205);
+    let _ = std::fs::remove_dir_all(&dir);
+}
