@@ -116,8 +116,7 @@ pub fn fit_study(
     let rival_fits = rivals
         .par_iter()
         .map(|(name, n, free)| {
-            fit_run::fit_network(n, free, &experiments, opts, &|_| {})
-                .map_err(|e| fit_run::named_error(name, e))
+            fit_run::fit_network(n, free, &experiments, opts, &|_| {}).map_err(|e| fit_run::named_error(name, e))
         })
         .collect::<Result<Vec<_>>>()?;
     let rivals: Vec<(String, Fitted)> = rivals.iter().map(|r| r.0.clone()).zip(rival_fits).collect();

@@ -95,11 +95,7 @@ pub fn run(a: &ReportArgs) -> photoledger::Result<Exit> {
     if !a.data.is_empty() {
         let experiments = super::fit::read_data(&a.data)?;
         let loaded = photoledger::file::load(&a.net.file)?;
-        let candidate = (
-            a.net.file.display().to_string(),
-            net.clone(),
-            loaded.free_keys(&a.free),
-        );
+        let candidate = (a.net.file.display().to_string(), net.clone(), loaded.free_keys(&a.free));
         let rivals = a
             .rival
             .iter()

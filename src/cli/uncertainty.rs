@@ -78,7 +78,6 @@ fn read(path: &Path) -> photoledger::Result<String> {
     })
 }
 
-
 /// Run `uncertainty`; [`Exit::Unreachable`] when a `--target` is reached by no sample (the
 /// outputs are written all the same, every sample counted as censored).
 pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {

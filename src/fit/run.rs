@@ -4,8 +4,8 @@
 use super::compare;
 use super::mechanism::{self, Accuracy, Curve, FitOptions, FitResult, Progress, Setup};
 use crate::error::{Error, Result};
-use crate::network::Network;
 use crate::file::data::Experiment;
+use crate::network::Network;
 
 /// One fitted network: the fit, dense fitted curves per experiment and the predictions at the
 /// data points (mol/L, or fractions for yields), in experiment order.

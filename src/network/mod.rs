@@ -40,7 +40,8 @@ pub fn fingerprint(net: &Network) -> u64 {
         "{:?}{:?}{:?}{:?}{:?}{:?}{:?}",
         net.about, net.conditions, net.lights, net.species, net.thermal, net.photo, net.transients
     );
-    text.bytes().fold(0xcbf29ce484222325, |h, b| (h ^ b as u64).wrapping_mul(0x100000001b3))
+    text.bytes()
+        .fold(0xcbf29ce484222325, |h, b| (h ^ b as u64).wrapping_mul(0x100000001b3))
 }
 
 /// Name, description and provenance of a network.

@@ -452,8 +452,12 @@ fn typed(base: &Network, q: &spec::Parameter) -> std::result::Result<(Key, Strin
     };
     let nominal = q.distribution.nominal();
     let mut trial = base.clone();
-    params::set(&mut trial, key, map.0 + map.1 * nominal)
-        .map_err(|m| format!("the network does not take {} at this key: {m}", q.override_text(nominal)))?;
+    params::set(&mut trial, key, map.0 + map.1 * nominal).map_err(|m| {
+        format!(
+            "the network does not take {} at this key: {m}",
+            q.override_text(nominal)
+        )
+    })?;
     Ok((key, unit, map))
 }
 

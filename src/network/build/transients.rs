@@ -97,15 +97,9 @@ impl Builder<'_> {
             let complete = channels.len() == t.get_ref().channels.len() && !hot_broken;
             let mut hot_model = None;
             let hot_ok = complete
-                && self.derived().hot_yields(
-                    &field,
-                    t,
-                    kind,
-                    &hot,
-                    &mut channels,
-                    &photon[i],
-                    &mut hot_model,
-                );
+                && self
+                    .derived()
+                    .hot_yields(&field, t, kind, &hot, &mut channels, &photon[i], &mut hot_model);
             let photon_energy = t
                 .get_ref()
                 .energy

@@ -264,6 +264,27 @@ pub fn set(net: &mut Network, key: Key, value: f64) -> Result<(), String> {
     Ok(())
 }
 
+/// The network on either side of the parameter at `key`, for a derivative: at θ + h and θ − h
+/// when both are allowed, else at θ + h and θ (or θ and θ − h) where the value sits at an end
+/// of its range. Returns (network above, network below, their difference in θ).
+pub fn around(net: &Network, key: Key, h: f64) -> Result<(Network, Network, f64), String> {
+    let theta = get(net, key).value;
+    let h = h.abs();
+    if !(h > 0.0 && h.is_finite()) {
+        return Err(format!("{}: a step of {h} cannot give a derivative", key.spell(net)));
+    }
+    let side = |v: f64| {
+        let mut n = net.clone();
+        set(&mut n, key, v).map(|()| n)
+    };
+    match (side(theta + h), side(theta - h)) {
+        (Ok(p), Ok(m)) => Ok((p, m, 2.0 * h)),
+        (Ok(p), Err(_)) => Ok((p, net.clone(), h)),
+        (Err(_), Ok(m)) => Ok((net.clone(), m, h)),
+        (Err(e), Err(_)) => Err(e),
+    }
+}
+
 /// Set several parameters in order (each as [`set`]).
 pub fn set_all(net: &mut Network, values: &[(Key, f64)]) -> Result<(), String> {
     let mut trial = net.clone();
