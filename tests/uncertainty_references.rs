@@ -374,7 +374,7 @@ fn bad_distribution_specs_are_located_errors() {
         (
             "key = \"species.Q.initial\"\nnormal = \"1 mM ± 0.1 mM\"",
             "species.Q.initial",
-            "does not take",
+            "no species called \"Q\"",
         ),
         (
             "key = \"light.lamp.power\"\nnormal = \"1 mM ± 0.1 mM\"",

@@ -95,11 +95,12 @@ impl Builder<'_> {
             }
             // A channel already reported as broken would only add follow-on errors about sums.
             let complete = channels.len() == t.get_ref().channels.len() && !hot_broken;
-            let mut hot_model = None;
-            let hot_ok = complete
-                && self
-                    .derived()
-                    .hot_yields(&field, t, kind, &hot, &mut channels, &photon[i], &mut hot_model);
+            let (hot_ok, hot_model) = if complete {
+                self.derived()
+                    .hot_yields(&field, t, kind, &hot, &mut channels, &photon[i])
+            } else {
+                (false, None)
+            };
             let photon_energy = t
                 .get_ref()
                 .energy
