@@ -9,7 +9,6 @@
 use crate::barrier::{self, Verdict};
 use crate::chain::{self, Analysis};
 use crate::error::Result;
-use crate::file::Loaded;
 use crate::file::data::Experiment;
 use crate::fit::mechanism::FitOptions;
 use crate::fit::run::{self as fit_run, Fitted, Ranking};
@@ -100,25 +99,24 @@ pub struct FitStudy {
     pub ranking: Option<Ranking>,
 }
 
-/// Fit `loaded` (named `network`, `base` overrides for every experiment, `free` keys or its
-/// `[fit] free` list) to `experiments`, exactly as the `fit` command does; fit each rival with
-/// its own `[fit] free` list and rank all of them as `compare` does.
+/// One network to fit: its name, the network as built and the keys it frees.
+pub type Candidate = (String, Network, Vec<String>);
+
+/// Fit `candidate` to `experiments`, exactly as the `fit` command does; fit each rival with its
+/// own free keys and rank all of them as `compare` does.
 pub fn fit_study(
-    network: &str,
-    loaded: &Loaded,
-    base: Vec<(String, String)>,
-    free: &[String],
+    candidate: &Candidate,
     experiments: Vec<Experiment>,
-    rivals: &[(String, Loaded)],
+    rivals: &[Candidate],
     opts: &FitOptions,
 ) -> Result<FitStudy> {
     use rayon::prelude::*;
-    let fitted = fit_run::fit_loaded(loaded, base, free, &experiments, opts, &|_| {})?;
+    let (network, net, free) = candidate;
+    let fitted = fit_run::fit_network(net, free, &experiments, opts, &|_| {})?;
     let rival_fits = rivals
         .par_iter()
-        .map(|(name, l)| {
-            fit_run::fit_loaded(l, Vec::new(), &[], &experiments, opts, &|_| {})
-                .map_err(|e| fit_run::named_error(name, e))
+        .map(|(name, n, free)| {
+            fit_run::fit_network(n, free, &experiments, opts, &|_| {}).map_err(|e| fit_run::named_error(name, e))
         })
         .collect::<Result<Vec<_>>>()?;
     let rivals: Vec<(String, Fitted)> = rivals.iter().map(|r| r.0.clone()).zip(rival_fits).collect();

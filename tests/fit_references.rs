@@ -184,14 +184,26 @@ fn fit_on(net: &str, experiments: &[Experiment]) -> FitResult {
 
 fn fit_with(net: &str, experiments: &[Experiment], opts: &FitOptions) -> FitResult {
     let loaded = photoledger::file::load(Path::new(net)).unwrap();
-    let setup = Setup::new(&loaded, vec![], experiments, &keys(), Accuracy::default()).unwrap();
+    let setup = Setup::new(
+        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
+        experiments,
+        &keys(),
+        Accuracy::default(),
+    )
+    .unwrap();
     mechanism::fit(&setup, opts, &|_| {}).unwrap()
 }
 
 fn synthetic(seed: u64) -> Vec<Experiment> {
     let loaded = photoledger::file::load(Path::new(NET)).unwrap();
     let t = demo();
-    let setup = Setup::new(&loaded, vec![], &t, &keys(), Accuracy::default()).unwrap();
+    let setup = Setup::new(
+        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
+        &t,
+        &keys(),
+        Accuracy::default(),
+    )
+    .unwrap();
     mechanism::synthesize(&setup, &TRUE, seed).unwrap()
 }
 
@@ -240,7 +252,12 @@ fn bad_data_name_the_file_and_line() {
     let loaded = photoledger::file::load(Path::new(NET)).unwrap();
     let mut t = demo();
     t[0].points[3].species = "Z-azobenzene".into();
-    let e = match Setup::new(&loaded, vec![], &t, &keys(), Accuracy::default()) {
+    let e = match Setup::new(
+        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
+        &t,
+        &keys(),
+        Accuracy::default(),
+    ) {
         Err(e) => e.to_string(),
         Ok(_) => panic!("an unknown species must be an error"),
     };
@@ -249,8 +266,7 @@ fn bad_data_name_the_file_and_line() {
         "{e}"
     );
     let e = Setup::new(
-        &loaded,
-        vec![],
+        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
         &demo(),
         &["photo.E to Y.quantum_yield".into()],
         Accuracy::default(),
@@ -301,7 +317,7 @@ fn regenerate_demo_data() {
 fn transformed_bounds_keep_a_fraction_inside() {
     // A fraction whose data say 1.2 stays below 1 and is flagged on its bound.
     let m = |p: &[f64]| Some(vec![(1.2 - p[0]) / 0.01, (1.2 - p[0]) / 0.01]);
-    let s = lsq::fit(&m, &[0.5], &[lsq::Transform::Logistic], &lsq::Settings::default()).unwrap();
+    let s = lsq::fit(&m, &[0.5], &[lsq::Transform::Logit], &lsq::Settings::default()).unwrap();
     assert!(s.values[0] <= 1.0 && s.values[0] > 0.999, "{}", s.values[0]);
     // On the edge of its range it has no linearised error: none is claimed (NaN).
     let (lo, hi) = s.intervals[0];
@@ -310,7 +326,7 @@ fn transformed_bounds_keep_a_fraction_inside() {
         "[{lo}, {hi}]"
     );
     assert!(
-        s.warnings(&[lsq::Transform::Logistic])
+        s.warnings(&[lsq::Transform::Logit])
             .contains(&lsq::Identifiability::AtBound(0))
     );
 }
@@ -394,7 +410,13 @@ fn end_points_agree_with_the_time_course_and_lifetimes_with_the_rates() {
         ep(EndpointKind::Yield("Z-azo".into())),
         ep(EndpointKind::Ratio("Z-azo".into(), "E-azo".into())),
     ];
-    let setup = Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).unwrap();
+    let setup = Setup::new(
+        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
+        &d,
+        &keys(),
+        Accuracy::default(),
+    )
+    .unwrap();
     let p = setup.predict(&d[0], &setup.start()).unwrap();
     let at = |s: &str| {
         let i = d[0]
@@ -445,7 +467,13 @@ fn a_quantum_yield_per_photon_absorbed_by_the_reactant_and_per_photon_absorbed_b
         ep(EndpointKind::ReactantQuantumYield("Z-azo".into(), "E-azo".into())),
         ep(EndpointKind::QuantumYield("Z-azo".into())),
     ];
-    let setup = Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).unwrap();
+    let setup = Setup::new(
+        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
+        &d,
+        &keys(),
+        Accuracy::default(),
+    )
+    .unwrap();
     let p = setup.predict(&d[0], &setup.start()).unwrap();
     assert!(
         rel(p.endpoints[0], 0.12) < 3e-4,
@@ -458,12 +486,23 @@ fn a_quantum_yield_per_photon_absorbed_by_the_reactant_and_per_photon_absorbed_b
     let mut both = d[0].clone();
     both.set.retain(|(k, _)| k != "light.blue LED.power");
     both.until = Some(3600.0);
-    let p = setup.predict(&both, &setup.start()).unwrap();
+    let both = [both];
+    let net = photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap();
+    let setup = Setup::new(&net, &both, &keys(), Accuracy::default()).unwrap();
+    let p = setup.predict(&both[0], &setup.start()).unwrap();
     assert!(p.endpoints[1] < 0.9 * p.endpoints[0], "{:?}", p.endpoints);
     // A reactant that absorbs nothing is an error naming the line.
     let mut d = demo();
     d[0].endpoints = vec![ep(EndpointKind::ReactantQuantumYield("Z-azo".into(), "nothing".into()))];
-    assert!(Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).is_err());
+    assert!(
+        Setup::new(
+            &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
+            &d,
+            &keys(),
+            Accuracy::default()
+        )
+        .is_err()
+    );
 }
 
 #[test]
@@ -571,7 +610,13 @@ fn fit_and_compare_through_the_binary() {
 fn multi_start_is_the_same_on_one_thread_and_on_two() {
     let loaded = photoledger::file::load(Path::new(NET)).unwrap();
     let d = demo();
-    let setup = Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).unwrap();
+    let setup = Setup::new(
+        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
+        &d,
+        &keys(),
+        Accuracy::default(),
+    )
+    .unwrap();
     let opts = FitOptions {
         starts: 3,
         seed: 11,
@@ -594,9 +639,12 @@ fn multi_start_is_the_same_on_one_thread_and_on_two() {
 /// A fit of `free` keys with `base` overrides on `experiments`.
 fn fit_keys(base: &[(&str, &str)], free: &[&str], experiments: &[Experiment], opts: &FitOptions) -> FitResult {
     let loaded = photoledger::file::load(Path::new(NET)).unwrap();
-    let base = base.iter().map(|(k, v)| (k.to_string(), v.to_string())).collect();
+    let set = base
+        .iter()
+        .fold(photoledger::network::Overrides::none(), |o, (k, v)| o.with(k, v));
+    let net = photoledger::network::build(&loaded, &set).unwrap();
     let free: Vec<String> = free.iter().map(|k| k.to_string()).collect();
-    let setup = Setup::new(&loaded, base, experiments, &free, Accuracy::default()).unwrap();
+    let setup = Setup::new(&net, experiments, &free, Accuracy::default()).unwrap();
     mechanism::fit(&setup, opts, &|_| {}).unwrap()
 }
 
@@ -664,7 +712,13 @@ fn the_evaluation_cap_and_the_time_limit_stop_a_fit_at_its_best_point() {
     let d = demo();
     let start_chi2 = {
         let loaded = photoledger::file::load(Path::new(NET)).unwrap();
-        let setup = Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).unwrap();
+        let setup = Setup::new(
+            &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
+            &d,
+            &keys(),
+            Accuracy::default(),
+        )
+        .unwrap();
         setup
             .residuals(&setup.start())
             .unwrap()
@@ -675,7 +729,13 @@ fn the_evaluation_cap_and_the_time_limit_stop_a_fit_at_its_best_point() {
     let seen = std::sync::Mutex::new(Vec::new());
     let capped = {
         let loaded = photoledger::file::load(Path::new(NET)).unwrap();
-        let setup = Setup::new(&loaded, vec![], &d, &keys(), Accuracy::default()).unwrap();
+        let setup = Setup::new(
+            &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
+            &d,
+            &keys(),
+            Accuracy::default(),
+        )
+        .unwrap();
         let opts = FitOptions {
             max_evaluations: 6,
             ..FitOptions::default()

@@ -46,8 +46,6 @@ fn sweep(spec: &str) -> Vec<(f64, f64)> {
     let model = Model::compile(&net);
     let spec = plan::sweep::parse(spec, &net).expect("spec");
     let base = plan::sweep::Base {
-        loaded: &loaded,
-        overrides: &[],
         network: &net,
         model: &model,
     };

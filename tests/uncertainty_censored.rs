@@ -60,7 +60,7 @@ fn samples_that_never_reach_the_target_are_counted_and_censored() {
         until: Some(horizon),
         target: Some("B > 1.9 mM".into()),
     };
-    let p = Problem::new(&l, vec![], space, settings).expect("problem");
+    let p = Problem::new(&net_of(&l), space, settings).expect("problem");
     let n = 60;
     let r = p.record(3, n, 0..n, &|| {});
     let s = summarise(&r);
@@ -117,4 +117,9 @@ fn samples_that_never_reach_the_target_are_counted_and_censored() {
     assert!(d.spearman.unwrap() > 0.5, "{d:?}");
     // The tornado chart includes the time to the target.
     assert!(report::tornado_svg("t", &s).contains("time_to_target"));
+}
+
+/// The network built from `l` with no `--set`.
+fn net_of(l: &photoledger::file::Loaded) -> photoledger::network::Network {
+    photoledger::network::build(l, &photoledger::network::Overrides::none()).expect("builds")
 }

@@ -139,7 +139,7 @@ fn linear_output_of_the_kinetics_propagates_mean_and_sd() {
         until: Some(1000.0),
         target: None,
     };
-    let p = Problem::new(&l, vec![], space, settings).unwrap();
+    let p = Problem::new(&net_of(&l), space, settings).unwrap();
     let n = 2000;
     let r = p.record(3, n, 0..n, &|| {});
     let col = r.header.outputs.iter().position(|c| c.name == "final[B]").unwrap();
@@ -210,7 +210,7 @@ fn given_data_sobol_indices_of_a_linear_model() {
 
 const POOL: &str = include_str!("../networks/prebiotic-pool.toml");
 
-fn pool_problem(l: &Loaded) -> Problem<'_> {
+fn pool_problem(l: &Loaded) -> Problem {
     let space = Space {
         independent: spec::read(l).unwrap(),
         fit: None,
@@ -220,7 +220,7 @@ fn pool_problem(l: &Loaded) -> Problem<'_> {
         until: Some(86400.0 * 10.0),
         target: Some("product > 10 % of aldehyde".into()),
     };
-    Problem::new(l, vec![], space, settings).unwrap()
+    Problem::new(&net_of(l), space, settings).unwrap()
 }
 
 #[test]
@@ -294,7 +294,7 @@ fn spec_error(block: &str) -> (usize, String, String) {
                 until: Some(10.0),
                 target: None,
             };
-            match Problem::new(&l, vec![], space, settings) {
+            match Problem::new(&net_of(&l), space, settings) {
                 Err(e) => e,
                 Ok(_) => panic!("accepted: {block}"),
             }
@@ -374,7 +374,7 @@ fn bad_distribution_specs_are_located_errors() {
         (
             "key = \"species.Q.initial\"\nnormal = \"1 mM ± 0.1 mM\"",
             "species.Q.initial",
-            "does not take",
+            "no species called \"Q\"",
         ),
         (
             "key = \"light.lamp.power\"\nnormal = \"1 mM ± 0.1 mM\"",
@@ -426,4 +426,9 @@ fn accepted_specs_read_in_internal_units() {
         ("K", "W", "M")
     );
     assert_eq!(ps[1].written, "normal = \"10 mW ± 10 %\"");
+}
+
+/// The network built from `l` with no `--set`.
+fn net_of(l: &photoledger::file::Loaded) -> photoledger::network::Network {
+    photoledger::network::build(l, &photoledger::network::Overrides::none()).expect("builds")
 }

@@ -21,8 +21,7 @@ use crate::network::{Branching, Network};
 use crate::rates::hot::hot_yields;
 use crate::rates::partition::Modes;
 use crate::rates::rrkm::Rrkm;
-use crate::rates::{RateLaw, eyring};
-use crate::units::constants::{BOLTZMANN, GAS_CONSTANT, PLANCK};
+use crate::rates::{RateLaw, eyring, eyring_barrier};
 use crate::units::display;
 
 fn check_probability(p: f64) -> Result<()> {
@@ -53,8 +52,7 @@ pub fn thermal_window(window: f64, temperature: f64, probability: f64, kappa: f6
         )));
     }
     let k_needed = -(-probability).ln_1p() / window;
-    let pre = kappa * BOLTZMANN * temperature / PLANCK;
-    Ok(GAS_CONSTANT * temperature * (pre / k_needed).ln())
+    Ok(eyring_barrier(k_needed, temperature, 1, kappa))
 }
 
 /// How the hot molecule's time runs out.

@@ -45,7 +45,7 @@ pub struct FitArgs {
     pub limits: Limits,
 }
 
-/// When a search gives up: shared by `fit` and `compare`.
+/// When a search gives up, and how it finds its slopes: shared by `fit` and `compare`.
 #[derive(clap::Args, Debug, Clone)]
 pub struct Limits {
     /// Stop after this many model evaluations over all starts (each integrates every experiment
@@ -56,6 +56,11 @@ pub struct Limits {
     /// so far is reported as not converged.
     #[arg(long, value_name = "TIME")]
     pub time_limit: Option<String>,
+    /// How the search finds its Jacobian: "sensitivities" (default: forward sensitivities of
+    /// the kinetics, one integration per experiment and evaluation) or "differences" (central
+    /// differences, two integrations per experiment and free parameter).
+    #[arg(long, default_value = "sensitivities", value_name = "HOW")]
+    pub derivatives: String,
 }
 
 impl Limits {
@@ -77,9 +82,11 @@ impl Limits {
                 Some(std::time::Duration::from_secs_f64(t))
             }
         };
+        let derivatives = photoledger::fit::mechanism::Derivatives::parse(&self.derivatives).map_err(Error::Usage)?;
         Ok(FitOptions {
             max_evaluations: self.max_evaluations,
             time_limit,
+            derivatives,
             ..opts
         })
     }
@@ -139,10 +146,11 @@ pub fn fit_one(
         file: file.to_path_buf(),
         set: set.to_vec(),
     };
-    super::print_warnings(&super::build(&loaded, &args)?);
-    let base = photoledger::Overrides::parse(set).map_err(Error::Usage)?.pairs();
+    let net = super::build(&loaded, &args)?;
+    super::print_warnings(&net);
     let pb = bar(opts.max_evaluations, &file.display().to_string());
-    let fitted = run::fit_loaded(&loaded, base, free, experiments, opts, &|p| show(&pb, p));
+    let free = loaded.free_keys(free);
+    let fitted = run::fit_network(&net, &free, experiments, opts, &|p| show(&pb, p));
     pb.finish_and_clear();
     let fitted = fitted?;
     Ok((loaded, fitted))

@@ -183,10 +183,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
     let name = net.about.name.clone();
     if let Some(sw) = &a.sweep {
         let sw = plan::sweep::parse(sw, &net)?;
-        let overrides = photoledger::Overrides::parse(&a.net.set).map_err(Error::Usage)?.pairs();
         let base = plan::sweep::Base {
-            loaded: &loaded,
-            overrides: &overrides,
             network: &net,
             model: &model,
         };

@@ -95,17 +95,18 @@ pub fn run(a: &ReportArgs) -> photoledger::Result<Exit> {
     if !a.data.is_empty() {
         let experiments = super::fit::read_data(&a.data)?;
         let loaded = photoledger::file::load(&a.net.file)?;
-        let base = photoledger::Overrides::parse(&a.net.set).map_err(Error::Usage)?.pairs();
+        let candidate = (a.net.file.display().to_string(), net.clone(), loaded.free_keys(&a.free));
         let rivals = a
             .rival
             .iter()
-            .map(|p| photoledger::file::load(p).map(|l| (p.display().to_string(), l)))
+            .map(|p| {
+                let l = photoledger::file::load(p)?;
+                let n = photoledger::network::build(&l, &photoledger::Overrides::none())?;
+                Ok((p.display().to_string(), n, l.free_keys(&[])))
+            })
             .collect::<photoledger::Result<Vec<_>>>()?;
         found.fit = Some(study::fit_study(
-            &a.net.file.display().to_string(),
-            &loaded,
-            base,
-            &a.free,
+            &candidate,
             experiments,
             &rivals,
             &FitOptions::default(),

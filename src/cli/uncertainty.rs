@@ -78,11 +78,6 @@ fn read(path: &Path) -> photoledger::Result<String> {
     })
 }
 
-fn base_overrides(set: &[String]) -> photoledger::Result<Vec<(String, String)>> {
-    // Same reading as every other command's --set.
-    Ok(photoledger::Overrides::parse(set).map_err(Error::Usage)?.pairs())
-}
-
 /// Run `uncertainty`; [`Exit::Unreachable`] when a `--target` is reached by no sample (the
 /// outputs are written all the same, every sample counted as censored).
 pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
@@ -101,7 +96,8 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
         file: file.clone(),
         set: a.set.clone(),
     };
-    super::print_warnings(&super::build(&loaded, &args)?);
+    let net = super::build(&loaded, &args)?;
+    super::print_warnings(&net);
     let mut space = Space {
         independent: spec::read(&loaded)?,
         fit: None,
@@ -122,7 +118,7 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
         until,
         target,
     };
-    let problem = Problem::new(&loaded, base_overrides(&a.set)?, space, settings)?;
+    let problem = Problem::new(&net, space, settings)?;
     let (range, shard) = match &a.shard {
         Some(s) => {
             let (k, n) = s

@@ -35,6 +35,22 @@ pub struct Loaded {
     pub frequency_files: BTreeMap<String, (PathBuf, std::result::Result<String, String>)>,
 }
 
+impl Loaded {
+    /// The keys a fit frees: `given` ones (trimmed, empty ones dropped), else the file's
+    /// `[fit] free` list.
+    pub fn free_keys(&self, given: &[String]) -> Vec<String> {
+        let given: Vec<String> = given
+            .iter()
+            .map(|k| k.trim().to_string())
+            .filter(|k| !k.is_empty())
+            .collect();
+        if !given.is_empty() {
+            return given;
+        }
+        self.doc.fit.as_ref().map_or(Vec::new(), |f| f.get_ref().free.clone())
+    }
+}
+
 /// Read and parse `path` and the CSV files it names.
 ///
 /// A TOML syntax error or an unknown key is an [`Error::Invalid`] with the line and column;

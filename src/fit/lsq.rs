@@ -30,75 +30,24 @@ pub enum ErrorScale {
     Unscaled,
 }
 
-/// How a parameter is kept in its range while fitting.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Transform {
-    /// Unbounded: fitted as itself.
-    Identity,
-    /// Positive: fitted as ln x.
-    Log,
-    /// In [0, 1]: fitted as logit x = ln(x / (1 − x)).
-    Logistic,
-}
-
-impl Transform {
-    /// Natural value to fitted value (clamped inside the open range so a start on a bound works).
-    pub fn forward(self, x: f64) -> f64 {
-        match self {
-            Transform::Identity => x,
-            Transform::Log => x.max(f64::MIN_POSITIVE).ln(),
-            Transform::Logistic => {
-                let x = x.clamp(1e-12, 1.0 - 1e-12);
-                (x / (1.0 - x)).ln()
-            }
-        }
-    }
-
-    /// Fitted value to natural value.
-    pub fn inverse(self, z: f64) -> f64 {
-        match self {
-            Transform::Identity => z,
-            Transform::Log => z.exp(),
-            Transform::Logistic => 1.0 / (1.0 + (-z).exp()),
-        }
-    }
-
-    /// dx/dz at z.
-    pub fn slope(self, z: f64) -> f64 {
-        match self {
-            Transform::Identity => 1.0,
-            Transform::Log => z.exp(),
-            // x(1 − x) written so that it does not round to 0 far out on either side.
-            Transform::Logistic => {
-                let e = (-z.abs()).exp();
-                e / ((1.0 + e) * (1.0 + e))
-            }
-        }
-    }
-
-    /// The name of the fitting scale: "natural", "log" or "logit".
-    pub fn scale_name(self) -> &'static str {
-        match self {
-            Transform::Identity => "natural",
-            Transform::Log => "log",
-            Transform::Logistic => "logit",
-        }
-    }
-
-    /// True when the fitted value sits at (numerically on) the edge of the range.
-    pub fn at_bound(self, z: f64) -> bool {
-        match self {
-            Transform::Identity => false,
-            Transform::Log => z < -600.0,
-            Transform::Logistic => z.abs() > 14.0,
-        }
-    }
-}
+pub use crate::network::params::Transform;
 
 /// A least-squares model: weighted residuals rᵢ = (yᵢ − fᵢ(x)) / σᵢ at natural parameters x.
 pub trait Residuals: Sync {
     /// The weighted residuals, or None where the model cannot be evaluated at `x`.
     fn residuals(&self, x: &[f64]) -> Option<Vec<f64>>;
+
+    /// True when [`Residuals::derivatives`] gives exact derivatives: the search then takes its
+    /// Jacobian from them instead of central differences.
+    fn has_derivatives(&self) -> bool {
+        false
+    }
+
+    /// The residuals at natural `x` and their derivatives, `columns[j][i]` = ∂rᵢ/∂xⱼ, from one
+    /// evaluation of the model (None where it cannot be evaluated, or has no derivatives).
+    fn derivatives(&self, _x: &[f64]) -> Option<(Vec<f64>, Vec<Vec<f64>>)> {
+        None
+    }
 }
 
 impl<F: Fn(&[f64]) -> Option<Vec<f64>> + Sync> Residuals for F {
@@ -305,6 +254,8 @@ struct Problem<'a> {
     tick: &'a (dyn Fn(&Budget) + Sync),
     best: RefCell<Option<(f64, Vec<f64>)>>,
     evaluations: RefCell<usize>,
+    /// With exact derivatives: the Jacobian on the transformed scale at the point last evaluated.
+    exact: RefCell<Option<(Vec<f64>, DMatrix<f64>)>>,
 }
 
 impl Problem<'_> {
@@ -321,10 +272,24 @@ impl Problem<'_> {
             return None;
         }
         *self.evaluations.borrow_mut() += 1;
-        let r = self
-            .model
-            .residuals(&self.natural(z))
-            .filter(|r| r.iter().all(|v| v.is_finite()));
+        let x = self.natural(z);
+        let r = if self.model.has_derivatives() {
+            // One model evaluation gives the residuals and, on the side, the Jacobian there.
+            match self.model.derivatives(&x) {
+                Some((r, columns)) => {
+                    let jz = on_transformed_scale(&columns, z, self.transforms, r.len());
+                    *self.exact.borrow_mut() = jz.map(|j| (z.to_vec(), j));
+                    Some(r)
+                }
+                None => {
+                    *self.exact.borrow_mut() = None;
+                    self.model.residuals(&x)
+                }
+            }
+        } else {
+            self.model.residuals(&x)
+        };
+        let r = r.filter(|r| r.iter().all(|v| v.is_finite()));
         if let Some(r) = &r {
             let chi2: f64 = r.iter().map(|v| v * v).sum();
             let mut best = self.best.borrow_mut();
@@ -336,6 +301,20 @@ impl Problem<'_> {
         (self.tick)(self.budget);
         r
     }
+}
+
+/// Exact derivatives ∂r/∂x (columns) as the Jacobian in z: ∂r/∂zⱼ = ∂r/∂xⱼ · dxⱼ/dzⱼ. None when
+/// a column is missing, of the wrong length or not finite.
+fn on_transformed_scale(columns: &[Vec<f64>], z: &[f64], transforms: &[Transform], n: usize) -> Option<DMatrix<f64>> {
+    if columns.len() != z.len() || columns.iter().any(|c| c.len() != n || c.iter().any(|v| !v.is_finite())) {
+        return None;
+    }
+    let cols: Vec<DVector<f64>> = columns
+        .iter()
+        .zip(z.iter().zip(transforms))
+        .map(|(c, (&zj, t))| DVector::from_iterator(n, c.iter().map(|v| v * t.slope(zj))))
+        .collect();
+    Some(DMatrix::from_columns(&cols))
 }
 
 /// Central-difference Jacobian of `f` at `z`, steps `h_j = step × max(|z_j|, 1)`.
@@ -374,6 +353,21 @@ impl LeastSquaresProblem<f64, Dyn, Dyn> for Problem<'_> {
     }
 
     fn jacobian(&self) -> Option<DMatrix<f64>> {
+        if self.model.has_derivatives() {
+            let cached = || {
+                let c = self.exact.borrow();
+                c.as_ref()
+                    .filter(|(z, _)| z.as_slice() == self.z.as_slice())
+                    .map(|(_, j)| j.clone())
+            };
+            if let Some(j) = cached() {
+                return Some(j);
+            }
+            self.eval(self.z.as_slice())?;
+            if let Some(j) = cached() {
+                return Some(j);
+            }
+        }
         jacobian(&|z| self.eval(z), self.z.as_slice(), self.step)
     }
 }
@@ -410,6 +404,7 @@ pub fn fit_within(
         tick,
         best: RefCell::new(None),
         evaluations: RefCell::new(0),
+        exact: RefCell::new(None),
     };
     if problem.residuals().is_none() {
         return Err(FitFailure("the model cannot be evaluated at the start".into()));
@@ -456,9 +451,17 @@ fn statistics(
     evaluations: usize,
     termination: String,
 ) -> Result<Solution, FitFailure> {
-    let residuals = model
-        .residuals(&values)
-        .ok_or_else(|| FitFailure("the model cannot be evaluated at the optimum".into()))?;
+    let exact = if model.has_derivatives() {
+        model.derivatives(&values)
+    } else {
+        None
+    };
+    let residuals = match &exact {
+        Some((r, _)) => r.clone(),
+        None => model
+            .residuals(&values)
+            .ok_or_else(|| FitFailure("the model cannot be evaluated at the optimum".into()))?,
+    };
     let n = residuals.len();
     let p = values.len();
     let chi2: f64 = residuals.iter().map(|r| r * r).sum();
@@ -469,8 +472,11 @@ fn statistics(
         let x: Vec<f64> = zz.iter().zip(transforms).map(|(z, t)| t.inverse(*z)).collect();
         model.residuals(&x)
     };
-    let jz = jacobian(&eval, &z, settings.step)
-        .ok_or_else(|| FitFailure("the model cannot be evaluated next to the optimum".into()))?;
+    let jz = match exact.and_then(|(_, c)| on_transformed_scale(&c, &z, transforms, n)) {
+        Some(j) => j,
+        None => jacobian(&eval, &z, settings.step)
+            .ok_or_else(|| FitFailure("the model cannot be evaluated next to the optimum".into()))?,
+    };
     // A parameter on the edge of its range has no linearised error (the data bound it from one
     // side at most): it is held at its value and the others' errors are conditional on it.
     let inside: Vec<usize> = (0..p).filter(|&j| !transforms[j].at_bound(z[j])).collect();
@@ -697,7 +703,7 @@ mod tests {
         for (t, x) in [
             (Transform::Identity, -3.5),
             (Transform::Log, 2.5e-7),
-            (Transform::Logistic, 0.3),
+            (Transform::Logit, 0.3),
         ] {
             let z = t.forward(x);
             assert!((t.inverse(z) - x).abs() <= 1e-12 * x.abs());
@@ -705,8 +711,8 @@ mod tests {
             let d = (t.inverse(z + h) - t.inverse(z - h)) / (2.0 * h);
             assert!((d - t.slope(z)).abs() <= 1e-6 * d.abs());
         }
-        assert!(Transform::Logistic.at_bound(Transform::Logistic.forward(1.0)));
-        assert!(!Transform::Logistic.at_bound(Transform::Logistic.forward(0.999)));
+        assert!(Transform::Logit.at_bound(Transform::Logit.forward(1.0)));
+        assert!(!Transform::Logit.at_bound(Transform::Logit.forward(0.999)));
     }
 
     #[test]
@@ -780,7 +786,7 @@ mod tests {
             errors: ErrorScale::Unscaled,
             ..Settings::default()
         };
-        let s = fit(&m, &[0.5], &[Transform::Logistic], &known).unwrap();
+        let s = fit(&m, &[0.5], &[Transform::Logit], &known).unwrap();
         let (v, se) = (s.values[0], s.standard_errors[0]);
         assert!((v - 0.98).abs() < 1e-9, "{v}");
         assert!((se - 0.02 / 2f64.sqrt()).abs() < 1e-6, "natural-scale se {se}");
@@ -790,12 +796,9 @@ mod tests {
         );
         let (lo, hi) = s.intervals[0];
         assert!(0.0 < lo && lo < v && v < hi && hi < 1.0, "[{lo}, {hi}]");
-        let z = Transform::Logistic.forward(v);
+        let z = Transform::Logit.forward(v);
         let half = s.quantile * se / (v * (1.0 - v));
-        let want = (
-            Transform::Logistic.inverse(z - half),
-            Transform::Logistic.inverse(z + half),
-        );
+        let want = (Transform::Logit.inverse(z - half), Transform::Logit.inverse(z + half));
         assert!(
             (lo - want.0).abs() < 1e-9 && (hi - want.1).abs() < 1e-9,
             "[{lo}, {hi}] vs {want:?}"
@@ -834,7 +837,7 @@ mod tests {
                 errors: ErrorScale::Unscaled,
                 ..Settings::default()
             };
-            let t = [Transform::Logistic, Transform::Identity];
+            let t = [Transform::Logit, Transform::Identity];
             let _ = tx.send((fit(&m, &[0.5, 0.0], &t, &known), t));
         });
         let (s, t) = rx
@@ -852,8 +855,8 @@ mod tests {
         );
         assert!(s.warnings(&t).contains(&Identifiability::AtBound(0)));
         // The logistic slope stays positive far out, where x(1 − x) rounds to 0.
-        assert!(Transform::Logistic.slope(40.0) > 0.0 && Transform::Logistic.slope(-40.0) > 0.0);
-        assert!((Transform::Logistic.slope(40.0) / (-40f64).exp() - 1.0).abs() < 1e-12);
+        assert!(Transform::Logit.slope(40.0) > 0.0 && Transform::Logit.slope(-40.0) > 0.0);
+        assert!((Transform::Logit.slope(40.0) / (-40f64).exp() - 1.0).abs() < 1e-12);
     }
 
     #[test]

@@ -1,23 +1,26 @@
-//! Fitting a network's parameters to experiments: each evaluation applies the parameter values
-//! as `--set` overrides, builds and compiles the network, and integrates it to the data times.
+//! Fitting a network's parameters to experiments. The network is built and validated once; each
+//! experiment's conditions and every free parameter are typed values written into a copy of it
+//! (`network::params::set`), which is compiled and integrated to the data times. No evaluation
+//! formats or parses text.
 
 use super::goodness::{Goodness, RunsTest};
-use super::lsq::{self, Budget, ErrorScale, Identifiability, Settings, Solution, Transform};
+use super::lsq::{self, Budget, ErrorScale, Identifiability, Settings, Solution};
 use crate::error::{Diagnostic, Error, Result};
-use crate::file::Loaded;
 use crate::file::data::{EndpointKind, Experiment};
 use crate::kinetics::{self, Options};
 use crate::model::Model;
-use crate::network::overrides::{self, Range};
-use crate::network::{self, Branching, Network, Overrides};
+use crate::network::params::{self, Key, Transform};
+use crate::network::{Branching, Network};
 use rand::{Rng, SeedableRng, rngs::StdRng};
 use rayon::prelude::*;
 
 /// A parameter set free in the fit.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Free {
-    /// Its `--set` key.
+    /// Its key as the user writes it.
     pub key: String,
+    /// Its typed address in the network.
+    pub address: Key,
     /// Start value from the file (internal unit).
     pub start: f64,
     /// Unit of the internal value as written in `--set`, e.g. "J/mol".
@@ -27,7 +30,7 @@ pub struct Free {
 }
 
 impl Free {
-    /// The `--set` value text for `value`.
+    /// The `--set` value text for `value` (for the fitted file written at the end).
     pub fn text(&self, value: f64) -> String {
         if self.unit.is_empty() {
             format!("{value:e}")
@@ -57,12 +60,12 @@ impl Default for Accuracy {
 
 /// A network, the data and the free parameters: everything one evaluation needs.
 pub struct Setup<'a> {
-    /// The network file as read.
-    pub loaded: &'a Loaded,
-    /// Overrides from the command line, applied to every experiment first.
-    pub base: Vec<(String, String)>,
+    /// The network as given (with the command line's values), validated once.
+    pub base: Network,
     /// The experiments.
     pub experiments: &'a [Experiment],
+    /// Each experiment's own values (its `set` list, parsed once), in experiment order.
+    conditions: Vec<Vec<(Key, f64)>>,
     /// Free parameters.
     pub free: Vec<Free>,
     /// Integration settings.
@@ -84,44 +87,61 @@ fn located(file: &std::path::Path, line: usize, field: &str, msg: String, help: 
     Error::invalid(d)
 }
 
+/// An experiment's `set` list as typed values of `net`, each key and value read once.
+fn experiment_values(net: &Network, e: &Experiment) -> Result<Vec<(Key, f64)>> {
+    let bad = |m: String| Error::Usage(format!("experiment \"{}\": set {m}", e.name));
+    let mut out = Vec::new();
+    for (k, v) in &e.set {
+        let key = Key::parse(net, k).map_err(bad)?;
+        let value = params::get(net, key)
+            .parse_value(v)
+            .map_err(|m| bad(format!("{k} = \"{v}\": {m}")))?;
+        out.push((key, value));
+    }
+    let mut trial = net.clone();
+    params::set_all(&mut trial, &out).map_err(bad)?;
+    Ok(out)
+}
+
 impl<'a> Setup<'a> {
-    /// Check the free keys and the data against the network (built with `base`).
+    /// Check the free keys and the data against `base` (the network as given, with the command
+    /// line's values).
     pub fn new(
-        loaded: &'a Loaded,
-        base: Vec<(String, String)>,
+        base: &Network,
         experiments: &'a [Experiment],
         free_keys: &[String],
         accuracy: Accuracy,
     ) -> Result<Self> {
-        let mut o = Overrides::none();
-        for (k, v) in &base {
-            o = o.with(k, v);
-        }
-        let net = network::build(loaded, &o)?;
         if free_keys.is_empty() {
             return Err(Error::Usage(
                 "no free parameters: name them with --free or a [fit] free list".into(),
             ));
         }
-        let mut free = Vec::new();
+        let conditions = experiments
+            .iter()
+            .map(|e| experiment_values(base, e))
+            .collect::<Result<Vec<_>>>()?;
+        let mut free: Vec<Free> = Vec::new();
         for key in free_keys {
             if free.iter().any(|f: &Free| &f.key == key) {
                 return Err(Error::Usage(format!("--free {key} is named twice")));
             }
-            let p = overrides::parameter(&net, key).map_err(|m| Error::Usage(format!("--free {m}")))?;
-            let transform = match p.range {
-                Range::Fraction => Transform::Logistic,
-                Range::Positive => Transform::Log,
-                Range::Real => Transform::Identity,
-            };
+            let p = params::parameter(base, key).map_err(|m| Error::Usage(format!("--free {m}")))?;
+            let transform = Transform::for_range(p.range);
             if transform == Transform::Log && p.value <= 0.0 {
                 return Err(Error::Usage(format!(
                     "--free {key}: the start is {} and a positive value is needed; give one with --set",
                     p.value
                 )));
             }
-            for e in experiments {
-                if e.set.iter().any(|(k, _)| k == key) {
+            if let Some(other) = free.iter().find(|f| f.address.target() == p.address.target()) {
+                return Err(Error::Usage(format!(
+                    "--free {key} and {} write the same value (one replaces the other); free one of them",
+                    other.key
+                )));
+            }
+            for (e, c) in experiments.iter().zip(&conditions) {
+                if c.iter().any(|(k, _)| k.target() == p.address.target()) {
                     return Err(Error::Usage(format!(
                         "--free {key} is also set by experiment \"{}\"; a free parameter is shared by all experiments",
                         e.name
@@ -130,15 +150,16 @@ impl<'a> Setup<'a> {
             }
             free.push(Free {
                 key: key.clone(),
+                address: p.address,
                 start: p.value,
                 unit: p.unit,
                 transform,
             });
         }
         let setup = Setup {
-            loaded,
-            base,
+            base: base.clone(),
             experiments,
+            conditions,
             free,
             accuracy,
         };
@@ -244,24 +265,19 @@ impl<'a> Setup<'a> {
         self.free.iter().map(|f| f.transform).collect()
     }
 
-    /// The overrides for experiment `e` at parameter values `x`.
-    pub fn overrides(&self, e: &Experiment, x: &[f64]) -> Overrides {
-        let mut o = Overrides::none();
-        for (k, v) in &self.base {
-            o = o.with(k, v);
-        }
-        for (f, v) in self.free.iter().zip(x) {
-            o = o.with(&f.key, &f.text(*v));
-        }
-        for (k, v) in &e.set {
-            o = o.with(k, v);
-        }
-        o
-    }
-
-    /// The network of experiment `e` at `x`.
+    /// The network of experiment `e` (one of this setup's) at `x`: the base with the
+    /// experiment's values, then the free parameters, written as typed values.
     pub fn network(&self, e: &Experiment, x: &[f64]) -> Result<Network> {
-        network::build(self.loaded, &self.overrides(e, x))
+        let i = self
+            .experiments
+            .iter()
+            .position(|q| std::ptr::eq(q, e))
+            .ok_or_else(|| Error::Usage(format!("experiment \"{}\" is not one of this fit's", e.name)))?;
+        let mut net = self.base.clone();
+        params::set_all(&mut net, &self.conditions[i]).map_err(Error::Usage)?;
+        let values: Vec<(Key, f64)> = self.free.iter().map(|f| f.address).zip(x.iter().copied()).collect();
+        params::set_all(&mut net, &values).map_err(Error::Usage)?;
+        Ok(net)
     }
 
     /// The run length of experiment `e`, s.
@@ -270,10 +286,8 @@ impl<'a> Setup<'a> {
         e.until.unwrap_or(0.0).max(last).max(f64::MIN_POSITIVE)
     }
 
-    /// Predict every measurement of experiment `e` at `x`.
-    pub fn predict(&self, e: &Experiment, x: &[f64]) -> Result<Prediction> {
-        let net = self.network(e, x)?;
-        let model = Model::compile(&net);
+    /// The integration settings of experiment `e`: its data times and its end.
+    fn options(&self, e: &Experiment) -> Options {
         let until = Self::until(e);
         let mut opts = Options::until(until);
         opts.rtol = self.accuracy.rtol;
@@ -282,50 +296,69 @@ impl<'a> Setup<'a> {
         if opts.times.is_empty() || opts.times.iter().all(|&t| t < until) {
             opts.times.push(until);
         }
-        let traj = kinetics::simulate(&model, &opts, &mut |_| {})?;
-        let idx = |name: &str| net.species_index(name).unwrap_or(0);
-        let basis = e.yield_of.as_deref().map_or(1.0, |y| net.species[idx(y)].initial);
-        let at = |t: f64| -> &[f64] {
-            let k = traj.times.partition_point(|&u| u < t * (1.0 - 1e-12));
-            &traj.states[k.min(traj.states.len() - 1)]
-        };
-        let points = e
-            .points
+        opts
+    }
+
+    /// Predict every measurement of experiment `e` at `x`.
+    pub fn predict(&self, e: &Experiment, x: &[f64]) -> Result<Prediction> {
+        let net = self.network(e, x)?;
+        let model = Model::compile(&net);
+        let traj = kinetics::simulate(&model, &self.options(e), &mut |_| {})?;
+        read(e, &net, &model, &traj.layout, Self::until(e), &traj.times, &traj.states)
+    }
+
+    /// Predict every measurement of experiment `e` at `x` with its derivatives with respect to
+    /// each free parameter (natural units), `columns[j]` in [`Prediction`] order (points, then
+    /// end points): one integration of the states with their forward sensitivities
+    /// ([`kinetics::sensitivity`]), the models on either side of each parameter giving the
+    /// parametric terms. Each reading of the states (a yield, a ratio, a quantum yield, a
+    /// lifetime) is differentiated by the chain rule through a central difference of the
+    /// reading alone, the states moved along their sensitivities.
+    pub fn predict_with_derivatives(&self, e: &Experiment, x: &[f64]) -> Result<(Prediction, Vec<Vec<f64>>)> {
+        let net = self.network(e, x)?;
+        let model = Model::compile(&net);
+        let mut sides = Vec::with_capacity(self.free.len());
+        for (f, &v) in self.free.iter().zip(x) {
+            let h = DERIVATIVE_STEP
+                * if v != 0.0 {
+                    v.abs()
+                } else {
+                    f.start.abs().max(f64::MIN_POSITIVE)
+                };
+            let (up, down, span) = params::around(&net, f.address, h).map_err(Error::Usage)?;
+            let (mu, md) = (Model::compile(&up), Model::compile(&down));
+            sides.push((up, down, mu, md, span, params::get(&net, f.address).value));
+        }
+        let perturbed: Vec<kinetics::sensitivity::Perturbed> = sides
             .iter()
-            .map(|p| {
-                let c = at(p.time)[idx(&p.species)];
-                if p.is_yield { c / basis } else { c }
+            .map(|(_, _, mu, md, span, v)| kinetics::sensitivity::Perturbed {
+                plus: mu,
+                minus: md,
+                span: *span,
+                scale: if *v != 0.0 { *v } else { *span },
             })
             .collect();
-        let end = traj.last();
-        let first = &traj.states[0];
-        let mut endpoints = Vec::new();
-        for ep in &e.endpoints {
-            let v = match &ep.kind {
-                EndpointKind::Final(s) => end[idx(s)],
-                EndpointKind::Yield(s) => end[idx(s)] / basis,
-                EndpointKind::Ratio(a, b) => end[idx(a)] / end[idx(b)],
-                // Per photon absorbed by the whole sample (every absorber, inner filters included).
-                EndpointKind::QuantumYield(s) => {
-                    let l = kinetics::ledger::read(&model, &traj.layout, until, end);
-                    (end[idx(s)] - first[idx(s)]) * model.volume / l.absorbed
-                }
-                // Per photon absorbed by the reactant alone (IUPAC Glossary of terms used in
-                // photochemistry, 3rd ed., Pure Appl. Chem. 79 (2007) 293, "quantum yield").
-                EndpointKind::ReactantQuantumYield(s, a) => {
-                    let l = kinetics::ledger::read(&model, &traj.layout, until, end);
-                    let by = l
-                        .by_absorber
-                        .iter()
-                        .find(|b| &b.species == a)
-                        .map_or(0.0, |b| b.absorbed);
-                    (end[idx(s)] - first[idx(s)]) * model.volume / by
-                }
-                EndpointKind::Lifetime(t) => lifetime(&net, t).map_err(Error::Usage)?,
+        let run = kinetics::sensitivity::simulate(&model, &perturbed, &self.options(e))?;
+        let until = Self::until(e);
+        let at = read(e, &net, &model, &run.layout, until, &run.times, &run.states)?;
+        let flat = |p: &Prediction| p.points.iter().chain(&p.endpoints).copied().collect::<Vec<f64>>();
+        let mut columns = Vec::with_capacity(sides.len());
+        for (j, (up, down, mu, md, span, v)) in sides.iter().enumerate() {
+            // How far each side is from the value: central, or one-sided at an end of the range.
+            let above = params::get(up, self.free[j].address).value - v;
+            let below = v - params::get(down, self.free[j].address).value;
+            let moved = |d: f64| -> Vec<Vec<f64>> {
+                run.states
+                    .iter()
+                    .zip(&run.sensitivities)
+                    .map(|(y, s)| y.iter().zip(&s[j]).map(|(y, s)| y + d * s).collect())
+                    .collect()
             };
-            endpoints.push(v);
+            let p = read(e, up, mu, &run.layout, until, &run.times, &moved(above))?;
+            let m = read(e, down, md, &run.layout, until, &run.times, &moved(-below))?;
+            columns.push(flat(&p).iter().zip(flat(&m)).map(|(a, b)| (a - b) / span).collect());
         }
-        Ok(Prediction { points, endpoints })
+        Ok((at, columns))
     }
 
     /// Measured values, standard deviations and weighted flags, in prediction order.
@@ -350,6 +383,148 @@ impl<'a> Setup<'a> {
         }
         Some(obs.iter().zip(&pred).map(|((y, s, _), f)| (y - f) / s).collect())
     }
+
+    /// Weighted residuals and their derivatives `columns[j][i]` = ∂rᵢ/∂xⱼ (natural units) from
+    /// one sensitivity integration per experiment, None when an evaluation fails.
+    pub fn residuals_with_derivatives(&self, x: &[f64]) -> Option<(Vec<f64>, Vec<Vec<f64>>)> {
+        let obs = self.observations();
+        let mut pred = Vec::with_capacity(obs.len());
+        let mut columns = vec![Vec::with_capacity(obs.len()); self.free.len()];
+        for e in self.experiments {
+            let (p, d) = self.predict_with_derivatives(e, x).ok()?;
+            pred.extend(p.points);
+            pred.extend(p.endpoints);
+            for (c, dj) in columns.iter_mut().zip(d) {
+                c.extend(dj);
+            }
+        }
+        let r = obs.iter().zip(&pred).map(|((y, s, _), f)| (y - f) / s).collect();
+        for c in &mut columns {
+            c.iter_mut().zip(&obs).for_each(|(v, (_, s, _))| *v = -*v / s);
+        }
+        Some((r, columns))
+    }
+}
+
+/// How the fit's Jacobian is found.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Derivatives {
+    /// Forward sensitivities of the kinetics: one integration per experiment gives the
+    /// residuals and every column.
+    #[default]
+    Sensitivities,
+    /// Central differences: two integrations per experiment and free parameter per column.
+    Differences,
+}
+
+impl Derivatives {
+    /// Parse "sensitivities" or "differences".
+    pub fn parse(s: &str) -> std::result::Result<Self, String> {
+        match s.trim() {
+            "sensitivities" => Ok(Derivatives::Sensitivities),
+            "differences" => Ok(Derivatives::Differences),
+            other => Err(format!(
+                "--derivatives \"{other}\": use \"sensitivities\" (forward sensitivities of the kinetics) or \"differences\" (central differences)"
+            )),
+        }
+    }
+
+    /// In words, for reports.
+    pub fn describe(self) -> &'static str {
+        match self {
+            Derivatives::Sensitivities => "slopes from forward sensitivities of the kinetics",
+            Derivatives::Differences => "slopes from central differences",
+        }
+    }
+
+    /// The word used in `--derivatives` and in JSON.
+    pub fn word(self) -> &'static str {
+        match self {
+            Derivatives::Sensitivities => "sensitivities",
+            Derivatives::Differences => "differences",
+        }
+    }
+}
+
+/// A setup as the least-squares search sees it, with the way its Jacobian is found.
+struct Evaluate<'s, 'a> {
+    setup: &'s Setup<'a>,
+    derivatives: Derivatives,
+}
+
+impl lsq::Residuals for Evaluate<'_, '_> {
+    fn residuals(&self, x: &[f64]) -> Option<Vec<f64>> {
+        self.setup.residuals(x)
+    }
+
+    fn has_derivatives(&self) -> bool {
+        self.derivatives == Derivatives::Sensitivities
+    }
+
+    fn derivatives(&self, x: &[f64]) -> Option<(Vec<f64>, Vec<Vec<f64>>)> {
+        self.setup.residuals_with_derivatives(x)
+    }
+}
+
+/// The relative step of the parameters for the models on either side of a value (the
+/// parametric terms of the sensitivities, exact where the right-hand side is linear in the
+/// parameter; through a barrier, O(step²): (1e-6 E/RT)² / 6 ≈ 2e-10 relative for E = 90 kJ/mol at 298 K).
+const DERIVATIVE_STEP: f64 = 1e-6;
+
+/// Every measurement of experiment `e` read from `states` at `times` (a run of `model`, built
+/// from `net`, to `until`).
+fn read(
+    e: &Experiment,
+    net: &Network,
+    model: &Model,
+    layout: &crate::model::rhs::LedgerLayout,
+    until: f64,
+    times: &[f64],
+    states: &[Vec<f64>],
+) -> Result<Prediction> {
+    let idx = |name: &str| net.species_index(name).unwrap_or(0);
+    let basis = e.yield_of.as_deref().map_or(1.0, |y| net.species[idx(y)].initial);
+    let at = |t: f64| -> &[f64] {
+        let k = times.partition_point(|&u| u < t * (1.0 - 1e-12));
+        &states[k.min(states.len() - 1)]
+    };
+    let points = e
+        .points
+        .iter()
+        .map(|p| {
+            let c = at(p.time)[idx(&p.species)];
+            if p.is_yield { c / basis } else { c }
+        })
+        .collect();
+    let end = states.last().map(|s| s.as_slice()).unwrap_or(&[]);
+    let first = &states[0];
+    let mut endpoints = Vec::new();
+    for ep in &e.endpoints {
+        let v = match &ep.kind {
+            EndpointKind::Final(s) => end[idx(s)],
+            EndpointKind::Yield(s) => end[idx(s)] / basis,
+            EndpointKind::Ratio(a, b) => end[idx(a)] / end[idx(b)],
+            // Per photon absorbed by the whole sample (every absorber, inner filters included).
+            EndpointKind::QuantumYield(s) => {
+                let l = kinetics::ledger::read(model, layout, until, end);
+                (end[idx(s)] - first[idx(s)]) * model.volume / l.absorbed
+            }
+            // Per photon absorbed by the reactant alone (IUPAC Glossary of terms used in
+            // photochemistry, 3rd ed., Pure Appl. Chem. 79 (2007) 293, "quantum yield").
+            EndpointKind::ReactantQuantumYield(s, a) => {
+                let l = kinetics::ledger::read(model, layout, until, end);
+                let by = l
+                    .by_absorber
+                    .iter()
+                    .find(|b| &b.species == a)
+                    .map_or(0.0, |b| b.absorbed);
+                (end[idx(s)] - first[idx(s)]) * model.volume / by
+            }
+            EndpointKind::Lifetime(t) => lifetime(net, t).map_err(Error::Usage)?,
+        };
+        endpoints.push(v);
+    }
+    Ok(Prediction { points, endpoints })
 }
 
 /// Lifetime of transient `name` in `net`, s: 1 / Σ (rates + k₂ [quencher]₀).
@@ -383,10 +558,12 @@ pub struct FitOptions {
     /// (by default given sd are taken as known and the covariance is left unscaled).
     pub scale_errors: bool,
     /// Cap on model evaluations over all starts (each evaluation integrates every experiment
-    /// once; a Jacobian costs two per free parameter). Default [`DEFAULT_MAX_EVALUATIONS`].
+    /// once; with [`Derivatives::Differences`] a Jacobian costs two per free parameter). Default [`DEFAULT_MAX_EVALUATIONS`].
     pub max_evaluations: usize,
     /// Optional wall-clock limit on the search.
     pub time_limit: Option<std::time::Duration>,
+    /// How the Jacobian is found.
+    pub derivatives: Derivatives,
 }
 
 /// The default cap on model evaluations of a fit, over all starts.
@@ -408,6 +585,7 @@ impl Default for FitOptions {
             scale_errors: false,
             max_evaluations: DEFAULT_MAX_EVALUATIONS,
             time_limit: None,
+            derivatives: Derivatives::default(),
         }
     }
 }
@@ -489,6 +667,8 @@ pub struct StartOutcome {
 pub struct FitResult {
     /// The free parameters.
     pub free: Vec<Free>,
+    /// How the search found its Jacobian.
+    pub derivatives: Derivatives,
     /// The best solution over all starts.
     pub solution: Solution,
     /// Identifiability warnings, in words.
@@ -553,7 +733,10 @@ pub fn starts(setup: &Setup, opts: &FitOptions) -> Vec<Vec<f64>> {
 pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn(&Progress) + Sync)) -> Result<FitResult> {
     let transforms = setup.transforms();
     let all = starts(setup, opts);
-    let res = |x: &[f64]| setup.residuals(x);
+    let model = Evaluate {
+        setup,
+        derivatives: opts.derivatives,
+    };
     let obs = setup.observations();
     let weighted = obs.iter().all(|o| o.2);
     let errors = ErrorBasis::choose(weighted, opts.scale_errors);
@@ -576,7 +759,7 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn(&Progress) + Syn
     let outcomes: Vec<std::result::Result<Solution, String>> = all
         .par_iter()
         .map(|x0| {
-            let r = lsq::fit_within(&res, x0, &transforms, &settings, &budget, &report).map_err(|e| e.0);
+            let r = lsq::fit_within(&model, x0, &transforms, &settings, &budget, &report).map_err(|e| e.0);
             done.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
             report(&budget);
             r
@@ -628,6 +811,7 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn(&Progress) + Syn
     let stopped = (!solution.converged).then(|| budget.stopped().unwrap_or(lsq::Stop::Patience));
     Ok(FitResult {
         free: setup.free.clone(),
+        derivatives: opts.derivatives,
         starts: all
             .into_iter()
             .zip(&outcomes)

@@ -1,24 +1,11 @@
-//! Fitting one network file's text to data and ranking rivals: the glue the `fit`, `compare` and
-//! `report` commands share (they read the files; this runs the engines on what was read).
+//! Fitting one built network to data and ranking rivals: the glue the `fit`, `compare` and
+//! `report` commands share (they read and build the files; this runs the engines on the networks).
 
 use super::compare;
 use super::mechanism::{self, Accuracy, Curve, FitOptions, FitResult, Progress, Setup};
 use crate::error::{Error, Result};
-use crate::file::Loaded;
 use crate::file::data::Experiment;
-
-/// The free keys: `given` ones (trimmed, empty ones dropped), else the file's `[fit] free` list.
-pub fn free_keys(loaded: &Loaded, given: &[String]) -> Vec<String> {
-    let given: Vec<String> = given
-        .iter()
-        .map(|k| k.trim().to_string())
-        .filter(|k| !k.is_empty())
-        .collect();
-    if !given.is_empty() {
-        return given;
-    }
-    loaded.doc.fit.as_ref().map_or(Vec::new(), |f| f.get_ref().free.clone())
-}
+use crate::network::Network;
 
 /// One fitted network: the fit, dense fitted curves per experiment and the predictions at the
 /// data points (mol/L, or fractions for yields), in experiment order.
@@ -32,19 +19,16 @@ pub struct Fitted {
     pub predicted: Vec<Vec<f64>>,
 }
 
-/// Fit `loaded` (with `base` overrides for every experiment) to `experiments`, freeing `free`
-/// keys (empty: the file's `[fit] free` list); `progress` is called as the search goes
-/// ([`mechanism::fit`]).
-pub fn fit_loaded(
-    loaded: &Loaded,
-    base: Vec<(String, String)>,
+/// Fit `net` (built with the command line's values) to `experiments`, freeing `free` keys (see
+/// `file::Loaded::free_keys`); `progress` is called as the search goes ([`mechanism::fit`]).
+pub fn fit_network(
+    net: &Network,
     free: &[String],
     experiments: &[Experiment],
     opts: &FitOptions,
     progress: &(dyn Fn(&Progress) + Sync),
 ) -> Result<Fitted> {
-    let keys = free_keys(loaded, free);
-    let setup = Setup::new(loaded, base, experiments, &keys, Accuracy::default())?;
+    let setup = Setup::new(net, experiments, free, Accuracy::default())?;
     let result = mechanism::fit(&setup, opts, progress)?;
     let x = result.solution.values.clone();
     let curves = mechanism::curves(&setup, &x, 300)?;

@@ -8,6 +8,7 @@
 //! No file I/O, no printing: results come back as a [`Trajectory`].
 
 pub mod ledger;
+pub mod sensitivity;
 mod solve_bdf;
 mod solve_dop;
 

@@ -20,6 +20,26 @@ pub fn dg(a: f64) -> f64 {
     LN_10 * LN_10 * dphi(x)
 }
 
+/// g(A), dg/dA (only when `slope`) and the transmitted fraction 10^(−A) from one exponential.
+pub fn g_dg_transmitted(a: f64, slope: bool) -> (f64, f64, f64) {
+    let x = a * LN_10;
+    let em = (-x).exp_m1();
+    let t = 1.0 + em;
+    let phi = if x.abs() < 1e-4 {
+        1.0 - x / 2.0 + x * x / 6.0 - x * x * x / 24.0
+    } else {
+        -em / x
+    };
+    let dphi = if !slope {
+        0.0
+    } else if x.abs() < 1e-3 {
+        -0.5 + x / 3.0 - x * x / 8.0 + x * x * x / 30.0
+    } else {
+        (t * (1.0 + x) - 1.0) / (x * x)
+    };
+    (LN_10 * phi, LN_10 * LN_10 * dphi, t)
+}
+
 /// φ(x) = (1 − e^(−x)) / x.
 fn phi(x: f64) -> f64 {
     if x.abs() < 1e-4 {

@@ -17,7 +17,7 @@
 //! buffers made once by [`Rhs::new`].
 
 use super::Model;
-use super::absorption::{dg, g};
+use super::absorption::g_dg_transmitted;
 use super::transients::CollapseWork;
 use std::cell::{Cell, RefCell};
 
@@ -66,6 +66,8 @@ struct Work {
     g: Vec<f64>,
     dg: Vec<f64>,
     da: Vec<f64>,
+    /// 10^(−A) per bin.
+    t: Vec<f64>,
 }
 
 /// The right-hand side of one model, with counters of its use.
@@ -77,6 +79,11 @@ pub struct Rhs<'m> {
     work: RefCell<Work>,
     /// The collapse last solved, with the quencher concentrations it was solved at.
     cache: RefCell<CollapseWork>,
+    /// Per outcome and bin, q_b l ε_ab Y_ob (einstein/s per mol/L of the absorber per unit
+    /// g): the constant part of each outcome's rate, made once.
+    outcome_weights: Vec<f64>,
+    /// Per absorber slot and bin, q_b l ε_ab: the constant part of each absorber's share.
+    slot_weights: Vec<f64>,
     /// Number of right-hand-side evaluations.
     pub rhs_calls: Cell<usize>,
     /// Number of Jacobian-vector products.
@@ -93,6 +100,18 @@ impl<'m> Rhs<'m> {
             n_slots: model.absorbers.len(),
             n_outcomes: model.outcomes.len(),
         };
+        let mut slot_weights = vec![0.0; model.absorbers.len() * nb];
+        for slot in 0..model.absorbers.len() {
+            for b in 0..nb {
+                slot_weights[slot * nb + b] = model.bins[b].flux * model.path * model.eps[slot * nb + b];
+            }
+        }
+        let mut outcome_weights = vec![0.0; model.outcomes.len() * nb];
+        for (o, out) in model.outcomes.iter().enumerate() {
+            for b in 0..nb {
+                outcome_weights[o * nb + b] = slot_weights[out.slot * nb + b] * out.base[b];
+            }
+        }
         Rhs {
             model,
             layout,
@@ -101,7 +120,10 @@ impl<'m> Rhs<'m> {
                 g: vec![0.0; nb],
                 dg: vec![0.0; nb],
                 da: vec![0.0; nb],
+                t: vec![0.0; nb],
             }),
+            outcome_weights,
+            slot_weights,
             cache: RefCell::new(model.collapse.work()),
             rhs_calls: Cell::new(0),
             jac_calls: Cell::new(0),
@@ -115,7 +137,8 @@ impl<'m> Rhs<'m> {
         y
     }
 
-    fn absorbance(&self, c: &[f64], w: &mut Work) {
+    /// Absorbance, g, 10^(−A) and (when `slope`) dg/dA of every bin at concentrations `c`.
+    fn absorbance(&self, c: &[f64], w: &mut Work, slope: bool) {
         let m = self.model;
         let nb = m.bins.len();
         for b in 0..nb {
@@ -123,9 +146,11 @@ impl<'m> Rhs<'m> {
             for (slot, &s) in m.absorbers.iter().enumerate() {
                 a += m.path * m.eps[slot * nb + b] * c[s];
             }
+            let (g, dg, t) = g_dg_transmitted(a, slope);
             w.a[b] = a;
-            w.g[b] = g(a);
-            w.dg[b] = dg(a);
+            w.g[b] = g;
+            w.dg[b] = dg;
+            w.t[b] = t;
         }
     }
 
@@ -162,21 +187,20 @@ impl<'m> Rhs<'m> {
             return;
         }
         let mut wk = self.work.borrow_mut();
-        self.absorbance(c, &mut wk);
+        self.absorbance(c, &mut wk, false);
         let v = m.volume;
+        let sw = &self.slot_weights;
         for b in 0..nb {
             let bin = m.bins[b];
             let s = bin.source;
-            let (a, gb) = (wk.a[b], wk.g[b]);
+            let gb = wk.g[b];
             for (slot, &sp) in m.absorbers.iter().enumerate() {
-                let w = bin.flux * gb * m.path * m.eps[slot * nb + b] * c[sp];
-                dy[lay.absorbed(s, slot)] += w / v;
+                dy[lay.absorbed(s, slot)] += sw[slot * nb + b] * gb * c[sp] / v;
             }
             dy[lay.background(s)] += bin.flux * gb * m.background[b] / v;
-            dy[lay.transmitted(s)] += bin.flux * 10f64.powf(-a) / v;
+            dy[lay.transmitted(s)] += bin.flux * wk.t[b] / v;
         }
         let gs = &wk.g;
-        let eps = &m.eps;
         let mut cache = self.cache.borrow_mut();
         let collapsed = self.collapse(c, &mut cache);
         for (o, out) in m.outcomes.iter().enumerate() {
@@ -189,11 +213,9 @@ impl<'m> Rhs<'m> {
             if mult == 0.0 {
                 continue;
             }
-            let mut rate = 0.0; // einstein/s
-            for b in 0..nb {
-                rate += m.bins[b].flux * gs[b] * m.path * eps[out.slot * nb + b] * c[sp] * out.base[b];
-            }
-            rate *= mult / v;
+            let weights = &self.outcome_weights[o * nb..(o + 1) * nb];
+            let taken: f64 = weights.iter().zip(gs).map(|(w, g)| w * g).sum();
+            let rate = taken * c[sp] * mult / v; // mol L⁻¹ s⁻¹
             dy[lay.outcome(o)] += rate;
             for &(i, k) in &out.net {
                 dy[i] += k * rate;
@@ -231,7 +253,7 @@ impl<'m> Rhs<'m> {
             return;
         }
         let mut wk = self.work.borrow_mut();
-        self.absorbance(c, &mut wk);
+        self.absorbance(c, &mut wk, true);
         let v = m.volume;
         for b in 0..nb {
             let mut da = 0.0;
@@ -243,13 +265,13 @@ impl<'m> Rhs<'m> {
         for b in 0..nb {
             let bin = m.bins[b];
             let s = bin.source;
-            let (a, gb, dgb, da) = (wk.a[b], wk.g[b], wk.dg[b], wk.da[b]);
+            let (gb, dgb, da) = (wk.g[b], wk.dg[b], wk.da[b]);
             for (slot, &sp) in m.absorbers.iter().enumerate() {
-                let le = m.path * m.eps[slot * nb + b];
-                out[lay.absorbed(s, slot)] += bin.flux * le * (dgb * da * c[sp] + gb * dc[sp]) / v;
+                let w = self.slot_weights[slot * nb + b];
+                out[lay.absorbed(s, slot)] += w * (dgb * da * c[sp] + gb * dc[sp]) / v;
             }
             out[lay.background(s)] += bin.flux * dgb * da * m.background[b] / v;
-            out[lay.transmitted(s)] += -std::f64::consts::LN_10 * bin.flux * 10f64.powf(-a) * da / v;
+            out[lay.transmitted(s)] += -std::f64::consts::LN_10 * bin.flux * wk.t[b] * da / v;
         }
         let (gs, dgs, das) = (&wk.g, &wk.dg, &wk.da);
         let quenchers = &m.collapse.quenchers;
@@ -271,8 +293,8 @@ impl<'m> Rhs<'m> {
             };
             let mut w = 0.0;
             let mut dw = 0.0;
-            for b in 0..nb {
-                let le = m.bins[b].flux * m.path * m.eps[outc.slot * nb + b] * outc.base[b];
+            let weights = &self.outcome_weights[o * nb..(o + 1) * nb];
+            for (b, &le) in weights.iter().enumerate() {
                 if le == 0.0 {
                     continue;
                 }

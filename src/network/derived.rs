@@ -355,7 +355,9 @@ impl Derived<'_, '_> {
 
     /// Compute the yields of the hot channels of transient `t` (file entry) and put them into
     /// `channels`. `photon` is the mean molar energy of the photons its absorbers take up, J/mol
-    /// (see [`absorbed_photon_energy`]), used for `energy = "photon"`.
+    /// (see [`absorbed_photon_energy`]), used for `energy = "photon"`. Returns whether they
+    /// could be computed, and the hot molecule's model (kept in the network so a parameter
+    /// change can recompute the yields) when it was read.
     pub(super) fn hot_yields(
         &mut self,
         field: &str,
@@ -364,7 +366,7 @@ impl Derived<'_, '_> {
         specs: &[HotSpec],
         channels: &mut [(Channel, Origin)],
         photon: &AbsorbedEnergy,
-    ) -> bool {
+    ) -> (bool, Option<HotModel>) {
         let at = span(t);
         let e = t.get_ref();
         let transient_keys = [
@@ -387,7 +389,7 @@ impl Derived<'_, '_> {
                     );
                 }
             }
-            return true;
+            return (true, None);
         }
         let mut ok = true;
         if kind != TransientKind::Hot {
@@ -419,9 +421,25 @@ impl Derived<'_, '_> {
         }
         let molecule = self.hot_molecule(field, t, photon);
         let (Some(m), true) = (molecule, ok) else {
-            return false;
+            return (false, None);
         };
-        self.put_hot_yields(field, &at, specs, channels, &m)
+        let put = self.put_hot_yields(field, &at, specs, channels, &m);
+        let model = Some(HotModel {
+            reactant: m.reactant,
+            grain: m.grain,
+            cooling: m.cooling,
+            photon_energy: e.energy.as_ref().is_some_and(|t| t.get_ref().trim() == "photon"),
+            channels: specs
+                .iter()
+                .map(|s| HotChannel {
+                    channel: s.channel,
+                    ts: s.ts.clone(),
+                    barrier: s.barrier,
+                    degeneracy: s.degeneracy,
+                })
+                .collect(),
+        });
+        (put, model)
     }
 
     /// The hot molecule of transient `t`: its starting energy, cooling time, grain and own

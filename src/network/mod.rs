@@ -13,6 +13,7 @@ mod diagnostics;
 pub mod equation;
 pub mod formula;
 pub mod overrides;
+pub mod params;
 mod suggest;
 
 pub use build::build;
@@ -29,6 +30,18 @@ use std::path::{Path, PathBuf};
 pub fn load(path: &Path, overrides: &Overrides) -> Result<Network> {
     let loaded = crate::file::load(path)?;
     build(&loaded, overrides)
+}
+
+/// A 64-bit hash (FNV-1a) of every number and name of `net` that a computation uses: equal for
+/// the same network however it was written, different when any value differs (for telling
+/// whether two runs, such as shards of one sampling run, used the same network).
+pub fn fingerprint(net: &Network) -> u64 {
+    let text = format!(
+        "{:?}{:?}{:?}{:?}{:?}{:?}{:?}",
+        net.about, net.conditions, net.lights, net.species, net.thermal, net.photo, net.transients
+    );
+    text.bytes()
+        .fold(0xcbf29ce484222325, |h, b| (h ^ b as u64).wrapping_mul(0x100000001b3))
 }
 
 /// Name, description and provenance of a network.
@@ -256,6 +269,38 @@ pub struct Transient {
     /// For a hot ground state with `energy = "photon"`: how its starting energy was found (for
     /// display), e.g. the absorbers whose absorbed photons it is the mean energy of.
     pub energy_from: Option<String>,
+    /// For a hot ground state with hot channels: what its yields are computed from, kept so
+    /// that a parameter change can compute them again ([`params`]).
+    pub hot: Option<HotModel>,
+}
+
+/// The RRKM-with-cooling model of a hot ground state (`rates::hot::rrkm_yields`).
+#[derive(Debug, Clone, PartialEq)]
+pub struct HotModel {
+    /// The hot molecule's own modes.
+    pub reactant: crate::rates::partition::Modes,
+    /// Energy grain of the state counts, J/mol.
+    pub grain: f64,
+    /// Cooling time constant, s.
+    pub cooling: f64,
+    /// True when the starting energy is that of the absorbed photons (`energy = "photon"`):
+    /// it follows the lights and the photo steps' yields.
+    pub photon_energy: bool,
+    /// The hot channels.
+    pub channels: Vec<HotChannel>,
+}
+
+/// One hot channel of a [`HotModel`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct HotChannel {
+    /// Index of the channel in its transient.
+    pub channel: usize,
+    /// Transition-state modes.
+    pub ts: crate::rates::partition::Modes,
+    /// Zero-point-corrected barrier E₀, J/mol.
+    pub barrier: f64,
+    /// Reaction-path degeneracy σ.
+    pub degeneracy: f64,
 }
 
 /// A node of the network graph.

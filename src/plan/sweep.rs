@@ -1,17 +1,16 @@
 //! `plan --sweep`: one value swept over a range, a plan at every point.
 //!
-//! [`parse`] reads the spec (`KEY=LO..HI:N`); [`run`] builds each point's network in memory
-//! from the file as read once ([`Loaded`]) with the point's value as one more `--set` override
-//! (or, for power and photon flux, scales the compiled model's light), and plans every point in
-//! parallel (rayon). A sweep is by definition the single plan repeated at each value
+//! [`parse`] reads the spec (`KEY=LO..HI:N`); [`run`] writes each point's value into a copy of
+//! the built network as a typed parameter (`network::params::set`; for power and photon flux it
+//! scales the compiled model's light instead), and plans every point in parallel (rayon). A sweep is by definition the single plan repeated at each value
 //! (`common practice`): a point gives exactly what `plan --set KEY=VALUE` gives.
 
 use super::{PlanOptions, SweepPoint};
 use crate::error::{Error, Result};
-use crate::file::Loaded;
 use crate::light::LightKind;
 use crate::model::Model;
-use crate::network::{self, Network, Overrides};
+use crate::network::Network;
+use crate::network::params::{self, ConditionField, Key, LightField};
 use crate::units::{self, Quantity};
 
 /// What a sweep varies.
@@ -144,14 +143,10 @@ pub fn parse(text: &str, net: &Network) -> Result<SweepSpec> {
     })
 }
 
-/// The network a sweep starts from: the file as read, the `--set` overrides given with it, and
-/// the network and model they give (the model already adjusted, as `adjust` does each point's).
+/// The network a sweep starts from (built with the command's `--set` values) and its model
+/// (already adjusted, as `adjust` does each point's).
 pub struct Base<'a> {
-    /// The network file as read (parsed once; each point is built from it in memory).
-    pub loaded: &'a Loaded,
-    /// The `--set` overrides of the command, in order.
-    pub overrides: &'a [(String, String)],
-    /// The network built from `loaded` with `overrides`.
+    /// The network as built.
     pub network: &'a Network,
     /// Its model, after `adjust`.
     pub model: &'a Model,
@@ -170,8 +165,8 @@ pub struct Sweep {
 enum Point {
     /// Scale every source of the base model by this factor.
     Scale(f64),
-    /// Rebuild the network with one more override (key, value with unit).
-    Set(String, String),
+    /// Write one typed value into a copy of the network.
+    Set(Key, f64),
 }
 
 /// Why a power or photon-flux sweep has nothing to scale.
@@ -219,14 +214,18 @@ fn point(spec: &SweepSpec, base: &Base, v: f64) -> Result<Point> {
                 )));
             };
             let field = if matches!(l.kind, LightKind::Line { .. }) {
-                "wavelength"
+                LightField::Wavelength
             } else {
-                "centre"
+                LightField::Centre
             };
-            Point::Set(format!("light.{}.{field}", l.name), format!("{} nm", v * 1e9))
+            let light = base.network.lights.iter().position(|x| x.name == l.name).unwrap_or(0);
+            Point::Set(Key::Light { light, field }, v)
         }
-        Swept::Temperature => Point::Set("conditions.temperature".into(), format!("{v} K")),
-        Swept::Concentration(name) => Point::Set(format!("species.{name}.initial"), format!("{v} M")),
+        Swept::Temperature => Point::Set(Key::Condition(ConditionField::Temperature), v),
+        Swept::Concentration(name) => match base.network.species_index(name) {
+            Some(i) => Point::Set(Key::Initial(i), v),
+            None => return Err(Error::Usage(format!("--sweep: no species \"{name}\""))),
+        },
     })
 }
 
@@ -254,12 +253,9 @@ pub fn run(
         .map(|(value, p)| {
             let model = match p {
                 Point::Scale(f) => base.model.with_light_scale(f),
-                Point::Set(key, text) => {
-                    let mut ov = Overrides::none();
-                    for (k, v) in base.overrides {
-                        ov = ov.with(k, v);
-                    }
-                    let net = network::build(base.loaded, &ov.with(&key, &text))?;
+                Point::Set(key, v) => {
+                    let mut net = base.network.clone();
+                    params::set(&mut net, key, v).map_err(|m| Error::Usage(format!("--sweep {m}")))?;
                     adjust(Model::compile(&net))
                 }
             };
@@ -285,7 +281,7 @@ mod tests {
         let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/networks/photoswitch.toml"))
             .expect("bundled network");
         let loaded = crate::file::parse_text(Path::new("photoswitch.toml"), text).expect("parses");
-        network::build(&loaded, &Overrides::none()).expect("valid")
+        crate::network::build(&loaded, &crate::network::Overrides::none()).expect("valid")
     }
 
     fn err(text: &str) -> String {

@@ -66,6 +66,14 @@ pub fn eyring(barrier: f64, temperature: f64, order: u32, transmission: f64) -> 
     transmission * BOLTZMANN * temperature / PLANCK * c0 * (-barrier / (GAS_CONSTANT * temperature)).exp()
 }
 
+/// The Eyring ΔG‡ (J/mol, standard state 1 mol/L) that gives rate constant `k`
+/// ((L/mol)^(order−1) s⁻¹) at `temperature` K with transmission coefficient `transmission`: the
+/// inverse of [`eyring`].
+pub fn eyring_barrier(k: f64, temperature: f64, order: u32, transmission: f64) -> f64 {
+    let c0 = STANDARD_CONCENTRATION.powi(1 - order as i32);
+    -GAS_CONSTANT * temperature * (k * PLANCK / (transmission * BOLTZMANN * temperature * c0)).ln()
+}
+
 /// Arrhenius rate constant at `temperature` K.
 pub fn arrhenius(prefactor: f64, activation: f64, temperature: f64) -> f64 {
     prefactor * (-activation / (GAS_CONSTANT * temperature)).exp()
@@ -111,11 +119,7 @@ impl RateLaw {
         match *self {
             RateLaw::EyringFree { barrier, .. } => barrier,
             RateLaw::EyringEnthalpy { enthalpy, entropy, .. } => enthalpy - temperature * entropy,
-            _ => {
-                let k = self.rate_constant(temperature, order);
-                let pre = BOLTZMANN * temperature / PLANCK;
-                -GAS_CONSTANT * temperature * (k / pre).ln()
-            }
+            _ => eyring_barrier(self.rate_constant(temperature, order), temperature, order, 1.0),
         }
     }
 }

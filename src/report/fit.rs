@@ -45,9 +45,10 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
     );
     let _ = writeln!(
         o,
-        "search   {} ({} evaluations); {} start(s), {} ended with a χ²",
+        "search   {} ({} evaluations, {}); {} start(s), {} ended with a χ²",
         s.termination,
         s.evaluations,
+        r.derivatives.describe(),
         r.starts.len(),
         r.starts.iter().filter(|x| x.chi2.is_ok()).count()
     );
@@ -166,7 +167,7 @@ pub fn fit_json(network: &str, r: &FitResult) -> serde_json::Value {
         "chi2": s.chi2, "reduced_chi2": s.reduced_chi2, "dof": s.dof, "observations": r.n,
         "weighted": r.weighted, "aicc": r.aicc, "bic": r.bic, "minus_two_log_likelihood": r.minus_two_log_likelihood,
         "warnings": r.warnings, "termination": s.termination, "converged": r.stopped.is_none(),
-        "not_converged": r.stopped.as_ref().map(|st| not_converged_text(st, s.chi2)), "evaluations": s.evaluations,
+        "not_converged": r.stopped.as_ref().map(|st| not_converged_text(st, s.chi2)), "evaluations": s.evaluations, "derivatives": r.derivatives.word(),
         "goodness_of_fit": goodness_json(&r.goodness),
         "starts": r.starts.iter().map(|x| json!({"start": x.start, "chi2": x.chi2.as_ref().ok(), "failure": x.chi2.as_ref().err()})).collect::<Vec<_>>(),
         "interval_method": json!({
@@ -541,6 +542,7 @@ reverse = { prefactor = "1e10 /s", activation = "90 kJ/mol" }
                 let p = parameter(&net, k).unwrap_or_else(|e| panic!("{e}"));
                 Free {
                     key: k.to_string(),
+                    address: p.address,
                     start: p.value,
                     unit: p.unit,
                     transform: Transform::Identity,
@@ -566,6 +568,7 @@ reverse = { prefactor = "1e10 /s", activation = "90 kJ/mol" }
         }
         let bad = Free {
             key: "thermal.nothing.k".into(),
+            address: free[0].address,
             start: 1.0,
             unit: "/s",
             transform: Transform::Log,

@@ -416,7 +416,8 @@ uniform = ["1e-5 /s", "2e-5 /s"]
             until: Some(7200.0),
             target: None,
         };
-        let p = Problem::new(&l, vec![], space, settings).expect("problem");
+        let net = crate::network::build(&l, &crate::network::Overrides::none()).expect("valid");
+        let p = Problem::new(&net, space, settings).expect("problem");
         let r = p.record(1, 40, 0..40, &|| {});
         let s = summarise(&r);
         (r, s)

@@ -29,47 +29,7 @@ use crate::error::{Error, Result};
 use nalgebra::{DMatrix, DVector};
 use serde::Deserialize;
 
-/// The map between a parameter's value and the scale of the covariance.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, Default)]
-#[serde(rename_all = "lowercase")]
-pub enum Transform {
-    /// t(v) = v.
-    #[default]
-    None,
-    /// t(v) = ln v.
-    Log,
-    /// t(v) = ln(v / (1 − v)).
-    Logit,
-}
-
-impl Transform {
-    /// The word used in the JSON.
-    pub fn word(self) -> &'static str {
-        match self {
-            Transform::None => "none",
-            Transform::Log => "log",
-            Transform::Logit => "logit",
-        }
-    }
-
-    /// t(v); None outside the domain.
-    pub fn forward(self, v: f64) -> Option<f64> {
-        match self {
-            Transform::None => Some(v),
-            Transform::Log => (v > 0.0).then(|| v.ln()),
-            Transform::Logit => (v > 0.0 && v < 1.0).then(|| (v / (1.0 - v)).ln()),
-        }
-    }
-
-    /// t⁻¹(z).
-    pub fn inverse(self, z: f64) -> f64 {
-        match self {
-            Transform::None => z,
-            Transform::Log => z.exp(),
-            Transform::Logit => 1.0 / (1.0 + (-z).exp()),
-        }
-    }
-}
+pub use crate::network::params::Transform;
 
 #[derive(Deserialize)]
 struct JsonParameter {
@@ -136,8 +96,8 @@ impl FitBlock {
             if !p.value.is_finite() {
                 return Err(bad(format!("\"{}\": value is not finite", p.key)));
             }
-            let t = if transformed { p.transform } else { Transform::None };
-            let c = t.forward(p.value).ok_or_else(|| {
+            let t = if transformed { p.transform } else { Transform::Identity };
+            let c = t.checked(p.value).ok_or_else(|| {
                 bad(format!(
                     "\"{}\": value {} is outside the domain of the {} transform",
                     p.key,

@@ -20,11 +20,11 @@ pub mod spec;
 pub mod stats;
 
 use crate::chain;
-use crate::error::{Diagnostic, Error, Result, Severity};
-use crate::file::Loaded;
+use crate::error::{Diagnostic, Error, Result};
 use crate::kinetics::{self, Stop};
 use crate::model::Model;
-use crate::network::{Network, Overrides};
+use crate::network::Network;
+use crate::network::params::{self, Key};
 use crate::units;
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
@@ -144,16 +144,22 @@ pub struct Record {
 }
 
 /// A network ready to be sampled.
-pub struct Problem<'a> {
-    loaded: &'a Loaded,
-    base: Vec<(String, String)>,
+pub struct Problem {
+    /// The network as given (with the command line's values), built and validated once.
+    base: Network,
+    /// The typed address of each uncertain value, in parameter order.
+    keys: Vec<Key>,
+    /// Each value's map to the internal unit: internal = offset + per × drawn.
+    to_internal: Vec<(f64, f64)>,
+    /// Hash of the network's numbers (for merging shards of the same run).
+    network_hash: u64,
     space: Space,
     settings: Settings,
     outputs: Vec<Output>,
     columns: Vec<Column>,
     notes: Vec<String>,
     network_name: String,
-    /// The internal unit of each parameter's values, from `network::overrides::parameter`.
+    /// The unit of each parameter's drawn values (its own, else the key's internal one).
     param_units: Vec<String>,
 }
 
@@ -165,19 +171,14 @@ fn fnv1a(bytes: &[u8], mut h: u64) -> u64 {
     h
 }
 
-impl<'a> Problem<'a> {
-    /// Check every parameter's key (the network is built once with each nominal value) and
-    /// work out the outputs from the network at the nominal values.
+impl Problem {
+    /// Check every parameter's key and unit against `base` (the network as given, with the
+    /// command line's values; the drawn values are written over it) and work out the outputs
+    /// from the network at the nominal values.
     ///
-    /// `base` are `--set` overrides applied to every sample (the drawn values come after and
-    /// win). A key the network does not have, or a value of the wrong kind, is an error at the
+    /// A key the network does not have, or a value of the wrong kind, is an error at the
     /// `[[uncertain]]` entry (or a usage error for a fit's key).
-    pub fn new(
-        loaded: &'a Loaded,
-        base: Vec<(String, String)>,
-        space: Space,
-        settings: Settings,
-    ) -> Result<Problem<'a>> {
+    pub fn new(base: &Network, space: Space, settings: Settings) -> Result<Problem> {
         if space.is_empty() {
             return Err(Error::Usage(
                 "nothing is uncertain: add [[uncertain]] entries to the network file (README, Uncertainty) or give --from-fit"
@@ -193,8 +194,10 @@ impl<'a> Problem<'a> {
             return Err(Error::Usage("--target needs --until (the longest time to wait)".into()));
         }
         let mut p = Problem {
-            loaded,
-            base,
+            base: base.clone(),
+            keys: Vec::new(),
+            to_internal: Vec::new(),
+            network_hash: crate::network::fingerprint(base),
             space,
             settings,
             outputs: Vec::new(),
@@ -203,49 +206,31 @@ impl<'a> Problem<'a> {
             network_name: String::new(),
             param_units: Vec::new(),
         };
-        // The network as given (with --set) must be valid before anything is drawn.
-        let net0 = crate::network::build(loaded, &p.overrides(&[], &[]))?;
-        p.network_name = net0.about.name.clone();
+        p.network_name = base.about.name.clone();
         let params: Vec<spec::Parameter> = p.space.parameters().into_iter().cloned().collect();
-        // The unit of each key is what `overrides` says it is; values given with a unit of their
-        // own are drawn in that unit (an internal one, see `spec::Parameter::unit`).
-        p.param_units = params
-            .iter()
-            .map(|q| match crate::network::overrides::parameter(&net0, &q.key) {
-                Ok(k) if q.unit.is_empty() => k.unit.to_string(),
-                _ => q.unit.clone(),
-            })
-            .collect();
         let mut diags = Vec::new();
         for q in &params {
-            let text = q.override_text(q.distribution.nominal());
-            if let Err(e) = crate::network::build(loaded, &p.overrides(&[q.key.as_str()], std::slice::from_ref(&text)))
-            {
-                let msg = match &e {
-                    Error::Invalid(ds) => ds
-                        .iter()
-                        .filter(|d| d.severity == Severity::Error)
-                        .map(|d| format!("{}: {}", d.field, d.message))
-                        .collect::<Vec<_>>()
-                        .join("; "),
-                    other => other.to_string(),
-                };
-                let mut d = Diagnostic::error(
-                    format!("uncertain \"{}\"", q.key),
-                    format!("the network does not take \"{text}\" at this key: {msg}"),
-                )
-                .with_help(format!(
-                    "the key is a --set key ({}) and the value must have that field's unit",
-                    crate::network::overrides::ACCEPTED
-                ));
-                match q.line {
-                    Some(l) => {
-                        d.file = Some(loaded.path.clone());
-                        d.line_col = Some((l, 1));
-                    }
-                    None => d.field = format!("--from-fit \"{}\"", q.key),
+            match typed(base, q) {
+                Ok((key, unit, map)) => {
+                    p.keys.push(key);
+                    p.param_units.push(unit);
+                    p.to_internal.push(map);
                 }
-                diags.push(d);
+                Err(msg) => {
+                    let mut d = Diagnostic::error(format!("uncertain \"{}\"", q.key), msg).with_help(format!(
+                        "the key is a --set key ({}) and the value must have that field's unit",
+                        crate::network::overrides::ACCEPTED
+                    ));
+                    match (q.line, &base.source) {
+                        (Some(l), Some(file)) => {
+                            d.file = Some(file.clone());
+                            d.line_col = Some((l, 1));
+                        }
+                        (Some(_), None) => {}
+                        (None, _) => d.field = format!("--from-fit \"{}\"", q.key),
+                    }
+                    diags.push(d);
+                }
             }
         }
         if !diags.is_empty() {
@@ -295,23 +280,19 @@ impl<'a> Problem<'a> {
         Ok(p)
     }
 
-    fn overrides(&self, keys: &[&str], values: &[String]) -> Overrides {
-        let mut o = Overrides::none();
-        for (k, v) in &self.base {
-            o = o.with(k, v);
-        }
-        for (k, v) in keys.iter().zip(values) {
-            o = o.with(k, v);
-        }
-        o
-    }
-
-    /// The network at drawn `values` (in parameter order).
+    /// The network at drawn `values` (in parameter order, each in its parameter's unit),
+    /// written over the base as typed values.
     pub fn network(&self, values: &[f64]) -> Result<Network> {
-        let params = self.space.parameters();
-        let keys: Vec<&str> = params.iter().map(|p| p.key.as_str()).collect();
-        let texts: Vec<String> = params.iter().zip(values).map(|(p, v)| p.override_text(*v)).collect();
-        crate::network::build(self.loaded, &self.overrides(&keys, &texts))
+        let mut net = self.base.clone();
+        let typed: Vec<(Key, f64)> = self
+            .keys
+            .iter()
+            .zip(&self.to_internal)
+            .zip(values)
+            .map(|((&k, &(offset, per)), &v)| (k, offset + per * v))
+            .collect();
+        params::set_all(&mut net, &typed).map_err(|m| Error::Usage(format!("a drawn value: {m}")))?;
+        Ok(net)
     }
 
     /// The output columns.
@@ -405,10 +386,9 @@ impl<'a> Problem<'a> {
 
     /// The header of a run of `total` samples holding `range`.
     pub fn header(&self, seed: u64, total: usize, range: Range<usize>) -> Header {
-        let mut h = fnv1a(self.loaded.text.as_bytes(), 0xcbf29ce484222325);
-        h = fnv1a(
-            format!("{:?}{:?}{:?}", self.base, self.space, self.settings).as_bytes(),
-            h,
+        let h = fnv1a(
+            format!("{:?}{:?}", self.space, self.settings).as_bytes(),
+            self.network_hash,
         );
         Header {
             format: FORMAT.into(),
@@ -455,6 +435,30 @@ impl<'a> Problem<'a> {
             samples: self.run(seed, range, progress),
         }
     }
+}
+
+/// The typed key of an uncertain value, the unit its values are drawn in, and the map from that
+/// unit to the internal one (internal = offset + per × drawn), checked at the nominal value.
+fn typed(base: &Network, q: &spec::Parameter) -> std::result::Result<(Key, String, (f64, f64)), String> {
+    let key = Key::parse(base, &q.key)?;
+    let p = params::get(base, key);
+    let (unit, map) = if q.unit.is_empty() || q.unit == p.unit {
+        (p.unit.to_string(), (0.0, 1.0))
+    } else {
+        // A unit of its own (a fit's JSON): read 0 and 1 of it once (°C has an offset).
+        let zero = p.parse_value(&format!("0 {}", q.unit))?;
+        let one = p.parse_value(&format!("1 {}", q.unit))?;
+        (q.unit.clone(), (zero, one - zero))
+    };
+    let nominal = q.distribution.nominal();
+    let mut trial = base.clone();
+    params::set(&mut trial, key, map.0 + map.1 * nominal).map_err(|m| {
+        format!(
+            "the network does not take {} at this key: {m}",
+            q.override_text(nominal)
+        )
+    })?;
+    Ok((key, unit, map))
 }
 
 fn one_line(e: &Error) -> String {

@@ -88,7 +88,7 @@ impl Distribution {
                 format!("lognormal(median {}, factor {})", g(median), n(factor))
             }
             Distribution::FromFit { value, transform } => match transform {
-                Transform::None => format!("fit covariance, best {}", g(value)),
+                Transform::Identity => format!("fit covariance, best {}", g(value)),
                 t => format!("fit covariance, best {}, drawn on the {} scale", g(value), t.word()),
             },
         }

@@ -31,6 +31,7 @@ impl Builder<'_> {
                     kind,
                     channels: Vec::new(),
                     energy_from: None,
+                    hot: None,
                 });
                 continue;
             }
@@ -94,10 +95,12 @@ impl Builder<'_> {
             }
             // A channel already reported as broken would only add follow-on errors about sums.
             let complete = channels.len() == t.get_ref().channels.len() && !hot_broken;
-            let hot_ok = complete
-                && self
-                    .derived()
-                    .hot_yields(&field, t, kind, &hot, &mut channels, &photon[i]);
+            let (hot_ok, hot_model) = if complete {
+                self.derived()
+                    .hot_yields(&field, t, kind, &hot, &mut channels, &photon[i])
+            } else {
+                (false, None)
+            };
             let photon_energy = t
                 .get_ref()
                 .energy
@@ -111,6 +114,7 @@ impl Builder<'_> {
                 kind,
                 channels: channels.into_iter().map(|c| c.0).collect(),
                 energy_from: (photon_energy && !hot.is_empty()).then(|| photon[i].describe()),
+                hot: hot_model,
             });
         }
         out
