@@ -122,8 +122,6 @@ fn sweep_points(network_file: &str, spec: &str, target: &str) -> (plan::sweep::S
     let model = Model::compile(&net);
     let spec = plan::sweep::parse(spec, &net).expect("spec");
     let base = plan::sweep::Base {
-        loaded: &loaded,
-        overrides: &[],
         network: &net,
         model: &model,
     };

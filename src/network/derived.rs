@@ -487,6 +487,7 @@ impl Derived<'_, '_> {
                 &Field {
                     value: t.get_ref().clone(),
                     origin: span(t),
+                    key: None,
                 },
                 Quantity::MolarEnergy,
             ),
@@ -506,6 +507,7 @@ impl Derived<'_, '_> {
                 &Field {
                     value: t.get_ref().clone(),
                     origin: span(t),
+                    key: None,
                 },
                 Quantity::Time,
             ),
@@ -517,6 +519,7 @@ impl Derived<'_, '_> {
                 &Field {
                     value: t.get_ref().clone(),
                     origin: span(t),
+                    key: None,
                 },
                 Quantity::MolarEnergy,
             ),

@@ -37,6 +37,9 @@ pub(super) fn origin<T>(s: &Spanned<T>) -> Origin {
 pub(super) struct Field {
     pub(super) value: String,
     pub(super) origin: Origin,
+    /// The `--set` key when the value came from the command line: errors about the value then
+    /// name the key the user typed (`light.blue LED.power`), not the file position (`light[1]`).
+    pub(super) key: Option<String>,
 }
 
 impl Field {
@@ -45,6 +48,7 @@ impl Field {
         Field {
             value: t.get_ref().clone(),
             origin: origin(t),
+            key: None,
         }
     }
 }
@@ -111,6 +115,7 @@ impl<'a> Sink<'a> {
 
     /// Read a quantity; report a located error and return None when it cannot be read.
     pub(super) fn quantity(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
+        let field = f.key.as_deref().unwrap_or(field);
         match units::parse(&f.value, q) {
             Ok(v) => Some(v),
             Err(e) => {
@@ -123,6 +128,7 @@ impl<'a> Sink<'a> {
     /// A quantity that must be positive (and finite).
     pub(super) fn positive(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
         let v = self.quantity(field, f, q)?;
+        let field = f.key.as_deref().unwrap_or(field);
         if v <= 0.0 {
             self.error(
                 field,
@@ -138,6 +144,7 @@ impl<'a> Sink<'a> {
     /// A quantity that may be zero but not negative (a light's intensity: zero is a dark run).
     pub(super) fn non_negative(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
         let v = self.quantity(field, f, q)?;
+        let field = f.key.as_deref().unwrap_or(field);
         if v < 0.0 {
             self.error(
                 field,
@@ -223,5 +230,19 @@ mod tests {
         assert!(d[0].from_command_line && d[0].line_col.is_none(), "{:?}", d[0]);
         assert_eq!(d[0].field, "thermal[0].rate.transmission");
         assert!(!d[1].from_command_line && d[1].line_col == Some((2, 1)), "{:?}", d[1]);
+    }
+
+    #[test]
+    fn a_bad_value_put_in_by_set_is_named_by_its_key() {
+        let mut s = Sink::new(Path::new("n.toml"), "a = 1\n");
+        let f = Field {
+            value: "-5 mW".into(),
+            origin: Origin::CommandLine,
+            key: Some("light.blue LED.power".into()),
+        };
+        assert!(s.non_negative("light[1].power", &f, Quantity::Power).is_none());
+        let d = s.into_diagnostics();
+        assert_eq!(d[0].field, "light.blue LED.power");
+        assert!(d[0].from_command_line);
     }
 }

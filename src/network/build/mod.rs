@@ -108,11 +108,13 @@ impl<'a> Builder<'a> {
             return Some(Field {
                 value: v.to_string(),
                 origin: Origin::CommandLine,
+                key: Some(k.to_string()),
             });
         }
         value.map(|t| Field {
             value: t.get_ref().clone(),
             origin: span(t),
+            key: None,
         })
     }
 

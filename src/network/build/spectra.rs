@@ -96,6 +96,7 @@ impl Builder<'_> {
                 &Field {
                     value: text.clone(),
                     origin: at.clone(),
+                    key: None,
                 },
                 Quantity::Wavelength,
             )
@@ -156,6 +157,7 @@ impl Builder<'_> {
                 &Field {
                     value: s.clone(),
                     origin: at.clone(),
+                    key: None,
                 },
                 q,
             )?,

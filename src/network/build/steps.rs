@@ -129,6 +129,7 @@ impl Builder<'_> {
             &Field {
                 value: v[0].clone(),
                 origin: at.clone(),
+                key: None,
             },
             Quantity::Wavelength,
         )?;
@@ -137,6 +138,7 @@ impl Builder<'_> {
             &Field {
                 value: v[1].clone(),
                 origin: at.clone(),
+                key: None,
             },
             Quantity::Wavelength,
         )?;
