@@ -705,6 +705,9 @@ pub fn summarise(r: &Record) -> Summary {
                 .iter()
                 .map(|&q| (q, stats::quantile_censored(&v, censored, q)))
                 .collect();
+            // Values within round-off of zero are zero for the ranking too: ties, not noise
+            // (a species consumed to 1e-15 M in some samples and to -1e-16 M in others).
+            let y = at_round_off(col, y);
             let mut drivers: Vec<Driver> = r
                 .header
                 .parameters
@@ -760,9 +763,90 @@ pub fn summarise(r: &Record) -> Summary {
     }
 }
 
+/// `y` with every finite value within the column's round-off limit of zero set to 0: its
+/// absolute limit, or its relative one times the largest finite magnitude.
+fn at_round_off(col: &Column, y: Vec<f64>) -> Vec<f64> {
+    let largest = y.iter().filter(|v| v.is_finite()).fold(0.0f64, |m, v| m.max(v.abs()));
+    let limit = match (col.zero_within, col.zero_within_relative) {
+        (Some(a), _) => a,
+        (None, Some(rel)) => rel * largest,
+        (None, None) => return y,
+    };
+    y.into_iter()
+        .map(|v| if v.is_finite() && v.abs() <= limit { 0.0 } else { v })
+        .collect()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    fn column(name: &str, zero_within: Option<f64>) -> Column {
+        Column {
+            name: name.into(),
+            unit: "M".into(),
+            about: String::new(),
+            zero_within,
+            zero_within_relative: None,
+            censored_above: None,
+        }
+    }
+
+    #[test]
+    fn outputs_at_round_off_rank_as_ties_not_as_noise() {
+        // Half the samples consume the species to round-off (|c| ≤ 1e-12 M), where the value
+        // follows parameter a by accident of the integrator; the other half keep some of it,
+        // set by parameter b. The ranking must see b only.
+        let n = 200;
+        let samples: Vec<Sample> = (0..n)
+            .map(|i| {
+                let (a, b) = ((i * 37 % n) as f64 / n as f64, (i * 91 % n) as f64 / n as f64);
+                let c = if i % 2 == 0 {
+                    1e-13 * (a - 0.5)
+                } else {
+                    1e-3 * (0.5 + b)
+                };
+                Sample {
+                    index: i,
+                    values: vec![a, b],
+                    outputs: vec![Some(c)],
+                    error: None,
+                }
+            })
+            .collect();
+        let record = |zero_within| Record {
+            header: Header {
+                format: FORMAT.into(),
+                network: "invented".into(),
+                fingerprint: String::new(),
+                seed: 1,
+                total: n,
+                first: 0,
+                end: n,
+                parameters: vec![column("a", None), column("b", None)],
+                outputs: vec![column("final[S]", zero_within)],
+                notes: Vec::new(),
+            },
+            samples: samples.clone(),
+        };
+        let rho = |r: &Record, p: &str| {
+            let s = summarise(r);
+            s.outputs[0]
+                .drivers
+                .iter()
+                .find(|d| d.parameter == p)
+                .unwrap()
+                .spearman
+                .unwrap()
+        };
+        // Without the limit the round-off half ranks by a: a spurious dependence.
+        let raw = record(None);
+        assert!(rho(&raw, "a").abs() > 0.25, "{}", rho(&raw, "a"));
+        // With it those samples tie at 0: a drops out, b stays.
+        let tied = record(Some(1e-12));
+        assert!(rho(&tied, "a").abs() < 0.1, "{}", rho(&tied, "a"));
+        assert!(rho(&tied, "b") > 0.25, "{}", rho(&tied, "b"));
+    }
 
     #[test]
     fn shards_cover_every_index_once() {
