@@ -126,6 +126,9 @@ pub struct Solution {
     pub rcond: f64,
     /// Model evaluations used by this search (Jacobian columns included).
     pub evaluations: usize,
+    /// Jacobians the search asked for (with central differences each cost two evaluations per
+    /// parameter; with exact derivatives they come with an evaluation).
+    pub jacobians: usize,
     /// How the search ended, in words.
     pub termination: String,
     /// False when the search stopped before meeting its tolerances (an evaluation cap or a time
@@ -254,6 +257,7 @@ struct Problem<'a> {
     tick: &'a (dyn Fn(&Budget) + Sync),
     best: RefCell<Option<(f64, Vec<f64>)>>,
     evaluations: RefCell<usize>,
+    jacobians: RefCell<usize>,
     /// With exact derivatives: the Jacobian on the transformed scale at the point last evaluated.
     exact: RefCell<Option<(Vec<f64>, DMatrix<f64>)>>,
 }
@@ -353,6 +357,7 @@ impl LeastSquaresProblem<f64, Dyn, Dyn> for Problem<'_> {
     }
 
     fn jacobian(&self) -> Option<DMatrix<f64>> {
+        *self.jacobians.borrow_mut() += 1;
         if self.model.has_derivatives() {
             let cached = || {
                 let c = self.exact.borrow();
@@ -404,6 +409,7 @@ pub fn fit_within(
         tick,
         best: RefCell::new(None),
         evaluations: RefCell::new(0),
+        jacobians: RefCell::new(0),
         exact: RefCell::new(None),
     };
     if problem.residuals().is_none() {
@@ -437,6 +443,7 @@ pub fn fit_within(
     };
     let values = problem.natural(&z);
     let mut s = statistics(model, values, z, transforms, settings, evaluations, termination)?;
+    s.jacobians = *problem.jacobians.borrow();
     s.converged = stop.is_none();
     Ok(s)
 }
@@ -573,6 +580,7 @@ fn statistics(
         correlation,
         rcond,
         evaluations,
+        jacobians: 0,
         termination,
         converged: true,
     })
