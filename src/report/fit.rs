@@ -26,6 +26,16 @@ pub fn value_text(f: &Free, v: f64) -> String {
     }
 }
 
+/// A correlation coefficient as shown: "+0.123", or "—" where there is none (a parameter held on
+/// the edge of its range).
+pub fn correlation_text(c: f64) -> String {
+    if c.is_finite() {
+        format!("{c:+.3}")
+    } else {
+        "—".to_string()
+    }
+}
+
 /// The fit as a text table: values ± se, 95 % intervals, correlation, χ², warnings.
 pub fn fit_text(network: &str, r: &FitResult) -> String {
     let s = &r.solution;
@@ -100,9 +110,15 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
         let _ = writeln!(o, "\ncorrelation");
         for i in 0..r.free.len() {
             let row: Vec<String> = (0..r.free.len())
-                .map(|j| format!("{:+.3}", s.correlation[(i, j)]))
+                .map(|j| format!("{:>6}", correlation_text(s.correlation[(i, j)])))
                 .collect();
             let _ = writeln!(o, "  {:<w$}  {}", r.free[i].key, row.join("  "));
+        }
+        if s.correlation.iter().any(|c| !c.is_finite()) {
+            let _ = writeln!(
+                o,
+                "  (— : a parameter held on the edge of its range has no correlation)"
+            );
         }
     }
     let _ = writeln!(o, "\nχ² = {}, reduced χ² = {}", sig(s.chi2, 6), sig(s.reduced_chi2, 4));

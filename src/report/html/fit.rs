@@ -97,7 +97,7 @@ pub fn section(f: &FitStudy) -> String {
             .map(|i| {
                 let mut t = text_cell(&r.free[i].key);
                 for j in 0..r.free.len() {
-                    t.push_str(&num_cell(&format!("{:+.3}", s.correlation[(i, j)])));
+                    t.push_str(&num_cell(&crate::report::fit::correlation_text(s.correlation[(i, j)])));
                 }
                 t
             })
