@@ -260,7 +260,14 @@ struct Problem<'a> {
     jacobians: RefCell<usize>,
     /// With exact derivatives: the Jacobian on the transformed scale at the point last evaluated.
     exact: RefCell<Option<(Vec<f64>, DMatrix<f64>)>>,
+    /// The number of residuals, known from the start.
+    size: RefCell<usize>,
 }
+
+/// Each residual of a trial point the model cannot evaluate (a barrier so low that the rate
+/// constant overflows, a value outside its range): far worse than any real point, so the search
+/// rejects the step and shortens it instead of giving up.
+const UNUSABLE: f64 = 1e100;
 
 impl Problem<'_> {
     fn natural(&self, z: &[f64]) -> Vec<f64> {
@@ -294,6 +301,16 @@ impl Problem<'_> {
             self.model.residuals(&x)
         };
         let r = r.filter(|r| r.iter().all(|v| v.is_finite()));
+        if first && let Some(r) = &r {
+            *self.size.borrow_mut() = r.len();
+        }
+        let r = match r {
+            None if !first => {
+                (self.tick)(self.budget);
+                return Some(vec![UNUSABLE; *self.size.borrow()]);
+            }
+            r => r,
+        };
         if let Some(r) = &r {
             let chi2: f64 = r.iter().map(|v| v * v).sum();
             let mut best = self.best.borrow_mut();
@@ -411,6 +428,7 @@ pub fn fit_within(
         evaluations: RefCell::new(0),
         jacobians: RefCell::new(0),
         exact: RefCell::new(None),
+        size: RefCell::new(0),
     };
     if problem.residuals().is_none() {
         return Err(FitFailure("the model cannot be evaluated at the start".into()));
@@ -875,5 +893,15 @@ mod tests {
         let s = fit(&m, &[0.5, 0.5], &[Transform::Identity; 2], &Settings::default()).unwrap();
         let w = s.warnings(&[Transform::Identity; 2]);
         assert!(w.iter().any(|w| matches!(w, Identifiability::NearSingular(_))), "{w:?}");
+    }
+
+    #[test]
+    fn a_trial_step_the_model_cannot_evaluate_is_shortened_not_fatal() {
+        // r(x) = eˣ − e from x = −3: the Gauss–Newton step lands near x = 50, where this model
+        // (like a barrier so low that its rate constant overflows) cannot be evaluated. The
+        // search must reject that step, shorten it and reach x = 1.
+        let m = |p: &[f64]| (p[0] < 5.0).then(|| vec![p[0].exp() - 1f64.exp()]);
+        let s = fit(&m, &[-3.0], &[Transform::Identity], &Settings::default()).unwrap();
+        assert!(s.converged && (s.values[0] - 1.0).abs() < 1e-6, "{:?}", s.values);
     }
 }
