@@ -135,7 +135,7 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
     for w in &r.warnings {
         let _ = writeln!(o, "warning: {w}");
     }
-    let _ = writeln!(o, "\nsafety: {CAUTIONS}");
+    let _ = writeln!(o, "\ncaution: {CAUTIONS}");
     o
 }
 

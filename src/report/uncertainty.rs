@@ -165,7 +165,7 @@ pub fn text(s: &Summary) -> String {
     }
     let _ = writeln!(
         o,
-        "\n  quantiles interpolate between order statistics (Hyndman & Fan definition 7); sd uses n − 1.\n  {CAUTIONS}"
+        "\n  quantiles interpolate between order statistics (Hyndman & Fan definition 7); sd uses n − 1.\n  caution: {CAUTIONS}"
     );
     o
 }
