@@ -171,6 +171,11 @@ fn demo() -> Vec<Experiment> {
     data::read(Path::new(EXPERIMENTS)).unwrap()
 }
 
+/// The network of `loaded` as given (no `--set`).
+fn built(loaded: &photoledger::file::Loaded) -> photoledger::network::Network {
+    photoledger::network::build(loaded, &photoledger::network::Overrides::none()).unwrap()
+}
+
 fn keys() -> Vec<String> {
     vec![
         "photo.E to Z.quantum_yield".into(),
@@ -184,26 +189,14 @@ fn fit_on(net: &str, experiments: &[Experiment]) -> FitResult {
 
 fn fit_with(net: &str, experiments: &[Experiment], opts: &FitOptions) -> FitResult {
     let loaded = photoledger::file::load(Path::new(net)).unwrap();
-    let setup = Setup::new(
-        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
-        experiments,
-        &keys(),
-        Accuracy::default(),
-    )
-    .unwrap();
+    let setup = Setup::new(&built(&loaded), experiments, &keys(), Accuracy::default()).unwrap();
     mechanism::fit(&setup, opts, &|_| {}).unwrap()
 }
 
 fn synthetic(seed: u64) -> Vec<Experiment> {
     let loaded = photoledger::file::load(Path::new(NET)).unwrap();
     let t = demo();
-    let setup = Setup::new(
-        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
-        &t,
-        &keys(),
-        Accuracy::default(),
-    )
-    .unwrap();
+    let setup = Setup::new(&built(&loaded), &t, &keys(), Accuracy::default()).unwrap();
     mechanism::synthesize(&setup, &TRUE, seed).unwrap()
 }
 
@@ -252,12 +245,7 @@ fn bad_data_name_the_file_and_line() {
     let loaded = photoledger::file::load(Path::new(NET)).unwrap();
     let mut t = demo();
     t[0].points[3].species = "Z-azobenzene".into();
-    let e = match Setup::new(
-        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
-        &t,
-        &keys(),
-        Accuracy::default(),
-    ) {
+    let e = match Setup::new(&built(&loaded), &t, &keys(), Accuracy::default()) {
         Err(e) => e.to_string(),
         Ok(_) => panic!("an unknown species must be an error"),
     };
@@ -266,7 +254,7 @@ fn bad_data_name_the_file_and_line() {
         "{e}"
     );
     let e = Setup::new(
-        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
+        &built(&loaded),
         &demo(),
         &["photo.E to Y.quantum_yield".into()],
         Accuracy::default(),
@@ -410,13 +398,7 @@ fn end_points_agree_with_the_time_course_and_lifetimes_with_the_rates() {
         ep(EndpointKind::Yield("Z-azo".into())),
         ep(EndpointKind::Ratio("Z-azo".into(), "E-azo".into())),
     ];
-    let setup = Setup::new(
-        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
-        &d,
-        &keys(),
-        Accuracy::default(),
-    )
-    .unwrap();
+    let setup = Setup::new(&built(&loaded), &d, &keys(), Accuracy::default()).unwrap();
     let p = setup.predict(&d[0], &setup.start()).unwrap();
     let at = |s: &str| {
         let i = d[0]
@@ -467,13 +449,7 @@ fn a_quantum_yield_per_photon_absorbed_by_the_reactant_and_per_photon_absorbed_b
         ep(EndpointKind::ReactantQuantumYield("Z-azo".into(), "E-azo".into())),
         ep(EndpointKind::QuantumYield("Z-azo".into())),
     ];
-    let setup = Setup::new(
-        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
-        &d,
-        &keys(),
-        Accuracy::default(),
-    )
-    .unwrap();
+    let setup = Setup::new(&built(&loaded), &d, &keys(), Accuracy::default()).unwrap();
     let p = setup.predict(&d[0], &setup.start()).unwrap();
     assert!(
         rel(p.endpoints[0], 0.12) < 3e-4,
@@ -487,22 +463,14 @@ fn a_quantum_yield_per_photon_absorbed_by_the_reactant_and_per_photon_absorbed_b
     both.set.retain(|(k, _)| k != "light.blue LED.power");
     both.until = Some(3600.0);
     let both = [both];
-    let net = photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap();
+    let net = built(&loaded);
     let setup = Setup::new(&net, &both, &keys(), Accuracy::default()).unwrap();
     let p = setup.predict(&both[0], &setup.start()).unwrap();
     assert!(p.endpoints[1] < 0.9 * p.endpoints[0], "{:?}", p.endpoints);
     // A reactant that absorbs nothing is an error naming the line.
     let mut d = demo();
     d[0].endpoints = vec![ep(EndpointKind::ReactantQuantumYield("Z-azo".into(), "nothing".into()))];
-    assert!(
-        Setup::new(
-            &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
-            &d,
-            &keys(),
-            Accuracy::default()
-        )
-        .is_err()
-    );
+    assert!(Setup::new(&built(&loaded), &d, &keys(), Accuracy::default()).is_err());
 }
 
 #[test]
@@ -610,13 +578,7 @@ fn fit_and_compare_through_the_binary() {
 fn multi_start_is_the_same_on_one_thread_and_on_two() {
     let loaded = photoledger::file::load(Path::new(NET)).unwrap();
     let d = demo();
-    let setup = Setup::new(
-        &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
-        &d,
-        &keys(),
-        Accuracy::default(),
-    )
-    .unwrap();
+    let setup = Setup::new(&built(&loaded), &d, &keys(), Accuracy::default()).unwrap();
     let opts = FitOptions {
         starts: 3,
         seed: 11,
@@ -712,13 +674,7 @@ fn the_evaluation_cap_and_the_time_limit_stop_a_fit_at_its_best_point() {
     let d = demo();
     let start_chi2 = {
         let loaded = photoledger::file::load(Path::new(NET)).unwrap();
-        let setup = Setup::new(
-            &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
-            &d,
-            &keys(),
-            Accuracy::default(),
-        )
-        .unwrap();
+        let setup = Setup::new(&built(&loaded), &d, &keys(), Accuracy::default()).unwrap();
         setup
             .residuals(&setup.start())
             .unwrap()
@@ -729,13 +685,7 @@ fn the_evaluation_cap_and_the_time_limit_stop_a_fit_at_its_best_point() {
     let seen = std::sync::Mutex::new(Vec::new());
     let capped = {
         let loaded = photoledger::file::load(Path::new(NET)).unwrap();
-        let setup = Setup::new(
-            &photoledger::network::build(&loaded, &photoledger::network::Overrides::none()).unwrap(),
-            &d,
-            &keys(),
-            Accuracy::default(),
-        )
-        .unwrap();
+        let setup = Setup::new(&built(&loaded), &d, &keys(), Accuracy::default()).unwrap();
         let opts = FitOptions {
             max_evaluations: 6,
             ..FitOptions::default()

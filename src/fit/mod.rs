@@ -8,5 +8,6 @@ pub mod goodness;
 pub mod lsq;
 pub mod mechanism;
 pub mod run;
+pub mod slopes;
 
 pub use mechanism::{FitOptions, FitResult, Setup, akaike_weights, fit};

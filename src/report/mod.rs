@@ -10,6 +10,7 @@ pub mod html;
 pub mod plan;
 pub mod simulation;
 pub mod summary;
+pub mod sweep;
 pub mod ticks;
 pub mod uncertainty;
 
