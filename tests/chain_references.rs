@@ -248,17 +248,8 @@ fn kinetics_and_chain_agree_two_products() {
 // seeded splitmix64 (Steele, Lea & Flood, "Fast splittable pseudorandom number generators",
 // OOPSLA 2014). Mean and variance of the photons per product within four standard errors.
 
-struct SplitMix(u64);
-impl SplitMix {
-    fn next(&mut self) -> f64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^= z >> 31;
-        (z >> 11) as f64 / (1u64 << 53) as f64
-    }
-}
+mod common;
+use common::SplitMix;
 
 #[test]
 fn monte_carlo_single_molecules() {

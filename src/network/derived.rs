@@ -699,23 +699,30 @@ pub(super) fn absorbed_photon_energy(
                     absorbers.push(sp.name.clone());
                 }
             }
-            let (mut w, mut we) = (0.0, 0.0);
-            for b in lights.iter().flat_map(|l| &l.bins) {
-                let take: f64 = leading
-                    .iter()
-                    .map(|s| {
-                        let eps = species.get(s.absorber).and_then(|sp| sp.epsilon.as_ref());
-                        eps.map_or(0.0, |e| e.at(b.wavelength)) * s.yield_at(b.wavelength)
-                    })
-                    .sum::<f64>()
-                    * b.flux;
-                w += take;
-                we += take * crate::units::constants::molar_photon_energy(b.wavelength);
-            }
             AbsorbedEnergy {
-                energy: (w > 0.0 && we.is_finite()).then(|| we / w),
+                energy: mean_photon_energy(lights, species, &leading),
                 absorbers,
             }
         })
         .collect()
+}
+
+/// The mean molar energy (J/mol) of the photons the photochemical steps `leading` take up from
+/// `lights`: each wavelength bin weighted by ε(λ)·Φ(λ)·q(λ) of every step (optically thin; Φ the
+/// step's efficiency or quantum yield). None when none is taken up.
+pub(crate) fn mean_photon_energy(lights: &[LightSource], species: &[Species], leading: &[&PhotoStep]) -> Option<f64> {
+    let (mut w, mut we) = (0.0, 0.0);
+    for b in lights.iter().flat_map(|l| &l.bins) {
+        let take: f64 = leading
+            .iter()
+            .map(|s| {
+                let eps = species.get(s.absorber).and_then(|sp| sp.epsilon.as_ref());
+                eps.map_or(0.0, |e| e.at(b.wavelength)) * s.yield_at(b.wavelength)
+            })
+            .sum::<f64>()
+            * b.flux;
+        w += take;
+        we += take * crate::units::constants::molar_photon_energy(b.wavelength);
+    }
+    (w > 0.0 && we.is_finite()).then(|| we / w)
 }

@@ -1,8 +1,13 @@
-//! Shared by the integration tests: an invented random network generator.
+//! Shared by the integration tests: the splitmix64 generator (Steele, Lea & Flood, "Fast
+//! splittable pseudorandom number generators", OOPSLA 2014) and an invented random network.
+// Each test binary uses part of this module.
+#![allow(dead_code)]
 
-struct SplitMix(u64);
+/// splitmix64, seeded: uniform draws in [0, 1).
+pub struct SplitMix(pub u64);
 impl SplitMix {
-    fn next(&mut self) -> f64 {
+    /// The next draw in [0, 1).
+    pub fn next(&mut self) -> f64 {
         self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
         let mut z = self.0;
         z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);

@@ -405,18 +405,5 @@ pub(crate) fn photon_energy(net: &Network, t: usize) -> Option<f64> {
         .iter()
         .filter(|s| matches!(s.outcome, super::super::PhotoOutcome::Transient(k) if reaches(k)))
         .collect();
-    let (mut w, mut we) = (0.0, 0.0);
-    for b in net.lights.iter().flat_map(|l| &l.bins) {
-        let take: f64 = leading
-            .iter()
-            .map(|s| {
-                let eps = net.species.get(s.absorber).and_then(|sp| sp.epsilon.as_ref());
-                eps.map_or(0.0, |e| e.at(b.wavelength)) * s.yield_at(b.wavelength)
-            })
-            .sum::<f64>()
-            * b.flux;
-        w += take;
-        we += take * crate::units::constants::molar_photon_energy(b.wavelength);
-    }
-    (w > 0.0 && we.is_finite()).then(|| we / w)
+    super::super::derived::mean_photon_energy(&net.lights, &net.species, &leading)
 }
