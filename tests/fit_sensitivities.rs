@@ -50,8 +50,8 @@ fn differences(fitted: &Setup, keys: &[String], x: &[f64]) -> Differences {
         a.iter().zip(&b).map(|(a, b)| (a - b) / (2.0 * h)).collect()
     };
     let (mut slopes, mut spread) = (Vec::new(), Vec::new());
-    for j in 0..x.len() {
-        let h = 2e-3 * x[j].abs();
+    for (j, v) in x.iter().enumerate() {
+        let h = 2e-3 * v.abs();
         let (wide, narrow) = (slope(j, h), slope(j, h / 2.0));
         slopes.push(narrow.iter().zip(&wide).map(|(n, w)| (4.0 * n - w) / 3.0).collect());
         spread.push(narrow.iter().zip(&wide).map(|(n, w)| (n - w).abs()).collect());
