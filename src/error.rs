@@ -103,6 +103,41 @@ pub fn line_col(source: &str, offset: usize) -> (usize, usize) {
     (line, col)
 }
 
+/// The start of every line of a text, so that locating many positions in one file costs a
+/// binary search each instead of a scan from the top ([`line_col`] for a single position).
+#[derive(Debug, Clone)]
+pub struct LineIndex<'a> {
+    source: &'a str,
+    /// Byte offset where each line begins (the first is 0).
+    starts: Vec<usize>,
+}
+
+impl<'a> LineIndex<'a> {
+    /// Index the lines of `source`.
+    pub fn new(source: &'a str) -> Self {
+        let mut starts = vec![0];
+        starts.extend(
+            source
+                .bytes()
+                .enumerate()
+                .filter(|&(_, b)| b == b'\n')
+                .map(|(i, _)| i + 1),
+        );
+        LineIndex { source, starts }
+    }
+
+    /// 1-based line and column (in characters) of byte `offset`, as [`line_col`] gives.
+    pub fn line_col(&self, offset: usize) -> (usize, usize) {
+        let mut off = offset.min(self.source.len());
+        while off > 0 && !self.source.is_char_boundary(off) {
+            off -= 1;
+        }
+        let line = self.starts.partition_point(|&s| s <= off);
+        let start = self.starts[line - 1];
+        (line, self.source[start..off].chars().count() + 1)
+    }
+}
+
 impl fmt::Display for Diagnostic {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         let kind = match self.severity {
@@ -188,6 +223,10 @@ mod tests {
         assert_eq!(line_col(s, 6), (2, 1));
         assert_eq!(line_col(s, 11), (2, 6));
         assert_eq!(line_col(s, 10_000), (3, 1));
+        let index = LineIndex::new(s);
+        for off in 0..=s.len() + 3 {
+            assert_eq!(index.line_col(off), line_col(s, off), "offset {off}");
+        }
     }
 
     #[test]

@@ -234,10 +234,7 @@ fn hot_channels(a: &BarrierArgs) -> photoledger::Result<()> {
         Quantity::Time,
     )?;
     let grain = quantity("grain", &a.grain, Quantity::MolarEnergy)?;
-    let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
-        path: path.clone(),
-        source,
-    })?;
+    let text = photoledger::file::read_text(path)?;
     let (reactant, _) = frequencies::parse_role(path, &text, frequencies::Role::Reactant)?;
     let mut specs = Vec::new();
     for c in &a.channels {
@@ -253,10 +250,7 @@ fn hot_channels(a: &BarrierArgs) -> photoledger::Result<()> {
                 "--channel \"{c}\": the zero-point-corrected barrier must be zero or more"
             )));
         }
-        let text = std::fs::read_to_string(&file).map_err(|source| Error::Io {
-            path: file.clone(),
-            source,
-        })?;
+        let text = photoledger::file::read_text(&file)?;
         let (ts, d) = frequencies::parse_role(&file, &text, frequencies::Role::TransitionState)?;
         specs.push((file, ts, e0, d.unwrap_or(1.0)));
     }

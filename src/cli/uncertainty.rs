@@ -72,10 +72,7 @@ pub enum MergeCommand {
 }
 
 fn read(path: &Path) -> photoledger::Result<String> {
-    std::fs::read_to_string(path).map_err(|source| Error::Io {
-        path: path.to_path_buf(),
-        source,
-    })
+    photoledger::file::read_text(path)
 }
 
 /// Run `uncertainty`; [`Exit::Unreachable`] when a `--target` is reached by no sample (the

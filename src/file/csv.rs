@@ -89,12 +89,20 @@ pub(crate) fn records(text: &str) -> Result<Vec<Record>, (usize, String)> {
         .trim(::csv::Trim::All)
         .from_reader(text.as_bytes());
     let mut out = Vec::new();
+    // Lines are counted from where the last record began, so reading stays linear in the
+    // file's length (the crate's positions only move forward).
+    let mut cursor = (0usize, 1usize); // (byte, line at that byte)
     for r in reader.records() {
-        let line_at = |pos: Option<&::csv::Position>| {
+        let mut line_at = |pos: Option<&::csv::Position>| {
             // The crate's position is where it began reading, before skipped blank lines.
             let b = pos.map_or(0, |p| p.byte() as usize).min(text.len());
             let start = text[b..].find(|c| c != '\r' && c != '\n').map_or(text.len(), |i| b + i);
-            1 + text[..start].matches('\n').count()
+            if start < cursor.0 {
+                cursor = (0, 1);
+            }
+            cursor.1 += text.as_bytes()[cursor.0..start].iter().filter(|&&c| c == b'\n').count();
+            cursor.0 = start;
+            cursor.1
         };
         let r = r.map_err(|e| (line_at(e.position()), format!("cannot be read as CSV: {e}")))?;
         if r.iter().all(str::is_empty) {
@@ -210,7 +218,7 @@ fn tidy(text: &str, sep: char) -> Result<String, (usize, String)> {
 
 /// Read a two-column table from `path`.
 pub fn read(path: &Path) -> Result<Table, CsvError> {
-    let text = std::fs::read_to_string(path).map_err(|e| CsvError {
+    let text = super::text::read(path).map_err(|e| CsvError {
         path: path.to_path_buf(),
         line: None,
         message: format!("cannot read: {e}"),

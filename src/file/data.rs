@@ -121,10 +121,7 @@ pub struct Experiment {
 /// Read a data argument: a time-course CSV (one experiment, no overrides) or an experiments
 /// TOML file.
 pub fn read(path: &Path) -> Result<Vec<Experiment>> {
-    let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
-        path: path.to_path_buf(),
-        source,
-    })?;
+    let text = super::read_text(path)?;
     if path.extension().is_some_and(|e| e == "toml") {
         parse_experiments(path, &text)
     } else {
@@ -367,10 +364,7 @@ pub fn parse_experiments(path: &Path, text: &str) -> Result<Vec<Experiment>> {
         let points = match &e.data {
             Some(d) => {
                 let p = dir.join(d);
-                let t = std::fs::read_to_string(&p).map_err(|source| Error::Io {
-                    path: p.clone(),
-                    source,
-                })?;
+                let t = super::read_text(&p)?;
                 parse_points(&p, &t)?
             }
             None => Vec::new(),

@@ -35,10 +35,7 @@ pub struct FrequencyFile {
 
 /// Read and parse the frequency file at `path`.
 pub fn read(path: &Path) -> Result<FrequencyFile> {
-    let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
-        path: path.to_path_buf(),
-        source,
-    })?;
+    let text = super::read_text(path)?;
     parse_text(path, &text)
 }
 

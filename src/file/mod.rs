@@ -9,6 +9,7 @@ pub mod csv;
 pub mod data;
 pub mod frequencies;
 pub mod schema;
+pub mod text;
 pub mod uncertain;
 pub mod write;
 
@@ -57,11 +58,29 @@ impl Loaded {
 /// a missing file is [`Error::Io`]. A CSV that cannot be read is kept as an error string and
 /// reported by validation at the `file` key that names it.
 pub fn load(path: &Path) -> Result<Loaded> {
-    let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
-        path: path.to_path_buf(),
-        source,
-    })?;
+    let text = read_text(path)?;
     parse_text(path, text)
+}
+
+/// Read a file the user named on the command line or in a network ([`text::read`]): a bad kind
+/// or size is an [`Error::Io`] naming the path, bytes that are not UTF-8 an [`Error::Invalid`]
+/// at their line and column.
+pub fn read_text(path: &Path) -> Result<String> {
+    text::read(path).map_err(|e| match e {
+        text::ReadError::Io(source) => Error::Io {
+            path: path.to_path_buf(),
+            source,
+        },
+        text::ReadError::NotUtf8 { line, column } => {
+            let mut d = Diagnostic::error("", "not UTF-8 text here (save the file as UTF-8)").in_file(path);
+            d.line_col = Some((line, column));
+            Error::invalid(d)
+        }
+        other => Error::Io {
+            path: path.to_path_buf(),
+            source: std::io::Error::other(other.to_string()),
+        },
+    })
 }
 
 /// Parse network text as if read from `path` (CSV paths resolve against its folder).
@@ -101,7 +120,7 @@ pub fn parse_text(path: &Path, text: String) -> Result<Loaded> {
     let mut frequency_files = BTreeMap::new();
     for name in referenced_frequency_files(&doc) {
         let full = dir.join(&name);
-        let t = std::fs::read_to_string(&full).map_err(|e| e.to_string());
+        let t = text::read(&full).map_err(|e| e.to_string());
         frequency_files.insert(name, (full, t));
     }
     Ok(Loaded {

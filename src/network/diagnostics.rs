@@ -14,7 +14,8 @@ use toml::Spanned;
 /// Collects diagnostics about one network file; `text` is the file's text (spans refer to it).
 pub(super) struct Sink<'a> {
     path: &'a Path,
-    text: &'a str,
+    /// The file's lines, so thousands of diagnostics locate themselves in linear time.
+    lines: crate::error::LineIndex<'a>,
     diags: Vec<Diagnostic>,
 }
 
@@ -71,23 +72,34 @@ impl<'a> Sink<'a> {
     pub(super) fn new(path: &'a Path, text: &'a str) -> Self {
         Sink {
             path,
-            text,
+            lines: crate::error::LineIndex::new(text),
             diags: Vec::new(),
         }
     }
 
     /// Record an error about `field` at `origin`.
     pub(super) fn error(&mut self, field: &str, origin: &Origin, msg: impl Into<String>, help: Option<String>) {
-        let mut d = Diagnostic::error(field, msg).at(self.path, self.text, origin);
+        let mut d = self.locate(Diagnostic::error(field, msg), origin);
         d.help = help;
         self.diags.push(d);
     }
 
     /// Record a warning about `field` at `origin`.
     pub(super) fn warn(&mut self, field: &str, origin: &Origin, msg: impl Into<String>, help: Option<String>) {
-        let mut d = Diagnostic::warning(field, msg).at(self.path, self.text, origin);
+        let mut d = self.locate(Diagnostic::warning(field, msg), origin);
         d.help = help;
         self.diags.push(d);
+    }
+
+    /// `d` placed at `origin` in this file.
+    fn locate(&self, mut d: Diagnostic, origin: &Origin) -> Diagnostic {
+        d = d.in_file(self.path);
+        match origin {
+            Origin::Span(r) => d.line_col = Some(self.lines.line_col(r.start)),
+            Origin::CommandLine => d.from_command_line = true,
+            Origin::Unknown => {}
+        }
+        d
     }
 
     /// Record a diagnostic made elsewhere (a frequency file's, located in that file).
@@ -98,7 +110,7 @@ impl<'a> Sink<'a> {
     /// The 1-based line of `origin` in the file, 0 when it has none.
     pub(super) fn line(&self, origin: &Origin) -> usize {
         match origin {
-            Origin::Span(r) => crate::error::line_col(self.text, r.start).0,
+            Origin::Span(r) => self.lines.line_col(r.start).0,
             _ => 0,
         }
     }

@@ -68,6 +68,9 @@ struct Builder<'a> {
 struct Names<'a> {
     species: &'a [Species],
     transients: &'a [(String, TransientKind)],
+    /// Each species' index by name (first one of a name), so resolving stays linear in the
+    /// number of steps.
+    index: std::collections::HashMap<&'a str, usize>,
 }
 
 impl<'a> Builder<'a> {
@@ -136,9 +139,14 @@ impl<'a> Builder<'a> {
             background: Spectrum::Constant { value: 0.0, at: None },
         });
         let t = conditions.temperature;
+        let mut index = std::collections::HashMap::with_capacity(species.len());
+        for (i, s) in species.iter().enumerate() {
+            index.entry(s.name.as_str()).or_insert(i);
+        }
         let resolver = Names {
             species: &species,
             transients: &transient_heads,
+            index,
         };
         let thermal = self.thermal(doc, &resolver, t);
         let photo = self.photo(doc, &resolver);

@@ -159,7 +159,7 @@ impl Builder<'_> {
 
     /// Resolve a species name, reporting an unknown one with the closest name.
     pub(super) fn resolve_species(&mut self, field: &str, at: &Origin, name: &str, names: &Names) -> Option<usize> {
-        if let Some(i) = names.species.iter().position(|s| s.name == name) {
+        if let Some(&i) = names.index.get(name) {
             return Some(i);
         }
         if names.transients.iter().any(|t| t.0 == name) {

@@ -1,0 +1,145 @@
+//! Files the user names, read within limits: only regular files (a FIFO or `/dev/zero` would
+//! block or grow without end), UTF-8 with the place of the first bad byte, a byte-order mark
+//! skipped everywhere, and line numbers that stay right deep into a large table (they are now
+//! counted incrementally, so loading is linear in the file's length).
+//!
+//! Every network here is invented. RFC 3629 (UTF-8) defines the byte-order mark U+FEFF as
+//! EF BB BF and says a reader may strip it (§6); the rest is common practice.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+use std::sync::mpsc;
+use std::time::Duration;
+
+fn scratch(tag: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("photoledger-input-limits-{}-{tag}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
+/// Run the binary with `args` in `dir`; a run that takes over 60 s is a failure (a hang).
+fn run(dir: &Path, args: &[&str]) -> Output {
+    let (tx, rx) = mpsc::channel();
+    let mut cmd = Command::new(env!("CARGO_BIN_EXE_photoledger"));
+    cmd.current_dir(dir)
+        .args(args)
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped());
+    let child = cmd.spawn().unwrap();
+    let id = child.id();
+    std::thread::spawn(move || {
+        let _ = tx.send(child.wait_with_output());
+    });
+    match rx.recv_timeout(Duration::from_secs(60)) {
+        Ok(out) => out.unwrap(),
+        Err(_) => {
+            let _ = Command::new("kill").args(["-9", &id.to_string()]).status();
+            panic!("photoledger {args:?} did not finish in 60 s");
+        }
+    }
+}
+
+fn network(epsilon: &str) -> String {
+    format!(
+        "# invented\n[conditions]\ntemperature = \"298.15 K\"\nvolume = \"3 mL\"\npath_length = \"1 cm\"\n\
+         [[light]]\nkind = \"line\"\nwavelength = \"320 nm\"\npower = \"10 mW\"\n\
+         [[species]]\nname = \"A\"\ninitial = \"50 uM\"\nepsilon = {epsilon}\n\
+         [[species]]\nname = \"B\"\nproduct = true\n[[photo]]\nequation = \"A -> B\"\nquantum_yield = 0.3\n"
+    )
+}
+
+#[cfg(unix)]
+#[test]
+fn a_fifo_as_the_network_file_is_refused_not_waited_on() {
+    let dir = scratch("fifo");
+    let fifo = dir.join("net.toml");
+    assert!(Command::new("mkfifo").arg(&fifo).status().unwrap().success());
+    let out = run(&dir, &["check", "net.toml"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(3), "{err}");
+    assert!(
+        err.contains("net.toml") && err.contains("FIFO") && err.contains("regular file"),
+        "{err}"
+    );
+}
+
+#[cfg(unix)]
+#[test]
+fn a_device_as_a_table_is_refused_at_the_field_that_names_it() {
+    let dir = scratch("device");
+    std::fs::write(dir.join("net.toml"), network("{ file = \"/dev/zero\" }")).unwrap();
+    let out = run(&dir, &["check", "net.toml"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(1), "{err}");
+    assert!(
+        err.contains("species \"A\".epsilon.file") && err.contains("a device"),
+        "{err}"
+    );
+}
+
+#[test]
+fn text_that_is_not_utf8_is_placed_by_line_and_column() {
+    let dir = scratch("latin1");
+    // "25 °C" saved as Latin-1: the degree sign is the single byte B0.
+    std::fs::write(dir.join("net.toml"), b"[conditions]\ntemperature = \"25 \xb0C\"\n").unwrap();
+    let out = run(&dir, &["check", "net.toml"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(1), "{err}");
+    assert!(err.contains("net.toml:2:19") && err.contains("not UTF-8"), "{err}");
+}
+
+#[test]
+fn a_byte_order_mark_is_skipped_in_networks_tables_and_frequency_files() {
+    let dir = scratch("bom");
+    let bom = "\u{feff}";
+    std::fs::write(
+        dir.join("eps.csv"),
+        format!("{bom}# invented absorption\nwavelength (nm), epsilon (L/(mol cm))\n300, 100\n340, 200\n"),
+    )
+    .unwrap();
+    std::fs::write(
+        dir.join("net.toml"),
+        format!("{bom}{}", network("{ file = \"eps.csv\" }")),
+    )
+    .unwrap();
+    let out = run(&dir, &["check", "net.toml"]);
+    assert!(
+        out.status.success(),
+        "{}{}",
+        String::from_utf8_lossy(&out.stdout),
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = format!("{bom}[reactant]\n3050\n1610\n1180\n820\n");
+    let f = photoledger::file::frequencies::parse_text(Path::new("f.txt"), text.trim_start_matches(bom));
+    assert!(f.is_ok());
+    std::fs::write(dir.join("f.txt"), &text).unwrap();
+    assert!(photoledger::file::frequencies::read(&dir.join("f.txt")).is_ok());
+}
+
+#[test]
+fn line_numbers_stay_right_deep_into_a_large_table() {
+    let dir = scratch("deep");
+    let mut csv =
+        String::from("# invented, with comments and blank lines on the way\nwavelength (nm), epsilon (L/(mol cm))\n");
+    let mut line = 2;
+    for i in 0..50_000 {
+        if i % 1000 == 0 {
+            csv.push_str("\n# a comment\n");
+            line += 2;
+        }
+        csv.push_str(&format!("{}, 100\n", 250.0 + i as f64 * 1e-3));
+        line += 1;
+    }
+    csv.push_str("299.99999, lots\n");
+    line += 1;
+    std::fs::write(dir.join("eps.csv"), csv).unwrap();
+    std::fs::write(dir.join("net.toml"), network("{ file = \"eps.csv\" }")).unwrap();
+    let out = run(&dir, &["check", "net.toml"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(1), "{err}");
+    assert!(
+        err.contains(&format!("line {line}")) || err.contains(&format!(":{line}")),
+        "want line {line}: {err}"
+    );
+}
