@@ -143,3 +143,78 @@ fn line_numbers_stay_right_deep_into_a_large_table() {
         "want line {line}: {err}"
     );
 }
+
+/// `photoledger ARGS` on the bundled photoswitch with one `--set`: exit code and both streams.
+fn on_photoswitch(command: &str, set: &str) -> (Option<i32>, String) {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let out = run(root, &[command, "networks/photoswitch.toml", "--set", set]);
+    let text = format!(
+        "{}{}",
+        String::from_utf8_lossy(&out.stdout),
+        String::from_utf8_lossy(&out.stderr)
+    );
+    (out.status.code(), text)
+}
+
+#[test]
+fn values_that_would_overflow_later_are_refused_at_check_naming_their_field() {
+    for (set, field) in [
+        ("conditions.temperature=1e308 K", "conditions.temperature"),
+        (
+            "thermal.thermal Z to E.barrier=-1e10 kcal/mol",
+            "thermal \"thermal Z to E\"",
+        ),
+        ("species.E-azo.initial=1e308 M", "species \"E-azo\".initial"),
+        ("light.UV LED.power=1e308 W", "light \"UV LED\""),
+    ] {
+        for command in ["check", "ledger", "diagram"] {
+            let (code, text) = on_photoswitch(command, set);
+            assert_eq!(code, Some(1), "{command} --set {set}: {text}");
+            assert!(
+                text.contains(field) && text.contains("error"),
+                "{command} --set {set}: {text}"
+            );
+            assert!(!text.lines().any(|l| l.starts_with("valid:")), "{text}");
+        }
+    }
+}
+
+#[test]
+fn finite_but_implausible_values_are_warned_about() {
+    for (set, words) in [
+        ("conditions.temperature=1e6 K", "above any solution photochemistry"),
+        ("conditions.volume=1e-300 L", "beyond any continuous lamp or laser"),
+        ("conditions.path_length=1e300 m", "the light is gone within nanometres"),
+    ] {
+        let (code, text) = on_photoswitch("check", set);
+        assert_eq!(code, Some(0), "{set}: {text}");
+        assert!(text.contains("warning") && text.contains(words), "{set}: {text}");
+    }
+    // A mistyped table point of 1e18 L/(mol cm) (no molecule reaches 1e6).
+    let dir = scratch("eps-point");
+    std::fs::write(
+        dir.join("net.toml"),
+        network(
+            "{ wavelength_unit = \"nm\", unit = \"L/(mol cm)\", points = [[300, 1000], [320, 1e18], [340, 1000]] }",
+        ),
+    )
+    .unwrap();
+    let out = run(&dir, &["check", "net.toml"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("species \"A\".epsilon") && err.contains("more than any known molecule"),
+        "{err}"
+    );
+    // The bundled networks stay free of these warnings.
+    for f in [
+        "photoswitch",
+        "photoswitch-side-product",
+        "prebiotic-pool",
+        "flow-cyclization",
+    ] {
+        let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+        let out = run(root, &["check", &format!("networks/{f}.toml")]);
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert!(!err.contains("warning"), "{f}: {err}");
+    }
+}

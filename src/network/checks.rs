@@ -36,6 +36,7 @@ impl Checks<'_, '_> {
         self.check_light(net);
         self.check_geometry(net);
         self.check_unused(net);
+        super::ranges::check(self.sink, self.at, net);
     }
 
     /// The lit column (irradiated area × path length) cannot hold more solution than the

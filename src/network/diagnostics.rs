@@ -65,6 +65,10 @@ pub(super) struct Places {
     pub(super) transients: Vec<Origin>,
     /// Where `conditions.irradiated_area` was given.
     pub(super) irradiated_area: Origin,
+    /// Where `conditions.temperature` was given.
+    pub(super) temperature: Origin,
+    /// Each built light source's table, index-aligned with `Network::lights`.
+    pub(super) lights: Vec<Origin>,
 }
 
 impl<'a> Sink<'a> {

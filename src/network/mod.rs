@@ -14,6 +14,7 @@ pub mod equation;
 pub mod formula;
 pub mod overrides;
 pub mod params;
+pub(crate) mod ranges;
 mod suggest;
 
 pub use build::build;

@@ -52,6 +52,9 @@ impl Builder<'_> {
             }
         };
         let f = self.field(c.temperature.as_ref(), Some("conditions.temperature"));
+        if let Some(f) = &f {
+            self.at.temperature = f.origin.clone();
+        }
         let temperature = self.required("conditions.temperature", f, &at, Quantity::Temperature);
         let f = self.field(c.volume.as_ref(), Some("conditions.volume"));
         let volume = self.required("conditions.volume", f, &at, Quantity::Volume);

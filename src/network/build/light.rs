@@ -78,6 +78,7 @@ impl Builder<'_> {
             self.no_photons(&entry, &src, intensity, window);
             return None;
         }
+        self.at.lights.push(at.clone());
         Some(src)
     }
 
