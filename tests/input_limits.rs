@@ -218,3 +218,69 @@ fn finite_but_implausible_values_are_warned_about() {
         assert!(!err.contains("warning"), "{f}: {err}");
     }
 }
+
+/// Run from the crate root; exit code and both streams.
+fn at_root(args: &[&str]) -> (Option<i32>, String) {
+    let out = run(Path::new(env!("CARGO_MANIFEST_DIR")), args);
+    let text = format!(
+        "{}{}",
+        String::from_utf8_lossy(&out.stdout),
+        String::from_utf8_lossy(&out.stderr)
+    );
+    (out.status.code(), text)
+}
+
+#[test]
+fn options_out_of_range_are_refused_naming_the_option_and_the_range() {
+    let net = "networks/photoswitch.toml";
+    for (args, words) in [
+        (vec!["simulate", net, "--until", "-1 h"], vec!["--until", "positive"]),
+        (vec!["report", net, "--until", "-2 h"], vec!["--until", "positive"]),
+        (
+            vec!["simulate", net, "--until", "1 h", "--points", "0"],
+            vec!["--points", "2 to 1000000"],
+        ),
+        (
+            vec!["simulate", net, "--until", "1 h", "--points", "100000000"],
+            vec!["--points", "2 to 1000000"],
+        ),
+        (
+            vec!["simulate", net, "--until", "1 h", "--rtol", "10"],
+            vec!["--rtol", "1e-14 to 0.1"],
+        ),
+        (
+            vec![
+                "barrier",
+                "--window",
+                "1 h",
+                "--temperature",
+                "298 K",
+                "--transmission",
+                "1e308",
+            ],
+            vec!["--transmission", "(0, 1]"],
+        ),
+    ] {
+        let (code, text) = at_root(&args);
+        assert_eq!(code, Some(2), "{args:?}: {text}");
+        for w in words {
+            assert!(text.contains(w), "{args:?} should say {w}: {text}");
+        }
+    }
+}
+
+#[test]
+fn barrier_windows_no_barrier_can_express_are_refused_not_printed_as_inf() {
+    // Eyring: k = κ kT/h exp(−ΔG‡/RT) (Eyring, J. Chem. Phys. 3, 107, 1935); κkT/h is
+    // 6.2e12 s⁻¹ at 298 K, so no thermal step has a half-life below about 0.11 ps.
+    let (code, text) = at_root(&["barrier", "--window", "1e-300 s", "--temperature", "298 K"]);
+    assert_eq!(code, Some(2), "{text}");
+    assert!(text.contains("even with no barrier"), "{text}");
+    let (code, text) = at_root(&["barrier", "--window", "1 h", "--temperature", "1e308 K"]);
+    assert_eq!(code, Some(2), "{text}");
+    // A very long window is a very high, finite barrier: RT ln(kT/(h k)) with k = ln 2 / 1e300 s.
+    let (code, text) = at_root(&["barrier", "--window", "1e300 s", "--temperature", "298 K"]);
+    assert_eq!(code, Some(0), "{text}");
+    assert!(!text.contains("inf") && !text.contains("NaN"), "{text}");
+    assert!(text.contains("1785.4"), "{text}");
+}

@@ -51,8 +51,32 @@ pub fn thermal_window(window: f64, temperature: f64, probability: f64, kappa: f6
             "transmission coefficient: {kappa} must be positive"
         )));
     }
+    let fastest = kappa * crate::units::constants::BOLTZMANN * temperature / crate::units::constants::PLANCK;
+    if !fastest.is_finite() {
+        return Err(Error::Usage(format!(
+            "temperature: {temperature:e} K with κ = {kappa:e} puts Eyring's fastest rate κkT/h beyond any number"
+        )));
+    }
     let k_needed = -(-probability).ln_1p() / window;
-    Ok(eyring_barrier(k_needed, temperature, 1, kappa))
+    if k_needed >= fastest {
+        // Even a step with no barrier (ΔG‡ = 0) runs at κkT/h and is too slow for this window.
+        return Err(Error::Usage(format!(
+            "window: no thermal step crosses within {} s with {:.0} % probability at {} K: even with no barrier it needs {:.3e} s (Eyring's limit κkT/h = {fastest:.3e} /s)",
+            crate::units::sig(window, 4),
+            probability * 100.0,
+            crate::units::sig(temperature, 5),
+            -(-probability).ln_1p() / fastest
+        )));
+    }
+    let g = eyring_barrier(k_needed, temperature, 1, kappa);
+    if !g.is_finite() {
+        return Err(Error::Usage(format!(
+            "window: {} s at {} K gives a barrier beyond any number",
+            crate::units::sig(window, 4),
+            crate::units::sig(temperature, 5)
+        )));
+    }
+    Ok(g)
 }
 
 /// How the hot molecule's time runs out.

@@ -48,10 +48,10 @@ pub struct FerrioxalateArgs {
     #[arg(long, value_name = "VOLUME")]
     pub total: String,
     /// Irradiation time.
-    #[arg(long, value_name = "DURATION")]
+    #[arg(long, allow_hyphen_values = true, value_name = "DURATION")]
     pub time: String,
     /// Wavelength of the irradiation.
-    #[arg(long, value_name = "WAVELENGTH")]
+    #[arg(long, allow_hyphen_values = true, value_name = "WAVELENGTH")]
     pub wavelength: String,
     /// Fraction of the incident light absorbed by the actinometer (1 for an optically thick
     /// solution), e.g. "0.98 ± 0.01".

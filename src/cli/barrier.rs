@@ -21,22 +21,22 @@ pub struct BarrierArgs {
     #[arg(long = "set", value_name = "KEY=VALUE")]
     pub set: Vec<String>,
     /// The time available, e.g. "1 h", "10 ps".
-    #[arg(long, value_name = "DURATION")]
+    #[arg(long, allow_hyphen_values = true, value_name = "DURATION")]
     pub window: Option<String>,
     /// Temperature for the thermal window, e.g. "298.15 K" or "25 °C".
-    #[arg(long, value_name = "T")]
+    #[arg(long, allow_hyphen_values = true, value_name = "T")]
     pub temperature: Option<String>,
     /// Probability of crossing asked for: a fraction (0.5) or a percentage ("50 %").
     #[arg(long, default_value = "0.5")]
     pub probability: String,
     /// Transmission coefficient κ for the thermal window.
-    #[arg(long, default_value_t = 1.0)]
+    #[arg(long, default_value_t = 1.0, value_parser = super::values::transmission, allow_negative_numbers = true)]
     pub transmission: f64,
     /// Imaginary frequency for a Wigner tunnelling factor in the thermal window, e.g. "1200 cm-1".
     #[arg(long, value_name = "FREQUENCY")]
     pub tunnelling: Option<String>,
     /// Excess energy of the hot molecule above its zero-point level, e.g. "250 kJ/mol".
-    #[arg(long, value_name = "E")]
+    #[arg(long, allow_hyphen_values = true, value_name = "E")]
     pub energy: Option<String>,
     /// Frequency file: [reactant] and [transition state] lists in cm-1 (see README).
     #[arg(long, value_name = "FILE")]
@@ -48,10 +48,10 @@ pub struct BarrierArgs {
     #[arg(long = "channel", value_name = "FILE=E0")]
     pub channels: Vec<String>,
     /// Cooling time constant of the excess energy, e.g. "10 ps".
-    #[arg(long, value_name = "TIME")]
+    #[arg(long, allow_hyphen_values = true, value_name = "TIME")]
     pub cooling: Option<String>,
     /// Zero-point-corrected barrier E0 for a k(E) table, e.g. "120 kJ/mol".
-    #[arg(long, value_name = "E")]
+    #[arg(long, allow_hyphen_values = true, value_name = "E")]
     pub barrier: Option<String>,
     /// Energy range of the k(E) table, e.g. "0 kJ/mol..200 kJ/mol".
     #[arg(long, value_name = "FROM..TO")]
@@ -59,8 +59,8 @@ pub struct BarrierArgs {
     /// Energy grain of the state counts, e.g. "10 cm-1".
     #[arg(long, default_value = "10 cm-1")]
     pub grain: String,
-    /// Rows of the k(E) table.
-    #[arg(long, default_value_t = 400)]
+    /// Rows of the k(E) table (2 to 1,000,000).
+    #[arg(long, default_value_t = 400, value_parser = super::values::points, allow_negative_numbers = true)]
     pub points: usize,
     /// Output folder for the k(E) table and plot.
     #[arg(long, value_name = "DIR", default_value = "barrier-out")]

@@ -5,7 +5,6 @@ use super::output::outln;
 use photoledger::bench::{Size, large_network};
 use photoledger::kinetics::{self, Method, Options};
 use photoledger::model::Model;
-use photoledger::units::{self, Quantity};
 use std::path::PathBuf;
 use std::time::Instant;
 
@@ -15,7 +14,7 @@ pub struct BenchArgs {
     /// Network files to time (each for --until); the generated network is always added.
     pub files: Vec<PathBuf>,
     /// Simulated time for each run.
-    #[arg(long, default_value = "1 h")]
+    #[arg(long, allow_hyphen_values = true, default_value = "1 h")]
     pub until: String,
     /// Species of the generated network.
     #[arg(long, default_value_t = 1000)]
@@ -131,8 +130,7 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
             path.display()
         );
     }
-    let until = units::parse(&a.until, Quantity::Time)
-        .map_err(|e| photoledger::Error::Usage(format!("--until: {e}; expected {}", Quantity::Time.accepted())))?;
+    let until = super::values::duration("until", &a.until)?;
     let mut rows = Vec::new();
     for f in &a.files {
         let net = load(&super::NetworkArgs {

@@ -16,6 +16,7 @@ mod plan;
 mod report;
 mod simulate;
 mod uncertainty;
+mod values;
 
 use clap::{Parser, Subcommand};
 use output::noteln;

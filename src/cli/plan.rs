@@ -48,8 +48,8 @@ pub struct PlanArgs {
     /// of the network: species named as products, or formed and never consumed).
     #[arg(long, value_name = "NAMES")]
     pub products: Option<String>,
-    /// Relative tolerance of the integrator.
-    #[arg(long, default_value_t = 1e-8)]
+    /// Relative tolerance of the integrator (1e-14 to 0.1).
+    #[arg(long, default_value_t = 1e-8, value_parser = super::values::rtol, allow_negative_numbers = true)]
     pub rtol: f64,
     /// Output folder (default: the network file's name with "-plan").
     #[arg(long, value_name = "DIR")]

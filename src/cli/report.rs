@@ -4,13 +4,11 @@
 
 use super::output::{noteln, outln};
 use super::{Exit, NetworkArgs, load, print_warnings};
-use photoledger::Error;
 use photoledger::fit::mechanism::FitOptions;
 use photoledger::model::Model;
 use photoledger::report::html::{self, Meta, date};
 use photoledger::report::write_atomic;
 use photoledger::study::{self, StudyOptions};
-use photoledger::units::{self, Quantity};
 use std::path::PathBuf;
 
 /// Options of `report`.
@@ -20,14 +18,14 @@ pub struct ReportArgs {
     pub net: NetworkArgs,
     /// How long to irradiate, e.g. "2 h" (default: from the kinetics, until the --target or 99 %
     /// conversion of the limiting reagent, or until nothing changes, capped at a year, rounded up).
-    #[arg(long, value_name = "DURATION")]
+    #[arg(long, allow_hyphen_values = true, value_name = "DURATION")]
     pub until: Option<String>,
     /// Add a plan for this target (as for `plan --target`), e.g. "product > 80 %": time to it,
     /// photon dose and energy, products, and the time at other lamp powers.
     #[arg(long, value_name = "EXPR")]
     pub target: Option<String>,
     /// Add barrier verdicts on every step with a rate against this window, e.g. "10 min".
-    #[arg(long, value_name = "DURATION")]
+    #[arg(long, allow_hyphen_values = true, value_name = "DURATION")]
     pub barrier_window: Option<String>,
     /// Fit the network to these data (time-course CSV or experiments TOML files, repeatable) and
     /// add a fit section, as `fit` does.
@@ -42,18 +40,6 @@ pub struct ReportArgs {
     /// Where to write the page (default: the network file's name followed by "-report.html").
     #[arg(short = 'o', long = "out", value_name = "HTML")]
     pub out: Option<PathBuf>,
-}
-
-fn duration(flag: &str, text: &str) -> photoledger::Result<f64> {
-    let t = units::parse(text, Quantity::Time)
-        .map_err(|e| Error::Usage(format!("--{flag}: {e}; expected {}", Quantity::Time.accepted())))?;
-    if t > 0.0 && t.is_finite() {
-        Ok(t)
-    } else {
-        Err(Error::Usage(format!(
-            "--{flag} \"{text}\": the duration must be positive"
-        )))
-    }
 }
 
 /// The command line as typed, each argument quoted for a POSIX shell when it needs it.
@@ -78,11 +64,15 @@ pub fn run(a: &ReportArgs) -> photoledger::Result<Exit> {
     let net = load(&a.net)?;
     print_warnings(&net);
     let opts = StudyOptions {
-        until: a.until.as_deref().map(|t| duration("until", t)).transpose()?,
+        until: a
+            .until
+            .as_deref()
+            .map(|t| super::values::duration("until", t))
+            .transpose()?,
         barrier_window: a
             .barrier_window
             .as_deref()
-            .map(|t| duration("barrier-window", t))
+            .map(|t| super::values::duration("barrier-window", t))
             .transpose()?,
         target: a.target.clone(),
     };

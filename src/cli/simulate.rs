@@ -17,7 +17,7 @@ pub struct SimulateArgs {
     #[command(flatten)]
     pub net: NetworkArgs,
     /// How long to irradiate, e.g. "2 h", "30 min", "5 d".
-    #[arg(long, value_name = "DURATION")]
+    #[arg(long, allow_hyphen_values = true, value_name = "DURATION")]
     pub until: String,
     /// Output folder (default: a folder named after the network file).
     #[arg(long, value_name = "DIR")]
@@ -28,14 +28,14 @@ pub struct SimulateArgs {
     /// Integrator: auto, bdf or dop853.
     #[arg(long, default_value = "auto")]
     pub method: String,
-    /// Relative tolerance.
-    #[arg(long, default_value_t = 1e-6)]
+    /// Relative tolerance of the integrator (1e-14 to 0.1).
+    #[arg(long, default_value_t = 1e-6, value_parser = super::values::rtol, allow_negative_numbers = true)]
     pub rtol: f64,
     /// Absolute tolerance on concentrations, e.g. "1e-12 M".
-    #[arg(long, default_value = "1e-12 M")]
+    #[arg(long, allow_hyphen_values = true, default_value = "1e-12 M")]
     pub atol: String,
-    /// Number of output times.
-    #[arg(long, default_value_t = 200)]
+    /// Number of output times (2 to 1,000,000).
+    #[arg(long, default_value_t = 200, value_parser = super::values::points, allow_negative_numbers = true)]
     pub points: usize,
     /// Space output times logarithmically (and plot a log time axis).
     #[arg(long)]
@@ -61,8 +61,7 @@ fn parse_stop(text: &str, model: &Model) -> photoledger::Result<kinetics::Event>
 pub fn run(a: &SimulateArgs) -> photoledger::Result<Exit> {
     let net = load(&a.net)?;
     print_warnings(&net);
-    let until = units::parse(&a.until, Quantity::Time)
-        .map_err(|e| Error::Usage(format!("--until: {e}; expected {}", Quantity::Time.accepted())))?;
+    let until = super::values::duration("until", &a.until)?;
     let atol = units::parse(&a.atol, Quantity::Concentration)
         .map_err(|e| Error::Usage(format!("--atol: {e}; expected {}", Quantity::Concentration.accepted())))?;
     let method = match a.method.as_str() {

@@ -7,7 +7,6 @@ use super::output::{out, outln};
 use photoledger::Error;
 use photoledger::report::{uncertainty as report, write_atomic};
 use photoledger::uncertainty::{self, Problem, Record, Settings, Space, fitcov::FitBlock, spec};
-use photoledger::units::{self, Quantity};
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 
@@ -31,7 +30,7 @@ pub struct UncertaintyArgs {
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
     /// Run the kinetics of each sample for this long, e.g. "2 h" (final concentrations).
-    #[arg(long, value_name = "DURATION")]
+    #[arg(long, allow_hyphen_values = true, value_name = "DURATION")]
     pub until: Option<String>,
     /// Time until a species crosses a level, e.g. "product > 5 mM" or "Z-azo > 90 % of E-azo"
     /// (needs --until, the longest time waited).
@@ -103,10 +102,7 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
         space = space.with_fit(FitBlock::from_json(&f.display().to_string(), &read(f)?)?)?;
     }
     let until = match &a.until {
-        Some(u) => Some(
-            units::parse(u, Quantity::Time)
-                .map_err(|e| Error::Usage(format!("--until: {e}; expected {}", Quantity::Time.accepted())))?,
-        ),
+        Some(u) => Some(super::values::duration("until", u)?),
         None => None,
     };
     let target = a.target.clone();

@@ -71,7 +71,9 @@ pub fn eyring(barrier: f64, temperature: f64, order: u32, transmission: f64) -> 
 /// inverse of [`eyring`].
 pub fn eyring_barrier(k: f64, temperature: f64, order: u32, transmission: f64) -> f64 {
     let c0 = STANDARD_CONCENTRATION.powi(1 - order as i32);
-    -GAS_CONSTANT * temperature * (k * PLANCK / (transmission * BOLTZMANN * temperature * c0)).ln()
+    // As a difference of logarithms, so a very slow k (a window of 1e300 s) does not underflow
+    // k·h to zero on the way.
+    -GAS_CONSTANT * temperature * (k.ln() + PLANCK.ln() - (transmission * BOLTZMANN * temperature * c0).ln())
 }
 
 /// Arrhenius rate constant at `temperature` K.
