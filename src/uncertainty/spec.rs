@@ -43,6 +43,18 @@ pub enum Distribution {
         /// Geometric standard deviation (> 1).
         factor: f64,
     },
+    /// One channel's share of a transient whose branching is given as trajectory counts: the
+    /// channels are drawn together from Dirichlet(`alphas`) (see `sampling`, `evidence`).
+    Counts {
+        /// The count share (the value in the network).
+        share: f64,
+        /// The Dirichlet parameters of every channel of the transient: count + prior.
+        alphas: Vec<f64>,
+        /// This channel's index among them.
+        channel: usize,
+        /// The transient's index: coordinates with the same block are one draw.
+        block: usize,
+    },
     /// One coordinate of a multivariate normal from a fit (drawn jointly, see `fitcov`).
     FromFit {
         /// Best value, in the parameter's unit.
@@ -61,6 +73,7 @@ impl Distribution {
             Distribution::Beta { alpha, beta, low, high } => low + (high - low) * alpha / (alpha + beta),
             Distribution::LogNormal { median, .. } => median,
             Distribution::FromFit { value, .. } => value,
+            Distribution::Counts { share, .. } => share,
         }
     }
 
@@ -86,6 +99,17 @@ impl Distribution {
             }
             Distribution::LogNormal { median, factor } => {
                 format!("lognormal(median {}, factor {})", g(median), n(factor))
+            }
+            Distribution::Counts {
+                ref alphas, channel, ..
+            } => {
+                let a0: f64 = alphas.iter().sum();
+                format!(
+                    "Dirichlet over {} channels, this one beta({}, {})",
+                    alphas.len(),
+                    n(alphas[channel]),
+                    n(a0 - alphas[channel])
+                )
             }
             Distribution::FromFit { value, transform } => match transform {
                 Transform::Identity => format!("fit covariance, best {}", g(value)),
