@@ -2,6 +2,7 @@
 //! value, origin and spread (defaults marked), from `uncertainty::evidence::entries`.
 
 use crate::network::evidence::{ShareSd, Source, Spreads};
+use crate::uncertainty::counts::{CountIntervals, Interval};
 use crate::uncertainty::evidence::{Basis, Entry, Spreading};
 use crate::units::{self, display};
 use std::fmt::Write;
@@ -127,6 +128,89 @@ pub fn uncertain_values(entries: &[Entry]) -> String {
             s,
             "  default spreads (change them in [spreads.ORIGIN]): {}",
             rows.join("; ")
+        );
+    }
+    s
+}
+
+/// `ledger`'s section on what the trajectory counts alone leave uncertain.
+pub fn count_intervals(c: &CountIntervals) -> String {
+    let mut s = String::new();
+    let _ = writeln!(
+        s,
+        "\nfrom the trajectory counts alone ({} % intervals over {} draws of their Dirichlet, seed {}; every other number held)",
+        units::sig(c.level * 100.0, 3),
+        c.draws,
+        c.seed
+    );
+    for t in &c.transients {
+        let finished: u64 = t.runs.iter().sum();
+        let runs: Vec<String> = t.runs.iter().map(|n| n.to_string()).collect();
+        let _ = writeln!(
+            s,
+            "  {}: {} runs by channel, {finished} that reached a channel{}; {}",
+            t.name,
+            runs.join(" / "),
+            if t.unfinished > 0 {
+                format!(", {} more that ended nowhere (left out of the shares)", t.unfinished)
+            } else {
+                String::new()
+            },
+            t.prior
+        );
+    }
+    let label = |i: &Interval| match i.output.as_str() {
+        "yield" => format!("yield of {}", i.product),
+        _ => format!("photons per {}", i.product),
+    };
+    let w = c.intervals.iter().map(|i| label(i).chars().count()).max().unwrap_or(0);
+    for i in &c.intervals {
+        let _ = writeln!(
+            s,
+            "  {:w$}  {:>10}  ({} – {})",
+            label(i),
+            display::number(i.value),
+            display::number(i.low),
+            display::number(i.high)
+        );
+    }
+    if c.failed > 0 {
+        let _ = writeln!(s, "  {} of the draws could not be evaluated and are left out", c.failed);
+    }
+    if let Some(w) = c.widest.and_then(|k| c.intervals.get(k)) {
+        let more: Vec<String> = c
+            .transients
+            .iter()
+            .map(|t| {
+                let finished: u64 = t.runs.iter().sum();
+                format!(
+                    "about {} more runs on {} ({} → {} that reach a channel{})",
+                    t.more_runs,
+                    t.name,
+                    finished,
+                    t.finished_needed,
+                    if t.unfinished > 0 {
+                        ", allowing for those that end nowhere at today's rate".to_string()
+                    } else {
+                        String::new()
+                    }
+                )
+            })
+            .collect();
+        let _ = writeln!(
+            s,
+            "  widest for its value: {}; to halve it, {}{}",
+            label(w),
+            more.join(" and "),
+            match c.widest_after {
+                Some((l, h)) => format!(
+                    "; drawn at those counts it is ({} – {}), {} % of today's width",
+                    display::number(l),
+                    display::number(h),
+                    units::sig(100.0 * (h - l) / (w.high - w.low), 2)
+                ),
+                None => String::new(),
+            }
         );
     }
     s

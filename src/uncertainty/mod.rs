@@ -14,6 +14,7 @@
 //! see [`spec::Parameter::unit`]; a key's unit comes from `network::overrides::parameter`);
 //! outputs as named in [`Output`]. Descriptions (`Column::about`) are written in display units.
 
+pub mod counts;
 pub mod evidence;
 pub mod fitcov;
 pub mod sampling;
