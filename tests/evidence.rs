@@ -256,13 +256,13 @@ fn origins_give_their_spreads_and_an_entry_wins() {
     let get = |k: &str| ps.iter().find(|p| p.key == k).unwrap().distribution.clone();
     // Defaults: ±1.5 kcal/mol for a computed ground-state barrier, ±7 for an excited state.
     match get("thermal.C to D.barrier") {
-        Distribution::Normal { mean, sd } => {
-            assert!((mean - 19.0 * KCAL).abs() < 1e-6 && (sd - 1.5 * KCAL).abs() < 1e-9)
+        Distribution::NormalAtLeast { mean, sd, low } => {
+            assert!((mean - 19.0 * KCAL).abs() < 1e-6 && (sd - 1.5 * KCAL).abs() < 1e-9 && low == 0.0)
         }
         d => panic!("{d:?}"),
     }
     match get("transient.A*.channels[0].barrier") {
-        Distribution::Normal { sd, .. } => assert!((sd - 7.0 * KCAL).abs() < 1e-9),
+        Distribution::NormalAtLeast { sd, .. } => assert!((sd - 7.0 * KCAL).abs() < 1e-9),
         d => panic!("{d:?}"),
     }
     match get("transient.A*.channels[1].k") {
@@ -288,7 +288,7 @@ fn origins_give_their_spreads_and_an_entry_wins() {
     assert!(ps.iter().all(|p| p.key != "thermal.C to D.barrier"), "the entry on the same rate wins");
     assert!(notes.iter().any(|n| n.starts_with("thermal.C to D.barrier: the [[uncertain]] entry")), "{notes:?}");
     match &ps.iter().find(|p| p.key == "transient.A*.channels[0].barrier").unwrap().distribution {
-        Distribution::Normal { sd, .. } => assert!((sd - 5.0 * KCAL).abs() < 1e-9),
+        Distribution::NormalAtLeast { sd, .. } => assert!((sd - 5.0 * KCAL).abs() < 1e-9),
         d => panic!("{d:?}"),
     }
     // check lists every uncertain value with key, origin and spread, defaults marked.
@@ -356,4 +356,40 @@ fn uncertainty_runs_on_origins_and_counts_alone() {
     let failed: Vec<_> = record.samples.iter().filter_map(|s| s.error.clone()).collect();
     assert!(failed.is_empty(), "{failed:?}");
     assert!(record.header.notes.iter().any(|n| n.contains("Dirichlet")));
+}
+
+#[test]
+fn a_counted_share_cannot_be_set() {
+    let l = loaded(FIXTURE);
+    let o = Overrides::parse(&["transient.CI.channels[0].fraction=0.5".to_string()]).unwrap();
+    let e = photoledger::network::build(&l, &o).unwrap_err().to_string();
+    assert!(e.contains("comes from trajectory counts") && e.contains("--set transient.CI.channels[0].fraction"), "{e}");
+}
+
+#[test]
+fn photons_per_product_spanning_many_decades_are_never_shown_as_zero() {
+    // A computed excited-state barrier of 3 ± 7 kcal/mol moves the photons per product from about
+    // one to well over 1e10 across samples; the median must be a number of photons, not 0 by a
+    // round-off limit taken relative to the largest sample.
+    let net = built(FIXTURE);
+    let (ps, notes) = evidence::parameters(&net, &[]);
+    let space = Space {
+        independent: ps,
+        fit: None,
+    };
+    let settings = Settings {
+        chain: true,
+        until: None,
+        target: None,
+    };
+    let p = Problem::new(&net, space, settings).unwrap().with_notes(notes);
+    let summary = photoledger::uncertainty::summarise(&p.record(1, 200, 0..200, &|| {}));
+    let o = summary.outputs.iter().find(|o| o.column.name == "photons_per[B]").unwrap();
+    let q = |f: f64| o.quantiles.iter().find(|x| x.0 == f).unwrap().1.unwrap();
+    assert!(q(0.975) / q(0.025) > 1e3, "the spread spans decades: {:?}", o.quantiles);
+    let text = photoledger::report::uncertainty::text(&summary);
+    let row = text.lines().find(|l| l.trim_start().starts_with("photons_per[B]")).unwrap();
+    let cells: Vec<&str> = row.split_whitespace().collect();
+    // n, mean, sd, then the five quantiles: none of them reads 0.
+    assert!(cells[4..].iter().all(|c| *c != "0"), "{row}");
 }

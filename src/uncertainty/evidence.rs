@@ -3,7 +3,8 @@
 //! draws them with no `[[uncertain]]` entry; an entry for the same value wins.
 //!
 //! Spreads become distributions as follows (README, *Where a number comes from*): a barrier
-//! (ΔG‡, Ea, ΔH‡, E₀) is normal with the origin's standard deviation; a rate constant given as `k`
+//! (ΔG‡, Ea, ΔH‡, E₀) is normal with the origin's standard deviation, a draw below zero taken
+//! as zero (no barrier); a rate constant given as `k`
 //! is log-normal with the origin's `rate_factor`, or, without one, with the factor
 //! exp(σ/RT) that the barrier spread σ gives at the network temperature; a fraction or quantum
 //! yield is a beta with the value as mean and the spread as standard deviation (uniform over
@@ -139,9 +140,10 @@ pub fn entries(net: &Network, explicit: &[&Parameter]) -> Vec<Entry> {
         let replaced = taken(s.key);
         let distribution = if replaced { None } else { distribution(p.value, spread) };
         let written = format!(
-            "origin {}{}",
+            "origin = \"{}\" at line {}{}",
             s.source.word(),
-            if default { " (default spread)" } else { "" }
+            s.line,
+            if default { ", default spread" } else { "" }
         );
         out.push(Entry {
             key: p.key.clone(),
@@ -274,7 +276,12 @@ pub fn parameters(net: &Network, already: &[&Parameter]) -> (Vec<Parameter>, Vec
 /// The distribution a spread gives a value of `value` (internal unit).
 fn distribution(value: f64, spread: Spreading) -> Option<Distribution> {
     match spread {
-        Spreading::Energy(sd) => Some(Distribution::Normal { mean: value, sd }),
+        // A barrier below zero is no barrier: such draws are taken as zero.
+        Spreading::Energy(sd) => Some(Distribution::NormalAtLeast {
+            mean: value,
+            sd,
+            low: 0.0,
+        }),
         Spreading::Factor(factor, _) => Some(Distribution::LogNormal { median: value, factor }),
         Spreading::Share(sd) => Some(share(value, sd.at(value))),
         Spreading::None | Spreading::Own => None,

@@ -521,11 +521,17 @@ fn column(o: &Output, model: &Model, s: &Settings) -> Column {
             "",
             format!("chain: molecules of {n} per photon absorbed"),
         ),
-        Output::PhotonsPer(n) => c(
-            format!("photons_per[{n}]"),
-            "",
-            format!("chain: photons absorbed per molecule of {n} made (1 / quantum yield)"),
-        ),
+        // Photons per product are at least one per molecule made, never near zero: a sample's
+        // value is not round-off of another sample's, however many orders of magnitude apart
+        // (a barrier's spread of several kcal/mol moves them by many).
+        Output::PhotonsPer(n) => Column {
+            zero_within_relative: None,
+            ..c(
+                format!("photons_per[{n}]"),
+                "",
+                format!("chain: photons absorbed per molecule of {n} made (1 / quantum yield)"),
+            )
+        },
         Output::Final(i) => Column {
             zero_within: Some(KINETICS_ATOL),
             zero_within_relative: None,

@@ -92,6 +92,10 @@ fn draw_one(d: &Distribution, rng: &mut ChaCha12Rng) -> f64 {
             let z: f64 = rng.sample(StandardNormal);
             mean + sd * z
         }
+        Distribution::NormalAtLeast { mean, sd, low } => {
+            let z: f64 = rng.sample(StandardNormal);
+            (mean + sd * z).max(low)
+        }
         Distribution::Uniform { low, high } => low + (high - low) * rng.random::<f64>(),
         Distribution::Beta { alpha, beta, low, high } => {
             // alpha, beta > 0 were checked when read.

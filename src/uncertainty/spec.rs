@@ -18,6 +18,16 @@ pub enum Distribution {
         /// Standard deviation (> 0).
         sd: f64,
     },
+    /// Normal with mean and standard deviation, a draw below `low` taken as `low` (a barrier
+    /// drawn below zero is no barrier).
+    NormalAtLeast {
+        /// Mean.
+        mean: f64,
+        /// Standard deviation (> 0).
+        sd: f64,
+        /// The least value.
+        low: f64,
+    },
     /// Uniform on [low, high).
     Uniform {
         /// Lower end.
@@ -68,7 +78,7 @@ impl Distribution {
     /// A central value (mean, midpoint, median or best value): used to check the key once.
     pub fn nominal(&self) -> f64 {
         match *self {
-            Distribution::Normal { mean, .. } => mean,
+            Distribution::Normal { mean, .. } | Distribution::NormalAtLeast { mean, .. } => mean,
             Distribution::Uniform { low, high } => 0.5 * (low + high),
             Distribution::Beta { alpha, beta, low, high } => low + (high - low) * alpha / (alpha + beta),
             Distribution::LogNormal { median, .. } => median,
@@ -93,6 +103,9 @@ impl Distribution {
         let n = |v: f64| units::sig(v, 4);
         match *self {
             Distribution::Normal { mean, sd } => format!("normal(mean {}, sd {})", g(mean), g(sd)),
+            Distribution::NormalAtLeast { mean, sd, low } => {
+                format!("normal(mean {}, sd {}), draws below {} taken as {}", g(mean), g(sd), g(low), g(low))
+            }
             Distribution::Uniform { low, high } => format!("uniform({}, {})", g(low), g(high)),
             Distribution::Beta { alpha, beta, low, high } => {
                 format!("beta({}, {}) on [{}, {}]", n(alpha), n(beta), g(low), g(high))
