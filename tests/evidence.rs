@@ -98,8 +98,14 @@ fn dirichlet_draws_have_the_closed_form_mean_and_variance() {
         let (m, sd) = stats::mean_sd(&v);
         let (mean, var) = dirichlet_moments(&alphas, i);
         // Monte Carlo error of the mean: sd/√n; of the variance: about var·√(2/n).
-        assert!((m.unwrap() - mean).abs() < 4.0 * var.sqrt() / (n as f64).sqrt(), "mean {i}");
-        assert!((sd.unwrap().powi(2) - var).abs() < 4.0 * var * (2.0 / n as f64).sqrt() * 1.5, "variance {i}");
+        assert!(
+            (m.unwrap() - mean).abs() < 4.0 * var.sqrt() / (n as f64).sqrt(),
+            "mean {i}"
+        );
+        assert!(
+            (sd.unwrap().powi(2) - var).abs() < 4.0 * var * (2.0 / n as f64).sqrt() * 1.5,
+            "variance {i}"
+        );
     }
     assert!(draws.iter().all(|d| (d.iter().sum::<f64>() - 1.0).abs() < 1e-12));
 }
@@ -125,7 +131,12 @@ fn count_shares_and_their_dirichlet_are_read_from_the_file() {
         Distribution::Counts { alphas, .. } => assert_eq!(alphas, &vec![41.5, 12.5, 3.5]),
         d => panic!("{d:?}"),
     }
-    assert!(notes.iter().any(|n| n.contains("Jeffreys prior ½") && n.contains("4 that ended nowhere")), "{notes:?}");
+    assert!(
+        notes
+            .iter()
+            .any(|n| n.contains("Jeffreys prior ½") && n.contains("4 that ended nowhere")),
+        "{notes:?}"
+    );
     // A uniform prior, when asked for.
     let net = built(&counted(
         r#"{ to = "B", trajectories = 4 }, { to = "C", trajectories = 0 }"#,
@@ -139,15 +150,37 @@ fn count_shares_and_their_dirichlet_are_read_from_the_file() {
 
 #[test]
 fn bad_counts_are_located_errors() {
-    let e = errors(&counted(r#"{ to = "B", trajectories = 4.5 }, { to = "C", trajectories = 2 }"#, ""));
-    assert!(e.contains("test.toml") && e.contains("channels[0].trajectories") && e.contains("whole number"), "{e}");
-    let e = errors(&counted(r#"{ to = "B", trajectories = 4 }, { to = "C", fraction = "rest" }"#, ""));
+    let e = errors(&counted(
+        r#"{ to = "B", trajectories = 4.5 }, { to = "C", trajectories = 2 }"#,
+        "",
+    ));
+    assert!(
+        e.contains("test.toml") && e.contains("channels[0].trajectories") && e.contains("whole number"),
+        "{e}"
+    );
+    assert!(!e.contains("no way out"), "no follow-on error: {e}");
+    let e = errors(&counted(
+        r#"{ to = "B", trajectories = 4 }, { to = "C", fraction = "rest" }"#,
+        "",
+    ));
     assert!(e.contains("mixes trajectory counts"), "{e}");
-    let e = errors(&counted(r#"{ to = "B", trajectories = 0 }, { to = "C", trajectories = 0 }"#, ""));
+    let e = errors(&counted(
+        r#"{ to = "B", trajectories = 0 }, { to = "C", trajectories = 0 }"#,
+        "",
+    ));
     assert!(e.contains("no run reached any channel"), "{e}");
-    let e = errors(&counted(r#"{ to = "B", fraction = 0.5 }, { to = "C", fraction = "rest" }"#, "unfinished_trajectories = 3"));
-    assert!(e.contains("unfinished_trajectories") && e.contains("applies only"), "{e}");
-    let e = errors(&counted(r#"{ to = "B", trajectories = 4 }, { to = "C", trajectories = 2 }"#, "trajectory_prior = 0"));
+    let e = errors(&counted(
+        r#"{ to = "B", fraction = 0.5 }, { to = "C", fraction = "rest" }"#,
+        "unfinished_trajectories = 3",
+    ));
+    assert!(
+        e.contains("unfinished_trajectories") && e.contains("applies only"),
+        "{e}"
+    );
+    let e = errors(&counted(
+        r#"{ to = "B", trajectories = 4 }, { to = "C", trajectories = 2 }"#,
+        "trajectory_prior = 0",
+    ));
     assert!(e.contains("trajectory_prior") && e.contains("Jeffreys"), "{e}");
 }
 
@@ -163,7 +196,10 @@ fn ledger_intervals_from_counts_match_the_closed_form_beta() {
     // yield of B is its share, whose marginal under Dirichlet(n + ½) is Beta(n_B + ½, n − n_B + ½)
     // (Gelman et al., Bayesian Data Analysis, 3rd ed., 2013, Appendix A), and photons per B is
     // one over it.
-    let net = built(&counted(r#"{ to = "B", trajectories = 41 }, { to = "C", trajectories = 15 }"#, ""));
+    let net = built(&counted(
+        r#"{ to = "B", trajectories = 41 }, { to = "C", trajectories = 15 }"#,
+        "",
+    ));
     let ci = counts::intervals(&net, &ChainOptions::default()).unwrap().unwrap();
     assert_eq!(ci.failed, 0);
     let d = Beta::new(41.5, 15.5).unwrap();
@@ -172,8 +208,18 @@ fn ledger_intervals_from_counts_match_the_closed_form_beta() {
     assert!((y.value - 41.0 / 56.0).abs() < 1e-12);
     // In probability: each end within Monte Carlo error (2000 draws: sd of a 2.5 % point's
     // probability about 0.0035) of 0.025 and 0.975.
-    assert!((d.cdf(y.low) - 0.025).abs() < 0.012, "{} {:?}", d.cdf(y.low), beta_interval(41.5, 15.5));
-    assert!((d.cdf(y.high) - 0.975).abs() < 0.012, "{} {:?}", d.cdf(y.high), beta_interval(41.5, 15.5));
+    assert!(
+        (d.cdf(y.low) - 0.025).abs() < 0.012,
+        "{} {:?}",
+        d.cdf(y.low),
+        beta_interval(41.5, 15.5)
+    );
+    assert!(
+        (d.cdf(y.high) - 0.975).abs() < 0.012,
+        "{} {:?}",
+        d.cdf(y.high),
+        beta_interval(41.5, 15.5)
+    );
     let p = find("photons_per", "B");
     assert!((d.cdf(1.0 / p.high) - 0.025).abs() < 0.012 && (d.cdf(1.0 / p.low) - 0.975).abs() < 0.012);
 }
@@ -208,7 +254,9 @@ fn ledger_intervals_from_counts_match_a_monte_carlo_of_the_counts() {
             let k = if i + 1 == runs.len() {
                 left
             } else {
-                rand_distr::Binomial::new(left, (p / p_left).min(1.0)).unwrap().sample(&mut rng)
+                rand_distr::Binomial::new(left, (p / p_left).min(1.0))
+                    .unwrap()
+                    .sample(&mut rng)
             };
             drawn.push(k);
             left -= k;
@@ -217,21 +265,40 @@ fn ledger_intervals_from_counts_match_a_monte_carlo_of_the_counts() {
         if drawn[0] + drawn[1] == 0 {
             continue;
         }
-        let typed: Vec<_> = keys.iter().copied().zip(drawn.iter().map(|&k| k as f64 / n as f64)).collect();
+        let typed: Vec<_> = keys
+            .iter()
+            .copied()
+            .zip(drawn.iter().map(|&k| k as f64 / n as f64))
+            .collect();
         let net_i = photoledger::uncertainty::written(&net, &typed).unwrap();
         let m = photoledger::model::Model::compile(&net_i);
         let run = photoledger::chain::run(&m, &net_i, &ChainOptions::default()).unwrap();
-        let k = run.analysis.absorbing.iter().position(|&s| run.chain.states[s].name == "B").unwrap();
+        let k = run
+            .analysis
+            .absorbing
+            .iter()
+            .position(|&s| run.chain.states[s].name == "B")
+            .unwrap();
         yields.push(run.analysis.yields[k]);
         photons.push(run.analysis.photons_total / run.analysis.yields[k]);
     }
     for (output, v) in [("yield", &mut yields), ("photons_per", &mut photons)] {
         v.sort_by(f64::total_cmp);
         let (lo, hi) = (stats::quantile(v, 0.025).unwrap(), stats::quantile(v, 0.975).unwrap());
-        let i = ci.intervals.iter().find(|i| i.output == output && i.product == "B").unwrap();
+        let i = ci
+            .intervals
+            .iter()
+            .find(|i| i.output == output && i.product == "B")
+            .unwrap();
         let width = hi - lo;
-        assert!(((i.high - i.low) - width).abs() < 0.1 * width, "{output}: {i:?} against {lo}..{hi}");
-        assert!(((i.high + i.low) / 2.0 - (hi + lo) / 2.0).abs() < 0.1 * width, "{output}: {i:?} against {lo}..{hi}");
+        assert!(
+            ((i.high - i.low) - width).abs() < 0.1 * width,
+            "{output}: {i:?} against {lo}..{hi}"
+        );
+        assert!(
+            ((i.high + i.low) / 2.0 - (hi + lo) / 2.0).abs() < 0.1 * width,
+            "{output}: {i:?} against {lo}..{hi}"
+        );
     }
 }
 
@@ -285,9 +352,22 @@ fn origins_give_their_spreads_and_an_entry_wins() {
     let net = photoledger::network::build(&l, &Overrides::none()).unwrap();
     let explicit = spec::read(&l).unwrap();
     let (ps, notes) = evidence::parameters(&net, &explicit.iter().collect::<Vec<_>>());
-    assert!(ps.iter().all(|p| p.key != "thermal.C to D.barrier"), "the entry on the same rate wins");
-    assert!(notes.iter().any(|n| n.starts_with("thermal.C to D.barrier: the [[uncertain]] entry")), "{notes:?}");
-    match &ps.iter().find(|p| p.key == "transient.A*.channels[0].barrier").unwrap().distribution {
+    assert!(
+        ps.iter().all(|p| p.key != "thermal.C to D.barrier"),
+        "the entry on the same rate wins"
+    );
+    assert!(
+        notes
+            .iter()
+            .any(|n| n.starts_with("thermal.C to D.barrier: the [[uncertain]] entry")),
+        "{notes:?}"
+    );
+    match &ps
+        .iter()
+        .find(|p| p.key == "transient.A*.channels[0].barrier")
+        .unwrap()
+        .distribution
+    {
         Distribution::NormalAtLeast { sd, .. } => assert!((sd - 5.0 * KCAL).abs() < 1e-9),
         d => panic!("{d:?}"),
     }
@@ -314,7 +394,10 @@ fn an_estimate_without_a_spread_is_listed_and_not_drawn() {
     let net = built(&text);
     let (ps, notes) = evidence::parameters(&net, &[]);
     assert!(ps.iter().all(|p| p.key != "photo.excitation.efficiency"));
-    assert!(notes.iter().any(|n| n.contains("origin estimated has no spread")), "{notes:?}");
+    assert!(
+        notes.iter().any(|n| n.contains("origin estimated has no spread")),
+        "{notes:?}"
+    );
 }
 
 #[test]
@@ -325,10 +408,16 @@ fn bad_origins_and_spreads_are_located_errors() {
         "{e}"
     );
     let e = errors(&format!("{FIXTURE}\n[spreads.measured]\nrate_factor = 0.5\n"));
-    assert!(e.contains("spreads.measured.rate_factor") && e.contains("above 1"), "{e}");
+    assert!(
+        e.contains("spreads.measured.rate_factor") && e.contains("above 1"),
+        "{e}"
+    );
     let e = errors(&format!("{FIXTURE}\n[spreads.guessed]\nbarrier = \"2 kcal/mol\"\n"));
     assert!(e.contains("guessed") && e.contains("computed-ground-state"), "{e}");
-    let e = errors(&FIXTURE.replace("{ to = \"B\", trajectories = 41 }", "{ to = \"B\", trajectories = 41, origin = \"measured\" }"));
+    let e = errors(&FIXTURE.replace(
+        "{ to = \"B\", trajectories = 41 }",
+        "{ to = \"B\", trajectories = 41, origin = \"measured\" }",
+    ));
     assert!(e.contains("channels[0].origin") && e.contains("own uncertainty"), "{e}");
 }
 
@@ -363,7 +452,10 @@ fn a_counted_share_cannot_be_set() {
     let l = loaded(FIXTURE);
     let o = Overrides::parse(&["transient.CI.channels[0].fraction=0.5".to_string()]).unwrap();
     let e = photoledger::network::build(&l, &o).unwrap_err().to_string();
-    assert!(e.contains("comes from trajectory counts") && e.contains("--set transient.CI.channels[0].fraction"), "{e}");
+    assert!(
+        e.contains("comes from trajectory counts") && e.contains("--set transient.CI.channels[0].fraction"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -384,11 +476,18 @@ fn photons_per_product_spanning_many_decades_are_never_shown_as_zero() {
     };
     let p = Problem::new(&net, space, settings).unwrap().with_notes(notes);
     let summary = photoledger::uncertainty::summarise(&p.record(1, 200, 0..200, &|| {}));
-    let o = summary.outputs.iter().find(|o| o.column.name == "photons_per[B]").unwrap();
+    let o = summary
+        .outputs
+        .iter()
+        .find(|o| o.column.name == "photons_per[B]")
+        .unwrap();
     let q = |f: f64| o.quantiles.iter().find(|x| x.0 == f).unwrap().1.unwrap();
     assert!(q(0.975) / q(0.025) > 1e3, "the spread spans decades: {:?}", o.quantiles);
     let text = photoledger::report::uncertainty::text(&summary);
-    let row = text.lines().find(|l| l.trim_start().starts_with("photons_per[B]")).unwrap();
+    let row = text
+        .lines()
+        .find(|l| l.trim_start().starts_with("photons_per[B]"))
+        .unwrap();
     let cells: Vec<&str> = row.split_whitespace().collect();
     // n, mean, sd, then the five quantiles: none of them reads 0.
     assert!(cells[4..].iter().all(|c| *c != "0"), "{row}");

@@ -7,7 +7,12 @@ use toml::Spanned;
 
 /// The origin words accepted after `origin =` and as `[spreads.WORD]` tables, in the order
 /// they are listed in messages.
-pub const ORIGINS: [&str; 4] = ["measured", "computed-ground-state", "computed-excited-state", "estimated"];
+pub const ORIGINS: [&str; 4] = [
+    "measured",
+    "computed-ground-state",
+    "computed-excited-state",
+    "estimated",
+];
 
 /// `[spreads]`: one optional row per origin. A row given replaces the defaults of that origin
 /// field by field (a field left out keeps its default).

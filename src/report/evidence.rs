@@ -38,7 +38,15 @@ fn spread(e: &Entry) -> String {
     let default = if e.default { ", default" } else { "" };
     let text = match (&e.basis, e.spread) {
         (Basis::Entry(written), _) => written.clone(),
-        (Basis::Counts { runs, finished, unfinished, prior }, _) => format!(
+        (
+            Basis::Counts {
+                runs,
+                finished,
+                unfinished,
+                prior,
+            },
+            _,
+        ) => format!(
             "{runs} of {finished} runs{}; Dirichlet over the channels, {prior}",
             if *unfinished > 0 {
                 format!(" ({unfinished} more ended nowhere: left out)")
@@ -79,7 +87,12 @@ pub fn uncertain_values(entries: &[Entry]) -> String {
         "\nuncertain values (drawn by `uncertainty`; the key is the one --set and [[uncertain]] use)"
     );
     let kw = entries.iter().map(|e| e.key.chars().count()).max().unwrap_or(0).max(3);
-    let vw = entries.iter().map(|e| value(e).chars().count()).max().unwrap_or(0).max(5);
+    let vw = entries
+        .iter()
+        .map(|e| value(e).chars().count())
+        .max()
+        .unwrap_or(0)
+        .max(5);
     let _ = writeln!(s, "  {:kw$}  {:>vw$}  {:22}  spread", "key", "value", "origin");
     for e in entries {
         let origin = match &e.basis {

@@ -104,7 +104,13 @@ impl Distribution {
         match *self {
             Distribution::Normal { mean, sd } => format!("normal(mean {}, sd {})", g(mean), g(sd)),
             Distribution::NormalAtLeast { mean, sd, low } => {
-                format!("normal(mean {}, sd {}), draws below {} taken as {}", g(mean), g(sd), g(low), g(low))
+                format!(
+                    "normal(mean {}, sd {}), draws below {} taken as {}",
+                    g(mean),
+                    g(sd),
+                    g(low),
+                    g(low)
+                )
             }
             Distribution::Uniform { low, high } => format!("uniform({}, {})", g(low), g(high)),
             Distribution::Beta { alpha, beta, low, high } => {

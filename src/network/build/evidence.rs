@@ -58,7 +58,10 @@ impl Builder<'_> {
                 let Some(source) = self.source(&format!("{field}.{which}.origin"), o) else {
                     continue;
                 };
-                let step = steps.iter().copied().find(|&j| net.thermal[j].reverse_of.is_some() == reverse);
+                let step = steps
+                    .iter()
+                    .copied()
+                    .find(|&j| net.thermal[j].reverse_of.is_some() == reverse);
                 if let Some(j) = step {
                     let key = Key::Rate {
                         at: RateAt::Thermal(j),
@@ -93,7 +96,11 @@ impl Builder<'_> {
                     (None, Some(o)) => (o, true),
                     (None, None) => continue,
                 };
-                let f = if from_rate { format!("{cf}.rate.origin") } else { format!("{cf}.origin") };
+                let f = if from_rate {
+                    format!("{cf}.rate.origin")
+                } else {
+                    format!("{cf}.origin")
+                };
                 let Some(source) = self.source(&f, o) else { continue };
                 if !aligned {
                     continue;
@@ -166,7 +173,10 @@ impl Builder<'_> {
             let f = format!("{base}.barrier");
             let v = b.get_ref().trim();
             row.barrier = if v == "none" {
-                Spread { value: None, default: false }
+                Spread {
+                    value: None,
+                    default: false,
+                }
             } else {
                 match spread_energy(v) {
                     Ok(x) if x > 0.0 => Spread {
@@ -174,7 +184,12 @@ impl Builder<'_> {
                         default: false,
                     },
                     Ok(_) => {
-                        self.error(&f, &span(b), "the spread must be above zero", Some("e.g. \"1.5 kcal/mol\", or \"none\"".into()));
+                        self.error(
+                            &f,
+                            &span(b),
+                            "the spread must be above zero",
+                            Some("e.g. \"1.5 kcal/mol\", or \"none\"".into()),
+                        );
                         return;
                     }
                     Err(m) => {
@@ -182,7 +197,10 @@ impl Builder<'_> {
                             &f,
                             &span(b),
                             m,
-                            Some(format!("a standard deviation in {}, e.g. \"1.5 kcal/mol\", or \"none\"", Quantity::MolarEnergy.accepted())),
+                            Some(format!(
+                                "a standard deviation in {}, e.g. \"1.5 kcal/mol\", or \"none\"",
+                                Quantity::MolarEnergy.accepted()
+                            )),
                         );
                         return;
                     }
@@ -192,7 +210,10 @@ impl Builder<'_> {
         if let Some(k) = &e.rate_factor {
             let f = format!("{base}.rate_factor");
             row.rate_factor = match k.get_ref() {
-                toml::Value::String(s) if s.trim() == "none" => Spread { value: None, default: false },
+                toml::Value::String(s) if s.trim() == "none" => Spread {
+                    value: None,
+                    default: false,
+                },
                 toml::Value::Float(x) if *x > 1.0 && x.is_finite() => Spread {
                     value: Some(*x),
                     default: false,

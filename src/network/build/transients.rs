@@ -115,6 +115,17 @@ impl Builder<'_> {
             // A channel already reported as broken would only add follow-on errors about sums.
             let complete = channels.len() == t.get_ref().channels.len() && !hot_broken;
             let counted = complete && self.count_shares(&field, t, i, &runs, &mut channels);
+            if !complete && !runs.is_empty() {
+                // A broken count was reported: give the others their share among themselves so
+                // the whole-network checks do not add follow-on errors about the NaN placeholder.
+                let total = runs.iter().sum::<u64>().max(1) as f64;
+                let mut counts = runs.iter();
+                for (c, _) in channels.iter_mut() {
+                    if matches!(c.branching, Branching::Fraction(x) if x.is_nan()) {
+                        c.branching = Branching::Fraction(counts.next().map_or(0.0, |&n| n as f64 / total));
+                    }
+                }
+            }
             let (hot_ok, hot_model) = if complete {
                 self.derived()
                     .hot_yields(&field, t, kind, &hot, &mut channels, &photon[i])
@@ -347,12 +358,7 @@ const UNFINISHED_HELP: &str = "unfinished_trajectories = N on the transient coun
 impl Builder<'_> {
     /// The `trajectories` count of channel `cf`: a whole number ≥ 0, on a channel with no other
     /// share.
-    fn trajectory_count(
-        &mut self,
-        cf: &str,
-        c: &Spanned<schema::Channel>,
-        n: &Spanned<toml::Value>,
-    ) -> Option<u64> {
+    fn trajectory_count(&mut self, cf: &str, c: &Spanned<schema::Channel>, n: &Spanned<toml::Value>) -> Option<u64> {
         let e = c.get_ref();
         if e.fraction.is_some() || e.rate.is_some() || e.quencher.is_some() || e.hot.is_some() {
             self.error(
@@ -448,7 +454,10 @@ impl Builder<'_> {
                         &format!("{field}.trajectory_prior"),
                         &span(p),
                         format!("{} is not a positive number", p.get_ref()),
-                        Some("the pseudo-count added to every channel: 0.5 (Jeffreys, the default) or 1 (uniform)".into()),
+                        Some(
+                            "the pseudo-count added to every channel: 0.5 (Jeffreys, the default) or 1 (uniform)"
+                                .into(),
+                        ),
                     );
                     return false;
                 }
@@ -461,7 +470,9 @@ impl Builder<'_> {
                 &format!("{field}.channels"),
                 &span(t),
                 "no run reached any channel: the counts give no shares",
-                Some(format!("count the runs by the channel each left through; {UNFINISHED_HELP}")),
+                Some(format!(
+                    "count the runs by the channel each left through; {UNFINISHED_HELP}"
+                )),
             );
             return false;
         }
