@@ -16,7 +16,7 @@ use super::spec::{Distribution, Parameter};
 use crate::network::Network;
 use crate::network::evidence::{ShareSd, Source};
 use crate::network::params::{self, Key, RateField};
-use crate::units::{self, Quantity, constants::GAS_CONSTANT};
+use crate::units::{Quantity, constants::GAS_CONSTANT};
 
 /// Why a value is uncertain.
 #[derive(Debug, Clone, PartialEq)]
@@ -317,14 +317,4 @@ pub fn dirichlet_moments(alphas: &[f64], i: usize) -> (f64, f64) {
     let a0: f64 = alphas.iter().sum();
     let a = alphas[i];
     (a / a0, a * (a0 - a) / (a0 * a0 * (a0 + 1.0)))
-}
-
-/// A value of `q` in its display unit, for notes: e.g. "12.55 kJ/mol".
-pub fn shown(q: Option<Quantity>, v: f64) -> String {
-    let (x, u) = units::display::quantity(q, v);
-    if u.is_empty() {
-        units::sig(x, 4)
-    } else {
-        format!("{} {u}", units::sig(x, 4))
-    }
 }
