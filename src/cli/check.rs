@@ -1,12 +1,18 @@
 //! `photoledger check FILE`: validate and summarise.
 
 use super::output::{out, outln};
-use super::{NetworkArgs, load, print_warnings};
+use super::{NetworkArgs, build, print_warnings};
+use photoledger::uncertainty::{evidence, spec};
 
 pub fn run(args: &NetworkArgs, quiet: bool) -> photoledger::Result<()> {
-    let net = load(args)?;
+    let loaded = photoledger::file::load(&args.file)?;
+    let net = build(&loaded, args)?;
+    // The [[uncertain]] entries are checked here too, as `uncertainty` reads them.
+    let explicit = spec::read(&loaded)?;
     if !quiet {
         out!("{}", photoledger::report::summary::network_summary(&net))?;
+        let entries = evidence::entries(&net, &explicit.iter().collect::<Vec<_>>());
+        out!("{}", photoledger::report::evidence::uncertain_values(&entries))?;
         outln!()?;
     }
     print_warnings(&net);

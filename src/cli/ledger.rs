@@ -93,6 +93,8 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
         run.sensitivities.clone(),
     )
     .with_check(chain::agreement::check(&model, &net, &run, a.from.as_deref())?);
+    let mut summary = summary;
+    summary.count_intervals = photoledger::uncertainty::counts::intervals(&net, &opts)?;
     let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
     let dir = a.out.clone().unwrap_or_else(|| {
         let stem = a
@@ -116,6 +118,9 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
         outln!("{json}")?;
     } else {
         out!("{}", report::text(&summary))?;
+        if let Some(c) = &summary.count_intervals {
+            out!("{}", photoledger::report::evidence::count_intervals(c))?;
+        }
         outln!(
             "wrote {}/ (summary.json, photon_counts.csv, photon_counts.svg)",
             dir.display()

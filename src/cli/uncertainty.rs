@@ -17,7 +17,7 @@ pub struct UncertaintyArgs {
     /// Join shard files instead of running.
     #[command(subcommand)]
     pub merge: Option<MergeCommand>,
-    /// The network file (TOML) with [[uncertain]] entries.
+    /// The network file (TOML) with [[uncertain]] entries, stated origins or trajectory counts.
     #[arg(required = true)]
     pub file: Option<PathBuf>,
     /// Override a value of the file for every sample, e.g. --set conditions.temperature="310 K".
@@ -101,6 +101,10 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
     if let Some(f) = &a.from_fit {
         space = space.with_fit(FitBlock::from_json(&f.display().to_string(), &read(f)?)?)?;
     }
+    // Values with a stated origin and branchings from trajectory counts, where no entry above
+    // gives a distribution for the same value.
+    let (from_evidence, evidence_notes) = uncertainty::evidence::parameters(&net, &space.parameters());
+    space.independent.extend(from_evidence);
     let until = match &a.until {
         Some(u) => Some(super::values::duration("until", u)?),
         None => None,
@@ -111,7 +115,7 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
         until,
         target,
     };
-    let problem = Problem::new(&net, space, settings)?;
+    let problem = Problem::new(&net, space, settings)?.with_notes(evidence_notes);
     let (range, shard) = match &a.shard {
         Some(s) => {
             let (k, n) = s

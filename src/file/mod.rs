@@ -7,6 +7,7 @@
 
 pub mod csv;
 pub mod data;
+pub mod evidence;
 pub mod frequencies;
 pub mod schema;
 pub mod text;

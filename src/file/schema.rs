@@ -35,6 +35,8 @@ pub struct NetworkFile {
     /// `[[uncertain]]` distributions for `photoledger uncertainty` (layout in `file/uncertain.rs`).
     #[serde(default)]
     pub uncertain: Vec<Spanned<super::uncertain::Uncertain>>,
+    /// `[spreads]`: the spread of a number by its `origin` (layout in `file/evidence.rs`).
+    pub spreads: Option<Spanned<super::evidence::Spreads>>,
     /// `[fit]`: what `fit` and `compare` free by default.
     pub fit: Option<Spanned<FitSection>>,
 }
@@ -188,6 +190,8 @@ pub struct Rate {
     pub tunnelling: Option<Text>,
     /// Reaction-path degeneracy σ for a rate from frequencies (default 1, or the file's).
     pub degeneracy: Option<Spanned<f64>>,
+    /// Where the rate's number comes from: one of `file::evidence::ORIGINS`.
+    pub origin: Option<Text>,
 }
 
 /// `[[thermal]]`.
@@ -222,6 +226,8 @@ pub struct Photo {
     pub efficiency: Option<Spanned<toml::Value>>,
     /// Wavelength window `["300 nm", "400 nm"]` in which this step applies.
     pub range: Option<Spanned<Vec<String>>>,
+    /// Where the quantum yield (or efficiency) comes from: one of `file::evidence::ORIGINS`.
+    pub origin: Option<Text>,
 }
 
 /// `[[transient]]`.
@@ -246,6 +252,12 @@ pub struct Transient {
     pub frequencies: Option<Spanned<toml::Value>>,
     /// Hot ground state: energy grain of the state counts (default "10 cm-1").
     pub grain: Option<Text>,
+    /// With `trajectories` on its channels: the runs that reached none of them (stopped before
+    /// any, or failed); counted, left out of the shares.
+    pub unfinished_trajectories: Option<Spanned<toml::Value>>,
+    /// With `trajectories` on its channels: the Dirichlet prior added to each channel's count
+    /// (default 0.5, Jeffreys).
+    pub trajectory_prior: Option<Spanned<toml::Value>>,
 }
 
 /// A channel out of a transient.
@@ -262,6 +274,11 @@ pub struct Channel {
     pub quencher: Option<Text>,
     /// A reaction of a hot ground state before it cools: its yield follows from RRKM rates.
     pub hot: Option<Spanned<HotChannel>>,
+    /// Dynamics runs that left the transient by this channel: the share is this count over the
+    /// runs that reached any channel.
+    pub trajectories: Option<Spanned<toml::Value>>,
+    /// Where the fixed fraction comes from: one of `file::evidence::ORIGINS`.
+    pub origin: Option<Text>,
 }
 
 /// `hot = { ... }` of a channel out of a hot ground state.

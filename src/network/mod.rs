@@ -11,6 +11,7 @@ mod checks;
 mod derived;
 mod diagnostics;
 pub mod equation;
+pub mod evidence;
 pub mod formula;
 pub mod overrides;
 pub mod params;
@@ -353,6 +354,8 @@ pub struct Network {
     pub photo: Vec<PhotoStep>,
     /// Transients.
     pub transients: Vec<Transient>,
+    /// Where numbers come from: stated origins, their spreads, trajectory counts.
+    pub evidence: evidence::Evidence,
     /// Bipartite graph: species and transients on one side, steps on the other.
     pub graph: DiGraph<Node, Edge>,
     /// Warnings found while validating.

@@ -88,6 +88,9 @@ pub struct Summary {
     /// Sensitivities, largest effect on the main end's photon cost first; each list is in the
     /// order of `ends`.
     pub sensitivities: Vec<Sensitivity>,
+    /// Intervals from trajectory counts alone (`uncertainty::counts`), when the network has any.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub count_intervals: Option<crate::uncertainty::counts::CountIntervals>,
 }
 
 /// Build the summary; `products` says which absorbing states are products, `light` the light
@@ -163,6 +166,7 @@ pub fn summary(
         distribution_truncated: a.distribution.as_ref().is_some_and(|d| d.truncated),
         sensitivity_method: crate::chain::sensitivity::METHOD.to_string(),
         sensitivities: sens,
+        count_intervals: None,
     }
 }
 

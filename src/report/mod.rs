@@ -5,6 +5,7 @@ pub mod barrier;
 pub mod chain;
 pub mod csv_out;
 pub mod diagram;
+pub mod evidence;
 pub mod fit;
 pub mod html;
 pub mod plan;

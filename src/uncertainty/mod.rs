@@ -14,6 +14,8 @@
 //! see [`spec::Parameter::unit`]; a key's unit comes from `network::overrides::parameter`);
 //! outputs as named in [`Output`]. Descriptions (`Column::about`) are written in display units.
 
+pub mod counts;
+pub mod evidence;
 pub mod fitcov;
 pub mod sampling;
 pub mod spec;
@@ -181,7 +183,7 @@ impl Problem {
     pub fn new(base: &Network, space: Space, settings: Settings) -> Result<Problem> {
         if space.is_empty() {
             return Err(Error::Usage(
-                "nothing is uncertain: add [[uncertain]] entries to the network file (README, Uncertainty) or give --from-fit"
+                "nothing is uncertain: add [[uncertain]] entries, origins with a spread, or trajectory counts to the network file (README, Uncertainty; Where a number comes from), or give --from-fit"
                     .into(),
             ));
         }
@@ -283,7 +285,6 @@ impl Problem {
     /// The network at drawn `values` (in parameter order, each in its parameter's unit),
     /// written over the base as typed values.
     pub fn network(&self, values: &[f64]) -> Result<Network> {
-        let mut net = self.base.clone();
         let typed: Vec<(Key, f64)> = self
             .keys
             .iter()
@@ -291,8 +292,13 @@ impl Problem {
             .zip(values)
             .map(|((&k, &(offset, per)), &v)| (k, offset + per * v))
             .collect();
-        params::set_all(&mut net, &typed).map_err(|m| Error::Usage(format!("a drawn value: {m}")))?;
-        Ok(net)
+        written(&self.base, &typed)
+    }
+
+    /// The problem with `notes` added to the notes of its record (what was drawn and why).
+    pub fn with_notes(mut self, notes: Vec<String>) -> Problem {
+        self.notes.extend(notes);
+        self
     }
 
     /// The output columns.
@@ -461,6 +467,20 @@ fn typed(base: &Network, q: &spec::Parameter) -> std::result::Result<(Key, Strin
     Ok((key, unit, map))
 }
 
+/// `base` with `values` written as typed values. Shares (fractions, quantum yields, efficiencies)
+/// that fall are written before those that rise, so a sum rule that holds at the end (the
+/// channels of one transient, drawn together from trajectory counts) holds at every write.
+pub fn written(base: &Network, values: &[(Key, f64)]) -> Result<Network> {
+    let falls = |&(k, v): &(Key, f64)| {
+        matches!(k, Key::Fraction { .. } | Key::QuantumYield(_) | Key::Efficiency(_)) && v < params::get(base, k).value
+    };
+    let mut ordered: Vec<(Key, f64)> = values.iter().copied().filter(falls).collect();
+    ordered.extend(values.iter().copied().filter(|x| !falls(x)));
+    let mut net = base.clone();
+    params::set_all(&mut net, &ordered).map_err(|m| Error::Usage(format!("a drawn value: {m}")))?;
+    Ok(net)
+}
+
 fn one_line(e: &Error) -> String {
     e.to_string().lines().next().unwrap_or("").to_string()
 }
@@ -501,11 +521,17 @@ fn column(o: &Output, model: &Model, s: &Settings) -> Column {
             "",
             format!("chain: molecules of {n} per photon absorbed"),
         ),
-        Output::PhotonsPer(n) => c(
-            format!("photons_per[{n}]"),
-            "",
-            format!("chain: photons absorbed per molecule of {n} made (1 / quantum yield)"),
-        ),
+        // Photons per product are at least one per molecule made, never near zero: a sample's
+        // value is not round-off of another sample's, however many orders of magnitude apart
+        // (a barrier's spread of several kcal/mol moves them by many).
+        Output::PhotonsPer(n) => Column {
+            zero_within_relative: None,
+            ..c(
+                format!("photons_per[{n}]"),
+                "",
+                format!("chain: photons absorbed per molecule of {n} made (1 / quantum yield)"),
+            )
+        },
         Output::Final(i) => Column {
             zero_within: Some(KINETICS_ATOL),
             zero_within_relative: None,

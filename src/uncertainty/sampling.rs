@@ -7,7 +7,7 @@ use super::spec::{Distribution, Parameter};
 use crate::error::{Error, Result};
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha12Rng;
-use rand_distr::{Beta, Distribution as _, StandardNormal};
+use rand_distr::{Beta, Distribution as _, Gamma, StandardNormal};
 
 /// The uncertain parameters of a run: independent ones (from the file) then a joint block
 /// (from a fit), drawn in that order.
@@ -58,8 +58,25 @@ impl Space {
         let mut rng = ChaCha12Rng::seed_from_u64(seed);
         rng.set_stream(index);
         let mut out = Vec::with_capacity(self.len());
+        // Dirichlet draws of the transients with trajectory counts, by block, drawn once at
+        // their first channel.
+        let mut blocks: Vec<(usize, Vec<f64>)> = Vec::new();
         for p in &self.independent {
-            out.push(draw_one(&p.distribution, &mut rng));
+            match &p.distribution {
+                Distribution::Counts {
+                    alphas, channel, block, ..
+                } => {
+                    let at = match blocks.iter().position(|b| b.0 == *block) {
+                        Some(i) => i,
+                        None => {
+                            blocks.push((*block, dirichlet(alphas, &mut rng)));
+                            blocks.len() - 1
+                        }
+                    };
+                    out.push(blocks[at].1[*channel]);
+                }
+                d => out.push(draw_one(d, &mut rng)),
+            }
         }
         if let Some(f) = &self.fit {
             let z: Vec<f64> = (0..f.parameters.len()).map(|_| rng.sample(StandardNormal)).collect();
@@ -75,6 +92,10 @@ fn draw_one(d: &Distribution, rng: &mut ChaCha12Rng) -> f64 {
             let z: f64 = rng.sample(StandardNormal);
             mean + sd * z
         }
+        Distribution::NormalAtLeast { mean, sd, low } => {
+            let z: f64 = rng.sample(StandardNormal);
+            (mean + sd * z).max(low)
+        }
         Distribution::Uniform { low, high } => low + (high - low) * rng.random::<f64>(),
         Distribution::Beta { alpha, beta, low, high } => {
             // alpha, beta > 0 were checked when read.
@@ -86,6 +107,25 @@ fn draw_one(d: &Distribution, rng: &mut ChaCha12Rng) -> f64 {
             median * (factor.ln() * z).exp()
         }
         Distribution::FromFit { value, .. } => value,
+        Distribution::Counts { share, .. } => share,
+    }
+}
+
+/// A draw from Dirichlet(`alphas`) (every α > 0): independent Gamma(αᵢ, 1) draws divided by their
+/// sum (Gelman et al., Bayesian Data Analysis, 3rd ed., 2013, Appendix A). `rand_distr`'s own
+/// `Dirichlet` fixes the number of channels at compile time, so its `Gamma` is used directly.
+pub fn dirichlet<R: Rng + ?Sized>(alphas: &[f64], rng: &mut R) -> Vec<f64> {
+    let g: Vec<f64> = alphas
+        .iter()
+        .map(|&a| Gamma::new(a, 1.0).map_or(0.0, |d| d.sample(rng)))
+        .collect();
+    let sum: f64 = g.iter().sum();
+    if sum > 0.0 {
+        g.iter().map(|x| x / sum).collect()
+    } else {
+        // Every gamma underflowed (all α tiny): the mean, not a division by zero.
+        let a0: f64 = alphas.iter().sum();
+        alphas.iter().map(|a| a / a0).collect()
     }
 }
 

@@ -18,6 +18,16 @@ pub enum Distribution {
         /// Standard deviation (> 0).
         sd: f64,
     },
+    /// Normal with mean and standard deviation, a draw below `low` taken as `low` (a barrier
+    /// drawn below zero is no barrier).
+    NormalAtLeast {
+        /// Mean.
+        mean: f64,
+        /// Standard deviation (> 0).
+        sd: f64,
+        /// The least value.
+        low: f64,
+    },
     /// Uniform on [low, high).
     Uniform {
         /// Lower end.
@@ -43,6 +53,18 @@ pub enum Distribution {
         /// Geometric standard deviation (> 1).
         factor: f64,
     },
+    /// One channel's share of a transient whose branching is given as trajectory counts: the
+    /// channels are drawn together from Dirichlet(`alphas`) (see `sampling`, `evidence`).
+    Counts {
+        /// The count share (the value in the network).
+        share: f64,
+        /// The Dirichlet parameters of every channel of the transient: count + prior.
+        alphas: Vec<f64>,
+        /// This channel's index among them.
+        channel: usize,
+        /// The transient's index: coordinates with the same block are one draw.
+        block: usize,
+    },
     /// One coordinate of a multivariate normal from a fit (drawn jointly, see `fitcov`).
     FromFit {
         /// Best value, in the parameter's unit.
@@ -56,11 +78,12 @@ impl Distribution {
     /// A central value (mean, midpoint, median or best value): used to check the key once.
     pub fn nominal(&self) -> f64 {
         match *self {
-            Distribution::Normal { mean, .. } => mean,
+            Distribution::Normal { mean, .. } | Distribution::NormalAtLeast { mean, .. } => mean,
             Distribution::Uniform { low, high } => 0.5 * (low + high),
             Distribution::Beta { alpha, beta, low, high } => low + (high - low) * alpha / (alpha + beta),
             Distribution::LogNormal { median, .. } => median,
             Distribution::FromFit { value, .. } => value,
+            Distribution::Counts { share, .. } => share,
         }
     }
 
@@ -80,12 +103,32 @@ impl Distribution {
         let n = |v: f64| units::sig(v, 4);
         match *self {
             Distribution::Normal { mean, sd } => format!("normal(mean {}, sd {})", g(mean), g(sd)),
+            Distribution::NormalAtLeast { mean, sd, low } => {
+                format!(
+                    "normal(mean {}, sd {}), draws below {} taken as {}",
+                    g(mean),
+                    g(sd),
+                    g(low),
+                    g(low)
+                )
+            }
             Distribution::Uniform { low, high } => format!("uniform({}, {})", g(low), g(high)),
             Distribution::Beta { alpha, beta, low, high } => {
                 format!("beta({}, {}) on [{}, {}]", n(alpha), n(beta), g(low), g(high))
             }
             Distribution::LogNormal { median, factor } => {
                 format!("lognormal(median {}, factor {})", g(median), n(factor))
+            }
+            Distribution::Counts {
+                ref alphas, channel, ..
+            } => {
+                let a0: f64 = alphas.iter().sum();
+                format!(
+                    "Dirichlet over {} channels, this one beta({}, {})",
+                    alphas.len(),
+                    n(alphas[channel]),
+                    n(a0 - alphas[channel])
+                )
             }
             Distribution::FromFit { value, transform } => match transform {
                 Transform::Identity => format!("fit covariance, best {}", g(value)),

@@ -9,6 +9,7 @@
 //! from frequencies in `../derived.rs`; both take the same sink.
 
 mod conditions;
+mod evidence;
 mod light;
 mod rates;
 mod species;
@@ -35,6 +36,7 @@ pub fn build(loaded: &Loaded, overrides: &Overrides) -> Result<Network> {
         overrides,
         sink: Sink::new(&loaded.path, &loaded.text),
         at: Places::default(),
+        evidence: Default::default(),
     };
     let net = b.network();
     for key in overrides.unused() {
@@ -62,6 +64,8 @@ struct Builder<'a> {
     sink: Sink<'a>,
     /// Where each built species, thermal step and photo step was written.
     at: Places,
+    /// Origins, spreads and trajectory counts found so far.
+    evidence: super::evidence::Evidence,
 }
 
 /// The names known while resolving.
@@ -161,9 +165,11 @@ impl<'a> Builder<'a> {
             thermal,
             photo,
             transients,
+            evidence: Default::default(),
             graph: Default::default(),
             warnings: Vec::new(),
         };
+        self.evidence(doc, &mut net);
         super::checks::check_network(&mut self.sink, &self.at, &mut net);
         net.graph = super::checks::graph(&net);
         Some(net)

@@ -1,12 +1,13 @@
 //! Transients (`[[transient]]`) and their channels: where each leads, its share (a fraction,
-//! the rest, a rate, quenching by a partner, or a hot channel whose yield is computed in
-//! `../derived.rs`), and the sums of fixed fractions.
+//! the rest, a rate, quenching by a partner, a count of dynamics trajectories, or a hot channel
+//! whose yield is computed in `../derived.rs`), and the sums of fixed fractions.
 
 use super::{Builder, Names};
 use crate::error::Origin;
 use crate::file::schema;
 use crate::network::derived::AbsorbedEnergy;
 use crate::network::diagnostics::{origin, span};
+use crate::network::evidence::{Counts, DEFAULT_PRIOR};
 use crate::network::{Branching, Channel, Target, Transient, TransientKind, equation};
 use crate::units;
 use toml::Spanned;
@@ -39,6 +40,8 @@ impl Builder<'_> {
             let mut channels = Vec::new();
             let mut hot = Vec::new();
             let mut hot_broken = false;
+            // Trajectory counts of the channels that give them, in channel order.
+            let mut runs: Vec<u64> = Vec::new();
             for (j, c) in t.get_ref().channels.iter().enumerate() {
                 let cat = span(c);
                 let cf = format!("{field}.channels[{j}]");
@@ -80,6 +83,22 @@ impl Builder<'_> {
                     ));
                     continue;
                 }
+                if let Some(n) = &e.trajectories {
+                    let Some(n) = self.trajectory_count(&cf, c, n) else {
+                        continue;
+                    };
+                    runs.push(n);
+                    channels.push((
+                        Channel {
+                            target,
+                            // The count share, set once every channel is read.
+                            branching: Branching::Fraction(f64::NAN),
+                            returns: false,
+                        },
+                        cat,
+                    ));
+                    continue;
+                }
                 let ck = format!("transient.{name}.channels[{j}]");
                 let Some(branching) = self.branching(&cf, c, &ck, names, temperature) else {
                     continue;
@@ -95,6 +114,18 @@ impl Builder<'_> {
             }
             // A channel already reported as broken would only add follow-on errors about sums.
             let complete = channels.len() == t.get_ref().channels.len() && !hot_broken;
+            let counted = complete && self.count_shares(&field, t, i, &runs, &mut channels);
+            if !complete && !runs.is_empty() {
+                // A broken count was reported: give the others their share among themselves so
+                // the whole-network checks do not add follow-on errors about the NaN placeholder.
+                let total = runs.iter().sum::<u64>().max(1) as f64;
+                let mut counts = runs.iter();
+                for (c, _) in channels.iter_mut() {
+                    if matches!(c.branching, Branching::Fraction(x) if x.is_nan()) {
+                        c.branching = Branching::Fraction(counts.next().map_or(0.0, |&n| n as f64 / total));
+                    }
+                }
+            }
             let (hot_ok, hot_model) = if complete {
                 self.derived()
                     .hot_yields(&field, t, kind, &hot, &mut channels, &photon[i])
@@ -106,7 +137,7 @@ impl Builder<'_> {
                 .energy
                 .as_ref()
                 .is_some_and(|e| e.get_ref().trim() == "photon");
-            if complete && hot_ok {
+            if complete && hot_ok && counted {
                 self.check_channels(&field, &at, &channels);
             }
             out.push(Transient {
@@ -318,5 +349,143 @@ impl Builder<'_> {
             }
         };
         Some(branching)
+    }
+}
+
+/// How runs that ended nowhere are written and treated (for messages).
+const UNFINISHED_HELP: &str = "unfinished_trajectories = N on the transient counts the runs that reached no channel; they are left out of the shares";
+
+impl Builder<'_> {
+    /// The `trajectories` count of channel `cf`: a whole number ≥ 0, on a channel with no other
+    /// share.
+    fn trajectory_count(&mut self, cf: &str, c: &Spanned<schema::Channel>, n: &Spanned<toml::Value>) -> Option<u64> {
+        let e = c.get_ref();
+        if e.fraction.is_some() || e.rate.is_some() || e.quencher.is_some() || e.hot.is_some() {
+            self.error(
+                cf,
+                &span(c),
+                "has trajectory counts and another share (fraction, rate, quencher or hot)",
+                Some("give one: trajectories = 41 (the share is the count over all runs that reached a channel), or a fraction or rate".into()),
+            );
+            return None;
+        }
+        if let Some(o) = &e.origin {
+            self.error(
+                &format!("{cf}.origin"),
+                &span(o),
+                "a share from trajectory counts has no origin to state",
+                Some("the counts carry their own uncertainty (a Dirichlet over the channels); remove origin".into()),
+            );
+            return None;
+        }
+        self.whole_count(&format!("{cf}.trajectories"), n)
+    }
+
+    /// A whole number of runs ≥ 0.
+    fn whole_count(&mut self, field: &str, n: &Spanned<toml::Value>) -> Option<u64> {
+        match n.get_ref() {
+            toml::Value::Integer(k) if *k >= 0 => Some(*k as u64),
+            other => {
+                self.error(
+                    field,
+                    &span(n),
+                    format!("{other} is not a number of runs"),
+                    Some("a whole number ≥ 0, e.g. trajectories = 41".into()),
+                );
+                None
+            }
+        }
+    }
+
+    /// Set the count shares of transient `t` (index `ti`) when its channels give trajectory
+    /// counts, and record the counts; false after an error. Every channel must give a count.
+    fn count_shares(
+        &mut self,
+        field: &str,
+        t: &Spanned<schema::Transient>,
+        ti: usize,
+        runs: &[u64],
+        channels: &mut [(Channel, Origin)],
+    ) -> bool {
+        let e = t.get_ref();
+        if runs.is_empty() {
+            for (key, v) in [
+                ("unfinished_trajectories", e.unfinished_trajectories.as_ref().map(span)),
+                ("trajectory_prior", e.trajectory_prior.as_ref().map(span)),
+            ] {
+                if let Some(at) = v {
+                    self.error(
+                        &format!("{field}.{key}"),
+                        &at,
+                        "applies only when the channels give trajectory counts",
+                        Some("give every channel trajectories = N, or remove the key".into()),
+                    );
+                    return false;
+                }
+            }
+            return true;
+        }
+        if runs.len() != channels.len() {
+            self.error(
+                &format!("{field}.channels"),
+                &span(t),
+                "mixes trajectory counts with fractions or rates",
+                Some("give every channel trajectories = N (0 for a channel no run took)".into()),
+            );
+            return false;
+        }
+        let unfinished = match &e.unfinished_trajectories {
+            Some(n) => match self.whole_count(&format!("{field}.unfinished_trajectories"), n) {
+                Some(u) => u,
+                None => return false,
+            },
+            None => 0,
+        };
+        let prior = match &e.trajectory_prior {
+            None => DEFAULT_PRIOR,
+            Some(p) => {
+                let v = match p.get_ref() {
+                    toml::Value::Float(x) => *x,
+                    toml::Value::Integer(x) => *x as f64,
+                    _ => f64::NAN,
+                };
+                if !(v > 0.0 && v.is_finite()) {
+                    self.error(
+                        &format!("{field}.trajectory_prior"),
+                        &span(p),
+                        format!("{} is not a positive number", p.get_ref()),
+                        Some(
+                            "the pseudo-count added to every channel: 0.5 (Jeffreys, the default) or 1 (uniform)"
+                                .into(),
+                        ),
+                    );
+                    return false;
+                }
+                v
+            }
+        };
+        let total: u64 = runs.iter().sum();
+        if total == 0 {
+            self.error(
+                &format!("{field}.channels"),
+                &span(t),
+                "no run reached any channel: the counts give no shares",
+                Some(format!(
+                    "count the runs by the channel each left through; {UNFINISHED_HELP}"
+                )),
+            );
+            return false;
+        }
+        for ((c, _), &n) in channels.iter_mut().zip(runs) {
+            c.branching = Branching::Fraction(n as f64 / total as f64);
+        }
+        self.evidence.counts.push(Counts {
+            transient: ti,
+            runs: runs.to_vec(),
+            unfinished,
+            prior,
+            prior_given: e.trajectory_prior.is_some(),
+        });
+        true
     }
 }

@@ -67,6 +67,11 @@ pub(super) fn unused_override(loaded: &Loaded, key: &str) -> Diagnostic {
                 });
             Diagnostic::error(&field, format!("no species called \"{name}\", or no such field")).with_help(hint)
         }
+        ["transient", ..] if counted_channel(loaded, key) => Diagnostic::error(
+            &field,
+            "this channel's share comes from trajectory counts, so it has no fraction to set",
+        )
+        .with_help("change the channels' `trajectories` in the file; `uncertainty` draws the shares from the counts"),
         [section @ ("photo" | "thermal" | "transient"), ..] => {
             let doc = &loaded.doc;
             let text = |t: &Option<Text>| t.as_ref().map(|t| t.get_ref().trim().to_string());
@@ -99,4 +104,19 @@ pub(super) fn unused_override(loaded: &Loaded, key: &str) -> Diagnostic {
         }
         _ => generic(),
     }
+}
+
+/// True when `key` is `transient.NAME.channels[J].FIELD` for a channel given as a trajectory count.
+fn counted_channel(loaded: &Loaded, key: &str) -> bool {
+    let Some((name, tail)) = key.strip_prefix("transient.").and_then(|r| r.rsplit_once(".channels[")) else {
+        return false;
+    };
+    let Some(j) = tail.split_once(']').and_then(|(j, _)| j.parse::<usize>().ok()) else {
+        return false;
+    };
+    loaded.doc.transient.iter().any(|t| {
+        let t = t.get_ref();
+        t.name.as_ref().is_some_and(|n| n.get_ref().trim() == name)
+            && t.channels.get(j).is_some_and(|c| c.get_ref().trajectories.is_some())
+    })
 }
