@@ -284,3 +284,22 @@ fn barrier_windows_no_barrier_can_express_are_refused_not_printed_as_inf() {
     assert!(!text.contains("inf") && !text.contains("NaN"), "{text}");
     assert!(text.contains("1785.4"), "{text}");
 }
+
+#[test]
+fn a_runaway_name_is_refused_without_echoing_it() {
+    let dir = scratch("long-name");
+    let long = "S".repeat(10_000_000);
+    let text = network("{ at = \"320 nm\", value = \"5000 L/(mol cm)\" }")
+        .replace("name = \"B\"", &format!("name = \"{long}\""));
+    std::fs::write(dir.join("net.toml"), text).unwrap();
+    let out = run(&dir, &["simulate", "net.toml", "--until", "1 h", "--out", "o"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(1), "{}", &err[..err.len().min(400)]);
+    assert!(
+        err.contains("10000000 characters long") && err.contains("at most 200"),
+        "{}",
+        &err[..err.len().min(400)]
+    );
+    assert!(err.len() < 10_000, "the message repeats the name: {} bytes", err.len());
+    assert!(!dir.join("o").exists(), "no output folder for an invalid network");
+}

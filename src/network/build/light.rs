@@ -96,6 +96,9 @@ impl Builder<'_> {
             .as_ref()
             .map_or(format!("light{}", i + 1), |n| n.get_ref().trim().to_string());
         let field = format!("light[{i}]");
+        if self.too_long(&format!("{field}.name"), &name, &at) {
+            return None;
+        }
         if name.is_empty() {
             self.error(&format!("{field}.name"), &at, "is empty", None);
             return None;

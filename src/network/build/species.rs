@@ -10,6 +10,9 @@ use crate::network::{Species, Term, TransientKind, equation, formula};
 use crate::units::Quantity;
 use std::collections::BTreeMap;
 
+/// The longest name (species, transient, step, light) a network may use, characters.
+pub const MAX_NAME: usize = 200;
+
 impl Builder<'_> {
     pub(super) fn species(&mut self, doc: &schema::NetworkFile, names: &mut BTreeMap<String, Origin>) -> Vec<Species> {
         let mut out = Vec::new();
@@ -90,6 +93,9 @@ impl Builder<'_> {
             return None;
         };
         let name = n.get_ref().trim().to_string();
+        if self.too_long(&format!("{field}.name"), &name, &span(n)) {
+            return None;
+        }
         let bad = name.is_empty()
             || name.chars().any(|c| c.is_whitespace() || c == '"' || c == ',')
             || name.parse::<f64>().is_ok()
@@ -119,6 +125,23 @@ impl Builder<'_> {
         }
         names.insert(name.clone(), span(n));
         Some(name)
+    }
+
+    /// True (and an error recorded) when `name` is longer than [`MAX_NAME`] characters: every
+    /// output repeats a name on each row, so a runaway one would fill memory and disk.
+    pub(super) fn too_long(&mut self, field: &str, name: &str, at: &Origin) -> bool {
+        let n = name.chars().count();
+        if n <= MAX_NAME {
+            return false;
+        }
+        let head: String = name.chars().take(24).collect();
+        self.error(
+            field,
+            at,
+            format!("\"{head}…\" is {n} characters long; a name may have at most {MAX_NAME}"),
+            None,
+        );
+        true
     }
 
     pub(super) fn transient_heads(

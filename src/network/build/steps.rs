@@ -52,6 +52,9 @@ impl Builder<'_> {
                 .name
                 .as_ref()
                 .map_or(eq.get_ref().trim().to_string(), |n| n.get_ref().clone());
+            if e.name.is_some() && self.too_long(&format!("{field}.name"), &name, &at) {
+                continue;
+            }
             let order_of = |t: &[Term]| t.iter().map(|x| x.coefficient).sum::<f64>();
             let whole = |o: f64| (o.fract() == 0.0 && (1.0..=3.0).contains(&o)).then_some(o as u32);
             let Some(order) = whole(order_of(&left)) else {
@@ -316,6 +319,9 @@ impl Builder<'_> {
             .name
             .as_ref()
             .map_or(format!("{} (hν)", eq.get_ref().trim()), |n| n.get_ref().clone());
+        if e.name.is_some() && self.too_long(&format!("{field}.name"), &name, &at) {
+            return None;
+        }
         let set = self.overrides.get(&format!("photo.{name}.quantum_yield"));
         let qy = match set {
             Some(v) => match self.fraction_given(&format!("{field}.quantum_yield"), v) {
