@@ -88,6 +88,9 @@ pub struct Summary {
     /// Sensitivities, largest effect on the main end's photon cost first; each list is in the
     /// order of `ends`.
     pub sensitivities: Vec<Sensitivity>,
+    /// Cycles before the molecule ends, lifetimes and routes, when asked for (`ledger`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub paths: Option<crate::report::chain_paths::Paths>,
 }
 
 /// Build the summary; `products` says which absorbing states are products, `light` the light
@@ -163,6 +166,7 @@ pub fn summary(
         distribution_truncated: a.distribution.as_ref().is_some_and(|d| d.truncated),
         sensitivity_method: crate::chain::sensitivity::METHOD.to_string(),
         sensitivities: sens,
+        paths: None,
     }
 }
 
