@@ -9,7 +9,9 @@
 //! last form was A" and once for "the last form was another", and the moves into A from the
 //! second copy and from the other forms are the counted moves. On that chain the photon-count
 //! machinery of [`super::analyse`] counts cycles instead of photons: the mean and variance from
-//! the same solves, and P(K = n) from the same recursion.
+//! the same solves, and P(K = n) from the same recursion. Every return to A starts the
+//! molecule afresh, so K is geometric, P(K = n) = rⁿ (1 − r) with r = mean / (1 + mean): the
+//! recursion is an independent check of that.
 //!
 //! No file I/O, no printing.
 

@@ -11,15 +11,18 @@
 //! of a route is the product of these steps times the probability of reaching the end from the
 //! start, so the probabilities of all routes to an end sum to its yield, and a route's
 //! probability never exceeds that of its first states: a best-first search over first states
-//! lists the routes in falling probability, each step one sparse LU of I − Q with the route so
-//! far removed.
+//! lists the routes in falling probability. One sparse LU of I − Q serves every step: the
+//! probabilities of reaching the end while avoiding the route so far come from the unrestricted
+//! ones through the Green's function's columns at the route's states (a small dense solve).
 //!
 //! No file I/O, no printing.
 
 use super::sparse::{Lu, Triplets};
 use super::{Chain, Origin, StateKind};
 use crate::barrier::{Outcome, Verdict};
-use crate::error::Result;
+use crate::error::{Error, Result};
+use nalgebra::{DMatrix, DVector};
+use std::collections::HashMap;
 use crate::network::{Network, TransientKind};
 use serde::Serialize;
 use std::cmp::Ordering;
@@ -103,45 +106,107 @@ impl Ord for Node {
             .total_cmp(&o.p)
             .then(self.done.cmp(&o.done))
             .then(o.moves.len().cmp(&self.moves.len()))
+            .then(o.states.cmp(&self.states))
     }
 }
 
-/// Probability of reaching `end` from each non-absorbing state outside `removed` before
-/// entering `removed` (0 on `removed` and on absorbing states, 1 at `end`).
-fn reach(chain: &Chain, end: usize, removed: &[bool]) -> Result<Vec<f64>> {
-    let n = chain.states.len();
-    let mut local = vec![usize::MAX; n];
-    let mut set = Vec::new();
-    for i in 0..n {
-        if !chain.states[i].absorbing && !removed[i] {
-            local[i] = set.len();
-            set.push(i);
+/// The Green's function G = (I − Q)⁻¹ of the whole chain, column by column as asked for
+/// (one solve on the one LU each), so the probability of reaching an end while avoiding a set S
+/// comes from the unrestricted one: h_S = h − G[:, S] G[S, S]⁻¹ h[S] (the inverse of a principal
+/// block of I − Q as a Schur complement of its inverse).
+struct Green {
+    /// Chain state -> local index among the non-absorbing states (usize::MAX for absorbing).
+    local: Vec<usize>,
+    lu: Lu,
+    columns: HashMap<usize, Vec<f64>>,
+}
+
+impl Green {
+    fn new(chain: &Chain) -> Result<Green> {
+        let n = chain.states.len();
+        let mut local = vec![usize::MAX; n];
+        let mut m = 0;
+        for i in 0..n {
+            if !chain.states[i].absorbing {
+                local[i] = m;
+                m += 1;
+            }
         }
-    }
-    let m = set.len();
-    let mut a = Triplets::new(m, m);
-    for i in 0..m {
-        a.push(i, i, 1.0);
-    }
-    let mut b = vec![0.0; m];
-    for mv in &chain.moves {
-        let i = local[mv.from];
-        if i == usize::MAX || mv.probability == 0.0 {
-            continue;
+        let mut a = Triplets::new(m, m);
+        for i in 0..m {
+            a.push(i, i, 1.0);
         }
-        if mv.to == end {
-            b[i] += mv.probability;
-        } else if local[mv.to] != usize::MAX {
-            a.push(i, local[mv.to], -mv.probability);
+        for mv in &chain.moves {
+            let (i, j) = (local[mv.from], local[mv.to]);
+            if i != usize::MAX && j != usize::MAX && mv.probability != 0.0 {
+                a.push(i, j, -mv.probability);
+            }
         }
+        Ok(Green {
+            local,
+            lu: Lu::new(&a)?,
+            columns: HashMap::new(),
+        })
     }
-    let x = Lu::new(&a)?.solve(&b)?;
-    let mut h = vec![0.0; n];
-    for (k, &i) in set.iter().enumerate() {
-        h[i] = x[k].clamp(0.0, 1.0);
+
+    /// Probability of reaching `end` from each state (0 on absorbing states but `end`).
+    fn reach(&self, chain: &Chain, end: usize) -> Result<Vec<f64>> {
+        let m = self.local.iter().filter(|&&l| l != usize::MAX).count();
+        let mut b = vec![0.0; m];
+        for mv in &chain.moves {
+            let i = self.local[mv.from];
+            if i != usize::MAX && mv.to == end {
+                b[i] += mv.probability;
+            }
+        }
+        let x = self.lu.solve(&b)?;
+        let mut h = vec![0.0; chain.states.len()];
+        for (i, &l) in self.local.iter().enumerate() {
+            if l != usize::MAX {
+                h[i] = x[l].clamp(0.0, 1.0);
+            }
+        }
+        h[end] = 1.0;
+        Ok(h)
     }
-    h[end] = 1.0;
-    Ok(h)
+
+    /// Column `s` of G (chain state `s`, non-absorbing), by local index.
+    fn column(&mut self, s: usize) -> Result<&Vec<f64>> {
+        if !self.columns.contains_key(&s) {
+            let m = self.local.iter().filter(|&&l| l != usize::MAX).count();
+            let mut e = vec![0.0; m];
+            e[self.local[s]] = 1.0;
+            let c = self.lu.solve(&e)?;
+            self.columns.insert(s, c);
+        }
+        Ok(&self.columns[&s])
+    }
+
+    /// h at each of `targets` for a walk killed on entering `removed` (non-absorbing states),
+    /// from h, the unkilled probabilities.
+    fn avoiding(&mut self, h: &[f64], removed: &[usize], targets: &[usize]) -> Result<Vec<f64>> {
+        let k = removed.len();
+        for &s in removed {
+            self.column(s)?;
+        }
+        let g = |this: &Self, row: usize, col: usize| this.columns[&col][this.local[row]];
+        let gss = DMatrix::from_fn(k, k, |a, b| g(self, removed[a], removed[b]));
+        let hs = DVector::from_iterator(k, removed.iter().map(|&s| h[s]));
+        let z = gss
+            .lu()
+            .solve(&hs)
+            .ok_or_else(|| Error::Numerical("a route's block of the Green's function is singular".into()))?;
+        Ok(targets
+            .iter()
+            .map(|&y| {
+                if self.local[y] == usize::MAX {
+                    return h[y];
+                }
+                let c: f64 = (0..k).map(|a| g(self, y, removed[a]) * z[a]).sum();
+                (h[y] - c).clamp(0.0, 1.0)
+            })
+            .collect())
+    }
 }
 
 /// The main routes from `start` (a distribution over the chain's states) to every end in
@@ -162,12 +227,13 @@ pub fn routes(
             out_moves[m.from].push(k);
         }
     }
+    let mut green = Green::new(chain)?;
     let mut all = Vec::new();
     for (&end, &y) in ends.iter().zip(yields) {
         if !(y > 0.0 && y >= opts.min_yield * largest) {
             continue;
         }
-        let h0 = reach(chain, end, &vec![false; n])?;
+        let h0 = green.reach(chain, end)?;
         let mut heap = BinaryHeap::new();
         for (s, &w) in start.iter().enumerate() {
             let p = w / total * if s == end { 1.0 } else { h0[s] };
@@ -209,7 +275,12 @@ pub fn routes(
             let here = *node.states.last().unwrap_or(&0);
             let mut removed = vec![false; n];
             node.states.iter().for_each(|&i| removed[i] = true);
-            let h = reach(chain, end, &removed)?;
+            let targets: Vec<usize> = out_moves[here]
+                .iter()
+                .map(|&k| chain.moves[k].to)
+                .filter(|&y| !removed[y] && !chain.states[y].absorbing)
+                .collect();
+            let hy = green.avoiding(&h0, &node.states, &targets)?;
             let weight = |k: usize| {
                 let m = &chain.moves[k];
                 if m.to == end {
@@ -217,7 +288,7 @@ pub fn routes(
                 } else if removed[m.to] || chain.states[m.to].absorbing {
                     0.0
                 } else {
-                    m.probability * h[m.to]
+                    targets.iter().position(|&y| y == m.to).map_or(0.0, |i| m.probability * hy[i])
                 }
             };
             let sum: f64 = out_moves[here].iter().map(|&k| weight(k)).sum();

@@ -205,7 +205,11 @@ pub fn closed_text(s: &ClosedSummary) -> String {
             }
             let _ = write!(o, "{} photons absorbed per event", display::number(p));
             if let Some(l) = s.switches_by_light {
-                let _ = write!(o, "; {:.1} % begun by a photon, the rest by heat", 100.0 * l);
+                let _ = write!(
+                    o,
+                    "; {} % begun by a photon, the rest by heat",
+                    display::number(100.0 * l)
+                );
             }
             let _ = writeln!(o);
         }
@@ -264,7 +268,7 @@ pub fn lifetimes_text(l: &LifetimeView) -> String {
     let excited: Vec<&str> = l
         .transients
         .iter()
-        .filter(|t| t.3)
+        .filter(|t| t.3 && t.2.is_some())
         .map(|t| t.0.as_str())
         .collect();
     match l.excited_time_per_photon_s {
@@ -313,8 +317,6 @@ pub struct CycleView {
     pub p05: Option<usize>,
     /// 95th percentile.
     pub p95: Option<usize>,
-    /// (end, probability of ending there, mean cycles of those that do).
-    pub ends: Vec<(String, f64, Option<f64>)>,
     /// Probability beyond the last count of the distribution.
     pub tail: f64,
     /// True when the distribution stopped at its count limit.
@@ -333,12 +335,6 @@ impl CycleView {
             median: c.quantile(0.5),
             p05: c.quantile(0.05),
             p95: c.quantile(0.95),
-            ends: c
-                .ends
-                .iter()
-                .filter(|e| e.1 > 0.0)
-                .map(|e| (name(e.0), e.1, e.2))
-                .collect(),
             tail: c.tail,
             truncated: c.truncated,
         }
@@ -450,11 +446,18 @@ fn route_line(r: &RouteView) -> String {
 pub fn paths_text(p: &Paths) -> String {
     let mut o = String::new();
     if let Some(c) = &p.cycles {
+        let shown: Vec<&str> = c.partners.iter().take(3).map(String::as_str).collect();
+        let more = c.partners.len().saturating_sub(shown.len());
         let _ = writeln!(
             o,
-            "\n  switching cycles before the molecule ends (a molecule of {} goes to {} and back)",
+            "\n  switching cycles before the molecule ends (a cycle: a molecule of {} goes to {}{} and comes back)",
             c.form,
-            c.partners.join(" or ")
+            shown.join(" or "),
+            if more > 0 {
+                format!(" (or {more} other species)")
+            } else {
+                String::new()
+            }
         );
         let _ = write!(o, "    mean {}, sd {}", display::number(c.mean), display::number(c.sd));
         if let (Some(m), Some(a), Some(b)) = (c.median, c.p05, c.p95) {
@@ -469,22 +472,21 @@ pub fn paths_text(p: &Paths) -> String {
                 ""
             }
         );
-        for (end, y, m) in &c.ends {
-            let _ = writeln!(
-                o,
-                "    ends as {end}: {}{}",
-                share(*y),
-                m.map_or(String::new(), |m| format!(", after {} cycles on average", display::number(m)))
-            );
-        }
+        let _ = writeln!(
+            o,
+            "    lost with probability {} per cycle: every return starts afresh, so the count is geometric \
+             (cycle_counts.csv)",
+            display::number(1.0 / (1.0 + c.mean))
+        );
     }
     o.push_str(&lifetimes_text(&p.lifetimes));
     for e in &p.routes {
         let _ = writeln!(
             o,
-            "\n  routes to {} (loops erased; ⇒ a photon absorbed): {} listed, {} of its yield {}{}",
+            "\n  routes to {} (loops erased; ⇒ a photon absorbed): {} route{} covering {} of its yield {}{}",
             e.end,
             e.routes.len(),
+            if e.routes.len() == 1 { "" } else { "s" },
             share(e.covered),
             share(e.yield_fraction),
             match e.stopped {
