@@ -180,18 +180,20 @@ pub fn closed_text(s: &ClosedSummary) -> String {
         "  no end: a molecule switches among {} for ever, so the chain gives the state it settles in",
         species.join(", ")
     );
-    let _ = writeln!(o, "\n  {:<22} {:>12} {:>12}", "photostationary", "time share", "moves share");
+    let _ = writeln!(
+        o,
+        "\n  photostationary composition (share of the time one molecule spends in each state)"
+    );
     for f in &s.composition {
         let _ = writeln!(
             o,
-            "  {:<22} {:>12} {:>12}",
+            "    {:<22} {:>12}",
             if f.kind == "transient" {
                 format!("{} (transient)", f.state)
             } else {
                 f.state.clone()
             },
             f.time_share.map_or("—".into(), share),
-            share(f.visit_share)
         );
     }
     if let Some(r) = s.photons_per_second {
@@ -241,6 +243,13 @@ pub fn closed_text(s: &ClosedSummary) -> String {
         }
     }
     let _ = writeln!(o, "  (light: {})", s.light);
+    if s.light.starts_with("stirred cell, light shared at the initial") {
+        let _ = writeln!(
+            o,
+            "  (the light is shared as at the start; where the forms filter the lamps differently, \
+             `--at DURATION` shares it at the composition the kinetics reach)"
+        );
+    }
     o.push_str(&lifetimes_text(&s.lifetimes));
     o
 }
