@@ -483,8 +483,8 @@ pub fn paths_text(p: &Paths) -> String {
         );
         let _ = writeln!(
             o,
-            "    lost with probability {} per cycle: every return starts afresh, so the count is geometric \
-             (cycle_counts.csv)",
+            "    ends before completing the next cycle with probability {}: every return starts afresh, so \
+             the count is geometric (cycle_counts.csv)",
             display::number(1.0 / (1.0 + c.mean))
         );
     }
