@@ -109,9 +109,18 @@ fn pool_routes_cover_the_yield_and_are_judged_against_a_window() {
     let model = Model::compile(&net);
     let run = chain::run(&model, &net, &ChainOptions::default()).expect("chain");
     let an = &run.analysis;
-    let r = routes::routes(&run.chain, &run.start, &an.absorbing, &an.yields, &RouteOptions::default())
-        .expect("routes");
-    let product = r.iter().find(|e| run.chain.states[e.end].name == "product").expect("product");
+    let r = routes::routes(
+        &run.chain,
+        &run.start,
+        &an.absorbing,
+        &an.yields,
+        &RouteOptions::default(),
+    )
+    .expect("routes");
+    let product = r
+        .iter()
+        .find(|e| run.chain.states[e.end].name == "product")
+        .expect("product");
     assert!(product.covered >= 0.99 * product.yield_fraction || product.routes.len() == 10);
     assert!(product.covered <= product.yield_fraction + 1e-12);
     let all = routes::routes(&run.chain, &run.start, &an.absorbing, &an.yields, &every_route()).expect("all");
@@ -176,13 +185,22 @@ fn a_dark_route_runs_on_the_ground_state_only_in_a_long_enough_window() {
     let model = Model::compile(&net);
     let run = chain::run(&model, &net, &ChainOptions::default()).expect("chain");
     let an = &run.analysis;
-    let r = routes::routes(&run.chain, &run.start, &an.absorbing, &an.yields, &RouteOptions::default())
-        .expect("routes");
+    let r = routes::routes(
+        &run.chain,
+        &run.start,
+        &an.absorbing,
+        &an.yields,
+        &RouteOptions::default(),
+    )
+    .expect("routes");
     let end = &r[0];
     assert_eq!(end.routes.len(), 2);
     let judge = |window: f64| -> Vec<&'static str> {
         let v = barrier::network_verdicts(&net, window, 0.5, None).expect("verdicts");
-        end.routes.iter().map(|x| routes::judge(&run.chain, &net, x, &v).verdict).collect()
+        end.routes
+            .iter()
+            .map(|x| routes::judge(&run.chain, &net, x, &v).verdict)
+            .collect()
     };
     // k = (k_B T / h) exp(−ΔG‡/RT) at 22 kcal/mol: 4.7e-4 /s, half-life about 25 min (Eyring,
     // `common practice`): within a day, not within a second

@@ -68,12 +68,16 @@ fn land_of_oz_fixed_vector_and_mean_first_passages() {
     let c = land_of_oz();
     let s = closed::analyse(&c, &[1.0, 0.0, 0.0]).expect("ergodic");
     let w = [0.4, 0.2, 0.4];
-    for i in 0..3 {
-        assert!((s.visits[i] - w[i]).abs() < 1e-13, "w[{i}] = {}", s.visits[i]);
+    for (i, wi) in w.iter().enumerate() {
+        assert!((s.visits[i] - wi).abs() < 1e-13, "w[{i}] = {}", s.visits[i]);
         // holding 1 everywhere: the time shares are the fixed vector too
-        assert!((s.time_share.as_ref().unwrap()[i] - w[i]).abs() < 1e-13);
+        assert!((s.time_share.as_ref().unwrap()[i] - wi).abs() < 1e-13);
     }
-    let m = [[0.0, 4.0, 10.0 / 3.0], [8.0 / 3.0, 0.0, 8.0 / 3.0], [10.0 / 3.0, 4.0, 0.0]];
+    let m = [
+        [0.0, 4.0, 10.0 / 3.0],
+        [8.0 / 3.0, 0.0, 8.0 / 3.0],
+        [10.0 / 3.0, 4.0, 0.0],
+    ];
     assert_eq!(s.passages.len(), 6);
     for p in &s.passages {
         assert!((p.photons - m[p.from][p.to]).abs() < 1e-12, "{p:?}");
@@ -183,7 +187,11 @@ fn cycles_before_loss_of_the_side_product_switch_are_geometric() {
     let c = cycles::cycles(&run.chain, form, partners, &Options::default()).expect("cycles");
     let p: f64 = 0.0005 / 0.1205;
     assert!((c.mean / ((1.0 - p) / p) - 1.0).abs() < 1e-9, "mean {}", c.mean);
-    assert!((c.variance / ((1.0 - p) / (p * p)) - 1.0).abs() < 1e-9, "var {}", c.variance);
+    assert!(
+        (c.variance / ((1.0 - p) / (p * p)) - 1.0).abs() < 1e-9,
+        "var {}",
+        c.variance
+    );
     for n in [0usize, 1, 10, 240, 1000] {
         let want = (1.0 - p).powi(n as i32) * p;
         assert!((c.distribution[n] / want - 1.0).abs() < 1e-9, "P(K = {n})");

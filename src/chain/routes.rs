@@ -21,12 +21,12 @@ use super::sparse::{Lu, Triplets};
 use super::{Chain, Origin, StateKind};
 use crate::barrier::{Outcome, Verdict};
 use crate::error::{Error, Result};
-use nalgebra::{DMatrix, DVector};
-use std::collections::HashMap;
 use crate::network::{Network, TransientKind};
+use nalgebra::{DMatrix, DVector};
 use serde::Serialize;
 use std::cmp::Ordering;
 use std::collections::BinaryHeap;
+use std::collections::HashMap;
 
 /// How far to search.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -123,12 +123,11 @@ struct Green {
 
 impl Green {
     fn new(chain: &Chain) -> Result<Green> {
-        let n = chain.states.len();
-        let mut local = vec![usize::MAX; n];
+        let mut local = vec![usize::MAX; chain.states.len()];
         let mut m = 0;
-        for i in 0..n {
-            if !chain.states[i].absorbing {
-                local[i] = m;
+        for (l, s) in local.iter_mut().zip(&chain.states) {
+            if !s.absorbing {
+                *l = m;
                 m += 1;
             }
         }
@@ -288,7 +287,10 @@ pub fn routes(
                 } else if removed[m.to] || chain.states[m.to].absorbing {
                     0.0
                 } else {
-                    targets.iter().position(|&y| y == m.to).map_or(0.0, |i| m.probability * hy[i])
+                    targets
+                        .iter()
+                        .position(|&y| y == m.to)
+                        .map_or(0.0, |i| m.probability * hy[i])
                 }
             };
             let sum: f64 = out_moves[here].iter().map(|&k| weight(k)).sum();

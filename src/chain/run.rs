@@ -3,8 +3,8 @@
 //! sensitivities. The one sequence `ledger`, `study` and `uncertainty` all run.
 
 use super::build::{self, Settings, Values};
-use super::sensitivity::{self, Sensitivity};
 use super::closed::{self, Stationary};
+use super::sensitivity::{self, Sensitivity};
 use super::{Analysis, Chain, Options};
 use crate::error::{Diagnostic, Error, Result};
 use crate::kinetics;
@@ -139,7 +139,12 @@ pub fn run(model: &Model, net: &Network, opts: &ChainOptions) -> Result<ChainRun
     match follow(model, net, opts)? {
         Followed::Ends(r) => Ok(*r),
         Followed::Closed(c) => {
-            let stuck: Vec<&str> = c.stationary.class.iter().map(|&i| c.chain.states[i].name.as_str()).collect();
+            let stuck: Vec<&str> = c
+                .stationary
+                .class
+                .iter()
+                .map(|&i| c.chain.states[i].name.as_str())
+                .collect();
             Err(no_end(net, &stuck))
         }
     }

@@ -7,9 +7,9 @@ use photoledger::Error;
 use photoledger::chain::build::{Light, Settings};
 use photoledger::chain::routes::RouteOptions;
 use photoledger::chain::{self, ChainOptions, ChainRun, ClosedRun, Followed, Options};
+use photoledger::model::Model;
 use photoledger::network::Network;
 use photoledger::report::chain_paths::{self as paths, Paths};
-use photoledger::model::Model;
 use photoledger::report::{chain as report, write_atomic};
 use std::path::PathBuf;
 

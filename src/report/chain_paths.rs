@@ -220,11 +220,7 @@ pub fn closed_text(s: &ClosedSummary) -> String {
         }
     }
     if !s.first_passage.is_empty() {
-        let _ = writeln!(
-            o,
-            "\n  {:<32} {:>14} {:>14}",
-            "mean first passage", "photons", "time"
-        );
+        let _ = writeln!(o, "\n  {:<32} {:>14} {:>14}", "mean first passage", "photons", "time");
         for p in &s.first_passage {
             let _ = writeln!(
                 o,
@@ -404,7 +400,12 @@ pub struct Paths {
 }
 
 /// Named routes of `chain` (built from `net`), judged against `verdicts` when given.
-pub fn route_views(chain: &Chain, net: &Network, ends: &[EndRoutes], verdicts: Option<&[Verdict]>) -> Vec<EndRouteView> {
+pub fn route_views(
+    chain: &Chain,
+    net: &Network,
+    ends: &[EndRoutes],
+    verdicts: Option<&[Verdict]>,
+) -> Vec<EndRouteView> {
     let name = |i: usize| chain.states[i].name.clone();
     ends.iter()
         .map(|e| EndRouteView {
