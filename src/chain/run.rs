@@ -101,8 +101,7 @@ pub fn follow(model: &Model, net: &Network, opts: &ChainOptions) -> Result<Follo
     let stuck = chain.stuck();
     if !stuck.is_empty() {
         let (start, start_note) = build::start(model, &chain, opts.from.as_deref())?;
-        let every_state_stuck = chain.states.iter().all(|s| !s.absorbing);
-        if every_state_stuck || closed::closed_classes(&chain, &start).is_some() {
+        if closed::closed_classes(&chain, &start).is_some() {
             let stationary = closed::analyse(&chain, &start)?;
             return Ok(Followed::Closed(Box::new(ClosedRun {
                 chain,

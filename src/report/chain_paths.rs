@@ -16,6 +16,9 @@ use crate::units::{display, format_time};
 use serde::Serialize;
 use std::fmt::Write;
 
+/// At most this many states of a closed chain's composition are printed.
+const MAX_ROWS: usize = 12;
+
 /// A share printed with six decimals, or in scientific notation when small but not zero.
 fn share(x: f64) -> String {
     if x > 0.0 && x < 1e-4 {
@@ -184,7 +187,18 @@ pub fn closed_text(s: &ClosedSummary) -> String {
         o,
         "\n  photostationary composition (share of the time one molecule spends in each state)"
     );
-    for f in &s.composition {
+    // the largest shares first when there are many; summary.json keeps every state
+    let mut rows: Vec<&FormShare> = s.composition.iter().collect();
+    let left = rows.len().saturating_sub(MAX_ROWS);
+    if left > 0 {
+        rows.sort_by(|a, b| {
+            b.time_share
+                .unwrap_or(b.visit_share)
+                .total_cmp(&a.time_share.unwrap_or(a.visit_share))
+        });
+        rows.truncate(MAX_ROWS);
+    }
+    for f in rows {
         let _ = writeln!(
             o,
             "    {:<22} {:>12}",
@@ -195,6 +209,9 @@ pub fn closed_text(s: &ClosedSummary) -> String {
             },
             f.time_share.map_or("—".into(), share),
         );
+    }
+    if left > 0 {
+        let _ = writeln!(o, "    ({left} more states with smaller shares: summary.json)");
     }
     if let Some(r) = s.photons_per_second {
         let _ = writeln!(o, "  photons absorbed per molecule: {} per s", display::number(r));
