@@ -182,16 +182,33 @@ rate = { k = "1e-3 /s" }
 "#;
 
 #[test]
-fn ledger_on_a_network_with_no_end_is_invalid_input_that_says_what_to_do() {
+fn ledger_on_a_closed_switch_answers_with_its_photostationary_state() {
     let dir = scratch("noend");
     std::fs::write(dir.join("closed.toml"), NO_END).unwrap();
     let o = run(&dir, &["ledger", "closed.toml"]);
+    assert_eq!(code(&o), 0, "{}", stderr(&o));
+    let out = String::from_utf8_lossy(&o.stdout);
+    assert!(out.contains("one molecule that never ends"), "{out}");
+    assert!(out.contains("mean first passage"), "{out}");
+    assert!(dir.join("closed-ledger/summary.json").exists());
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn ledger_on_a_network_where_only_part_of_the_start_can_end_is_invalid_input_that_says_what_to_do() {
+    let dir = scratch("partend");
+    let text = format!(
+        "{NO_END}\n[[species]]\nname = \"X\"\ninitial = \"1 µM\"\n[[species]]\nname = \"Y\"\n\
+         [[thermal]]\nequation = \"X -> Y\"\nrate = {{ k = \"1 /s\" }}\n"
+    );
+    std::fs::write(dir.join("part.toml"), text).unwrap();
+    let o = run(&dir, &["ledger", "part.toml"]);
     let err = stderr(&o);
     assert_eq!(code(&o), 1, "{err}");
-    assert!(err.starts_with("error: closed.toml: no end state"), "{err}");
+    assert!(err.starts_with("error: part.toml: no end state"), "{err}");
     assert!(err.contains("name a product"), "{err}");
     // The same network simulates: it is valid, only the single-molecule question has no answer.
-    assert_eq!(code(&run(&dir, &["simulate", "closed.toml", "--until", "1 min"])), 0);
+    assert_eq!(code(&run(&dir, &["simulate", "part.toml", "--until", "1 min"])), 0);
     let _ = std::fs::remove_dir_all(&dir);
 }
 

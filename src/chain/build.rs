@@ -17,7 +17,7 @@
 //!   (ε in L mol⁻¹ cm⁻¹, σ in cm², converted to m²) and photon irradiance E_b = q_b N_A / S
 //!   (photons m⁻² s⁻¹) over the irradiated area S.
 
-use super::{Chain, Counted, StateKind};
+use super::{Chain, Counted, Origin, StateKind};
 use crate::error::{Error, Result};
 use crate::model::Model;
 use crate::model::absorption::g;
@@ -514,7 +514,12 @@ pub(super) fn build_parts(
                 Some(s) => s,
                 None => removed_state(&mut chain),
             };
-            let mv = chain.add_move(i, to, e.rate / total, e.photon);
+            let origin = match e.source {
+                Source::Photo(p) => Origin::Photo(p),
+                Source::NoReaction => Origin::NoReaction,
+                Source::Reaction(r) => Origin::Reaction(r),
+            };
+            let mv = chain.add_move_from(i, to, e.rate / total, e.photon, origin);
             if let Some(label) = &e.counted {
                 chain.counted.push(Counted {
                     label: label.clone(),
@@ -539,7 +544,7 @@ pub(super) fn build_parts(
                 Some(s) => s,
                 None => removed_state(&mut chain),
             };
-            let mv = chain.add_move(ns + t, to, p, false);
+            let mv = chain.add_move_from(ns + t, to, p, false, Origin::Channel(t, ci));
             if ch.returns {
                 let mut label = format!("return {} -> {}", tr.name, target_name(net, &ch.target));
                 if let Branching::Quenching { partner, .. } = &ch.branching {

@@ -18,11 +18,15 @@
 
 pub mod agreement;
 pub mod build;
+pub mod closed;
+pub mod cycles;
+pub mod lifetimes;
+pub mod routes;
 mod run;
 pub mod sensitivity;
 mod sparse;
 
-pub use run::{ChainOptions, ChainRun, light_words, run};
+pub use run::{ChainOptions, ChainRun, ClosedRun, Followed, follow, light_words, run};
 
 use crate::error::{Error, Result};
 use serde::Serialize;
@@ -54,6 +58,21 @@ pub struct State {
     pub holding: f64,
 }
 
+/// What in the network a move stands for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+pub enum Origin {
+    /// Photochemical step p (index into the network's photochemical steps).
+    Photo(usize),
+    /// A photon absorbed with no reaction.
+    NoReaction,
+    /// Thermal reaction r of the model (index into `Model::reactions`, the network's thermal steps).
+    Reaction(usize),
+    /// Channel c of transient t.
+    Channel(usize, usize),
+    /// A move of a chain written by hand.
+    Other,
+}
+
 /// One possible move of the molecule.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Move {
@@ -65,6 +84,8 @@ pub struct Move {
     pub probability: f64,
     /// True when the move is the absorption of a photon.
     pub photon: bool,
+    /// What it stands for in the network.
+    pub origin: Origin,
 }
 
 /// A move whose repetitions are counted: a return channel (the molecule comes back to where a
@@ -173,13 +194,43 @@ impl Chain {
 
     /// Add a move; returns its index.
     pub fn add_move(&mut self, from: usize, to: usize, probability: f64, photon: bool) -> usize {
+        self.add_move_from(from, to, probability, photon, Origin::Other)
+    }
+
+    /// Add a move standing for `origin` in the network; returns its index.
+    pub fn add_move_from(&mut self, from: usize, to: usize, probability: f64, photon: bool, origin: Origin) -> usize {
         self.moves.push(Move {
             from,
             to,
             probability,
             photon,
+            origin,
         });
         self.moves.len() - 1
+    }
+
+    /// The states a molecule can reach from the states with positive weight in `start`
+    /// (themselves included), over moves of positive probability out of non-absorbing states.
+    pub fn reachable(&self, start: &[f64]) -> Vec<bool> {
+        let n = self.states.len();
+        let mut out: Vec<Vec<usize>> = vec![Vec::new(); n];
+        for m in &self.moves {
+            if m.probability > 0.0 && m.from < n && m.to < n && !self.states[m.from].absorbing {
+                out[m.from].push(m.to);
+            }
+        }
+        let mut seen = vec![false; n];
+        let mut stack: Vec<usize> = (0..n.min(start.len())).filter(|&i| start[i] > 0.0).collect();
+        stack.iter().for_each(|&i| seen[i] = true);
+        while let Some(i) = stack.pop() {
+            for &j in &out[i] {
+                if !seen[j] {
+                    seen[j] = true;
+                    stack.push(j);
+                }
+            }
+        }
+        seen
     }
 
     /// The states from which no absorbing state can be reached (a molecule there would cycle

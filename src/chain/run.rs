@@ -3,6 +3,7 @@
 //! sensitivities. The one sequence `ledger`, `study` and `uncertainty` all run.
 
 use super::build::{self, Settings, Values};
+use super::closed::{self, Stationary};
 use super::sensitivity::{self, Sensitivity};
 use super::{Analysis, Chain, Options};
 use crate::error::{Diagnostic, Error, Result};
@@ -59,8 +60,36 @@ pub struct ChainRun {
     pub sensitivities: Vec<Sensitivity>,
 }
 
-/// Build and analyse the chain of `net` (compiled as `model`) as `opts` say.
-pub fn run(model: &Model, net: &Network, opts: &ChainOptions) -> Result<ChainRun> {
+/// A molecule that never ends: the closed chain and its stationary analysis.
+#[derive(Debug, Clone)]
+pub struct ClosedRun {
+    /// The chain as built.
+    pub chain: Chain,
+    /// The start distribution over the chain's states.
+    pub start: Vec<f64>,
+    /// Where the molecule starts, in words.
+    pub start_note: String,
+    /// Settings the chain was built with.
+    pub settings: Settings,
+    /// The light the chain assumes, in words.
+    pub light: String,
+    /// The stationary analysis.
+    pub stationary: Stationary,
+}
+
+/// What following one molecule found: a chain that ends, or one that never does.
+#[derive(Debug, Clone)]
+pub enum Followed {
+    /// Every molecule ends: yields, photon costs, sensitivities.
+    Ends(Box<ChainRun>),
+    /// No molecule from the start can end (a closed photoswitch): the stationary analysis.
+    Closed(Box<ClosedRun>),
+}
+
+/// Build and analyse the chain of `net` (compiled as `model`) as `opts` say; a network where a
+/// molecule that can end may also be stuck (or stuck states exist apart from the start's) is
+/// refused as [`run`] refuses it.
+pub fn follow(model: &Model, net: &Network, opts: &ChainOptions) -> Result<Followed> {
     let mut settings = opts.settings.clone();
     if let (Some(t), None) = (opts.at, &settings.concentrations) {
         let tr = kinetics::simulate(model, &kinetics::Options::until(t), &mut |_| {})?;
@@ -71,6 +100,18 @@ pub fn run(model: &Model, net: &Network, opts: &ChainOptions) -> Result<ChainRun
     let chain = build::build(model, net, &settings, &values)?;
     let stuck = chain.stuck();
     if !stuck.is_empty() {
+        let (start, start_note) = build::start(model, &chain, opts.from.as_deref())?;
+        if closed::closed_classes(&chain, &start).is_some() {
+            let stationary = closed::analyse(&chain, &start)?;
+            return Ok(Followed::Closed(Box::new(ClosedRun {
+                chain,
+                start,
+                start_note,
+                settings,
+                light,
+                stationary,
+            })));
+        }
         return Err(no_end(net, &stuck));
     }
     let (start, start_note) = build::start(model, &chain, opts.from.as_deref())?;
@@ -80,7 +121,7 @@ pub fn run(model: &Model, net: &Network, opts: &ChainOptions) -> Result<ChainRun
     } else {
         Vec::new()
     };
-    Ok(ChainRun {
+    Ok(Followed::Ends(Box::new(ChainRun {
         chain,
         start,
         start_note,
@@ -88,7 +129,24 @@ pub fn run(model: &Model, net: &Network, opts: &ChainOptions) -> Result<ChainRun
         light,
         analysis,
         sensitivities,
-    })
+    })))
+}
+
+/// Build and analyse the chain of `net` (compiled as `model`) as `opts` say, for a network where
+/// every molecule ends; one that never ends is refused (use [`follow`]).
+pub fn run(model: &Model, net: &Network, opts: &ChainOptions) -> Result<ChainRun> {
+    match follow(model, net, opts)? {
+        Followed::Ends(r) => Ok(*r),
+        Followed::Closed(c) => {
+            let stuck: Vec<&str> = c
+                .stationary
+                .class
+                .iter()
+                .map(|&i| c.chain.states[i].name.as_str())
+                .collect();
+            Err(no_end(net, &stuck))
+        }
+    }
 }
 
 /// The network cannot answer "where does one molecule end?": from the `stuck` states no molecule
@@ -104,7 +162,8 @@ fn no_end(net: &Network, stuck: &[&str]) -> Error {
     )
     .with_help(
         "name a product (`product = true` on a [[species]]) or give one of them a way out; \
-         `simulate` follows the whole mixture, which needs no end",
+         `simulate` follows the whole mixture, which needs no end; `ledger` answers a network where \
+         no molecule ever ends (a closed photoswitch) with its photostationary state",
     );
     if let Some(f) = &net.source {
         d = d.in_file(f);

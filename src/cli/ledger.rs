@@ -5,8 +5,11 @@ use super::output::{noteln, out, outln};
 use super::{NetworkArgs, load, print_warnings};
 use photoledger::Error;
 use photoledger::chain::build::{Light, Settings};
-use photoledger::chain::{self, ChainOptions, Options};
+use photoledger::chain::routes::RouteOptions;
+use photoledger::chain::{self, ChainOptions, ChainRun, ClosedRun, Followed, Options};
 use photoledger::model::Model;
+use photoledger::network::Network;
+use photoledger::report::chain_paths::{self as paths, Paths};
 use photoledger::report::{chain as report, write_atomic};
 use std::path::PathBuf;
 
@@ -32,9 +35,13 @@ pub struct LedgerArgs {
     /// from a kinetics run of this length instead of the initial ones, e.g. "2 h".
     #[arg(long, value_name = "DURATION")]
     pub at: Option<String>,
-    /// Stop the photon-count distribution at this many photons.
+    /// Stop the photon-count distribution (and the count of switching cycles) at this many.
     #[arg(long, default_value_t = 200_000)]
     pub max_photons: usize,
+    /// Judge the thermal steps of each route for a 50 % chance of crossing within this window,
+    /// e.g. "1 h" (as `barrier` does).
+    #[arg(long, value_name = "DURATION")]
+    pub window: Option<String>,
 }
 
 /// Run `ledger`.
@@ -51,17 +58,8 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
             )));
         }
     };
-    let at = match &a.at {
-        None => None,
-        Some(d) => Some(
-            photoledger::units::parse(d, photoledger::units::Quantity::Time).map_err(|e| {
-                Error::Usage(format!(
-                    "--at: {e}; expected {}",
-                    photoledger::units::Quantity::Time.accepted()
-                ))
-            })?,
-        ),
-    };
+    let at = duration("--at", a.at.as_deref())?;
+    let window = duration("--window", a.window.as_deref())?;
     let opts = ChainOptions {
         settings: Settings {
             light,
@@ -75,13 +73,17 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
         },
         sensitivities: true,
     };
-    let run = chain::run(&model, &net, &opts)?;
+    let followed = chain::follow(&model, &net, &opts)?;
     if let Some(t) = at {
         noteln!(
             "note: concentrations taken from the kinetics at {}",
             photoledger::units::format_time(t)
         );
     }
+    let run = match followed {
+        Followed::Ends(r) => *r,
+        Followed::Closed(c) => return closed(a, &net, &c),
+    };
     let (ch, an) = (&run.chain, &run.analysis);
     let summary = report::summary(
         &net.about.name,
@@ -95,16 +97,11 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
     .with_check(chain::agreement::check(&model, &net, &run, a.from.as_deref())?);
     let mut summary = summary;
     summary.count_intervals = photoledger::uncertainty::counts::intervals(&net, &opts)?;
+    let from = a.from.as_deref().and_then(|f| model.species_index(f));
+    let (paths, cycles) = ends_paths(&net, &run, from, window, a.max_photons)?;
+    summary.paths = Some(paths);
     let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
-    let dir = a.out.clone().unwrap_or_else(|| {
-        let stem = a
-            .net
-            .file
-            .file_stem()
-            .map(|s| s.to_string_lossy().to_string())
-            .unwrap_or_else(|| "network".into());
-        PathBuf::from(format!("{stem}-ledger"))
-    });
+    let dir = out_dir(a);
     write_atomic(&dir.join("summary.json"), json.as_bytes())?;
     write_atomic(
         &dir.join("photon_counts.csv"),
@@ -114,6 +111,9 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
         &dir.join("photon_counts.svg"),
         report::histogram_svg(&format!("{}: photons per molecule", net.about.name), an).as_bytes(),
     )?;
+    if let Some(c) = &cycles {
+        write_atomic(&dir.join("cycle_counts.csv"), paths::cycles_csv(c).as_bytes())?;
+    }
     if a.json {
         outln!("{json}")?;
     } else {
@@ -121,10 +121,101 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
         if let Some(c) = &summary.count_intervals {
             out!("{}", photoledger::report::evidence::count_intervals(c))?;
         }
+        if let Some(p) = &summary.paths {
+            out!("{}", paths::paths_text(p))?;
+        }
         outln!(
-            "wrote {}/ (summary.json, photon_counts.csv, photon_counts.svg)",
-            dir.display()
+            "wrote {}/ (summary.json, photon_counts.csv, photon_counts.svg{})",
+            dir.display(),
+            if cycles.is_some() { ", cycle_counts.csv" } else { "" }
         )?;
+    }
+    Ok(())
+}
+
+/// A duration option, parsed.
+fn duration(flag: &str, text: Option<&str>) -> photoledger::Result<Option<f64>> {
+    let q = photoledger::units::Quantity::Time;
+    text.map(|d| {
+        photoledger::units::parse(d, q).map_err(|e| Error::Usage(format!("{flag}: {e}; expected {}", q.accepted())))
+    })
+    .transpose()
+}
+
+/// The output folder: `--out`, or the network file's name followed by "-ledger".
+fn out_dir(a: &LedgerArgs) -> PathBuf {
+    a.out.clone().unwrap_or_else(|| {
+        let stem = a
+            .net
+            .file
+            .file_stem()
+            .map(|s| s.to_string_lossy().to_string())
+            .unwrap_or_else(|| "network".into());
+        PathBuf::from(format!("{stem}-ledger"))
+    })
+}
+
+/// Cycles before the molecule ends, lifetimes and routes of a chain that ends (routes judged
+/// against `window` when given); the cycles themselves for their CSV.
+fn ends_paths(
+    net: &Network,
+    run: &ChainRun,
+    from: Option<usize>,
+    window: Option<f64>,
+    max_count: usize,
+) -> photoledger::Result<(Paths, Option<chain::cycles::Cycles>)> {
+    let (ch, an) = (&run.chain, &run.analysis);
+    let lifetimes = chain::lifetimes::lifetimes(ch, net, &an.visits);
+    let cycles = match chain::cycles::form(ch, &an.visits, from) {
+        Some((f, partners)) => Some(chain::cycles::cycles(
+            ch,
+            f,
+            partners,
+            &Options {
+                max_photons: max_count,
+                ..Options::default()
+            },
+        )?),
+        None => None,
+    };
+    let ends = chain::routes::routes(ch, &run.start, &an.absorbing, &an.yields, &RouteOptions::default())?;
+    let verdicts = match window {
+        Some(w) => Some(photoledger::barrier::network_verdicts(
+            net,
+            w,
+            photoledger::study::BARRIER_PROBABILITY,
+            None,
+        )?),
+        None => None,
+    };
+    let paths = Paths {
+        lifetimes: paths::LifetimeView::of(&lifetimes),
+        cycles: cycles.as_ref().map(|c| paths::CycleView::of(ch, c)),
+        routes: paths::route_views(ch, net, &ends, verdicts.as_deref()),
+        window_s: window,
+    };
+    Ok((paths, cycles))
+}
+
+/// `ledger` on a network where no molecule ends: the photostationary state.
+fn closed(a: &LedgerArgs, net: &Network, c: &ClosedRun) -> photoledger::Result<()> {
+    let lifetimes = chain::lifetimes::lifetimes(&c.chain, net, &c.stationary.visits);
+    let summary = paths::closed_summary(
+        &net.about.name,
+        &c.chain,
+        &c.stationary,
+        &c.start_note,
+        &c.light,
+        &lifetimes,
+    );
+    let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
+    let dir = out_dir(a);
+    write_atomic(&dir.join("summary.json"), json.as_bytes())?;
+    if a.json {
+        outln!("{json}")?;
+    } else {
+        out!("{}", paths::closed_text(&summary))?;
+        outln!("wrote {}/ (summary.json)", dir.display())?;
     }
     Ok(())
 }

@@ -122,7 +122,7 @@ impl Exit {
         ),
         (
             Exit::Invalid,
-            "invalid input: a network or data file fails its checks (every problem listed with file, line, column, field, what was found and what is accepted), or the network cannot answer the question (`ledger` on a network where no molecule can end)",
+            "invalid input: a network or data file fails its checks (every problem listed with file, line, column, field, what was found and what is accepted), or the network cannot answer the question (`ledger` on a network where some molecules of the start can end and others can never)",
         ),
         (
             Exit::Usage,

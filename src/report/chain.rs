@@ -91,6 +91,9 @@ pub struct Summary {
     /// Intervals from trajectory counts alone (`uncertainty::counts`), when the network has any.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub count_intervals: Option<crate::uncertainty::counts::CountIntervals>,
+    /// Cycles before the molecule ends, lifetimes and routes, when asked for (`ledger`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub paths: Option<crate::report::chain_paths::Paths>,
 }
 
 /// Build the summary; `products` says which absorbing states are products, `light` the light
@@ -167,6 +170,7 @@ pub fn summary(
         sensitivity_method: crate::chain::sensitivity::METHOD.to_string(),
         sensitivities: sens,
         count_intervals: None,
+        paths: None,
     }
 }
 

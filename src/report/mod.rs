@@ -3,6 +3,7 @@
 
 pub mod barrier;
 pub mod chain;
+pub mod chain_paths;
 pub mod csv_out;
 pub mod diagram;
 pub mod evidence;
