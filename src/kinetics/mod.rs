@@ -7,6 +7,7 @@
 //! of the Jacobian at the start, times the time span) and picks one, saying why.
 //! No file I/O, no printing: results come back as a [`Trajectory`].
 
+mod equations;
 pub mod ledger;
 pub mod sensitivity;
 mod solve_bdf;
@@ -158,8 +159,10 @@ pub struct Counts {
     pub rhs: usize,
     /// Jacobian-vector products (BDF).
     pub jacobian_products: usize,
-    /// Jacobian (LU) set-ups (BDF).
+    /// Iteration-matrix (LU) factorisations (BDF).
     pub jacobian_setups: usize,
+    /// Analytic Jacobian evaluations (BDF).
+    pub jacobians: usize,
     /// Rejected steps.
     pub rejected: usize,
 }
