@@ -84,6 +84,7 @@ struct Row {
     rhs: usize,
     jv: usize,
     setups: usize,
+    jacobians: usize,
     seconds: f64,
 }
 
@@ -104,6 +105,7 @@ fn time(name: &str, model: &Model, until: f64, sparse: Option<bool>) -> photoled
         rhs: tr.counts.rhs,
         jv: tr.counts.jacobian_products,
         setups: tr.counts.jacobian_setups,
+        jacobians: tr.counts.jacobians,
         seconds,
     })
 }
@@ -151,7 +153,7 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
         rows.push(time(&name, &model, until, Some(false))?);
     }
     outln!(
-        "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>10}",
+        "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>10}",
         "network",
         "species",
         "reactions",
@@ -160,12 +162,13 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
         "steps",
         "RHS",
         "J·v",
+        "J",
         "LU",
         "wall (s)"
     )?;
     for r in rows {
         outln!(
-            "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>10.3}",
+            "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>10.3}",
             r.name,
             r.species,
             r.reactions,
@@ -174,6 +177,7 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
             r.steps,
             r.rhs,
             r.jv,
+            r.jacobians,
             r.setups,
             r.seconds
         )?;

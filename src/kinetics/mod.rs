@@ -12,6 +12,7 @@ pub mod ledger;
 pub mod sensitivity;
 mod solve_bdf;
 mod solve_dop;
+pub mod sparse_lu;
 
 use crate::error::{Error, Result};
 use crate::model::Model;
@@ -440,6 +441,7 @@ pub fn simulate_from(
         all.sparse |= run.sparse;
         all.counts.steps += run.counts.steps;
         all.counts.jacobian_setups += run.counts.jacobian_setups;
+        all.counts.jacobians += run.counts.jacobians;
         all.counts.rejected += run.counts.rejected;
         for (t, st) in run.times.iter().zip(run.states).skip(1) {
             all.times.push(ta + t);

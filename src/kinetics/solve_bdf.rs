@@ -1,13 +1,12 @@
 //! The stiff path: diffsol's BDF with the model's analytic Jacobian ([`Equations`]).
 
 use super::equations::Equations;
+use super::sparse_lu::SparseLu;
 use super::{Counts, Options, Run, Stop};
 use crate::error::{Error, Result};
 use crate::model::jacobian::Jacobian;
 use crate::model::rhs::Rhs;
-use diffsol::{
-    FaerSparseLU, FaerSparseMat, NalgebraLU, NalgebraMat, OdeBuilder, OdeSolverMethod, OdeSolverStopReason, Vector,
-};
+use diffsol::{FaerSparseMat, NalgebraLU, NalgebraMat, OdeBuilder, OdeSolverMethod, OdeSolverStopReason, Vector};
 
 pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress: &mut dyn FnMut(f64)) -> Result<Run> {
     let n = y0.len();
@@ -90,7 +89,7 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
         }};
     }
     if sparse {
-        go!(FaerSparseMat<f64>, FaerSparseLU<f64>)
+        go!(FaerSparseMat<f64>, SparseLu)
     } else {
         go!(NalgebraMat<f64>, NalgebraLU<f64>)
     }
