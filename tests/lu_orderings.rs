@@ -58,12 +58,9 @@ fn compare_orderings_on_the_generated_network() {
     {
         let ns = model.n_species();
         let mut trip = Vec::new();
-        for c in 0..ns {
-            for k in jac.col_ptr()[c]..jac.col_ptr()[c + 1] {
-                let r = jac.row_idx()[k];
-                if r < ns {
-                    trip.push(faer::sparse::Triplet::new(r, c, values[k]));
-                }
+        for (k, (r, c)) in jac.entries().into_iter().enumerate() {
+            if r < ns && c < ns {
+                trip.push(faer::sparse::Triplet::new(r, c, values[k]));
             }
         }
         let sub = faer::sparse::SparseColMat::<usize, f64>::try_new_from_triplets(ns, ns, &trip).unwrap();

@@ -1,8 +1,8 @@
 //! Kinetics under irradiation: integrate the compiled model's concentrations and photon
 //! ledger from t = 0 to an end time or an event.
 //!
-//! Two integrators: diffsol's BDF (stiff; Newton with the model's exact Jacobian, assembled
-//! by diffsol from Jacobian-vector products) and ode_solvers' Dop853 (explicit, for non-stiff
+//! Two integrators: diffsol's BDF (stiff; Newton with the model's analytic Jacobian,
+//! [`crate::model::jacobian`]) and ode_solvers' Dop853 (explicit, for non-stiff
 //! systems and as a cross-check). [`Method::Auto`] estimates the stiffness (the spectral radius
 //! of the Jacobian at the start, times the time span) and picks one, saying why.
 //! No file I/O, no printing: results come back as a [`Trajectory`].
@@ -55,7 +55,7 @@ pub struct Options {
     pub log_time: bool,
     /// Optional stop condition.
     pub event: Option<Event>,
-    /// BDF linear algebra: Some(true) sparse (faer sparse LU on a coloured Jacobian),
+    /// BDF linear algebra: Some(true) sparse (faer sparse LU of the analytic Jacobian's pattern),
     /// Some(false) dense (nalgebra LU), None: sparse above 150 state variables.
     pub sparse: Option<bool>,
     /// Optional light schedule (e.g. sun-hours a day): the integration is split at every
