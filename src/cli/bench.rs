@@ -83,6 +83,7 @@ struct Row {
     rhs: usize,
     jv: usize,
     setups: usize,
+    jacobians: usize,
     seconds: f64,
 }
 
@@ -103,6 +104,7 @@ fn time(name: &str, model: &Model, until: f64, sparse: Option<bool>) -> photoled
         rhs: tr.counts.rhs,
         jv: tr.counts.jacobian_products,
         setups: tr.counts.jacobian_setups,
+        jacobians: tr.counts.jacobians,
         seconds,
     })
 }
@@ -149,7 +151,7 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
         rows.push(time(&name, &model, until, Some(false))?);
     }
     outln!(
-        "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>10}",
+        "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>10}",
         "network",
         "species",
         "reactions",
@@ -158,12 +160,13 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
         "steps",
         "RHS",
         "J·v",
+        "J",
         "LU",
         "wall (s)"
     )?;
     for r in rows {
         outln!(
-            "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>10.3}",
+            "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>10.3}",
             r.name,
             r.species,
             r.reactions,
@@ -172,6 +175,7 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
             r.steps,
             r.rhs,
             r.jv,
+            r.jacobians,
             r.setups,
             r.seconds
         )?;

@@ -1,16 +1,18 @@
 //! Kinetics under irradiation: integrate the compiled model's concentrations and photon
 //! ledger from t = 0 to an end time or an event.
 //!
-//! Two integrators: diffsol's BDF (stiff; Newton with the model's exact Jacobian, assembled
-//! by diffsol from Jacobian-vector products) and ode_solvers' Dop853 (explicit, for non-stiff
+//! Two integrators: diffsol's BDF (stiff; Newton with the model's analytic Jacobian,
+//! [`crate::model::jacobian`]) and ode_solvers' Dop853 (explicit, for non-stiff
 //! systems and as a cross-check). [`Method::Auto`] estimates the stiffness (the spectral radius
 //! of the Jacobian at the start, times the time span) and picks one, saying why.
 //! No file I/O, no printing: results come back as a [`Trajectory`].
 
+mod equations;
 pub mod ledger;
 pub mod sensitivity;
 mod solve_bdf;
 mod solve_dop;
+pub mod sparse_lu;
 
 use crate::error::{Error, Result};
 use crate::model::Model;
@@ -53,7 +55,7 @@ pub struct Options {
     pub log_time: bool,
     /// Optional stop condition.
     pub event: Option<Event>,
-    /// BDF linear algebra: Some(true) sparse (faer sparse LU on a coloured Jacobian),
+    /// BDF linear algebra: Some(true) sparse (faer sparse LU of the analytic Jacobian's pattern),
     /// Some(false) dense (nalgebra LU), None: sparse above 150 state variables.
     pub sparse: Option<bool>,
     /// Optional light schedule (e.g. sun-hours a day): the integration is split at every
@@ -158,8 +160,10 @@ pub struct Counts {
     pub rhs: usize,
     /// Jacobian-vector products (BDF).
     pub jacobian_products: usize,
-    /// Jacobian (LU) set-ups (BDF).
+    /// Iteration-matrix (LU) factorisations (BDF).
     pub jacobian_setups: usize,
+    /// Analytic Jacobian evaluations (BDF).
+    pub jacobians: usize,
     /// Rejected steps.
     pub rejected: usize,
 }
@@ -437,6 +441,7 @@ pub fn simulate_from(
         all.sparse |= run.sparse;
         all.counts.steps += run.counts.steps;
         all.counts.jacobian_setups += run.counts.jacobian_setups;
+        all.counts.jacobians += run.counts.jacobians;
         all.counts.rejected += run.counts.rejected;
         for (t, st) in run.times.iter().zip(run.states).skip(1) {
             all.times.push(ta + t);

@@ -1,29 +1,17 @@
-//! The stiff path: diffsol's BDF with the model's exact Jacobian-vector product.
+//! The stiff path: diffsol's BDF with the model's analytic Jacobian ([`Equations`]).
 
+use super::equations::Equations;
+use super::sparse_lu::SparseLu;
 use super::{Counts, Options, Run, Stop};
 use crate::error::{Error, Result};
+use crate::model::jacobian::Jacobian;
 use crate::model::rhs::Rhs;
-use diffsol::{
-    FaerSparseLU, FaerSparseMat, NalgebraLU, NalgebraMat, OdeBuilder, OdeSolverMethod, OdeSolverStopReason, Vector,
-};
+use diffsol::{FaerSparseMat, NalgebraLU, NalgebraMat, OdeBuilder, OdeSolverMethod, OdeSolverStopReason, Vector};
 
 pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress: &mut dyn FnMut(f64)) -> Result<Run> {
     let n = y0.len();
     let fail = |e: diffsol::error::DiffsolError| Error::Numerical(format!("the BDF integrator stopped: {e}"));
-    let y0v = y0.to_vec();
-    let y0v = &y0v;
-    macro_rules! builder {
-        ($m:ty) => {
-            OdeBuilder::<$m>::new()
-                .rtol(opts.rtol)
-                .atol(vec![opts.atol; n])
-                .rhs_implicit(
-                    |x: &[f64], _p: &[f64], _t: f64, y: &mut [f64]| rhs.eval(x, y),
-                    |x: &[f64], _p: &[f64], _t: f64, v: &[f64], y: &mut [f64]| rhs.jac_vec(x, v, y),
-                )
-                .init(|_p: &[f64], _t: f64, y: &mut [f64]| y.copy_from_slice(y0v), n)
-        };
-    }
+    let jac = Jacobian::new(rhs.model);
     let event = opts.event;
     let sparse = opts.sparse.unwrap_or(n > 150);
     let mut out = Run {
@@ -73,8 +61,13 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
         }
     };
     macro_rules! go {
-        ($problem:expr, $ls:ty) => {{
-            let problem = $problem.build().map_err(fail)?;
+        ($m:ty, $ls:ty) => {{
+            let eqn = Equations::<$m>::new(rhs, &jac, y0, event);
+            let problem = OdeBuilder::<$m>::new()
+                .rtol(opts.rtol)
+                .atol(vec![opts.atol; n])
+                .build_from_eqn(eqn)
+                .map_err(fail)?;
             let mut solver = problem.bdf::<$ls>().map_err(fail)?;
             solver.set_stop_time(opts.until).map_err(fail)?;
             let cell = std::cell::RefCell::new(solver);
@@ -95,29 +88,11 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
             out.counts.rejected = st.number_of_error_test_failures;
         }};
     }
-    match (event, sparse) {
-        (Some(ev), false) => {
-            let (i, level) = (ev.species, ev.level);
-            go!(
-                builder!(NalgebraMat<f64>).root(
-                    move |x: &[f64], _p: &[f64], _t: f64, y: &mut [f64]| y[0] = x[i] - level,
-                    1
-                ),
-                NalgebraLU<f64>
-            )
-        }
-        (Some(ev), true) => {
-            let (i, level) = (ev.species, ev.level);
-            go!(
-                builder!(FaerSparseMat<f64>).root(
-                    move |x: &[f64], _p: &[f64], _t: f64, y: &mut [f64]| y[0] = x[i] - level,
-                    1
-                ),
-                FaerSparseLU<f64>
-            )
-        }
-        (None, false) => go!(builder!(NalgebraMat<f64>), NalgebraLU<f64>),
-        (None, true) => go!(builder!(FaerSparseMat<f64>), FaerSparseLU<f64>),
+    if sparse {
+        go!(FaerSparseMat<f64>, SparseLu)
+    } else {
+        go!(NalgebraMat<f64>, NalgebraLU<f64>)
     }
+    out.counts.jacobians = jac.evaluations.get();
     Ok(out)
 }

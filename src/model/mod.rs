@@ -12,6 +12,7 @@
 //! which is recomputed as quencher concentrations change.
 
 pub mod absorption;
+pub mod jacobian;
 pub mod lineage;
 pub mod rhs;
 pub mod transients;

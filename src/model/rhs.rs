@@ -61,13 +61,13 @@ impl LedgerLayout {
     }
 }
 
-struct Work {
+pub(super) struct Work {
     a: Vec<f64>,
-    g: Vec<f64>,
-    dg: Vec<f64>,
+    pub(super) g: Vec<f64>,
+    pub(super) dg: Vec<f64>,
     da: Vec<f64>,
     /// 10^(−A) per bin.
-    t: Vec<f64>,
+    pub(super) t: Vec<f64>,
 }
 
 /// The right-hand side of one model, with counters of its use.
@@ -76,14 +76,14 @@ pub struct Rhs<'m> {
     pub model: &'m Model,
     /// The state layout.
     pub layout: LedgerLayout,
-    work: RefCell<Work>,
+    pub(super) work: RefCell<Work>,
     /// The collapse last solved, with the quencher concentrations it was solved at.
-    cache: RefCell<CollapseWork>,
+    pub(super) cache: RefCell<CollapseWork>,
     /// Per outcome and bin, q_b l ε_ab Y_ob (einstein/s per mol/L of the absorber per unit
     /// g): the constant part of each outcome's rate, made once.
-    outcome_weights: Vec<f64>,
+    pub(super) outcome_weights: Vec<f64>,
     /// Per absorber slot and bin, q_b l ε_ab: the constant part of each absorber's share.
-    slot_weights: Vec<f64>,
+    pub(super) slot_weights: Vec<f64>,
     /// Number of right-hand-side evaluations.
     pub rhs_calls: Cell<usize>,
     /// Number of Jacobian-vector products.
@@ -138,7 +138,7 @@ impl<'m> Rhs<'m> {
     }
 
     /// Absorbance, g, 10^(−A) and (when `slope`) dg/dA of every bin at concentrations `c`.
-    fn absorbance(&self, c: &[f64], w: &mut Work, slope: bool) {
+    pub(super) fn absorbance(&self, c: &[f64], w: &mut Work, slope: bool) {
         let m = self.model;
         let nb = m.bins.len();
         for b in 0..nb {
@@ -156,7 +156,7 @@ impl<'m> Rhs<'m> {
 
     /// Refresh the transient collapse if the quencher concentrations changed; None when the
     /// network has no transients.
-    fn collapse<'w>(&self, c: &[f64], cache: &'w mut CollapseWork) -> Option<&'w CollapseWork> {
+    pub(super) fn collapse<'w>(&self, c: &[f64], cache: &'w mut CollapseWork) -> Option<&'w CollapseWork> {
         let col = &self.model.collapse;
         if col.n == 0 {
             return None;

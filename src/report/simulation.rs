@@ -123,8 +123,10 @@ pub struct MethodSummary {
     pub rhs_evaluations: usize,
     /// Jacobian-vector products.
     pub jacobian_products: usize,
-    /// Jacobian (LU) set-ups.
+    /// Iteration-matrix (LU) factorisations.
     pub jacobian_setups: usize,
+    /// Analytic Jacobian evaluations.
+    pub jacobian_evaluations: usize,
     /// Relative and absolute tolerances.
     pub rtol: f64,
     /// Absolute tolerance, mol/L.
@@ -155,6 +157,7 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
             rhs_evaluations: tr.counts.rhs,
             jacobian_products: tr.counts.jacobian_products,
             jacobian_setups: tr.counts.jacobian_setups,
+            jacobian_evaluations: tr.counts.jacobians,
             rtol,
             atol,
         },

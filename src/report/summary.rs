@@ -411,8 +411,15 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
     let m = &s.method;
     let _ = writeln!(
         o,
-        "\nintegrator  {} — {}; {} steps ({} rejected), {} RHS evaluations, {} Jacobian products, {} Jacobian set-ups",
-        m.name, m.reason, m.steps, m.rejected_steps, m.rhs_evaluations, m.jacobian_products, m.jacobian_setups
+        "\nintegrator  {} — {}; {} steps ({} rejected), {} RHS evaluations, {} Jacobian evaluations, {} LU factorisations, {} Jacobian-vector products",
+        m.name,
+        m.reason,
+        m.steps,
+        m.rejected_steps,
+        m.rhs_evaluations,
+        m.jacobian_evaluations,
+        m.jacobian_setups,
+        m.jacobian_products
     );
     let _ = writeln!(o, "assumes     {}", s.assumptions);
     let _ = writeln!(o, "caution     {}", s.cautions);

@@ -1,0 +1,253 @@
+//! Sparse LU of the BDF iteration matrix I − γJ (faer), with the fill-reducing ordering chosen
+//! once per sparsity pattern and the factorisation and solve scratch made once.
+//!
+//! faer offers, for a square unsymmetric matrix, COLAMD on the columns (its `factorize_symbolic_lu`,
+//! with a simplicial or a supernodal numeric factorisation, chosen by a flop-per-entry estimate or
+//! forced) and, through its simplicial factorisation with a given column order, any ordering we
+//! compute, such as AMD on the pattern of A + Aᵀ (`amd::order`). [`ORDERING`] is the one kept:
+//! measured on the generated 1,000-species network by the ignored test
+//! `tests/lu_orderings.rs` (numbers in DEVELOPERS.md). A factorisation that fails (a singular
+//! matrix) is reported by the next solve as an error, so the integrator shortens its step
+//! instead of the program stopping.
+
+use diffsol::{FaerSparseMat, FaerVec, Matrix, Vector};
+use diffsol_la::{LaError, LinearOp, LinearSolver, MatrixCommon};
+use faer::dyn_stack::{MemBuffer, MemStack};
+use faer::perm::PermRef;
+use faer::sparse::linalg::lu::{LuRef, LuSymbolicParams, NumericLu, SymbolicLu, factorize_symbolic_lu, simplicial};
+use faer::sparse::linalg::{SupernodalThreshold, amd, colamd};
+use faer::sparse::{SparseColMatRef, SymbolicSparseColMat, SymbolicSparseColMatRef};
+use faer::{Conj, MatMut, Par};
+use std::cell::RefCell;
+
+/// A fill-reducing ordering and factorisation variant.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Ordering {
+    /// COLAMD on the columns; faer picks simplicial or supernodal (faer's default).
+    Colamd,
+    /// COLAMD without aggressive absorption; faer picks the variant.
+    ColamdGentle,
+    /// COLAMD, simplicial factorisation forced.
+    ColamdSimplicial,
+    /// COLAMD, supernodal factorisation forced.
+    ColamdSupernodal,
+    /// AMD on the pattern of A + Aᵀ as the column order, simplicial factorisation.
+    AmdSimplicial,
+}
+
+impl Ordering {
+    /// Every variant, for comparisons.
+    pub const ALL: [Ordering; 5] = [
+        Ordering::Colamd,
+        Ordering::ColamdGentle,
+        Ordering::ColamdSimplicial,
+        Ordering::ColamdSupernodal,
+        Ordering::AmdSimplicial,
+    ];
+}
+
+/// The ordering the BDF integrator uses.
+pub const ORDERING: Ordering = Ordering::Colamd;
+
+enum Factors {
+    Faer {
+        symbolic: SymbolicLu<usize>,
+        numeric: NumericLu<usize, f64>,
+    },
+    Simplicial {
+        col_fwd: Vec<usize>,
+        col_inv: Vec<usize>,
+        row_fwd: Vec<usize>,
+        row_inv: Vec<usize>,
+        lu: simplicial::SimplicialLu<usize, f64>,
+    },
+}
+
+/// A sparse LU with its ordering fixed when the pattern is set.
+pub struct SparseLu {
+    ordering: Ordering,
+    a: Option<FaerSparseMat<f64>>,
+    factors: Option<Factors>,
+    scratch: MemBuffer,
+    solve_scratch: RefCell<MemBuffer>,
+    ok: bool,
+    /// Numeric factorisations done.
+    pub factorisations: usize,
+}
+
+impl Default for SparseLu {
+    fn default() -> Self {
+        SparseLu::new(ORDERING)
+    }
+}
+
+impl SparseLu {
+    /// An LU that will order by `ordering`.
+    pub fn new(ordering: Ordering) -> Self {
+        SparseLu {
+            ordering,
+            a: None,
+            factors: None,
+            scratch: MemBuffer::new(faer::dyn_stack::StackReq::EMPTY),
+            solve_scratch: RefCell::new(MemBuffer::new(faer::dyn_stack::StackReq::EMPTY)),
+            ok: false,
+            factorisations: 0,
+        }
+    }
+
+    /// Order the columns of `pattern` and make the symbolic factorisation and the scratch.
+    pub fn analyse(&mut self, pattern: SymbolicSparseColMatRef<'_, usize>) -> Result<(), String> {
+        let n = pattern.ncols();
+        let colamd_params = match self.ordering {
+            Ordering::ColamdGentle => colamd::Control {
+                aggressive: false,
+                ..Default::default()
+            },
+            _ => colamd::Control::default(),
+        };
+        let threshold = match self.ordering {
+            Ordering::ColamdSimplicial => SupernodalThreshold::FORCE_SIMPLICIAL,
+            Ordering::ColamdSupernodal => SupernodalThreshold::FORCE_SUPERNODAL,
+            _ => SupernodalThreshold::AUTO,
+        };
+        let err = |e: faer::sparse::FaerError| format!("sparse LU analysis: {e:?}");
+        match self.ordering {
+            Ordering::AmdSimplicial => {
+                let (mut col_fwd, mut col_inv) = (vec![0usize; n], vec![0usize; n]);
+                let nnz = pattern.compute_nnz();
+                let mut mem = MemBuffer::new(amd::order_maybe_unsorted_scratch::<usize>(n, nnz));
+                amd::order_maybe_unsorted(
+                    &mut col_fwd,
+                    &mut col_inv,
+                    pattern,
+                    amd::Control::default(),
+                    MemStack::new(&mut mem),
+                )
+                .map_err(err)?;
+                self.scratch = MemBuffer::new(simplicial::factorize_simplicial_numeric_lu_scratch::<usize, f64>(n, n));
+                *self.solve_scratch.borrow_mut() =
+                    MemBuffer::new(simplicial::solve_in_place_scratch::<usize, f64>(n, 1, Par::Seq));
+                self.factors = Some(Factors::Simplicial {
+                    col_fwd,
+                    col_inv,
+                    row_fwd: vec![0; n],
+                    row_inv: vec![0; n],
+                    lu: simplicial::SimplicialLu::new(),
+                });
+            }
+            _ => {
+                let symbolic = factorize_symbolic_lu(
+                    pattern,
+                    LuSymbolicParams {
+                        colamd_params,
+                        supernodal_flop_ratio_threshold: threshold,
+                        ..Default::default()
+                    },
+                )
+                .map_err(err)?;
+                self.scratch =
+                    MemBuffer::new(symbolic.factorize_numeric_lu_scratch::<f64>(Par::Seq, Default::default()));
+                *self.solve_scratch.borrow_mut() = MemBuffer::new(symbolic.solve_in_place_scratch::<f64>(1, Par::Seq));
+                self.factors = Some(Factors::Faer {
+                    symbolic,
+                    numeric: NumericLu::new(),
+                });
+            }
+        }
+        self.ok = false;
+        Ok(())
+    }
+
+    /// Factorise `a` (the pattern given to [`SparseLu::analyse`]); false when it is singular.
+    pub fn factor(&mut self, a: SparseColMatRef<'_, usize, f64>) -> bool {
+        self.factorisations += 1;
+        let stack = MemStack::new(&mut self.scratch);
+        self.ok = match self.factors.as_mut() {
+            None => false,
+            Some(Factors::Faer { symbolic, numeric }) => symbolic
+                .factorize_numeric_lu(numeric, a, Par::Seq, stack, Default::default())
+                .is_ok(),
+            Some(Factors::Simplicial {
+                col_fwd,
+                col_inv,
+                row_fwd,
+                row_inv,
+                lu,
+            }) => {
+                let n = col_fwd.len();
+                let col = PermRef::new_checked(col_fwd, col_inv, n);
+                simplicial::factorize_simplicial_numeric_lu(row_fwd, row_inv, lu, a, col, stack).is_ok()
+            }
+        };
+        self.ok
+    }
+
+    /// Solve A x = b in place (`x` holds b on entry).
+    pub fn solve(&self, x: MatMut<'_, f64>) -> Result<(), String> {
+        if !self.ok {
+            return Err("the iteration matrix is singular".into());
+        }
+        let mut scratch = self.solve_scratch.borrow_mut();
+        let stack = MemStack::new(&mut scratch);
+        match self.factors.as_ref() {
+            None => return Err("no factorisation".into()),
+            Some(Factors::Faer { symbolic, numeric }) => {
+                LuRef::new_unchecked(symbolic, numeric).solve_in_place_with_conj(Conj::No, x, Par::Seq, stack)
+            }
+            Some(Factors::Simplicial {
+                col_fwd,
+                col_inv,
+                row_fwd,
+                row_inv,
+                lu,
+            }) => {
+                let n = col_fwd.len();
+                let row = PermRef::new_checked(row_fwd, row_inv, n);
+                let col = PermRef::new_checked(col_fwd, col_inv, n);
+                lu.solve_in_place_with_conj(row, col, Conj::No, x, Par::Seq, stack)
+            }
+        }
+        Ok(())
+    }
+}
+
+impl LinearSolver<FaerSparseMat<f64>> for SparseLu {
+    fn set_linearisation<C: LinearOp<T = f64, V = FaerVec<f64>, M = FaerSparseMat<f64>, C = diffsol::FaerContext>>(
+        &mut self,
+        op: &C,
+    ) {
+        let Some(mut a) = self.a.take() else {
+            self.ok = false;
+            return;
+        };
+        op.matrix_inplace(&mut a);
+        self.factor(a.inner()[0].as_ref());
+        self.a = Some(a);
+    }
+
+    fn set_sparsity<C: LinearOp<T = f64, V = FaerVec<f64>, M = FaerSparseMat<f64>, C = diffsol::FaerContext>>(
+        &mut self,
+        op: &C,
+    ) {
+        let n = op.ncols();
+        let pattern: SymbolicSparseColMat<usize> = op.sparsity().expect("a sparse matrix has a pattern");
+        let a = FaerSparseMat::new_from_sparsity(op.nrows(), n, Some(pattern), *op.context());
+        let analysed = self.analyse(a.inner()[0].symbolic());
+        self.a = Some(a);
+        if analysed.is_err() {
+            self.factors = None;
+        }
+    }
+
+    fn solve_in_place(&self, x: &mut FaerVec<f64>) -> Result<(), LaError> {
+        let m = x.inner_mut();
+        for j in 0..m.ncols() {
+            self.solve(m.as_mut().col_mut(j).as_mat_mut()).map_err(LaError::Other)?;
+        }
+        Ok(())
+    }
+
+    fn solve_transpose_in_place(&self, _x: &mut FaerVec<f64>) -> Result<(), LaError> {
+        Err(LaError::Other("transposed solves are not used".into()))
+    }
+}
