@@ -412,11 +412,38 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
     let _ = writeln!(
         o,
         "\nintegrator  {} — {}; {} steps ({} rejected), {} RHS evaluations, {} Jacobian products, {} Jacobian set-ups",
-        m.name, m.reason, m.steps, m.rejected_steps, m.rhs_evaluations, m.jacobian_products, m.jacobian_setups
+        segments_text(&m.segments),
+        m.reason,
+        m.steps,
+        m.rejected_steps,
+        m.rhs_evaluations,
+        m.jacobian_products,
+        m.jacobian_setups
     );
     let _ = writeln!(o, "assumes     {}", s.assumptions);
     let _ = writeln!(o, "caution     {}", s.cautions);
     o
+}
+
+/// Which integrator took which stretch: "BDF from 0 s to 40 s", or with a hand-over each
+/// stretch with its steps and right-hand sides, joined by "then".
+fn segments_text(segments: &[crate::report::simulation::SegmentSummary]) -> String {
+    let one = |g: &crate::report::simulation::SegmentSummary| {
+        format!(
+            "{} from {} to {}",
+            g.method,
+            crate::units::format_time(g.from_s),
+            crate::units::format_time(g.to_s)
+        )
+    };
+    match segments {
+        [g] => one(g),
+        _ => segments
+            .iter()
+            .map(|g| format!("{} ({} steps, {} RHS evaluations)", one(g), g.steps, g.rhs_evaluations))
+            .collect::<Vec<_>>()
+            .join(", then "),
+    }
 }
 
 /// The inner filter in words: its share of the incident photons with what it means, and (second)
