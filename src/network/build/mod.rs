@@ -142,6 +142,16 @@ impl<'a> Builder<'a> {
         };
         let thermal = self.thermal(doc, &resolver, t);
         let photo = self.photo(doc, &resolver);
+        // The photons meet ε, quantum yields and the background: their kinks end a band's
+        // quadrature panels, so every absorption integral over the band is exact.
+        let breaks: Vec<f64> = species
+            .iter()
+            .filter_map(|s| s.epsilon.as_ref())
+            .chain(photo.iter().map(|p| &p.quantum_yield))
+            .chain(std::iter::once(&conditions.background))
+            .flat_map(|s| s.knots())
+            .collect();
+        let lights: Vec<_> = lights.iter().map(|l| l.resampled(breaks.clone())).collect();
         let photon = derived::absorbed_photon_energy(doc, &transient_heads, &lights, &species, &photo);
         let transients = self.transients(doc, &resolver, &transient_heads, t, &photon);
         let mut net = Network {

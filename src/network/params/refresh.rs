@@ -271,9 +271,9 @@ fn temperature(net: &mut Network, t: f64) -> Result<(), String> {
     Ok(())
 }
 
-/// A light rebuilt with a new kind or intensity (same name and window).
+/// A light rebuilt with a new kind or intensity (same name, window and breaks).
 fn rebuilt(l: &LightSource, kind: LightKind, intensity: Option<Intensity>) -> LightSource {
-    LightSource::new(l.name.clone(), kind, intensity, l.window)
+    LightSource::with_breaks(l.name.clone(), kind, intensity, l.window, l.breaks.clone())
 }
 
 /// Put new lights in, then recompute hot yields that depend on the photons; restore on error.

@@ -77,7 +77,14 @@ pub fn run_section(model: &Model, study: &Study, meta: &Meta) -> String {
         [_, _, ..] => tr
             .segments
             .iter()
-            .map(|g| format!("{} from {} to {}", name(g.method), format_time(g.from), format_time(g.to)))
+            .map(|g| {
+                format!(
+                    "{} from {} to {}",
+                    name(g.method),
+                    format_time(g.from),
+                    format_time(g.to)
+                )
+            })
             .collect::<Vec<_>>()
             .join(", then "),
         _ => name(tr.method).to_string(),
