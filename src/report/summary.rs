@@ -89,7 +89,7 @@ pub fn network_summary(net: &Network) -> String {
         };
         let _ = writeln!(
             s,
-            "  {:<14} {:<42} {}{} mW = {} µeinstein/s {}{}–{} nm{}",
+            "  {:<14} {:<42} {}{} mW = {} µeinstein/s {}{}–{} nm{}{} wavelength bin{})",
             l.name,
             what,
             emitted,
@@ -99,10 +99,12 @@ pub fn network_summary(net: &Network) -> String {
             sig(lo * 1e9, 4),
             sig(hi * 1e9, 4),
             if l.window_cuts() {
-                " (from/to cuts the emitted light)"
+                " (from/to cuts the emitted light; "
             } else {
-                ")"
-            }
+                "; "
+            },
+            l.bins.len(),
+            if l.bins.len() == 1 { "" } else { "s" }
         );
     }
     let _ = writeln!(s, "\nspecies");
