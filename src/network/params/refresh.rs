@@ -67,6 +67,7 @@ pub(super) fn write(net: &mut Network, key: Key, value: f64) -> Result<(), Strin
             ConditionField::Background => {
                 non_negative()?;
                 net.conditions.background = constant(value);
+                resample_lights(net);
                 Ok(())
             }
         },
@@ -111,9 +112,12 @@ pub(super) fn write(net: &mut Network, key: Key, value: f64) -> Result<(), Strin
         Key::QuantumYield(i) | Key::Efficiency(i) => {
             fraction()?;
             let old = std::mem::replace(&mut net.photo[i].quantum_yield, constant(value));
+            let old_lights = net.lights.clone();
+            resample_lights(net);
             let result = yield_sum(net, net.photo[i].absorber).and_then(|()| hot(net));
             if result.is_err() {
                 net.photo[i].quantum_yield = old;
+                net.lights = old_lights;
             }
             result
         }
@@ -269,6 +273,17 @@ fn temperature(net: &mut Network, t: f64) -> Result<(), String> {
     }
     net.conditions.temperature = t;
     Ok(())
+}
+
+/// Bands resampled on the kinks of the network's spectra as they are now (a table replaced by
+/// a number has none), as the builder samples them.
+fn resample_lights(net: &mut Network) {
+    let breaks = crate::network::build::spectral_breaks(&net.species, &net.photo, &net.conditions.background);
+    for l in &mut net.lights {
+        if l.breaks != breaks {
+            *l = l.resampled(breaks.clone());
+        }
+    }
 }
 
 /// A light rebuilt with a new kind or intensity (same name, window and breaks).
