@@ -153,9 +153,19 @@ impl LightSource {
             .sum()
     }
 
-    /// Shortest and longest wavelength carrying photons (m).
+    /// Shortest and longest wavelength where the source emits (m), inside its window: a
+    /// band's centre ± 2 FWHM (all but 1e-5 of its power; its quadrature reaches further, to
+    /// ±7σ, for the last digits), otherwise the first and last bin.
     pub fn extent(&self) -> Option<(f64, f64)> {
-        Some((self.bins.first()?.wavelength, self.bins.last()?.wavelength))
+        let bins = (self.bins.first()?.wavelength, self.bins.last()?.wavelength);
+        match self.kind {
+            LightKind::Band { centre, fwhm } => {
+                let lo = (centre - 2.0 * fwhm).max(self.window.0).max(0.0);
+                let hi = (centre + 2.0 * fwhm).min(self.window.1);
+                Some(if lo < hi { (lo, hi) } else { bins })
+            }
+            _ => Some(bins),
+        }
     }
 }
 
@@ -434,9 +444,12 @@ mod tests {
         assert!((s.emitted_power - 3.0).abs() < 1e-12, "{}", s.emitted_power);
         assert!((s.power() - 1.5).abs() < 1e-3, "{}", s.power());
         assert!(s.window_cuts());
+        // The emission range shown: from the window's edge to centre + 2 FWHM.
+        let (lo, hi) = s.extent().unwrap();
+        assert!((lo - 390e-9).abs() < 1e-15 && (hi - 418e-9).abs() < 1e-15, "{lo} {hi}");
         // Quadrature nodes lie inside their panels: the first within half a panel (σ/4) of
         // the window's edge, the last within σ/4 of the band's reach, centre + 7σ.
-        let (lo, hi) = s.extent().unwrap();
+        let (lo, hi) = (s.bins[0].wavelength, s.bins[s.bins.len() - 1].wavelength);
         let sigma = 14e-9 / (8.0 * std::f64::consts::LN_2).sqrt();
         assert!(lo > 390e-9 && lo < 390e-9 + sigma / 4.0, "{lo}");
         assert!(hi < 390e-9 + 7.0 * sigma && hi > 390e-9 + 6.75 * sigma, "{hi}");

@@ -116,7 +116,11 @@ pub fn network_summary(net: &Network) -> String {
                 let best = net
                     .lights
                     .iter()
-                    .flat_map(|l| &l.bins)
+                    .flat_map(|l| {
+                        // Over the range where the source emits, not its quadrature's far tails.
+                        let (lo, hi) = l.extent().unwrap_or((0.0, 0.0));
+                        l.bins.iter().filter(move |b| b.wavelength >= lo && b.wavelength <= hi)
+                    })
                     .map(|b| (b.wavelength, e.at(b.wavelength)))
                     .max_by(|a, b| a.1.total_cmp(&b.1));
                 match best {
