@@ -21,9 +21,10 @@ that file uses are understood, and anything else is an error.
 
 The model, as the README states it
 -----------------------------------
-* Each LED band is a Gaussian in spectral power, sampled at 161 equally spaced wavelengths
-  over centre +/- 2 FWHM (sigma = FWHM / sqrt(8 ln 2)); each sample takes half of each
-  adjacent interval (trapezoid weights); the power of each bin becomes photons through the
+* Each LED band is a Gaussian in spectral power, sampled on a fine grid independent of
+  photoledger's quadrature: 20001 equally spaced wavelengths over centre +/- 10 sigma
+  (sigma = FWHM / sqrt(8 ln 2)); each sample takes half of each adjacent interval
+  (trapezoid weights); the power of each bin becomes photons through the
   molar photon energy N_A h c / lambda; all bins are scaled so that the band carries the
   stated power.
 * Molar absorption coefficients: tables interpolated linearly, zero outside the table.
@@ -84,8 +85,8 @@ def quantity(text):
 def band_bins(centre, fwhm, power):
     """Photon bins (wavelength m, einstein/s) of a Gaussian band of total power `power` W."""
     sigma = fwhm / math.sqrt(8.0 * math.log(2.0))
-    n = 161
-    half = 2.0 * fwhm
+    n = 20001
+    half = 10.0 * sigma
     x = np.array([centre - half + 2.0 * half * i / (n - 1) for i in range(n)])
     shape = np.exp(-0.5 * ((x - centre) / sigma) ** 2)
     left = np.concatenate(([0.0], np.diff(x)))

@@ -85,13 +85,31 @@ pub struct LightSource {
     pub emitted_power: f64,
     /// Photon flux of the whole source as emitted (before the window cuts), einstein/s.
     pub emitted_photon_flux: f64,
+    /// Wavelengths (m) where the spectra its photons meet (molar absorption coefficients,
+    /// quantum yields, background) have kinks: a band's quadrature panels end there.
+    pub breaks: Vec<f64>,
 }
 
 impl LightSource {
     /// Build a source and its photon bins: `intensity` is that of the whole source, `window`
     /// (m) cuts the emitted spectrum.
     pub fn new(name: String, kind: LightKind, intensity: Option<Intensity>, window: (f64, f64)) -> Self {
-        let (bins, emitted) = bins_for(&kind, intensity, window);
+        Self::with_breaks(name, kind, intensity, window, Vec::new())
+    }
+
+    /// [`LightSource::new`] for photons that meet spectra with kinks at `breaks` (m): a band's
+    /// quadrature is made exact on each smooth piece between them.
+    pub fn with_breaks(
+        name: String,
+        kind: LightKind,
+        intensity: Option<Intensity>,
+        window: (f64, f64),
+        mut breaks: Vec<f64>,
+    ) -> Self {
+        breaks.retain(|x| x.is_finite() && *x > 0.0);
+        breaks.sort_by(f64::total_cmp);
+        breaks.dedup();
+        let (bins, emitted) = bins_for(&kind, intensity, window, &breaks);
         let emitted_power = emitted.iter().map(|b| b.flux * molar_photon_energy(b.wavelength)).sum();
         let emitted_photon_flux = emitted.iter().map(|b| b.flux).sum();
         LightSource {
@@ -102,7 +120,19 @@ impl LightSource {
             bins,
             emitted_power,
             emitted_photon_flux,
+            breaks,
         }
+    }
+
+    /// The same source for photons that meet spectra with kinks at `breaks` (m).
+    pub fn resampled(&self, breaks: Vec<f64>) -> Self {
+        Self::with_breaks(
+            self.name.clone(),
+            self.kind.clone(),
+            self.intensity,
+            self.window,
+            breaks,
+        )
     }
 
     /// Whether the window cuts away any of the emitted power (more than 1 part in 10⁹).
@@ -123,9 +153,19 @@ impl LightSource {
             .sum()
     }
 
-    /// Shortest and longest wavelength carrying photons (m).
+    /// Shortest and longest wavelength where the source emits (m), inside its window: a
+    /// band's centre ± 2 FWHM (all but 1e-5 of its power; its quadrature reaches further, to
+    /// ±7σ, for the last digits), otherwise the first and last bin.
     pub fn extent(&self) -> Option<(f64, f64)> {
-        Some((self.bins.first()?.wavelength, self.bins.last()?.wavelength))
+        let bins = (self.bins.first()?.wavelength, self.bins.last()?.wavelength);
+        match self.kind {
+            LightKind::Band { centre, fwhm } => {
+                let lo = (centre - 2.0 * fwhm).max(self.window.0).max(0.0);
+                let hi = (centre + 2.0 * fwhm).min(self.window.1);
+                Some(if lo < hi { (lo, hi) } else { bins })
+            }
+            _ => Some(bins),
+        }
     }
 }
 
@@ -202,7 +242,90 @@ fn cut(
     (inside, whole)
 }
 
-fn bins_for(kind: &LightKind, intensity: Option<Intensity>, window: (f64, f64)) -> (Vec<PhotonBin>, Vec<PhotonBin>) {
+/// How far a band's quadrature reaches on either side of its centre, in standard deviations:
+/// beyond ±7σ lies 2.6e-12 of a Gaussian's power (common practice: the normal tail).
+pub const BAND_REACH_SIGMA: f64 = 7.0;
+
+/// The widest quadrature panel of a band, in standard deviations.
+pub const BAND_PANEL_SIGMA: f64 = 0.5;
+
+/// Four-point Gauss–Legendre nodes on [−1, 1] and their weights (Abramowitz & Stegun,
+/// Handbook of Mathematical Functions, 1964, Table 25.4).
+const GAUSS4: [(f64, f64); 4] = [
+    (-0.861_136_311_594_052_6, 0.347_854_845_137_453_9),
+    (-0.339_981_043_584_856_3, 0.652_145_154_862_546_1),
+    (0.339_981_043_584_856_3, 0.652_145_154_862_546_1),
+    (0.861_136_311_594_052_6, 0.347_854_845_137_453_9),
+];
+
+/// A Gaussian band's bins: Gauss–Legendre quadrature (four nodes a panel) over ±7σ, on panels
+/// at most σ/2 wide that end at the window's edges and at every break, so that each panel's
+/// integrand (the band times piecewise-linear ε, yields and background, through the smooth
+/// g(A)) is smooth and its integral is exact to far below any integrator tolerance.
+/// Returns (bins inside the window, bins of the whole source), fluxes at the stated intensity.
+fn band_bins(
+    centre: f64,
+    fwhm: f64,
+    intensity: Option<Intensity>,
+    window: (f64, f64),
+    breaks: &[f64],
+) -> (Vec<PhotonBin>, Vec<PhotonBin>) {
+    let sigma = fwhm / (8.0 * std::f64::consts::LN_2).sqrt();
+    let lo = (centre - BAND_REACH_SIGMA * sigma).max(0.0);
+    let hi = centre + BAND_REACH_SIGMA * sigma;
+    let mut edges: Vec<f64> = vec![lo, hi];
+    edges.extend(
+        breaks
+            .iter()
+            .chain([window.0, window.1].iter())
+            .copied()
+            .filter(|&x| x > lo && x < hi),
+    );
+    edges.sort_by(f64::total_cmp);
+    edges.dedup();
+    let power = |x: f64| {
+        let z = (x - centre) / sigma;
+        (-0.5 * z * z).exp()
+    };
+    // (wavelength, power share, inside the window) at every node.
+    let mut nodes: Vec<(f64, f64, bool)> = Vec::new();
+    for w in edges.windows(2) {
+        let (a, b) = (w[0], w[1]);
+        if b <= a {
+            continue;
+        }
+        let inside = a >= window.0 && b <= window.1;
+        let n = ((b - a) / (BAND_PANEL_SIGMA * sigma)).ceil().max(1.0) as usize;
+        let h = (b - a) / n as f64;
+        for k in 0..n {
+            let mid = a + (k as f64 + 0.5) * h;
+            for &(x, wt) in &GAUSS4 {
+                let l = mid + 0.5 * h * x;
+                nodes.push((l, 0.5 * h * wt * power(l), inside));
+            }
+        }
+    }
+    let to_bin = |&(l, p, _): &(f64, f64, bool)| PhotonBin {
+        wavelength: l,
+        flux: p / molar_photon_energy(l),
+    };
+    let mut whole: Vec<PhotonBin> = nodes.iter().map(to_bin).collect();
+    let p: f64 = nodes.iter().map(|n| n.1).sum();
+    let q: f64 = whole.iter().map(|b| b.flux).sum();
+    let factor = scale_factor(p, q, intensity);
+    let mut inside: Vec<PhotonBin> = nodes.iter().filter(|n| n.2).map(to_bin).collect();
+    for b in whole.iter_mut().chain(inside.iter_mut()) {
+        b.flux *= factor;
+    }
+    (inside, whole)
+}
+
+fn bins_for(
+    kind: &LightKind,
+    intensity: Option<Intensity>,
+    window: (f64, f64),
+    breaks: &[f64],
+) -> (Vec<PhotonBin>, Vec<PhotonBin>) {
     match kind {
         LightKind::Line { wavelength } => {
             let flux = match intensity {
@@ -221,22 +344,7 @@ fn bins_for(kind: &LightKind, intensity: Option<Intensity>, window: (f64, f64)) 
                 .collect();
             (inside, whole)
         }
-        LightKind::Band { centre, fwhm } => {
-            // Gaussian spectral power, sampled out to ±2 FWHM (beyond which less than 1e-5 of the
-            // power lies), 40 points per FWHM, 161 points in all.
-            let sigma = fwhm / (8.0 * std::f64::consts::LN_2).sqrt();
-            let n = 161;
-            let half = 2.0 * fwhm;
-            let shape: Vec<(f64, f64)> = (0..n)
-                .map(|i| {
-                    let x = centre - half + 2.0 * half * i as f64 / (n - 1) as f64;
-                    let z = (x - centre) / sigma;
-                    (x, (-0.5 * z * z).exp())
-                })
-                .filter(|p| p.0 > 0.0)
-                .collect();
-            cut(&shape, intensity, 1.0, window)
-        }
+        LightKind::Band { centre, fwhm } => band_bins(*centre, *fwhm, intensity, window, breaks),
         LightKind::Lamp { relative_power, .. } => cut(relative_power, intensity, 1.0, window),
         LightKind::Sun { scale, area } => {
             // W m⁻² nm⁻¹ -> W per m of wavelength over the area: × 1e9 nm/m × area.
@@ -282,20 +390,24 @@ mod tests {
         let q = s.photon_flux();
         let mean: f64 = s.bins.iter().map(|b| b.wavelength * b.flux).sum::<f64>() / q;
         assert!(mean > 450e-9 && mean < 451e-9, "{mean}");
-        // FWHM check: the power at centre ± 10 nm is half the peak (common practice definition).
-        let peak = s
-            .bins
-            .iter()
-            .map(|b| b.flux * molar_photon_energy(b.wavelength))
-            .fold(0.0, f64::max);
-        let at = |wl: f64| {
-            s.bins
-                .iter()
-                .min_by(|a, b| (a.wavelength - wl).abs().total_cmp(&(b.wavelength - wl).abs()))
-                .map(|b| b.flux * molar_photon_energy(b.wavelength))
-                .unwrap()
-        };
-        assert!((at(460e-9) / peak - 0.5).abs() < 0.01);
+        // FWHM check: within centre ± FWHM/2 lies erf(√(ln 2)) = 0.760968... of a Gaussian's
+        // power (common practice), here with the window cutting there.
+        let inner = LightSource::new(
+            "blue".into(),
+            LightKind::Band {
+                centre: 450e-9,
+                fwhm: 20e-9,
+            },
+            Some(Intensity::Power(0.1)),
+            (440e-9, 460e-9),
+        );
+        let want = 0.1 * statrs::function::erf::erf(std::f64::consts::LN_2.sqrt());
+        // (The band is normalised over ±7σ, and the quadrature errs by ~1e-11.)
+        assert!(
+            (inner.power() - want).abs() < 1e-10 * want,
+            "{} vs {want}",
+            inner.power()
+        );
     }
 
     #[test]
@@ -332,15 +444,22 @@ mod tests {
         assert!((s.emitted_power - 3.0).abs() < 1e-12, "{}", s.emitted_power);
         assert!((s.power() - 1.5).abs() < 1e-3, "{}", s.power());
         assert!(s.window_cuts());
+        // The emission range shown: from the window's edge to centre + 2 FWHM.
         let (lo, hi) = s.extent().unwrap();
         assert!((lo - 390e-9).abs() < 1e-15 && (hi - 418e-9).abs() < 1e-15, "{lo} {hi}");
+        // Quadrature nodes lie inside their panels: the first within half a panel (σ/4) of
+        // the window's edge, the last within σ/4 of the band's reach, centre + 7σ.
+        let (lo, hi) = (s.bins[0].wavelength, s.bins[s.bins.len() - 1].wavelength);
+        let sigma = 14e-9 / (8.0 * std::f64::consts::LN_2).sqrt();
+        assert!(lo > 390e-9 && lo < 390e-9 + sigma / 4.0, "{lo}");
+        assert!(hi < 390e-9 + 7.0 * sigma && hi > 390e-9 + 6.75 * sigma, "{hi}");
         // An edge between samples is cut at the edge: above 395 nm lies
         // ½ erfc((395 − 390)/(σ √2)) of a Gaussian's power, σ = FWHM / √(8 ln 2) (common practice).
         let s = band(Intensity::Power(3.0), (395e-9, f64::INFINITY));
         let sigma = 14.0 / (8.0 * std::f64::consts::LN_2).sqrt();
         let want = 3.0 * 0.5 * statrs::function::erf::erfc(5.0 / (sigma * std::f64::consts::SQRT_2));
-        // The trapezoid rule on the 0.35 nm grid errs by about h²/12 · f'(395 nm) there: 3e-4 of it.
-        assert!((s.power() - want).abs() / want < 1e-3, "{} vs {want}", s.power());
+        // The window's edge ends a quadrature panel, so the cut is exact to round-off.
+        assert!((s.power() - want).abs() / want < 1e-10, "{} vs {want}", s.power());
         // A photon flux is also the whole source's.
         let s = band(Intensity::PhotonFlux(2e-6), (0.0, 390e-9));
         assert!((s.emitted_photon_flux - 2e-6).abs() < 1e-18);

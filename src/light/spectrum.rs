@@ -55,6 +55,14 @@ impl Spectrum {
         }
     }
 
+    /// Wavelengths (m) where the function has kinks: a table's points (none for a constant).
+    pub fn knots(&self) -> Vec<f64> {
+        match self {
+            Spectrum::Constant { .. } => Vec::new(),
+            Spectrum::Table { points, .. } => points.iter().map(|p| p.0).collect(),
+        }
+    }
+
     /// Wavelength span of a table (m), None for a constant.
     pub fn span(&self) -> Option<(f64, f64)> {
         match self {

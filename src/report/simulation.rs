@@ -111,10 +111,12 @@ pub struct LightSchedule {
 /// Integrator details in the summary.
 #[derive(Debug, Serialize)]
 pub struct MethodSummary {
-    /// "BDF" or "Dop853".
+    /// "BDF" or "Dop853": the integrator that finished the run.
     pub name: String,
     /// Why.
     pub reason: String,
+    /// Which integrator took which stretch of time, in order.
+    pub segments: Vec<SegmentSummary>,
     /// Accepted steps.
     pub steps: usize,
     /// Rejected steps.
@@ -133,6 +135,29 @@ pub struct MethodSummary {
     pub atol: f64,
 }
 
+/// One stretch of a run and the integrator that took it.
+#[derive(Debug, Serialize)]
+pub struct SegmentSummary {
+    /// "BDF" or "Dop853".
+    pub method: String,
+    /// Start, s.
+    pub from_s: f64,
+    /// End, s.
+    pub to_s: f64,
+    /// Accepted steps in the stretch.
+    pub steps: usize,
+    /// Right-hand-side evaluations in the stretch.
+    pub rhs_evaluations: usize,
+}
+
+/// The short name of an integrator that ran.
+pub fn method_name(m: Method) -> &'static str {
+    match m {
+        Method::Dop853 => "Dop853",
+        _ => "BDF",
+    }
+}
+
 /// Build the summary of a run.
 pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f64) -> Summary {
     let t = *tr.times.last().unwrap_or(&0.0);
@@ -147,11 +172,19 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
             Stop::Event(te) => format!("stop condition met at {}", crate::units::format_time(te)),
         },
         method: MethodSummary {
-            name: match tr.method {
-                Method::Dop853 => "Dop853".into(),
-                _ => "BDF".into(),
-            },
+            name: method_name(tr.method).into(),
             reason: tr.method_reason.clone(),
+            segments: tr
+                .segments
+                .iter()
+                .map(|g| SegmentSummary {
+                    method: method_name(g.method).into(),
+                    from_s: g.from,
+                    to_s: g.to,
+                    steps: g.steps,
+                    rhs_evaluations: g.rhs,
+                })
+                .collect(),
             steps: tr.counts.steps,
             rejected_steps: tr.counts.rejected,
             rhs_evaluations: tr.counts.rhs,

@@ -89,7 +89,7 @@ pub fn network_summary(net: &Network) -> String {
         };
         let _ = writeln!(
             s,
-            "  {:<14} {:<42} {}{} mW = {} µeinstein/s {}{}–{} nm{}",
+            "  {:<14} {:<42} {}{} mW = {} µeinstein/s {}{}–{} nm{}{} wavelength bin{})",
             l.name,
             what,
             emitted,
@@ -99,10 +99,12 @@ pub fn network_summary(net: &Network) -> String {
             sig(lo * 1e9, 4),
             sig(hi * 1e9, 4),
             if l.window_cuts() {
-                " (from/to cuts the emitted light)"
+                " (from/to cuts the emitted light; "
             } else {
-                ")"
-            }
+                "; "
+            },
+            l.bins.len(),
+            if l.bins.len() == 1 { "" } else { "s" }
         );
     }
     let _ = writeln!(s, "\nspecies");
@@ -114,7 +116,11 @@ pub fn network_summary(net: &Network) -> String {
                 let best = net
                     .lights
                     .iter()
-                    .flat_map(|l| &l.bins)
+                    .flat_map(|l| {
+                        // Over the range where the source emits, not its quadrature's far tails.
+                        let (lo, hi) = l.extent().unwrap_or((0.0, 0.0));
+                        l.bins.iter().filter(move |b| b.wavelength >= lo && b.wavelength <= hi)
+                    })
                     .map(|b| (b.wavelength, e.at(b.wavelength)))
                     .max_by(|a, b| a.1.total_cmp(&b.1));
                 match best {
@@ -412,7 +418,7 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
     let _ = writeln!(
         o,
         "\nintegrator  {} — {}; {} steps ({} rejected), {} RHS evaluations, {} Jacobian evaluations, {} LU factorisations, {} Jacobian-vector products",
-        m.name,
+        segments_text(&m.segments),
         m.reason,
         m.steps,
         m.rejected_steps,
@@ -424,6 +430,27 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
     let _ = writeln!(o, "assumes     {}", s.assumptions);
     let _ = writeln!(o, "caution     {}", s.cautions);
     o
+}
+
+/// Which integrator took which stretch: "BDF from 0 s to 40 s", or with a hand-over each
+/// stretch with its steps and right-hand sides, joined by "then".
+fn segments_text(segments: &[crate::report::simulation::SegmentSummary]) -> String {
+    let one = |g: &crate::report::simulation::SegmentSummary| {
+        format!(
+            "{} from {} to {}",
+            g.method,
+            crate::units::format_time(g.from_s),
+            crate::units::format_time(g.to_s)
+        )
+    };
+    match segments {
+        [g] => one(g),
+        _ => segments
+            .iter()
+            .map(|g| format!("{} ({} steps, {} RHS evaluations)", one(g), g.steps, g.rhs_evaluations))
+            .collect::<Vec<_>>()
+            .join(", then "),
+    }
 }
 
 /// The inner filter in words: its share of the incident photons with what it means, and (second)

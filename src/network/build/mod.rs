@@ -29,6 +29,22 @@ use crate::light::Spectrum;
 use crate::units::Quantity;
 use std::collections::BTreeMap;
 
+/// The wavelengths (m) where the spectra a source's photons meet have kinks: the points of
+/// every ε table, quantum-yield table and the background table, sorted, without repeats.
+pub(crate) fn spectral_breaks(species: &[Species], photo: &[PhotoStep], background: &Spectrum) -> Vec<f64> {
+    let mut b: Vec<f64> = species
+        .iter()
+        .filter_map(|s| s.epsilon.as_ref())
+        .chain(photo.iter().map(|p| &p.quantum_yield))
+        .chain(std::iter::once(background))
+        .flat_map(|s| s.knots())
+        .filter(|x| x.is_finite() && *x > 0.0)
+        .collect();
+    b.sort_by(f64::total_cmp);
+    b.dedup();
+    b
+}
+
 /// Validate a loaded file with overrides into a [`Network`], or every problem found.
 pub fn build(loaded: &Loaded, overrides: &Overrides) -> Result<Network> {
     let mut b = Builder {
@@ -154,6 +170,10 @@ impl<'a> Builder<'a> {
         };
         let thermal = self.thermal(doc, &resolver, t);
         let photo = self.photo(doc, &resolver);
+        // The photons meet ε, quantum yields and the background: their kinks end a band's
+        // quadrature panels, so every absorption integral over the band is exact.
+        let breaks = spectral_breaks(&species, &photo, &conditions.background);
+        let lights: Vec<_> = lights.iter().map(|l| l.resampled(breaks.clone())).collect();
         let photon = derived::absorbed_photon_energy(doc, &transient_heads, &lights, &species, &photo);
         let transients = self.transients(doc, &resolver, &transient_heads, t, &photon);
         let mut net = Network {

@@ -67,6 +67,7 @@ pub(super) fn write(net: &mut Network, key: Key, value: f64) -> Result<(), Strin
             ConditionField::Background => {
                 non_negative()?;
                 net.conditions.background = constant(value);
+                resample_lights(net);
                 Ok(())
             }
         },
@@ -111,9 +112,12 @@ pub(super) fn write(net: &mut Network, key: Key, value: f64) -> Result<(), Strin
         Key::QuantumYield(i) | Key::Efficiency(i) => {
             fraction()?;
             let old = std::mem::replace(&mut net.photo[i].quantum_yield, constant(value));
+            let old_lights = net.lights.clone();
+            resample_lights(net);
             let result = yield_sum(net, net.photo[i].absorber).and_then(|()| hot(net));
             if result.is_err() {
                 net.photo[i].quantum_yield = old;
+                net.lights = old_lights;
             }
             result
         }
@@ -271,9 +275,20 @@ fn temperature(net: &mut Network, t: f64) -> Result<(), String> {
     Ok(())
 }
 
-/// A light rebuilt with a new kind or intensity (same name and window).
+/// Bands resampled on the kinks of the network's spectra as they are now (a table replaced by
+/// a number has none), as the builder samples them.
+fn resample_lights(net: &mut Network) {
+    let breaks = crate::network::build::spectral_breaks(&net.species, &net.photo, &net.conditions.background);
+    for l in &mut net.lights {
+        if l.breaks != breaks {
+            *l = l.resampled(breaks.clone());
+        }
+    }
+}
+
+/// A light rebuilt with a new kind or intensity (same name, window and breaks).
 fn rebuilt(l: &LightSource, kind: LightKind, intensity: Option<Intensity>) -> LightSource {
-    LightSource::new(l.name.clone(), kind, intensity, l.window)
+    LightSource::with_breaks(l.name.clone(), kind, intensity, l.window, l.breaks.clone())
 }
 
 /// Put new lights in, then recompute hot yields that depend on the photons; restore on error.

@@ -67,10 +67,27 @@ pub fn section(net: &Network, model: &Model, study: &Study) -> String {
 /// Integrator, tolerances and work, and where the numbers of each section come from.
 pub fn run_section(model: &Model, study: &Study, meta: &Meta) -> String {
     let tr = &study.kinetics;
-    let method = match tr.method {
+    let name = |m: Method| match m {
         Method::Dop853 => "Dop853 (explicit Runge–Kutta of order 8)",
         _ if tr.sparse => "BDF with sparse LU",
         _ => "BDF (variable order, exact Jacobian)",
+    };
+    // One integrator, or each stretch with the one that took it.
+    let method = match tr.segments.as_slice() {
+        [_, _, ..] => tr
+            .segments
+            .iter()
+            .map(|g| {
+                format!(
+                    "{} from {} to {}",
+                    name(g.method),
+                    format_time(g.from),
+                    format_time(g.to)
+                )
+            })
+            .collect::<Vec<_>>()
+            .join(", then "),
+        _ => name(tr.method).to_string(),
     };
     let stop = match tr.stop {
         Stop::EndTime => "the end time".to_string(),
@@ -80,8 +97,8 @@ pub fn run_section(model: &Model, study: &Study, meta: &Meta) -> String {
     s.push_str(&format!(
         "<li>Kinetics: {} — {}; stopped at {}; {} steps ({} rejected), {} right-hand-side evaluations; \
          relative tolerance 1e-6, absolute 1e-12 mol/L.</li>\n",
-        esc(method),
-        // The reason starts with the method's short name ("Dop853: not stiff …").
+        esc(&method),
+        // The reason starts with the method's short name ("BDF: automatic …").
         esc(tr
             .method_reason
             .split_once(": ")
