@@ -45,12 +45,21 @@ impl Builder<'_> {
         }
         // Thermal steps: both halves of a reversible equation were written at the entry.
         for (i, t) in doc.thermal.iter().enumerate() {
+            let e = t.get_ref();
+            // Most steps state no origin: look up the built steps only for those that do, so
+            // building stays linear in the number of steps.
+            let stated = |r: &Option<_>| {
+                r.as_ref()
+                    .is_some_and(|r: &Spanned<schema::Rate>| r.get_ref().origin.is_some())
+            };
+            if !stated(&e.rate) && !stated(&e.reverse) {
+                continue;
+            }
             let at = span(t);
             let field = format!("thermal[{i}]");
             let steps: Vec<usize> = (0..net.thermal.len())
                 .filter(|&j| self.at.thermal.get(j) == Some(&at))
                 .collect();
-            let e = t.get_ref();
             for (rate, reverse) in [(&e.rate, false), (&e.reverse, true)] {
                 let Some(r) = rate else { continue };
                 let Some(o) = &r.get_ref().origin else { continue };
