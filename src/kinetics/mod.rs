@@ -336,16 +336,16 @@ pub fn simulate_from(
         Method::Auto | Method::Bdf => (
             Method::Bdf,
             if opts.method == Method::Auto {
-                "BDF: automatic (safe whether or not the run turns stiff)".to_string()
+                "chosen automatically: safe whether or not the run turns stiff".to_string()
             } else {
-                "BDF: chosen".to_string()
+                "chosen".to_string()
             },
         ),
         Method::Dop853 => {
             if opts.event.is_some() {
                 return Err(Error::Usage("an event stop needs the BDF integrator".into()));
             }
-            (Method::Dop853, "Dop853: chosen".into())
+            (Method::Dop853, "chosen".into())
         }
     };
     let times = output_times(opts, t0);

@@ -246,7 +246,8 @@ pub fn summary(
         flow,
         sun,
         method: format!(
-            "{}; time to target by root finding on the target species in the integrator ({} stretch{})",
+            "{} ({}); time to target by root finding on the target species in the integrator ({} stretch{})",
+            crate::report::simulation::method_name(plan.trajectory.method),
             plan.trajectory.method_reason,
             plan.stretches,
             if plan.stretches == 1 { "" } else { "es" }

@@ -98,11 +98,7 @@ pub fn run_section(model: &Model, study: &Study, meta: &Meta) -> String {
         "<li>Kinetics: {} — {}; stopped at {}; {} steps ({} rejected), {} right-hand-side evaluations; \
          relative tolerance 1e-6, absolute 1e-12 mol/L.</li>\n",
         esc(&method),
-        // The reason starts with the method's short name ("BDF: automatic …").
-        esc(tr
-            .method_reason
-            .split_once(": ")
-            .map_or(tr.method_reason.as_str(), |(_, r)| r)),
+        esc(&tr.method_reason),
         esc(&stop),
         tr.counts.steps,
         tr.counts.rejected,
