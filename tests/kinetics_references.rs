@@ -9,6 +9,8 @@ use photoledger::model::Model;
 use photoledger::network::{Network, Overrides, build};
 use std::path::Path;
 
+mod common;
+
 fn network(text: &str) -> Network {
     let l = parse_text(Path::new("test.toml"), text.to_string()).expect("parses");
     match build(&l, &Overrides::none()) {
@@ -27,29 +29,6 @@ fn run(net: &Network, until: f64, method: Method, rtol: f64, atol: f64) -> kinet
     kinetics::simulate(&model, &opts, &mut |_| {}).expect("integrates")
 }
 
-const ROBERTSON: &str = r#"
-[conditions]
-temperature = "298.15 K"
-volume = "1 L"
-path_length = "1 cm"
-[[species]]
-name = "y1"
-initial = "1 M"
-[[species]]
-name = "y2"
-[[species]]
-name = "y3"
-[[thermal]]
-equation = "y1 -> y2"
-rate = { k = "0.04 /s" }
-[[thermal]]
-equation = "2 y2 -> y2 + y3"
-rate = { k = "3e7 /(M s)" }
-[[thermal]]
-equation = "y2 + y3 -> y1 + y3"
-rate = { k = "1e4 /(M s)" }
-"#;
-
 // Robertson's problem written as a thermal network. Note the IUPAC convention: for
 // 2 y2 -> y2 + y3, d[y2]/dt = −k[y2]² (net coefficient −1) and d[y3]/dt = +k[y2]², which is
 // exactly Robertson's −3e7 y2² and +3e7 y2².
@@ -57,10 +36,10 @@ rate = { k = "1e4 /(M s)" }
 fn robertson_at_40_s() {
     // Enright & Pryce, ACM TOMS 13(1), 1987, stiff test set problem D2 (Robertson rescaled:
     // Y2 = 1e4 y2, Y3 = 100 y3): y(40) = (0.7158270687193941, 9.185534764557338e-6, 0.2841637457458413).
-    let net = network(ROBERTSON);
+    let net = network(common::ROBERTSON);
     let tr = run(&net, 40.0, Method::Bdf, 1e-10, 1e-16);
     let y = tr.last();
-    let want = [0.7158270687193941, 9.185534764557338e-6, 0.2841637457458413];
+    let want = common::ROBERTSON_40;
     for i in 0..3 {
         assert!(
             (y[i] - want[i]).abs() <= 1e-6 * want[i].abs(),
@@ -77,7 +56,7 @@ fn robertson_at_1e11_s() {
     // Mazzia & Magherini, Test Set for Initial Value Problem Solvers, release 2.4, University
     // of Bari, 2008, problem ROBER: y(1e11) = (2.083340149701255e-8, 8.333360770334713e-14,
     // 0.9999999791665050).
-    let net = network(ROBERTSON);
+    let net = network(common::ROBERTSON);
     let mut opts = Options::until(1e11);
     opts.method = Method::Bdf;
     opts.rtol = 1e-10;

@@ -10,6 +10,8 @@ use photoledger::model::Model;
 use photoledger::network::{Network, Overrides, build};
 use std::path::Path;
 
+mod common;
+
 fn network(text: &str) -> Network {
     let l = parse_text(Path::new("test.toml"), text.to_string()).expect("parses");
     match build(&l, &Overrides::none()) {
@@ -27,40 +29,10 @@ fn run(model: &Model, until: f64, method: Method, rtol: f64, atol: f64, outputs:
     kinetics::simulate(model, &opts, &mut |_| {}).expect("integrates")
 }
 
-/// Robertson's problem (Robertson 1966; Hairer & Wanner, Solving ODEs II, §IV.10 uses it as
-/// a stiff test problem) as a thermal network: it looks non-stiff at t = 0 (the only rate is
-/// 0.04 /s) and turns stiff within a few milliseconds, once y2 has formed.
-const ROBERTSON: &str = r#"
-[conditions]
-temperature = "298.15 K"
-volume = "1 L"
-path_length = "1 cm"
-[[species]]
-name = "y1"
-initial = "1 M"
-[[species]]
-name = "y2"
-[[species]]
-name = "y3"
-[[thermal]]
-equation = "y1 -> y2"
-rate = { k = "0.04 /s" }
-[[thermal]]
-equation = "2 y2 -> y2 + y3"
-rate = { k = "3e7 /(M s)" }
-[[thermal]]
-equation = "y2 + y3 -> y1 + y3"
-rate = { k = "1e4 /(M s)" }
-"#;
-
-/// Enright & Pryce, ACM TOMS 13(1), 1987, stiff test set problem D2 (Robertson rescaled:
-/// Y2 = 1e4 y2, Y3 = 100 y3): y(40 s).
-const ROBERTSON_40: [f64; 3] = [0.7158270687193941, 9.185534764557338e-6, 0.2841637457458413];
-
 #[test]
 fn automatic_choice_on_robertson_costs_at_most_twice_a_bdf_run() {
     // Default tolerances and output count, as `simulate` runs it.
-    let model = Model::compile(&network(ROBERTSON));
+    let model = Model::compile(&network(common::ROBERTSON));
     let auto = run(&model, 40.0, Method::Auto, 1e-6, 1e-12, 200);
     let bdf = run(&model, 40.0, Method::Bdf, 1e-6, 1e-12, 200);
     assert!(
@@ -78,18 +50,18 @@ fn automatic_choice_on_robertson_costs_at_most_twice_a_bdf_run() {
     let y = auto.last();
     for i in 0..3 {
         assert!(
-            (y[i] - ROBERTSON_40[i]).abs() <= 1e-4 * ROBERTSON_40[i],
+            (y[i] - common::ROBERTSON_40[i]).abs() <= 1e-4 * common::ROBERTSON_40[i],
             "y{} = {} vs {}",
             i + 1,
             y[i],
-            ROBERTSON_40[i]
+            common::ROBERTSON_40[i]
         );
     }
 }
 
 #[test]
 fn explicit_method_hands_over_to_bdf_where_robertson_turns_stiff() {
-    let model = Model::compile(&network(ROBERTSON));
+    let model = Model::compile(&network(common::ROBERTSON));
     // Default tolerances and output count, as `simulate --method dop853` runs it.
     let tr = run(&model, 40.0, Method::Dop853, 1e-6, 1e-12, 200);
     // Dop853 from 0 to where it found the problem stiff, BDF from there to the end.
@@ -112,11 +84,11 @@ fn explicit_method_hands_over_to_bdf_where_robertson_turns_stiff() {
     let y = tr.last();
     for i in 0..3 {
         assert!(
-            (y[i] - ROBERTSON_40[i]).abs() <= 1e-4 * ROBERTSON_40[i],
+            (y[i] - common::ROBERTSON_40[i]).abs() <= 1e-4 * common::ROBERTSON_40[i],
             "y{} = {} vs {}",
             i + 1,
             y[i],
-            ROBERTSON_40[i]
+            common::ROBERTSON_40[i]
         );
     }
 }

@@ -1,5 +1,6 @@
 //! Shared by the integration tests: the splitmix64 generator (Steele, Lea & Flood, "Fast
-//! splittable pseudorandom number generators", OOPSLA 2014) and an invented random network.
+//! splittable pseudorandom number generators", OOPSLA 2014), an invented random network, and
+//! Robertson's problem with its reference values.
 // Each test binary uses part of this module.
 #![allow(dead_code)]
 
@@ -113,3 +114,33 @@ pub fn random_network(seed: u64) -> String {
     ));
     s
 }
+
+/// Robertson's problem (Robertson 1966; Hairer & Wanner, Solving ODEs II, §IV.10 uses it as
+/// a stiff test problem) as a thermal network: it looks non-stiff at t = 0 (the only rate is
+/// 0.04 /s) and turns stiff within a few milliseconds, once y2 has formed.
+pub const ROBERTSON: &str = r#"
+[conditions]
+temperature = "298.15 K"
+volume = "1 L"
+path_length = "1 cm"
+[[species]]
+name = "y1"
+initial = "1 M"
+[[species]]
+name = "y2"
+[[species]]
+name = "y3"
+[[thermal]]
+equation = "y1 -> y2"
+rate = { k = "0.04 /s" }
+[[thermal]]
+equation = "2 y2 -> y2 + y3"
+rate = { k = "3e7 /(M s)" }
+[[thermal]]
+equation = "y2 + y3 -> y1 + y3"
+rate = { k = "1e4 /(M s)" }
+"#;
+
+/// Enright & Pryce, ACM TOMS 13(1), 1987, stiff test set problem D2 (Robertson rescaled:
+/// Y2 = 1e4 y2, Y3 = 100 y3): y(40 s).
+pub const ROBERTSON_40: [f64; 3] = [0.7158270687193941, 9.185534764557338e-6, 0.2841637457458413];
