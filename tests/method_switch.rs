@@ -48,14 +48,8 @@ fn automatic_choice_on_robertson_costs_at_most_twice_a_bdf_run() {
     assert_eq!((auto.segments[0].from, auto.segments[0].to), (0.0, 40.0));
     // rtol 1e-6 keeps the global error within about 1e-4 relative on this problem.
     let y = auto.last();
-    for i in 0..3 {
-        assert!(
-            (y[i] - common::ROBERTSON_40[i]).abs() <= 1e-4 * common::ROBERTSON_40[i],
-            "y{} = {} vs {}",
-            i + 1,
-            y[i],
-            common::ROBERTSON_40[i]
-        );
+    for (i, (got, want)) in y.iter().zip(common::ROBERTSON_40).enumerate() {
+        assert!((got - want).abs() <= 1e-4 * want, "y{} = {got} vs {want}", i + 1);
     }
 }
 
@@ -82,14 +76,8 @@ fn explicit_method_hands_over_to_bdf_where_robertson_turns_stiff() {
     );
     assert_eq!(a.rhs + b.rhs, tr.counts.rhs);
     let y = tr.last();
-    for i in 0..3 {
-        assert!(
-            (y[i] - common::ROBERTSON_40[i]).abs() <= 1e-4 * common::ROBERTSON_40[i],
-            "y{} = {} vs {}",
-            i + 1,
-            y[i],
-            common::ROBERTSON_40[i]
-        );
+    for (i, (got, want)) in y.iter().zip(common::ROBERTSON_40).enumerate() {
+        assert!((got - want).abs() <= 1e-4 * want, "y{} = {got} vs {want}", i + 1);
     }
 }
 
