@@ -73,10 +73,16 @@ impl Diagnostic {
     }
 
     /// Attach the position of `origin` in `source` (the text of `file`).
-    pub fn at(mut self, file: &Path, source: &str, origin: &Origin) -> Self {
+    pub fn at(self, file: &Path, source: &str, origin: &Origin) -> Self {
+        self.placed(file, &LineIndex::new(source), origin)
+    }
+
+    /// Attach the position of `origin` in the file whose lines are `lines` (for many
+    /// diagnostics about one file, indexed once).
+    pub fn placed(mut self, file: &Path, lines: &LineIndex, origin: &Origin) -> Self {
         self.file = Some(file.to_path_buf());
         match origin {
-            Origin::Span(r) => self.line_col = Some(line_col(source, r.start)),
+            Origin::Span(r) => self.line_col = Some(lines.line_col(r.start)),
             Origin::CommandLine => self.from_command_line = true,
             Origin::Unknown => {}
         }
@@ -92,15 +98,7 @@ impl Diagnostic {
 
 /// 1-based line and column (in characters) of byte `offset` in `source`.
 pub fn line_col(source: &str, offset: usize) -> (usize, usize) {
-    let offset = offset.min(source.len());
-    let mut off = offset;
-    while off > 0 && !source.is_char_boundary(off) {
-        off -= 1;
-    }
-    let before = &source[..off];
-    let line = before.matches('\n').count() + 1;
-    let col = before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1;
-    (line, col)
+    LineIndex::new(source).line_col(offset)
 }
 
 /// The start of every line of a text, so that locating many positions in one file costs a
@@ -218,14 +216,25 @@ mod tests {
 
     #[test]
     fn line_and_column_are_one_based() {
-        let s = "a = 1\nbb = \"x\"\n";
+        let s = "a = 1\nbb = \"x µ\"\n";
         assert_eq!(line_col(s, 0), (1, 1));
         assert_eq!(line_col(s, 6), (2, 1));
         assert_eq!(line_col(s, 11), (2, 6));
         assert_eq!(line_col(s, 10_000), (3, 1));
+        // The index against a scan from the top (the lines before, the characters since the
+        // last line break), at every offset including ones inside a multi-byte character.
         let index = LineIndex::new(s);
         for off in 0..=s.len() + 3 {
-            assert_eq!(index.line_col(off), line_col(s, off), "offset {off}");
+            let mut b = off.min(s.len());
+            while !s.is_char_boundary(b) {
+                b -= 1;
+            }
+            let before = &s[..b];
+            let scan = (
+                before.matches('\n').count() + 1,
+                before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1,
+            );
+            assert_eq!(index.line_col(off), scan, "offset {off}");
         }
     }
 

@@ -83,27 +83,16 @@ impl<'a> Sink<'a> {
 
     /// Record an error about `field` at `origin`.
     pub(super) fn error(&mut self, field: &str, origin: &Origin, msg: impl Into<String>, help: Option<String>) {
-        let mut d = self.locate(Diagnostic::error(field, msg), origin);
+        let mut d = Diagnostic::error(field, msg).placed(self.path, &self.lines, origin);
         d.help = help;
         self.diags.push(d);
     }
 
     /// Record a warning about `field` at `origin`.
     pub(super) fn warn(&mut self, field: &str, origin: &Origin, msg: impl Into<String>, help: Option<String>) {
-        let mut d = self.locate(Diagnostic::warning(field, msg), origin);
+        let mut d = Diagnostic::warning(field, msg).placed(self.path, &self.lines, origin);
         d.help = help;
         self.diags.push(d);
-    }
-
-    /// `d` placed at `origin` in this file.
-    fn locate(&self, mut d: Diagnostic, origin: &Origin) -> Diagnostic {
-        d = d.in_file(self.path);
-        match origin {
-            Origin::Span(r) => d.line_col = Some(self.lines.line_col(r.start)),
-            Origin::CommandLine => d.from_command_line = true,
-            Origin::Unknown => {}
-        }
-        d
     }
 
     /// Record a diagnostic made elsewhere (a frequency file's, located in that file).

@@ -48,10 +48,7 @@ impl Builder<'_> {
             let e = t.get_ref();
             // Most steps state no origin: look up the built steps only for those that do, so
             // building stays linear in the number of steps.
-            let stated = |r: &Option<_>| {
-                r.as_ref()
-                    .is_some_and(|r: &Spanned<schema::Rate>| r.get_ref().origin.is_some())
-            };
+            let stated = |r: &Option<Spanned<schema::Rate>>| r.as_ref().is_some_and(|r| r.get_ref().origin.is_some());
             if !stated(&e.rate) && !stated(&e.reverse) {
                 continue;
             }
