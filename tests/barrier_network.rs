@@ -699,8 +699,8 @@ fn set_barrier_and_transmission_reach_a_rate_from_frequencies() {
     }
 }
 
-// A bad `--set` value on a rate from frequencies is an error of the command line, not of a line
-// of the file (the value carries no position in the file).
+// A bad `--set` value on a rate from frequencies is an error of the command line named by the
+// key as typed, not of a line of the file (the value carries no position in the file).
 #[test]
 fn a_bad_set_value_on_a_rate_from_frequencies_names_the_command_line() {
     let dir = scratch("set-tst-bad");
@@ -708,13 +708,13 @@ fn a_bad_set_value_on_a_rate_from_frequencies_names_the_command_line() {
     for (set, field, says) in [
         (
             "thermal.ring.transmission=2",
-            "thermal[0].rate.transmission",
-            "2 must lie in (0, 1]",
+            "thermal.ring.transmission",
+            "\"2\" must lie in (0, 1]",
         ),
         (
             "thermal.ring.barrier=-3 kcal/mol",
-            "thermal[0].rate.barrier",
-            "\"-3 kcal/mol\" is negative",
+            "thermal.ring.barrier",
+            "\"-3 kcal/mol\" is below zero",
         ),
     ] {
         let Err(photoledger::error::Error::Invalid(ds)) = build_with(&dir, &text, &[set]) else {

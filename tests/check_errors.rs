@@ -1453,9 +1453,9 @@ fn set_with_an_unknown_key_is_a_usage_error() {
         &r.stderr,
         &[
             "--set conditions.temprature",
-            "no such field",
+            "no such condition",
+            "did you mean conditions.temperature?",
             "keys that can be set",
-            "conditions.temperature",
         ],
     );
     assert!(!r.stderr.contains("invalid: see the problems above"), "{}", r.stderr);
@@ -1520,7 +1520,7 @@ fn a_bad_set_value_is_located_on_the_command_line() {
 
     let (_s, p, r) = check_text("set-negative", SWITCH, &["--set", "species.E-azo.initial=-2 mM"]);
     assert_invalid(&r);
-    diag(&r.stderr, "error", &p, None, "species \"E-azo\".initial")
+    diag(&r.stderr, "error", &p, None, "species.E-azo.initial")
         .says(&["\"-2 mM\" is negative", "(value given with --set)"]);
 
     let (_s, p, r) = check_text("set-zero", SWITCH, &["--set", "conditions.volume=0 mL"]);

@@ -162,10 +162,10 @@ fn values_that_would_overflow_later_are_refused_at_check_naming_their_field() {
         ("conditions.temperature=1e308 K", "conditions.temperature"),
         (
             "thermal.thermal Z to E.barrier=-1e10 kcal/mol",
-            "thermal \"thermal Z to E\"",
+            "thermal.thermal Z to E.barrier",
         ),
-        ("species.E-azo.initial=1e308 M", "species \"E-azo\".initial"),
-        ("light.UV LED.power=1e308 W", "light \"UV LED\""),
+        ("species.E-azo.initial=1e308 M", "species.E-azo.initial"),
+        ("light.UV LED.power=1e308 W", "light.UV LED.power"),
     ] {
         for command in ["check", "ledger", "diagram"] {
             let (code, text) = on_photoswitch(command, set);

@@ -47,7 +47,8 @@ impl Written {
 /// thermal or photo step by its equation, a long-form photo step by "ABSORBER + hν -> TRANSIENT"),
 /// `thermal.NAME[.reverse].FIELD` in the `rate` (or `reverse`) table and
 /// `transient.NAME.channels[J].FIELD` in that channel. A `k` or `barrier` replaces the whole
-/// rate table (a barrier keeps `transmission`). A key that cannot be located is a usage error.
+/// rate table (a barrier keeps `transmission`); a light's `power` replaces its `photon_flux` and
+/// back. A key that cannot be located is a usage error.
 pub fn put_values(text: &str, values: &[(String, Written)], comment: &[String]) -> Result<String> {
     let mut doc: DocumentMut = text
         .parse()
@@ -86,8 +87,17 @@ fn put(doc: &mut DocumentMut, key: &str, new: Value) -> bool {
             let Some(i) = find(doc, section, name) else {
                 return false;
             };
-            let t = doc[section].as_array_of_tables_mut().and_then(|a| a.get_mut(i));
-            t.map(|t| t.insert(field, value(new))).is_some()
+            let Some(t) = doc[section].as_array_of_tables_mut().and_then(|a| a.get_mut(i)) else {
+                return false;
+            };
+            // A light's intensity is given one way: a power replaces a photon flux and back.
+            match (section, field) {
+                ("light", "power") => drop(t.remove("photon_flux")),
+                ("light", "photon_flux") => drop(t.remove("power")),
+                _ => {}
+            }
+            t.insert(field, value(new));
+            true
         }
         "thermal" => {
             let Some((head, field)) = rest.rsplit_once('.') else {

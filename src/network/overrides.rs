@@ -21,17 +21,15 @@
 //! Unnamed steps are named by their display name (a thermal step by its equation, a short-form
 //! photo step by "EQUATION (hν)").
 //!
-//! The same keys address a built network's numbers as typed values: see [`super::params`]
-//! ([`parameter`] reads one, `params::set` writes one without text).
-
-use std::cell::RefCell;
-use std::collections::BTreeSet;
+//! The builder parses each key once against the network built from the file and writes the
+//! value as a typed parameter ([`super::params`]: [`parameter`] reads one, `params::set` writes
+//! one), the same way fits, sweeps and uncertainty draws do; no `--set` text reaches the file's
+//! fields. The last value given for a key wins.
 
 /// Values given on the command line, each replacing the file's value at a dotted key.
 #[derive(Debug, Default, Clone)]
 pub struct Overrides {
     entries: Vec<(String, String)>,
-    used: RefCell<BTreeSet<String>>,
 }
 
 /// The keys that can be overridden, for messages.
@@ -73,40 +71,13 @@ impl Overrides {
             }
             entries.push((k, v));
         }
-        Ok(Overrides {
-            entries,
-            used: RefCell::new(BTreeSet::new()),
-        })
+        Ok(Overrides { entries })
     }
 
     /// Add one override.
     pub fn with(mut self, key: &str, value: &str) -> Self {
         self.entries.push((key.to_string(), value.to_string()));
         self
-    }
-
-    /// The value given for `key` (the last one wins), marking it used.
-    pub fn get(&self, key: &str) -> Option<&str> {
-        let v = self
-            .entries
-            .iter()
-            .rev()
-            .find(|(k, _)| k == key)
-            .map(|(_, v)| v.as_str());
-        if v.is_some() {
-            self.used.borrow_mut().insert(key.to_string());
-        }
-        v
-    }
-
-    /// Keys given that no field asked for.
-    pub fn unused(&self) -> Vec<String> {
-        let used = self.used.borrow();
-        self.entries
-            .iter()
-            .filter(|(k, _)| !used.contains(k))
-            .map(|(k, _)| k.clone())
-            .collect()
     }
 
     /// The `(key, value)` pairs given, in order.
@@ -333,14 +304,17 @@ rate = { k = "1e-3 /s" }
         // A fraction on a rate channel, and a channel that does not exist.
         assert!(errors(&["transient.B*.channels[0].fraction=0.5"]).contains("channels[0].fraction"));
         assert!(errors(&["transient.B*.channels[7].k=1 /s"]).contains("channels[7].k"));
-        // Values out of range name the field and the command line.
+        // Values out of range name the key as typed, the value as written and the rule.
         let e = errors(&["photo.A to B.quantum_yield=1.5"]);
         assert!(
-            e.contains("photo[0].quantum_yield") && e.contains("not a number in [0, 1]"),
+            e.contains("photo.A to B.quantum_yield") && e.contains("\"1.5\" is not a number in [0, 1]"),
             "{e}"
         );
         let e = errors(&["thermal.back.k=-1 /s"]);
-        assert!(e.contains("thermal[0].rate.k"), "{e}");
+        assert!(
+            e.contains("thermal.back.k") && e.contains("\"-1 /s\" must be positive"),
+            "{e}"
+        );
         let e = errors(&["thermal.back.transmission=2"]);
         assert!(e.contains("transmission") && e.contains("(0, 1]"), "{e}");
         // parameter() on unknown names suggests the closest key.

@@ -467,15 +467,10 @@ fn typed(base: &Network, q: &spec::Parameter) -> std::result::Result<(Key, Strin
     Ok((key, unit, map))
 }
 
-/// `base` with `values` written as typed values. Shares (fractions, quantum yields, efficiencies)
-/// that fall are written before those that rise, so a sum rule that holds at the end (the
-/// channels of one transient, drawn together from trajectory counts) holds at every write.
+/// `base` with `values` written as typed values, in [`params::share_order`] (so channels of one
+/// transient drawn together from trajectory counts keep their sum rule at every write).
 pub fn written(base: &Network, values: &[(Key, f64)]) -> Result<Network> {
-    let falls = |&(k, v): &(Key, f64)| {
-        matches!(k, Key::Fraction { .. } | Key::QuantumYield(_) | Key::Efficiency(_)) && v < params::get(base, k).value
-    };
-    let mut ordered: Vec<(Key, f64)> = values.iter().copied().filter(falls).collect();
-    ordered.extend(values.iter().copied().filter(|x| !falls(x)));
+    let ordered = params::share_order(base, values);
     let mut net = base.clone();
     params::set_all(&mut net, &ordered).map_err(|m| Error::Usage(format!("a drawn value: {m}")))?;
     Ok(net)

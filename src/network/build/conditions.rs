@@ -51,36 +51,23 @@ impl Builder<'_> {
                 (&empty, Origin::Span(0..0))
             }
         };
-        let f = self.field(c.temperature.as_ref(), Some("conditions.temperature"));
+        let f = self.field(c.temperature.as_ref());
         if let Some(f) = &f {
             self.at.temperature = f.origin.clone();
         }
         let temperature = self.required("conditions.temperature", f, &at, Quantity::Temperature);
-        let f = self.field(c.volume.as_ref(), Some("conditions.volume"));
+        let f = self.field(c.volume.as_ref());
         let volume = self.required("conditions.volume", f, &at, Quantity::Volume);
-        let f = self.field(c.path_length.as_ref(), Some("conditions.path_length"));
+        let f = self.field(c.path_length.as_ref());
         let path_length = self.required("conditions.path_length", f, &at, Quantity::Length);
-        let irradiated_area = match self.field(c.irradiated_area.as_ref(), Some("conditions.irradiated_area")) {
+        let irradiated_area = match self.field(c.irradiated_area.as_ref()) {
             Some(f) => {
                 self.at.irradiated_area = f.origin.clone();
                 Some(self.positive("conditions.irradiated_area", &f, Quantity::Area)?)
             }
             None => None,
         };
-        let background = if let Some(v) = self.overrides.get("conditions.background") {
-            match v.parse::<f64>() {
-                Ok(x) if x.is_finite() && x >= 0.0 => Spectrum::Constant { value: x, at: None },
-                _ => {
-                    self.error(
-                        "conditions.background",
-                        &Origin::CommandLine,
-                        format!("\"{v}\" is not a non-negative absorbance"),
-                        Some("a number such as 0.05".into()),
-                    );
-                    return None;
-                }
-            }
-        } else if let Some(b) = &c.background {
+        let background = if let Some(b) = &c.background {
             self.spectrum("conditions.background", b, None, Outside::Nearest)?
         } else {
             Spectrum::Constant { value: 0.0, at: None }

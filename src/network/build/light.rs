@@ -21,13 +21,6 @@ struct Entry<'e> {
     at: Origin,
 }
 
-impl Entry<'_> {
-    /// The `--set` key of one of this light's fields.
-    fn key(&self, f: &str) -> String {
-        format!("light.{}.{f}", self.name)
-    }
-}
-
 impl Builder<'_> {
     pub(super) fn lights(&mut self, doc: &schema::NetworkFile, cond: Option<&Conditions>) -> Vec<LightSource> {
         let mut seen: BTreeMap<String, Origin> = BTreeMap::new();
@@ -51,10 +44,10 @@ impl Builder<'_> {
         let e = entry.e;
         let window = {
             let lo = self
-                .field(e.from.as_ref(), None)
+                .field(e.from.as_ref())
                 .and_then(|f| self.positive(&format!("{field}.from"), &f, Quantity::Wavelength));
             let hi = self
-                .field(e.to.as_ref(), None)
+                .field(e.to.as_ref())
                 .and_then(|f| self.positive(&format!("{field}.to"), &f, Quantity::Wavelength));
             (lo.unwrap_or(0.0), hi.unwrap_or(f64::INFINITY))
         };
@@ -172,8 +165,8 @@ impl Builder<'_> {
     /// The power or photon flux of a line, band or lamp.
     fn intensity(&mut self, entry: &Entry) -> Option<Intensity> {
         let (e, field, at) = (entry.e, &entry.field, &entry.at);
-        let p = self.field(e.power.as_ref(), Some(&entry.key("power")));
-        let q = self.field(e.photon_flux.as_ref(), Some(&entry.key("photon_flux")));
+        let p = self.field(e.power.as_ref());
+        let q = self.field(e.photon_flux.as_ref());
         // A value given with --set replaces the file's intensity, however the file gives it.
         let set = |f: &Option<Field>| f.as_ref().is_some_and(|f| f.origin == Origin::CommandLine);
         let (p, q) = match (set(&p), set(&q)) {
@@ -217,14 +210,14 @@ impl Builder<'_> {
         let (e, field, at) = (entry.e, &entry.field, &entry.at);
         match entry.kind.as_str() {
             "line" => {
-                let f = self.field(e.wavelength.as_ref(), Some(&entry.key("wavelength")));
+                let f = self.field(e.wavelength.as_ref());
                 self.required(&format!("{field}.wavelength"), f, at, Quantity::Wavelength)
                     .map(|w| LightKind::Line { wavelength: w })
             }
             "band" => {
-                let c = self.field(e.centre.as_ref(), Some(&entry.key("centre")));
+                let c = self.field(e.centre.as_ref());
                 let c = self.required(&format!("{field}.centre"), c, at, Quantity::Wavelength);
-                let w = self.field(e.fwhm.as_ref(), Some(&entry.key("fwhm")));
+                let w = self.field(e.fwhm.as_ref());
                 let w = self.required(&format!("{field}.fwhm"), w, at, Quantity::Wavelength);
                 match (c, w) {
                     (Some(centre), Some(fwhm)) if fwhm < centre => Some(LightKind::Band { centre, fwhm }),
@@ -285,21 +278,7 @@ impl Builder<'_> {
     /// Sunlight: the reference spectrum times `scale` over the irradiated area.
     fn sun(&mut self, entry: &Entry, cond: Option<&Conditions>) -> Option<LightKind> {
         let (e, field, at) = (entry.e, &entry.field, &entry.at);
-        let scale = match self.overrides.get(&entry.key("scale")) {
-            Some(s) => match s.parse::<f64>() {
-                Ok(x) => Some((x, Origin::CommandLine)),
-                Err(_) => {
-                    self.error(
-                        &format!("{field}.scale"),
-                        &Origin::CommandLine,
-                        format!("\"{s}\" is not a number"),
-                        None,
-                    );
-                    return None;
-                }
-            },
-            None => e.scale.as_ref().map(|s| (*s.get_ref(), span(s))),
-        };
+        let scale = e.scale.as_ref().map(|s| (*s.get_ref(), span(s)));
         let (scale, sat) = scale.unwrap_or((1.0, at.clone()));
         if !scale.is_finite() || scale < 0.0 {
             self.error(

@@ -8,6 +8,7 @@
 //! nothing). Checks that need the whole network are in `../checks.rs`; rates and yields derived
 //! from frequencies in `../derived.rs`; both take the same sink.
 
+mod command_line;
 mod conditions;
 mod evidence;
 mod light;
@@ -55,10 +56,6 @@ pub fn build(loaded: &Loaded, overrides: &Overrides) -> Result<Network> {
         evidence: Default::default(),
     };
     let net = b.network();
-    for key in overrides.unused() {
-        let d = unused::unused_override(loaded, &key);
-        b.sink.push(d.in_file(&loaded.path));
-    }
     let has_error = b.sink.has_error();
     let mut diags = b.sink.into_diagnostics();
     match net {
@@ -123,17 +120,8 @@ impl<'a> Builder<'a> {
         }
     }
 
-    /// A string field from the file, or its `--set` value when `key` was given one.
-    fn field(&self, value: Option<&Text>, key: Option<&str>) -> Option<Field> {
-        if let Some(k) = key
-            && let Some(v) = self.overrides.get(k)
-        {
-            return Some(Field {
-                value: v.to_string(),
-                origin: Origin::CommandLine,
-                key: Some(k.to_string()),
-            });
-        }
+    /// A string field from the file.
+    fn field(&self, value: Option<&Text>) -> Option<Field> {
         value.map(|t| Field {
             value: t.get_ref().clone(),
             origin: span(t),
@@ -190,6 +178,8 @@ impl<'a> Builder<'a> {
             warnings: Vec::new(),
         };
         self.evidence(doc, &mut net);
+        // `--set` values as typed parameters, before the checks of the whole network.
+        self.put_command_line(&mut net);
         super::checks::check_network(&mut self.sink, &self.at, &mut net);
         net.graph = super::checks::graph(&net);
         Some(net)

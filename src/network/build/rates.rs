@@ -11,16 +11,10 @@ use crate::units::{self, Quantity};
 use toml::Spanned;
 
 impl Builder<'_> {
-    /// A rate law; `key` is the `--set` prefix of its fields (e.g. `thermal.NAME`).
-    pub(super) fn rate_law(
-        &mut self,
-        field: &str,
-        r: &Spanned<schema::Rate>,
-        order: u32,
-        key: &str,
-    ) -> Option<RateLaw> {
+    /// A rate law.
+    pub(super) fn rate_law(&mut self, field: &str, r: &Spanned<schema::Rate>, order: u32) -> Option<RateLaw> {
         let at = span(r);
-        let e = &self.rate_with_overrides(r.get_ref(), key);
+        let e = r.get_ref();
         let f = |t: &Option<Text>| t.as_ref().map(Field::of);
         let ways = "one of: k = \"0.04 /s\"; prefactor + activation (Arrhenius); barrier = \"20 kcal/mol\" (Eyring ΔG‡); enthalpy + entropy (Eyring ΔH‡, ΔS‡); barrier + reactant_frequencies + ts_frequencies (transition-state theory)";
         if e.reactant_frequencies.is_some() || e.ts_frequencies.is_some() {
@@ -118,52 +112,6 @@ impl Builder<'_> {
         })
     }
 
-    /// The file's rate with `--set KEY.FIELD` values put in. `k` or `barrier` replace the way
-    /// the rate is given (keeping `transmission` for a barrier); `prefactor`, `activation`,
-    /// `enthalpy`, `entropy` and `transmission` replace a field of the form the file uses.
-    /// Values from the command line carry an empty span.
-    pub(super) fn rate_with_overrides(&self, file: &schema::Rate, key: &str) -> schema::Rate {
-        let cmd = |v: &str| Some(Spanned::new(0..0, v.to_string()));
-        let get = |name: &str| self.overrides.get(&format!("{key}.{name}"));
-        let transmission = |r: &schema::Rate| match get("transmission") {
-            Some(v) => Some(Spanned::new(0..0, v.parse::<f64>().unwrap_or(f64::NAN))),
-            None => r.transmission.clone(),
-        };
-        if let Some(k) = get("k") {
-            return schema::Rate {
-                k: cmd(k),
-                ..Default::default()
-            };
-        }
-        if file.reactant_frequencies.is_some() || file.ts_frequencies.is_some() {
-            // A rate from frequencies keeps its modes: `barrier` is E₀ there.
-            let mut r = file.clone();
-            r.barrier = get("barrier").map_or(r.barrier, cmd);
-            r.transmission = transmission(&r);
-            return r;
-        }
-        if let Some(g) = get("barrier") {
-            return schema::Rate {
-                barrier: cmd(g),
-                transmission: transmission(file),
-                ..Default::default()
-            };
-        }
-        let mut r = file.clone();
-        if r.prefactor.is_some() || r.activation.is_some() {
-            r.prefactor = get("prefactor").map_or(r.prefactor, cmd);
-            r.activation = get("activation").map_or(r.activation, cmd);
-        }
-        if r.enthalpy.is_some() || r.entropy.is_some() {
-            r.enthalpy = get("enthalpy").map_or(r.enthalpy, cmd);
-            r.entropy = get("entropy").map_or(r.entropy, cmd);
-        }
-        if r.barrier.is_some() || r.enthalpy.is_some() || r.entropy.is_some() {
-            r.transmission = transmission(&r);
-        }
-        r
-    }
-
     /// A share from the file: a number, or a percentage string such as "12 %" (= 0.12); range
     /// checks are the caller's.
     pub(super) fn share(&mut self, field: &str, at: &Origin, v: &toml::Value) -> Option<f64> {
@@ -181,26 +129,6 @@ impl Builder<'_> {
                     at,
                     m,
                     Some("a number such as 0.3, or a percentage such as \"30 %\"".into()),
-                );
-                None
-            }
-        }
-    }
-
-    /// A number in [0, 1] given with `--set` (quantum yield, efficiency).
-    pub(super) fn fraction_given(&mut self, field: &str, v: &str) -> Option<f64> {
-        match units::fraction(v) {
-            Ok(x) if (0.0..=1.0).contains(&x) => Some(x),
-            _ => {
-                self.error(
-                    field,
-                    &Origin::CommandLine,
-                    format!("\"{v}\" is not a number in [0, 1]"),
-                    Some(
-                        "a number such as 0.25 or a percentage such as \"25 %\" (it replaces a table by one value at \
-                         every wavelength)"
-                            .into(),
-                    ),
                 );
                 None
             }

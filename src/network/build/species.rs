@@ -24,7 +24,7 @@ impl Builder<'_> {
                 continue;
             };
             let field = format!("species \"{name}\"");
-            let initial = match self.field(e.initial.as_ref(), Some(&format!("species.{name}.initial"))) {
+            let initial = match self.field(e.initial.as_ref()) {
                 Some(f) => match self.quantity(&format!("{field}.initial"), &f, Quantity::Concentration) {
                     Some(v) if v < 0.0 => {
                         self.error(

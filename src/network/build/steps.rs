@@ -79,12 +79,12 @@ impl Builder<'_> {
                 );
                 continue;
             };
-            let Some(law) = self.rate_law(&format!("{field}.rate"), rate, order, &format!("thermal.{name}")) else {
+            let Some(law) = self.rate_law(&format!("{field}.rate"), rate, order) else {
                 continue;
             };
             let k = law.rate_constant(temperature, order);
             let forward = out.len();
-            let reverse_law = self.reverse_law(&field, s, raw.reversible, reverse_order, &name, &eq_at);
+            let reverse_law = self.reverse_law(&field, s, raw.reversible, reverse_order, &eq_at);
             if raw.reversible && reverse_law.is_none() {
                 continue;
             }
@@ -209,16 +209,13 @@ impl Builder<'_> {
         s: &Spanned<schema::Thermal>,
         reversible: bool,
         reverse_order: Option<u32>,
-        name: &str,
         eq_at: &Origin,
     ) -> Option<(RateLaw, u32)> {
         let at = span(s);
         let e = s.get_ref();
         match (&e.reverse, reversible) {
             (Some(r), true) => match reverse_order {
-                Some(o2) => self
-                    .rate_law(&format!("{field}.reverse"), r, o2, &format!("thermal.{name}.reverse"))
-                    .map(|l| (l, o2)),
+                Some(o2) => self.rate_law(&format!("{field}.reverse"), r, o2).map(|l| (l, o2)),
                 None => {
                     self.error(
                         &format!("{field}.equation"),
@@ -322,14 +319,7 @@ impl Builder<'_> {
         if e.name.is_some() && self.too_long(&format!("{field}.name"), &name, &at) {
             return None;
         }
-        let set = self.overrides.get(&format!("photo.{name}.quantum_yield"));
-        let qy = match set {
-            Some(v) => match self.fraction_given(&format!("{field}.quantum_yield"), v) {
-                Some(x) => Spectrum::Constant { value: x, at: None },
-                None => return None,
-            },
-            None => self.spectrum(&format!("{field}.quantum_yield"), qy, None, Outside::Nearest)?,
-        };
+        let qy = self.spectrum(&format!("{field}.quantum_yield"), qy, None, Outside::Nearest)?;
         if qy.max() > 1.0 + 1e-12 {
             self.error(
                 &format!("{field}.quantum_yield"),
@@ -392,37 +382,21 @@ impl Builder<'_> {
             .map_or(format!("{} + hν -> {}", names.species[absorber].name, xn), |n| {
                 n.get_ref().clone()
             });
-        let set = self.overrides.get(&format!("photo.{name}.efficiency"));
-        let eff = match (set, &e.efficiency) {
-            (Some(v), _) => match self.fraction_given(&format!("{field}.efficiency"), v) {
-                Some(x) if x > 0.0 => x,
-                Some(x) => {
+        let eff = match &e.efficiency {
+            Some(v) => {
+                let x = self.share(&format!("{field}.efficiency"), &span(v), v.get_ref())?;
+                if !(0.0..=1.0).contains(&x) || x == 0.0 {
                     self.error(
                         &format!("{field}.efficiency"),
-                        &Origin::CommandLine,
+                        &span(v),
                         format!("{x} must lie in (0, 1]"),
                         None,
                     );
                     return None;
                 }
-                None => return None,
-            },
-            (None, e) => match e {
-                Some(v) => {
-                    let x = self.share(&format!("{field}.efficiency"), &span(v), v.get_ref())?;
-                    if !(0.0..=1.0).contains(&x) || x == 0.0 {
-                        self.error(
-                            &format!("{field}.efficiency"),
-                            &span(v),
-                            format!("{x} must lie in (0, 1]"),
-                            None,
-                        );
-                        return None;
-                    }
-                    x
-                }
-                None => 1.0,
-            },
+                x
+            }
+            None => 1.0,
         };
         self.at.photo.push(at.clone());
         Some(PhotoStep {

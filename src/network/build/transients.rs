@@ -99,8 +99,7 @@ impl Builder<'_> {
                     ));
                     continue;
                 }
-                let ck = format!("transient.{name}.channels[{j}]");
-                let Some(branching) = self.branching(&cf, c, &ck, names, temperature) else {
+                let Some(branching) = self.branching(&cf, c, names, temperature) else {
                     continue;
                 };
                 channels.push((
@@ -263,12 +262,11 @@ impl Builder<'_> {
     }
 
     /// The share of a channel that is not hot: a fixed fraction (or the rest), a first-order
-    /// rate, or bimolecular quenching; `ck` is the `--set` prefix of its fields.
+    /// rate, or bimolecular quenching.
     pub(super) fn branching(
         &mut self,
         cf: &str,
         c: &Spanned<schema::Channel>,
-        ck: &str,
         names: &Names,
         temperature: f64,
     ) -> Option<Branching> {
@@ -276,16 +274,7 @@ impl Builder<'_> {
         let e = c.get_ref();
         let fraction = match (&e.fraction, &e.rate) {
             // The channel taking the rest has no number of its own to set.
-            (Some(f), None) if !matches!(f.get_ref(), toml::Value::String(s) if s.trim() == "rest") => {
-                match self.overrides.get(&format!("{ck}.fraction")) {
-                    Some(v) => Some(Spanned::new(
-                        0..0,
-                        v.parse::<f64>()
-                            .map_or(toml::Value::String(v.to_string()), toml::Value::Float),
-                    )),
-                    None => Some(f.clone()),
-                }
-            }
+            (Some(f), None) if !matches!(f.get_ref(), toml::Value::String(s) if s.trim() == "rest") => Some(f.clone()),
             _ => e.fraction.clone(),
         };
         let branching = match (&fraction, &e.rate, &e.quencher) {
@@ -315,13 +304,13 @@ impl Builder<'_> {
                 }
             },
             (None, Some(r), None) => {
-                let law = self.rate_law(&format!("{cf}.rate"), r, 1, ck)?;
+                let law = self.rate_law(&format!("{cf}.rate"), r, 1)?;
                 let k = law.rate_constant(temperature, 1);
                 Branching::Rate { law, k }
             }
             (None, Some(r), Some(q)) => {
                 let partner = self.resolve_species(&format!("{cf}.quencher"), &span(q), q.get_ref().trim(), names)?;
-                let law = self.rate_law(&format!("{cf}.rate"), r, 2, ck)?;
+                let law = self.rate_law(&format!("{cf}.rate"), r, 2)?;
                 let k2 = law.rate_constant(temperature, 2);
                 Branching::Quenching { partner, law, k2 }
             }

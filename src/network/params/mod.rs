@@ -259,9 +259,42 @@ pub fn addresses(net: &Network) -> Vec<Key> {
 /// `net` unchanged.
 pub fn set(net: &mut Network, key: Key, value: f64) -> Result<(), String> {
     let mut trial = net.clone();
-    refresh::write(&mut trial, key, value).map_err(|m| format!("{}: {m}", key.spell(net)))?;
+    refresh::write(&mut trial, key, value).map_err(|m| refused(net, key, value, &m))?;
     *net = trial;
     Ok(())
+}
+
+/// Set the parameter at `key` to `value` (internal unit); a refusal says why without naming
+/// the key or the value (`is negative`), for callers that name both their own way (a
+/// `--set` value as the user wrote it).
+pub fn set_quietly(net: &mut Network, key: Key, value: f64) -> Result<(), String> {
+    let mut trial = net.clone();
+    refresh::write(&mut trial, key, value)?;
+    *net = trial;
+    Ok(())
+}
+
+/// "KEY: VALUE UNIT reason".
+fn refused(net: &Network, key: Key, value: f64, reason: &str) -> String {
+    let unit = get(net, key).unit;
+    let v = crate::units::sig(value, 6);
+    if unit.is_empty() {
+        format!("{}: {v} {reason}", key.spell(net))
+    } else {
+        format!("{}: {v} {unit} {reason}", key.spell(net))
+    }
+}
+
+/// `values` in an order in which they can be written one by one: shares (fractions, quantum
+/// yields, efficiencies) that fall before those that rise, so a sum rule that holds at the end
+/// (the channels of one transient, the steps of one absorber) holds at every write.
+pub fn share_order(net: &Network, values: &[(Key, f64)]) -> Vec<(Key, f64)> {
+    let falls = |&(k, v): &(Key, f64)| {
+        matches!(k, Key::Fraction { .. } | Key::QuantumYield(_) | Key::Efficiency(_)) && v < get(net, k).value
+    };
+    let mut ordered: Vec<(Key, f64)> = values.iter().copied().filter(falls).collect();
+    ordered.extend(values.iter().copied().filter(|x| !falls(x)));
+    ordered
 }
 
 /// The network on either side of the parameter at `key`, for a derivative: at θ + h and θ − h
@@ -289,7 +322,7 @@ pub fn around(net: &Network, key: Key, h: f64) -> Result<(Network, Network, f64)
 pub fn set_all(net: &mut Network, values: &[(Key, f64)]) -> Result<(), String> {
     let mut trial = net.clone();
     for &(key, value) in values {
-        refresh::write(&mut trial, key, value).map_err(|m| format!("{}: {m}", key.spell(net)))?;
+        refresh::write(&mut trial, key, value).map_err(|m| refused(net, key, value, &m))?;
     }
     *net = trial;
     Ok(())

@@ -10,30 +10,31 @@ use crate::light::{Intensity, LightKind, LightSource};
 use crate::rates::RateLaw;
 use crate::rates::hot::{HotReaction, rrkm_yields};
 
-/// Write `value` at `key` into `net`; the message says what is wrong (without the key).
+/// Write `value` at `key` into `net`. The message says what is wrong with the value without
+/// naming it or the key (the caller puts the value first, as the user wrote it or as a number).
 pub(super) fn write(net: &mut Network, key: Key, value: f64) -> Result<(), String> {
     if !value.is_finite() {
-        return Err(format!("{value} is not a finite number"));
+        return Err("is not a finite number".into());
     }
     let positive = |what: &str| {
         if value > 0.0 {
             Ok(())
         } else {
-            Err(format!("{} must be above zero ({what})", units_free(value)))
+            Err(format!("must be positive ({what})"))
         }
     };
     let non_negative = || {
         if value >= 0.0 {
             Ok(())
         } else {
-            Err(format!("{} must be zero or more", units_free(value)))
+            Err("is negative".to_string())
         }
     };
     let fraction = || {
         if (0.0..=1.0).contains(&value) {
             Ok(())
         } else {
-            Err(format!("{} is not a number in [0, 1]", units_free(value)))
+            Err("is not a number in [0, 1]".to_string())
         }
     };
     match key {
@@ -103,12 +104,13 @@ pub(super) fn write(net: &mut Network, key: Key, value: f64) -> Result<(), Strin
                     non_negative()?;
                     (LightKind::Sun { scale: value, area }, None)
                 }
-                (f, k) => return Err(format!("{f:?} does not apply to a light of kind {k:?}")),
+                (f, k) => return Err(format!("does not apply: {f:?} is not a field of a light of kind {k:?}")),
             };
             let mut lights = net.lights.clone();
             lights[light] = rebuilt(&lights[light], kind, intensity);
             commit_lights(net, lights)
         }
+        Key::Efficiency(_) if value == 0.0 => Err("must lie in (0, 1] (an efficiency of zero is no step)".into()),
         Key::QuantumYield(i) | Key::Efficiency(i) => {
             fraction()?;
             let old = std::mem::replace(&mut net.photo[i].quantum_yield, constant(value));
@@ -133,7 +135,7 @@ pub(super) fn write(net: &mut Network, key: Key, value: f64) -> Result<(), Strin
                 + value;
             if fixed > 1.0 + 1e-9 {
                 return Err(format!(
-                    "the transient's fixed fractions would sum to {fixed:.6}, above 1"
+                    "would make the transient's fixed fractions sum to {fixed:.6}, above 1"
                 ));
             }
             net.transients[transient].channels[channel].branching = Branching::Fraction(value);
@@ -153,11 +155,6 @@ pub(super) fn write(net: &mut Network, key: Key, value: f64) -> Result<(), Strin
     }
 }
 
-/// A plain number for messages (the caller names the key and its unit).
-fn units_free(v: f64) -> String {
-    crate::units::sig(v, 6)
-}
-
 /// The law after writing `value` at `field`, as `--set` does: `k` and `barrier` replace the way
 /// the rate is given (a barrier keeps κ; from frequencies it is E₀ and the modes stay), other
 /// fields change a field of the form the law already has.
@@ -170,16 +167,13 @@ fn new_law(law: &RateLaw, field: RateField, value: f64) -> Result<RateLaw, Strin
     match (field, &mut law) {
         (RateField::K, _) => {
             if value <= 0.0 {
-                return Err(format!("{} must be above zero (a rate constant)", units_free(value)));
+                return Err("must be positive (a rate constant)".into());
             }
             return Ok(RateLaw::Constant(value));
         }
         (RateField::Barrier, RateLaw::Frequencies { barrier, .. }) => {
             if value < 0.0 {
-                return Err(format!(
-                    "{} is below zero: E₀ of a rate from frequencies is ≥ 0",
-                    units_free(value)
-                ));
+                return Err("is below zero: E₀ of a rate from frequencies is ≥ 0".into());
             }
             *barrier = value;
         }
@@ -191,7 +185,7 @@ fn new_law(law: &RateLaw, field: RateField, value: f64) -> Result<RateLaw, Strin
         }
         (RateField::Prefactor, RateLaw::Arrhenius { prefactor, .. }) => {
             if value <= 0.0 {
-                return Err(format!("{} must be above zero (a prefactor)", units_free(value)));
+                return Err("must be positive (a prefactor)".into());
             }
             *prefactor = value;
         }
@@ -205,7 +199,7 @@ fn new_law(law: &RateLaw, field: RateField, value: f64) -> Result<RateLaw, Strin
             | RateLaw::Frequencies { transmission, .. },
         ) => {
             if !(value > 0.0 && value <= 1.0) {
-                return Err(format!("{} must lie in (0, 1]", units_free(value)));
+                return Err("must lie in (0, 1]".into());
             }
             *transmission = value;
         }
@@ -328,7 +322,7 @@ fn yield_sum(net: &Network, absorber: usize) -> Result<(), String> {
         let s: f64 = steps.iter().map(|&i| net.photo[i].yield_at(w)).sum();
         if s > 1.0 + 1e-9 {
             return Err(format!(
-                "the quantum yields and efficiencies of \"{}\" would sum to {} at {} nm, above 1",
+                "would make the quantum yields and efficiencies of \"{}\" sum to {} at {} nm, above 1",
                 net.species[absorber].name,
                 crate::units::sig(s, 6),
                 crate::units::sig(w * 1e9, 5)
@@ -361,7 +355,7 @@ fn hot(net: &mut Network) -> Result<(), String> {
             .collect();
         let y = rrkm_yields(&model.reactant, &reactions, energy, Some(model.cooling), model.grain).map_err(|m| {
             format!(
-                "the yields of the hot ground state \"{}\" cannot be computed: {m}",
+                "leaves the yields of the hot ground state \"{}\" uncomputable: {m}",
                 tr.name
             )
         })?;

@@ -1,5 +1,6 @@
-//! A typed write equals the file rebuilt with the same value as a `--set` override, for every key
-//! of every bundled network; refused values leave the network unchanged.
+//! A typed write (and `--set`, which takes the same path) equals the network built from the file
+//! edited at that key, for every key of every bundled network; refused values leave the network
+//! unchanged.
 
 use super::*;
 use crate::network::{Overrides, build};
@@ -36,36 +37,58 @@ fn moved(p: &Parameter) -> f64 {
 }
 
 #[test]
-fn a_typed_write_equals_the_rebuilt_file_for_every_key_of_every_bundled_network() {
+fn a_typed_write_equals_the_file_edited_at_that_key_for_every_key_of_every_bundled_network() {
+    use crate::file::write::{Written, put_values};
     let mut checked = 0;
     for path in bundled() {
         let loaded = crate::file::load(&path).unwrap();
         let base = build(&loaded, &Overrides::none()).unwrap();
         for key in addresses(&base) {
             let p = get(&base, key);
-            let v = moved(&p);
-            let text = format!("{}={}", p.key, p.text(v));
-            let by_text = match build(&loaded, &Overrides::parse(&[text.as_str()]).unwrap()) {
+            // The value as the file will hold it (7 significant figures), read back.
+            let written = match p.quantity {
+                Some(_) => Written::Quantity {
+                    value: moved(&p),
+                    unit: p.unit.to_string(),
+                },
+                None => Written::Number(moved(&p)),
+            };
+            let v = match &written {
+                Written::Quantity { value, unit } => p
+                    .parse_value(&format!("{} {unit}", crate::units::sig(*value, 7)))
+                    .unwrap(),
+                Written::Number(x) => *x,
+            };
+            let text = put_values(&loaded.text, &[(p.key.clone(), written)], &[])
+                .unwrap_or_else(|e| panic!("{}: {}: {e}", path.display(), p.key));
+            let edited = crate::file::parse_text(&path, text).unwrap();
+            let by_file = match build(&edited, &Overrides::none()) {
                 Ok(n) => n,
                 // A value the file's checks refuse must be refused by the typed write too.
                 Err(_) => {
                     let mut typed = base.clone();
                     assert!(
                         set(&mut typed, key, v).is_err() || p.range == Range::Fraction,
-                        "{}: {text} is refused from text but accepted typed",
-                        path.display()
+                        "{}: {}={v} is refused in the file but accepted typed",
+                        path.display(),
+                        p.key
                     );
                     continue;
                 }
             };
             let mut typed = base.clone();
-            set(&mut typed, key, v).unwrap_or_else(|m| panic!("{}: {text}: {m}", path.display()));
+            set(&mut typed, key, v).unwrap_or_else(|m| panic!("{}: {m}", path.display()));
             assert_eq!(
                 state(&typed),
-                state(&by_text),
-                "{}: {text}: the typed write differs from the rebuilt file",
-                path.display()
+                state(&by_file),
+                "{}: {}={v}: the typed write differs from the edited file",
+                path.display(),
+                p.key
             );
+            // `--set` takes the same path as the typed write.
+            let given = format!("{}={}", p.key, p.text(v));
+            let by_set = build(&loaded, &Overrides::parse(&[given.as_str()]).unwrap()).unwrap();
+            assert_eq!(state(&by_set), state(&typed), "{given}");
             assert_eq!(Key::parse(&base, &p.key), Ok(key), "{}", p.key);
             checked += 1;
         }
