@@ -200,3 +200,73 @@ fn ledger_on_a_written_generated_network() {
     assert_eq!(summary["sensitivities"].as_array().unwrap().len(), 205);
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// Each number the chain's sensitivities are taken to names the network parameter it is: the
+/// key `--set`, `--free` and `[[uncertain]]` take reads back the same value (a rate constant,
+/// the rate constant a barrier gives, a fraction, the mean quantum yield of a scaled spectrum),
+/// on every bundled network and on random ones; only a hot channel's computed share has none.
+#[test]
+fn every_sensitivity_parameter_names_its_network_key() {
+    use photoledger::network::params::{self, Key, RateField};
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("networks");
+    let mut texts: Vec<String> = std::fs::read_dir(&dir)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|e| e == "toml"))
+        .map(|p| std::fs::read_to_string(p).unwrap())
+        .collect();
+    texts.extend((0..8).map(random_network));
+    let mut keyed = 0;
+    for text in texts {
+        let Ok(l) = parse_text(
+            Path::new(env!("CARGO_MANIFEST_DIR")).join("networks/x.toml").as_path(),
+            text,
+        ) else {
+            continue;
+        };
+        let Ok(net) = build_network(&l, &Overrides::none()) else {
+            continue;
+        };
+        let model = Model::compile(&net);
+        for p in build::parameters(&model, &net) {
+            let Some(key) = p.key else {
+                assert!(
+                    matches!(p.slot, build::Slot::Channel(t, c)
+                        if matches!(net.transients[t].channels[c].branching, photoledger::network::Branching::Hot { .. })),
+                    "{} has no key",
+                    p.label
+                );
+                continue;
+            };
+            let read = match key {
+                Key::Rate {
+                    at,
+                    field: RateField::Barrier,
+                } => {
+                    params::get(
+                        &net,
+                        Key::Rate {
+                            at,
+                            field: RateField::K,
+                        },
+                    )
+                    .value
+                }
+                k => params::get(&net, k).value,
+            };
+            let want = match p.slot {
+                build::Slot::YieldFactor(_) => p.shown_per_unit,
+                _ => p.value,
+            };
+            assert!(
+                (read - want).abs() <= 1e-12 * want.abs(),
+                "{} ({}): key reads {read}, the chain uses {want}",
+                p.label,
+                key.spell(&net)
+            );
+            assert_eq!(Key::parse(&net, &key.spell(&net)), Ok(key));
+            keyed += 1;
+        }
+    }
+    assert!(keyed > 40, "only {keyed} keys checked");
+}

@@ -125,6 +125,8 @@ fn yield_derivatives(text: &str) -> Vec<String> {
         .skip_while(|l| !l.contains("top sensitivities"))
         .skip(1)
         .take_while(|l| l.starts_with("    "))
+        // each parameter's key follows on its own line
+        .filter(|l| !l.trim_start().starts_with("key "))
         .map(|l| l.split_whitespace().nth(1).unwrap().to_string())
         .collect()
 }

@@ -22,6 +22,7 @@ use crate::error::{Error, Result};
 use crate::model::Model;
 use crate::model::absorption::g;
 use crate::model::transients::{ShareInput, ShareTotals};
+use crate::network::params::{Key, RateAt, RateField};
 use crate::network::{Branching, Network, PhotoOutcome, Target};
 use crate::rates::RateLaw;
 use crate::units::constants::{AVOGADRO, cross_section_m2};
@@ -71,6 +72,11 @@ pub enum Slot {
 pub struct Parameter {
     /// Display label.
     pub label: String,
+    /// The network parameter it is, where one exists: the key `--set`, `--free` and
+    /// `[[uncertain]]` use (a step's quantum yield or efficiency, a channel's fraction or rate,
+    /// a thermal step's rate constant or, when the file gives one, its barrier). None for a hot
+    /// channel's computed share.
+    pub key: Option<Key>,
     /// Where it sits.
     pub slot: Slot,
     /// Its value (1 for yield factors).
@@ -148,6 +154,16 @@ fn is_barrier(law: &RateLaw) -> bool {
     !matches!(law, RateLaw::Constant(_))
 }
 
+/// The key of a rate: its barrier when the file gives the rate by one (the number a user would
+/// free or sample), else its rate constant.
+fn rate_key(at: RateAt, law: &RateLaw) -> Key {
+    let field = match law {
+        RateLaw::EyringFree { .. } | RateLaw::Frequencies { .. } => RateField::Barrier,
+        _ => RateField::K,
+    };
+    Key::Rate { at, field }
+}
+
 /// Every quantum yield, fraction, rate and barrier of the network that the chain uses.
 pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
     let vals = Values::of(model, net);
@@ -179,6 +195,10 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
             let mean = step.quantum_yield.mean();
             out.push(Parameter {
                 label: format!("{word} of \"{}\" (scaled over its spectrum)", step.name),
+                key: Some(match step.outcome {
+                    crate::network::PhotoOutcome::Products(_) => Key::QuantumYield(p),
+                    crate::network::PhotoOutcome::Transient(_) => Key::Efficiency(p),
+                }),
                 slot: Slot::YieldFactor(p),
                 value: 1.0,
                 shown_per_unit: if mean > 0.0 { mean } else { 1.0 },
@@ -202,8 +222,21 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
                 "1/s" => "rate",
                 _ => "quenching rate constant",
             };
+            let at = RateAt::Channel {
+                transient: t,
+                channel: c,
+            };
+            let key = match &ch.branching {
+                Branching::Fraction(_) => Some(Key::Fraction {
+                    transient: t,
+                    channel: c,
+                }),
+                Branching::Rate { law, .. } | Branching::Quenching { law, .. } => Some(rate_key(at, law)),
+                _ => None,
+            };
             out.push(Parameter {
                 label: format!("{what} {} -> {to}", tr.name),
+                key,
                 slot: Slot::Channel(t, c),
                 value: vals.channel[t][c],
                 unit,
@@ -217,6 +250,7 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
         let order: u32 = re.reactants.iter().map(|x| x.1).sum();
         out.push(Parameter {
             label: format!("rate constant of \"{}\"", re.name),
+            key: net.thermal.get(r).map(|t| rate_key(RateAt::Thermal(r), &t.rate)),
             slot: Slot::Reaction(r),
             value: re.k,
             unit: if order == 1 { "1/s" } else { "L/(mol s)" },

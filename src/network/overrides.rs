@@ -325,4 +325,34 @@ rate = { k = "1e-3 /s" }
         assert!(m.contains("long-form"), "{m}");
         assert!(parameter(&net, "species.A.epsilon").is_err());
     }
+
+    /// Two steps written the same way: the second unnamed one is "EQUATION #2" (a warning says
+    /// so) and each key reaches its own step; a name given twice is an error.
+    #[test]
+    fn steps_written_alike_get_distinct_keys() {
+        let twice = format!("{NET}\n[[thermal]]\nequation = \"C -> A\"\nrate = {{ k = \"3 /s\" }}\n");
+        let l = parse_text(Path::new("t.toml"), twice.clone()).unwrap();
+        let net = super::super::build(&l, &Overrides::parse(&["thermal.C -> A #2.k=5 /s"]).unwrap()).unwrap();
+        assert!(
+            net.warnings.iter().any(|w| w.message.contains("\"C -> A #2\"")),
+            "{:?}",
+            net.warnings
+        );
+        let first = parameter(&net, "thermal.C -> A.k").unwrap().value;
+        assert!(close(parameter(&net, "thermal.C -> A #2.k").unwrap().value, 5.0));
+        assert!(!close(first, 5.0), "the first step moved: {first}");
+        let named = twice.replace(
+            "equation = \"C -> A\"\nrate = { k = \"3 /s\" }",
+            "name = \"back\"\nequation = \"C -> A\"\nrate = { k = \"3 /s\" }",
+        );
+        let l = parse_text(Path::new("t.toml"), named).unwrap();
+        match super::super::build(&l, &Overrides::none()) {
+            Err(Error::Invalid(d)) => assert!(
+                d.iter()
+                    .any(|d| d.message.contains("names an earlier thermal step too")),
+                "{d:?}"
+            ),
+            other => panic!("a name given twice was accepted: {other:?}"),
+        }
+    }
 }

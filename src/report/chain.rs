@@ -349,6 +349,10 @@ pub fn text(s: &Summary) -> String {
                 let _ = write!(line, "  [d ln photons / d barrier {b:+.3} per kcal/mol]");
             }
             let _ = writeln!(o, "{line}");
+            // The key that --set, --free and [[uncertain]] take for this number.
+            if let Some(k) = &x.key {
+                let _ = writeln!(o, "    {:>9} {:>11}  key {k}", "", "");
+            }
         }
     }
     o

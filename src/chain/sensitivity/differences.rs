@@ -41,8 +41,10 @@ pub fn finite_differences(
     let rt_per_kcal = GAS_CONSTANT * model.temperature / (1000.0 * CALORIE);
     let mut out = Vec::new();
     for p in build::parameters(model, net) {
+        let key = p.key.map(|k| k.spell(net));
         let Parameter {
             label,
+            key: _,
             slot,
             value,
             unit,
@@ -85,6 +87,7 @@ pub fn finite_differences(
         let yield_derivative = yield_derivative.into_iter().map(|d| d / shown_per_unit).collect();
         out.push(Sensitivity {
             parameter: label,
+            key,
             value: value * shown_per_unit,
             unit: unit.to_string(),
             elasticity_photons,

@@ -38,6 +38,8 @@ use serde::Serialize;
 pub struct Sensitivity {
     /// What the parameter is.
     pub parameter: String,
+    /// Its key for `--set`, `--free` and `[[uncertain]]`, where it has one.
+    pub key: Option<String>,
     /// Its value, in `unit`.
     pub value: f64,
     /// Unit of `value`, written out.
@@ -74,7 +76,8 @@ pub fn sensitivities(model: &Model, net: &Network, settings: &Settings, start: &
         }
         let dp = moves::derivative(&p, model, net, &values, &chain, &parts, &index);
         let (db, dm) = adjoint.apply(&chain, &solved, &dp);
-        out.push(adjoint.sensitivity(p, &db, &dm, rt_per_kcal));
+        let key = p.key.map(|k| k.spell(net));
+        out.push(adjoint.sensitivity(p, key, &db, &dm, rt_per_kcal));
     }
     Ok(out)
 }
@@ -184,7 +187,7 @@ impl Adjoint {
     }
 
     /// The reported sensitivity of parameter `p` from ∂B and ∂m per unit of it.
-    fn sensitivity(&self, p: Parameter, db: &[f64], dm: &[f64], rt_per_kcal: f64) -> Sensitivity {
+    fn sensitivity(&self, p: Parameter, key: Option<String>, db: &[f64], dm: &[f64], rt_per_kcal: f64) -> Sensitivity {
         let value = p.value;
         let elasticity_photons: Vec<Option<f64>> = (0..self.r)
             .map(|k| (self.m[k] > 0.0 && self.b[k] > 0.0).then(|| value * (dm[k] / self.m[k] - db[k] / self.b[k])))
@@ -201,6 +204,7 @@ impl Adjoint {
         // show a yield factor as the quantum yield itself: d yield / dΦ = (d yield / d factor) / Φ
         let yield_derivative = db.iter().map(|d| d / p.shown_per_unit).collect();
         Sensitivity {
+            key,
             parameter: p.label,
             value: value * p.shown_per_unit,
             unit: p.unit.to_string(),

@@ -11,11 +11,51 @@ use crate::network::diagnostics::{Field, span};
 use crate::network::{PhotoOutcome, PhotoStep, Term, ThermalStep, equation};
 use crate::rates::RateLaw;
 use crate::units::Quantity;
+use std::collections::HashMap;
 use toml::Spanned;
 
 impl Builder<'_> {
+    /// A step's name, distinct among the steps of its `kind` so that every key (`--set`,
+    /// `--free`, `[[uncertain]]`) and every report line addresses one step. A name given twice
+    /// is an error; an unnamed step written like an earlier one is called "EQUATION #2" (a
+    /// warning says so).
+    fn distinct(
+        &mut self,
+        kind: &str,
+        seen: &mut HashMap<String, usize>,
+        name: String,
+        explicit: bool,
+        field: &str,
+        at: &Origin,
+    ) -> Option<String> {
+        let n = seen.entry(name.clone()).or_insert(0);
+        *n += 1;
+        if *n == 1 {
+            return Some(name);
+        }
+        if explicit {
+            self.error(
+                &format!("{field}.name"),
+                at,
+                format!("\"{name}\" names an earlier {kind} step too"),
+                Some("give each step its own name: keys (--set, --free, [[uncertain]]) and reports address steps by name".into()),
+            );
+            return None;
+        }
+        let called = format!("{name} #{n}");
+        self.warn(
+            field,
+            at,
+            format!("is written like an earlier {kind} step; it is called \"{called}\" in keys and reports"),
+            Some("give it a name (name = \"...\") to choose another".into()),
+        );
+        seen.insert(called.clone(), 1);
+        Some(called)
+    }
+
     pub(super) fn thermal(&mut self, doc: &schema::NetworkFile, names: &Names, temperature: f64) -> Vec<ThermalStep> {
         let mut out = Vec::new();
+        let mut seen = HashMap::new();
         for (i, s) in doc.thermal.iter().enumerate() {
             let at = span(s);
             let e = s.get_ref();
@@ -55,6 +95,9 @@ impl Builder<'_> {
             if e.name.is_some() && self.too_long(&format!("{field}.name"), &name, &at) {
                 continue;
             }
+            let Some(name) = self.distinct("thermal", &mut seen, name, e.name.is_some(), &field, &at) else {
+                continue;
+            };
             let order_of = |t: &[Term]| t.iter().map(|x| x.coefficient).sum::<f64>();
             let whole = |o: f64| (o.fract() == 0.0 && (1.0..=3.0).contains(&o)).then_some(o as u32);
             let Some(order) = whole(order_of(&left)) else {
@@ -154,6 +197,7 @@ impl Builder<'_> {
 
     pub(super) fn photo(&mut self, doc: &schema::NetworkFile, names: &Names) -> Vec<PhotoStep> {
         let mut out = Vec::new();
+        let mut seen = HashMap::new();
         for (i, s) in doc.photo.iter().enumerate() {
             let at = span(s);
             let e = s.get_ref();
@@ -168,12 +212,18 @@ impl Builder<'_> {
             let forms = "the short form: equation = \"A -> B\" with quantum_yield; or the long form: absorber = \"A\", excites = \"A*\" (a transient)";
             match (&e.equation, &e.absorber, &e.excites) {
                 (Some(eq), None, None) => {
-                    if let Some(p) = self.photo_short(&field, s, eq, window, names) {
+                    if let Some(mut p) = self.photo_short(&field, s, eq, window, names)
+                        && let Some(n) = self.distinct("photo", &mut seen, p.name, e.name.is_some(), &field, &at)
+                    {
+                        p.name = n;
                         out.push(p);
                     }
                 }
                 (None, Some(a), Some(x)) => {
-                    if let Some(p) = self.photo_long(&field, s, (a, x), window, names) {
+                    if let Some(mut p) = self.photo_long(&field, s, (a, x), window, names)
+                        && let Some(n) = self.distinct("photo", &mut seen, p.name, e.name.is_some(), &field, &at)
+                    {
+                        p.name = n;
                         out.push(p);
                     }
                 }
