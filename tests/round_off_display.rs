@@ -188,10 +188,8 @@ rate = { k = "1e-4 /s" }
 /// Every field of `json` that is a number with its sign bit set and equal to zero.
 fn negative_zeros(json: &serde_json::Value, at: &str, found: &mut Vec<String>) {
     match json {
-        serde_json::Value::Number(n) => {
-            if n.as_f64().is_some_and(|x| x == 0.0 && x.is_sign_negative()) {
-                found.push(at.to_string());
-            }
+        serde_json::Value::Number(n) if n.as_f64().is_some_and(|x| x == 0.0 && x.is_sign_negative()) => {
+            found.push(at.to_string());
         }
         serde_json::Value::Array(a) => {
             for (i, v) in a.iter().enumerate() {
