@@ -248,3 +248,66 @@ fn no_light_counts_zero_photons_never_minus_zero() {
     }
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// An invented intermediate: A → B by light; B absorbs without reacting and goes on by heat to
+/// C or back to A.
+const INTERMEDIATE: &str = r#"
+[conditions]
+temperature = "298.15 K"
+volume = "2 mL"
+path_length = "1 cm"
+[[light]]
+name = "lamp"
+kind = "line"
+wavelength = "365 nm"
+power = "5 mW"
+[[species]]
+name = "A"
+initial = "1 mM"
+epsilon = { at = "365 nm", value = "2000 L/(mol cm)" }
+[[species]]
+name = "B"
+epsilon = { at = "365 nm", value = "100 L/(mol cm)" }
+[[species]]
+name = "C"
+[[photo]]
+equation = "A -> B"
+quantum_yield = 0.3
+[[thermal]]
+equation = "B -> C"
+rate = { k = "1e-3 /s" }
+[[thermal]]
+equation = "B -> A"
+rate = { k = "2e-4 /s" }
+"#;
+
+#[test]
+fn a_dark_ledger_has_no_photon_tail_made_of_round_off() {
+    // With the light at zero a molecule of B absorbs no photon on its way to C or A: the
+    // photon-count distribution is all at 0 and its tail 1 − P(0) is round-off of the chain
+    // solve (it printed "tail beyond 1.1e-16").
+    let dir = std::env::temp_dir().join(format!("photoledger-darktail-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let file = dir.join("intermediate.toml");
+    std::fs::write(&file, INTERMEDIATE).unwrap();
+    let f = file.to_str().unwrap();
+    let (text, run) = photoledger(
+        &["ledger", f, "--set", "light.lamp.power=0 mW", "--from", "B"],
+        &dir.join("out"),
+    );
+    assert!(run.status.success(), "{text}");
+    let line = text
+        .lines()
+        .find(|l| l.contains("photon-count distribution"))
+        .expect(&text);
+    assert!(line.ends_with("0..0 photons, tail beyond 0"), "{line}");
+    // A lit run keeps its real tail (the recursion stops below 1e-9).
+    let (text, run) = photoledger(&["ledger", f], &dir.join("lit"));
+    assert!(run.status.success(), "{text}");
+    let line = text
+        .lines()
+        .find(|l| l.contains("photon-count distribution"))
+        .expect(&text);
+    assert!(line.contains("tail beyond ") && line.contains("e-"), "{line}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
