@@ -348,3 +348,111 @@ fn a_time_check_never_met_points_to_the_yield_check() {
     assert!(text.contains("the kinetics never turn 51.9 % of A into B ("), "{text}");
     assert!(!text.contains("take never"), "{text}");
 }
+
+/// An absorbing intermediate (invented): A → B by light (Φ 0.3); B absorbs but has no
+/// photochemistry, and goes on by heat to C (1e-3 /s) or back to A (2e-4 /s). Every path ends
+/// in C, so the chain's yield of C is 1 (first-order steps: its absorption probability is the
+/// kinetics' long-time yield, `common practice`). When 99 % of A is consumed, about 40 % of it
+/// is still in B (lifetime 1/1.2e-3 s ≈ 14 min): read there, the kinetics made 0.57 C per A and
+/// the check called it a disagreement, with "light against heat: B leaves by light" (B never
+/// reacts by light).
+const TRANSIT: &str = r#"
+[conditions]
+temperature = "298.15 K"
+volume = "2 mL"
+path_length = "1 cm"
+[[light]]
+kind = "line"
+wavelength = "365 nm"
+power = "5 mW"
+[[species]]
+name = "A"
+initial = "1 mM"
+epsilon = { at = "365 nm", value = "2000 L/(mol cm)" }
+[[species]]
+name = "B"
+epsilon = { at = "365 nm", value = "100 L/(mol cm)" }
+[[species]]
+name = "C"
+[[photo]]
+equation = "A -> B"
+quantum_yield = 0.3
+[[thermal]]
+name = "B to C"
+equation = "B -> C"
+rate = { k = "1e-3 /s" }
+[[thermal]]
+name = "B back"
+equation = "B -> A"
+rate = { k = "2e-4 /s" }
+"#;
+
+#[test]
+fn yields_are_read_once_the_intermediates_have_drained_into_the_ends() {
+    let (check, text) = yields_of(TRANSIT);
+    let y = check.yields.as_ref().expect("yields compared");
+    let c = y.ends.iter().find(|e| e.end == "C").expect("C is an end");
+    assert!((c.chain - 1.0).abs() < 1e-9, "{c:?}");
+    // read when under 1 % of the consumed A is still in B: C accounts for the rest
+    assert!(y.agree && c.kinetics > 0.98 && c.kinetics <= 1.0 + 1e-6, "{y:?}");
+    assert!(y.in_transit.is_empty(), "{y:?}");
+    // well past the automatic horizon (99 % of A at ~19 min)
+    let h = horizon::automatic(&Model::compile(&network(TRANSIT)), None).unwrap();
+    assert!(y.at_s > 2.0 * h.time, "{} against {}", y.at_s, h.time);
+    assert!(
+        text.contains("read on until under 1 % of it is still in intermediates (B), at"),
+        "{text}"
+    );
+}
+
+/// An intermediate the kinetics leave behind for good (invented): A → B by light, then
+/// B + D → C with D at half of A. The chain takes the second-order step at the initial [D] and
+/// ends every B in C; the kinetics run out of D and half of the consumed A stays in B.
+const STRANDED: &str = r#"
+[conditions]
+temperature = "298.15 K"
+volume = "2 mL"
+path_length = "1 cm"
+[[light]]
+kind = "line"
+wavelength = "365 nm"
+power = "5 mW"
+[[species]]
+name = "A"
+initial = "1 mM"
+epsilon = { at = "365 nm", value = "2000 L/(mol cm)" }
+[[species]]
+name = "B"
+[[species]]
+name = "D"
+initial = "0.5 mM"
+[[species]]
+name = "C"
+[[photo]]
+equation = "A -> B"
+quantum_yield = 0.3
+[[thermal]]
+name = "capture"
+equation = "B + D -> C"
+rate = { k = "10 L/(mol s)" }
+"#;
+
+#[test]
+fn material_left_in_an_intermediate_is_named_as_the_reason() {
+    let (check, _) = yields_of(STRANDED);
+    let y = check.yields.as_ref().expect("yields compared");
+    assert!(!y.agree, "{y:?}");
+    let b = y.in_transit.iter().find(|x| x.0 == "B").expect("B in transit");
+    // half of the consumed A waits in B: D ran out
+    assert!((b.1 - 0.5).abs() < 0.02, "{b:?}");
+    let first = y.reasons.first().expect("a reason");
+    assert!(
+        first.contains("the kinetics still hold") && first.contains("in B") && first.contains("not yet at an end"),
+        "{first}"
+    );
+    assert!(
+        y.reasons.iter().any(|r| r.contains("\"capture\" is second order")),
+        "{:?}",
+        y.reasons
+    );
+}

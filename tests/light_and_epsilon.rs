@@ -687,3 +687,49 @@ fn simulate_follows_a_daily_light_schedule() {
         assert_contains(&r.stderr, &["--sun-hours", "must be above 0 and at most 24"]);
     }
 }
+
+/// A transient whose energy is "photon" (the mean energy of the photons absorbed on the way
+/// there) keeps it in the dark: the bundled flow network with its only LED at 0 mW was refused
+/// ("its absorber(s) (product) take up none of the light", its hot channels "not a finite
+/// number"). The energy is the one the light would bring shining, so the dark run and the lit
+/// one show the same hot-molecule energy in `check`.
+#[test]
+fn a_photon_energy_transient_runs_in_the_dark() {
+    let root = env!("CARGO_MANIFEST_DIR");
+    let net = format!("{root}/networks/flow-cyclization.toml");
+    let out = std::env::temp_dir().join(format!("photoledger-dark-flow-{}", std::process::id()));
+    let off = ["--set", "light.UV-A LED.power=0 mW"];
+    let r = photoledger(
+        &[
+            &[
+                "simulate",
+                net.as_str(),
+                "--until",
+                "1 h",
+                "--out",
+                out.to_str().unwrap(),
+            ][..],
+            &off[..],
+        ]
+        .concat(),
+    );
+    r.code(0);
+    assert!(r.stdout.contains("incident        0  (no light"), "{}", r.stdout);
+    let lit = photoledger(&["check", net.as_str()]);
+    let dark = photoledger(&[&["check", net.as_str()][..], &off[..]].concat());
+    dark.code(0);
+    let hot = |r: &Run| -> Vec<String> {
+        r.stdout
+            .lines()
+            .filter(|l| l.contains("product-hot") || l.contains("hot yield"))
+            .map(str::to_string)
+            .collect()
+    };
+    assert!(
+        hot(&lit).iter().any(|l| l.contains("from 308.8 kJ/mol")),
+        "{}",
+        lit.stdout
+    );
+    assert_eq!(hot(&lit), hot(&dark));
+    let _ = std::fs::remove_dir_all(&out);
+}

@@ -164,3 +164,152 @@ fn ledger_prints_round_off_derivatives_as_zero_and_keeps_real_sensitivities() {
     assert!((d[0] - 0.625).abs() < 1e-3 && (d[1] + 1.875).abs() < 1e-3, "{d:?}");
     let _ = std::fs::remove_dir_all(&out);
 }
+
+/// An invented network with a photochemical step and no light source at all.
+const NO_LIGHT: &str = r#"
+[about]
+name = "no lamp"
+[conditions]
+temperature = "298.15 K"
+volume = "2 mL"
+path_length = "1 cm"
+[[species]]
+name = "A"
+initial = "1 mM"
+epsilon = { at = "365 nm", value = "2000 L/(mol cm)" }
+[[species]]
+name = "B"
+[[photo]]
+equation = "A -> B"
+quantum_yield = 0.3
+[[thermal]]
+equation = "A -> B"
+rate = { k = "1e-4 /s" }
+"#;
+
+/// Every field of `json` that is a number with its sign bit set and equal to zero.
+fn negative_zeros(json: &serde_json::Value, at: &str, found: &mut Vec<String>) {
+    match json {
+        serde_json::Value::Number(n) if n.as_f64().is_some_and(|x| x == 0.0 && x.is_sign_negative()) => {
+            found.push(at.to_string());
+        }
+        serde_json::Value::Array(a) => {
+            for (i, v) in a.iter().enumerate() {
+                negative_zeros(v, &format!("{at}[{i}]"), found);
+            }
+        }
+        serde_json::Value::Object(o) => {
+            for (k, v) in o {
+                negative_zeros(v, &format!("{at}.{k}"), found);
+            }
+        }
+        _ => {}
+    }
+}
+
+/// A "-0" standing alone in text (not -0.5, not 1e-05).
+fn has_negative_zero(text: &str) -> bool {
+    let b = text.as_bytes();
+    text.match_indices("-0").any(|(i, _)| {
+        let before = i.checked_sub(1).map(|j| b[j]);
+        let after = b.get(i + 2).copied();
+        !before.is_some_and(|c| c.is_ascii_alphanumeric() || c == b'.')
+            && !after.is_some_and(|c| c.is_ascii_digit() || c == b'.' || c == b'e')
+    })
+}
+
+#[test]
+fn no_light_counts_zero_photons_never_minus_zero() {
+    // With no [[light]] the ledger's sums run over no source; the float sum of nothing is −0,
+    // which printed "incident -0", "absorbed by A -0", "incident -0 einstein" in plan and
+    // "-0.0" in summary.json and "-0e0" in photons.csv.
+    let dir = std::env::temp_dir().join(format!("photoledger-nolight-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let file = dir.join("nolight.toml");
+    std::fs::write(&file, NO_LIGHT).unwrap();
+    let f = file.to_str().unwrap();
+    let (text, run) = photoledger(&["simulate", f, "--until", "1 h"], &dir.join("sim"));
+    assert!(run.status.success(), "{text}");
+    let incident = text
+        .lines()
+        .find(|l| l.trim_start().starts_with("incident"))
+        .expect(&text);
+    assert!(incident.contains("incident        0  (no light"), "{incident}");
+    assert!(!has_negative_zero(&text), "{text}");
+    let photons = std::fs::read_to_string(dir.join("sim/photons.csv")).unwrap();
+    assert!(!photons.contains("-0e0"), "{photons}");
+    let (text, run) = photoledger(&["plan", f, "--target", "B > 90 %"], &dir.join("plan"));
+    assert!(run.status.success() || run.status.code() == Some(5), "{text}");
+    assert!(!has_negative_zero(&text), "{text}");
+    for sub in ["sim", "plan"] {
+        let json: serde_json::Value =
+            serde_json::from_str(&std::fs::read_to_string(dir.join(sub).join("summary.json")).unwrap()).unwrap();
+        let mut found = Vec::new();
+        negative_zeros(&json, sub, &mut found);
+        assert!(found.is_empty(), "{found:?}");
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// An invented intermediate: A → B by light; B absorbs without reacting and goes on by heat to
+/// C or back to A.
+const INTERMEDIATE: &str = r#"
+[conditions]
+temperature = "298.15 K"
+volume = "2 mL"
+path_length = "1 cm"
+[[light]]
+name = "lamp"
+kind = "line"
+wavelength = "365 nm"
+power = "5 mW"
+[[species]]
+name = "A"
+initial = "1 mM"
+epsilon = { at = "365 nm", value = "2000 L/(mol cm)" }
+[[species]]
+name = "B"
+epsilon = { at = "365 nm", value = "100 L/(mol cm)" }
+[[species]]
+name = "C"
+[[photo]]
+equation = "A -> B"
+quantum_yield = 0.3
+[[thermal]]
+equation = "B -> C"
+rate = { k = "1e-3 /s" }
+[[thermal]]
+equation = "B -> A"
+rate = { k = "2e-4 /s" }
+"#;
+
+#[test]
+fn a_dark_ledger_has_no_photon_tail_made_of_round_off() {
+    // With the light at zero a molecule of B absorbs no photon on its way to C or A: the
+    // photon-count distribution is all at 0 and its tail 1 − P(0) is round-off of the chain
+    // solve (it printed "tail beyond 1.1e-16").
+    let dir = std::env::temp_dir().join(format!("photoledger-darktail-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let file = dir.join("intermediate.toml");
+    std::fs::write(&file, INTERMEDIATE).unwrap();
+    let f = file.to_str().unwrap();
+    let (text, run) = photoledger(
+        &["ledger", f, "--set", "light.lamp.power=0 mW", "--from", "B"],
+        &dir.join("out"),
+    );
+    assert!(run.status.success(), "{text}");
+    let line = text
+        .lines()
+        .find(|l| l.contains("photon-count distribution"))
+        .expect(&text);
+    assert!(line.ends_with("0..0 photons, tail beyond 0"), "{line}");
+    // A lit run keeps its real tail (the recursion stops below 1e-9).
+    let (text, run) = photoledger(&["ledger", f], &dir.join("lit"));
+    assert!(run.status.success(), "{text}");
+    let line = text
+        .lines()
+        .find(|l| l.contains("photon-count distribution"))
+        .expect(&text);
+    assert!(line.contains("tail beyond ") && line.contains("e-"), "{line}");
+    let _ = std::fs::remove_dir_all(&dir);
+}

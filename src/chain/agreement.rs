@@ -72,8 +72,13 @@ pub struct Yields {
     pub at_s: f64,
     /// Share of the start mixture the kinetics have consumed by then.
     pub converted: f64,
-    /// Why the kinetics were read there (the automatic horizon in words).
+    /// Why the kinetics were read there (the automatic horizon in words, and the wait for the
+    /// intermediates to drain into the ends when it was needed).
     pub horizon: String,
+    /// What is still on its way at that time: each intermediate (a species the molecule passes
+    /// through that is neither in the start mixture nor an end) with its amount per molecule of
+    /// the start mixture consumed; empty when less than [`YIELD_CLOSE`] is in transit in all.
+    pub in_transit: Vec<(String, f64)>,
     /// Every end with a yield in the chain.
     pub ends: Vec<YieldCheck>,
     /// True when every end agrees.
@@ -248,6 +253,7 @@ pub fn check(
             model,
             net,
             run,
+            plan.trajectory.zero_within(),
             plan.state(),
             plan.time
                 .unwrap_or(plan.trajectory.times.last().copied().unwrap_or(0.0)),
@@ -322,7 +328,15 @@ fn short_of(
 
 /// The reasons, from the model, why the chain's time and the kinetics' differ: the state `y`
 /// of the kinetics at time `t` against the chain's assumptions.
-fn reasons(model: &Model, net: &Network, run: &ChainRun, y: &[f64], t: f64, end: usize) -> Result<Vec<String>> {
+fn reasons(
+    model: &Model,
+    net: &Network,
+    run: &ChainRun,
+    zero: crate::units::display::ZeroWithin,
+    y: &[f64],
+    t: f64,
+    end: usize,
+) -> Result<Vec<String>> {
     let ns = model.n_species();
     let c0 = run
         .settings
@@ -351,7 +365,7 @@ fn reasons(model: &Model, net: &Network, run: &ChainRun, y: &[f64], t: f64, end:
         let filters: Vec<&str> = model
             .absorbers
             .iter()
-            .filter(|&&i| c0[i] <= 0.0 && y[i] > 0.0)
+            .filter(|&&i| c0[i] <= 0.0 && zero.shown(y[i]) > 0.0)
             .map(|&i| model.species[i].as_str())
             .collect();
         let why = match run.settings.light {
@@ -391,7 +405,7 @@ fn reasons(model: &Model, net: &Network, run: &ChainRun, y: &[f64], t: f64, end:
                     "[{}] {} in the chain, {} in the kinetics at {at}",
                     model.species[i],
                     format_concentration(c0[i]),
-                    format_concentration(y[i].max(0.0))
+                    format_concentration(zero.shown(y[i]).max(0.0))
                 )
             })
             .collect();
@@ -456,17 +470,29 @@ fn compare_yields(model: &Model, net: &Network, run: &ChainRun) -> Result<std::r
             h.reason()
         )));
     };
-    let y = plan.state();
     let zero = plan.trajectory.zero_within();
     // The chain follows every molecule to an end; the kinetics' mixture at the horizon still
     // holds what has not reacted, so their yields are per molecule consumed.
-    let consumed: f64 = start.iter().map(|&i| model.initial[i] - zero.shown(y[i])).sum();
-    if consumed.is_nan() || consumed <= 0.0 {
+    let consumed_in = |y: &[f64]| -> f64 { start.iter().map(|&i| model.initial[i] - zero.shown(y[i])).sum() };
+    let horizon_at = *plan.trajectory.times.last().unwrap_or(&h.time);
+    let at_horizon = consumed_in(plan.state());
+    if at_horizon.is_nan() || at_horizon <= 0.0 {
         return Ok(Err(format!(
             "the kinetics consume none of the start mixture by {}",
-            format_time(*plan.trajectory.times.last().unwrap_or(&h.time))
+            format_time(horizon_at)
         )));
     }
+    // Molecules the horizon leaves in intermediates have not ended yet, while the chain counts
+    // where they will end: read the kinetics once they have drained into the ends.
+    let intermediates: Vec<usize> = (0..ns)
+        .filter(|&i| !start.contains(&i) && !run.chain.states.get(i).is_none_or(|st| st.absorbing))
+        .filter(|&i| a.visits.get(i).is_some_and(|v| *v > 0.0))
+        .collect();
+    let transit_share =
+        |y: &[f64]| -> f64 { intermediates.iter().map(|&i| zero.shown(y[i]).max(0.0)).sum::<f64>() / consumed_in(y) };
+    let drained = drain(model, plan, &transit_share)?;
+    let (at, y) = (drained.time, drained.state.as_slice());
+    let consumed = consumed_in(y);
     let chain_zero = crate::units::display::ZeroWithin::relative(
         crate::units::display::largest(a.yields.iter().copied()),
         crate::units::display::CHAIN_ROUNDOFF,
@@ -497,31 +523,179 @@ fn compare_yields(model: &Model, net: &Network, run: &ChainRun) -> Result<std::r
     if ends.is_empty() {
         return Ok(Err("no end of the chain is a species the kinetics follow".into()));
     }
-    let at = *plan.trajectory.times.last().unwrap_or(&h.time);
     let agree = differing.is_empty();
-    let reasons = if agree {
+    let in_transit: Vec<(String, f64)> = if transit_share(y) > YIELD_CLOSE {
+        intermediates
+            .iter()
+            .map(|&i| (model.species[i].clone(), zero.shown(y[i]).max(0.0) / consumed))
+            .filter(|x| x.1 > 0.0)
+            .collect()
+    } else {
+        Vec::new()
+    };
+    let mut reasons = if agree {
         Vec::new()
     } else {
-        yield_reasons(model, net, run, &h, y, at, &start, &differing)?
+        yield_reasons(model, net, run, &h, zero, y, at, &start, &differing)?
+    };
+    if !agree && !in_transit.is_empty() {
+        let amounts: Vec<String> = in_transit
+            .iter()
+            .map(|(n, x)| format!("{} in {n}", sig(*x, 3)))
+            .collect();
+        reasons.insert(
+            0,
+            format!(
+                "at {} the kinetics still hold {} per molecule consumed in intermediates ({}), not yet at an end{}, \
+                 while the chain counts where each molecule will end",
+                format_time(at),
+                sig(transit_share(y), 3),
+                amounts.join(", "),
+                match drained.ended {
+                    Wait::Steady => " and never to reach one: nothing changes any more".to_string(),
+                    _ => format!(
+                        " and still on their way {} times after the automatic horizon",
+                        sig(DRAIN_LONGEST, 4)
+                    ),
+                }
+            ),
+        );
+        // the catch-all is no reason when this one applies
+        reasons.retain(|r| !r.starts_with("none of the known causes"));
+    }
+    let horizon = match drained.ended {
+        Wait::NotNeeded => h.reason(),
+        Wait::Drained => format!(
+            "{}; read on until under {} % of it is still in intermediates ({}), at {}",
+            h.reason(),
+            sig(100.0 * YIELD_CLOSE, 2),
+            intermediate_names(model, &intermediates),
+            format_time(at)
+        ),
+        Wait::Steady | Wait::Cap => format!(
+            "{}; read on until the intermediates ({}) drained, which they had not by {}",
+            h.reason(),
+            intermediate_names(model, &intermediates),
+            format_time(at)
+        ),
     };
     let names: Vec<String> = start.iter().map(|&i| model.species[i].clone()).collect();
     Ok(Ok(Yields {
         method: format!(
             "the chain's yield of each end is the probability that a molecule followed from the start mixture ({}) \
-             ends there; the kinetics' is the amount of it formed by the horizon per molecule of that mixture \
-             consumed by then (amounts within the integrator's absolute tolerance of zero counted as 0); exact for first-order steps, \
-             so they agree within a factor {YIELD_FACTOR} or {} of a molecule",
+             ends there; the kinetics' is the amount of it formed per molecule of that mixture consumed, read at the \
+             automatic horizon or, when more than {} of a molecule is then still in intermediates, once under that \
+             is (amounts within the integrator's absolute tolerance of zero counted as 0); exact for first-order \
+             steps, so they agree within a factor {YIELD_FACTOR} or {} of a molecule",
             names.join(" + "),
+            sig(YIELD_CLOSE, 2),
             sig(YIELD_CLOSE, 2)
         ),
         start: names,
         at_s: at,
         converted: consumed / total,
-        horizon: h.reason(),
+        horizon,
+        in_transit,
         ends,
         agree,
         reasons,
     }))
+}
+
+/// How the wait for the intermediates ended.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Wait {
+    /// Less than [`YIELD_CLOSE`] was in intermediates at the horizon already.
+    NotNeeded,
+    /// The run went on until less than [`YIELD_CLOSE`] was in intermediates.
+    Drained,
+    /// The concentrations stopped changing with more than that in intermediates.
+    Steady,
+    /// Still more at [`DRAIN_LONGEST`] times the horizon (or the automatic horizon's cap).
+    Cap,
+}
+
+/// The kinetics' state where the yields are read.
+struct Reading {
+    time: f64,
+    state: Vec<f64>,
+    ended: Wait,
+}
+
+/// The longest wait for the intermediates to drain, as a multiple of the automatic horizon:
+/// twelve doublings. An intermediate that outlives the conversion of the start mixture by a
+/// factor of 4096 is a product for any practical purpose, and is reported as still in transit.
+pub const DRAIN_LONGEST: f64 = 4096.0;
+
+/// Outputs per doubling stretch of [`drain`]: the reading is the first output with less than
+/// [`YIELD_CLOSE`] in transit, so it lies within 1/`DRAIN_OUTPUTS` of the stretch's length of
+/// the moment it drained.
+const DRAIN_OUTPUTS: usize = 64;
+
+/// Go on from the automatic horizon's `plan` (its model, the plan's tolerances, its light) in stretches
+/// that double the time, until the share of the consumed start mixture in intermediates,
+/// `transit(state)`, is at most [`YIELD_CLOSE`]; or until nothing changes any more, or
+/// [`DRAIN_LONGEST`] times the horizon (at most [`crate::plan::horizon::CAP`]).
+fn drain(model: &Model, plan: &crate::plan::Plan, transit: &dyn Fn(&[f64]) -> f64) -> Result<Reading> {
+    let tr = &plan.trajectory;
+    let (mut t, mut y) = (*tr.times.last().unwrap_or(&0.0), tr.last().to_vec());
+    let share = transit(&y);
+    if share.is_nan() || share <= YIELD_CLOSE || t.is_nan() || t <= 0.0 {
+        return Ok(Reading {
+            time: t,
+            state: y,
+            ended: Wait::NotNeeded,
+        });
+    }
+    let ns = model.n_species();
+    let last = (t * DRAIN_LONGEST).min(crate::plan::horizon::CAP).max(t);
+    while t < last {
+        let until = (2.0 * t).min(last);
+        let opts = crate::kinetics::Options {
+            rtol: crate::plan::PlanOptions::default().rtol,
+            atol: tr.atol,
+            outputs: DRAIN_OUTPUTS,
+            schedule: tr.schedule,
+            ..crate::kinetics::Options::until(until)
+        };
+        let run = crate::kinetics::simulate_from(model, t, &y, &opts, &mut |_| {})?;
+        if let Some(k) = (1..run.times.len()).find(|&k| transit(&run.states[k]) <= YIELD_CLOSE) {
+            return Ok(Reading {
+                time: run.times[k],
+                state: run.states[k].clone(),
+                ended: Wait::Drained,
+            });
+        }
+        let end = run.last().to_vec();
+        // nothing changes any more: every concentration moved less than the tolerances
+        let still = end[..ns]
+            .iter()
+            .zip(&y[..ns])
+            .all(|(a, b)| (a - b).abs() <= tr.atol.max(1e-12) + 1e-6 * b.abs());
+        t = *run.times.last().unwrap_or(&until);
+        y = end;
+        if still {
+            return Ok(Reading {
+                time: t,
+                state: y,
+                ended: Wait::Steady,
+            });
+        }
+    }
+    Ok(Reading {
+        time: t,
+        state: y,
+        ended: Wait::Cap,
+    })
+}
+
+/// The intermediates' names for a sentence: "B", "adduct, closed".
+fn intermediate_names(model: &Model, intermediates: &[usize]) -> String {
+    intermediates
+        .iter()
+        .map(|&i| model.species[i].as_str())
+        .collect::<Vec<_>>()
+        .join(", ")
 }
 
 /// Why the chain's yields and the kinetics' differ for the `differing` ends, from the model and
@@ -532,6 +706,7 @@ fn yield_reasons(
     net: &Network,
     run: &ChainRun,
     h: &crate::plan::horizon::Horizon,
+    zero: crate::units::display::ZeroWithin,
     y: &[f64],
     t: f64,
     start: &[usize],
@@ -578,7 +753,7 @@ fn yield_reasons(
                         "[{}] {} in the chain, {} in the kinetics at {at}",
                         model.species[i],
                         format_concentration(c0[i]),
-                        format_concentration(y[i].max(0.0))
+                        format_concentration(zero.shown(y[i]).max(0.0))
                     )
                 })
                 .collect();
@@ -601,6 +776,10 @@ fn yield_reasons(
     let ode_k = absorption_rates(model, net, Light::Stirred, &y[..ns])?;
     for (slot, &s) in model.absorbers.iter().enumerate() {
         if !visited(s) {
+            continue;
+        }
+        // light it absorbs without reacting does not compete with the heat
+        if !model.outcomes.iter().any(|o| o.slot == slot && !o.returns) {
             continue;
         }
         let thermal: Vec<&str> = model

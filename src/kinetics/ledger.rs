@@ -110,6 +110,25 @@ pub struct Ledger {
     pub unproductive_fraction: f64,
 }
 
+impl Ledger {
+    /// Absorbed by solvent and vessel from all sources, einstein.
+    pub fn background(&self) -> f64 {
+        total(self.sources.iter().map(|s| s.background))
+    }
+
+    /// Passed through the sample from all sources, einstein.
+    pub fn transmitted(&self) -> f64 {
+        total(self.sources.iter().map(|s| s.transmitted))
+    }
+}
+
+/// The sum of photon counts, starting from +0: the standard library's float `Sum` starts from
+/// −0 (so that a sum of −0 terms stays −0), which makes an empty sum, a network with no light
+/// source, read "−0 einstein" in text, CSV and JSON. A count of no photons is +0.
+pub fn total(counts: impl IntoIterator<Item = f64>) -> f64 {
+    counts.into_iter().fold(0.0, |a, b| a + b)
+}
+
 /// Read the ledger at time `t` from state `y` of `model` (light on throughout).
 pub fn read(model: &Model, layout: &LedgerLayout, t: f64, y: &[f64]) -> Ledger {
     read_lit(model, layout, t, t, y)
@@ -129,7 +148,7 @@ pub fn read_lit(model: &Model, layout: &LedgerLayout, t: f64, lit: f64, y: &[f64
             .collect();
         let background = y[layout.background(s)] * v;
         let transmitted = y[layout.transmitted(s)] * v;
-        balance_num += incident - absorbed.iter().sum::<f64>() - background - transmitted;
+        balance_num += incident - total(absorbed.iter().copied()) - background - transmitted;
         sources.push(SourceLedger {
             source: name.clone(),
             incident,
@@ -138,12 +157,12 @@ pub fn read_lit(model: &Model, layout: &LedgerLayout, t: f64, lit: f64, y: &[f64
             transmitted,
         });
     }
-    let incident: f64 = sources.iter().map(|s| s.incident).sum();
+    let incident = total(sources.iter().map(|s| s.incident));
     let mut by_absorber = Vec::new();
-    let background: f64 = sources.iter().map(|s| s.background).sum();
+    let background = total(sources.iter().map(|s| s.background));
     let mut unproductive = 0.0;
     for (slot, name) in absorbers.iter().enumerate() {
-        let absorbed: f64 = sources.iter().map(|s| s.absorbed[slot]).sum();
+        let absorbed = total(sources.iter().map(|s| s.absorbed[slot]));
         let mut outcomes = Vec::new();
         let mut productive = 0.0;
         let mut returned_listed = 0.0;
@@ -169,7 +188,7 @@ pub fn read_lit(model: &Model, layout: &LedgerLayout, t: f64, lit: f64, y: &[f64
             productive,
         });
     }
-    let absorbed: f64 = by_absorber.iter().map(|a| a.absorbed).sum();
+    let absorbed = total(by_absorber.iter().map(|a| a.absorbed));
     let products = model
         .photoproducts()
         .into_iter()
@@ -202,7 +221,7 @@ pub fn read_lit(model: &Model, layout: &LedgerLayout, t: f64, lit: f64, y: &[f64
             by_species.push((a.species.clone(), a.absorbed));
         }
     }
-    let other: f64 = by_species.iter().map(|x| x.1).sum::<f64>() + background;
+    let other = total(by_species.iter().map(|x| x.1)) + background;
     let inner_filter = InnerFilter {
         followed: model.followed.iter().map(|&i| model.species[i].clone()).collect(),
         reactants,

@@ -135,6 +135,28 @@ impl LightSource {
         )
     }
 
+    /// The same source shining when it is switched off (zero power or photon flux: a unit one;
+    /// the sun at scale 0: scale 1), for what depends only on the shape of its spectrum, such as
+    /// the mean energy of the photons a step would take up; the source itself when it shines.
+    pub fn shining(&self) -> LightSource {
+        if self.bins.iter().any(|b| b.flux > 0.0) {
+            return self.clone();
+        }
+        let intensity = match self.intensity {
+            Some(Intensity::Power(_)) => Some(Intensity::Power(1.0)),
+            Some(Intensity::PhotonFlux(_)) => Some(Intensity::PhotonFlux(1.0)),
+            None => None,
+        };
+        let kind = match &self.kind {
+            LightKind::Sun { area, .. } => LightKind::Sun {
+                scale: 1.0,
+                area: *area,
+            },
+            k => k.clone(),
+        };
+        Self::with_breaks(self.name.clone(), kind, intensity, self.window, self.breaks.clone())
+    }
+
     /// Whether the window cuts away any of the emitted power (more than 1 part in 10⁹).
     pub fn window_cuts(&self) -> bool {
         self.power() < self.emitted_power * (1.0 - 1e-9)

@@ -334,9 +334,10 @@ impl Model {
         self.bins.iter().filter(|b| b.source == s).map(|b| b.flux).sum()
     }
 
-    /// Total photon flux of all sources, einstein/s.
+    /// Total photon flux of all sources, einstein/s; +0 with no light source (the float `Sum`
+    /// starts from −0, so an empty sum would read "−0").
     pub fn total_flux(&self) -> f64 {
-        self.bins.iter().map(|b| b.flux).sum()
+        self.bins.iter().map(|b| b.flux).fold(0.0, |a, b| a + b)
     }
 
     /// A copy with every light bin's photon flux multiplied by `factor` (0 for darkness).
@@ -370,7 +371,7 @@ impl Model {
         self.bins
             .iter()
             .map(|b| b.flux * crate::units::constants::molar_photon_energy(b.wavelength))
-            .sum()
+            .fold(0.0, |a, b| a + b)
     }
 
     /// Index of species `name`.

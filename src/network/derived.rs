@@ -709,8 +709,22 @@ pub(super) fn absorbed_photon_energy(
 
 /// The mean molar energy (J/mol) of the photons the photochemical steps `leading` take up from
 /// `lights`: each wavelength bin weighted by ε(λ)·Φ(λ)·q(λ) of every step (optically thin; Φ the
-/// step's efficiency or quantum yield). None when none is taken up.
+/// step's efficiency or quantum yield). None when none is taken up. When every light is off (a
+/// dark run) no photon reaches the transient, and the energy is the one the same lights would
+/// bring shining ([`LightSource::shining`]: the shape of each spectrum at unit intensity), so a
+/// network valid in the light stays valid in the dark.
 pub(crate) fn mean_photon_energy(lights: &[LightSource], species: &[Species], leading: &[&PhotoStep]) -> Option<f64> {
+    if lights.iter().flat_map(|l| &l.bins).all(|b| b.flux <= 0.0) {
+        let shining: Vec<LightSource> = lights.iter().map(LightSource::shining).collect();
+        if shining.iter().flat_map(|l| &l.bins).any(|b| b.flux > 0.0) {
+            return weighted_photon_energy(&shining, species, leading);
+        }
+    }
+    weighted_photon_energy(lights, species, leading)
+}
+
+/// [`mean_photon_energy`] under `lights` as they are.
+fn weighted_photon_energy(lights: &[LightSource], species: &[Species], leading: &[&PhotoStep]) -> Option<f64> {
     let (mut w, mut we) = (0.0, 0.0);
     for b in lights.iter().flat_map(|l| &l.bins) {
         let take: f64 = leading

@@ -297,10 +297,13 @@ pub fn text(s: &Summary) -> String {
         let _ = writeln!(o, "    {:>14.4}  {} ({})", v.visits, v.state, v.kind);
     }
     if let (Some(t), Some(n)) = (s.distribution_tail, s.distribution_max_photons) {
+        // the tail is 1 − Σ P(k ≤ n): a probability of the chain solve, round-off within
+        // CHAIN_ROUNDOFF of 1 (a dark run's 1 − 1 = 1.1e-16 reads 0)
+        let t = display::ZeroWithin::relative(1.0, display::CHAIN_ROUNDOFF).shown(t);
         let _ = writeln!(
             o,
-            "  photon-count distribution: 0..{n} photons, tail beyond {:.1e}{}",
-            t,
+            "  photon-count distribution: 0..{n} photons, tail beyond {}{}",
+            if t == 0.0 { "0".to_string() } else { format!("{t:.1e}") },
             if s.distribution_truncated {
                 " (stopped at the photon limit: raise --max-photons)"
             } else {

@@ -52,8 +52,8 @@ pub fn photons_csv(model: &Model, tr: &Trajectory) -> String {
         let l = tr.ledger(model, k);
         let mut row = vec![sci(*time), sci(l.incident)];
         row.extend(l.by_absorber.iter().map(|a| sci(a.absorbed)));
-        let bg: f64 = l.sources.iter().map(|x| x.background).sum();
-        let tr_: f64 = l.sources.iter().map(|x| x.transmitted).sum();
+        let bg = l.background();
+        let tr_ = l.transmitted();
         row.push(sci(bg));
         row.push(sci(tr_));
         row.extend((0..model.outcomes.len()).map(|o| sci(y[tr.layout.outcome(o)] * model.volume)));
@@ -341,20 +341,8 @@ pub fn photons_svg(net: &Network, model: &Model, tr: &Trajectory, log_time: bool
             ledgers.iter().map(|l| l.by_absorber[k].absorbed).collect(),
         ));
     }
-    series.push((
-        "background".into(),
-        ledgers
-            .iter()
-            .map(|l| l.sources.iter().map(|s| s.background).sum())
-            .collect(),
-    ));
-    series.push((
-        "transmitted".into(),
-        ledgers
-            .iter()
-            .map(|l| l.sources.iter().map(|s| s.transmitted).sum())
-            .collect(),
-    ));
+    series.push(("background".into(), ledgers.iter().map(|l| l.background()).collect()));
+    series.push(("transmitted".into(), ledgers.iter().map(|l| l.transmitted()).collect()));
     line_plot(
         &format!("{}: where the photons went", net.about.name),
         "photons",

@@ -343,8 +343,8 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
             sig(a.absorbed, 4),
         );
     }
-    let bg: f64 = p.sources.iter().map(|x| x.background).sum();
-    let tr: f64 = p.sources.iter().map(|x| x.transmitted).sum();
+    let bg = p.background();
+    let tr = p.transmitted();
     let _ = writeln!(o, "  background      {}", sig(bg, 4));
     let _ = writeln!(o, "  transmitted     {}", sig(tr, 4));
     if !dark {

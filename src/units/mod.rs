@@ -577,8 +577,13 @@ pub fn epsilon_to_per_cm(eps_l_per_mol_m: f64) -> f64 {
 }
 
 /// `v` rounded to `n` significant figures, without trailing zeros, in plain or e-notation.
+/// Zero reads "0" whatever its sign bit: −0 (an empty float sum, a product with −1) is no
+/// quantity a reader should see signed.
 pub fn sig(v: f64, n: usize) -> String {
-    if v == 0.0 || !v.is_finite() {
+    if v == 0.0 {
+        return "0".into();
+    }
+    if !v.is_finite() {
         return format!("{v}");
     }
     let mag = v.abs().log10().floor() as i32;
@@ -596,6 +601,14 @@ pub fn sig(v: f64, n: usize) -> String {
 
 #[cfg(test)]
 mod tests {
+    #[test]
+    fn zero_has_no_sign_when_shown() {
+        assert_eq!(super::sig(-0.0, 4), "0");
+        assert_eq!(super::sig(0.0, 4), "0");
+        assert_eq!(super::sig(-1.5e-20, 2), "-1.5e-20");
+        assert_eq!(super::display::format_concentration(-0.0), "0 M");
+    }
+
     #[test]
     fn internal_spelling_reads_back_as_one_internal_unit() {
         for q in ALL {

@@ -166,11 +166,7 @@ pub fn section(model: &Model, tr: &Trajectory) -> String {
         bars.push(Bar {
             label: "all sources".into(),
             sub: format!("{} {u} incident", sig(l.incident / f, 3)),
-            segments: segments(
-                &absorbed,
-                l.sources.iter().map(|x| x.background).sum(),
-                l.sources.iter().map(|x| x.transmitted).sum(),
-            ),
+            segments: segments(&absorbed, l.background(), l.transmitted()),
         });
     }
     let mut legend: Vec<(String, &'static str)> = l
@@ -238,8 +234,8 @@ pub fn section(model: &Model, tr: &Trajectory) -> String {
             )
         })
         .collect();
-    let bg: f64 = l.sources.iter().map(|x| x.background).sum();
-    let tx: f64 = l.sources.iter().map(|x| x.transmitted).sum();
+    let bg = l.background();
+    let tx = l.transmitted();
     rows.push(format!(
         "{}{}{}",
         text_cell("background (solvent, vessel)"),
