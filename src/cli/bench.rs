@@ -84,6 +84,8 @@ struct Row {
     jv: usize,
     setups: usize,
     jacobians: usize,
+    newton: usize,
+    newton_failures: usize,
     seconds: f64,
 }
 
@@ -105,6 +107,8 @@ fn time(name: &str, model: &Model, until: f64, sparse: Option<bool>) -> photoled
         jv: tr.counts.jacobian_products,
         setups: tr.counts.jacobian_setups,
         jacobians: tr.counts.jacobians,
+        newton: tr.counts.newton_iterations,
+        newton_failures: tr.counts.newton_failures,
         seconds,
     })
 }
@@ -151,7 +155,7 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
         rows.push(time(&name, &model, until, Some(false))?);
     }
     outln!(
-        "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>10}",
+        "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>8} {:>7} {:>10}",
         "network",
         "species",
         "reactions",
@@ -162,11 +166,13 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
         "J·v",
         "J",
         "LU",
+        "Newton",
+        "failed",
         "wall (s)"
     )?;
     for r in rows {
         outln!(
-            "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>10.3}",
+            "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>8} {:>7} {:>10.3}",
             r.name,
             r.species,
             r.reactions,
@@ -177,6 +183,8 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
             r.jv,
             r.jacobians,
             r.setups,
+            r.newton,
+            r.newton_failures,
             r.seconds
         )?;
     }

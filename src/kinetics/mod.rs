@@ -168,6 +168,10 @@ pub struct Counts {
     pub jacobians: usize,
     /// Rejected steps.
     pub rejected: usize,
+    /// Newton iterations (BDF), each one linear solve with the iteration matrix.
+    pub newton_iterations: usize,
+    /// Newton iterations that failed to converge (BDF).
+    pub newton_failures: usize,
 }
 
 /// A stretch of the run and the integrator that took it.
@@ -505,6 +509,8 @@ impl Run {
         self.counts.jacobian_setups += run.counts.jacobian_setups;
         self.counts.jacobians += run.counts.jacobians;
         self.counts.rejected += run.counts.rejected;
+        self.counts.newton_iterations += run.counts.newton_iterations;
+        self.counts.newton_failures += run.counts.newton_failures;
         for (t, st) in run.times.iter().zip(run.states).skip(1) {
             self.times.push(snap(start + t));
             self.states.push(st);

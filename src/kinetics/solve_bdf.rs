@@ -86,6 +86,8 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
             out.counts.steps = st.number_of_steps;
             out.counts.jacobian_setups = st.number_of_linear_solver_setups;
             out.counts.rejected = st.number_of_error_test_failures;
+            out.counts.newton_iterations = st.number_of_nonlinear_solver_iterations;
+            out.counts.newton_failures = st.number_of_nonlinear_solver_fails;
         }};
     }
     if sparse {

@@ -7,13 +7,16 @@
 //! compute, such as AMD on the pattern of A + Aᵀ (`amd::order`). [`ORDERING`] is the one kept:
 //! measured on the generated 1,000-species network by the ignored test
 //! `tests/lu_orderings.rs` (numbers in DEVELOPERS.md). A factorisation that fails (a singular
-//! matrix) is reported by the next solve as an error, so the integrator shortens its step
-//! instead of the program stopping.
+//! matrix) is reported by the next solve as an error, and so is a solve whose answer is not finite
+//! (a numerically singular matrix, which faer factors with a zero pivot), so the integrator
+//! shortens its step instead of the program stopping or iterating on NaN
+//! (`tests/singular_iteration_matrix.rs`).
 
 use diffsol::{FaerSparseMat, FaerVec, Matrix, Vector};
 use diffsol_la::{LaError, LinearOp, LinearSolver, MatrixCommon};
 use faer::dyn_stack::{MemBuffer, MemStack};
 use faer::perm::PermRef;
+use faer::prelude::{Reborrow, ReborrowMut};
 use faer::sparse::linalg::lu::{LuRef, LuSymbolicParams, NumericLu, SymbolicLu, factorize_symbolic_lu, simplicial};
 use faer::sparse::linalg::{SupernodalThreshold, amd, colamd};
 use faer::sparse::{SparseColMatRef, SymbolicSparseColMat, SymbolicSparseColMatRef};
@@ -182,8 +185,10 @@ impl SparseLu {
         self.ok
     }
 
-    /// Solve A x = b in place (`x` holds b on entry).
-    pub fn solve(&self, x: MatMut<'_, f64>) -> Result<(), String> {
+    /// Solve A x = b in place (`x` holds b on entry). An error when the factorisation failed or
+    /// when the solution is not finite: faer reports a structurally singular matrix but factors a
+    /// numerically singular one with a zero pivot, whose solve gives infinities or NaN.
+    pub fn solve(&self, mut x: MatMut<'_, f64>) -> Result<(), String> {
         if !self.ok {
             return Err("the iteration matrix is singular".into());
         }
@@ -192,7 +197,7 @@ impl SparseLu {
         match self.factors.as_ref() {
             None => return Err("no factorisation".into()),
             Some(Factors::Faer { symbolic, numeric }) => {
-                LuRef::new_unchecked(symbolic, numeric).solve_in_place_with_conj(Conj::No, x, Par::Seq, stack)
+                LuRef::new_unchecked(symbolic, numeric).solve_in_place_with_conj(Conj::No, x.rb_mut(), Par::Seq, stack)
             }
             Some(Factors::Simplicial {
                 col_fwd,
@@ -204,10 +209,15 @@ impl SparseLu {
                 let n = col_fwd.len();
                 let row = PermRef::new_checked(row_fwd, row_inv, n);
                 let col = PermRef::new_checked(col_fwd, col_inv, n);
-                lu.solve_in_place_with_conj(row, col, Conj::No, x, Par::Seq, stack)
+                lu.solve_in_place_with_conj(row, col, Conj::No, x.rb_mut(), Par::Seq, stack)
             }
         }
-        Ok(())
+        let finite = (0..x.ncols()).all(|j| x.rb().col(j).iter().all(|v| v.is_finite()));
+        if finite {
+            Ok(())
+        } else {
+            Err("the iteration matrix is singular".into())
+        }
     }
 }
 
