@@ -65,3 +65,27 @@ fn a_huge_epsilon_gives_sound_numbers_after_a_retry_or_exit_4() {
         c => panic!("exit {c:?}: {err}"),
     }
 }
+
+/// Found by `scripts/fuzz_inputs.py` (seed 17, case 139): a network cut short after its
+/// conditions, with no species and no light, made `simulate` panic inside the linear algebra
+/// (exit 101). It is refused as a usage error instead.
+#[test]
+fn a_network_with_no_species_is_refused_not_a_panic() {
+    let dir = std::env::temp_dir().join(format!("photoledger-empty-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    std::fs::write(
+        dir.join("net.toml"),
+        "# invented\n[conditions]\ntemperature = \"298.15 K\"\nvolume = \"3 mL\"\npath_length = \"1 cm\"\n",
+    )
+    .unwrap();
+    let out = Command::new(env!("CARGO_BIN_EXE_photoledger"))
+        .current_dir(&dir)
+        .args(["simulate", "net.toml", "--until", "1 h", "--out", "run"])
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_ne!(out.status.code(), Some(101), "{err}");
+    assert!(matches!(out.status.code(), Some(1 | 2)), "{err}");
+    assert!(err.contains("no species"), "{err}");
+}

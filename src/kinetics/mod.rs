@@ -350,6 +350,11 @@ fn simulate_once(
             s.lit, s.period
         )));
     }
+    if model.n_species() == 0 {
+        return Err(Error::Usage(
+            "the network has no species: there is nothing to integrate".into(),
+        ));
+    }
     let rhs = Rhs::new(model);
     if y0.len() != rhs.layout.len() {
         return Err(Error::Usage("the start state does not fit the model".into()));
