@@ -184,6 +184,10 @@ pub enum Error {
     /// A numerical engine could not finish (with the reason).
     #[error("{0}")]
     Numerical(String),
+    /// The kinetics gave a concentration or photon count below zero beyond the tolerance,
+    /// still after retries with tighter tolerances: a numerical failure, not a result.
+    #[error("{0}")]
+    Unphysical(Box<crate::kinetics::check::Unphysical>),
 }
 
 fn render(ds: &[Diagnostic]) -> String {

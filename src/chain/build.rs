@@ -641,7 +641,8 @@ pub fn start(model: &Model, chain: &Chain, from: Option<&str>) -> Result<(Vec<f6
         pi[i] = 1.0;
         let note = if chain.states[i].absorbing && model.total_flux() <= 0.0 {
             format!(
-                "started from {name}, which has no way out in the dark (no light: every source is at zero): it stays as it is"
+                "started from {name}, which has no way out in the dark (no light: {}): it stays as it is",
+                model.dark_words()
             )
         } else if chain.states[i].absorbing {
             format!("started from {name}, which has no way out: it stays as it is")
@@ -665,11 +666,11 @@ pub fn start(model: &Model, chain: &Chain, from: Option<&str>) -> Result<(Vec<f6
     }
     let total: f64 = pi.iter().sum();
     if total <= 0.0 && model.total_flux() <= 0.0 {
-        return Err(Error::Usage(
-            "no light (every source is at zero) and nothing in the initial mixture changes in the dark; \
-             switch a light on, or name a start with --from SPECIES"
-                .into(),
-        ));
+        return Err(Error::Usage(format!(
+            "no light ({}) and nothing in the initial mixture changes in the dark; \
+             switch a light on, or name a start with --from SPECIES",
+            model.dark_words()
+        )));
     }
     if total <= 0.0 {
         return Err(Error::Usage(

@@ -3,6 +3,7 @@
 use super::output::{out, outln};
 use super::{NetworkArgs, load, print_warnings};
 use photoledger::Error;
+use photoledger::file::folder::Folder;
 use photoledger::light::LightKind;
 use photoledger::model::Model;
 use photoledger::plan::actinometry::{self as act, Measured, Strength, YieldTable};
@@ -228,8 +229,10 @@ fn ferrioxalate(a: &FerrioxalateArgs) -> photoledger::Result<()> {
         "cautions": rp::CAUTIONS,
     });
     let js = serde_json::to_string_pretty(&json).map_err(|e| Error::Numerical(e.to_string()))?;
-    write_atomic(&dir.join("result.json"), js.as_bytes())?;
-    write_atomic(&dir.join("light.toml"), block.as_bytes())?;
+    let folder = Folder::begin(&dir)?;
+    write_atomic(&folder.join("result.json"), js.as_bytes())?;
+    write_atomic(&folder.join("light.toml"), block.as_bytes())?;
+    folder.commit()?;
     if a.json {
         outln!("{js}")?;
     } else {
@@ -339,8 +342,10 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
         "cautions": rp::CAUTIONS,
     });
     let js = serde_json::to_string_pretty(&json).map_err(|e| Error::Numerical(e.to_string()))?;
-    write_atomic(&dir.join("result.json"), js.as_bytes())?;
-    write_atomic(&dir.join("light.toml"), blocks.as_bytes())?;
+    let folder = Folder::begin(&dir)?;
+    write_atomic(&folder.join("result.json"), js.as_bytes())?;
+    write_atomic(&folder.join("light.toml"), blocks.as_bytes())?;
+    folder.commit()?;
     if a.json {
         outln!("{js}")?;
     } else {

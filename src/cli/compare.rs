@@ -4,6 +4,7 @@ use super::Exit;
 use super::fit::{Limits, fit_one, not_converged, read_data};
 use super::output::{out, outln};
 use photoledger::Error;
+use photoledger::file::folder::Folder;
 use photoledger::fit::mechanism::FitOptions;
 use photoledger::fit::run;
 use photoledger::report::fit::{self as rf, Ranked};
@@ -93,15 +94,17 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<Exit> {
         .into_iter()
         .map(|(n, f, _)| (n.to_string(), f.curves.clone()))
         .collect();
-    write_atomic(&a.out.join("ranking.txt"), text.as_bytes())?;
+    let folder = Folder::begin(&a.out)?;
+    write_atomic(&folder.join("ranking.txt"), text.as_bytes())?;
     write_atomic(
-        &a.out.join("ranking.json"),
+        &folder.join("ranking.json"),
         serde_json::to_string_pretty(&json).unwrap_or_default().as_bytes(),
     )?;
     write_atomic(
-        &a.out.join("fits.svg"),
+        &folder.join("fits.svg"),
         rf::data_svg("data and each network's fit", &rows, &models).as_bytes(),
     )?;
+    folder.commit()?;
     if a.json {
         outln!("{}", serde_json::to_string_pretty(&json).unwrap_or_default())?;
     } else {

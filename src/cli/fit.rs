@@ -5,6 +5,7 @@ use super::Exit;
 use super::output::{noteln, out, outln};
 use photoledger::Error;
 use photoledger::file::data::{self, Experiment};
+use photoledger::file::folder::Folder;
 use photoledger::fit::mechanism::{DEFAULT_MAX_EVALUATIONS, FitOptions, Progress};
 use photoledger::fit::run;
 use photoledger::report::{fit as rf, write_atomic};
@@ -181,22 +182,24 @@ pub fn run(a: &FitArgs) -> photoledger::Result<Exit> {
     let rows = rf::rows(&experiments, &predicted);
     let s = &result.solution;
     let fitted = rf::fitted_toml(&loaded.text, &result.free, &s.values, &s.standard_errors)?;
-    write_atomic(&out.join("summary.txt"), text.as_bytes())?;
+    let folder = Folder::begin(&out)?;
+    write_atomic(&folder.join("summary.txt"), text.as_bytes())?;
     write_atomic(
-        &out.join("fit.json"),
+        &folder.join("fit.json"),
         serde_json::to_string_pretty(&json).unwrap_or_default().as_bytes(),
     )?;
-    write_atomic(&out.join("residuals.csv"), rf::residuals_csv(&rows).as_bytes())?;
+    write_atomic(&folder.join("residuals.csv"), rf::residuals_csv(&rows).as_bytes())?;
     let title = format!("{stem}: data and fit");
     write_atomic(
-        &out.join("fit.svg"),
+        &folder.join("fit.svg"),
         rf::data_svg(&title, &rows, &[(stem.clone(), curves)]).as_bytes(),
     )?;
     write_atomic(
-        &out.join("residuals.svg"),
+        &folder.join("residuals.svg"),
         rf::residuals_svg(&format!("{stem}: weighted residuals"), &rows).as_bytes(),
     )?;
-    write_atomic(&out.join(format!("{stem}.fitted.toml")), fitted.as_bytes())?;
+    write_atomic(&folder.join(format!("{stem}.fitted.toml")), fitted.as_bytes())?;
+    folder.commit()?;
     if a.json {
         outln!("{}", serde_json::to_string_pretty(&json).unwrap_or_default())?;
     } else {

@@ -7,6 +7,7 @@ use photoledger::Error;
 use photoledger::chain::build::{Light, Settings};
 use photoledger::chain::routes::RouteOptions;
 use photoledger::chain::{self, ChainOptions, ChainRun, ClosedRun, Followed, Options};
+use photoledger::file::folder::Folder;
 use photoledger::model::Model;
 use photoledger::network::Network;
 use photoledger::report::chain_paths::{self as paths, Paths};
@@ -102,18 +103,20 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
     summary.paths = Some(paths);
     let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
     let dir = out_dir(a);
-    write_atomic(&dir.join("summary.json"), json.as_bytes())?;
+    let folder = Folder::begin(&dir)?;
+    write_atomic(&folder.join("summary.json"), json.as_bytes())?;
     write_atomic(
-        &dir.join("photon_counts.csv"),
+        &folder.join("photon_counts.csv"),
         report::distribution_csv(ch, an).as_bytes(),
     )?;
     write_atomic(
-        &dir.join("photon_counts.svg"),
+        &folder.join("photon_counts.svg"),
         report::histogram_svg(&format!("{}: photons per molecule", net.about.name), an).as_bytes(),
     )?;
     if let Some(c) = &cycles {
-        write_atomic(&dir.join("cycle_counts.csv"), paths::cycles_csv(c).as_bytes())?;
+        write_atomic(&folder.join("cycle_counts.csv"), paths::cycles_csv(c).as_bytes())?;
     }
+    folder.commit()?;
     if a.json {
         outln!("{json}")?;
     } else {
@@ -210,7 +213,9 @@ fn closed(a: &LedgerArgs, net: &Network, c: &ClosedRun) -> photoledger::Result<(
     );
     let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
     let dir = out_dir(a);
-    write_atomic(&dir.join("summary.json"), json.as_bytes())?;
+    let folder = Folder::begin(&dir)?;
+    write_atomic(&folder.join("summary.json"), json.as_bytes())?;
+    folder.commit()?;
     if a.json {
         outln!("{json}")?;
     } else {

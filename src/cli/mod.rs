@@ -156,6 +156,12 @@ pub fn run() -> i32 {
             return if e.use_stderr() { Exit::Usage } else { Exit::Success }.code();
         }
     };
+    // SIGINT or SIGTERM: remove the temporary folder of an output not yet moved into place (the
+    // old folder stays as it was), then end as a shell reports an interrupt (128 + SIGINT).
+    let _ = ctrlc::set_handler(|| {
+        photoledger::file::folder::remove_unfinished();
+        std::process::exit(130);
+    });
     let result = match cli.command {
         Command::Check { net, quiet } => check::run(&net, quiet),
         Command::Diagram { net, out, dot } => diagram::run(&net, &out, dot),
@@ -197,7 +203,7 @@ fn report_error(e: &Error) -> Exit {
         }
         Error::Usage(_) => Exit::Usage,
         Error::Io { .. } => Exit::File,
-        Error::Numerical(_) => Exit::Numerical,
+        Error::Numerical(_) | Error::Unphysical(_) => Exit::Numerical,
     }
 }
 

@@ -5,6 +5,7 @@ use super::daylight::DaylightArgs;
 use super::output::{out, outln};
 use super::{Exit, NetworkArgs, build, print_warnings};
 use photoledger::Error;
+use photoledger::file::folder::Folder;
 use photoledger::model::Model;
 use photoledger::plan::{self, PlanOptions, Tube};
 use photoledger::report::plan as rp;
@@ -188,15 +189,17 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
             model: &model,
         };
         let points = plan::sweep::run(&base, &sw, &a.target, &adjust, &opts)?.points;
-        write_atomic(&dir.join("sweep.csv"), rp::sweep_csv(&sw.axis, &points).as_bytes())?;
+        let folder = Folder::begin(&dir)?;
+        write_atomic(&folder.join("sweep.csv"), rp::sweep_csv(&sw.axis, &points).as_bytes())?;
         write_atomic(
-            &dir.join("sweep.svg"),
+            &folder.join("sweep.svg"),
             rp::sweep_svg(&name, &a.target, &sw.axis, &points).as_bytes(),
         )?;
         let sel = rp::selectivity_svg(&name, &sw.axis, &points);
         if let Some(s) = &sel {
-            write_atomic(&dir.join("selectivity.svg"), s.as_bytes())?;
+            write_atomic(&folder.join("selectivity.svg"), s.as_bytes())?;
         }
+        folder.commit()?;
         if a.json {
             let rows: Vec<serde_json::Value> = points
                 .iter()
@@ -292,15 +295,17 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
         Some(p) => model.with_light_scale(p.scale),
         None => model.clone(),
     };
-    write_atomic(&dir.join("summary.json"), json.as_bytes())?;
+    let folder = Folder::begin(&dir)?;
+    write_atomic(&folder.join("summary.json"), json.as_bytes())?;
     write_atomic(
-        &dir.join("concentrations.csv"),
+        &folder.join("concentrations.csv"),
         simulation::concentrations_csv(&run_model, &result.trajectory).as_bytes(),
     )?;
     write_atomic(
-        &dir.join("concentrations.svg"),
+        &folder.join("concentrations.svg"),
         simulation::concentrations_svg(&net, &run_model, &result.trajectory, false).as_bytes(),
     )?;
+    folder.commit()?;
     if a.json {
         outln!("{json}")?;
     } else {

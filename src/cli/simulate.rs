@@ -4,9 +4,10 @@ use super::daylight::DaylightArgs;
 use super::output::{noteln, out, outln};
 use super::{Exit, NetworkArgs, load, print_warnings};
 use photoledger::Error;
+use photoledger::file::folder::Folder;
 use photoledger::kinetics::{self, Method, Options, Stop};
 use photoledger::model::Model;
-use photoledger::report::{simulation, write_atomic};
+use photoledger::report::{simulation, write_atomic, write_atomic_with};
 use photoledger::units::{self, Quantity};
 use std::io::IsTerminal;
 use std::path::PathBuf;
@@ -105,31 +106,27 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<Exit> {
                 .unwrap_or_else(|| "simulation".into()),
         )
     });
+    let folder = Folder::begin(&dir)?;
+    // The time series stream into their files: a million points are never held as text.
+    write_atomic_with(&folder.join("concentrations.csv"), |w| {
+        simulation::write_concentrations_csv(&model, &tr, w)
+    })?;
+    write_atomic_with(&folder.join("photons.csv"), |w| {
+        simulation::write_photons_csv(&model, &tr, w)
+    })?;
+    write_atomic(&folder.join("summary.json"), json.as_bytes())?;
     write_atomic(
-        &dir.join("concentrations.csv"),
-        simulation::concentrations_csv(&model, &tr).as_bytes(),
-    )?;
-    write_atomic(
-        &dir.join("photons.csv"),
-        simulation::photons_csv(&model, &tr).as_bytes(),
-    )?;
-    write_atomic(&dir.join("summary.json"), json.as_bytes())?;
-    write_atomic(
-        &dir.join("concentrations.svg"),
+        &folder.join("concentrations.svg"),
         simulation::concentrations_svg(&net, &model, &tr, a.log_time).as_bytes(),
     )?;
     write_atomic(
-        &dir.join("photons.svg"),
+        &folder.join("photons.svg"),
         simulation::photons_svg(&net, &model, &tr, a.log_time).as_bytes(),
     )?;
+    folder.commit()?;
     // Warnings about the run come before its results, like the network's.
-    for n in &summary.negative_concentrations {
-        noteln!(
-            "warning: {} went negative ({:e} mol/L at {} s) beyond the tolerance; tighten --rtol/--atol",
-            n.0,
-            n.2,
-            n.1
-        );
+    for r in &tr.retries {
+        noteln!("note: the kinetics were {r}");
     }
     // A stop condition is a target: not met by --until is the answer "not reached" (exit 5).
     let missed = a.stop_when.as_deref().filter(|_| matches!(tr.stop, Stop::EndTime));

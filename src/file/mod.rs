@@ -8,6 +8,7 @@
 pub mod csv;
 pub mod data;
 pub mod evidence;
+pub mod folder;
 pub mod frequencies;
 pub mod schema;
 pub mod text;

@@ -9,6 +9,7 @@
 //! integrator took which stretch.
 //! No file I/O, no printing: results come back as a [`Trajectory`].
 
+pub mod check;
 mod equations;
 pub mod ledger;
 pub mod sensitivity;
@@ -189,17 +190,6 @@ pub struct Segment {
     pub rhs: usize,
 }
 
-/// A concentration that went below −atol (reported, not hidden).
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct Negative {
-    /// Species index.
-    pub species: usize,
-    /// Time, s.
-    pub time: f64,
-    /// The most negative value seen, mol/L.
-    pub value: f64,
-}
-
 /// The result of a run: states at the output times.
 #[derive(Debug, Clone)]
 pub struct Trajectory {
@@ -222,12 +212,14 @@ pub struct Trajectory {
     pub counts: Counts,
     /// How it ended.
     pub stop: Stop,
-    /// Species that went negative beyond tolerance.
-    pub negatives: Vec<Negative>,
+    /// Runs repeated with tighter tolerances because the one before gave a concentration or
+    /// photon count below zero beyond the tolerance ([`check`]), first to last; empty when the
+    /// first run was sound.
+    pub retries: Vec<check::Retry>,
     /// The light schedule the run followed (None: light on throughout).
     pub schedule: Option<Schedule>,
-    /// The absolute tolerance the run was integrated to, mol/L: concentrations within it of
-    /// zero are round-off (`units::display::ZeroWithin`).
+    /// The absolute tolerance the run was integrated to, mol/L (a retry's when there was one):
+    /// concentrations within it of zero are round-off (`units::display::ZeroWithin`).
     pub atol: f64,
 }
 
@@ -302,7 +294,43 @@ pub fn simulate(model: &Model, opts: &Options, progress: &mut dyn FnMut(f64)) ->
 /// Integrate `model` from state `y0` (concentrations then ledger, as [`Rhs::initial_state`]
 /// lays it out) at time `t0` (s) to `opts.until` (s, absolute): the continuation of an
 /// earlier run. A schedule keeps its phase: it counts from t = 0.
+///
+/// A run that gives a concentration or photon count below zero beyond the tolerance is
+/// repeated with tolerances [`check::TIGHTEN`] times tighter, up to [`check::RETRIES`] times
+/// (recorded in [`Trajectory::retries`]); if the numbers stay impossible the answer is
+/// [`Error::Unphysical`], never a result.
 pub fn simulate_from(
+    model: &Model,
+    t0: f64,
+    y0: &[f64],
+    opts: &Options,
+    progress: &mut dyn FnMut(f64),
+) -> Result<Trajectory> {
+    let mut o = opts.clone();
+    let mut retries = Vec::new();
+    let mut tried = Vec::new();
+    loop {
+        let mut tr = simulate_once(model, t0, y0, &o, progress)?;
+        tried.push((o.rtol, o.atol));
+        let Some(finding) = check::worst(model, &tr.layout, &tr.times, &tr.states, opts.rtol, opts.atol) else {
+            tr.retries = retries;
+            return Ok(tr);
+        };
+        if retries.len() == check::RETRIES || o.rtol <= check::TIGHTEST_RTOL {
+            return Err(Error::Unphysical(Box::new(check::Unphysical { finding, tried })));
+        }
+        o.rtol = (o.rtol / check::TIGHTEN).max(check::TIGHTEST_RTOL);
+        o.atol /= check::TIGHTEN;
+        retries.push(check::Retry {
+            rtol: o.rtol,
+            atol: o.atol,
+            because: finding,
+        });
+    }
+}
+
+/// One run of [`simulate_from`] at the tolerances of `opts`, unchecked.
+fn simulate_once(
     model: &Model,
     t0: f64,
     y0: &[f64],
@@ -325,6 +353,11 @@ pub fn simulate_from(
             "a light schedule needs 0 < lit time ≤ period, not {} s of {} s",
             s.lit, s.period
         )));
+    }
+    if model.n_species() == 0 {
+        return Err(Error::Usage(
+            "the network has no species: there is nothing to integrate".into(),
+        ));
     }
     let rhs = Rhs::new(model);
     if y0.len() != rhs.layout.len() {
@@ -442,28 +475,6 @@ pub fn simulate_from(
     let (method, reason) = (method_ran, reason);
     run.counts.rhs = rhs.rhs_calls.get() + dark_rhs.as_ref().map_or(0, |d| d.rhs_calls.get());
     run.counts.jacobian_products = rhs.jac_calls.get() + dark_rhs.as_ref().map_or(0, |d| d.jac_calls.get());
-    // Negative concentrations beyond tolerance.
-    let mut negatives: Vec<Negative> = Vec::new();
-    let scale = model.initial.iter().cloned().fold(0.0, f64::max);
-    let limit = opts.atol.max(opts.rtol * scale * 1e-3);
-    for (t, s) in run.times.iter().zip(&run.states) {
-        for (i, &v) in s[..model.n_species()].iter().enumerate() {
-            if v < -limit {
-                match negatives.iter_mut().find(|n| n.species == i) {
-                    Some(n) if v < n.value => {
-                        n.value = v;
-                        n.time = *t;
-                    }
-                    Some(_) => {}
-                    None => negatives.push(Negative {
-                        species: i,
-                        time: *t,
-                        value: v,
-                    }),
-                }
-            }
-        }
-    }
     Ok(Trajectory {
         times: run.times,
         states: run.states,
@@ -474,7 +485,7 @@ pub fn simulate_from(
         sparse: run.sparse,
         counts: run.counts,
         stop: run.stop,
-        negatives,
+        retries: Vec::new(),
         schedule: opts.schedule,
         atol: opts.atol,
     })

@@ -12,6 +12,7 @@
 //! which is recomputed as quencher concentrations change.
 
 pub mod absorption;
+pub mod floor;
 pub mod jacobian;
 pub mod lineage;
 pub mod rhs;
@@ -103,14 +104,19 @@ pub struct Model {
     /// (every absorber with a photochemical step when nothing is followed): the followed
     /// reaction's photoreactants.
     pub followed_reactant: Vec<bool>,
+    /// Light and thermal rates under their floors ([`floor`]), taken as zero here.
+    pub floored: floor::Floored,
 }
 
 impl Model {
     /// Compile `net`.
+    ///
+    /// Light under [`floor::LIGHT_FLOOR`] and thermal rate constants under
+    /// [`floor::RATE_FLOOR`] are compiled as zero and listed in [`Model::floored`].
     pub fn compile(net: &Network) -> Model {
         let species: Vec<String> = net.species.iter().map(|s| s.name.clone()).collect();
         let initial: Vec<f64> = net.species.iter().map(|s| s.initial).collect();
-        let reactions: Vec<Reaction> = net
+        let mut reactions: Vec<Reaction> = net
             .thermal
             .iter()
             .map(|t| {
@@ -265,7 +271,15 @@ impl Model {
             .collect();
         let lineage = lineage::Lineage::new(net, &reactions, &outcomes);
         let named: Vec<usize> = (0..net.species.len()).filter(|&i| net.species[i].product).collect();
+        let mut floored = floor::Floored::default();
+        for (i, (r, t)) in reactions.iter_mut().zip(&net.thermal).enumerate() {
+            if floor::rate_below_floor(r.k, t.order) {
+                r.k = 0.0;
+                floored.reactions.push(i);
+            }
+        }
         let mut model = Model {
+            floored,
             species,
             initial,
             temperature: net.conditions.temperature,
@@ -285,7 +299,22 @@ impl Model {
             followed_reactant: Vec::new(),
         };
         model.follow(named);
+        model.floor_light();
         model
+    }
+
+    /// Apply the light floor to the bins as they stand ([`floor::floor_light`]), recording
+    /// the sources it darkened and the bins it zeroed.
+    fn floor_light(&mut self) {
+        let n = self.sources.len();
+        let mut bins: Vec<(usize, &mut f64)> = self.bins.iter_mut().map(|b| (b.source, &mut b.flux)).collect();
+        let (dark, zeroed) = floor::floor_light(&mut bins, n);
+        for s in dark {
+            if !self.floored.sources.contains(&s) {
+                self.floored.sources.push(s);
+            }
+        }
+        self.floored.bins += zeroed;
     }
 
     /// Follow the formation of `species` in the photon ledger (empty: every photoreaction):
@@ -334,6 +363,16 @@ impl Model {
         self.bins.iter().filter(|b| b.source == s).map(|b| b.flux).sum()
     }
 
+    /// Why no light reaches the sample when [`Model::total_flux`] is zero, for messages:
+    /// every source at zero, or the light under its floor ([`floor::LIGHT_FLOOR`]).
+    pub fn dark_words(&self) -> &'static str {
+        if self.floored.sources.is_empty() {
+            "every source is at zero"
+        } else {
+            "the light is below its floor: fewer than one photon in the age of the universe"
+        }
+    }
+
     /// Total photon flux of all sources, einstein/s; +0 with no light source (the float `Sum`
     /// starts from −0, so an empty sum would read "−0").
     pub fn total_flux(&self) -> f64 {
@@ -344,6 +383,7 @@ impl Model {
     pub fn with_light_scale(&self, factor: f64) -> Model {
         let mut m = self.clone();
         m.bins.iter_mut().for_each(|b| b.flux *= factor);
+        m.floor_light();
         m
     }
 
@@ -354,6 +394,7 @@ impl Model {
             .iter_mut()
             .filter(|b| b.source == source)
             .for_each(|b| b.flux *= factor);
+        m.floor_light();
         m
     }
 

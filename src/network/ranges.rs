@@ -9,6 +9,7 @@
 use super::diagnostics::{Places, Sink};
 use super::*;
 use crate::error::Origin;
+use crate::model::floor;
 use crate::units::constants::{BOLTZMANN, PLANCK};
 use crate::units::sig;
 
@@ -106,6 +107,18 @@ fn lights(sink: &mut Sink, at: &Places, net: &Network) {
                 format!("its photon flux per volume is not finite ({flux:e} einstein/s into {litres:e} L)"),
                 Some("check the light's power or photon flux and conditions.volume".into()),
             );
+        } else if floor::light_below_floor(flux) {
+            sink.warn(
+                &format!("light \"{}\"", l.name),
+                origin,
+                format!(
+                    "{} einstein/s into the sample is fewer than one photon in the age of the universe \
+                     (the floor is {} einstein/s): taken as no light",
+                    sig(flux, 3),
+                    sig(floor::LIGHT_FLOOR, 2)
+                ),
+                Some("check the light's power, photon flux or scale and its unit".into()),
+            );
         } else if per_volume > BRIGHTEST {
             sink.warn(
                 &format!("light \"{}\"", l.name),
@@ -202,6 +215,22 @@ fn rates(sink: &mut Sink, at: &Places, net: &Network) {
             );
             continue;
         }
+        if floor::rate_below_floor(s.k, s.order) {
+            sink.warn(
+                &field,
+                origin,
+                format!(
+                    "{} gives k = {} {}, below the floor of {:e} s⁻¹ at {DENSEST} mol/L: taken as zero \
+                     (it would convert less than 1e-12 of its reactant in the age of the universe)",
+                    cause(&s.rate),
+                    sig(s.k, 3),
+                    order_unit(s.order),
+                    floor::RATE_FLOOR
+                ),
+                Some("check the barrier, prefactor or k and its unit".into()),
+            );
+            continue;
+        }
         let (limit, unit) = match s.order {
             1 => (FASTEST_FIRST_ORDER, "/s"),
             2 => (FASTEST_SECOND_ORDER, "L/(mol s)"),
@@ -245,5 +274,15 @@ fn rates(sink: &mut Sink, at: &Places, net: &Network) {
                 );
             }
         }
+    }
+}
+
+/// The unit of a rate constant of this order, as messages write it.
+fn order_unit(order: u32) -> String {
+    match order {
+        0 => "mol/(L s)".into(),
+        1 => "/s".into(),
+        2 => "L/(mol s)".into(),
+        n => format!("(L/mol)^{} /s", n - 1),
     }
 }

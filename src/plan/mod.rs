@@ -61,6 +61,9 @@ pub enum Why {
     Horizon,
     /// No light enters the sample (every source at zero) and the dark steps stopped short.
     Dark,
+    /// The light is under its floor ([`crate::model::floor::LIGHT_FLOOR`]: fewer than one
+    /// photon in the age of the universe), taken as none, and the dark steps stopped short.
+    BelowFloor,
 }
 
 impl Why {
@@ -73,6 +76,10 @@ impl Why {
             Why::Exhausted => "a steady state with nothing left to convert: the material went elsewhere",
             Why::Horizon => "the concentrations were still changing at the horizon",
             Why::Dark => "no light: every source is at zero, and the dark steps alone came to rest short of it",
+            Why::BelowFloor => {
+                "no light (below floor): the sources deliver fewer than one photon in the age of the universe, \
+                 taken as none, and the dark steps alone came to rest short of it"
+            }
         }
     }
 }
@@ -263,7 +270,7 @@ pub fn time_to_target(model: &Model, target: &Target, opts: &PlanOptions) -> Res
                     j.counts.rejected += tr.counts.rejected;
                     j.counts.newton_iterations += tr.counts.newton_iterations;
                     j.counts.newton_failures += tr.counts.newton_failures;
-                    j.negatives.extend(tr.negatives);
+                    j.retries.extend(tr.retries);
                     j.stop = stop;
                     j
                 }
@@ -301,6 +308,8 @@ pub fn time_to_target(model: &Model, target: &Target, opts: &PlanOptions) -> Res
                 .sum();
             let why = if productive * t > 1e-6 * scale {
                 Why::Photostationary
+            } else if model.total_flux() <= 0.0 && !model.floored.sources.is_empty() {
+                Why::BelowFloor
             } else if model.total_flux() <= 0.0 {
                 Why::Dark
             } else {
@@ -482,6 +491,14 @@ pub fn power_for_time(
 ) -> Result<std::result::Result<PowerSolve, NoLightScale>> {
     if !(duration > 0.0 && duration.is_finite()) {
         return Err(Error::Usage("the time to reach the target must be positive".into()));
+    }
+    if model.total_flux() <= 0.0 && !model.floored.sources.is_empty() {
+        return Err(Error::Usage(format!(
+            "the light of the file is below the floor of {:.1e} einstein/s (fewer than one photon in the age \
+             of the universe), taken as none: no factor on it brings any light; give a source a power or photon \
+             flux (--set light.NAME.power=...)",
+            crate::model::floor::LIGHT_FLOOR
+        )));
     }
     if model.total_flux() <= 0.0 {
         return Err(Error::Usage(

@@ -15,20 +15,25 @@
 //! Cells are text: callers format numbers the way their report already does (`{:e}` keeps the
 //! shortest representation that reads back to the same `f64`, see [`sci`]).
 
-/// A CSV table being written: the header first, then rows of the same width.
-pub struct CsvTable {
-    out: csv::Writer<Vec<u8>>,
+/// A CSV table being written: the header first, then rows of the same width. Into memory
+/// ([`CsvTable::new`], [`CsvTable::finish`]) or streamed into a writer row by row
+/// ([`CsvTable::to_writer`], [`CsvTable::flush`]), so a time course of a million points is never
+/// held whole.
+pub struct CsvTable<W: std::io::Write = Vec<u8>> {
+    out: csv::Writer<W>,
     width: usize,
+    /// The first write error, returned by [`CsvTable::flush`].
+    error: Option<std::io::Error>,
 }
 
-impl CsvTable {
+impl CsvTable<Vec<u8>> {
     /// A table with this header row (units written out in the cells, e.g. `time (s)`).
     pub fn new<I, S>(header: I) -> Self
     where
         I: IntoIterator<Item = S>,
         S: AsRef<str>,
     {
-        Self::start(Vec::new(), header)
+        Self::to_writer(Vec::new(), header)
     }
 
     /// A table preceded by `# ` comment lines, one per line of `comment`. Only for files meant to be
@@ -45,10 +50,19 @@ impl CsvTable {
             top.extend_from_slice(l.as_bytes());
             top.extend_from_slice(b"\r\n");
         }
-        Self::start(top, header)
+        Self::to_writer(top, header)
     }
 
-    fn start<I, S>(buffer: Vec<u8>, header: I) -> Self
+    /// The finished text.
+    pub fn finish(self) -> String {
+        let bytes = self.out.into_inner().unwrap_or_default();
+        String::from_utf8(bytes).unwrap_or_default()
+    }
+}
+
+impl<W: std::io::Write> CsvTable<W> {
+    /// A table with this header row written into `w` as rows come.
+    pub fn to_writer<I, S>(w: W, header: I) -> Self
     where
         I: IntoIterator<Item = S>,
         S: AsRef<str>,
@@ -57,11 +71,13 @@ impl CsvTable {
             .delimiter(b',')
             .quote_style(csv::QuoteStyle::Necessary)
             .terminator(csv::Terminator::CRLF)
-            // The width is checked here (below), so a mistake shows in tests rather than as an
-            // error value every report would have to carry.
             .flexible(true)
-            .from_writer(buffer);
-        let mut t = CsvTable { out, width: 0 };
+            .from_writer(w);
+        let mut t = CsvTable {
+            out,
+            width: 0,
+            error: None,
+        };
         let cells: Vec<String> = header.into_iter().map(|s| s.as_ref().to_string()).collect();
         t.width = cells.len();
         t.write(&cells);
@@ -81,20 +97,20 @@ impl CsvTable {
     }
 
     fn write(&mut self, cells: &[String]) {
-        // A header of no cells would be an empty record, which the crate refuses to write
-        // ambiguously; every table here has at least one column.
-        if cells.is_empty() {
+        if cells.is_empty() || self.error.is_some() {
             return;
         }
-        // Writing into a Vec cannot fail, and the writer is flexible, so there is no error to keep.
-        let _ = self.out.write_record(cells);
+        if let Err(e) = self.out.write_record(cells) {
+            self.error = Some(e.into());
+        }
     }
 
-    /// The finished text.
-    pub fn finish(self) -> String {
-        let bytes = self.out.into_inner().unwrap_or_default();
-        // Every cell came in as `&str`, so the bytes are UTF-8.
-        String::from_utf8(bytes).unwrap_or_default()
+    /// Write out what is buffered; the first error met while writing, if any.
+    pub fn flush(mut self) -> std::io::Result<()> {
+        if let Some(e) = self.error.take() {
+            return Err(e);
+        }
+        self.out.flush()
     }
 }
 

@@ -23,6 +23,12 @@ use std::path::Path;
 /// Write `bytes` to `path` atomically: a temporary file beside it, flushed, then renamed, so a
 /// reader never sees a half-written file and a failed run leaves the old file in place.
 pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
+    write_atomic_with(path, |w| w.write_all(bytes))
+}
+
+/// [`write_atomic`] for output made as it is written: `fill` writes into a buffered writer on
+/// the temporary file (a CSV of a million rows streamed, never held whole).
+pub fn write_atomic_with(path: &Path, fill: impl FnOnce(&mut dyn Write) -> std::io::Result<()>) -> Result<()> {
     let io = |source| Error::Io {
         path: path.to_path_buf(),
         source,
@@ -38,8 +44,9 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
         .unwrap_or_else(|| "out".into());
     let tmp = dir.join(format!(".{name}.{}.tmp", std::process::id()));
     let result = (|| {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
+        let mut f = std::io::BufWriter::new(std::fs::File::create(&tmp)?);
+        fill(&mut f)?;
+        let f = f.into_inner().map_err(|e| e.into_error())?;
         f.sync_all()?;
         std::fs::rename(&tmp, path)
     })();

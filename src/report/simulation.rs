@@ -18,19 +18,33 @@ absorbances add (Beer–Lambert); transients are collapsed into effective quantu
 
 /// concentrations.csv: time and every species, units in the header.
 pub fn concentrations_csv(model: &Model, tr: &Trajectory) -> String {
+    let mut bytes = Vec::new();
+    let _ = write_concentrations_csv(model, tr, &mut bytes);
+    String::from_utf8(bytes).unwrap_or_default()
+}
+
+/// [`concentrations_csv`] streamed into `w` row by row.
+pub fn write_concentrations_csv(model: &Model, tr: &Trajectory, w: impl std::io::Write) -> std::io::Result<()> {
     let mut header = vec!["time (s)".to_string()];
     header.extend(model.species.iter().map(|n| format!("{n} (mol/L)")));
-    let mut t = CsvTable::new(header);
+    let mut t = CsvTable::to_writer(w, header);
     for (time, y) in tr.times.iter().zip(&tr.states) {
         t.row(std::iter::once(sci(*time)).chain(y[..model.n_species()].iter().map(|v| sci(*v))));
     }
-    t.finish()
+    t.flush()
 }
 
 /// photons.csv: cumulative photons (einstein) incident, absorbed by each absorber,
 /// background, transmitted, and per outcome; and photons per molecule of each product reached
 /// through a photochemical step (thermal co-products have no photon cost).
 pub fn photons_csv(model: &Model, tr: &Trajectory) -> String {
+    let mut bytes = Vec::new();
+    let _ = write_photons_csv(model, tr, &mut bytes);
+    String::from_utf8(bytes).unwrap_or_default()
+}
+
+/// [`photons_csv`] streamed into `w` row by row.
+pub fn write_photons_csv(model: &Model, tr: &Trajectory, w: impl std::io::Write) -> std::io::Result<()> {
     let mut header = vec!["time (s)".to_string(), "incident (einstein)".to_string()];
     for a in &model.absorbers {
         header.push(format!("absorbed by {} (einstein)", model.species[*a]));
@@ -47,7 +61,7 @@ pub fn photons_csv(model: &Model, tr: &Trajectory) -> String {
     for p in model.photoproducts() {
         header.push(format!("photons per {} (1)", model.species[p]));
     }
-    let mut t = CsvTable::new(header);
+    let mut t = CsvTable::to_writer(w, header);
     for (k, (time, y)) in tr.times.iter().zip(&tr.states).enumerate() {
         let l = tr.ledger(model, k);
         let mut row = vec![sci(*time), sci(l.incident)];
@@ -60,7 +74,7 @@ pub fn photons_csv(model: &Model, tr: &Trajectory) -> String {
         row.extend(l.products.iter().map(|p| opt_sci(p.photons_per_molecule)));
         t.row(row);
     }
-    t.finish()
+    t.flush()
 }
 
 /// The summary of a run, as written to summary.json.
@@ -87,14 +101,88 @@ pub struct Summary {
     pub photon_unit: String,
     /// The photon ledger at the end (amounts in einstein).
     pub photons: Ledger,
-    /// Species that went negative beyond tolerance: (species, time s, value mol/L).
-    pub negative_concentrations: Vec<(String, f64, f64)>,
+    /// Runs repeated with tighter tolerances because the one before gave a concentration or
+    /// photon count below zero beyond the tolerance (`kinetics::check`), first to last.
+    pub retries: Vec<RetrySummary>,
+    /// What the floors took as zero (`model::floor`): lights under the light floor, thermal
+    /// steps under the rate floor.
+    pub floored: FlooredSummary,
     /// The daily light schedule the run followed (None: the light was on throughout).
     pub light_schedule: Option<LightSchedule>,
     /// Model assumptions.
     pub assumptions: String,
     /// Safety cautions.
     pub cautions: String,
+}
+
+/// A run repeated with tighter tolerances.
+#[derive(Debug, Serialize)]
+pub struct RetrySummary {
+    /// Relative tolerance of the repeated run.
+    pub rtol: f64,
+    /// Absolute tolerance of the repeated run, mol/L.
+    pub atol: f64,
+    /// What the run before gave, in words.
+    pub because: String,
+}
+
+/// Lights and thermal steps taken as zero because they are under their floors.
+#[derive(Debug, Serialize)]
+pub struct FlooredSummary {
+    /// Light sources whose photon flux is under `light_floor_einstein_per_s` (dark).
+    pub lights: Vec<String>,
+    /// Thermal steps (each direction) whose rate is under `rate_floor_per_s`.
+    pub thermal: Vec<String>,
+    /// The light floor, einstein/s: one photon in the age of the universe.
+    pub light_floor_einstein_per_s: f64,
+    /// The rate floor, s⁻¹, as a pseudo-first-order rate at 100 mol/L.
+    pub rate_floor_per_s: f64,
+}
+
+impl FlooredSummary {
+    /// The floors of `model`.
+    pub fn of(model: &Model) -> FlooredSummary {
+        FlooredSummary {
+            lights: model
+                .floored
+                .sources
+                .iter()
+                .map(|&s| model.sources[s].clone())
+                .collect(),
+            thermal: model
+                .floored
+                .reactions
+                .iter()
+                .map(|&r| model.reactions[r].name.clone())
+                .collect(),
+            light_floor_einstein_per_s: crate::model::floor::LIGHT_FLOOR,
+            rate_floor_per_s: crate::model::floor::RATE_FLOOR,
+        }
+    }
+
+    /// One line for the text summary, or None when the floors took nothing.
+    pub fn line(&self) -> Option<String> {
+        let mut parts = Vec::new();
+        if !self.lights.is_empty() {
+            parts.push(format!(
+                "light {} taken as none (under {:.1e} einstein/s: fewer than one photon in the age of the universe)",
+                quoted(&self.lights),
+                self.light_floor_einstein_per_s
+            ));
+        }
+        if !self.thermal.is_empty() {
+            parts.push(format!(
+                "thermal {} taken as not running (under {:e} s⁻¹ at 100 mol/L: less than 1e-12 converted in the age of the universe)",
+                quoted(&self.thermal),
+                self.rate_floor_per_s
+            ));
+        }
+        (!parts.is_empty()).then(|| parts.join("; "))
+    }
+}
+
+fn quoted(names: &[String]) -> String {
+    names.iter().map(|n| format!("\"{n}\"")).collect::<Vec<_>>().join(", ")
 }
 
 /// A light schedule in the summary: on for the first `lit_per_period_s` of every `period_s`.
@@ -191,18 +279,24 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
             jacobian_products: tr.counts.jacobian_products,
             jacobian_setups: tr.counts.jacobian_setups,
             jacobian_evaluations: tr.counts.jacobians,
-            rtol,
-            atol,
+            // a retry's tighter tolerances when there was one (`retries` says why)
+            rtol: tr.retries.last().map_or(rtol, |r| r.rtol),
+            atol: tr.retries.last().map_or(atol, |r| r.atol),
         },
         final_concentrations_mol_per_l: model.species.iter().cloned().zip(y.iter().copied()).collect(),
         volume_l: model.volume,
         photon_unit: "einstein".into(),
         photons: tr.ledger(model, tr.times.len() - 1),
-        negative_concentrations: tr
-            .negatives
+        retries: tr
+            .retries
             .iter()
-            .map(|n| (model.species[n.species].clone(), n.time, n.value))
+            .map(|r| RetrySummary {
+                rtol: r.rtol,
+                atol: r.atol,
+                because: r.because.to_string(),
+            })
             .collect(),
+        floored: FlooredSummary::of(model),
         light_schedule: tr.schedule.map(|s| LightSchedule {
             period_s: s.period,
             lit_per_period_s: s.lit,

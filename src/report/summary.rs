@@ -319,7 +319,9 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         o,
         "  incident        {}{}",
         sig(p.incident, 4),
-        if dark {
+        if dark && !s.floored.lights.is_empty() {
+            "  (no light: below the light floor, see floors below)"
+        } else if dark {
             "  (no light: every source is at zero)"
         } else {
             ""
@@ -427,6 +429,9 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         m.jacobian_setups,
         m.jacobian_products
     );
+    if let Some(line) = s.floored.line() {
+        let _ = writeln!(o, "floors      {line}");
+    }
     let _ = writeln!(o, "assumes     {}", s.assumptions);
     let _ = writeln!(o, "caution     {}", s.cautions);
     o

@@ -300,5 +300,6 @@ fn short(w: crate::plan::Why) -> &'static str {
         crate::plan::Why::Exhausted => "material used up",
         crate::plan::Why::Horizon => "horizon",
         crate::plan::Why::Dark => "no light",
+        crate::plan::Why::BelowFloor => "no light (below floor)",
     }
 }

@@ -65,7 +65,7 @@ pub fn section(net: &Network, model: &Model, study: &Study) -> String {
 }
 
 /// Integrator, tolerances and work, and where the numbers of each section come from.
-pub fn run_section(model: &Model, study: &Study, meta: &Meta) -> String {
+pub fn run_section(study: &Study, meta: &Meta) -> String {
     let tr = &study.kinetics;
     let name = |m: Method| match m {
         Method::Dop853 => "Dop853 (explicit Runge–Kutta of order 8)",
@@ -121,12 +121,10 @@ pub fn run_section(model: &Model, study: &Study, meta: &Meta) -> String {
              <code>photoledger barrier FILE --window</code>).</li>\n",
         );
     }
-    for n in &tr.negatives {
+    for r in &tr.retries {
         s.push_str(&format!(
-            "<li class=\"caution\">A concentration went below zero beyond the tolerance (species {} at {}): read \
-             the curves with care.</li>\n",
-            esc(&model.species[n.species]),
-            esc(&format_time(n.time))
+            "<li class=\"caution\">The kinetics were {}.</li>\n",
+            esc(&r.to_string())
         ));
     }
     s.push_str(&format!(

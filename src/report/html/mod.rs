@@ -66,7 +66,7 @@ pub fn render(net: &Network, model: &Model, study: &Study, meta: &Meta) -> Strin
             parts.push(("comparison", c));
         }
     }
-    parts.push(("run", kinetics::run_section(model, study, meta)));
+    parts.push(("run", kinetics::run_section(study, meta)));
     let title_of = |id: &str| SECTIONS.iter().find(|(i, _)| *i == id).map_or("", |(_, t)| *t);
     let parts: Vec<(&str, &str, String)> = parts.into_iter().map(|(id, html)| (id, title_of(id), html)).collect();
     let contents: Vec<(&str, &str)> = parts.iter().map(|(id, title, _)| (*id, *title)).collect();

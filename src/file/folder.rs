@@ -1,0 +1,221 @@
+//! Output folders written whole or not at all.
+//!
+//! A command that writes a folder ([`Folder::begin`]) writes every file into a temporary sibling
+//! (`.NAME.partial-PID`), and [`Folder::commit`] moves it into place at the end: the old folder
+//! is renamed aside, the new one renamed in, the old one removed. An interrupted run (an error,
+//! a panic, SIGINT or SIGTERM through [`remove_unfinished`]) leaves the old folder as it was and
+//! no temporary folder; a finished run leaves only the new one, never a mix of old and new
+//! files. Each file inside is still written by `report::write_atomic`.
+
+use crate::error::{Error, Result};
+use std::path::{Path, PathBuf};
+use std::sync::Mutex;
+
+/// Runs not yet committed, (temporary folder, target), for [`remove_unfinished`].
+static UNFINISHED: Mutex<Vec<(PathBuf, PathBuf)>> = Mutex::new(Vec::new());
+
+/// An output folder being written.
+#[derive(Debug)]
+pub struct Folder {
+    target: PathBuf,
+    staging: PathBuf,
+    committed: bool,
+}
+
+/// A sibling of `target` named `.NAME.TAG-PID`.
+fn sibling(target: &Path, tag: &str) -> PathBuf {
+    let name = target
+        .file_name()
+        .map(|n| n.to_string_lossy().to_string())
+        .unwrap_or_else(|| "out".into());
+    let parent = match target.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    parent.join(format!(".{name}.{tag}-{}", std::process::id()))
+}
+
+impl Folder {
+    /// Start writing the folder `target`: refused when `target` is something other than a
+    /// folder (a regular file, or a link to one: it is named, and left alone); the files go
+    /// into a fresh temporary sibling until [`Folder::commit`].
+    pub fn begin(target: &Path) -> Result<Folder> {
+        if let Ok(meta) = std::fs::metadata(target)
+            && !meta.is_dir()
+        {
+            return Err(Error::Usage(format!(
+                "--out {}: is an existing file, not a folder; name a folder (it is created, or replaced whole)",
+                target.display()
+            )));
+        }
+        if std::fs::symlink_metadata(target).is_ok_and(|m| m.file_type().is_symlink()) {
+            return Err(Error::Usage(format!(
+                "--out {}: is a symbolic link; name the folder itself, which is replaced whole",
+                target.display()
+            )));
+        }
+        let staging = sibling(target, "partial");
+        let io = |source| Error::Io {
+            path: staging.clone(),
+            source,
+        };
+        if staging.exists() {
+            std::fs::remove_dir_all(&staging).map_err(io)?;
+        }
+        std::fs::create_dir_all(&staging).map_err(io)?;
+        if let Ok(mut u) = UNFINISHED.lock() {
+            u.push((staging.clone(), target.to_path_buf()));
+        }
+        Ok(Folder {
+            target: target.to_path_buf(),
+            staging,
+            committed: false,
+        })
+    }
+
+    /// The folder to write the files into (the temporary sibling).
+    pub fn path(&self) -> &Path {
+        &self.staging
+    }
+
+    /// The path of file `name` in the folder being written.
+    pub fn join(&self, name: impl AsRef<Path>) -> PathBuf {
+        self.staging.join(name)
+    }
+
+    /// The folder the files end up in.
+    pub fn target(&self) -> &Path {
+        &self.target
+    }
+
+    /// Move the written folder into place, replacing the old one whole.
+    pub fn commit(mut self) -> Result<()> {
+        let io = |path: &Path, source| Error::Io {
+            path: path.to_path_buf(),
+            source,
+        };
+        let old = sibling(&self.target, "old");
+        let had_old = self.target.is_dir();
+        if had_old {
+            if old.exists() {
+                std::fs::remove_dir_all(&old).map_err(|e| io(&old, e))?;
+            }
+            std::fs::rename(&self.target, &old).map_err(|e| io(&self.target, e))?;
+        }
+        if let Err(e) = std::fs::rename(&self.staging, &self.target) {
+            // Put the old folder back: the run leaves what was there.
+            if had_old {
+                let _ = std::fs::rename(&old, &self.target);
+            }
+            return Err(io(&self.target, e));
+        }
+        self.committed = true;
+        let removed = if had_old {
+            std::fs::remove_dir_all(&old).map_err(|e| io(&old, e))
+        } else {
+            Ok(())
+        };
+        forget(&self.staging);
+        removed
+    }
+}
+
+impl Drop for Folder {
+    /// A folder never committed (an error or a panic on the way) is removed.
+    fn drop(&mut self) {
+        if !self.committed {
+            let _ = std::fs::remove_dir_all(&self.staging);
+            forget(&self.staging);
+        }
+    }
+}
+
+fn forget(staging: &Path) {
+    if let Ok(mut u) = UNFINISHED.lock() {
+        u.retain(|(p, _)| p != staging);
+    }
+}
+
+/// Remove the temporary folders of every run not yet committed: for a signal handler, before
+/// the process ends (a run stopped by SIGINT or SIGTERM leaves the old folder as it was). A run
+/// stopped inside [`Folder::commit`] is settled: the old folder put back when the new one is not
+/// yet in place, and removed when it is.
+pub fn remove_unfinished() {
+    let runs = match UNFINISHED.lock() {
+        Ok(mut u) => std::mem::take(&mut *u),
+        Err(_) => return,
+    };
+    for (staging, target) in runs {
+        let _ = std::fs::remove_dir_all(&staging);
+        let old = sibling(&target, "old");
+        if old.is_dir() {
+            if target.exists() {
+                let _ = std::fs::remove_dir_all(&old);
+            } else {
+                let _ = std::fs::rename(&old, &target);
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn scratch(tag: &str) -> PathBuf {
+        let d = std::env::temp_dir().join(format!("pl-folder-{}-{tag}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&d);
+        std::fs::create_dir_all(&d).unwrap();
+        d
+    }
+
+    fn names(dir: &Path) -> Vec<String> {
+        let mut v: Vec<String> = std::fs::read_dir(dir)
+            .unwrap()
+            .map(|e| e.unwrap().file_name().to_string_lossy().to_string())
+            .collect();
+        v.sort();
+        v
+    }
+
+    #[test]
+    fn a_committed_folder_replaces_the_old_one_whole() {
+        let d = scratch("commit");
+        let out = d.join("run");
+        std::fs::create_dir_all(&out).unwrap();
+        std::fs::write(out.join("stale.csv"), "old").unwrap();
+        let f = Folder::begin(&out).unwrap();
+        std::fs::write(f.join("new.csv"), "new").unwrap();
+        assert_eq!(names(&out), ["stale.csv"], "the old folder stands until the commit");
+        f.commit().unwrap();
+        assert_eq!(names(&out), ["new.csv"]);
+        assert_eq!(names(&d), ["run"], "no temporary folder left");
+    }
+
+    #[test]
+    fn an_unfinished_folder_leaves_the_old_one_and_no_temporary() {
+        let d = scratch("drop");
+        let out = d.join("run");
+        std::fs::create_dir_all(&out).unwrap();
+        std::fs::write(out.join("old.csv"), "old").unwrap();
+        {
+            let f = Folder::begin(&out).unwrap();
+            std::fs::write(f.join("half.csv"), "x").unwrap();
+        }
+        assert_eq!(names(&out), ["old.csv"]);
+        assert_eq!(names(&d), ["run"]);
+        let f = Folder::begin(&d.join("fresh")).unwrap();
+        remove_unfinished();
+        assert!(!f.path().exists());
+    }
+
+    #[test]
+    fn a_regular_file_as_the_folder_is_refused_by_name() {
+        let d = scratch("file");
+        let out = d.join("results.txt");
+        std::fs::write(&out, "keep").unwrap();
+        let e = Folder::begin(&out).unwrap_err().to_string();
+        assert!(e.contains("results.txt") && e.contains("existing file"), "{e}");
+        assert_eq!(std::fs::read_to_string(&out).unwrap(), "keep");
+    }
+}

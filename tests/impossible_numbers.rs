@@ -1,0 +1,91 @@
+//! A concentration or photon count below zero beyond the tolerance is no result
+//! (`kinetics::check`): the kinetics retry with tighter tolerances, say so, and give either
+//! sound numbers or exit 4 (README, *Exit codes*: a numerical engine could not finish).
+//!
+//! The case: one table point of ε = 1e18 L/(mol cm) in the bundled pool network (invented),
+//! an absorber no molecule could be; at the default tolerances the first hour gave
+//! −3.4e-5 einstein absorbed and −5.7e-8 M with exit 0. Concentrations and photon counts are
+//! never negative (common practice).
+
+use std::path::PathBuf;
+use std::process::Command;
+
+fn numbers(csv: &str) -> Vec<(String, f64)> {
+    let mut lines = csv.lines().filter(|l| !l.starts_with('#'));
+    let header: Vec<String> = lines
+        .next()
+        .unwrap()
+        .split(',')
+        .map(|h| h.trim().trim_matches('"').to_string())
+        .collect();
+    let mut out = Vec::new();
+    for l in lines {
+        for (h, v) in header.iter().zip(l.split(',')) {
+            if let Ok(x) = v.trim().parse::<f64>() {
+                out.push((h.clone(), x));
+            }
+        }
+    }
+    out
+}
+
+#[test]
+fn a_huge_epsilon_gives_sound_numbers_after_a_retry_or_exit_4() {
+    let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
+    let dir = std::env::temp_dir().join(format!("photoledger-impossible-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let text = std::fs::read_to_string(root.join("networks/prebiotic-pool.toml")).unwrap();
+    assert!(text.contains("[305, 9000]"));
+    std::fs::write(dir.join("pool.toml"), text.replace("[305, 9000]", "[305, 1e18]")).unwrap();
+    let out = Command::new(env!("CARGO_BIN_EXE_photoledger"))
+        .current_dir(&dir)
+        .args(["simulate", "pool.toml", "--until", "1 h", "--out", "run"])
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&out.stderr);
+    match out.status.code() {
+        Some(4) => assert!(err.contains("impossible numbers"), "{err}"),
+        Some(0) => {
+            // Sound after a retry that is said.
+            assert!(err.contains("note: the kinetics were retried at rtol"), "{err}");
+            // The default tolerances: rtol 1e-6, atol 1e-12 M; photon counts within rtol of
+            // the largest count.
+            for (h, v) in numbers(&std::fs::read_to_string(dir.join("run/concentrations.csv")).unwrap()) {
+                assert!(v >= -1e-12, "{h} = {v}");
+            }
+            let photons = numbers(&std::fs::read_to_string(dir.join("run/photons.csv")).unwrap());
+            let largest = photons.iter().fold(0.0f64, |m, (_, v)| m.max(v.abs()));
+            for (h, v) in photons {
+                assert!(v >= -1e-6 * largest, "{h} = {v}");
+            }
+            let json = std::fs::read_to_string(dir.join("run/summary.json")).unwrap();
+            assert!(json.contains("\"retries\"") && json.contains("\"because\""), "{json}");
+        }
+        c => panic!("exit {c:?}: {err}"),
+    }
+}
+
+/// Found by `scripts/fuzz_inputs.py` (seed 17, case 139): a network cut short after its
+/// conditions, with no species and no light, made `simulate` panic inside the linear algebra
+/// (exit 101). It is refused as a usage error instead.
+#[test]
+fn a_network_with_no_species_is_refused_not_a_panic() {
+    let dir = std::env::temp_dir().join(format!("photoledger-empty-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    std::fs::write(
+        dir.join("net.toml"),
+        "# invented\n[conditions]\ntemperature = \"298.15 K\"\nvolume = \"3 mL\"\npath_length = \"1 cm\"\n",
+    )
+    .unwrap();
+    let out = Command::new(env!("CARGO_BIN_EXE_photoledger"))
+        .current_dir(&dir)
+        .args(["simulate", "net.toml", "--until", "1 h", "--out", "run"])
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_ne!(out.status.code(), Some(101), "{err}");
+    assert!(matches!(out.status.code(), Some(1 | 2)), "{err}");
+    assert!(err.contains("no species"), "{err}");
+}
