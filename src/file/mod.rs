@@ -9,6 +9,7 @@ pub mod csv;
 pub mod data;
 pub mod evidence;
 pub mod frequencies;
+pub mod levels;
 pub mod schema;
 pub mod text;
 pub mod uncertain;

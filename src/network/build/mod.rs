@@ -10,6 +10,7 @@
 
 mod conditions;
 mod evidence;
+mod levels;
 mod light;
 mod rates;
 mod species;
@@ -186,12 +187,17 @@ impl<'a> Builder<'a> {
             photo,
             transients,
             evidence: Default::default(),
+            levels: Vec::new(),
             graph: Default::default(),
             warnings: Vec::new(),
         };
         self.evidence(doc, &mut net);
         super::checks::check_network(&mut self.sink, &self.at, &mut net);
         net.graph = super::checks::graph(&net);
+        // A set's keys are read against the built network, so only once it is sound.
+        if !self.sink.has_error() {
+            net.levels = self.levels(doc, &net);
+        }
         Some(net)
     }
 }
