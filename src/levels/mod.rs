@@ -216,12 +216,18 @@ impl Comparison {
     }
 
     /// The observable a measurement should target: the one with the largest factor that a
-    /// measurement gives (None when every one agrees).
+    /// measurement gives, among those per photon or per molecule first (they do not depend on
+    /// the lamp's calibration), then the times and amounts of the kinetics (None when every
+    /// one agrees).
     pub fn telling(&self) -> Option<&Observable> {
-        self.by_disagreement()
-            .into_iter()
-            .map(|i| &self.observables[i])
-            .find(|o| o.kind.measurement().is_some() && o.verdict != Some(Verdict::Agree))
+        let apart = |o: &&Observable| o.kind.measurement().is_some() && o.verdict != Some(Verdict::Agree);
+        let order: Vec<&Observable> = self.by_disagreement().into_iter().map(|i| &self.observables[i]).collect();
+        order
+            .iter()
+            .copied()
+            .filter(apart)
+            .find(|o| !matches!(o.kind, Kind::TimeToTarget | Kind::Final))
+            .or_else(|| order.iter().copied().find(apart))
     }
 
     /// A lifetime the sets agree on while they disagree on a product yield or ratio: "the
@@ -265,17 +271,6 @@ fn chain_values(model: &Model, net: &Network) -> Result<ChainValues> {
             let names: Vec<String> = an.absorbing.iter().map(|&s| ch.states[s].name.clone()).collect();
             for (k, name) in names.iter().enumerate() {
                 rows.push((format!("yield of {name}"), Kind::Yield, Some(an.yields[k])));
-            }
-            // The two main ends by yield: their ratio.
-            let mut order: Vec<usize> = (0..names.len()).collect();
-            order.sort_by(|&a, &b| an.yields[b].total_cmp(&an.yields[a]).then(a.cmp(&b)));
-            if let [a, b, ..] = order[..] {
-                let (ya, yb) = (an.yields[a], an.yields[b]);
-                rows.push((
-                    format!("ratio {} : {}", names[a], names[b]),
-                    Kind::Ratio,
-                    (yb > 0.0).then(|| ya / yb),
-                ));
             }
             for (k, name) in names.iter().enumerate() {
                 let per = an.quantum_yield(k).filter(|q| *q > 0.0).map(|q| 1.0 / q);
@@ -368,6 +363,27 @@ pub fn compare(net: &Network, opts: &LevelOptions) -> Result<Comparison> {
             chain_error,
         });
     }
+    // The ratio of the two main ends (largest summed yield over the sets), in chain order, the
+    // same pair under every set.
+    let yields: Vec<usize> = (0..rows.len()).filter(|&r| rows[r].1 == Kind::Yield).collect();
+    if yields.len() >= 2 {
+        let total = |r: usize| rows[r].2.iter().flatten().sum::<f64>();
+        let mut main = yields.clone();
+        main.sort_by(|&a, &b| total(b).total_cmp(&total(a)));
+        let (mut a, mut b) = (main[0], main[1]);
+        if a > b {
+            std::mem::swap(&mut a, &mut b);
+        }
+        let name = |r: usize| rows[r].0.trim_start_matches("yield of ").to_string();
+        let values: Vec<Option<f64>> = (0..n)
+            .map(|i| match (rows[a].2[i], rows[b].2[i]) {
+                (Some(x), Some(y)) if y > 0.0 => Some(x / y),
+                _ => None,
+            })
+            .collect();
+        let at = yields.last().map_or(rows.len(), |&l| l + 1);
+        rows.insert(at, (format!("ratio {} : {}", name(a), name(b)), Kind::Ratio, values));
+    }
     // Kinetics: the time to the target, then the products at one common time.
     let plan_opts = PlanOptions::default();
     let mut horizons = Vec::new();
@@ -416,6 +432,7 @@ pub fn compare(net: &Network, opts: &LevelOptions) -> Result<Comparison> {
     }
     let observables = rows
         .into_iter()
+        .filter(|(_, _, values)| values.iter().any(Option::is_some))
         .map(|(name, kind, values)| Observable::new(name, kind, values))
         .collect();
     Ok(Comparison {

@@ -152,7 +152,7 @@ pub fn text(name: &str, c: &Comparison) -> String {
     let n = c.sets.len();
     let _ = writeln!(
         o,
-        "levels of theory in {name}: {n} set{} of values, each written over the file's",
+        "levels of theory in {name}: {n} set{} of values, each written over the file's values",
         if n == 1 { "" } else { "s" }
     );
     for s in &c.sets {
@@ -399,4 +399,29 @@ pub fn scores_csv(s: &Scores) -> String {
         }
     }
     t.finish()
+}
+
+/// `check`'s lines on the sets a network carries ("" when none): each label with what it sets.
+pub fn check_text(net: &crate::network::Network) -> String {
+    let mut o = String::new();
+    if net.levels.is_empty() {
+        return o;
+    }
+    let _ = writeln!(
+        o,
+        "\nlevels of theory ({} set{}; `photoledger levels` runs the network under each)",
+        net.levels.len(),
+        if net.levels.len() == 1 { "" } else { "s" }
+    );
+    for l in &net.levels {
+        let mut keys: Vec<String> = l.values.iter().map(|(k, _)| k.spell(net)).collect();
+        keys.extend(
+            l.counts
+                .iter()
+                .map(|c| format!("transient.{}.trajectories", net.transients[c.transient].name)),
+        );
+        let note = if l.note.is_empty() { String::new() } else { format!(" ({})", l.note) };
+        let _ = writeln!(o, "  \"{}\"{note}: {}", l.label, keys.join(", "));
+    }
+    o
 }
