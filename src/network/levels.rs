@@ -61,6 +61,12 @@ impl Level {
     /// the network's evidence so `uncertainty` draws from this method's counts. A value the
     /// network cannot take is refused with a message naming the key.
     pub fn apply(&self, net: &Network) -> Result<Network, String> {
+        if let Some(c) = self.counts.iter().find(|c| c.runs.iter().sum::<u64>() == 0) {
+            return Err(format!(
+                "transient.{}.trajectories: no run reached any channel, so the counts give no shares",
+                net.transients[c.transient].name
+            ));
+        }
         let writes = self.writes();
         let falls = |&(k, v): &(Key, f64)| {
             matches!(k, Key::Fraction { .. } | Key::QuantumYield(_) | Key::Efficiency(_))
@@ -71,12 +77,6 @@ impl Level {
         let mut out = net.clone();
         params::set_all(&mut out, &ordered)?;
         for c in &self.counts {
-            if c.runs.iter().sum::<u64>() == 0 {
-                return Err(format!(
-                    "transient.{}.trajectories: no run reached any channel, so the counts give no shares",
-                    net.transients[c.transient].name
-                ));
-            }
             if let Some(e) = out.evidence.counts.iter_mut().find(|e| e.transient == c.transient) {
                 e.runs = c.runs.clone();
                 if let Some(u) = c.unfinished {
