@@ -362,7 +362,12 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
             target: opts.target.clone(),
             until: Some(until),
         };
-        crate::levels::compare(net, &lo).map_err(|e| e.to_string())
+        crate::levels::compare(net, &lo)
+            .map(|mut c| {
+                c.until_reason = format!("the report's irradiation time: {until_reason}");
+                c
+            })
+            .map_err(|e| e.to_string())
     });
     Ok(Study {
         until,

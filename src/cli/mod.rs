@@ -113,7 +113,7 @@ pub enum Exit {
     /// `uncertainty --target` (no sample reaches it).
     Unreachable = 5,
     /// Stopped at a limit (evaluations or time) before converging; the best point is reported.
-    /// `fit` and `compare` at `--max-evaluations` or `--time-limit`.
+    /// `fit`, `compare` and `levels --free` at `--max-evaluations` or `--time-limit`.
     StoppedAtLimit = 6,
 }
 
@@ -141,7 +141,7 @@ impl Exit {
         ),
         (
             Exit::StoppedAtLimit,
-            "stopped at a limit (`fit`, `compare`: `--max-evaluations` or `--time-limit`) before converging; the best point found is reported and written, marked not converged",
+            "stopped at a limit (`fit`, `compare`, `levels --free`: `--max-evaluations` or `--time-limit`) before converging; the best point found is reported and written, marked not converged",
         ),
     ];
 

@@ -261,8 +261,12 @@ pub fn scores_text(s: &Scores) -> String {
     }
     if let Some(cmp) = &s.refit {
         let _ = writeln!(o, "\nrefitted under each set (free: {})", s.free.join(", "));
-        for line in rf::compare_text(&ranked(cmp), cmp.ranking.disagreement.as_deref()).lines() {
-            let _ = writeln!(o, "  {line}");
+        for line in rf::ranking_text(&ranked(cmp), cmp.ranking.disagreement.as_deref(), "set").lines() {
+            if line.is_empty() {
+                let _ = writeln!(o);
+            } else {
+                let _ = writeln!(o, "  {line}");
+            }
         }
         for (label, f, _) in cmp.ranked() {
             let values: Vec<String> = f

@@ -95,7 +95,7 @@ pub fn section(c: &std::result::Result<Comparison, String>) -> String {
         .collect();
     s.push_str(&page::table("The observables under each set", &head, &rows));
     s.push_str(&page::assumption(&format!(
-        "one molecule followed with {}; products compared at {} ({}); apart is the largest value over the smallest, \
+        "one molecule followed ({}); products compared at {} ({}); apart is the largest value over the smallest, \
          agreement within ×{}, disagreement from ×{}",
         c.chain_light,
         crate::units::format_time(c.until),
