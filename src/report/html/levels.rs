@@ -4,7 +4,9 @@
 use super::escape::esc;
 use super::page::{self, num_cell, text_cell};
 use crate::levels::{Comparison, Kind, Verdict};
-use crate::report::levels::{factor_text, findings, value_text, verdict_word};
+use super::{CONCENTRATION, TIME, pick_unit};
+use crate::report::levels::{factor_text, findings, verdict_word};
+use crate::units::sig;
 
 /// The section, or why the comparison could not be made.
 pub fn section(c: &std::result::Result<Comparison, String>) -> String {
@@ -32,56 +34,61 @@ pub fn section(c: &std::result::Result<Comparison, String>) -> String {
         })
         .collect();
     s.push_str(&format!("<ul>\n{}\n</ul>\n", notes.join("\n")));
-    let labels: Vec<&str> = c.sets.iter().map(|x| x.label.as_str()).collect();
-    let mut head: Vec<(&str, bool)> = vec![("key", false)];
-    head.extend(labels.iter().map(|l| (*l, false)));
+    // Numbers in each row's own unit (the row's largest value picks it), named in the row; the
+    // set columns are headed accordingly.
+    let heads: Vec<String> = c.sets.iter().map(|x| format!("{} (unit of the row)", x.label)).collect();
+    let mut head: Vec<(&str, bool)> = vec![("key", false), ("unit", false)];
+    head.extend(heads.iter().map(|l| (l.as_str(), true)));
     let rows: Vec<String> = c
         .values
         .iter()
         .map(|v| {
-            let mut r = text_cell(&v.key);
             if v.counts.is_empty() {
+                let largest = v.values.iter().flatten().fold(0.0f64, |m, x| m.max(x.abs()));
+                let (f, u) = crate::units::display::readable_unit(v.unit, largest);
+                let mut r = format!("{}{}", text_cell(&v.key), text_cell(if u.is_empty() { "—" } else { &u }));
                 for x in &v.values {
-                    r.push_str(&num_cell(&match x {
-                        None => "(file)".to_string(),
-                        Some(x) => {
-                            let (x, u) = crate::units::display::readable(v.unit, *x);
-                            if u.is_empty() {
-                                crate::units::sig(x, 4)
-                            } else {
-                                format!("{} {u}", crate::units::sig(x, 4))
-                            }
-                        }
-                    }));
+                    r.push_str(&num_cell(&x.map_or("(file)".to_string(), |x| sig(x / f, 4))));
                 }
+                r
             } else {
+                let mut r = format!("{}{}", text_cell(&v.key), text_cell("runs per channel"));
                 for x in &v.counts {
                     r.push_str(&num_cell(&x.as_ref().map_or("(file)".to_string(), |runs| {
-                        let t: Vec<String> = runs.iter().map(|n| n.to_string()).collect();
-                        format!("{} runs", t.join(" / "))
+                        runs.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(" / ")
                     })));
                 }
+                r
             }
-            r
         })
         .collect();
-    s.push_str(&page::table("What each set gives (unit in each cell)", &head, &rows));
+    s.push_str(&page::table("What each set gives", &head, &rows));
     let mut head: Vec<(&str, bool)> = vec![("observable", false), ("unit", false)];
-    head.extend(labels.iter().map(|l| (*l, false)));
-    head.extend([("apart", false), ("verdict", false)]);
+    head.extend(heads.iter().map(|l| (l.as_str(), true)));
+    head.extend([("apart (factor)", true), ("verdict", false)]);
     let rows: Vec<String> = c
         .observables
         .iter()
         .map(|o| {
-            let unit = match o.kind {
-                k if k.is_time() => "time (in each cell)",
-                Kind::Final => "concentration (in each cell)",
-                Kind::PhotonsPerProduct => "photons per molecule",
-                _ => "—",
+            let largest = o.values.iter().flatten().filter(|x| x.is_finite()).fold(0.0f64, |m, x| m.max(x.abs()));
+            let (f, unit) = match o.kind {
+                k if k.is_time() => {
+                    let (f, u) = pick_unit(largest, &TIME);
+                    (f, u.to_string())
+                }
+                Kind::Final => {
+                    let (f, u) = pick_unit(largest, &CONCENTRATION);
+                    (f, u.to_string())
+                }
+                Kind::PhotonsPerProduct => (1.0, "photons per molecule".to_string()),
+                _ => (1.0, "—".to_string()),
             };
-            let mut r = format!("{}{}", text_cell(&o.name), text_cell(unit));
+            let mut r = format!("{}{}", text_cell(&o.name), text_cell(&unit));
             for v in &o.values {
-                r.push_str(&num_cell(&value_text(o.kind, *v)));
+                r.push_str(&num_cell(&match v {
+                    Some(x) if x.is_finite() => sig(x / f, 4),
+                    _ => "—".to_string(),
+                }));
             }
             let cls = match o.verdict {
                 Some(Verdict::Agree) => "yes",
