@@ -70,7 +70,12 @@ fn value(c: &levels::Comparison, name: &str) -> levels::Observable {
     c.observables
         .iter()
         .find(|o| o.name == name)
-        .unwrap_or_else(|| panic!("no observable {name}: {:?}", c.observables.iter().map(|o| &o.name).collect::<Vec<_>>()))
+        .unwrap_or_else(|| {
+            panic!(
+                "no observable {name}: {:?}",
+                c.observables.iter().map(|o| &o.name).collect::<Vec<_>>()
+            )
+        })
         .clone()
 }
 
@@ -107,11 +112,23 @@ fn two_sets_differing_in_branching_give_opposite_ratios_and_one_lifetime() {
     // photons per product are 1 / its share (closed form).
     let per = value(&c, "photons absorbed per P");
     assert!(close(per.values[0].unwrap(), 1.0 / share, 1e-10), "{:?}", per.values);
-    assert!(close(per.values[1].unwrap(), 1.0 / (1.0 - share), 1e-10), "{:?}", per.values);
+    assert!(
+        close(per.values[1].unwrap(), 1.0 / (1.0 - share), 1e-10),
+        "{:?}",
+        per.values
+    );
     // The kinetics: P and Q form from the same S1 at every instant, so [P]/[Q] = k₁/k₂ at any
     // time (closed form).
-    let fp = c.observables.iter().find(|o| o.kind == Kind::Final && o.name.starts_with("P at")).unwrap();
-    let fq = c.observables.iter().find(|o| o.kind == Kind::Final && o.name.starts_with("Q at")).unwrap();
+    let fp = c
+        .observables
+        .iter()
+        .find(|o| o.kind == Kind::Final && o.name.starts_with("P at"))
+        .unwrap();
+    let fq = c
+        .observables
+        .iter()
+        .find(|o| o.kind == Kind::Final && o.name.starts_with("Q at"))
+        .unwrap();
     assert!(close(fp.values[0].unwrap() / fq.values[0].unwrap(), 3.0, 1e-6));
     assert!(close(fp.values[1].unwrap() / fq.values[1].unwrap(), 1.0 / 3.0, 1e-6));
     // Reported as "agree on the lifetime, disagree on the product ratio".
@@ -120,9 +137,14 @@ fn two_sets_differing_in_branching_give_opposite_ratios_and_one_lifetime() {
     assert_eq!(p.name, "ratio P : Q");
     assert_eq!(c.telling().map(|o| o.name.as_str()), Some("ratio P : Q"));
     let words = photoledger::report::levels::findings(&c).join("\n");
-    assert!(words.contains("agree on lifetime of S1, disagree on ratio P : Q"), "{words}");
+    assert!(
+        words.contains("agree on lifetime of S1, disagree on ratio P : Q"),
+        "{words}"
+    );
     // The network itself keeps its own values.
-    assert!(matches!(net.transients[0].channels[0].branching, photoledger::network::Branching::Rate { k, .. } if k == 2e9));
+    assert!(
+        matches!(net.transients[0].channels[0].branching, photoledger::network::Branching::Rate { k, .. } if k == 2e9)
+    );
 }
 
 /// Time courses of P made from `net` at `x` (sd 1 µM), predicted exactly (no noise).
@@ -182,7 +204,11 @@ fn scoring_finds_the_set_the_data_came_from() {
         assert!(f.result.solution.chi2 < 1e-6, "{label}: {}", f.result.solution.chi2);
         assert_eq!(f.result.k, 1);
         let k2 = if label == "one" { 1e9 } else { 3e9 };
-        assert!(close(f.result.solution.values[0], k2 / 3.0, 1e-4), "{label}: {}", f.result.solution.values[0]);
+        assert!(
+            close(f.result.solution.values[0], k2 / 3.0, 1e-4),
+            "{label}: {}",
+            f.result.solution.values[0]
+        );
         // AICc = −2 ln L + 2k + 2k(k + 1)/(n − k − 1) (Burnham & Anderson, Model Selection and
         // Multimodel Inference, 2nd ed., 2002, the small-sample criterion; from memory).
         let (m2ll, k, nf) = (f.result.minus_two_log_likelihood, 1.0, n as f64);
@@ -244,7 +270,10 @@ fn bad_sets_are_named_at_their_line() {
     let (l, field, msg, _) = first_error(&t);
     assert_eq!(l, line);
     assert!(field.contains("level \"a\""), "{field}");
-    assert!(msg.contains("used twice") && msg.contains(&format!("line {}", line - 4)), "{msg}");
+    assert!(
+        msg.contains("used twice") && msg.contains(&format!("line {}", line - 4)),
+        "{msg}"
+    );
     // An unknown key, with the closest one suggested.
     let (t, line) = with_levels(
         "[[level]]\nlabel = \"a\"\nset = { \"transient.S1.channels[0].kk\" = \"1e9 /s\" }\n",
@@ -253,7 +282,10 @@ fn bad_sets_are_named_at_their_line() {
     let (l, field, msg, _) = first_error(&t);
     assert_eq!(l, line);
     assert!(field.contains("transient.S1.channels[0].kk"), "{field}");
-    assert!(msg.contains("not given with `kk`") || msg.contains("did you mean"), "{msg}");
+    assert!(
+        msg.contains("not given with `kk`") || msg.contains("did you mean"),
+        "{msg}"
+    );
     // A wrong unit: what is accepted is named.
     let (t, line) = with_levels(
         "[[level]]\nlabel = \"a\"\nset = { \"transient.S1.channels[0].k\" = \"3 kcal/mol\" }\n",
@@ -329,9 +361,8 @@ channels = [ { to = "P", trajectories = 30 }, { to = "A", trajectories = 70 } ]
 
 #[test]
 fn counted_shares_take_counts_not_fractions() {
-    let text = format!(
-        "{COUNTED}\n[[level]]\nlabel = \"a\"\nset = {{ \"transient.CI.channels[0].fraction\" = 0.5 }}\n"
-    );
+    let text =
+        format!("{COUNTED}\n[[level]]\nlabel = \"a\"\nset = {{ \"transient.CI.channels[0].fraction\" = 0.5 }}\n");
     let (_, _, msg, help) = first_error(&text);
     assert!(msg.contains("trajectory counts"), "{msg}");
     assert!(help.contains("transient.CI.trajectories"), "{help}");
@@ -370,8 +401,13 @@ fn a_fit_refuses_to_free_a_share_given_by_counts() {
         endpoints: Vec::new(),
     }];
     let free = vec!["transient.CI.channels[0].fraction".to_string()];
-    let e = Setup::new(&net, &data, &free, Accuracy::default()).err().expect("refused");
+    let e = Setup::new(&net, &data, &free, Accuracy::default())
+        .err()
+        .expect("refused");
     let m = e.to_string();
     assert!(matches!(e, Error::Usage(_)), "{m}");
-    assert!(m.contains("trajectory counts") && m.contains("Remove the counts"), "{m}");
+    assert!(
+        m.contains("trajectory counts") && m.contains("Remove the counts"),
+        "{m}"
+    );
 }

@@ -150,7 +150,10 @@ fn every_bundled_network_renders_a_self_contained_page() {
         assert_eq!(page.contains(" id=\"levels\""), has_levels, "{net}: levels section");
         if has_levels {
             let s = section_of(&page, "levels");
-            assert!(s.contains("agree on lifetime of S1, disagree on ratio ring : shifted"), "{net}");
+            assert!(
+                s.contains("agree on lifetime of S1, disagree on ratio ring : shifted"),
+                "{net}"
+            );
             assert!(page.contains("href=\"#levels\""), "{net}: levels not in the contents");
         }
         // Every inline SVG parses as XML, without a namespace URL, and ids are unique.

@@ -46,7 +46,12 @@ pub struct LevelsArgs {
 
 /// Run `levels`.
 pub fn run(a: &LevelsArgs) -> photoledger::Result<Exit> {
-    let free: Vec<String> = a.free.iter().map(|k| k.trim().to_string()).filter(|k| !k.is_empty()).collect();
+    let free: Vec<String> = a
+        .free
+        .iter()
+        .map(|k| k.trim().to_string())
+        .filter(|k| !k.is_empty())
+        .collect();
     if !free.is_empty() && a.data.is_empty() {
         return Err(Error::Usage("--free refits against data: give --data too".into()));
     }
@@ -61,7 +66,10 @@ pub fn run(a: &LevelsArgs) -> photoledger::Result<Exit> {
     let until = a
         .until
         .as_deref()
-        .map(|d| photoledger::units::parse(d, q).map_err(|e| Error::Usage(format!("--until: {e}; expected {}", q.accepted()))))
+        .map(|d| {
+            photoledger::units::parse(d, q)
+                .map_err(|e| Error::Usage(format!("--until: {e}; expected {}", q.accepted())))
+        })
         .transpose()?;
     if until.is_some_and(|t| !(t > 0.0 && t.is_finite())) {
         return Err(Error::Usage("--until: the time must be positive".into()));
@@ -93,7 +101,8 @@ pub fn run(a: &LevelsArgs) -> photoledger::Result<Exit> {
             .unwrap_or_else(|| "network".into());
         PathBuf::from(format!("{stem}-levels"))
     });
-    let json = serde_json::to_string_pretty(&report::json(&c, scores.as_ref())).map_err(|e| Error::Numerical(e.to_string()))?;
+    let json = serde_json::to_string_pretty(&report::json(&c, scores.as_ref()))
+        .map_err(|e| Error::Numerical(e.to_string()))?;
     write_atomic(&dir.join("summary.json"), json.as_bytes())?;
     write_atomic(&dir.join("observables.csv"), report::observables_csv(&c).as_bytes())?;
     if let Some(s) = &scores {

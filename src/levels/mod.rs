@@ -144,11 +144,17 @@ fn spread(values: &[Option<f64>]) -> (Option<f64>, Option<(usize, usize)>) {
     if given.is_empty() {
         return (None, None);
     }
-    let (hi, max) = given.iter().copied().fold((0, f64::NEG_INFINITY), |a, b| if b.1 > a.1 { b } else { a });
+    let (hi, max) = given
+        .iter()
+        .copied()
+        .fold((0, f64::NEG_INFINITY), |a, b| if b.1 > a.1 { b } else { a });
     if let Some(none) = values.iter().position(|v| v.is_none_or(|x| !x.is_finite())) {
         return (Some(f64::INFINITY), Some((none, hi)));
     }
-    let (lo, min) = given.iter().copied().fold((0, f64::INFINITY), |a, b| if b.1 < a.1 { b } else { a });
+    let (lo, min) = given
+        .iter()
+        .copied()
+        .fold((0, f64::INFINITY), |a, b| if b.1 < a.1 { b } else { a });
     if max == min {
         return (Some(1.0), Some((lo, hi)));
     }
@@ -221,7 +227,11 @@ impl Comparison {
     /// one agrees).
     pub fn telling(&self) -> Option<&Observable> {
         let apart = |o: &&Observable| o.kind.measurement().is_some() && o.verdict != Some(Verdict::Agree);
-        let order: Vec<&Observable> = self.by_disagreement().into_iter().map(|i| &self.observables[i]).collect();
+        let order: Vec<&Observable> = self
+            .by_disagreement()
+            .into_iter()
+            .map(|i| &self.observables[i])
+            .collect();
         order
             .iter()
             .copied()
@@ -398,7 +408,11 @@ pub fn compare(net: &Network, opts: &LevelOptions) -> Result<Comparison> {
         Some(u) => (u, "as asked (--until)".to_string()),
         None => {
             for model in &models {
-                let target = opts.target.as_deref().map(|t| plan::target::parse(t, model)).transpose()?;
+                let target = opts
+                    .target
+                    .as_deref()
+                    .map(|t| plan::target::parse(t, model))
+                    .transpose()?;
                 horizons.push(plan::horizon::automatic(model, target.as_ref())?);
             }
             let longest = horizons.iter().map(|h| h.time).fold(0.0, f64::max);

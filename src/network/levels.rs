@@ -146,8 +146,12 @@ set = { "transient.S1.trajectories" = [10, 30], "transient.CI.channels[0].fracti
         assert_eq!(net.levels.len(), 1);
         let under = net.levels[0].apply(&net).expect("applies");
         // The S1 share to CI falls from 0.75 to 0.25 while the return rises: written in order.
-        assert!(matches!(under.transients[0].channels[0].branching, Branching::Fraction(x) if (x - 0.25).abs() < 1e-15));
-        assert!(matches!(under.transients[0].channels[1].branching, Branching::Fraction(x) if (x - 0.75).abs() < 1e-15));
+        assert!(
+            matches!(under.transients[0].channels[0].branching, Branching::Fraction(x) if (x - 0.25).abs() < 1e-15)
+        );
+        assert!(
+            matches!(under.transients[0].channels[1].branching, Branching::Fraction(x) if (x - 0.75).abs() < 1e-15)
+        );
         assert!(matches!(under.transients[1].channels[0].branching, Branching::Fraction(x) if (x - 0.2).abs() < 1e-15));
         assert_eq!(under.evidence.counts_of(0).expect("counted").runs, vec![10, 30]);
         // The network itself is untouched.

@@ -55,7 +55,11 @@ fn set_value_text(unit: &str, v: Option<f64>) -> String {
         None => "(file)".into(),
         Some(x) => {
             let (x, u) = display::readable(unit, x);
-            if u.is_empty() { sig(x, 4) } else { format!("{} {u}", sig(x, 4)) }
+            if u.is_empty() {
+                sig(x, 4)
+            } else {
+                format!("{} {u}", sig(x, 4))
+            }
         }
     }
 }
@@ -141,7 +145,8 @@ pub fn findings(c: &Comparison) -> Vec<String> {
                 factor_text(o)
             ));
         }
-        None => out.push("no measurement listed here tells the sets apart: they agree on every measurable observable".into()),
+        None => out
+            .push("no measurement listed here tells the sets apart: they agree on every measurable observable".into()),
     }
     out
 }
@@ -156,10 +161,21 @@ pub fn text(name: &str, c: &Comparison) -> String {
         if n == 1 { "" } else { "s" }
     );
     for s in &c.sets {
-        let note = if s.note.is_empty() { String::new() } else { format!(": {}", s.note) };
+        let note = if s.note.is_empty() {
+            String::new()
+        } else {
+            format!(": {}", s.note)
+        };
         let _ = writeln!(o, "  \"{}\"{note}", s.label);
     }
-    let lw = c.sets.iter().map(|s| s.label.chars().count()).max().unwrap_or(8).max(12) + 2;
+    let lw = c
+        .sets
+        .iter()
+        .map(|s| s.label.chars().count())
+        .max()
+        .unwrap_or(8)
+        .max(12)
+        + 2;
     let keyw = c
         .values
         .iter()
@@ -235,7 +251,13 @@ pub fn scores_text(s: &Scores) -> String {
         "\nagainst the data, as each set stands ({} observations; {basis})",
         first.score.n
     );
-    let w = s.fixed.iter().map(|f| f.label.chars().count()).max().unwrap_or(8).max(8);
+    let w = s
+        .fixed
+        .iter()
+        .map(|f| f.label.chars().count())
+        .max()
+        .unwrap_or(8)
+        .max(8);
     let best = s.order.first().map_or(0.0, |&i| s.fixed[i].score.aicc);
     let _ = writeln!(
         o,
@@ -424,7 +446,11 @@ pub fn check_text(net: &crate::network::Network) -> String {
                 .iter()
                 .map(|c| format!("transient.{}.trajectories", net.transients[c.transient].name)),
         );
-        let note = if l.note.is_empty() { String::new() } else { format!(" ({})", l.note) };
+        let note = if l.note.is_empty() {
+            String::new()
+        } else {
+            format!(" ({})", l.note)
+        };
         let _ = writeln!(o, "  \"{}\"{note}: {}", l.label, keys.join(", "));
     }
     o

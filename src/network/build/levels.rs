@@ -61,13 +61,21 @@ impl Builder<'_> {
             };
             let mut entries: Vec<(&String, &Spanned<toml::Value>)> = set.get_ref().iter().collect();
             if entries.is_empty() {
-                self.error(&format!("{field}.set"), &span(set), "the set gives no values", Some(SET_HELP.into()));
+                self.error(
+                    &format!("{field}.set"),
+                    &span(set),
+                    "the set gives no values",
+                    Some(SET_HELP.into()),
+                );
                 continue;
             }
             entries.sort_by_key(|(_, v)| v.span().start);
             let mut level = Level {
                 label: name.clone(),
-                note: e.note.as_ref().map_or(String::new(), |n| n.get_ref().trim().to_string()),
+                note: e
+                    .note
+                    .as_ref()
+                    .map_or(String::new(), |n| n.get_ref().trim().to_string()),
                 line,
                 values: Vec::new(),
                 counts: Vec::new(),
@@ -156,7 +164,12 @@ impl Builder<'_> {
                         true
                     }
                     None => {
-                        self.error(field, &at, format!("{} is not a whole number ≥ 0", value.get_ref()), Some("the runs that reached no channel, e.g. 4".into()));
+                        self.error(
+                            field,
+                            &at,
+                            format!("{} is not a whole number ≥ 0", value.get_ref()),
+                            Some("the runs that reached no channel, e.g. 4".into()),
+                        );
                         false
                     }
                 };
@@ -179,7 +192,9 @@ impl Builder<'_> {
                         field,
                         &at,
                         format!("{} counts for {channels} channels", runs.len()),
-                        Some(format!("one whole number per channel of \"{name}\", in channel order (0 for a channel no run took)")),
+                        Some(format!(
+                            "one whole number per channel of \"{name}\", in channel order (0 for a channel no run took)"
+                        )),
                     );
                     false
                 }
@@ -188,7 +203,9 @@ impl Builder<'_> {
                         field,
                         &at,
                         format!("{} is not a list of whole numbers ≥ 0", value.get_ref()),
-                        Some(format!("one count per channel of \"{name}\", in channel order, e.g. [41, 12]")),
+                        Some(format!(
+                            "one count per channel of \"{name}\", in channel order, e.g. [41, 12]"
+                        )),
                     );
                     false
                 }
@@ -209,7 +226,9 @@ impl Builder<'_> {
                 field,
                 &at,
                 "this channel's share comes from trajectory counts, so it has no fraction to set",
-                Some(format!("give this set's counts: transient.{name}{TRAJECTORIES} = [...], one per channel")),
+                Some(format!(
+                    "give this set's counts: transient.{name}{TRAJECTORIES} = [...], one per channel"
+                )),
             );
             return false;
         }
@@ -236,9 +255,11 @@ impl Builder<'_> {
                 true
             }
             Err(m) => {
-                let help = p.quantity.map_or("a plain number, or a percentage such as \"45 %\"".to_string(), |q| {
-                    format!("expected {}", q.accepted())
-                });
+                let help = p
+                    .quantity
+                    .map_or("a plain number, or a percentage such as \"45 %\"".to_string(), |q| {
+                        format!("expected {}", q.accepted())
+                    });
                 self.error(field, &at, m, Some(help));
                 false
             }
@@ -254,4 +275,3 @@ fn whole(v: &toml::Value) -> Option<u64> {
         _ => None,
     }
 }
-

@@ -3,8 +3,8 @@
 
 use super::escape::esc;
 use super::page::{self, num_cell, text_cell};
-use crate::levels::{Comparison, Kind, Verdict};
 use super::{CONCENTRATION, TIME, pick_unit};
+use crate::levels::{Comparison, Kind, Verdict};
 use crate::report::levels::{factor_text, findings, verdict_word};
 use crate::units::sig;
 
@@ -29,14 +29,22 @@ pub fn section(c: &std::result::Result<Comparison, String>) -> String {
         .sets
         .iter()
         .map(|x| {
-            let note = if x.note.is_empty() { String::new() } else { format!(": {}", esc(&x.note)) };
+            let note = if x.note.is_empty() {
+                String::new()
+            } else {
+                format!(": {}", esc(&x.note))
+            };
             format!("<li><strong>{}</strong>{note}</li>", esc(&x.label))
         })
         .collect();
     s.push_str(&format!("<ul>\n{}\n</ul>\n", notes.join("\n")));
     // Numbers in each row's own unit (the row's largest value picks it), named in the row; the
     // set columns are headed accordingly.
-    let heads: Vec<String> = c.sets.iter().map(|x| format!("{} (unit of the row)", x.label)).collect();
+    let heads: Vec<String> = c
+        .sets
+        .iter()
+        .map(|x| format!("{} (unit of the row)", x.label))
+        .collect();
     let mut head: Vec<(&str, bool)> = vec![("key", false), ("unit", false)];
     head.extend(heads.iter().map(|l| (l.as_str(), true)));
     let rows: Vec<String> = c
@@ -46,7 +54,11 @@ pub fn section(c: &std::result::Result<Comparison, String>) -> String {
             if v.counts.is_empty() {
                 let largest = v.values.iter().flatten().fold(0.0f64, |m, x| m.max(x.abs()));
                 let (f, u) = crate::units::display::readable_unit(v.unit, largest);
-                let mut r = format!("{}{}", text_cell(&v.key), text_cell(if u.is_empty() { "—" } else { &u }));
+                let mut r = format!(
+                    "{}{}",
+                    text_cell(&v.key),
+                    text_cell(if u.is_empty() { "—" } else { &u })
+                );
                 for x in &v.values {
                     r.push_str(&num_cell(&x.map_or("(file)".to_string(), |x| sig(x / f, 4))));
                 }
@@ -70,7 +82,12 @@ pub fn section(c: &std::result::Result<Comparison, String>) -> String {
         .observables
         .iter()
         .map(|o| {
-            let largest = o.values.iter().flatten().filter(|x| x.is_finite()).fold(0.0f64, |m, x| m.max(x.abs()));
+            let largest = o
+                .values
+                .iter()
+                .flatten()
+                .filter(|x| x.is_finite())
+                .fold(0.0f64, |m, x| m.max(x.abs()));
             let (f, unit) = match o.kind {
                 k if k.is_time() => {
                     let (f, u) = pick_unit(largest, &TIME);
@@ -96,7 +113,10 @@ pub fn section(c: &std::result::Result<Comparison, String>) -> String {
                 _ => "open",
             };
             r.push_str(&num_cell(&factor_text(o)));
-            r.push_str(&format!("<td class=\"{cls}\">{}</td>", esc(&verdict_word(o.verdict).to_lowercase())));
+            r.push_str(&format!(
+                "<td class=\"{cls}\">{}</td>",
+                esc(&verdict_word(o.verdict).to_lowercase())
+            ));
             r
         })
         .collect();
