@@ -274,6 +274,20 @@ fn bad_sets_are_named_at_their_line() {
         msg.contains("used twice") && msg.contains(&format!("line {}", line - 4)),
         "{msg}"
     );
+    // A label used twice is named even when the first set has its own problem.
+    let (t, line) = with_levels(
+        "[[level]]\nlabel = \"a\"\nset = { \"transient.S1.channels[0].k\" = \"1 kcal/mol\" }\n\n[[level]]\nlabel = \"a\" # twice\nset = { \"transient.S1.channels[0].k\" = \"2e9 /s\" }\n",
+        "# twice",
+    );
+    let l = parse_text(Path::new("bad.toml"), t).expect("parses");
+    let Err(Error::Invalid(ds)) = build(&l, &Overrides::none()) else {
+        panic!("accepted")
+    };
+    assert!(
+        ds.iter()
+            .any(|d| d.message.contains("used twice") && d.line_col.map(|x| x.0) == Some(line)),
+        "{ds:?}"
+    );
     // An unknown key, with the closest one suggested.
     let (t, line) = with_levels(
         "[[level]]\nlabel = \"a\"\nset = { \"transient.S1.channels[0].kk\" = \"1e9 /s\" }\n",

@@ -335,7 +335,7 @@ pub fn networks(net: &Network) -> Result<Vec<Network>> {
 pub fn compare(net: &Network, opts: &LevelOptions) -> Result<Comparison> {
     if net.levels.is_empty() {
         return Err(Error::Usage(
-            "the network carries no sets of values: add [[level]] tables with a label and set = { KEY = VALUE } (README, Levels of theory)".into(),
+            "the network carries no sets of values: add [[level]] tables with a label and set = { KEY = VALUE } (README, Competing levels of theory)".into(),
         ));
     }
     let nets = networks(net)?;

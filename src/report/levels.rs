@@ -13,6 +13,7 @@ use std::fmt::Write;
 /// One value of an observable for display.
 pub fn value_text(kind: Kind, v: Option<f64>) -> String {
     match v {
+        None if kind == Kind::TimeToTarget => "not reached".into(),
         None => "—".into(),
         Some(x) if !x.is_finite() => "—".into(),
         Some(x) if kind.is_time() => format_time(x),

@@ -22,6 +22,8 @@ impl Builder<'_> {
     /// Every `[[level]]` of `doc`, read against `net`; problems go to the sink.
     pub(super) fn levels(&mut self, doc: &NetworkFile, net: &Network) -> Vec<Level> {
         let mut out: Vec<Level> = Vec::new();
+        // Every label met, with its line, whether or not its set was sound.
+        let mut seen: Vec<(String, usize)> = Vec::new();
         for (i, l) in doc.level.iter().enumerate() {
             let at = span(l);
             let e = l.get_ref();
@@ -46,15 +48,16 @@ impl Builder<'_> {
                 continue;
             }
             let line = self.sink.line(&span(label));
-            if let Some(first) = out.iter().find(|o| o.label == name) {
+            if let Some((_, first)) = seen.iter().find(|o| o.0 == name) {
                 self.error(
                     &format!("{field}.label"),
                     &span(label),
-                    format!("the label \"{name}\" is used twice (first at line {})", first.line),
+                    format!("the label \"{name}\" is used twice (first at line {first})"),
                     Some("give each set its own label".into()),
                 );
                 continue;
             }
+            seen.push((name.clone(), line));
             let Some(set) = &e.set else {
                 self.error(&field, &at, "the set gives no values", Some(SET_HELP.into()));
                 continue;

@@ -104,6 +104,7 @@ pub fn section(c: &std::result::Result<Comparison, String>) -> String {
             for v in &o.values {
                 r.push_str(&num_cell(&match v {
                     Some(x) if x.is_finite() => sig(x / f, 4),
+                    None if o.kind == Kind::TimeToTarget => "not reached".to_string(),
                     _ => "—".to_string(),
                 }));
             }
