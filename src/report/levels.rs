@@ -26,6 +26,7 @@ pub fn value_text(kind: Kind, v: Option<f64>) -> String {
 pub fn factor_text(o: &Observable) -> String {
     match o.factor {
         None => "—".into(),
+        Some(f) if f.is_infinite() && o.kind == Kind::TimeToTarget => "not reached by all".into(),
         Some(f) if f.is_infinite() => "one gives none".into(),
         Some(f) => format!("×{}", sig(f, 4)),
     }
