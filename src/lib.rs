@@ -13,6 +13,7 @@ pub mod error;
 pub mod file;
 pub mod fit;
 pub mod kinetics;
+pub mod levels;
 pub mod light;
 pub mod model;
 pub mod network;

@@ -82,6 +82,10 @@ pub struct Study {
     pub plan: Option<PlanStudy>,
     /// The fit to data (and the ranking against rivals), when data were given ([`fit_study`]).
     pub fit: Option<FitStudy>,
+    /// The network under each of its labelled sets of values, when it carries some
+    /// ([`crate::levels::compare`] at the study's time and target), or why they could not be
+    /// compared.
+    pub levels: Option<std::result::Result<crate::levels::Comparison, String>>,
 }
 
 /// A fit of the network to data, and its ranking against rival networks when there are some.
@@ -353,6 +357,18 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
         None => None,
     };
     let plan = opts.target.as_deref().map(|t| plan_study(model, t)).transpose()?;
+    let levels = (!net.levels.is_empty()).then(|| {
+        let lo = crate::levels::LevelOptions {
+            target: opts.target.clone(),
+            until: Some(until),
+        };
+        crate::levels::compare(net, &lo)
+            .map(|mut c| {
+                c.until_reason = format!("the report's irradiation time: {until_reason}");
+                c
+            })
+            .map_err(|e| e.to_string())
+    });
     Ok(Study {
         until,
         until_reason,
@@ -364,6 +380,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
         barrier,
         plan,
         fit: None,
+        levels,
     })
 }
 

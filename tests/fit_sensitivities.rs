@@ -173,7 +173,7 @@ fn sensitivities_match_differences_on_every_bundled_network() {
         );
         checked += 1;
     }
-    assert_eq!(checked, 4, "the four bundled networks");
+    assert_eq!(checked, 5, "the five bundled networks");
 }
 
 const PHOTOSWITCH: &str = "networks/photoswitch.toml";

@@ -144,6 +144,18 @@ fn every_bundled_network_renders_a_self_contained_page() {
                 );
             }
         }
+        // The levels of theory compared exactly where the network carries sets of values.
+        let text = std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join(&net)).expect("network");
+        let has_levels = text.lines().any(|l| l.trim() == "[[level]]");
+        assert_eq!(page.contains(" id=\"levels\""), has_levels, "{net}: levels section");
+        if has_levels {
+            let s = section_of(&page, "levels");
+            assert!(
+                s.contains("agree on lifetime of S1, disagree on ratio ring : shifted"),
+                "{net}"
+            );
+            assert!(page.contains("href=\"#levels\""), "{net}: levels not in the contents");
+        }
         // Every inline SVG parses as XML, without a namespace URL, and ids are unique.
         let all = svgs(&page);
         assert!(

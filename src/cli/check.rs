@@ -13,6 +13,7 @@ pub fn run(args: &NetworkArgs, quiet: bool) -> photoledger::Result<()> {
         out!("{}", photoledger::report::summary::network_summary(&net))?;
         let entries = evidence::entries(&net, &explicit.iter().collect::<Vec<_>>());
         out!("{}", photoledger::report::evidence::uncertain_values(&entries))?;
+        out!("{}", photoledger::report::levels::check_text(&net))?;
         outln!()?;
     }
     print_warnings(&net);

@@ -11,6 +11,7 @@ mod daylight;
 mod diagram;
 mod fit;
 mod ledger;
+mod levels;
 mod output;
 mod plan;
 mod report;
@@ -60,6 +61,10 @@ enum Command {
     Simulate(simulate::SimulateArgs),
     /// Follow one molecule as an absorbing Markov chain: yields, cycles, photons per product.
     Ledger(ledger::LedgerArgs),
+    /// Run the network under each of its labelled sets of values ([[level]]: methods or levels
+    /// of theory) and put yields, photons per product, lifetimes and times side by side; score
+    /// each set against data.
+    Levels(Box<levels::LevelsArgs>),
     /// Propagate uncertain values ([[uncertain]] entries or a fit's covariance) through the chain
     /// analysis and the kinetics: quantiles, what drives each output, histograms.
     Uncertainty(Box<uncertainty::UncertaintyArgs>),
@@ -108,7 +113,7 @@ pub enum Exit {
     /// `uncertainty --target` (no sample reaches it).
     Unreachable = 5,
     /// Stopped at a limit (evaluations or time) before converging; the best point is reported.
-    /// `fit` and `compare` at `--max-evaluations` or `--time-limit`.
+    /// `fit`, `compare` and `levels --free` at `--max-evaluations` or `--time-limit`.
     StoppedAtLimit = 6,
 }
 
@@ -136,7 +141,7 @@ impl Exit {
         ),
         (
             Exit::StoppedAtLimit,
-            "stopped at a limit (`fit`, `compare`: `--max-evaluations` or `--time-limit`) before converging; the best point found is reported and written, marked not converged",
+            "stopped at a limit (`fit`, `compare`, `levels --free`: `--max-evaluations` or `--time-limit`) before converging; the best point found is reported and written, marked not converged",
         ),
     ];
 
@@ -169,6 +174,7 @@ pub fn run() -> i32 {
         Command::Bench(a) => bench::run(&a),
         Command::Barrier(a) => barrier::run(&a),
         Command::Ledger(a) => ledger::run(&a),
+        Command::Levels(a) => return exit_of(levels::run(&a)),
         Command::Uncertainty(a) => return exit_of(uncertainty::run(&a)),
         Command::Plan(a) => return exit_of(plan::run(&a)),
         Command::Actinometer(a) => actinometer::run(&a),

@@ -10,6 +10,7 @@ pub mod data;
 pub mod evidence;
 pub mod folder;
 pub mod frequencies;
+pub mod levels;
 pub mod schema;
 pub mod text;
 pub mod uncertain;

@@ -39,6 +39,10 @@ pub struct NetworkFile {
     pub spreads: Option<Spanned<super::evidence::Spreads>>,
     /// `[fit]`: what `fit` and `compare` free by default.
     pub fit: Option<Spanned<FitSection>>,
+    /// `[[level]]` sets of computed values, one per method or level of theory (layout in
+    /// `file/levels.rs`).
+    #[serde(default)]
+    pub level: Vec<Spanned<super::levels::Level>>,
 }
 
 /// `[fit]`.

@@ -119,6 +119,22 @@ impl<'a> Setup<'a> {
                 "no free parameters: name them with --free or a [fit] free list".into(),
             ));
         }
+        Self::checked(base, experiments, free_keys, accuracy)
+    }
+
+    /// The network as given against the data, nothing free: for scoring it as it stands
+    /// ([`score`]).
+    pub fn fixed(base: &Network, experiments: &'a [Experiment], accuracy: Accuracy) -> Result<Self> {
+        Self::checked(base, experiments, &[], accuracy)
+    }
+
+    /// [`Setup::new`] without the demand for free keys.
+    fn checked(
+        base: &Network,
+        experiments: &'a [Experiment],
+        free_keys: &[String],
+        accuracy: Accuracy,
+    ) -> Result<Self> {
         let conditions = experiments
             .iter()
             .map(|e| experiment_values(base, e))
@@ -129,6 +145,17 @@ impl<'a> Setup<'a> {
                 return Err(Error::Usage(format!("--free {key} is named twice")));
             }
             let p = params::parameter(base, key).map_err(|m| Error::Usage(format!("--free {m}")))?;
+            if let Key::Fraction { transient, .. } = p.address
+                && let Some(c) = base.evidence.counts_of(transient)
+            {
+                let name = &base.transients[transient].name;
+                return Err(Error::Usage(format!(
+                    "--free {key}: this share comes from the trajectory counts of \"{name}\" ({} runs), which define it; \
+                     a fit cannot move it. Remove the counts (give the channels fractions) to fit the shares, \
+                     or free something else, such as a rate or quantum yield",
+                    c.finished()
+                )));
+            }
             let transform = Transform::for_range(p.range);
             if transform == Transform::Log && p.value <= 0.0 {
                 return Err(Error::Usage(format!(
@@ -738,6 +765,52 @@ fn goodness(setup: &Setup, solution: &Solution, weighted: bool) -> Goodness {
         },
         runs,
     }
+}
+
+/// How well a network with nothing free describes the data.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct Score {
+    /// χ² = Σ ((measured − predicted) / σ)².
+    pub chi2: f64,
+    /// Number of observations.
+    pub n: usize,
+    /// True when every observation had a standard deviation.
+    pub weighted: bool,
+    /// −2 ln L (χ² with given σ; n ln(χ²/n) when σ is estimated).
+    pub minus_two_log_likelihood: f64,
+    /// Estimated quantities: none, or σ when it is estimated.
+    pub k: usize,
+    /// AICc ([`criteria`]).
+    pub aicc: f64,
+    /// BIC.
+    pub bic: f64,
+}
+
+/// Score `setup`'s network at `x` against its data without fitting: χ², −2 ln L and the
+/// criteria with `k` the free parameters counted as estimated (`x.len()`, plus σ when some
+/// observation has no sd). With `x` empty this is the network as it stands.
+pub fn score(setup: &Setup, x: &[f64]) -> Result<Score> {
+    let r = setup
+        .residuals(x)
+        .ok_or_else(|| Error::Numerical("the network cannot be evaluated against the data".into()))?;
+    let chi2: f64 = r.iter().map(|v| v * v).sum();
+    let n = r.len();
+    let weighted = setup.observations().iter().all(|o| o.2);
+    let (m2ll, k) = if weighted {
+        (chi2, x.len())
+    } else {
+        (n as f64 * (chi2 / n as f64).ln(), x.len() + 1)
+    };
+    let (aicc, bic) = criteria(m2ll, k, n);
+    Ok(Score {
+        chi2,
+        n,
+        weighted,
+        minus_two_log_likelihood: m2ll,
+        k,
+        aicc,
+        bic,
+    })
 }
 
 /// AICc and BIC from −2 ln L, the number of estimated quantities `k` and observations `n`

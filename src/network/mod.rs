@@ -13,6 +13,7 @@ mod diagnostics;
 pub mod equation;
 pub mod evidence;
 pub mod formula;
+pub mod levels;
 pub mod overrides;
 pub mod params;
 pub(crate) mod ranges;
@@ -356,6 +357,8 @@ pub struct Network {
     pub transients: Vec<Transient>,
     /// Where numbers come from: stated origins, their spreads, trajectory counts.
     pub evidence: evidence::Evidence,
+    /// Labelled sets of computed values, one per method or level of theory, in file order.
+    pub levels: Vec<levels::Level>,
     /// Bipartite graph: species and transients on one side, steps on the other.
     pub graph: DiGraph<Node, Edge>,
     /// Warnings found while validating.

@@ -421,6 +421,12 @@ pub struct Ranked {
 
 /// The comparison table, ranked by AICc, with where the best two disagree most.
 pub fn compare_text(ranked: &[Ranked], disagreement: Option<&str>) -> String {
+    ranking_text(ranked, disagreement, "network")
+}
+
+/// [`compare_text`] with `what` heading the column of names ("network", or "set" for the sets
+/// of values of one network).
+pub fn ranking_text(ranked: &[Ranked], disagreement: Option<&str>, what: &str) -> String {
     let mut o = String::new();
     let w = ranked
         .iter()
@@ -432,7 +438,7 @@ pub fn compare_text(ranked: &[Ranked], disagreement: Option<&str>) -> String {
     let _ = writeln!(
         o,
         "{:<4} {:<w$}  {:>5}  {:>12}  {:>12}  {:>9}  {:>12}  {:>8}",
-        "rank", "network", "free", "χ²", "AICc", "ΔAICc", "BIC", "weight"
+        "rank", what, "free", "χ²", "AICc", "ΔAICc", "BIC", "weight"
     );
     for (i, r) in ranked.iter().enumerate() {
         let _ = writeln!(

@@ -9,6 +9,7 @@ pub mod diagram;
 pub mod evidence;
 pub mod fit;
 pub mod html;
+pub mod levels;
 pub mod plan;
 pub mod simulation;
 pub mod summary;

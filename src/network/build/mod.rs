@@ -11,6 +11,7 @@
 mod command_line;
 mod conditions;
 mod evidence;
+mod levels;
 mod light;
 mod rates;
 mod species;
@@ -174,6 +175,7 @@ impl<'a> Builder<'a> {
             photo,
             transients,
             evidence: Default::default(),
+            levels: Vec::new(),
             graph: Default::default(),
             warnings: Vec::new(),
         };
@@ -182,6 +184,10 @@ impl<'a> Builder<'a> {
         self.put_command_line(&mut net);
         super::checks::check_network(&mut self.sink, &self.at, &mut net);
         net.graph = super::checks::graph(&net);
+        // A set's keys are read against the built network, so only once it is sound.
+        if !self.sink.has_error() {
+            net.levels = self.levels(doc, &net);
+        }
         Some(net)
     }
 }

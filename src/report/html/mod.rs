@@ -14,6 +14,7 @@ pub mod escape;
 pub mod fit;
 pub mod header;
 pub mod kinetics;
+pub mod levels;
 pub mod page;
 pub mod photons;
 pub mod plan;
@@ -32,12 +33,13 @@ pub struct Meta {
 }
 
 /// Ids and titles of the sections, in page order (the contents list and the tests use them).
-pub const SECTIONS: [(&str, &str); 10] = [
+pub const SECTIONS: [(&str, &str); 11] = [
     ("safety", "Safety and conditions"),
     ("network", "The network"),
     ("concentrations", "Concentrations over time"),
     ("photons", "Where the photons went"),
     ("chain", "One molecule's path: the absorbing Markov chain"),
+    ("levels", "Levels of theory compared"),
     ("plan", "The plan: time to the target"),
     ("barriers", "Barrier verdicts"),
     ("fit", "Fit to the data"),
@@ -54,6 +56,9 @@ pub fn render(net: &Network, model: &Model, study: &Study, meta: &Meta) -> Strin
         ("photons", photons::section(model, &study.kinetics)),
         ("chain", chain::section(&study.chain)),
     ];
+    if let Some(l) = &study.levels {
+        parts.push(("levels", levels::section(l)));
+    }
     if let Some(p) = &study.plan {
         parts.push(("plan", plan::section(p)));
     }
