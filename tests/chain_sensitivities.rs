@@ -204,7 +204,8 @@ fn ledger_on_a_written_generated_network() {
 /// Each number the chain's sensitivities are taken to names the network parameter it is: the
 /// key `--set`, `--free` and `[[uncertain]]` take reads back the same value (a rate constant,
 /// the rate constant a barrier gives, a fraction, the mean quantum yield of a scaled spectrum),
-/// on every bundled network and on random ones; only a hot channel's computed share has none.
+/// on every bundled network and on random ones; only a hot channel's computed share and a share
+/// given by trajectory counts have none.
 #[test]
 fn every_sensitivity_parameter_names_its_network_key() {
     use photoledger::network::params::{self, Key, RateField};
@@ -232,7 +233,8 @@ fn every_sensitivity_parameter_names_its_network_key() {
             let Some(key) = p.key else {
                 assert!(
                     matches!(p.slot, build::Slot::Channel(t, c)
-                        if matches!(net.transients[t].channels[c].branching, photoledger::network::Branching::Hot { .. })),
+                        if matches!(net.transients[t].channels[c].branching, photoledger::network::Branching::Hot { .. })
+                            || net.evidence.counts_of(t).is_some()),
                     "{} has no key",
                     p.label
                 );

@@ -326,7 +326,7 @@ fn bad_sets_are_named_at_their_line() {
         "[[level]]\nlabel = \"a\"\nset = { \"transient.S1.channels[1].k\" = \"-1 /s\" }\n",
         "-1",
     );
-    assert!(first_error(&t).2.contains("above zero"));
+    assert!(first_error(&t).2.contains("must be positive"));
     // No label; an empty set.
     let (t, _) = with_levels("[[level]]\nset = { \"photo.excite.efficiency\" = 0.5 }\n", "set");
     assert!(first_error(&t).2.contains("label"));

@@ -75,7 +75,7 @@ pub struct Parameter {
     /// The network parameter it is, where one exists: the key `--set`, `--free` and
     /// `[[uncertain]]` use (a step's quantum yield or efficiency, a channel's fraction or rate,
     /// a thermal step's rate constant or, when the file gives one, its barrier). None for a hot
-    /// channel's computed share.
+    /// channel's computed share and for a share given by trajectory counts.
     pub key: Option<Key>,
     /// Where it sits.
     pub slot: Slot,
@@ -227,6 +227,8 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
                 channel: c,
             };
             let key = match &ch.branching {
+                // A share from trajectory counts is set by its counts, not by a key.
+                Branching::Fraction(_) if net.evidence.counts_of(t).is_some() => None,
                 Branching::Fraction(_) => Some(Key::Fraction {
                     transient: t,
                     channel: c,
