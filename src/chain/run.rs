@@ -156,7 +156,8 @@ fn no_end(net: &Network, stuck: &[&str]) -> Error {
         "",
         format!(
             "no end state: a molecule in {} never reaches a product or a species with no way out, so \
-             the single-molecule chain has no answer",
+             \"where does one molecule end?\" has no answer (`ledger` answers a closed switch with its \
+             photostationary state and photons per switching event)",
             stuck.join(", ")
         ),
     )
