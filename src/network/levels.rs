@@ -67,15 +67,8 @@ impl Level {
                 net.transients[c.transient].name
             ));
         }
-        let writes = self.writes();
-        let falls = |&(k, v): &(Key, f64)| {
-            matches!(k, Key::Fraction { .. } | Key::QuantumYield(_) | Key::Efficiency(_))
-                && v < params::get(net, k).value
-        };
-        let mut ordered: Vec<(Key, f64)> = writes.iter().copied().filter(falls).collect();
-        ordered.extend(writes.iter().copied().filter(|x| !falls(x)));
         let mut out = net.clone();
-        params::set_all(&mut out, &ordered)?;
+        params::set_all(&mut out, &params::share_order(net, &self.writes()))?;
         for c in &self.counts {
             if let Some(e) = out.evidence.counts.iter_mut().find(|e| e.transient == c.transient) {
                 e.runs = c.runs.clone();
