@@ -5,7 +5,7 @@
 use photoledger::Error;
 use photoledger::file::data::{Experiment, Point};
 use photoledger::file::parse_text;
-use photoledger::fit::mechanism::{self, Accuracy, FitOptions, Setup};
+use photoledger::fit::mechanism::{Accuracy, FitOptions, Setup};
 use photoledger::levels::{self, Kind, LevelOptions, Verdict};
 use photoledger::network::{Network, Overrides, build};
 use std::path::{Path, PathBuf};
@@ -221,11 +221,11 @@ fn scoring_finds_the_set_the_data_came_from() {
 fn aicc_follows_the_textbook_formula() {
     // Burnham & Anderson (2002), AICc = AIC + 2k(k + 1)/(n − k − 1), AIC = −2 ln L + 2k (from
     // memory): at −2 ln L = 5, k = 2, n = 10: 5 + 4 + 12/7.
-    let (aicc, bic) = mechanism::criteria(5.0, 2, 10);
+    let (aicc, bic) = photoledger::fit::score::criteria(5.0, 2, 10);
     assert!((aicc - (9.0 + 12.0 / 7.0)).abs() < 1e-12);
     assert!((bic - (5.0 + 2.0 * 10f64.ln())).abs() < 1e-12);
     // With an estimated σ counted as a parameter and no free key: k = 1.
-    let (aicc, _) = mechanism::criteria(-3.0, 1, 8);
+    let (aicc, _) = photoledger::fit::score::criteria(-3.0, 1, 8);
     assert!((aicc - (-3.0 + 2.0 + 4.0 / 6.0)).abs() < 1e-12);
 }
 

@@ -8,6 +8,8 @@ pub mod goodness;
 pub mod lsq;
 pub mod mechanism;
 pub mod run;
+pub mod score;
 pub mod slopes;
 
-pub use mechanism::{FitOptions, FitResult, Setup, akaike_weights, fit};
+pub use mechanism::{FitOptions, FitResult, Setup, fit};
+pub use score::akaike_weights;

@@ -1,5 +1,5 @@
 //! Each set of values scored against measurements: as it stands (χ², −2 ln L and AICc with no
-//! parameter estimated, [`fit::mechanism::score`]) and, with free keys, refitted under each set
+//! parameter estimated, [`fit::score::score`]) and, with free keys, refitted under each set
 //! and ranked as `compare` ranks rival networks ([`fit::run::Comparison`]). The data are
 //! already read (`file::data`); no file I/O, no printing.
 
@@ -7,8 +7,9 @@ use super::networks;
 use crate::error::Result;
 use crate::file::data::Experiment;
 use crate::fit::compare;
-use crate::fit::mechanism::{self, Accuracy, FitOptions, Progress, Score, Setup};
+use crate::fit::mechanism::{self, Accuracy, FitOptions, Progress, Setup};
 use crate::fit::run::{self as fit_run, Comparison};
+use crate::fit::score::{self as scoring, Score};
 use crate::network::Network;
 
 /// One set as it stands against the data.
@@ -53,10 +54,10 @@ pub fn score(
     let mut curves = Vec::new();
     for (lnet, label) in nets.iter().zip(&labels) {
         let setup = Setup::fixed(lnet, experiments, Accuracy::default()).map_err(|e| fit_run::named_error(label, e))?;
-        scores.push(mechanism::score(&setup, &[]).map_err(|e| fit_run::named_error(label, e))?);
+        scores.push(scoring::score(&setup, &[]).map_err(|e| fit_run::named_error(label, e))?);
         curves.push(mechanism::curves(&setup, &[], 300).map_err(|e| fit_run::named_error(label, e))?);
     }
-    let weights = mechanism::akaike_weights(&scores.iter().map(|s| s.aicc).collect::<Vec<_>>());
+    let weights = scoring::akaike_weights(&scores.iter().map(|s| s.aicc).collect::<Vec<_>>());
     let mut order: Vec<usize> = (0..scores.len()).collect();
     order.sort_by(|&i, &j| scores[i].aicc.total_cmp(&scores[j].aicc));
     let disagreement = match order[..] {
