@@ -158,10 +158,16 @@ pub enum Key {
     },
 }
 
-/// Split `rest` ("NAME.FIELD") at the last dot, where FIELD is one of `fields`.
+/// Split `rest` ("NAME.FIELD") at the last dot, where FIELD is one of `fields`. A name may be
+/// written in double quotes, as in a TOML dotted key (`light."blue LED".power`).
 fn name_field<'a>(rest: &'a str, fields: &[&str]) -> Option<(&'a str, &'a str)> {
     let (name, field) = rest.rsplit_once('.')?;
-    fields.contains(&field).then_some((name, field))
+    fields.contains(&field).then_some((unquote(name), field))
+}
+
+/// `name` without one pair of surrounding double quotes, if it has them.
+fn unquote(name: &str) -> &str {
+    name.strip_prefix('"').and_then(|n| n.strip_suffix('"')).unwrap_or(name)
 }
 
 impl Key {
@@ -245,9 +251,9 @@ impl Key {
                 return unknown(&format!("a thermal step takes a rate field: {}", words.join(", ")));
             };
             let field = RateField::from_word(field).expect("listed");
-            let (name, reverse) = match head.strip_suffix(".reverse") {
+            let (name, reverse) = match head.strip_suffix(".reverse").map(unquote) {
                 Some(n) if net.thermal.iter().any(|s| s.name == n && s.reverse_of.is_none()) => (n, true),
-                _ => (head, false),
+                _ => (unquote(head), false),
             };
             let Some(fwd) = net
                 .thermal
@@ -279,7 +285,7 @@ impl Key {
         if let Some(rest) = key.strip_prefix("transient.") {
             let parsed = rest.rsplit_once(".channels[").and_then(|(name, tail)| {
                 let (j, field) = tail.split_once("].")?;
-                Some((name, j.parse::<usize>().ok()?, field))
+                Some((unquote(name), j.parse::<usize>().ok()?, field))
             });
             let Some((name, channel, field)) = parsed else {
                 return unknown("expected transient.NAME.channels[J].FIELD");

@@ -145,3 +145,38 @@ fn keys_spell_back_to_themselves_and_every_read_is_finite() {
         }
     }
 }
+
+/// `light."blue LED".power` (a TOML dotted key's quoting) names the same parameter as
+/// `light.blue LED.power`; the quotes used to become part of the name.
+#[test]
+fn a_quoted_name_in_a_key_is_the_same_key() {
+    let quote = |spelled: &str| -> Option<String> {
+        let (kind, rest) = spelled.split_once('.')?;
+        let (name, tail) = match kind {
+            "conditions" => return None,
+            "transient" => {
+                let (n, t) = rest.rsplit_once(".channels[")?;
+                (n.to_string(), format!(".channels[{t}"))
+            }
+            _ => {
+                let (head, field) = rest.rsplit_once('.')?;
+                match head.strip_suffix(".reverse") {
+                    Some(n) if kind == "thermal" => (n.to_string(), format!(".reverse.{field}")),
+                    _ => (head.to_string(), format!(".{field}")),
+                }
+            }
+        };
+        Some(format!("{kind}.\"{name}\"{tail}"))
+    };
+    let mut tried = 0;
+    for path in bundled() {
+        let net = build(&crate::file::load(&path).unwrap(), &Overrides::none()).unwrap();
+        for key in addresses(&net) {
+            let p = get(&net, key);
+            let Some(quoted) = quote(&p.key) else { continue };
+            assert_eq!(Key::parse(&net, &quoted), Ok(key), "{quoted}");
+            tried += 1;
+        }
+    }
+    assert!(tried > 20, "{tried}");
+}
