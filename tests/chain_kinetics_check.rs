@@ -456,3 +456,30 @@ fn material_left_in_an_intermediate_is_named_as_the_reason() {
         y.reasons
     );
 }
+
+/// The time check reads its time from the run to the automatic horizon, integrating again only
+/// the interval where that run passes the level. On the thin A → B the half-conversion time is
+/// ln 2 / k (first-order decay, `common practice`); the reused run and a fresh run from t = 0
+/// agree with it and with each other.
+#[test]
+fn a_target_found_on_an_earlier_run_equals_a_fresh_run() {
+    use photoledger::plan::{PlanOptions, target, time_to_target, time_to_target_reusing};
+    let model = Model::compile(&network(THIN));
+    let h = horizon::automatic(&model, None).expect("horizon");
+    let earlier = h.plan.as_ref().expect("a run to the horizon");
+    let half = target::parse("B > 50 %", &model).expect("target");
+    let opts = PlanOptions {
+        horizon: horizon::CAP,
+        ..PlanOptions::default()
+    };
+    let reused = time_to_target_reusing(&model, &half, earlier, &opts).expect("reused");
+    let fresh = time_to_target(&model, &half, &opts).expect("fresh");
+    let (tr, tf) = (reused.time.expect("met"), fresh.time.expect("met"));
+    let k = thin_rate();
+    assert!((tr * k - std::f64::consts::LN_2).abs() < 1e-5, "{tr} s against ln 2 / k");
+    assert!((tr - tf).abs() <= 1e-5 * tf, "reused {tr} s, fresh {tf} s");
+    // The joined run ends at the level, and its times increase.
+    assert!((reused.state()[half.species] - half.level).abs() <= 1e-5 * half.level);
+    assert!(reused.trajectory.times.windows(2).all(|w| w[0] < w[1]));
+    assert_eq!(reused.trajectory.times.len(), reused.trajectory.states.len());
+}

@@ -30,7 +30,7 @@ use crate::error::Result;
 use crate::model::Model;
 use crate::network::Network;
 use crate::plan::target::{self, Basis, Direction, Target};
-use crate::plan::{PlanOptions, time_to_target};
+use crate::plan::{PlanOptions, time_to_target, time_to_target_reusing};
 use crate::units::{format_concentration, format_time, sig};
 use serde::Serialize;
 
@@ -232,17 +232,20 @@ pub fn check(
             chosen: true,
         },
     };
-    let plan = time_to_target(
-        model,
-        &target,
-        &PlanOptions {
-            horizon: crate::plan::horizon::CAP,
-            ..PlanOptions::default()
-        },
-    )?;
+    // One run to the automatic horizon serves both checks: the time check integrates again
+    // only the interval in which that run passes its level.
+    let horizon = crate::plan::horizon::automatic(model, None)?;
+    let opts = PlanOptions {
+        horizon: crate::plan::horizon::CAP,
+        ..PlanOptions::default()
+    };
+    let plan = match &horizon.plan {
+        Some(earlier) => time_to_target_reusing(model, &target, earlier, &opts)?,
+        None => time_to_target(model, &target, &opts)?,
+    };
     let ratio = plan.time.map(|t| t / tau);
     let agree = ratio.is_some_and(|r| (1.0 / FACTOR..=FACTOR).contains(&r));
-    let (yields, yields_skipped) = match compare_yields(model, net, run)? {
+    let (yields, yields_skipped) = match compare_yields(model, net, run, &horizon)? {
         Ok(y) => (Some(y), None),
         Err(why) => (None, Some(why)),
     };
@@ -279,7 +282,8 @@ pub fn check(
              then the kinetics (from the initial mixture under the file's light, inner filter included) should have \
              turned (1 − 1/e) × Y of the limiting reagent {ref_name} into {end_name}, Y being the chain's yield of \
              {end_name} (1:1); exact for first-order steps, a yardstick otherwise, so only a factor over {FACTOR} \
-             counts; one kinetics run, stopped at that level by root finding"
+             counts; the time is found on the run to the automatic horizon the yield check reads, the interval where it \
+             passes that level integrated again and stopped there by root finding"
         ),
         reasons,
     }))
@@ -446,7 +450,12 @@ fn consumed_by(model: &Model, i: usize) -> Vec<&str> {
 
 /// The chain's yield of each end against the kinetics' amount of it per molecule of the start
 /// mixture at the automatic horizon, or why they cannot be compared.
-fn compare_yields(model: &Model, net: &Network, run: &ChainRun) -> Result<std::result::Result<Yields, String>> {
+fn compare_yields(
+    model: &Model,
+    net: &Network,
+    run: &ChainRun,
+    h: &crate::plan::horizon::Horizon,
+) -> Result<std::result::Result<Yields, String>> {
     let ns = model.n_species();
     let a = &run.analysis;
     let species_of = |state: usize| match run.chain.states.get(state).map(|s| &s.kind) {
@@ -463,7 +472,6 @@ fn compare_yields(model: &Model, net: &Network, run: &ChainRun) -> Result<std::r
     if total.is_nan() || total <= 0.0 {
         return Ok(Err("the chain starts from no species of the initial mixture".into()));
     }
-    let h = crate::plan::horizon::automatic(model, None)?;
     let Some(plan) = &h.plan else {
         return Ok(Err(format!(
             "the kinetics have no horizon to convert by: {}",
@@ -536,7 +544,7 @@ fn compare_yields(model: &Model, net: &Network, run: &ChainRun) -> Result<std::r
     let mut reasons = if agree {
         Vec::new()
     } else {
-        yield_reasons(model, net, run, &h, zero, y, at, &start, &differing)?
+        yield_reasons(model, net, run, h, zero, y, at, &start, &differing)?
     };
     if !agree && !in_transit.is_empty() {
         let amounts: Vec<String> = in_transit

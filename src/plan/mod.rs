@@ -327,6 +327,32 @@ pub fn time_to_target(model: &Model, target: &Target, opts: &PlanOptions) -> Res
     };
     let trajectory = joined.ok_or_else(|| Error::Numerical("no integration ran".into()))?;
     let t_end = time.unwrap_or(t);
+    Ok(assemble(
+        model,
+        target,
+        opts,
+        trajectory,
+        (time, why),
+        t_end,
+        best,
+        stretches,
+    ))
+}
+
+/// The plan from a finished run: why it ended, the dose and the products at the target time
+/// (unreachable: at the closest approach `best`, (level, time, state)).
+#[allow(clippy::too_many_arguments)]
+fn assemble(
+    model: &Model,
+    target: &Target,
+    opts: &PlanOptions,
+    trajectory: Trajectory,
+    (time, why): (Option<f64>, Option<Why>),
+    t_end: f64,
+    best: (f64, f64, Vec<f64>),
+    stretches: usize,
+) -> Plan {
+    let rhs = Rhs::new(model);
     let last = trajectory.last().to_vec();
     let unreachable = why.map(|why| {
         let mut dy = vec![0.0; last.len()];
@@ -358,7 +384,7 @@ pub fn time_to_target(model: &Model, target: &Target, opts: &PlanOptions) -> Res
         _ => target::limiting_reagent(model),
     };
     let products = shares(model, opts.products.as_deref().unwrap_or(&default), y_dose, reference);
-    Ok(Plan {
+    Plan {
         target: target.clone(),
         time,
         unreachable,
@@ -366,7 +392,45 @@ pub fn time_to_target(model: &Model, target: &Target, opts: &PlanOptions) -> Res
         products,
         trajectory,
         stretches,
-    })
+    }
+}
+
+/// [`time_to_target`] reusing `earlier`, a plan made on the same `model` with the same `opts`
+/// for another target (it starts from the model's initial state). When `earlier`'s run passes
+/// `target` between two of its output states, only that interval is integrated again, with
+/// root finding on the target, instead of a new run from t = 0; otherwise (met at the start,
+/// never met in `earlier`'s run, or a light schedule) this is [`time_to_target`].
+pub fn time_to_target_reusing(model: &Model, target: &Target, earlier: &Plan, opts: &PlanOptions) -> Result<Plan> {
+    let tr = &earlier.trajectory;
+    let crossing = tr.states.iter().position(|s| target.met_by(s[target.species]));
+    let i = match crossing {
+        Some(i) if i > 0 && opts.schedule.is_none() && tr.schedule.is_none() => i,
+        _ => return time_to_target(model, target, opts),
+    };
+    let mut o = Options::until(tr.times[i]);
+    o.rtol = opts.rtol;
+    o.atol = opts.atol;
+    o.outputs = 20;
+    o.event = Some(target.event());
+    o.method = kinetics::Method::Bdf;
+    let leg = kinetics::simulate_from(model, tr.times[i - 1], &tr.states[i - 1], &o, &mut |_| {})?;
+    let Stop::Event(te) = leg.stop else {
+        return time_to_target(model, target, opts);
+    };
+    let mut joined = tr.clone();
+    joined.times.truncate(i);
+    joined.states.truncate(i);
+    joined.times.extend(leg.times.iter().skip(1));
+    joined.states.extend(leg.states.into_iter().skip(1));
+    joined.stop = leg.stop;
+    joined.segments.retain(|seg| seg.from < tr.times[i - 1]);
+    if let Some(last) = joined.segments.last_mut() {
+        last.to = last.to.min(tr.times[i - 1]);
+    }
+    joined.segments.extend(leg.segments);
+    joined.retries.extend(leg.retries);
+    let best = (joined.last()[target.species], te, joined.last().to_vec());
+    Ok(assemble(model, target, opts, joined, (Some(te), None), te, best, 1))
 }
 
 /// Steps consuming species `sp` at state `y`, largest first.
