@@ -17,6 +17,7 @@ use crate::model::Model;
 use crate::network::Network;
 use crate::plan::{self, Plan, PlanOptions};
 use crate::report::chain::{self as chain_report, Summary};
+use crate::report::chain_paths::{ClosedSummary, closed_summary};
 
 /// What to run.
 #[derive(Debug, Clone, PartialEq, Default)]
@@ -76,6 +77,9 @@ pub struct Study {
     pub integrations: usize,
     /// The chain, or why it does not apply to this network.
     pub chain: std::result::Result<ChainStudy, String>,
+    /// When no molecule can end (a closed switch), the chain's photostationary state instead,
+    /// as `ledger` gives it.
+    pub closed: Option<ClosedSummary>,
     /// Barrier verdicts, when a window was given.
     pub barrier: Option<BarrierStudy>,
     /// The plan, when a target was given.
@@ -312,6 +316,22 @@ fn chain_study(model: &Model, net: &Network) -> Result<ChainStudy> {
     })
 }
 
+/// The photostationary state of a network where no molecule ends (None for any other).
+fn closed_study(model: &Model, net: &Network) -> Result<Option<ClosedSummary>> {
+    let chain::Followed::Closed(c) = chain::follow(model, net, &chain::ChainOptions::default())? else {
+        return Ok(None);
+    };
+    let lifetimes = chain::lifetimes::lifetimes(&c.chain, net, &c.stationary.visits);
+    Ok(Some(closed_summary(
+        &net.about.name,
+        &c.chain,
+        &c.stationary,
+        &c.start_note,
+        &c.light,
+        &lifetimes,
+    )))
+}
+
 /// Run the study of `net` (compiled as `model`).
 pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
     let chain = chain_study(model, net).map_err(|e| match e {
@@ -319,6 +339,10 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
         crate::Error::Invalid(ds) => ds.iter().map(|d| d.message.as_str()).collect::<Vec<_>>().join("; "),
         e => e.to_string(),
     });
+    let closed = match &chain {
+        Ok(_) => None,
+        Err(_) => closed_study(model, net)?,
+    };
     let (until, until_reason, horizon) = match opts.until {
         Some(t) => (t, "as asked (--until)".to_string(), None),
         None => {
@@ -377,6 +401,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
         log_time,
         integrations,
         chain,
+        closed,
         barrier,
         plan,
         fit: None,

@@ -476,7 +476,10 @@ fn a_target_found_on_an_earlier_run_equals_a_fresh_run() {
     let fresh = time_to_target(&model, &half, &opts).expect("fresh");
     let (tr, tf) = (reused.time.expect("met"), fresh.time.expect("met"));
     let k = thin_rate();
-    assert!((tr * k - std::f64::consts::LN_2).abs() < 1e-5, "{tr} s against ln 2 / k");
+    assert!(
+        (tr * k - std::f64::consts::LN_2).abs() < 1e-5,
+        "{tr} s against ln 2 / k"
+    );
     assert!((tr - tf).abs() <= 1e-5 * tf, "reused {tr} s, fresh {tf} s");
     // The joined run ends at the level, and its times increase.
     assert!((reused.state()[half.species] - half.level).abs() <= 1e-5 * half.level);

@@ -302,3 +302,45 @@ proptest! {
         }
     }
 }
+
+/// The report of a closed switch (the bundled photoswitch, invented values) gives in its chain
+/// section the photostationary state `ledger` prints: the composition, photons per switching
+/// event and the first passages, not "does not apply".
+#[test]
+fn the_report_of_a_closed_switch_gives_its_photostationary_state() {
+    use photoledger::report::html::{self, Meta};
+    use photoledger::study::{self, StudyOptions};
+    use photoledger::units::display;
+    let net = bundled("photoswitch.toml");
+    let model = Model::compile(&net);
+    let s = study::run(&net, &model, &StudyOptions::default()).expect("study");
+    assert!(s.chain.is_err(), "no molecule ends");
+    let closed = s.closed.as_ref().expect("the photostationary state");
+    let shares: f64 = closed.composition.iter().filter_map(|f| f.time_share).sum();
+    assert!((shares - 1.0).abs() < 1e-12, "{shares}");
+    // The same numbers as ledger's (chain::follow with the default options).
+    let Followed::Closed(c) = chain::follow(&model, &net, &ChainOptions::default()).expect("chain") else {
+        panic!("closed")
+    };
+    let e = c.chain.states.iter().position(|st| st.name == "E-azo").expect("E-azo");
+    let e = c
+        .stationary
+        .class
+        .iter()
+        .position(|&i| i == e)
+        .expect("E-azo in the class");
+    let meta = Meta {
+        command_line: "photoledger report photoswitch.toml".into(),
+        date: "2026-12-03 00:00 UTC".into(),
+    };
+    let page = html::render(&net, &model, &s, &meta);
+    assert!(page.contains("Photostationary composition"), "section present");
+    assert!(!page.contains("does not apply to this network"));
+    let e_share = display::number(100.0 * c.stationary.time_share.as_ref().expect("holding times")[e]);
+    assert!(
+        page.contains(&format!("<td>E-azo</td><td class=\"num\">{e_share}</td>")),
+        "{e_share}"
+    );
+    let per_switch = display::number(c.stationary.photons_per_switch.expect("switches"));
+    assert!(page.contains(&format!("absorbs {per_switch} photons per switching event")));
+}

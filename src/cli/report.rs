@@ -117,8 +117,12 @@ pub fn run(a: &ReportArgs) -> photoledger::Result<Exit> {
         PathBuf::from(format!("{stem}-report.html"))
     });
     write_atomic(&out, page.as_bytes())?;
-    if let Err(why) = &found.chain {
-        noteln!("note: no single-molecule section: {why}");
+    match (&found.chain, &found.closed) {
+        (Err(_), Some(_)) => noteln!(
+            "note: no molecule ends in this network; the single-molecule section gives its photostationary state"
+        ),
+        (Err(why), None) => noteln!("note: no single-molecule section: {why}"),
+        _ => {}
     }
     outln!("wrote {} ({} kB)", out.display(), page.len().div_ceil(1024))?;
     // A target given and not reachable is the answer "not reachable" (exit 5), as for `plan`.

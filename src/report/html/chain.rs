@@ -4,6 +4,7 @@
 use super::escape::{esc, inline_svg};
 use super::page::{self, figure, num_cell, text_cell};
 use super::{TIME, pick_unit, sig_or_dash};
+use crate::report::chain_paths::ClosedSummary;
 use crate::study::ChainStudy;
 use crate::units::{format_time, sig};
 use std::fmt::Write;
@@ -61,11 +62,13 @@ fn kinetics_check(sm: &crate::report::chain::Summary) -> String {
     s
 }
 
-/// The chain's results, or why the chain does not apply to this network.
-pub fn section(chain: &Result<ChainStudy, String>) -> String {
-    let c = match chain {
-        Ok(c) => c,
-        Err(why) => {
+/// The chain's results, the photostationary state of a closed switch (`closed`), or why the
+/// chain does not apply to this network.
+pub fn section(chain: &Result<ChainStudy, String>, closed: Option<&ClosedSummary>) -> String {
+    let c = match (chain, closed) {
+        (Ok(c), _) => c,
+        (Err(_), Some(s)) => return super::switch::section(s),
+        (Err(why), None) => {
             return format!(
                 "<p class=\"missing\">The single-molecule analysis does not apply to this network: {}.</p>\n\
                  <p class=\"note\">A molecule followed here must be able to end somewhere (a product, or a species \
@@ -233,7 +236,8 @@ pub fn section(chain: &Result<ChainStudy, String>) -> String {
 }
 
 /// `text` with its first letter in upper case.
-fn upper_first(text: &str) -> String {
+/// `text` with its first letter in upper case.
+pub(super) fn upper_first(text: &str) -> String {
     let mut c = text.chars();
     c.next()
         .map(|f| f.to_uppercase().collect::<String>() + c.as_str())

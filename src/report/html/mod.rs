@@ -18,6 +18,7 @@ pub mod levels;
 pub mod page;
 pub mod photons;
 pub mod plan;
+pub mod switch;
 
 use crate::model::Model;
 use crate::network::Network;
@@ -38,7 +39,7 @@ pub const SECTIONS: [(&str, &str); 11] = [
     ("network", "The network"),
     ("concentrations", "Concentrations over time"),
     ("photons", "Where the photons went"),
-    ("chain", "One molecule's path: the absorbing Markov chain"),
+    ("chain", "One molecule's path: a Markov chain"),
     ("levels", "Levels of theory compared"),
     ("plan", "The plan: time to the target"),
     ("barriers", "Barrier verdicts"),
@@ -54,7 +55,7 @@ pub fn render(net: &Network, model: &Model, study: &Study, meta: &Meta) -> Strin
         ("network", diagram::section(net)),
         ("concentrations", kinetics::section(net, model, study)),
         ("photons", photons::section(model, &study.kinetics)),
-        ("chain", chain::section(&study.chain)),
+        ("chain", chain::section(&study.chain, study.closed.as_ref())),
     ];
     if let Some(l) = &study.levels {
         parts.push(("levels", levels::section(l)));
