@@ -227,8 +227,10 @@ fn sections_follow_what_was_asked_and_what_applies() {
     assert!(!page.contains("href=\"#barriers\""));
     // No --target: no plan section.
     assert!(!page.contains(" id=\"plan\""));
-    // The photoswitch has no end a molecule can reach: the chain section says so.
-    assert!(page.contains("does not apply to this network"), "photoswitch chain");
+    // The photoswitch has no end a molecule can reach: the chain section gives the state one
+    // molecule settles in instead.
+    assert!(page.contains("Photostationary composition"), "photoswitch chain");
+    assert!(!page.contains("does not apply to this network"), "photoswitch chain");
     // It reaches its photostationary state in the first minute: the time axis turns logarithmic.
     assert!(page.contains("Time on a log scale"), "photoswitch time axis");
     // The pool has one: its table, histogram and sensitivities are there, with the chain's

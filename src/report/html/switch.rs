@@ -6,6 +6,7 @@
 use super::chain::upper_first;
 use super::escape::esc;
 use super::page::{self, num_cell, text_cell};
+use super::{TIME, pick_unit, sig_or_dash};
 use crate::report::chain_paths::ClosedSummary;
 use crate::units::{display, format_time};
 
@@ -79,6 +80,8 @@ pub fn section(s: &ClosedSummary) -> String {
         esc(&facts.join("; "))
     ));
     if !s.first_passage.is_empty() {
+        let tmax = s.first_passage.iter().filter_map(|p| p.time_s).fold(0.0, f64::max);
+        let (tf, tu) = pick_unit(tmax, &TIME);
         let rows: Vec<String> = s
             .first_passage
             .iter()
@@ -87,13 +90,14 @@ pub fn section(s: &ClosedSummary) -> String {
                     "{}{}{}",
                     text_cell(&format!("{} → {}", p.from, p.to)),
                     num_cell(&display::number(p.photons)),
-                    num_cell(&p.time_s.map_or("—".into(), format_time))
+                    num_cell(&sig_or_dash(p.time_s.map(|t| t / tf), 3))
                 )
             })
             .collect();
+        let ht = format!("time ({tu})");
         o.push_str(&page::table(
             "Mean first passage between the forms: photons absorbed and time on the way",
-            &[("from → to", false), ("photons", true), ("time", true)],
+            &[("from → to", false), ("photons (photons)", true), (&ht, true)],
             &rows,
         ));
         if s.forms_left_out > 0 {
