@@ -63,6 +63,22 @@ fn shards_run_as_separate_processes_merge_to_the_single_run_byte_for_byte() {
         let b = std::fs::read(dir.join("single").join(f)).unwrap();
         assert!(a == b, "{f}: the merged run differs from the single run");
     }
+    // Shards gathered in one folder merge by default into that folder's name followed by
+    // "-merged", beside it (the shards stay as they are).
+    std::fs::create_dir_all(dir.join("shards")).unwrap();
+    for k in 1..=n {
+        let name = format!("shard-{k}-of-{n}.json");
+        std::fs::copy(dir.join(format!("task-{k}")).join(&name), dir.join("shards").join(&name)).unwrap();
+    }
+    let mut merge = vec!["uncertainty".to_string(), "merge".into()];
+    merge.extend((1..=n).map(|k| format!("shards/shard-{k}-of-{n}.json")));
+    let o = Command::new(BIN).args(&merge).current_dir(&dir).output().unwrap();
+    assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stderr));
+    assert_eq!(
+        std::fs::read(dir.join("shards-merged/samples.json")).unwrap(),
+        std::fs::read(dir.join("single/samples.json")).unwrap()
+    );
+    assert!(dir.join(format!("shards/shard-1-of-{n}.json")).exists());
     // A missing task is refused, naming what is missing.
     let o = Command::new(BIN)
         .args(["uncertainty", "merge", "task-1/shard-1-of-3.json", "task-3/shard-3-of-3.json"])

@@ -348,7 +348,7 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
             dir.display()
         )?;
         out!("{blocks}")?;
-        outln!("\n{}", photoledger::report::caution_line())?;
+        outln!("{}", photoledger::report::caution_line())?;
     }
     Ok(())
 }

@@ -131,7 +131,7 @@ fn thermal(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
         return super::print_json(&photoledger::report::barrier_json::thermal(window, t, p, kappa, g, k));
     }
     outln!(
-        "Largest barrier crossed with {:.0} % probability within {} at {t:.2} K:",
+        "largest barrier crossed with {:.0} % probability within {} at {t:.2} K",
         p * 100.0,
         report::duration(window)
     )?;
@@ -201,7 +201,7 @@ fn hot(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
         HotLimit::Window(t) => format!("within {} at constant energy", report::duration(t)),
     };
     outln!(
-        "Hot molecule with {} above its zero-point level, crossing with {:.0} % probability {how}:",
+        "hot molecule with {} above its zero-point level, crossing with {:.0} % probability {how}",
         report::energy(e),
         p * 100.0
     )?;
