@@ -41,8 +41,22 @@ fn json(dir: &Path, args: &[&str]) -> Value {
 
 /// Field-name endings that name an SI unit (or mol/L), as the JSON outputs spell them.
 const UNIT_SUFFIXES: [&str; 16] = [
-    "_s", "_k", "_m", "_m2", "_m3", "_l", "_w", "_j", "_j_per_mol", "_per_s", "_mol_per_l", "_mol",
-    "_einstein", "_einstein_per_s", "_bytes", "_per_j_per_mol",
+    "_s",
+    "_k",
+    "_m",
+    "_m2",
+    "_m3",
+    "_l",
+    "_w",
+    "_j",
+    "_j_per_mol",
+    "_per_s",
+    "_mol_per_l",
+    "_mol",
+    "_einstein",
+    "_einstein_per_s",
+    "_bytes",
+    "_per_j_per_mol",
 ];
 
 /// Every object key anywhere in `v`.
@@ -86,7 +100,11 @@ fn number(v: &Value, path: &str) -> f64 {
 fn every_command_answers_json_that_names_its_units() {
     let dir = scratch("all");
     let switch = "networks/photoswitch.toml";
-    std::fs::write(dir.join("conversion.csv"), "time (s), conversion\n10, 0.08\n20, 0.15\n40, 0.25\n").unwrap();
+    std::fs::write(
+        dir.join("conversion.csv"),
+        "time (s), conversion\n10, 0.08\n20, 0.15\n40, 0.25\n",
+    )
+    .unwrap();
 
     // check: the validated network, every settable key with its value and unit.
     let v = json(&dir, &["check", switch]);
@@ -94,7 +112,10 @@ fn every_command_answers_json_that_names_its_units() {
     let params = v["parameters"].as_array().expect("check lists its parameters");
     assert!(params.len() >= 10, "{params:?}");
     for p in params {
-        assert!(p["key"].is_string() && p["value"].is_number() && p["unit"].is_string(), "{p}");
+        assert!(
+            p["key"].is_string() && p["value"].is_number() && p["unit"].is_string(),
+            "{p}"
+        );
     }
     let barrier = params
         .iter()
@@ -105,13 +126,30 @@ fn every_command_answers_json_that_names_its_units() {
     assert!(v["warnings"].is_array());
 
     let commands: Vec<(&str, Vec<&str>)> = vec![
-        ("simulate", vec!["simulate", switch, "--until", "10 min", "--points", "20"]),
-        ("ledger", vec!["ledger", "networks/prebiotic-pool.toml", "--max-photons", "50"]),
+        (
+            "simulate",
+            vec!["simulate", switch, "--until", "10 min", "--points", "20"],
+        ),
+        (
+            "ledger",
+            vec!["ledger", "networks/prebiotic-pool.toml", "--max-photons", "50"],
+        ),
         ("plan", vec!["plan", switch, "--target", "Z-azo > 30 %"]),
-        ("levels", vec!["levels", "networks/diene-two-funnels.toml", "--until", "1 h"]),
+        (
+            "levels",
+            vec!["levels", "networks/diene-two-funnels.toml", "--until", "1 h"],
+        ),
         (
             "uncertainty",
-            vec!["uncertainty", "networks/prebiotic-pool.toml", "--samples", "3", "--no-chain", "--until", "1 h"],
+            vec![
+                "uncertainty",
+                "networks/prebiotic-pool.toml",
+                "--samples",
+                "3",
+                "--no-chain",
+                "--until",
+                "1 h",
+            ],
         ),
         (
             "actinometer ferrioxalate",
@@ -134,7 +172,15 @@ fn every_command_answers_json_that_names_its_units() {
         ),
         (
             "actinometer network",
-            vec!["actinometer", "network", switch, "--step", "E to Z", "--data", "conversion.csv"],
+            vec![
+                "actinometer",
+                "network",
+                switch,
+                "--step",
+                "E to Z",
+                "--data",
+                "conversion.csv",
+            ],
         ),
         ("report", vec!["report", switch, "--until", "10 min"]),
         ("diagram", vec!["diagram", switch]),
@@ -161,7 +207,10 @@ fn every_command_answers_json_that_names_its_units() {
                 "3",
             ],
         ),
-        ("barrier thermal", vec!["barrier", "--window", "1 h", "--temperature", "298.15 K"]),
+        (
+            "barrier thermal",
+            vec!["barrier", "--window", "1 h", "--temperature", "298.15 K"],
+        ),
         ("barrier network", vec!["barrier", switch, "--window", "1 h"]),
         (
             "barrier hot",
@@ -192,7 +241,16 @@ fn every_command_answers_json_that_names_its_units() {
         (
             "bench",
             vec![
-                "bench", switch, "--until", "1 min", "--species", "12", "--steps", "20", "--absorbers", "2",
+                "bench",
+                switch,
+                "--until",
+                "1 min",
+                "--species",
+                "12",
+                "--steps",
+                "20",
+                "--absorbers",
+                "2",
             ],
         ),
     ];
@@ -206,7 +264,10 @@ fn every_command_answers_json_that_names_its_units() {
         assert_names_units(what, &v);
         answers.insert(*what, v);
     }
-    for (what, args) in commands.iter().filter(|(w, _)| w.starts_with("fit") || w.starts_with("compare")) {
+    for (what, args) in commands
+        .iter()
+        .filter(|(w, _)| w.starts_with("fit") || w.starts_with("compare"))
+    {
         let mut all = args.clone();
         all.push("--json");
         let out = Command::new(BIN).args(&all).current_dir(&dir).output().unwrap();
@@ -268,12 +329,25 @@ fn check_prints_every_settable_key_beside_its_value() {
             .find(|l| l.trim_start().starts_with(key) && l[l.find(key).unwrap() + key.len()..].starts_with("  "))
             .unwrap_or_else(|| panic!("no line for {key} in:\n{text}"));
         // The value follows the key on its line.
-        assert!(line[line.find(key).unwrap() + key.len()..].trim().chars().next().is_some_and(|c| c.is_ascii_digit()), "{line}");
+        assert!(
+            line[line.find(key).unwrap() + key.len()..]
+                .trim()
+                .chars()
+                .next()
+                .is_some_and(|c| c.is_ascii_digit()),
+            "{line}"
+        );
     }
     assert!(text.contains("thermal.thermal Z to E.barrier"), "{text}");
     // The printed key is what --set takes.
     let set = Command::new(BIN)
-        .args(["check", "networks/photoswitch.toml", "--quiet", "--set", "thermal.thermal Z to E.barrier=24 kcal/mol"])
+        .args([
+            "check",
+            "networks/photoswitch.toml",
+            "--quiet",
+            "--set",
+            "thermal.thermal Z to E.barrier=24 kcal/mol",
+        ])
         .current_dir(&dir)
         .output()
         .unwrap();

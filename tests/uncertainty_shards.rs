@@ -12,7 +12,11 @@ fn scratch() -> PathBuf {
     let dir = std::env::temp_dir().join(format!("photoledger-shards-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
-    std::os::unix::fs::symlink(Path::new(env!("CARGO_MANIFEST_DIR")).join("networks"), dir.join("networks")).unwrap();
+    std::os::unix::fs::symlink(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("networks"),
+        dir.join("networks"),
+    )
+    .unwrap();
     dir
 }
 
@@ -56,7 +60,12 @@ fn shards_run_as_separate_processes_merge_to_the_single_run_byte_for_byte() {
     let o = Command::new(BIN).args(&merge).current_dir(&dir).output().unwrap();
     assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stderr));
     // The single run.
-    let o = Command::new(BIN).args(RUN).args(["--out", "single"]).current_dir(&dir).output().unwrap();
+    let o = Command::new(BIN)
+        .args(RUN)
+        .args(["--out", "single"])
+        .current_dir(&dir)
+        .output()
+        .unwrap();
     assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stderr));
     for f in ["summary.json", "summary.txt", "samples.csv", "samples.json"] {
         let a = std::fs::read(dir.join("merged").join(f)).unwrap();
@@ -68,7 +77,11 @@ fn shards_run_as_separate_processes_merge_to_the_single_run_byte_for_byte() {
     std::fs::create_dir_all(dir.join("shards")).unwrap();
     for k in 1..=n {
         let name = format!("shard-{k}-of-{n}.json");
-        std::fs::copy(dir.join(format!("task-{k}")).join(&name), dir.join("shards").join(&name)).unwrap();
+        std::fs::copy(
+            dir.join(format!("task-{k}")).join(&name),
+            dir.join("shards").join(&name),
+        )
+        .unwrap();
     }
     let mut merge = vec!["uncertainty".to_string(), "merge".into()];
     merge.extend((1..=n).map(|k| format!("shards/shard-{k}-of-{n}.json")));
@@ -81,7 +94,12 @@ fn shards_run_as_separate_processes_merge_to_the_single_run_byte_for_byte() {
     assert!(dir.join(format!("shards/shard-1-of-{n}.json")).exists());
     // A missing task is refused, naming what is missing.
     let o = Command::new(BIN)
-        .args(["uncertainty", "merge", "task-1/shard-1-of-3.json", "task-3/shard-3-of-3.json"])
+        .args([
+            "uncertainty",
+            "merge",
+            "task-1/shard-1-of-3.json",
+            "task-3/shard-3-of-3.json",
+        ])
         .current_dir(&dir)
         .output()
         .unwrap();

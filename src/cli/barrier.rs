@@ -288,7 +288,9 @@ fn hot_channels(a: &BarrierArgs) -> photoledger::Result<()> {
         })
         .collect();
     if a.output.json {
-        return super::print_json(&photoledger::report::barrier_json::hot_channels(&rows, y.cooled, e, cooling));
+        return super::print_json(&photoledger::report::barrier_json::hot_channels(
+            &rows, y.cooled, e, cooling,
+        ));
     }
     out!("{}", report::hot_yields_text(&rows, y.cooled, e, cooling, &a.grain))?;
     Ok(())

@@ -5,13 +5,16 @@
 use crate::light::{LightKind, Spectrum};
 use crate::network::params::{self, ConditionField, Key, Parameter};
 use crate::network::{Network, PhotoOutcome, Target};
-use crate::units::{display, internal_spelling, sig, Quantity};
+use crate::units::{Quantity, display, internal_spelling, sig};
 use serde_json::{Value, json};
 use std::fmt::Write;
 
 /// Every settable number of `net` in file order, read through the parameter layer.
 pub fn parameters(net: &Network) -> Vec<Parameter> {
-    params::addresses(net).into_iter().map(|k| params::get(net, k)).collect()
+    params::addresses(net)
+        .into_iter()
+        .map(|k| params::get(net, k))
+        .collect()
 }
 
 /// The "settable values" section: one row a key, its current value in the display unit beside
