@@ -11,7 +11,7 @@ pub struct DiagramArgs {
     #[command(flatten)]
     pub net: NetworkArgs,
     /// Where to write the SVG (default: the network file's name followed by "-diagram.svg").
-    #[arg(short = 'o', long = "output", value_name = "SVG")]
+    #[arg(short = 'o', long = "output", alias = "out", value_name = "SVG")]
     pub output: Option<PathBuf>,
     /// Print Graphviz DOT to stdout instead of writing SVG.
     #[arg(long, conflicts_with = "json")]

@@ -38,7 +38,9 @@ pub struct ReportArgs {
     #[arg(long, value_name = "OTHER.toml", requires = "data")]
     pub rival: Vec<PathBuf>,
     /// Where to write the page (default: the network file's name followed by "-report.html").
-    #[arg(short = 'o', long = "output", value_name = "HTML")]
+    // `--out` is still read as this file (a hidden alias) for scripts written before the
+    // convention; help shows -o/--output only.
+    #[arg(short = 'o', long = "output", alias = "out", value_name = "HTML")]
     pub output: Option<PathBuf>,
     /// Print what was written as JSON (the page, its sections, the horizon in seconds, the
     /// target reached or not) instead of the text.
