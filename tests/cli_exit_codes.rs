@@ -88,7 +88,7 @@ fn a_closed_stdout_ends_every_command_quietly_with_0() {
         assert_eq!(c, 0, "{args:?}: {err}");
     }
     // The files are still written: the command finishes its work.
-    assert!(dir.join("photoswitch/summary.json").exists());
+    assert!(dir.join("photoswitch-simulate/summary.json").exists());
     assert!(dir.join("flow-cyclization-plan/summary.json").exists());
     let _ = std::fs::remove_dir_all(&dir);
 }
@@ -283,7 +283,7 @@ fn every_command_given_a_target_answers_not_reachable_with_5() {
     );
     assert_eq!(code(&missed), 5, "{}", stderr(&missed));
     assert!(out(&missed).contains("NOT REACHED"), "{}", out(&missed));
-    assert!(dir.join("photoswitch/summary.json").exists());
+    assert!(dir.join("photoswitch-simulate/summary.json").exists());
     let met = run(
         &dir,
         &[

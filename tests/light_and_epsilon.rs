@@ -493,7 +493,7 @@ fn a_light_at_zero_power_is_a_dark_run() {
     assert_contains(&r.stderr, &["the light of the file is zero"]);
     // the HTML report's light table says "off" rather than a NaN mean wavelength
     let html = s.dir.join("r.html");
-    let (_, r) = run_on(&s, &dark, "report", &["--out", html.to_str().unwrap()]);
+    let (_, r) = run_on(&s, &dark, "report", &["-o", html.to_str().unwrap()]);
     r.code(0);
     let page = std::fs::read_to_string(&html).unwrap();
     assert!(

@@ -128,7 +128,7 @@ fn every_bundled_network_renders_a_self_contained_page() {
         // Sections present by id, each linked from the contents.
         for id in [
             "about",
-            "safety",
+            "cautions",
             "network",
             "concentrations",
             "photons",

@@ -70,7 +70,7 @@ fn each_command_prints_each_warning_once_before_its_results() {
         ("check", vec!["check".into(), net.clone()]),
         (
             "diagram",
-            vec!["diagram".into(), net.clone(), "--out".into(), out("n.svg")],
+            vec!["diagram".into(), net.clone(), "-o".into(), out("n.svg")],
         ),
         (
             "simulate",
@@ -154,7 +154,7 @@ fn each_command_prints_each_warning_once_before_its_results() {
                 net.clone(),
                 "--until".into(),
                 "1 h".into(),
-                "--out".into(),
+                "-o".into(),
                 out("r.html"),
             ],
         ),

@@ -10,7 +10,7 @@ use photoledger::plan::actinometry::{self as act, Measured, Strength, YieldTable
 use photoledger::report::plan as rp;
 use photoledger::report::write_atomic;
 use photoledger::units::{self, Quantity};
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 /// Options of `actinometer`.
 #[derive(clap::Args, Debug)]
@@ -74,12 +74,10 @@ pub struct FerrioxalateArgs {
     /// Name of the light in the [[light]] block written.
     #[arg(long, value_name = "NAME", default_value = "calibrated lamp")]
     pub light_name: String,
-    /// Output folder for result.json and light.toml.
-    #[arg(long, value_name = "DIR")]
-    pub out: Option<PathBuf>,
-    /// Print JSON to stdout.
-    #[arg(long)]
-    pub json: bool,
+    // --out: result.json and light.toml (default: ferrioxalate-actinometer/ for the ferrioxalate
+    // route, NETWORK-actinometer/ for the network route).
+    #[command(flatten)]
+    pub output: super::Outputs,
 }
 
 /// Network-route inputs.
@@ -94,12 +92,10 @@ pub struct NetworkFitArgs {
     /// fraction) or "time (min), conversion (%)".
     #[arg(long, value_name = "CSV")]
     pub data: PathBuf,
-    /// Output folder for result.json and light.toml.
-    #[arg(long, value_name = "DIR")]
-    pub out: Option<PathBuf>,
-    /// Print JSON to stdout.
-    #[arg(long)]
-    pub json: bool,
+    // --out: result.json and light.toml (default: ferrioxalate-actinometer/ for the ferrioxalate
+    // route, NETWORK-actinometer/ for the network route).
+    #[command(flatten)]
+    pub output: super::Outputs,
 }
 
 /// Read "V", "V ± S" or "V UNIT ± S UNIT" / "V ± S UNIT" as a quantity (None: a plain number).
@@ -147,10 +143,6 @@ fn measured(text: &str, q: Option<Quantity>, field: &str) -> photoledger::Result
         return Err(bad("the uncertainty cannot be negative".into()));
     }
     Ok(Measured { value, sigma })
-}
-
-fn out_dir(out: &Option<PathBuf>, default: &str) -> PathBuf {
-    out.clone().unwrap_or_else(|| PathBuf::from(default))
 }
 
 pub fn run(a: &ActinometerArgs) -> photoledger::Result<()> {
@@ -217,7 +209,8 @@ fn ferrioxalate(a: &FerrioxalateArgs) -> photoledger::Result<()> {
             units::sig(wl * 1e9, 5)
         ),
     );
-    let dir = out_dir(&a.out, "actinometry");
+    // No input file: the route names the default folder.
+    let dir = a.output.dir(Path::new("ferrioxalate"), "actinometer");
     let json = serde_json::json!({
         "actinometer": "potassium ferrioxalate, Fe(phen)3 2+ read at 510 nm",
         "inputs": m,
@@ -233,7 +226,7 @@ fn ferrioxalate(a: &FerrioxalateArgs) -> photoledger::Result<()> {
     write_atomic(&folder.join("result.json"), js.as_bytes())?;
     write_atomic(&folder.join("light.toml"), block.as_bytes())?;
     folder.commit()?;
-    if a.json {
+    if a.output.json {
         outln!("{js}")?;
     } else {
         out!("{}", rp::ferrioxalate_text(&r, wl, &yield_note, &eps_note))?;
@@ -242,7 +235,7 @@ fn ferrioxalate(a: &FerrioxalateArgs) -> photoledger::Result<()> {
             dir.display()
         )?;
         out!("{block}")?;
-        outln!("\ncaution: {}", rp::CAUTIONS)?;
+        outln!("\n{}", photoledger::report::caution_line())?;
     }
     Ok(())
 }
@@ -331,7 +324,7 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
         blocks.push_str(&rp::light_block_for(src, &m, &origin));
         blocks.push('\n');
     }
-    let dir = out_dir(&a.out, "actinometry");
+    let dir = a.output.dir(&a.net.file, "actinometer");
     let json = serde_json::json!({
         "network": net.about.name,
         "step": a.step,
@@ -346,7 +339,7 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
     write_atomic(&folder.join("result.json"), js.as_bytes())?;
     write_atomic(&folder.join("light.toml"), blocks.as_bytes())?;
     folder.commit()?;
-    if a.json {
+    if a.output.json {
         outln!("{js}")?;
     } else {
         out!("{}", rp::network_fit_text(&fit, &net.species[sp].name, &a.step))?;
@@ -355,7 +348,7 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
             dir.display()
         )?;
         out!("{blocks}")?;
-        outln!("caution: {}", rp::CAUTIONS)?;
+        outln!("{}", photoledger::report::caution_line())?;
     }
     Ok(())
 }

@@ -17,9 +17,8 @@ use std::path::PathBuf;
 pub struct BarrierArgs {
     /// A network file: verdict on every thermal step and rate channel (needs --window).
     pub file: Option<PathBuf>,
-    /// Override a value of the network file (repeatable), as for `check`.
-    #[arg(long = "set", value_name = "KEY=VALUE")]
-    pub set: Vec<String>,
+    #[command(flatten)]
+    pub set: super::SetArgs,
     /// The time available, e.g. "1 h", "10 ps".
     #[arg(long, allow_hyphen_values = true, value_name = "DURATION")]
     pub window: Option<String>,
@@ -62,9 +61,10 @@ pub struct BarrierArgs {
     /// Rows of the k(E) table (2 to 1,000,000).
     #[arg(long, default_value_t = 400, value_parser = super::values::points, allow_negative_numbers = true)]
     pub points: usize,
-    /// Output folder for the k(E) table and plot.
-    #[arg(long, value_name = "DIR", default_value = "barrier-out")]
-    pub out: PathBuf,
+    // --out: the folder of the k(E) table and plot (default: the frequency file's name followed
+    // by "-barrier"; the other questions write no files) and --json (every question).
+    #[command(flatten)]
+    pub output: super::Outputs,
 }
 
 fn quantity(flag: &str, text: &str, q: Quantity) -> photoledger::Result<f64> {
@@ -127,8 +127,11 @@ fn thermal(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
     }
     let g = barrier::thermal_window(window, t, p, kappa)?;
     let k = barrier::eyring_rate(g, t, kappa);
+    if a.output.json {
+        return super::print_json(&photoledger::report::barrier_json::thermal(window, t, p, kappa, g, k));
+    }
     outln!(
-        "Largest barrier crossed with {:.0} % probability within {} at {t:.2} K:",
+        "largest barrier crossed with {:.0} % probability within {} at {t:.2} K",
         p * 100.0,
         report::duration(window)
     )?;
@@ -186,12 +189,19 @@ fn hot(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
     let f = read_pair(path)?;
     let ts = f.ts.clone().unwrap_or_default();
     let w = barrier::hot_window(&f.reactant, &ts, f.degeneracy, e, limit, p, grain)?;
+    if a.output.json {
+        let limit = match limit {
+            HotLimit::Cooling(t) => ("cooling time constant", t),
+            HotLimit::Window(t) => ("window at constant energy", t),
+        };
+        return super::print_json(&photoledger::report::barrier_json::hot(e, limit, p, &w, f.degeneracy));
+    }
     let how = match limit {
         HotLimit::Cooling(t) => format!("before cooling (exponential, τ = {})", report::duration(t)),
         HotLimit::Window(t) => format!("within {} at constant energy", report::duration(t)),
     };
     outln!(
-        "Hot molecule with {} above its zero-point level, crossing with {:.0} % probability {how}:",
+        "hot molecule with {} above its zero-point level, crossing with {:.0} % probability {how}",
         report::energy(e),
         p * 100.0
     )?;
@@ -277,6 +287,11 @@ fn hot_channels(a: &BarrierArgs) -> photoledger::Result<()> {
             probability: *p,
         })
         .collect();
+    if a.output.json {
+        return super::print_json(&photoledger::report::barrier_json::hot_channels(
+            &rows, y.cooled, e, cooling,
+        ));
+    }
     out!("{}", report::hot_yields_text(&rows, y.cooled, e, cooling, &a.grain))?;
     Ok(())
 }
@@ -311,11 +326,19 @@ fn k_of_e(a: &BarrierArgs) -> photoledger::Result<()> {
     let rrkm = Rrkm::new(&f.reactant, &ts, e0, f.degeneracy, grain, hi + step + grain)
         .map_err(|m| Error::Usage(format!("--grain/--energy-range: {m}")))?;
     let rows = barrier::k_table(&rrkm, lo, hi, a.points)?;
-    let csv = a.out.join("k_of_e.csv");
-    let svg = a.out.join("k_of_e.svg");
+    let dir = a.output.dir(path, "barrier");
+    let csv = dir.join("k_of_e.csv");
+    let svg = dir.join("k_of_e.svg");
     write_atomic(&csv, report::k_csv(&rows).as_bytes())?;
     let title = format!("RRKM k(E), E0 = {}", a.barrier.as_deref().unwrap_or(""));
     write_atomic(&svg, report::k_svg(&rows, &title).as_bytes())?;
+    let files = ["k_of_e.csv", "k_of_e.svg"].map(String::from);
+    let json = photoledger::report::barrier_json::k_of_e(e0, &rows, &files);
+    let text = serde_json::to_string_pretty(&json).map_err(|e| Error::Numerical(e.to_string()))?;
+    write_atomic(&dir.join("summary.json"), text.as_bytes())?;
+    if a.output.json {
+        return outln!("{text}");
+    }
     outln!(
         "k(E) for E0 = {} at {} energies from {} to {} (grain {}, σ = {}); largest frequency rounding {:.3} cm-1",
         report::energy(e0),
@@ -326,16 +349,13 @@ fn k_of_e(a: &BarrierArgs) -> photoledger::Result<()> {
         f.degeneracy,
         rrkm.reactant.rounding.max(rrkm.ts.rounding) / units::parse("1 cm-1", Quantity::MolarEnergy).unwrap_or(1.0)
     )?;
-    outln!("wrote {} and {}", csv.display(), svg.display())?;
+    outln!("wrote {}/ (k_of_e.csv, k_of_e.svg, summary.json)", dir.display())?;
     Ok(())
 }
 
 fn network(a: &BarrierArgs, file: &std::path::Path, p: f64) -> photoledger::Result<()> {
     let window = quantity("window", need(&a.window, "window", "FILE")?, Quantity::Time)?;
-    let args = super::NetworkArgs {
-        file: file.to_path_buf(),
-        set: a.set.clone(),
-    };
+    let args = super::NetworkArgs::of(file, &a.set);
     let net = super::load(&args)?;
     super::print_warnings(&net);
     let mut rows = barrier::network_verdicts(&net, window, p, None)?;
@@ -363,10 +383,15 @@ fn network(a: &BarrierArgs, file: &std::path::Path, p: f64) -> photoledger::Resu
             ),
         }
     }
+    let hot = barrier::hot_verdicts(&net);
+    if a.output.json {
+        let t = net.conditions.temperature;
+        return super::print_json(&photoledger::report::barrier_json::verdicts(&rows, &hot, window, p, t));
+    }
     out!(
         "{}",
         report::verdicts_text(&rows, window, p, net.conditions.temperature)
     )?;
-    out!("{}", report::hot_verdicts_text(&barrier::hot_verdicts(&net)))?;
+    out!("{}", report::hot_verdicts_text(&hot))?;
     Ok(())
 }

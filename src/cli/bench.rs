@@ -13,6 +13,12 @@ use std::time::Instant;
 pub struct BenchArgs {
     /// Network files to time (each for --until); the generated network is always added.
     pub files: Vec<PathBuf>,
+    /// Overrides applied to every network file timed (not to the generated network).
+    #[command(flatten)]
+    pub set: super::SetArgs,
+    /// Print the timings as JSON (wall times in seconds, counts as numbers) instead of the table.
+    #[arg(long)]
+    pub json: bool,
     /// Simulated time for each run.
     #[arg(long, allow_hyphen_values = true, default_value = "1 h")]
     pub until: String,
@@ -38,7 +44,7 @@ pub struct BenchArgs {
 }
 
 /// Time `ledger`'s analysis on a generated chain: without, then with, the photon-count distribution.
-fn chain_bench(states: usize) -> photoledger::Result<()> {
+fn chain_bench(states: usize, json: bool) -> photoledger::Result<()> {
     use photoledger::chain::{Options, analyse, generated};
     let start = Instant::now();
     let c = generated(states);
@@ -59,6 +65,17 @@ fn chain_bench(states: usize) -> photoledger::Result<()> {
     let d = analyse(&c, &pi, &Options::default())?;
     let full = t1.elapsed().as_secs_f64();
     let n = d.distribution.as_ref().map_or(0, |x| x.p.len());
+    if json {
+        return super::print_json(&serde_json::json!({
+            "generated_chain": {"states": c.states.len(), "moves": c.moves.len()},
+            "build_s": built,
+            "moments_s": moments,
+            "with_distribution_s": full,
+            "distribution_points": n,
+            "mean_photons": a.photons_total,
+            "yields": a.yields,
+        }));
+    }
     outln!(
         "generated chain: {} states, {} moves (built in {built:.3} s)",
         c.states.len(),
@@ -89,6 +106,27 @@ struct Row {
     seconds: f64,
 }
 
+impl Row {
+    /// The row as JSON: counts as numbers, the wall time in seconds.
+    fn json(&self) -> serde_json::Value {
+        serde_json::json!({
+            "network": self.name,
+            "species": self.species,
+            "reactions": self.reactions,
+            "wavelength_bins": self.bins,
+            "method": self.method,
+            "steps": self.steps,
+            "rhs_evaluations": self.rhs,
+            "jacobian_vector_products": self.jv,
+            "jacobian_evaluations": self.jacobians,
+            "lu_factorisations": self.setups,
+            "newton_iterations": self.newton,
+            "newton_failures": self.newton_failures,
+            "wall_s": self.seconds,
+        })
+    }
+}
+
 fn time(name: &str, model: &Model, until: f64, sparse: Option<bool>) -> photoledger::Result<Row> {
     let mut opts = Options::until(until);
     opts.method = Method::Bdf;
@@ -115,7 +153,7 @@ fn time(name: &str, model: &Model, until: f64, sparse: Option<bool>) -> photoled
 
 pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
     if let Some(n) = a.chain_states {
-        return chain_bench(n);
+        return chain_bench(n, a.json);
     }
     let size = Size {
         species: a.species.max(2),
@@ -128,6 +166,14 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
             path: path.clone(),
             source,
         })?;
+        if a.json {
+            return super::print_json(&serde_json::json!({
+                "file": path.display().to_string(),
+                "species": size.species,
+                "thermal_steps": size.steps,
+                "absorbers": size.absorbers,
+            }));
+        }
         return outln!(
             "wrote the generated network ({} species, {} thermal steps, {} absorbers) to {}",
             size.species,
@@ -139,10 +185,7 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
     let until = super::values::duration("until", &a.until)?;
     let mut rows = Vec::new();
     for f in &a.files {
-        let net = load(&super::NetworkArgs {
-            file: f.clone(),
-            set: Vec::new(),
-        })?;
+        let net = load(&super::NetworkArgs::of(f, &a.set))?;
         let model = Model::compile(&net);
         rows.push(time(&f.display().to_string(), &model, until, None)?);
     }
@@ -153,6 +196,10 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
     rows.push(time(&name, &model, until, Some(true))?);
     if a.dense_too {
         rows.push(time(&name, &model, until, Some(false))?);
+    }
+    if a.json {
+        let runs: Vec<serde_json::Value> = rows.iter().map(Row::json).collect();
+        return super::print_json(&serde_json::json!({ "until_s": until, "runs": runs }));
     }
     outln!(
         "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>8} {:>7} {:>10}",

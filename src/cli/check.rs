@@ -1,26 +1,45 @@
-//! `photoledger check FILE`: validate and summarise.
+//! `photoledger check FILE [--quiet] [--json]`: validate and summarise.
 
 use super::output::{out, outln};
-use super::{NetworkArgs, build, print_warnings};
+use super::{NetworkArgs, build, print_json, print_warnings};
 use photoledger::uncertainty::{evidence, spec};
 
-pub fn run(args: &NetworkArgs, quiet: bool) -> photoledger::Result<()> {
-    let loaded = photoledger::file::load(&args.file)?;
-    let net = build(&loaded, args)?;
+/// Options of `check`.
+#[derive(clap::Args, Debug)]
+pub struct CheckArgs {
+    #[command(flatten)]
+    pub net: NetworkArgs,
+    /// Print only the verdict and the problems.
+    #[arg(long, short)]
+    pub quiet: bool,
+    /// Print the validated network as JSON (species, steps, transients, lights, every settable
+    /// key with its value and unit, warnings; numbers in SI, each unit named) instead of the text.
+    #[arg(long)]
+    pub json: bool,
+}
+
+pub fn run(args: &CheckArgs) -> photoledger::Result<()> {
+    let loaded = photoledger::file::load(&args.net.file)?;
+    let net = build(&loaded, &args.net)?;
     // The [[uncertain]] entries are checked here too, as `uncertainty` reads them.
     let explicit = spec::read(&loaded)?;
-    if !quiet {
+    print_warnings(&net);
+    if args.json {
+        let file = args.net.file.display().to_string();
+        return print_json(&photoledger::report::check::network_json(&net, &file));
+    }
+    if !args.quiet {
         out!("{}", photoledger::report::summary::network_summary(&net))?;
+        out!("{}", photoledger::report::check::settable_text(&net))?;
         let entries = evidence::entries(&net, &explicit.iter().collect::<Vec<_>>());
         out!("{}", photoledger::report::evidence::uncertain_values(&entries))?;
         out!("{}", photoledger::report::levels::check_text(&net))?;
         outln!()?;
     }
-    print_warnings(&net);
     let w = net.warnings.len();
     outln!(
         "valid: {}{}",
-        args.file.display(),
+        args.net.file.display(),
         if w > 0 {
             format!(" ({w} warning{})", if w == 1 { "" } else { "s" })
         } else {

@@ -1,4 +1,5 @@
-//! `photoledger compare A.toml B.toml ... --data DATA... [--free A.toml:KEY,KEY ...]`.
+//! `photoledger compare A.toml B.toml ... --data DATA... [--free A.toml:KEY,KEY ...] [--set KEY=VALUE]
+//! [--scale-errors] [--out DIR] [--json]`.
 
 use super::Exit;
 use super::fit::{Limits, fit_one, not_converged, read_data};
@@ -23,12 +24,12 @@ pub struct CompareArgs {
     /// Free parameters of one network, FILE:KEY,KEY (repeatable; default: each file's [fit] free list).
     #[arg(long, value_name = "FILE:KEYS")]
     pub free: Vec<String>,
-    /// Output folder.
-    #[arg(long, value_name = "DIR", default_value = "compare")]
-    pub out: PathBuf,
-    /// Print the JSON result to stdout instead of the table.
-    #[arg(long)]
-    pub json: bool,
+    /// Overrides applied to every network compared (each must have the key), e.g. the
+    /// conditions of the experiments (repeatable).
+    #[command(flatten)]
+    pub set: super::SetArgs,
+    #[command(flatten)]
+    pub output: super::Outputs,
     /// Number of starts per network.
     #[arg(long, default_value_t = 1)]
     pub starts: usize,
@@ -69,7 +70,7 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<Exit> {
             .filter_map(|f| f.strip_prefix(&format!("{name}:")))
             .flat_map(|k| k.split(',').map(|s| s.trim().to_string()))
             .collect();
-        let (_, fitted) = fit_one(file, &[], &free, &experiments, &opts).map_err(|e| run::named_error(&name, e))?;
+        let (_, fitted) = fit_one(file, &a.set, &free, &experiments, &opts).map_err(|e| run::named_error(&name, e))?;
         fits.push((name, fitted));
     }
     let cmp = run::Comparison::new(fits, &experiments);
@@ -94,7 +95,8 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<Exit> {
         .into_iter()
         .map(|(n, f, _)| (n.to_string(), f.curves.clone()))
         .collect();
-    let folder = Folder::begin(&a.out)?;
+    let dir = a.output.dir(&a.files[0], "compare");
+    let folder = Folder::begin(&dir)?;
     write_atomic(&folder.join("ranking.txt"), text.as_bytes())?;
     write_atomic(
         &folder.join("ranking.json"),
@@ -105,11 +107,11 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<Exit> {
         rf::data_svg("data and each network's fit", &rows, &models).as_bytes(),
     )?;
     folder.commit()?;
-    if a.json {
+    if a.output.json {
         outln!("{}", serde_json::to_string_pretty(&json).unwrap_or_default())?;
     } else {
         out!("{text}")?;
-        outln!("wrote {}/ ranking.txt ranking.json fits.svg", a.out.display())?;
+        outln!("wrote {}/ (ranking.txt, ranking.json, fits.svg)", dir.display())?;
     }
     let mut code = Exit::Success;
     for r in &ranked {

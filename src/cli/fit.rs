@@ -1,4 +1,4 @@
-//! `photoledger fit FILE --data DATA... [--free KEYS] [--out DIR] [--json] [--starts N] [--seed S] [--scale-errors]
+//! `photoledger fit FILE --data DATA... [--free KEYS] [--set KEY=VALUE] [--out DIR] [--json] [--starts N] [--seed S] [--scale-errors]
 //! [--max-evaluations N] [--time-limit TIME]`.
 
 use super::Exit;
@@ -15,40 +15,34 @@ use std::path::{Path, PathBuf};
 /// Options of `fit`.
 #[derive(clap::Args, Debug)]
 pub struct FitArgs {
-    /// The network file (TOML).
-    pub file: PathBuf,
+    #[command(flatten)]
+    pub net: super::NetworkArgs,
     /// Data: time-course CSV files, or experiments TOML files tying data to conditions (repeatable).
     #[arg(long, required = true, num_args = 1.., value_name = "FILE")]
     pub data: Vec<PathBuf>,
     /// Free parameters as --set keys, comma-separated or repeated (default: the file's [fit] free list).
     #[arg(long, value_delimiter = ',', value_name = "KEYS")]
     pub free: Vec<String>,
-    /// Override a value of the file for every experiment (repeatable).
-    #[arg(long = "set", value_name = "KEY=VALUE")]
-    pub set: Vec<String>,
-    /// Output folder (default: NETWORK-fit beside the current folder).
-    #[arg(long, value_name = "DIR")]
-    pub out: Option<PathBuf>,
-    /// Print the JSON result to stdout instead of the table.
-    #[arg(long)]
-    pub json: bool,
+    #[command(flatten)]
+    pub output: super::Outputs,
     /// Number of starts: the file's values, then seeded random starts around them.
     #[arg(long, default_value_t = 1)]
     pub starts: usize,
     /// Seed of the random starts.
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
-    /// Scale the standard errors by the reduced χ² even when every observation has an sd
-    /// (by default given sd are taken as known).
-    #[arg(long)]
-    pub scale_errors: bool,
     #[command(flatten)]
     pub limits: Limits,
 }
 
-/// When a search gives up, and how it finds its slopes: shared by `fit` and `compare`.
+/// When a search gives up, how it finds its slopes and how it scales its standard errors:
+/// shared by `fit`, `compare` and `levels`.
 #[derive(clap::Args, Debug, Clone)]
 pub struct Limits {
+    /// Scale the standard errors by the reduced χ² even when every observation has an sd
+    /// (by default given sd are taken as known).
+    #[arg(long)]
+    pub scale_errors: bool,
     /// Stop after this many model evaluations over all starts (each integrates every experiment
     /// once); the best point so far is reported as not converged.
     #[arg(long, default_value_t = DEFAULT_MAX_EVALUATIONS, value_name = "N")]
@@ -86,6 +80,7 @@ impl Limits {
         let derivatives = photoledger::fit::mechanism::Derivatives::parse(&self.derivatives).map_err(Error::Usage)?;
         Ok(FitOptions {
             max_evaluations: self.max_evaluations,
+            scale_errors: self.scale_errors,
             time_limit,
             derivatives,
             ..opts
@@ -136,17 +131,14 @@ pub type Fitted = (photoledger::file::Loaded, run::Fitted);
 /// Load `file` and fit it (a progress bar on a terminal).
 pub fn fit_one(
     file: &Path,
-    set: &[String],
+    set: &super::SetArgs,
     free: &[String],
     experiments: &[Experiment],
     opts: &FitOptions,
 ) -> photoledger::Result<Fitted> {
     let loaded = photoledger::file::load(file)?;
     // The network as given (before any experiment's conditions): its warnings, once, first.
-    let args = super::NetworkArgs {
-        file: file.to_path_buf(),
-        set: set.to_vec(),
-    };
+    let args = super::NetworkArgs::of(file, set);
     let net = super::build(&loaded, &args)?;
     super::print_warnings(&net);
     let pb = bar(opts.max_evaluations, &file.display().to_string());
@@ -162,21 +154,17 @@ pub fn run(a: &FitArgs) -> photoledger::Result<Exit> {
     let opts = a.limits.apply(FitOptions {
         starts: a.starts.max(1),
         seed: a.seed,
-        scale_errors: a.scale_errors,
         ..FitOptions::default()
     })?;
-    let (loaded, fitted) = fit_one(&a.file, &a.set, &a.free, &experiments, &opts)?;
+    let (loaded, fitted) = fit_one(&a.net.file, &a.net.set, &a.free, &experiments, &opts)?;
     let run::Fitted {
         result,
         curves,
         predicted,
     } = fitted;
-    let stem = a
-        .file
-        .file_stem()
-        .map_or("network".into(), |s| s.to_string_lossy().to_string());
-    let out = a.out.clone().unwrap_or_else(|| PathBuf::from(format!("{stem}-fit")));
-    let name = a.file.display().to_string();
+    let stem = super::stem(&a.net.file);
+    let out = a.output.dir(&a.net.file, "fit");
+    let name = a.net.file.display().to_string();
     let text = rf::fit_text(&name, &result);
     let json = rf::fit_json(&name, &result);
     let rows = rf::rows(&experiments, &predicted);
@@ -200,12 +188,12 @@ pub fn run(a: &FitArgs) -> photoledger::Result<Exit> {
     )?;
     write_atomic(&folder.join(format!("{stem}.fitted.toml")), fitted.as_bytes())?;
     folder.commit()?;
-    if a.json {
+    if a.output.json {
         outln!("{}", serde_json::to_string_pretty(&json).unwrap_or_default())?;
     } else {
         out!("{text}")?;
         outln!(
-            "wrote {}/ summary.txt fit.json residuals.csv fit.svg residuals.svg {stem}.fitted.toml",
+            "wrote {}/ (summary.txt, fit.json, residuals.csv, fit.svg, residuals.svg, {stem}.fitted.toml)",
             out.display()
         )?;
     }

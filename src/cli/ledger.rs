@@ -22,12 +22,8 @@ pub struct LedgerArgs {
     /// Follow one molecule of this species (default: the initial mixture).
     #[arg(long, value_name = "SPECIES")]
     pub from: Option<String>,
-    /// Print the summary JSON to stdout.
-    #[arg(long)]
-    pub json: bool,
-    /// Output folder (default: the network file's name followed by "-ledger").
-    #[arg(long, value_name = "DIR")]
-    pub out: Option<PathBuf>,
+    #[command(flatten)]
+    pub output: super::Outputs,
     /// Photon absorption per molecule: "stirred" (its share of the light in the well-stirred
     /// cell at the initial concentrations) or "thin" (optically thin, needs irradiated_area).
     #[arg(long, default_value = "stirred")]
@@ -117,7 +113,7 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
         write_atomic(&folder.join("cycle_counts.csv"), paths::cycles_csv(c).as_bytes())?;
     }
     folder.commit()?;
-    if a.json {
+    if a.output.json {
         outln!("{json}")?;
     } else {
         out!("{}", report::text(&summary))?;
@@ -147,15 +143,7 @@ fn duration(flag: &str, text: Option<&str>) -> photoledger::Result<Option<f64>> 
 
 /// The output folder: `--out`, or the network file's name followed by "-ledger".
 fn out_dir(a: &LedgerArgs) -> PathBuf {
-    a.out.clone().unwrap_or_else(|| {
-        let stem = a
-            .net
-            .file
-            .file_stem()
-            .map(|s| s.to_string_lossy().to_string())
-            .unwrap_or_else(|| "network".into());
-        PathBuf::from(format!("{stem}-ledger"))
-    })
+    a.output.dir(&a.net.file, "ledger")
 }
 
 /// Cycles before the molecule ends, lifetimes and routes of a chain that ends (routes judged
@@ -216,7 +204,7 @@ fn closed(a: &LedgerArgs, net: &Network, c: &ClosedRun) -> photoledger::Result<(
     let folder = Folder::begin(&dir)?;
     write_atomic(&folder.join("summary.json"), json.as_bytes())?;
     folder.commit()?;
-    if a.json {
+    if a.output.json {
         outln!("{json}")?;
     } else {
         out!("{}", paths::closed_text(&summary))?;

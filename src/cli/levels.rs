@@ -36,12 +36,8 @@ pub struct LevelsArgs {
     pub seed: u64,
     #[command(flatten)]
     pub limits: Limits,
-    /// Print the summary JSON to stdout.
-    #[arg(long)]
-    pub json: bool,
-    /// Output folder (default: the network file's name followed by "-levels").
-    #[arg(long, value_name = "DIR")]
-    pub out: Option<PathBuf>,
+    #[command(flatten)]
+    pub output: super::Outputs,
 }
 
 /// Run `levels`.
@@ -92,15 +88,7 @@ pub fn run(a: &LevelsArgs) -> photoledger::Result<Exit> {
         pb.finish_and_clear();
         Some(s?)
     };
-    let dir = a.out.clone().unwrap_or_else(|| {
-        let stem = a
-            .net
-            .file
-            .file_stem()
-            .map(|s| s.to_string_lossy().to_string())
-            .unwrap_or_else(|| "network".into());
-        PathBuf::from(format!("{stem}-levels"))
-    });
+    let dir = a.output.dir(&a.net.file, "levels");
     let json = serde_json::to_string_pretty(&report::json(&c, scores.as_ref()))
         .map_err(|e| Error::Numerical(e.to_string()))?;
     write_atomic(&dir.join("summary.json"), json.as_bytes())?;
@@ -108,7 +96,7 @@ pub fn run(a: &LevelsArgs) -> photoledger::Result<Exit> {
     if let Some(s) = &scores {
         write_atomic(&dir.join("scores.csv"), report::scores_csv(s).as_bytes())?;
     }
-    if a.json {
+    if a.output.json {
         outln!("{json}")?;
     } else {
         out!("{}", report::text(&net.about.name, &c))?;

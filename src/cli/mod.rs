@@ -22,7 +22,7 @@ mod values;
 use clap::{Parser, Subcommand};
 use output::noteln;
 use photoledger::Error;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 /// Photochemical reaction networks under light: validate, draw, and account for every photon.
 #[derive(Parser, Debug)]
@@ -32,26 +32,84 @@ struct Cli {
     command: Command,
 }
 
-/// Options every command that reads a network shares.
-#[derive(clap::Args, Debug)]
-struct NetworkArgs {
-    /// The network file (TOML).
-    file: PathBuf,
-    /// Override a value of the file, e.g. --set conditions.temperature="310 K" (repeatable).
+/// `--set`, one definition for every command that reads a network.
+#[derive(clap::Args, Debug, Clone, Default)]
+pub struct SetArgs {
+    /// Override a value of the network file, e.g. --set conditions.temperature="310 K"
+    /// (repeatable; the keys `check` lists under "settable values").
     #[arg(long = "set", value_name = "KEY=VALUE")]
-    set: Vec<String>,
+    pub values: Vec<String>,
+}
+
+/// Options every command that reads one network shares.
+#[derive(clap::Args, Debug)]
+pub struct NetworkArgs {
+    /// The network file (TOML).
+    pub file: PathBuf,
+    #[command(flatten)]
+    pub set: SetArgs,
+}
+
+impl NetworkArgs {
+    /// `file` with the overrides `set`.
+    pub fn of(file: &Path, set: &SetArgs) -> Self {
+        NetworkArgs {
+            file: file.to_path_buf(),
+            set: set.clone(),
+        }
+    }
+}
+
+/// `--out DIR` and `--json`: one definition for every command that writes an output folder.
+#[derive(clap::Args, Debug, Clone)]
+pub struct Outputs {
+    /// Output folder (default: the input file's name followed by the command, e.g.
+    /// photoswitch-simulate/ for `simulate networks/photoswitch.toml`).
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+    /// Print the machine-readable summary the output folder holds (JSON; numbers in SI, each
+    /// unit named) instead of the text.
+    #[arg(long)]
+    pub json: bool,
+}
+
+impl Outputs {
+    /// The output folder: `--out`, or [`default_dir`] of `input` and `command`.
+    pub fn dir(&self, input: &Path, command: &str) -> PathBuf {
+        self.out.clone().unwrap_or_else(|| default_dir(input, command))
+    }
+}
+
+/// The name of an input file without folder or extension ("photoswitch" for
+/// networks/photoswitch.toml).
+pub fn stem(input: &Path) -> String {
+    input
+        .file_stem()
+        .map(|s| s.to_string_lossy().to_string())
+        .filter(|s| !s.is_empty())
+        .unwrap_or_else(|| "network".into())
+}
+
+/// The one default output folder: `<input file stem>-<command>` in the current folder.
+pub fn default_dir(input: &Path, command: &str) -> PathBuf {
+    PathBuf::from(format!("{}-{command}", stem(input)))
+}
+
+/// The default of a single output file (`-o`): `<input file stem>-<command>.<extension>`.
+pub fn default_file(input: &Path, command: &str, extension: &str) -> PathBuf {
+    PathBuf::from(format!("{}-{command}.{extension}", stem(input)))
+}
+
+/// Print `value` as pretty JSON on standard output.
+pub fn print_json(value: &impl serde::Serialize) -> photoledger::Result<()> {
+    let text = serde_json::to_string_pretty(value).map_err(|e| Error::Numerical(e.to_string()))?;
+    output::outln!("{text}")
 }
 
 #[derive(Subcommand, Debug)]
 enum Command {
     /// Load and validate a network file; print a short summary and any warnings.
-    Check {
-        #[command(flatten)]
-        net: NetworkArgs,
-        /// Print only the verdict and the problems.
-        #[arg(long, short)]
-        quiet: bool,
-    },
+    Check(check::CheckArgs),
     /// Time the kinetics on network files and on a generated large network.
     Bench(bench::BenchArgs),
     /// The largest barrier crossed in a time window (thermal or hot molecule), a verdict on every
@@ -81,16 +139,7 @@ enum Command {
     /// Fit rival networks to the same data and rank them by AICc and BIC.
     Compare(compare::CompareArgs),
     /// Draw the network as SVG (species, transients, thermal and photochemical steps).
-    Diagram {
-        #[command(flatten)]
-        net: NetworkArgs,
-        /// Where to write the SVG.
-        #[arg(short = 'o', long = "out", value_name = "SVG", default_value = "network.svg")]
-        out: PathBuf,
-        /// Print Graphviz DOT to stdout instead of writing SVG.
-        #[arg(long)]
-        dot: bool,
-    },
+    Diagram(diagram::DiagramArgs),
 }
 
 /// The exit code of every command: the one table. README's "Exit codes" table mirrors
@@ -168,8 +217,8 @@ pub fn run() -> i32 {
         std::process::exit(130);
     });
     let result = match cli.command {
-        Command::Check { net, quiet } => check::run(&net, quiet),
-        Command::Diagram { net, out, dot } => diagram::run(&net, &out, dot),
+        Command::Check(a) => check::run(&a),
+        Command::Diagram(a) => diagram::run(&a),
         Command::Simulate(a) => return exit_of(simulate::run(&a)),
         Command::Bench(a) => bench::run(&a),
         Command::Barrier(a) => barrier::run(&a),
@@ -220,7 +269,7 @@ fn load(args: &NetworkArgs) -> photoledger::Result<photoledger::Network> {
 
 /// Validate a network file already read, with the `--set` overrides of `args`.
 fn build(loaded: &photoledger::file::Loaded, args: &NetworkArgs) -> photoledger::Result<photoledger::Network> {
-    let overrides = photoledger::Overrides::parse(&args.set).map_err(Error::Usage)?;
+    let overrides = photoledger::Overrides::parse(&args.set.values).map_err(Error::Usage)?;
     photoledger::network::build(loaded, &overrides).map_err(|e| match e {
         // An unknown --set key is a usage error, not a broken file.
         Error::Invalid(ds)

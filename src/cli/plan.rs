@@ -11,7 +11,6 @@ use photoledger::plan::{self, PlanOptions, Tube};
 use photoledger::report::plan as rp;
 use photoledger::report::{simulation, write_atomic};
 use photoledger::units::{self, Quantity};
-use std::path::PathBuf;
 
 /// Options of `plan`.
 #[derive(clap::Args, Debug)]
@@ -52,12 +51,8 @@ pub struct PlanArgs {
     /// Relative tolerance of the integrator (1e-14 to 0.1).
     #[arg(long, default_value_t = 1e-8, value_parser = super::values::rtol, allow_negative_numbers = true)]
     pub rtol: f64,
-    /// Output folder (default: the network file's name with "-plan").
-    #[arg(long, value_name = "DIR")]
-    pub out: Option<PathBuf>,
-    /// Print the summary JSON to stdout.
-    #[arg(long)]
-    pub json: bool,
+    #[command(flatten)]
+    pub output: super::Outputs,
 }
 
 /// "ID=1 mm, length=2 m" (also "id", "diameter", "inner diameter"; separated by , or ;).
@@ -171,16 +166,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
         schedule,
         products,
     };
-    let dir = a.out.clone().unwrap_or_else(|| {
-        PathBuf::from(format!(
-            "{}-plan",
-            a.net
-                .file
-                .file_stem()
-                .map(|s| s.to_string_lossy().to_string())
-                .unwrap_or_else(|| "network".into())
-        ))
-    });
+    let dir = a.output.dir(&a.net.file, "plan");
     let name = net.about.name.clone();
     if let Some(sw) = &a.sweep {
         let sw = plan::sweep::parse(sw, &net)?;
@@ -200,7 +186,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
             write_atomic(&folder.join("selectivity.svg"), s.as_bytes())?;
         }
         folder.commit()?;
-        if a.json {
+        if a.output.json {
             let rows: Vec<serde_json::Value> = points
                 .iter()
                 .map(|p| match &p.plan {
@@ -227,7 +213,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
                 dir.display(),
                 if sel.is_some() { ", selectivity.svg" } else { "" }
             )?;
-            outln!("caution: {}", rp::CAUTIONS)?;
+            outln!("{}", photoledger::report::caution_line())?;
         }
         return Ok(sweep_exit(&points));
     }
@@ -238,7 +224,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
             let ps = match plan::power_for_time(&model, &target, d, &opts)? {
                 Ok(ps) => ps,
                 Err(no) => {
-                    if a.json {
+                    if a.output.json {
                         let j = serde_json::json!({"network": name, "target": a.target, "in_s": d,
                             "reachable": false, "why": no.why, "evaluations": no.evaluations});
                         outln!(
@@ -306,7 +292,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
         simulation::concentrations_svg(&net, &run_model, &result.trajectory, false).as_bytes(),
     )?;
     folder.commit()?;
-    if a.json {
+    if a.output.json {
         outln!("{json}")?;
     } else {
         out!("{}", rp::text(&summary))?;

@@ -38,8 +38,14 @@ pub struct ReportArgs {
     #[arg(long, value_name = "OTHER.toml", requires = "data")]
     pub rival: Vec<PathBuf>,
     /// Where to write the page (default: the network file's name followed by "-report.html").
-    #[arg(short = 'o', long = "out", value_name = "HTML")]
-    pub out: Option<PathBuf>,
+    // `--out` is still read as this file (a hidden alias) for scripts written before the
+    // convention; help shows -o/--output only.
+    #[arg(short = 'o', long = "output", alias = "out", value_name = "HTML")]
+    pub output: Option<PathBuf>,
+    /// Print what was written as JSON (the page, its sections, the horizon in seconds, the
+    /// target reached or not) instead of the text.
+    #[arg(long)]
+    pub json: bool,
 }
 
 /// The command line as typed, each argument quoted for a POSIX shell when it needs it.
@@ -107,15 +113,10 @@ pub fn run(a: &ReportArgs) -> photoledger::Result<Exit> {
         date: date::now_utc(),
     };
     let page = html::render(&net, &model, &found, &meta);
-    let out = a.out.clone().unwrap_or_else(|| {
-        let stem = a
-            .net
-            .file
-            .file_stem()
-            .map(|s| s.to_string_lossy().to_string())
-            .unwrap_or_else(|| "network".into());
-        PathBuf::from(format!("{stem}-report.html"))
-    });
+    let out = a
+        .output
+        .clone()
+        .unwrap_or_else(|| super::default_file(&a.net.file, "report", "html"));
     write_atomic(&out, page.as_bytes())?;
     match (&found.chain, &found.closed) {
         (Err(_), Some(_)) => noteln!(
@@ -124,10 +125,27 @@ pub fn run(a: &ReportArgs) -> photoledger::Result<Exit> {
         (Err(why), None) => noteln!("note: no single-molecule section: {why}"),
         _ => {}
     }
-    outln!("wrote {} ({} kB)", out.display(), page.len().div_ceil(1024))?;
     // A target given and not reachable is the answer "not reachable" (exit 5), as for `plan`.
     let missed = found.plan.as_ref().filter(|p| p.plan.time.is_none());
-    if let Some(p) = missed {
+    if a.json {
+        let sections: Vec<&str> = html::SECTIONS
+            .iter()
+            .map(|(id, _)| *id)
+            .filter(|id| page.contains(&format!("id=\"{id}\"")))
+            .collect();
+        super::print_json(&serde_json::json!({
+            "network": net.about.name,
+            "file": out.display().to_string(),
+            "size_bytes": page.len(),
+            "sections": sections,
+            "until_s": found.until,
+            "target": found.plan.as_ref().map(|p| p.plan.target.text.clone()),
+            "time_to_target_s": found.plan.as_ref().and_then(|p| p.plan.time),
+        }))?;
+    } else {
+        outln!("wrote {} ({} kB)", out.display(), page.len().div_ceil(1024))?;
+    }
+    if let Some(p) = missed.filter(|_| !a.json) {
         let plan = &p.plan;
         outln!(
             "NOT REACHABLE: \"{}\": {} (see the plan section; exit 5)",

@@ -10,7 +10,6 @@ use photoledger::model::Model;
 use photoledger::report::{simulation, write_atomic, write_atomic_with};
 use photoledger::units::{self, Quantity};
 use std::io::IsTerminal;
-use std::path::PathBuf;
 
 /// Options of `simulate`.
 #[derive(clap::Args, Debug)]
@@ -20,12 +19,8 @@ pub struct SimulateArgs {
     /// How long to irradiate, e.g. "2 h", "30 min", "5 d".
     #[arg(long, allow_hyphen_values = true, value_name = "DURATION")]
     pub until: String,
-    /// Output folder (default: a folder named after the network file).
-    #[arg(long, value_name = "DIR")]
-    pub out: Option<PathBuf>,
-    /// Print the summary JSON to stdout.
-    #[arg(long)]
-    pub json: bool,
+    #[command(flatten)]
+    pub output: super::Outputs,
     /// Integrator: auto, bdf or dop853.
     #[arg(long, default_value = "auto")]
     pub method: String,
@@ -97,15 +92,7 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<Exit> {
     bar.finish_and_clear();
     let summary = simulation::summary(&net, &model, &tr, opts.rtol, opts.atol);
     let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
-    let dir = a.out.clone().unwrap_or_else(|| {
-        PathBuf::from(
-            a.net
-                .file
-                .file_stem()
-                .map(|s| s.to_string_lossy().to_string())
-                .unwrap_or_else(|| "simulation".into()),
-        )
-    });
+    let dir = a.output.dir(&a.net.file, "simulate");
     let folder = Folder::begin(&dir)?;
     // The time series stream into their files: a million points are never held as text.
     write_atomic_with(&folder.join("concentrations.csv"), |w| {
@@ -130,7 +117,7 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<Exit> {
     }
     // A stop condition is a target: not met by --until is the answer "not reached" (exit 5).
     let missed = a.stop_when.as_deref().filter(|_| matches!(tr.stop, Stop::EndTime));
-    if a.json {
+    if a.output.json {
         outln!("{json}")?;
     } else {
         out!("{}", photoledger::report::summary::run_summary(&summary))?;

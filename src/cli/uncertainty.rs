@@ -20,9 +20,8 @@ pub struct UncertaintyArgs {
     /// The network file (TOML) with [[uncertain]] entries, stated origins or trajectory counts.
     #[arg(required = true)]
     pub file: Option<PathBuf>,
-    /// Override a value of the file for every sample, e.g. --set conditions.temperature="310 K".
-    #[arg(long = "set", value_name = "KEY=VALUE")]
-    pub set: Vec<String>,
+    #[command(flatten)]
+    pub set: super::SetArgs,
     /// Number of samples in the whole run.
     #[arg(long, required = true)]
     pub samples: Option<usize>,
@@ -45,12 +44,8 @@ pub struct UncertaintyArgs {
     /// Run only slice K of N of the samples and write it for `uncertainty merge`.
     #[arg(long, value_name = "K/N")]
     pub shard: Option<String>,
-    /// Print the summary JSON to stdout.
-    #[arg(long)]
-    pub json: bool,
-    /// Output folder (default: the network file's name followed by "-uncertainty").
-    #[arg(long, value_name = "DIR")]
-    pub out: Option<PathBuf>,
+    #[command(flatten)]
+    pub output: super::Outputs,
 }
 
 /// `uncertainty merge`.
@@ -61,12 +56,11 @@ pub enum MergeCommand {
         /// Shard files (shard-K-of-N.json).
         #[arg(required = true)]
         shards: Vec<PathBuf>,
-        /// Print the summary JSON to stdout.
-        #[arg(long)]
-        json: bool,
-        /// Output folder.
-        #[arg(long, value_name = "DIR", default_value = "merged-uncertainty")]
-        out: PathBuf,
+        // --out (default: the shards' folder followed by "-merged", e.g.
+        // photoswitch-uncertainty-merged/ for shards in photoswitch-uncertainty/;
+        // merged-uncertainty/ for shards in the current folder) and --json.
+        #[command(flatten)]
+        output: super::Outputs,
     },
 }
 
@@ -77,8 +71,9 @@ fn read(path: &Path) -> photoledger::Result<String> {
 /// Run `uncertainty`; [`Exit::Unreachable`] when a `--target` is reached by no sample (the
 /// outputs are written all the same, every sample counted as censored).
 pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
-    if let Some(MergeCommand::Merge { shards, json, out }) = &a.merge {
-        return merge(shards, *json, out);
+    if let Some(MergeCommand::Merge { shards, output }) = &a.merge {
+        let dir = output.out.clone().unwrap_or_else(|| merged_dir(&shards[0]));
+        return merge(shards, output.json, &dir);
     }
     let (Some(file), Some(total)) = (&a.file, a.samples) else {
         return Err(Error::Usage("give the network file and --samples N".into()));
@@ -88,10 +83,7 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
     }
     let loaded = photoledger::file::load(file)?;
     // The network as given (before any sample's values): its warnings, once, first.
-    let args = super::NetworkArgs {
-        file: file.clone(),
-        set: a.set.clone(),
-    };
+    let args = super::NetworkArgs::of(file, &a.set);
     let net = super::build(&loaded, &args)?;
     super::print_warnings(&net);
     let mut space = Space {
@@ -138,13 +130,7 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
     };
     let record = problem.record(a.seed, total, range, &|| bar.inc(1));
     bar.finish_and_clear();
-    let dir = a.out.clone().unwrap_or_else(|| {
-        let stem = file
-            .file_stem()
-            .map(|s| s.to_string_lossy().to_string())
-            .unwrap_or_else(|| "network".into());
-        PathBuf::from(format!("{stem}-uncertainty"))
-    });
+    let dir = a.output.dir(file, "uncertainty");
     if let Some((k, n)) = shard {
         let name = format!("shard-{k}-of-{n}.json");
         let json = serde_json::to_string(&record).map_err(|e| Error::Numerical(e.to_string()))?;
@@ -158,7 +144,20 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
         )?;
         return Ok(Exit::Success);
     }
-    write_all(&record, &dir, a.json)
+    write_all(&record, &dir, a.output.json)
+}
+
+/// The default folder of `merge`: the folder holding the first shard followed by "-merged"
+/// (the shards' own folder keeps the shards), or `merged-uncertainty` in the current folder.
+fn merged_dir(first: &Path) -> PathBuf {
+    match first.parent().and_then(Path::file_name) {
+        Some(name) => {
+            let mut d = first.parent().unwrap_or(Path::new(".")).to_path_buf();
+            d.set_file_name(format!("{}-merged", name.to_string_lossy()));
+            d
+        }
+        None => PathBuf::from("merged-uncertainty"),
+    }
 }
 
 fn merge(shards: &[PathBuf], json: bool, out: &Path) -> photoledger::Result<Exit> {

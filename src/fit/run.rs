@@ -77,6 +77,8 @@ pub fn rank(fits: &[(String, &Fitted)], experiments: &[Experiment]) -> Ranking {
 /// which name their file already, as they are).
 pub fn named_error(name: &str, e: Error) -> Error {
     match e {
+        // A located diagnostic ("error: FILE:LINE: ...", a --set key refused) names its file.
+        Error::Usage(m) if m.starts_with("error:") => Error::Usage(m),
         Error::Usage(m) => Error::Usage(format!("{name}: {m}")),
         Error::Numerical(m) => Error::Numerical(format!("{name}: {m}")),
         other => other,

@@ -38,7 +38,7 @@ pub fn verdicts_text(rows: &[Verdict], window: f64, probability: f64, temperatur
     let mut s = String::new();
     let _ = writeln!(
         s,
-        "Steps at {temperature:.2} K against a window of {} (probability {:.0} %):",
+        "steps at {temperature:.2} K against a window of {} (probability {:.0} %)",
         duration(window),
         probability * 100.0
     );
@@ -101,7 +101,7 @@ pub fn hot_yields_text(rows: &[HotRow], cooled: f64, energy: f64, cooling: f64, 
     let mut s = String::new();
     let _ = writeln!(
         s,
-        "Hot molecule with {} above its zero-point level, cooling exponentially with τ = {}:",
+        "hot molecule with {} above its zero-point level, cooling exponentially with τ = {}",
         self::energy(energy),
         duration(cooling)
     );

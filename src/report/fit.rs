@@ -6,7 +6,7 @@ use crate::file::data::Experiment;
 use crate::fit::mechanism::{Curve, Free};
 use crate::fit::{FitResult, lsq};
 use crate::report::csv_out::{CsvTable, sci};
-use crate::report::simulation::{CAUTIONS, PALETTE};
+use crate::report::simulation::PALETTE;
 use crate::units::display::time as time_unit;
 use crate::units::sig;
 use plotters::prelude::*;
@@ -135,7 +135,7 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
     for w in &r.warnings {
         let _ = writeln!(o, "warning: {w}");
     }
-    let _ = writeln!(o, "\ncaution: {CAUTIONS}");
+    let _ = writeln!(o, "\n{}", crate::report::caution_line());
     o
 }
 

@@ -2,8 +2,10 @@
 //! strings, plus [`write_atomic`], the one way outputs reach the disk.
 
 pub mod barrier;
+pub mod barrier_json;
 pub mod chain;
 pub mod chain_paths;
+pub mod check;
 pub mod csv_out;
 pub mod diagram;
 pub mod evidence;
@@ -55,6 +57,12 @@ pub fn write_atomic_with(path: &Path, fill: impl FnOnce(&mut dyn Write) -> std::
         let _ = std::fs::remove_file(&tmp);
     }
     result.map_err(io)
+}
+
+/// The one caution line every text output that involves a lamp ends with, under the one
+/// heading "caution:" (`simulate`, `plan`, `fit`, `uncertainty`, `actinometer`).
+pub fn caution_line() -> String {
+    format!("caution: {}", simulation::CAUTIONS)
 }
 
 #[cfg(test)]

@@ -366,7 +366,7 @@ pub fn text(s: &PlanSummary) -> String {
     let per = |x: Option<f64>| x.map_or(String::new(), |v| format!("; {} einstein per {what}", sig(v, 4)));
     let _ = writeln!(
         o,
-        "photons {}:",
+        "photons {}",
         if s.reached {
             "to the target"
         } else {
@@ -446,7 +446,7 @@ pub fn text(s: &PlanSummary) -> String {
     if !formed.is_empty() {
         let _ = writeln!(
             o,
-            "products {}:",
+            "products {}",
             if s.reached {
                 "at the target"
             } else {
@@ -558,7 +558,7 @@ pub fn ferrioxalate_text(r: &FluxResult, wavelength: f64, yield_note: &str, eps_
     );
     let _ = writeln!(o, "  as radiant power at the wavelength: {}", measured(&r.power, "W"));
     if !r.contributions.is_empty() {
-        let _ = writeln!(o, "  first-order uncertainty from (relative):");
+        let _ = writeln!(o, "  first-order uncertainty from (relative)");
         for (n, v) in &r.contributions {
             let _ = writeln!(o, "    {n:<24} {} %", sig(v * 100.0, 2));
         }

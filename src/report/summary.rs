@@ -433,7 +433,7 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         let _ = writeln!(o, "floors      {line}");
     }
     let _ = writeln!(o, "assumes     {}", s.assumptions);
-    let _ = writeln!(o, "caution     {}", s.cautions);
+    let _ = writeln!(o, "caution: {}", s.cautions);
     o
 }
 

@@ -6,7 +6,6 @@
 //! CSV and JSON keep the internal (SI) values with their unit named beside them.
 
 use crate::report::csv_out::{CsvTable, opt_sci, sci};
-use crate::report::simulation::CAUTIONS;
 use crate::uncertainty::{OutputSummary, QUANTILES, Record, Summary};
 use crate::units::{self, display, sig};
 use plotters::prelude::*;
@@ -165,7 +164,8 @@ pub fn text(s: &Summary) -> String {
     }
     let _ = writeln!(
         o,
-        "\n  quantiles interpolate between order statistics (Hyndman & Fan definition 7); sd uses n − 1.\n  caution: {CAUTIONS}"
+        "\n  quantiles interpolate between order statistics (Hyndman & Fan definition 7); sd uses n − 1.\n\n{}",
+        crate::report::caution_line()
     );
     o
 }

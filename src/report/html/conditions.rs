@@ -1,4 +1,4 @@
-//! Safety and conditions: the cautions (with what this network's light makes of them), the
+//! Cautions and conditions: the cautions (with what this network's light makes of them), the
 //! reactor, and each light source as the engines see it.
 
 use super::escape::esc;

@@ -35,7 +35,7 @@ pub struct Meta {
 
 /// Ids and titles of the sections, in page order (the contents list and the tests use them).
 pub const SECTIONS: [(&str, &str); 11] = [
-    ("safety", "Safety and conditions"),
+    ("cautions", "Cautions and conditions"),
     ("network", "The network"),
     ("concentrations", "Concentrations over time"),
     ("photons", "Where the photons went"),
@@ -51,7 +51,7 @@ pub const SECTIONS: [(&str, &str); 11] = [
 /// The whole report page for `net` (compiled as `model`) and what the study found.
 pub fn render(net: &Network, model: &Model, study: &Study, meta: &Meta) -> String {
     let mut parts: Vec<(&str, String)> = vec![
-        ("safety", conditions::section(net, model)),
+        ("cautions", conditions::section(net, model)),
         ("network", diagram::section(net)),
         ("concentrations", kinetics::section(net, model, study)),
         ("photons", photons::section(model, &study.kinetics)),
