@@ -354,3 +354,42 @@ fn check_prints_every_settable_key_beside_its_value() {
     assert_eq!(set.status.code(), Some(0), "{set:?}");
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// A share computed from trajectory counts is listed with its key, but marked: the counts set
+/// it, and `--set` refuses the key (the bundled two-funnel diene, invented counts).
+#[test]
+fn check_marks_a_share_from_trajectory_counts() {
+    let dir = scratch("counted");
+    let out = Command::new(BIN)
+        .args(["check", "networks/diene-two-funnels.toml"])
+        .current_dir(&dir)
+        .output()
+        .unwrap();
+    let text = String::from_utf8_lossy(&out.stdout);
+    let line = text
+        .lines()
+        .find(|l| l.trim_start().starts_with("transient.CI-ring.channels[0].fraction "))
+        .unwrap_or_else(|| panic!("no line for the counted share in:\n{text}"));
+    assert!(line.contains("from trajectory counts"), "{line}");
+    let v = json(&dir, &["check", "networks/diene-two-funnels.toml"]);
+    let p = v["parameters"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["key"] == "transient.CI-ring.channels[0].fraction")
+        .expect("listed");
+    assert_eq!(p["from_trajectory_counts"], true);
+    let set = Command::new(BIN)
+        .args([
+            "check",
+            "networks/diene-two-funnels.toml",
+            "--quiet",
+            "--set",
+            "transient.CI-ring.channels[0].fraction=0.5",
+        ])
+        .current_dir(&dir)
+        .output()
+        .unwrap();
+    assert_ne!(set.status.code(), Some(0), "refused");
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -37,6 +37,8 @@ pub fn settable_text(net: &Network) -> String {
         let pad = width.saturating_sub(p.key.chars().count());
         let table = if of_table(net, p.address) {
             "  (mean of a table; --set replaces the table by one value)"
+        } else if counted(net, p.address) {
+            "  (from trajectory counts: change the counts in the file; --set and --free refuse it)"
         } else {
             ""
         };
@@ -56,6 +58,12 @@ fn of_table(net: &Network, key: Key) -> bool {
     }
 }
 
+/// True when the value at `key` is a channel's share computed from trajectory counts: the
+/// counts set it, so `--set` and `--free` refuse the key.
+fn counted(net: &Network, key: Key) -> bool {
+    matches!(key, Key::Fraction { transient, .. } if net.evidence.counts_of(transient).is_some())
+}
+
 /// A parameter as JSON: its key, value in SI (mol/L for concentrations) and that unit's
 /// spelling ("" for a plain number).
 fn parameter_json(net: &Network, p: &Parameter) -> Value {
@@ -64,6 +72,7 @@ fn parameter_json(net: &Network, p: &Parameter) -> Value {
         "value": p.value,
         "unit": p.unit,
         "mean_of_table": of_table(net, p.address),
+        "from_trajectory_counts": counted(net, p.address),
     })
 }
 
