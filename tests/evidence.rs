@@ -373,7 +373,7 @@ fn origins_give_their_spreads_and_an_entry_wins() {
     }
     // check lists every uncertain value with key, origin and spread, defaults marked.
     let entries = evidence::entries(&net, &explicit.iter().collect::<Vec<_>>());
-    let text = photoledger::report::evidence::uncertain_values(&entries);
+    let text = photoledger::report::evidence::uncertain_values(&entries, net.energy_unit);
     for want in [
         "thermal.C to D.k",
         "[[uncertain]] entry",

@@ -170,6 +170,7 @@ pub fn run(a: &FitArgs) -> photoledger::Result<Exit> {
         result,
         curves,
         predicted,
+        energy_unit,
     } = fitted;
     let stem = a
         .file
@@ -181,7 +182,7 @@ pub fn run(a: &FitArgs) -> photoledger::Result<Exit> {
     let json = rf::fit_json(&name, &result);
     let rows = rf::rows(&experiments, &predicted);
     let s = &result.solution;
-    let fitted = rf::fitted_toml(&loaded.text, &result.free, &s.values, &s.standard_errors)?;
+    let fitted = rf::fitted_toml(&loaded.text, &result.free, &s.values, &s.standard_errors, energy_unit)?;
     let folder = Folder::begin(&out)?;
     write_atomic(&folder.join("summary.txt"), text.as_bytes())?;
     write_atomic(

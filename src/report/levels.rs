@@ -52,11 +52,11 @@ pub fn si_unit(kind: Kind) -> &'static str {
 }
 
 /// A set value for display (its key's unit through the display rule), or its counts.
-fn set_value_text(unit: &str, v: Option<f64>) -> String {
+fn set_value_text(unit: &str, v: Option<f64>, family: display::EnergyUnit) -> String {
     match v {
         None => "(file)".into(),
         Some(x) => {
-            let (x, u) = display::readable(unit, x);
+            let (x, u) = display::readable_in(unit, x, family);
             if u.is_empty() {
                 sig(x, 4)
             } else {
@@ -199,7 +199,7 @@ pub fn text(name: &str, c: &Comparison) -> String {
         let _ = write!(o, "  {:<keyw$}", v.key);
         if v.counts.is_empty() {
             for x in &v.values {
-                let _ = write!(o, "{:>lw$}", set_value_text(v.unit, *x));
+                let _ = write!(o, "{:>lw$}", set_value_text(v.unit, *x, c.energy_unit));
             }
         } else {
             for x in &v.counts {

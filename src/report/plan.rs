@@ -6,7 +6,7 @@ use crate::light::{LightKind, LightSource};
 use crate::plan::actinometry::{FluxResult, Measured, NetworkFit};
 use crate::plan::target::Basis;
 use crate::plan::{Days, Direction, Flow, Plan, Tube, Unreachable};
-use crate::units::display::{ZeroWithin, format_concentration_within};
+use crate::units::display::{self, ZeroWithin, format_concentration_within};
 use crate::units::{format_concentration, format_time, sig};
 use serde::Serialize;
 use std::fmt::Write;
@@ -274,15 +274,6 @@ fn energy(j: f64) -> String {
     }
 }
 
-fn power_text(w: f64) -> String {
-    if w >= 1.0 {
-        format!("{} W", sig(w, 3))
-    } else if w >= 1e-3 {
-        format!("{} mW", sig(w * 1e3, 3))
-    } else {
-        format!("{} µW", sig(w * 1e6, 3))
-    }
-}
 
 /// The text summary.
 pub fn text(s: &PlanSummary) -> String {
@@ -375,23 +366,23 @@ pub fn text(s: &PlanSummary) -> String {
     );
     let _ = writeln!(
         o,
-        "  incident  {} einstein ({} einstein/L{})",
-        sig(d.incident, 4),
-        sig(d.incident_per_litre, 4),
+        "  incident  {} ({}/L{})",
+        display::format_photons(d.incident),
+        display::format_photons(d.incident_per_litre),
         per(d.incident_per_mol)
     );
     let _ = writeln!(
         o,
-        "  absorbed  {} einstein ({} einstein/L{})",
-        sig(d.absorbed, 4),
-        sig(d.absorbed_per_litre, 4),
+        "  absorbed  {} ({}/L{})",
+        display::format_photons(d.absorbed),
+        display::format_photons(d.absorbed_per_litre),
         per(d.absorbed_per_mol)
     );
     if d.power > 0.0 {
         let _ = writeln!(
             o,
             "radiant energy into the sample: {} for {} lit = {}{}",
-            power_text(d.power),
+            display::format_power(d.power),
             format_time(d.lit_time),
             energy(d.radiant_energy),
             d.radiant_per_mol
@@ -403,7 +394,7 @@ pub fn text(s: &PlanSummary) -> String {
             o,
             "electrical energy at a wall-plug efficiency of {} %: {} drawn, {}{}",
             sig(e.efficiency * 100.0, 3),
-            power_text(e.power),
+            display::format_power(e.power),
             energy(e.energy),
             e.per_mol
                 .map_or(String::new(), |v| format!(" ({} per {what})", energy_per_mol(v)))
@@ -420,7 +411,12 @@ pub fn text(s: &PlanSummary) -> String {
             p.evaluations
         );
         for (name, w, q) in &p.sources {
-            let _ = writeln!(o, "  {name}: {} ({} einstein/s)", power_text(*w), sig(*q, 4));
+            let _ = writeln!(
+                o,
+                "  {name}: {} ({})",
+                display::format_power(*w),
+                display::format_photon_flux(*q)
+            );
         }
     }
     if let Some(f) = &s.flow {
