@@ -1664,7 +1664,7 @@ fn a_window_cuts_a_band_and_check_says_so() {
     assert_contains(
         &r.stdout,
         &[
-            "3000 mW emitted, 1500 mW",
+            "3 W emitted, 1.5 W",
             "in 390–418 nm",
             "from/to cuts the emitted light",
         ],
@@ -1672,7 +1672,7 @@ fn a_window_cuts_a_band_and_check_says_so() {
     // without the window nothing is cut and nothing is said about it
     let (_s, _p, r) = check_text("band-open", &edit(&text, "from = \"390 nm\"\n", ""), &[]);
     r.expect_code(0);
-    assert_contains(&r.stdout, &["3000 mW = "]);
+    assert_contains(&r.stdout, &["3 W = "]);
     assert!(!r.stdout.contains("emitted"), "{}", r.stdout);
 }
 

@@ -265,13 +265,7 @@ fn energy_per_mol(j: f64) -> String {
 }
 
 fn energy(j: f64) -> String {
-    if j.abs() >= 3.6e6 {
-        format!("{} kWh", sig(j / 3.6e6, 3))
-    } else if j.abs() >= 1e3 {
-        format!("{} kJ", sig(j / 1e3, 3))
-    } else {
-        format!("{} J", sig(j, 3))
-    }
+    display::format_energy_amount(j)
 }
 
 
@@ -292,9 +286,10 @@ pub fn text(s: &PlanSummary) -> String {
         (Some(t), _) => {
             let _ = writeln!(
                 o,
-                "reached after {} ({} s; found by the integrator's root finding, rtol {:e})",
+                "reached after {} ({} {}; found by the integrator's root finding, rtol {:e})",
                 format_time(*t),
-                sig(*t, 6),
+                sig(*t / display::time(*t).0, 6),
+                display::time(*t).1,
                 s.rtol
             );
         }

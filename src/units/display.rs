@@ -55,6 +55,15 @@ pub const PHOTON_FLUX: [(f64, &str); 4] = [
 /// Radiant powers (from W).
 pub const POWER: [(f64, &str); 5] = [(1e3, "kW"), (1.0, "W"), (1e-3, "mW"), (1e-6, "µW"), (1e-9, "nW")];
 
+/// Amounts of energy (from J): radiant and electrical energy into a sample. kWh, the unit a
+/// wall socket is billed in, above 3.6 MJ (common practice).
+pub const ENERGY: [(f64, &str); 4] = [(3.6e6, "kWh"), (1e3, "kJ"), (1.0, "J"), (1e-3, "mJ")];
+
+/// An amount of energy in J for reading: "56 mJ", "2.1 kWh" (see [`format`]).
+pub fn format_energy_amount(joule: f64) -> String {
+    format(joule, &ENERGY)
+}
+
 /// The family of molar energies a network file was written in: its barriers, activation
 /// energies and E₀ are shown in it everywhere (text, tables, the fitted network written back),
 /// with the other family beside it in tables. JSON and CSV keep J/mol. Set once by the network
