@@ -252,3 +252,29 @@ fn the_scan_catches_what_the_rule_forbids() {
         assert!(violations(line, true).is_empty(), "caught wrongly: {line}: {:?}", violations(line, true));
     }
 }
+
+#[test]
+fn the_network_remembers_the_energy_family_its_file_used() {
+    use photoledger::units::display::EnergyUnit;
+    let family = |text: &str, set: &[&str]| {
+        let l = photoledger::file::parse_text(Path::new("n.toml"), text.to_string()).unwrap();
+        let o = photoledger::network::Overrides::parse(set).unwrap();
+        photoledger::network::build(&l, &o).unwrap().energy_unit
+    };
+    assert_eq!(family(TINY, &[]), EnergyUnit::KcalPerMol);
+    let kj = TINY.replace("3 kcal/mol", "12.5 kJ/mol").replace("22 kcal/mol", "92 kJ/mol");
+    assert_eq!(family(&kj, &[]), EnergyUnit::KjPerMol);
+    // A value given on the command line chooses nothing: the file's family stays.
+    assert_eq!(family(TINY, &["thermal.back.barrier=90 kJ/mol"]), EnergyUnit::KcalPerMol);
+    // Most of the file's energies decide (the text is read once, by the builder); on a tie the
+    // one written first (here the transient's 12.5 kJ/mol, above the thermal step's kcal/mol).
+    let mixed = TINY.replace("3 kcal/mol", "12.5 kJ/mol");
+    assert_eq!(family(&mixed, &[]), EnergyUnit::KjPerMol);
+    // The kJ/mol file's check output carries no kcal/mol as its main unit.
+    let dir = scratch("kj");
+    std::fs::write(dir.join("kj.toml"), &kj).unwrap();
+    let text = run(&dir, &["barrier", "kj.toml", "--window", "1 h", "--out", "b"]);
+    assert!(text.contains("ΔG‡ kJ/mol"), "{text}");
+    assert!(text.contains("(kcal/mol)"), "{text}");
+    let _ = std::fs::remove_dir_all(&dir);
+}

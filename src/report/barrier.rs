@@ -297,10 +297,18 @@ mod tests {
 
     #[test]
     fn durations_read_well() {
-        assert_eq!(duration(150e-15), "150.000 fs");
-        assert_eq!(duration(3600.0), "1.000 h");
+        assert_eq!(duration(150e-15), "150 fs");
+        assert_eq!(duration(3600.0), "1 h");
         assert_eq!(duration(f64::INFINITY), "never");
-        assert_eq!(duration(5400.0), "1.500 h");
-        assert_eq!(duration(0.0), "0.000 s");
+        assert_eq!(duration(5400.0), "1.5 h");
+        assert_eq!(duration(0.0), "0 s");
+        // A ps event's half-life in ps, never "3.50e-15 h" (issue 18).
+        assert_eq!(duration(6.409e-12), "6.41 ps");
+    }
+
+    #[test]
+    fn a_kcal_network_shows_its_barriers_in_kcal_with_kj_beside() {
+        // 23.5 kcal/mol = 98.324 kJ/mol (thermochemical calorie; common practice).
+        assert_eq!(energy(23.5 * 4184.0, EnergyUnit::KcalPerMol), "23.5 kcal/mol (98.32 kJ/mol)");
     }
 }

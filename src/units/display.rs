@@ -205,9 +205,20 @@ pub fn power(watt: f64) -> (f64, &'static str) {
 
 /// `value` (internal unit of `ladder`) in its display unit with 3 significant figures,
 /// trailing zeros dropped: "1.5 h", "10 mM", "0 s", "NaN s".
+/// The unit is picked on the value rounded to the 3 figures shown, so 3599.99 s reads "1 h",
+/// never "60 min".
 pub fn format(value: f64, ladder: &Ladder) -> String {
-    let (f, u) = pick(value, ladder);
+    let (f, u) = pick(round_sig(value, 3), ladder);
     format!("{} {u}", sig(value / f, 3))
+}
+
+/// `v` rounded to `n` significant figures (unchanged when zero or not finite).
+fn round_sig(v: f64, n: i32) -> f64 {
+    if v == 0.0 || !v.is_finite() {
+        return v;
+    }
+    let scale = 10f64.powi(v.abs().log10().floor() as i32 - (n - 1));
+    (v / scale).round() * scale
 }
 
 /// A duration in s for reading: "1.5 h", "45 ms" (see [`format`]).
@@ -401,7 +412,9 @@ mod tests {
         assert_eq!(concentration(55.3), (1.0, "M"));
         assert_eq!(concentration(1e-20), (1e-12, "pM"));
         assert_eq!(photons(2.5e-4), (1e-6, "µeinstein"));
-        assert_eq!(photons(2.5e-2), (1.0, "einstein"));
+        assert_eq!(photons(2.5), (1.0, "einstein"));
+        // No "meinstein": 25 meinstein reads 25000 µeinstein.
+        assert_eq!(photons(2.5e-2), (1e-6, "µeinstein"));
         assert_eq!(format_photons(6.259e-4), "626 µeinstein");
         assert_eq!(format_photon_flux(2.591e-8), "25.9 neinstein/s");
         assert_eq!(power(0.05), (1e-3, "mW"));
@@ -412,6 +425,8 @@ mod tests {
         assert_eq!(format_time(5400.0), "1.5 h");
         assert_eq!(format_time(7200.0), "2 h");
         assert_eq!(format_time(0.045), "45 ms");
+        assert_eq!(format_time(3599.999), "1 h");
+        assert_eq!(format_time(59.9996), "1 min");
         assert_eq!(format_concentration(0.01), "10 mM");
         assert_eq!(format_concentration(2.5e-6), "2.5 µM");
     }
