@@ -202,6 +202,17 @@ fn no_text_output_prints_a_unit_outside_the_display_rule() {
             ],
             vec!["plan".into(), f.into(), "--target".into(), target.into(), "--out".into(), out("plan")],
             vec!["levels".into(), f.into(), "--out".into(), out("levels")],
+            vec![
+                "uncertainty".into(),
+                f.into(),
+                "--samples".into(),
+                "8".into(),
+                "--until".into(),
+                "10 min".into(),
+                "--out".into(),
+                out("uncertainty"),
+            ],
+            vec!["diagram".into(), f.into(), "-o".into(), out("diagram.svg")],
         ];
         for args in runs {
             let args: Vec<&str> = args.iter().map(String::as_str).collect();
@@ -218,7 +229,7 @@ fn no_text_output_prints_a_unit_outside_the_display_rule() {
     for v in violations(&text, false) {
         found.push(format!("photoledger barrier --window 10 ps: {v}"));
     }
-    assert!(outputs >= 36, "{outputs}");
+    assert!(outputs >= 48, "{outputs}");
     assert!(found.is_empty(), "{} unit(s) outside the display rule:\n{}", found.len(), found.join("\n"));
     let _ = std::fs::remove_dir_all(&dir);
 }

@@ -6,6 +6,7 @@
 //! The plausibility limits are common practice, stated where they are used: a warning, never a
 //! refusal, so an unusual but real experiment (a glass at 77 K, a neat liquid) still runs.
 
+use crate::units::display;
 use super::diagnostics::{Places, Sink};
 use super::*;
 use crate::error::Origin;
@@ -232,8 +233,8 @@ fn rates(sink: &mut Sink, at: &Places, net: &Network) {
             continue;
         }
         let (limit, unit) = match s.order {
-            1 => (FASTEST_FIRST_ORDER, "/s"),
-            2 => (FASTEST_SECOND_ORDER, "L/(mol s)"),
+            1 => (FASTEST_FIRST_ORDER, display::rate_constant(1)),
+            2 => (FASTEST_SECOND_ORDER, display::rate_constant(2)),
             _ => continue,
         };
         if s.k > limit {
@@ -277,12 +278,7 @@ fn rates(sink: &mut Sink, at: &Places, net: &Network) {
     }
 }
 
-/// The unit of a rate constant of this order, as messages write it.
+/// The unit of a rate constant of this order, as messages write it (the display rule).
 fn order_unit(order: u32) -> String {
-    match order {
-        0 => "mol/(L s)".into(),
-        1 => "/s".into(),
-        2 => "L/(mol s)".into(),
-        n => format!("(L/mol)^{} /s", n - 1),
-    }
+    display::rate_constant(order).to_string()
 }
