@@ -93,7 +93,9 @@ fn step_up(ladder: usize, i: usize) -> f64 {
 }
 
 fn number(word: &str) -> Option<f64> {
-    let w = word.trim_start_matches(['(', '[', '=', '~']).trim_end_matches([',', ';', ':']);
+    let w = word
+        .trim_start_matches(['(', '[', '=', '~'])
+        .trim_end_matches([',', ';', ':']);
     if w.is_empty() || !w.chars().next().is_some_and(|c| c.is_ascii_digit() || c == '-') {
         return None;
     }
@@ -128,7 +130,9 @@ fn violations(text: &str, kcal_file: bool) -> Vec<String> {
                 }
             }
             for (l, ladder) in LADDERS.iter().enumerate() {
-                let Some(i) = ladder.iter().position(|x| *x == u) else { continue };
+                let Some(i) = ladder.iter().position(|x| *x == u) else {
+                    continue;
+                };
                 let a = v.abs();
                 if a == 0.0 || !a.is_finite() {
                     continue;
@@ -146,8 +150,16 @@ fn violations(text: &str, kcal_file: bool) -> Vec<String> {
 }
 
 fn run(dir: &Path, args: &[&str]) -> String {
-    let o = Command::new(BIN).args(args).current_dir(dir).output().expect("run photoledger");
-    let text = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
+    let o = Command::new(BIN)
+        .args(args)
+        .current_dir(dir)
+        .output()
+        .expect("run photoledger");
+    let text = format!(
+        "{}{}",
+        String::from_utf8_lossy(&o.stdout),
+        String::from_utf8_lossy(&o.stderr)
+    );
     assert!(
         o.status.code().is_some_and(|c| c != 101),
         "photoledger {args:?} panicked:\n{text}"
@@ -188,8 +200,22 @@ fn no_text_output_prints_a_unit_outside_the_display_rule() {
         let out = |c: &str| dir.join(format!("{stem}-{c}")).to_string_lossy().to_string();
         let runs: Vec<Vec<String>> = vec![
             vec!["check".into(), f.into()],
-            vec!["ledger".into(), f.into(), "--out".into(), out("ledger"), "--window".into(), "1 h".into()],
-            vec!["barrier".into(), f.into(), "--window".into(), "1 h".into(), "--out".into(), out("barrier")],
+            vec![
+                "ledger".into(),
+                f.into(),
+                "--out".into(),
+                out("ledger"),
+                "--window".into(),
+                "1 h".into(),
+            ],
+            vec![
+                "barrier".into(),
+                f.into(),
+                "--window".into(),
+                "1 h".into(),
+                "--out".into(),
+                out("barrier"),
+            ],
             vec![
                 "simulate".into(),
                 f.into(),
@@ -200,7 +226,14 @@ fn no_text_output_prints_a_unit_outside_the_display_rule() {
                 "--out".into(),
                 out("simulate"),
             ],
-            vec!["plan".into(), f.into(), "--target".into(), target.into(), "--out".into(), out("plan")],
+            vec![
+                "plan".into(),
+                f.into(),
+                "--target".into(),
+                target.into(),
+                "--out".into(),
+                out("plan"),
+            ],
             vec!["levels".into(), f.into(), "--out".into(), out("levels")],
             vec![
                 "uncertainty".into(),
@@ -230,7 +263,12 @@ fn no_text_output_prints_a_unit_outside_the_display_rule() {
         found.push(format!("photoledger barrier --window 10 ps: {v}"));
     }
     assert!(outputs >= 48, "{outputs}");
-    assert!(found.is_empty(), "{} unit(s) outside the display rule:\n{}", found.len(), found.join("\n"));
+    assert!(
+        found.is_empty(),
+        "{} unit(s) outside the display rule:\n{}",
+        found.len(),
+        found.join("\n")
+    );
     let _ = std::fs::remove_dir_all(&dir);
 }
 
@@ -260,7 +298,11 @@ fn the_scan_catches_what_the_rule_forbids() {
         "  incident  626 µeinstein (0 s)",
         "  photons absorbed per molecule: 0.3259 per s",
     ] {
-        assert!(violations(line, true).is_empty(), "caught wrongly: {line}: {:?}", violations(line, true));
+        assert!(
+            violations(line, true).is_empty(),
+            "caught wrongly: {line}: {:?}",
+            violations(line, true)
+        );
     }
 }
 
@@ -273,10 +315,15 @@ fn the_network_remembers_the_energy_family_its_file_used() {
         photoledger::network::build(&l, &o).unwrap().energy_unit
     };
     assert_eq!(family(TINY, &[]), EnergyUnit::KcalPerMol);
-    let kj = TINY.replace("3 kcal/mol", "12.5 kJ/mol").replace("22 kcal/mol", "92 kJ/mol");
+    let kj = TINY
+        .replace("3 kcal/mol", "12.5 kJ/mol")
+        .replace("22 kcal/mol", "92 kJ/mol");
     assert_eq!(family(&kj, &[]), EnergyUnit::KjPerMol);
     // A value given on the command line chooses nothing: the file's family stays.
-    assert_eq!(family(TINY, &["thermal.back.barrier=90 kJ/mol"]), EnergyUnit::KcalPerMol);
+    assert_eq!(
+        family(TINY, &["thermal.back.barrier=90 kJ/mol"]),
+        EnergyUnit::KcalPerMol
+    );
     // Most of the file's energies decide (the text is read once, by the builder); on a tie the
     // one written first (here the transient's 12.5 kJ/mol, above the thermal step's kcal/mol).
     let mixed = TINY.replace("3 kcal/mol", "12.5 kJ/mol");

@@ -201,7 +201,10 @@ fn hot(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
     )?;
     match w.barrier {
         Some(b) => {
-            outln!("  largest zero-point-corrected barrier E0 = {}", report::energy(b, family))?;
+            outln!(
+                "  largest zero-point-corrected barrier E0 = {}",
+                report::energy(b, family)
+            )?;
             if let Some(k) = w.rate_at_barrier {
                 outln!("  k(E) at that barrier {}", display::format_rate_constant(k, 1))?;
             }
@@ -282,7 +285,10 @@ fn hot_channels(a: &BarrierArgs) -> photoledger::Result<()> {
         })
         .collect();
     let family = a.energy.as_deref().and_then(EnergyUnit::of_text).unwrap_or_default();
-    out!("{}", report::hot_yields_text(&rows, y.cooled, e, cooling, &a.grain, family))?;
+    out!(
+        "{}",
+        report::hot_yields_text(&rows, y.cooled, e, cooling, &a.grain, family)
+    )?;
     Ok(())
 }
 
@@ -373,6 +379,9 @@ fn network(a: &BarrierArgs, file: &std::path::Path, p: f64) -> photoledger::Resu
         "{}",
         report::verdicts_text(&rows, window, p, net.conditions.temperature, net.energy_unit)
     )?;
-    out!("{}", report::hot_verdicts_text(&barrier::hot_verdicts(&net), net.energy_unit))?;
+    out!(
+        "{}",
+        report::hot_verdicts_text(&barrier::hot_verdicts(&net), net.energy_unit)
+    )?;
     Ok(())
 }

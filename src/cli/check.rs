@@ -12,7 +12,10 @@ pub fn run(args: &NetworkArgs, quiet: bool) -> photoledger::Result<()> {
     if !quiet {
         out!("{}", photoledger::report::summary::network_summary(&net))?;
         let entries = evidence::entries(&net, &explicit.iter().collect::<Vec<_>>());
-        out!("{}", photoledger::report::evidence::uncertain_values(&entries, net.energy_unit))?;
+        out!(
+            "{}",
+            photoledger::report::evidence::uncertain_values(&entries, net.energy_unit)
+        )?;
         out!("{}", photoledger::report::levels::check_text(&net))?;
         outln!()?;
     }

@@ -6,12 +6,12 @@
 //! The plausibility limits are common practice, stated where they are used: a warning, never a
 //! refusal, so an unusual but real experiment (a glass at 77 K, a neat liquid) still runs.
 
-use crate::units::display;
 use super::diagnostics::{Places, Sink};
 use super::*;
 use crate::error::Origin;
 use crate::model::floor;
 use crate::units::constants::{BOLTZMANN, PLANCK};
+use crate::units::display;
 use crate::units::sig;
 
 /// Above this temperature, K, no solution or matrix photochemistry is done (solvents boil or

@@ -30,13 +30,7 @@ pub fn duration(t: f64) -> String {
 }
 
 /// The verdict table of a network; barriers in `family` (the network's) with the other beside.
-pub fn verdicts_text(
-    rows: &[Verdict],
-    window: f64,
-    probability: f64,
-    temperature: f64,
-    family: EnergyUnit,
-) -> String {
+pub fn verdicts_text(rows: &[Verdict], window: f64, probability: f64, temperature: f64, family: EnergyUnit) -> String {
     let mut s = String::new();
     let _ = writeln!(
         s,
@@ -309,6 +303,9 @@ mod tests {
     #[test]
     fn a_kcal_network_shows_its_barriers_in_kcal_with_kj_beside() {
         // 23.5 kcal/mol = 98.324 kJ/mol (thermochemical calorie; common practice).
-        assert_eq!(energy(23.5 * 4184.0, EnergyUnit::KcalPerMol), "23.5 kcal/mol (98.32 kJ/mol)");
+        assert_eq!(
+            energy(23.5 * 4184.0, EnergyUnit::KcalPerMol),
+            "23.5 kcal/mol (98.32 kJ/mol)"
+        );
     }
 }

@@ -101,7 +101,13 @@ pub fn uncertain_values(entries: &[Entry], family: EnergyUnit) -> String {
             Basis::Origin(o) => o.word(),
             Basis::Counts { .. } => "trajectory counts",
         };
-        let _ = writeln!(s, "  {:kw$}  {:>vw$}  {origin:22}  {}", e.key, value(e, family), spread(e, family));
+        let _ = writeln!(
+            s,
+            "  {:kw$}  {:>vw$}  {origin:22}  {}",
+            e.key,
+            value(e, family),
+            spread(e, family)
+        );
     }
     // The defaults of the origins used, so a reader sees what "default" stands for.
     let mut used: Vec<Source> = entries

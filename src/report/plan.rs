@@ -268,7 +268,6 @@ fn energy(j: f64) -> String {
     display::format_energy_amount(j)
 }
 
-
 /// The text summary.
 pub fn text(s: &PlanSummary) -> String {
     let mut o = String::new();

@@ -130,7 +130,11 @@ pub fn format_energy(j_per_mol: f64, family: EnergyUnit) -> String {
 /// A molar energy in J/mol in `family` with the other family beside it, for tables and
 /// verdicts: "23.5 kcal/mol (98.32 kJ/mol)".
 pub fn format_energy_beside(j_per_mol: f64, family: EnergyUnit) -> String {
-    format!("{} ({})", format_energy(j_per_mol, family), format_energy(j_per_mol, family.other()))
+    format!(
+        "{} ({})",
+        format_energy(j_per_mol, family),
+        format_energy(j_per_mol, family.other())
+    )
 }
 
 /// A rate constant of reaction order `order` (internal unit, (L/mol)^(order−1) s⁻¹), 4
@@ -535,7 +539,10 @@ mod tests {
         // 23.5 kcal/mol = 98.324 kJ/mol (thermochemical calorie, 4.184 J exactly; common practice).
         let e = 23.5 * 4184.0;
         assert_eq!(format_energy(e, EnergyUnit::KcalPerMol), "23.5 kcal/mol");
-        assert_eq!(format_energy_beside(e, EnergyUnit::KcalPerMol), "23.5 kcal/mol (98.32 kJ/mol)");
+        assert_eq!(
+            format_energy_beside(e, EnergyUnit::KcalPerMol),
+            "23.5 kcal/mol (98.32 kJ/mol)"
+        );
         assert_eq!(format_energy(e, EnergyUnit::KjPerMol), "98.32 kJ/mol");
         assert_eq!(EnergyUnit::of_text("23.5 kcal/mol"), Some(EnergyUnit::KcalPerMol));
         assert_eq!(EnergyUnit::of_text(" 96 kJ / mol"), Some(EnergyUnit::KjPerMol));

@@ -106,7 +106,10 @@ fn hot_table(b: &BarrierStudy, family: EnergyUnit) -> String {
             )
         })
         .collect();
-    let (e0, e) = (format!("E₀ ({})", family.spelling()), format!("E ({})", family.spelling()));
+    let (e0, e) = (
+        format!("E₀ ({})", family.spelling()),
+        format!("E ({})", family.spelling()),
+    );
     let k = format!("k(E) ({})", display::rate_constant(1));
     let mut s = page::table(
         "Hot ground-state channels: yield before cooling",

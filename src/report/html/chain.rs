@@ -191,9 +191,8 @@ pub fn section(chain: &Result<ChainStudy, String>) -> String {
                     .and_then(|b| b.get(main).copied().flatten())
                     .map(|b| if el == Some(0.0) { 0.0 } else { b });
                 let (v, u) = crate::units::display::readable_in(&x.unit, x.value, sm.energy_unit);
-                let per_barrier = per_barrier.map(|b| {
-                    b * sm.energy_unit.factor() / crate::units::display::EnergyUnit::KcalPerMol.factor()
-                });
+                let per_barrier = per_barrier
+                    .map(|b| b * sm.energy_unit.factor() / crate::units::display::EnergyUnit::KcalPerMol.factor());
                 format!(
                     "{}{}{}{}{}{}",
                     text_cell(&x.parameter),

@@ -1,12 +1,12 @@
 //! Safety and conditions: the cautions (with what this network's light makes of them), the
 //! reactor, and each light source as the engines see it.
 
-use crate::units::display;
 use super::escape::esc;
 use super::page::{self, num_cell, text_cell};
 use crate::model::Model;
 use crate::network::Network;
 use crate::units::constants::{AVOGADRO, PLANCK, SPEED_OF_LIGHT};
+use crate::units::display;
 use crate::units::sig;
 
 /// Wavelength range, photon-weighted mean wavelength (m), photon flux (einstein/s) and
