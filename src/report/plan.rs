@@ -496,15 +496,22 @@ pub use super::sweep::{SweepAxis, selectivity_svg, sweep_csv, sweep_svg, sweep_t
 
 /// Format a measured value with its uncertainty and unit.
 pub fn measured(m: &Measured, unit: &str) -> String {
+    // A photon flux or a power in its display unit (the display rule); others as given.
+    let ladder: Option<&display::Ladder> = match unit {
+        "einstein/s" => Some(&display::PHOTON_FLUX),
+        "W" => Some(&display::POWER),
+        _ => None,
+    };
+    let (f, unit) = ladder.map_or((1.0, unit), |l| display::pick(m.value, l));
     if m.sigma > 0.0 {
         format!(
             "{} ± {} {unit} ({} %)",
-            sig(m.value, 5),
-            sig(m.sigma, 2),
+            sig(m.value / f, 5),
+            sig(m.sigma / f, 2),
             sig(m.relative() * 100.0, 2)
         )
     } else {
-        format!("{} {unit}", sig(m.value, 6))
+        format!("{} {unit}", sig(m.value / f, 6))
     }
 }
 
