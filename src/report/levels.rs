@@ -56,6 +56,10 @@ fn set_value_text(unit: &str, v: Option<f64>, family: display::EnergyUnit) -> St
     match v {
         None => "(file)".into(),
         Some(x) => {
+            // An energy in the file's family, with the other beside it (the display rule).
+            if display::quantity_of_spelling(unit) == Some(crate::units::Quantity::MolarEnergy) {
+                return display::format_energy_beside(x, family);
+            }
             let (x, u) = display::readable_in(unit, x, family);
             if u.is_empty() {
                 sig(x, 4)
@@ -170,6 +174,12 @@ pub fn text(name: &str, c: &Comparison) -> String {
         };
         let _ = writeln!(o, "  \"{}\"{note}", s.label);
     }
+    let widest_value = c
+        .values
+        .iter()
+        .flat_map(|v| v.values.iter().map(|x| set_value_text(v.unit, *x, c.energy_unit).chars().count()))
+        .max()
+        .unwrap_or(0);
     let lw = c
         .sets
         .iter()
@@ -177,6 +187,7 @@ pub fn text(name: &str, c: &Comparison) -> String {
         .max()
         .unwrap_or(8)
         .max(12)
+        .max(widest_value)
         + 2;
     let keyw = c
         .values
