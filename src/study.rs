@@ -309,6 +309,7 @@ fn chain_study(model: &Model, net: &Network) -> Result<ChainStudy> {
         &model.products,
         run.sensitivities.clone(),
     )
+    .in_energy_unit(net.energy_unit)
     .with_check(chain::agreement::check(model, net, &run, None)?);
     Ok(ChainStudy {
         analysis: run.analysis,

@@ -373,13 +373,14 @@ fn origins_give_their_spreads_and_an_entry_wins() {
     }
     // check lists every uncertain value with key, origin and spread, defaults marked.
     let entries = evidence::entries(&net, &explicit.iter().collect::<Vec<_>>());
-    let text = photoledger::report::evidence::uncertain_values(&entries);
+    let text = photoledger::report::evidence::uncertain_values(&entries, net.energy_unit);
     for want in [
         "thermal.C to D.k",
         "[[uncertain]] entry",
         "transient.A*.channels[0].barrier",
-        "computed-excited-state  sd 20.92 kJ/mol (5 kcal/mol)\n",
-        "computed-ground-state   sd 6.276 kJ/mol (1.5 kcal/mol), default; replaced by its [[uncertain]] entry",
+        // The fixture writes its barriers in kcal/mol: spreads in kcal/mol, kJ/mol beside.
+        "3 kcal/mol  computed-excited-state  sd 5 kcal/mol (20.92 kJ/mol)\n",
+        "computed-ground-state   sd 1.5 kcal/mol (6.276 kJ/mol), default; replaced by its [[uncertain]] entry",
         "transient.CI.channels[2].fraction",
         "3 of 56 runs (4 more ended nowhere: left out); Dirichlet over the channels, Jeffreys prior ½ per channel (default)",
         "default spreads",

@@ -270,8 +270,14 @@ fn the_fitted_network_reads_back_with_the_fitted_values() {
     let d = synthetic(7);
     let r = fit_on(NET, &d);
     let text = std::fs::read_to_string(NET).unwrap();
-    let out =
-        photoledger::report::fit::fitted_toml(&text, &r.free, &r.solution.values, &r.solution.standard_errors).unwrap();
+    let out = photoledger::report::fit::fitted_toml(
+        &text,
+        &r.free,
+        &r.solution.values,
+        &r.solution.standard_errors,
+        photoledger::units::display::EnergyUnit::KjPerMol,
+    )
+    .unwrap();
     assert!(out.contains("# An invented scenario"), "comments are kept");
     let l = photoledger::file::parse_text(Path::new(NET), out).unwrap();
     let net = photoledger::network::build(&l, &photoledger::Overrides::none()).unwrap();

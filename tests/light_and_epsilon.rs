@@ -726,7 +726,7 @@ fn a_photon_energy_transient_runs_in_the_dark() {
             .collect()
     };
     assert!(
-        hot(&lit).iter().any(|l| l.contains("from 308.8 kJ/mol")),
+        hot(&lit).iter().any(|l| l.contains("from 73.8 kcal/mol")),
         "{}",
         lit.stdout
     );

@@ -61,11 +61,12 @@ pub fn thermal_window(window: f64, temperature: f64, probability: f64, kappa: f6
     if k_needed >= fastest {
         // Even a step with no barrier (ΔG‡ = 0) runs at κkT/h and is too slow for this window.
         return Err(Error::Usage(format!(
-            "window: no thermal step crosses within {} s with {:.0} % probability at {} K: even with no barrier it needs {:.3e} s (Eyring's limit κkT/h = {fastest:.3e} /s)",
-            crate::units::sig(window, 4),
+            "window: no thermal step crosses within {} with {:.0} % probability at {} K: even with no barrier it needs {} (Eyring's limit κkT/h = {})",
+            crate::units::format_time(window),
             probability * 100.0,
             crate::units::sig(temperature, 5),
-            -(-probability).ln_1p() / fastest
+            crate::units::format_time(-(-probability).ln_1p() / fastest),
+            crate::units::display::format_rate_constant(fastest, 1)
         )));
     }
     let g = eyring_barrier(k_needed, temperature, 1, kappa);

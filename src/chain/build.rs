@@ -26,6 +26,7 @@ use crate::network::params::{Key, RateAt, RateField};
 use crate::network::{Branching, Network, PhotoOutcome, Target};
 use crate::rates::RateLaw;
 use crate::units::constants::{AVOGADRO, cross_section_m2};
+use crate::units::{Quantity, internal_spelling};
 
 /// How the per-molecule photon absorption rate is found.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -202,7 +203,7 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
                 slot: Slot::YieldFactor(p),
                 value: 1.0,
                 shown_per_unit: if mean > 0.0 { mean } else { 1.0 },
-                unit: "1",
+                unit: "",
                 barrier: false,
                 upper,
             });
@@ -213,13 +214,13 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
             let to = target_name(net, &ch.target);
             let (unit, barrier) = match &ch.branching {
                 Branching::Rest => continue,
-                Branching::Fraction(_) | Branching::Hot { .. } => ("1", false),
-                Branching::Rate { law, .. } => ("1/s", is_barrier(law)),
-                Branching::Quenching { law, .. } => ("L/(mol s)", is_barrier(law)),
+                Branching::Fraction(_) | Branching::Hot { .. } => ("", false),
+                Branching::Rate { law, .. } => (internal_spelling(Quantity::RateConstant(1)), is_barrier(law)),
+                Branching::Quenching { law, .. } => (internal_spelling(Quantity::RateConstant(2)), is_barrier(law)),
             };
-            let what = match unit {
-                "1" => "fraction",
-                "1/s" => "rate",
+            let what = match &ch.branching {
+                Branching::Fraction(_) | Branching::Hot { .. } => "fraction",
+                Branching::Rate { .. } => "rate",
                 _ => "quenching rate constant",
             };
             let at = RateAt::Channel {
@@ -243,7 +244,7 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
                 value: vals.channel[t][c],
                 unit,
                 barrier,
-                upper: if unit == "1" { 1.0 } else { f64::INFINITY },
+                upper: if unit.is_empty() { 1.0 } else { f64::INFINITY },
                 shown_per_unit: 1.0,
             });
         }
@@ -255,7 +256,7 @@ pub fn parameters(model: &Model, net: &Network) -> Vec<Parameter> {
             key: net.thermal.get(r).map(|t| rate_key(RateAt::Thermal(r), &t.rate)),
             slot: Slot::Reaction(r),
             value: re.k,
-            unit: if order == 1 { "1/s" } else { "L/(mol s)" },
+            unit: internal_spelling(Quantity::RateConstant(order)),
             barrier: net.thermal.get(r).is_some_and(|t| is_barrier(&t.rate)),
             upper: f64::INFINITY,
             shown_per_unit: 1.0,
@@ -483,11 +484,11 @@ pub(super) fn build_parts(
             if !partners.is_empty() {
                 if rate > 0.0 {
                     chain.notes.push(format!(
-                        "\"{}\" is not first order: for {} it is linearised at {} (pseudo-first-order {:.4e} 1/s)",
+                        "\"{}\" is not first order: for {} it is linearised at {} (pseudo-first-order {})",
                         re.name,
                         model.species[s],
                         partners.join(", "),
-                        rate
+                        crate::units::display::format_rate_constant(rate, 1)
                     ));
                 } else {
                     chain.notes.push(format!(

@@ -9,6 +9,7 @@ use photoledger::kinetics;
 use photoledger::rates::hot::{HotReaction, rrkm_yields};
 use photoledger::rates::{rrkm::Rrkm, wigner::wigner};
 use photoledger::report::{barrier as report, write_atomic};
+use photoledger::units::display::{self, EnergyUnit};
 use photoledger::units::{self, Quantity};
 use std::path::PathBuf;
 
@@ -137,10 +138,11 @@ fn thermal(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
     )?;
     outln!(
         "  ΔG‡ = {} (Eyring, unimolecular, κ = {kappa:.4}{note})",
-        report::energy(g)
+        report::energy(g, EnergyUnit::default())
     )?;
     outln!(
-        "  rate at that barrier {k:.4e} /s, half-life {}",
+        "  rate at that barrier {}, half-life {}",
+        display::format_rate_constant(k, 1),
         report::duration(std::f64::consts::LN_2 / k)
     )?;
     Ok(())
@@ -187,6 +189,8 @@ fn hot(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
         }
     };
     let f = read_pair(path)?;
+    // Energies are shown in the family the command line wrote --energy in.
+    let family = a.energy.as_deref().and_then(EnergyUnit::of_text).unwrap_or_default();
     let ts = f.ts.clone().unwrap_or_default();
     let w = barrier::hot_window(&f.reactant, &ts, f.degeneracy, e, limit, p, grain)?;
     if a.output.json {
@@ -202,14 +206,17 @@ fn hot(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
     };
     outln!(
         "hot molecule with {} above its zero-point level, crossing with {:.0} % probability {how}",
-        report::energy(e),
+        report::energy(e, family),
         p * 100.0
     )?;
     match w.barrier {
         Some(b) => {
-            outln!("  largest zero-point-corrected barrier E0 = {}", report::energy(b))?;
+            outln!(
+                "  largest zero-point-corrected barrier E0 = {}",
+                report::energy(b, family)
+            )?;
             if let Some(k) = w.rate_at_barrier {
-                outln!("  k(E) at that barrier {k:.4e} /s")?;
+                outln!("  k(E) at that barrier {}", display::format_rate_constant(k, 1))?;
             }
         }
         None => outln!(
@@ -292,7 +299,11 @@ fn hot_channels(a: &BarrierArgs) -> photoledger::Result<()> {
             &rows, y.cooled, e, cooling,
         ));
     }
-    out!("{}", report::hot_yields_text(&rows, y.cooled, e, cooling, &a.grain))?;
+    let family = a.energy.as_deref().and_then(EnergyUnit::of_text).unwrap_or_default();
+    out!(
+        "{}",
+        report::hot_yields_text(&rows, y.cooled, e, cooling, &a.grain, family)
+    )?;
     Ok(())
 }
 
@@ -326,6 +337,7 @@ fn k_of_e(a: &BarrierArgs) -> photoledger::Result<()> {
     let rrkm = Rrkm::new(&f.reactant, &ts, e0, f.degeneracy, grain, hi + step + grain)
         .map_err(|m| Error::Usage(format!("--grain/--energy-range: {m}")))?;
     let rows = barrier::k_table(&rrkm, lo, hi, a.points)?;
+    let family = a.barrier.as_deref().and_then(EnergyUnit::of_text).unwrap_or_default();
     let dir = a.output.dir(path, "barrier");
     let csv = dir.join("k_of_e.csv");
     let svg = dir.join("k_of_e.svg");
@@ -341,10 +353,10 @@ fn k_of_e(a: &BarrierArgs) -> photoledger::Result<()> {
     }
     outln!(
         "k(E) for E0 = {} at {} energies from {} to {} (grain {}, σ = {}); largest frequency rounding {:.3} cm-1",
-        report::energy(e0),
+        report::energy(e0, family),
         rows.len(),
-        report::energy(lo),
-        report::energy(hi),
+        report::energy(lo, family),
+        report::energy(hi, family),
         a.grain,
         f.degeneracy,
         rrkm.reactant.rounding.max(rrkm.ts.rounding) / units::parse("1 cm-1", Quantity::MolarEnergy).unwrap_or(1.0)
@@ -390,8 +402,8 @@ fn network(a: &BarrierArgs, file: &std::path::Path, p: f64) -> photoledger::Resu
     }
     out!(
         "{}",
-        report::verdicts_text(&rows, window, p, net.conditions.temperature)
+        report::verdicts_text(&rows, window, p, net.conditions.temperature, net.energy_unit)
     )?;
-    out!("{}", report::hot_verdicts_text(&hot))?;
+    out!("{}", report::hot_verdicts_text(&hot, net.energy_unit))?;
     Ok(())
 }

@@ -32,7 +32,10 @@ pub fn run(args: &CheckArgs) -> photoledger::Result<()> {
         out!("{}", photoledger::report::summary::network_summary(&net))?;
         out!("{}", photoledger::report::check::settable_text(&net))?;
         let entries = evidence::entries(&net, &explicit.iter().collect::<Vec<_>>());
-        out!("{}", photoledger::report::evidence::uncertain_values(&entries))?;
+        out!(
+            "{}",
+            photoledger::report::evidence::uncertain_values(&entries, net.energy_unit)
+        )?;
         out!("{}", photoledger::report::levels::check_text(&net))?;
         outln!()?;
     }

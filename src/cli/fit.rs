@@ -161,6 +161,7 @@ pub fn run(a: &FitArgs) -> photoledger::Result<Exit> {
         result,
         curves,
         predicted,
+        energy_unit,
     } = fitted;
     let stem = super::stem(&a.net.file);
     let out = a.output.dir(&a.net.file, "fit");
@@ -169,7 +170,7 @@ pub fn run(a: &FitArgs) -> photoledger::Result<Exit> {
     let json = rf::fit_json(&name, &result);
     let rows = rf::rows(&experiments, &predicted);
     let s = &result.solution;
-    let fitted = rf::fitted_toml(&loaded.text, &result.free, &s.values, &s.standard_errors)?;
+    let fitted = rf::fitted_toml(&loaded.text, &result.free, &s.values, &s.standard_errors, energy_unit)?;
     let folder = Folder::begin(&out)?;
     write_atomic(&folder.join("summary.txt"), text.as_bytes())?;
     write_atomic(

@@ -91,6 +91,7 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
         &model.products,
         run.sensitivities.clone(),
     )
+    .in_energy_unit(net.energy_unit)
     .with_check(chain::agreement::check(&model, &net, &run, a.from.as_deref())?);
     let mut summary = summary;
     summary.count_intervals = photoledger::uncertainty::counts::intervals(&net, &opts)?;

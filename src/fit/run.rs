@@ -17,6 +17,8 @@ pub struct Fitted {
     pub curves: Vec<Curve>,
     /// Predictions at every time-course point of each experiment.
     pub predicted: Vec<Vec<f64>>,
+    /// The family the network file wrote its molar energies in (the fitted file keeps it).
+    pub energy_unit: crate::units::display::EnergyUnit,
 }
 
 /// Fit `net` (built with the command line's values) to `experiments`, freeing `free` keys (see
@@ -37,6 +39,7 @@ pub fn fit_network(
         .map(|e| setup.predict(e, &x).map(|p| p.points))
         .collect::<Result<Vec<_>>>()?;
     Ok(Fitted {
+        energy_unit: net.energy_unit,
         result,
         curves,
         predicted,

@@ -206,6 +206,9 @@ pub struct Comparison {
     pub until_reason: String,
     /// The light the chain assumes, in words.
     pub chain_light: String,
+    /// The family the network's molar energies are shown in (the file's).
+    #[serde(skip)]
+    pub energy_unit: crate::units::display::EnergyUnit,
 }
 
 impl Comparison {
@@ -450,6 +453,7 @@ pub fn compare(net: &Network, opts: &LevelOptions) -> Result<Comparison> {
         .map(|(name, kind, values)| Observable::new(name, kind, values))
         .collect();
     Ok(Comparison {
+        energy_unit: net.energy_unit,
         sets,
         values: set_values(net),
         observables,

@@ -7,6 +7,7 @@
 //! state, so the whole-network checks and the derived rates no longer reach into the builder.
 
 use crate::error::{Diagnostic, Origin};
+use crate::units::display::EnergyUnit;
 use crate::units::{self, Quantity};
 use std::path::Path;
 use toml::Spanned;
@@ -17,6 +18,17 @@ pub(super) struct Sink<'a> {
     /// The file's lines, so thousands of diagnostics locate themselves in linear time.
     lines: crate::error::LineIndex<'a>,
     diags: Vec<Diagnostic>,
+    /// The molar energies written in the file by family: (kJ/mol count, kcal/mol count, the
+    /// family of the one written first in the file and its byte offset).
+    energies: EnergyTally,
+}
+
+/// How many molar energies of the file were written in kJ/mol and in kcal/mol.
+#[derive(Default)]
+struct EnergyTally {
+    kj: usize,
+    kcal: usize,
+    first: Option<(usize, EnergyUnit)>,
 }
 
 /// Where a file value was written.
@@ -78,6 +90,32 @@ impl<'a> Sink<'a> {
             path,
             lines: crate::error::LineIndex::new(text),
             diags: Vec::new(),
+            energies: EnergyTally::default(),
+        }
+    }
+
+    /// The energy family of the file: the one most of its molar energies were written in, on a
+    /// tie the one written first; kJ/mol when it wrote none in either.
+    pub(super) fn energy_unit(&self) -> EnergyUnit {
+        let t = &self.energies;
+        match t.kcal.cmp(&t.kj) {
+            std::cmp::Ordering::Greater => EnergyUnit::KcalPerMol,
+            std::cmp::Ordering::Less => EnergyUnit::KjPerMol,
+            std::cmp::Ordering::Equal => t.first.map_or(EnergyUnit::KjPerMol, |f| f.1),
+        }
+    }
+
+    /// Count a molar energy read from the file (values from the command line choose nothing).
+    fn tally_energy(&mut self, f: &Field) {
+        let (Origin::Span(r), Some(family)) = (&f.origin, EnergyUnit::of_text(&f.value)) else {
+            return;
+        };
+        match family {
+            EnergyUnit::KjPerMol => self.energies.kj += 1,
+            EnergyUnit::KcalPerMol => self.energies.kcal += 1,
+        }
+        if self.energies.first.is_none_or(|(at, _)| r.start < at) {
+            self.energies.first = Some((r.start, family));
         }
     }
 
@@ -122,7 +160,12 @@ impl<'a> Sink<'a> {
     pub(super) fn quantity(&mut self, field: &str, f: &Field, q: Quantity) -> Option<f64> {
         let field = f.key.as_deref().unwrap_or(field);
         match units::parse(&f.value, q) {
-            Ok(v) => Some(v),
+            Ok(v) => {
+                if q == Quantity::MolarEnergy {
+                    self.tally_energy(f);
+                }
+                Some(v)
+            }
             Err(e) => {
                 self.error(field, &f.origin, e.problem, Some(format!("expected {}", q.accepted())));
                 None

@@ -363,6 +363,9 @@ pub struct Network {
     pub graph: DiGraph<Node, Edge>,
     /// Warnings found while validating.
     pub warnings: Vec<Diagnostic>,
+    /// The family the file wrote its molar energies in (most of them; kJ/mol when none): every
+    /// report and the fitted network written back show energies in it.
+    pub energy_unit: crate::units::display::EnergyUnit,
 }
 
 impl Network {

@@ -11,6 +11,7 @@ use super::*;
 use crate::error::Origin;
 use crate::model::floor;
 use crate::units::constants::{BOLTZMANN, PLANCK};
+use crate::units::display;
 use crate::units::sig;
 
 /// Above this temperature, K, no solution or matrix photochemistry is done (solvents boil or
@@ -232,8 +233,8 @@ fn rates(sink: &mut Sink, at: &Places, net: &Network) {
             continue;
         }
         let (limit, unit) = match s.order {
-            1 => (FASTEST_FIRST_ORDER, "/s"),
-            2 => (FASTEST_SECOND_ORDER, "L/(mol s)"),
+            1 => (FASTEST_FIRST_ORDER, display::rate_constant(1)),
+            2 => (FASTEST_SECOND_ORDER, display::rate_constant(2)),
             _ => continue,
         };
         if s.k > limit {
@@ -277,12 +278,7 @@ fn rates(sink: &mut Sink, at: &Places, net: &Network) {
     }
 }
 
-/// The unit of a rate constant of this order, as messages write it.
+/// The unit of a rate constant of this order, as messages write it (the display rule).
 fn order_unit(order: u32) -> String {
-    match order {
-        0 => "mol/(L s)".into(),
-        1 => "/s".into(),
-        2 => "L/(mol s)".into(),
-        n => format!("(L/mol)^{} /s", n - 1),
-    }
+    display::rate_constant(order).to_string()
 }

@@ -4,7 +4,8 @@
 
 use crate::barrier::{HotVerdict, KRow, Verdict};
 use crate::report::csv_out::CsvTable;
-use crate::units::{Quantity, parse};
+use crate::units::display::{self, EnergyUnit};
+use crate::units::{Quantity, parse, sig};
 use plotters::prelude::*;
 use std::fmt::Write;
 
@@ -13,28 +14,23 @@ fn wavenumber() -> f64 {
     parse("1 cm-1", Quantity::MolarEnergy).unwrap_or(11.962_656)
 }
 
-/// "94.27 kJ/mol (22.53 kcal/mol)" for a molar energy in J/mol.
-pub fn energy(e: f64) -> String {
-    format!("{:.2} kJ/mol ({:.2} kcal/mol)", e / 1000.0, e / 4184.0)
+/// "22.53 kcal/mol (94.27 kJ/mol)" for a molar energy in J/mol, in `family` with the other
+/// beside it (`units::display::format_energy_beside`).
+pub fn energy(e: f64, family: EnergyUnit) -> String {
+    display::format_energy_beside(e, family)
 }
 
-/// A duration in s written with a readable unit (`units::display::time`): "150.000 fs",
-/// "1.000 h", "2.10e4 yr"; "never" when infinite.
+/// A duration in s by the display rule (`units::display::format_time`): "150 fs", "1 h",
+/// "2.1e4 yr"; "never" when infinite.
 pub fn duration(t: f64) -> String {
     if !t.is_finite() {
         return "never".into();
     }
-    let (scale, name) = crate::units::display::time(t);
-    let v = t / scale;
-    if v.abs() >= 1e4 || (v != 0.0 && v.abs() < 1e-3) {
-        format!("{v:.2e} {name}")
-    } else {
-        format!("{v:.3} {name}")
-    }
+    display::format_time(t)
 }
 
-/// The verdict table of a network.
-pub fn verdicts_text(rows: &[Verdict], window: f64, probability: f64, temperature: f64) -> String {
+/// The verdict table of a network; barriers in `family` (the network's) with the other beside.
+pub fn verdicts_text(rows: &[Verdict], window: f64, probability: f64, temperature: f64, family: EnergyUnit) -> String {
     let mut s = String::new();
     let _ = writeln!(
         s,
@@ -43,19 +39,25 @@ pub fn verdicts_text(rows: &[Verdict], window: f64, probability: f64, temperatur
         probability * 100.0
     );
     let width = rows.iter().map(|r| r.name.chars().count()).max().unwrap_or(4).max(4);
+    let (main, other) = (family.spelling(), family.other().spelling());
     let _ = writeln!(
         s,
-        "{:<width$} {:>13} {:>12} {:>14}  verdict",
-        "step", "ΔG‡ kJ/mol", "k (1/s)", "half-life"
+        "{:<width$} {:>14} {:>12} {:>12} {:>14}  verdict",
+        "step",
+        format!("ΔG‡ {main}"),
+        format!("({other})"),
+        "k (s⁻¹)",
+        "half-life"
     );
     for r in rows {
         let mark = if r.barrier_given { " " } else { "*" };
         let _ = writeln!(
             s,
-            "{:<width$} {:>12.2}{mark} {:>12.3e} {:>14}  {}",
+            "{:<width$} {:>13}{mark} {:>12} {:>12} {:>14}  {}",
             r.name,
-            r.barrier / 1000.0,
-            r.rate,
+            sig(r.barrier / family.factor(), 4),
+            format!("({})", sig(r.barrier / family.other().factor(), 4)),
+            sig(r.rate, 4),
             duration(r.half_life),
             r.words()
         );
@@ -97,28 +99,35 @@ pub struct HotRow {
 
 /// The yields of competing hot-molecule reactions and the share that cools, starting at
 /// `energy` J/mol with cooling time constant `cooling` s on a grain written as `grain`.
-pub fn hot_yields_text(rows: &[HotRow], cooled: f64, energy: f64, cooling: f64, grain: &str) -> String {
+pub fn hot_yields_text(
+    rows: &[HotRow],
+    cooled: f64,
+    energy: f64,
+    cooling: f64,
+    grain: &str,
+    family: EnergyUnit,
+) -> String {
     let mut s = String::new();
     let _ = writeln!(
         s,
         "hot molecule with {} above its zero-point level, cooling exponentially with τ = {}",
-        self::energy(energy),
+        self::energy(energy, family),
         duration(cooling)
     );
     let width = rows.iter().map(|r| r.name.chars().count()).max().unwrap_or(0).max(23);
     let _ = writeln!(
         s,
         "  {:<width$}  {:>33}  {:>4}  {:>11}  {:>12}",
-        "channel", "E0", "σ", "k(E) /s", "yield"
+        "channel", "E0", "σ", "k(E) (s⁻¹)", "yield"
     );
     for r in rows {
         let _ = writeln!(
             s,
             "  {:<width$}  {:>33}  {:>4}  {:>11}  {:>12.6e}",
             r.name,
-            self::energy(r.barrier),
+            self::energy(r.barrier, family),
             r.degeneracy,
-            r.rate_at_start.map_or("-".to_string(), |k| format!("{k:.4e}")),
+            r.rate_at_start.map_or("-".to_string(), |k| sig(k, 5)),
             r.probability
         );
     }
@@ -136,7 +145,7 @@ pub fn hot_yields_text(rows: &[HotRow], cooled: f64, energy: f64, cooling: f64, 
 
 /// The hot ground-state channels of a network: yields before cooling, for which a time window
 /// does not apply. Empty when the network has none.
-pub fn hot_verdicts_text(rows: &[HotVerdict]) -> String {
+pub fn hot_verdicts_text(rows: &[HotVerdict], family: EnergyUnit) -> String {
     let mut s = String::new();
     if rows.is_empty() {
         return s;
@@ -148,19 +157,19 @@ pub fn hot_verdicts_text(rows: &[HotVerdict]) -> String {
     let width = rows.iter().map(|r| r.name.chars().count()).max().unwrap_or(4).max(4);
     let _ = writeln!(
         s,
-        "{:<width$} {:>10} {:>10} {:>12} {:>12} {:>10}  verdict",
-        "channel", "E0 kJ/mol", "E kJ/mol", "k(E) (1/s)", "τ", "k(E)·τ"
+        "{:<width$} {:>30} {:>30} {:>12} {:>12} {:>10}  verdict",
+        "channel", "E0", "E", "k(E) (s⁻¹)", "τ", "k(E)·τ"
     );
     for r in rows {
         let _ = writeln!(
             s,
-            "{:<width$} {:>10.2} {:>10.2} {:>12.3e} {:>12} {:>10.3e}  {}",
+            "{:<width$} {:>30} {:>30} {:>12} {:>12} {:>10}  {}",
             r.name,
-            r.barrier / 1000.0,
-            r.energy / 1000.0,
-            r.rate_at_start,
+            energy(r.barrier, family),
+            energy(r.energy, family),
+            sig(r.rate_at_start, 4),
             duration(r.cooling),
-            r.competition(),
+            sig(r.competition(), 4),
             r.words()
         );
     }
@@ -240,7 +249,7 @@ pub fn k_svg(rows: &[KRow], title: &str) -> String {
                 .build_cartesian_2d(x0..x1, (klo..khi).log_scale())?;
             c.configure_mesh()
                 .x_desc("E above the reactant zero-point level (kJ/mol)")
-                .y_desc("k(E) (1/s, log scale)")
+                .y_desc(format!("k(E) ({}, log scale)", display::rate_constant(1)))
                 .label_style(("sans-serif", 15))
                 .draw()?;
             c.draw_series(LineSeries::new(ks.clone(), RGBColor(31, 119, 180).stroke_width(2)))?;
@@ -282,10 +291,21 @@ mod tests {
 
     #[test]
     fn durations_read_well() {
-        assert_eq!(duration(150e-15), "150.000 fs");
-        assert_eq!(duration(3600.0), "1.000 h");
+        assert_eq!(duration(150e-15), "150 fs");
+        assert_eq!(duration(3600.0), "1 h");
         assert_eq!(duration(f64::INFINITY), "never");
-        assert_eq!(duration(5400.0), "1.500 h");
-        assert_eq!(duration(0.0), "0.000 s");
+        assert_eq!(duration(5400.0), "1.5 h");
+        assert_eq!(duration(0.0), "0 s");
+        // A ps event's half-life in ps, never "3.50e-15 h" (issue 18).
+        assert_eq!(duration(6.409e-12), "6.41 ps");
+    }
+
+    #[test]
+    fn a_kcal_network_shows_its_barriers_in_kcal_with_kj_beside() {
+        // 23.5 kcal/mol = 98.324 kJ/mol (thermochemical calorie; common practice).
+        assert_eq!(
+            energy(23.5 * 4184.0, EnergyUnit::KcalPerMol),
+            "23.5 kcal/mol (98.32 kJ/mol)"
+        );
     }
 }

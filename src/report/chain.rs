@@ -94,6 +94,10 @@ pub struct Summary {
     /// Cycles before the molecule ends, lifetimes and routes, when asked for (`ledger`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub paths: Option<crate::report::chain_paths::Paths>,
+    /// The family energies are shown in, the network's ([`Summary::in_energy_unit`]); JSON
+    /// keeps J/mol and the sensitivities per kcal/mol as named there.
+    #[serde(skip)]
+    pub energy_unit: display::EnergyUnit,
 }
 
 /// Build the summary; `products` says which absorbing states are products, `light` the light
@@ -171,10 +175,17 @@ pub fn summary(
         sensitivities: sens,
         count_intervals: None,
         paths: None,
+        energy_unit: display::EnergyUnit::default(),
     }
 }
 
 impl Summary {
+    /// The summary with energies shown in `family` (the network's `energy_unit`).
+    pub fn in_energy_unit(mut self, family: display::EnergyUnit) -> Summary {
+        self.energy_unit = family;
+        self
+    }
+
     /// The summary with the chain's check against the kinetics ([`crate::chain::agreement::check`]).
     pub fn with_check(mut self, check: std::result::Result<Agreement, String>) -> Summary {
         match check {
@@ -331,8 +342,10 @@ pub fn text(s: &Summary) -> String {
                 .flatten()
                 .map(|v| el_zero.shown(v));
             let dy = dy_zero.shown(x.yield_derivative.get(main).copied().unwrap_or(0.0));
+            // The value in its display unit (none for a fraction or a yield).
+            let (v, u) = display::readable_in(&x.unit, x.value, s.energy_unit);
             let mut line = format!(
-                "    {:>9} {:>11}  {} = {:.4e} {}",
+                "    {:>9} {:>11}  {} = {}{}",
                 opt(el, |v| format!("{v:+.4}")),
                 if dy == 0.0 {
                     "0".to_string()
@@ -340,8 +353,8 @@ pub fn text(s: &Summary) -> String {
                     format!("{dy:.3e}")
                 },
                 x.parameter,
-                x.value,
-                x.unit
+                crate::units::sig(v, 5),
+                if u.is_empty() { String::new() } else { format!(" {u}") }
             );
             if let Some(b) = x
                 .photons_per_barrier
@@ -349,7 +362,14 @@ pub fn text(s: &Summary) -> String {
                 .and_then(|b| b.get(main).copied().flatten())
             {
                 let b = if el == Some(0.0) { 0.0 } else { b };
-                let _ = write!(line, "  [d ln photons / d barrier {b:+.3} per kcal/mol]");
+                // The engine's derivative is per kcal/mol; per unit of the network's family.
+                let kcal = display::EnergyUnit::KcalPerMol.factor();
+                let b = b * s.energy_unit.factor() / kcal;
+                let _ = write!(
+                    line,
+                    "  [d ln photons / d barrier {b:+.3} per {}]",
+                    s.energy_unit.spelling()
+                );
             }
             let _ = writeln!(o, "{line}");
             // The key that --set, --free and [[uncertain]] take for this number.

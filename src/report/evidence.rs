@@ -4,14 +4,14 @@
 use crate::network::evidence::{ShareSd, Source, Spreads};
 use crate::uncertainty::counts::{CountIntervals, Interval};
 use crate::uncertainty::evidence::{Basis, Entry, Spreading};
+use crate::units::display::EnergyUnit;
 use crate::units::{self, display};
 use std::fmt::Write;
 
-/// "29.29 kJ/mol (7 kcal/mol)" for an energy difference in J/mol (kJ/mol by the display rule,
-/// kcal/mol beside it as barrier reports do).
-fn energy(e: f64) -> String {
-    let (v, u) = display::quantity(Some(units::Quantity::MolarEnergy), e);
-    format!("{} {u} ({} kcal/mol)", units::sig(v, 4), units::sig(e / 4184.0, 3))
+/// "7 kcal/mol (29.29 kJ/mol)" for an energy difference in J/mol: in the network's family,
+/// the other beside it (the display rule).
+fn energy(e: f64, family: EnergyUnit) -> String {
+    display::format_energy_beside(e, family)
 }
 
 fn share_sd(s: ShareSd) -> String {
@@ -21,11 +21,11 @@ fn share_sd(s: ShareSd) -> String {
     }
 }
 
-fn value(e: &Entry) -> String {
+fn value(e: &Entry, family: EnergyUnit) -> String {
     if !e.value.is_finite() {
         return "(not a key of this network)".into();
     }
-    let (v, u) = display::quantity(e.quantity, e.value);
+    let (v, u) = display::quantity_in(e.quantity, e.value, family);
     if u.is_empty() {
         units::sig(v, 4)
     } else {
@@ -34,7 +34,7 @@ fn value(e: &Entry) -> String {
 }
 
 /// The spread column of one entry.
-fn spread(e: &Entry) -> String {
+fn spread(e: &Entry, family: EnergyUnit) -> String {
     let default = if e.default { ", default" } else { "" };
     let text = match (&e.basis, e.spread) {
         (Basis::Entry(written), _) => written.clone(),
@@ -54,12 +54,12 @@ fn spread(e: &Entry) -> String {
                 String::new()
             }
         ),
-        (Basis::Origin(_), Spreading::Energy(sd)) => format!("sd {}{default}", energy(sd)),
+        (Basis::Origin(_), Spreading::Energy(sd)) => format!("sd {}{default}", energy(sd, family)),
         (Basis::Origin(_), Spreading::Factor(f, None)) => format!("factor {}{default}", units::sig(f, 3)),
         (Basis::Origin(_), Spreading::Factor(f, Some(b))) => format!(
             "factor {} (from the barrier spread {}{default})",
             units::sig(f, 3),
-            energy(b)
+            energy(b, family)
         ),
         (Basis::Origin(_), Spreading::Share(s)) => format!("{}{default}", share_sd(s)),
         (Basis::Origin(s), Spreading::None) => format!(
@@ -77,7 +77,8 @@ fn spread(e: &Entry) -> String {
 }
 
 /// The section, or "" when nothing is uncertain.
-pub fn uncertain_values(entries: &[Entry]) -> String {
+/// Energies are shown in `family` (the network's [`crate::network::Network::energy_unit`]).
+pub fn uncertain_values(entries: &[Entry], family: EnergyUnit) -> String {
     if entries.is_empty() {
         return String::new();
     }
@@ -89,7 +90,7 @@ pub fn uncertain_values(entries: &[Entry]) -> String {
     let kw = entries.iter().map(|e| e.key.chars().count()).max().unwrap_or(0).max(3);
     let vw = entries
         .iter()
-        .map(|e| value(e).chars().count())
+        .map(|e| value(e, family).chars().count())
         .max()
         .unwrap_or(0)
         .max(5);
@@ -100,7 +101,13 @@ pub fn uncertain_values(entries: &[Entry]) -> String {
             Basis::Origin(o) => o.word(),
             Basis::Counts { .. } => "trajectory counts",
         };
-        let _ = writeln!(s, "  {:kw$}  {:>vw$}  {origin:22}  {}", e.key, value(e), spread(e));
+        let _ = writeln!(
+            s,
+            "  {:kw$}  {:>vw$}  {origin:22}  {}",
+            e.key,
+            value(e, family),
+            spread(e, family)
+        );
     }
     // The defaults of the origins used, so a reader sees what "default" stands for.
     let mut used: Vec<Source> = entries
@@ -120,7 +127,7 @@ pub fn uncertain_values(entries: &[Entry]) -> String {
                 let r = d.of(o);
                 let mut parts = Vec::new();
                 if let Some(b) = r.barrier.value {
-                    parts.push(format!("barrier sd {}", energy(b)));
+                    parts.push(format!("barrier sd {}", energy(b, family)));
                 }
                 if let Some(f) = r.rate_factor.value {
                     parts.push(format!("k factor {}", units::sig(f, 3)));

@@ -15,6 +15,7 @@ use std::fmt::Write;
 
 /// A value in a readable unit: (scaled value, unit text), by `units::display` (the one rule).
 pub use crate::units::display::readable;
+use crate::units::display::{EnergyUnit, readable_in};
 
 /// The value as `--set`/file text in a readable unit, 7 significant figures.
 pub fn value_text(f: &Free, v: f64) -> String {
@@ -380,7 +381,10 @@ pub fn residuals_svg(title: &str, rows: &[Row]) -> String {
 /// [`file::write::put_values`](crate::file::write::put_values) finds it (a `k` or `barrier`
 /// replaces the whole rate table; a barrier keeps `transmission`); a value with a unit is written
 /// in the readable unit of `units::display`, 7 significant figures.
-pub fn fitted_toml(text: &str, free: &[Free], values: &[f64], se: &[f64]) -> Result<String> {
+///
+/// Molar energies are written in `family`, the network file's (`Network::energy_unit`): a
+/// barrier the file gave as "23.5 kcal/mol" comes back in kcal/mol.
+pub fn fitted_toml(text: &str, free: &[Free], values: &[f64], se: &[f64], family: EnergyUnit) -> Result<String> {
     use crate::file::write::{Written, put_values};
     let written: Vec<(String, Written)> = free
         .iter()
@@ -389,7 +393,7 @@ pub fn fitted_toml(text: &str, free: &[Free], values: &[f64], se: &[f64]) -> Res
             let w = if f.unit.is_empty() {
                 Written::Number(*v)
             } else {
-                let (value, unit) = readable(f.unit, *v);
+                let (value, unit) = readable_in(f.unit, *v, family);
                 Written::Quantity { value, unit }
             };
             (f.key.clone(), w)
@@ -397,7 +401,7 @@ pub fn fitted_toml(text: &str, free: &[Free], values: &[f64], se: &[f64]) -> Res
         .collect();
     let mut head = vec!["Fitted values put in by `photoledger fit` (value ± standard error):".to_string()];
     for ((f, v), s) in free.iter().zip(values).zip(se) {
-        let (x, u) = readable(f.unit, *v);
+        let (x, u) = readable_in(f.unit, *v, family);
         let scale = if *v != 0.0 { x / v } else { 1.0 };
         if s.is_finite() {
             head.push(format!("  {} = {} ± {} {u}", f.key, sig(x, 7), sig(s * scale, 3)));
@@ -576,7 +580,12 @@ reverse = { prefactor = "1e10 /s", activation = "90 kJ/mol" }
             .map(|f| if f.unit.is_empty() { 0.8 } else { f.start * 1.25 })
             .collect();
         let se = vec![0.0; values.len()];
-        let text = fitted_toml(NET, &free, &values, &se).unwrap();
+        // The file writes its one barrier in kcal/mol before its activation energy in kJ/mol: a tie,
+        // the first written decides, and the fitted barrier goes back in kcal/mol.
+        assert_eq!(net.energy_unit, EnergyUnit::KcalPerMol);
+        let text = fitted_toml(NET, &free, &values, &se, net.energy_unit).unwrap();
+        assert!(text.contains("barrier = \"6.25 kcal/mol\""), "{text}");
+        assert!(!text.contains("26.15 kJ/mol"), "{text}");
         assert!(
             text.contains("# a comment that must survive") && text.contains("# reaction"),
             "{text}"
@@ -595,6 +604,6 @@ reverse = { prefactor = "1e10 /s", activation = "90 kJ/mol" }
             unit: "/s",
             transform: Transform::Log,
         };
-        assert!(fitted_toml(NET, &[bad], &[1.0], &[0.0]).is_err());
+        assert!(fitted_toml(NET, &[bad], &[1.0], &[0.0], EnergyUnit::KjPerMol).is_err());
     }
 }

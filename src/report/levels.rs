@@ -52,11 +52,15 @@ pub fn si_unit(kind: Kind) -> &'static str {
 }
 
 /// A set value for display (its key's unit through the display rule), or its counts.
-fn set_value_text(unit: &str, v: Option<f64>) -> String {
+fn set_value_text(unit: &str, v: Option<f64>, family: display::EnergyUnit) -> String {
     match v {
         None => "(file)".into(),
         Some(x) => {
-            let (x, u) = display::readable(unit, x);
+            // An energy in the file's family, with the other beside it (the display rule).
+            if display::quantity_of_spelling(unit) == Some(crate::units::Quantity::MolarEnergy) {
+                return display::format_energy_beside(x, family);
+            }
+            let (x, u) = display::readable_in(unit, x, family);
             if u.is_empty() {
                 sig(x, 4)
             } else {
@@ -170,6 +174,12 @@ pub fn text(name: &str, c: &Comparison) -> String {
         };
         let _ = writeln!(o, "  \"{}\"{note}", s.label);
     }
+    let widest_value = c
+        .values
+        .iter()
+        .flat_map(|v| v.values.iter().map(|x| set_value_text(v.unit, *x, c.energy_unit).chars().count()))
+        .max()
+        .unwrap_or(0);
     let lw = c
         .sets
         .iter()
@@ -177,6 +187,7 @@ pub fn text(name: &str, c: &Comparison) -> String {
         .max()
         .unwrap_or(8)
         .max(12)
+        .max(widest_value)
         + 2;
     let keyw = c
         .values
@@ -199,7 +210,7 @@ pub fn text(name: &str, c: &Comparison) -> String {
         let _ = write!(o, "  {:<keyw$}", v.key);
         if v.counts.is_empty() {
             for x in &v.values {
-                let _ = write!(o, "{:>lw$}", set_value_text(v.unit, *x));
+                let _ = write!(o, "{:>lw$}", set_value_text(v.unit, *x, c.energy_unit));
             }
         } else {
             for x in &v.counts {

@@ -6,7 +6,7 @@ use crate::light::{LightKind, LightSource};
 use crate::plan::actinometry::{FluxResult, Measured, NetworkFit};
 use crate::plan::target::Basis;
 use crate::plan::{Days, Direction, Flow, Plan, Tube, Unreachable};
-use crate::units::display::{ZeroWithin, format_concentration_within};
+use crate::units::display::{self, ZeroWithin, format_concentration_within};
 use crate::units::{format_concentration, format_time, sig};
 use serde::Serialize;
 use std::fmt::Write;
@@ -265,23 +265,7 @@ fn energy_per_mol(j: f64) -> String {
 }
 
 fn energy(j: f64) -> String {
-    if j.abs() >= 3.6e6 {
-        format!("{} kWh", sig(j / 3.6e6, 3))
-    } else if j.abs() >= 1e3 {
-        format!("{} kJ", sig(j / 1e3, 3))
-    } else {
-        format!("{} J", sig(j, 3))
-    }
-}
-
-fn power_text(w: f64) -> String {
-    if w >= 1.0 {
-        format!("{} W", sig(w, 3))
-    } else if w >= 1e-3 {
-        format!("{} mW", sig(w * 1e3, 3))
-    } else {
-        format!("{} µW", sig(w * 1e6, 3))
-    }
+    display::format_energy_amount(j)
 }
 
 /// The text summary.
@@ -301,9 +285,10 @@ pub fn text(s: &PlanSummary) -> String {
         (Some(t), _) => {
             let _ = writeln!(
                 o,
-                "reached after {} ({} s; found by the integrator's root finding, rtol {:e})",
+                "reached after {} ({} {}; found by the integrator's root finding, rtol {:e})",
                 format_time(*t),
-                sig(*t, 6),
+                sig(*t / display::time(*t).0, 6),
+                display::time(*t).1,
                 s.rtol
             );
         }
@@ -375,23 +360,23 @@ pub fn text(s: &PlanSummary) -> String {
     );
     let _ = writeln!(
         o,
-        "  incident  {} einstein ({} einstein/L{})",
-        sig(d.incident, 4),
-        sig(d.incident_per_litre, 4),
+        "  incident  {} ({}/L{})",
+        display::format_photons(d.incident),
+        display::format_photons(d.incident_per_litre),
         per(d.incident_per_mol)
     );
     let _ = writeln!(
         o,
-        "  absorbed  {} einstein ({} einstein/L{})",
-        sig(d.absorbed, 4),
-        sig(d.absorbed_per_litre, 4),
+        "  absorbed  {} ({}/L{})",
+        display::format_photons(d.absorbed),
+        display::format_photons(d.absorbed_per_litre),
         per(d.absorbed_per_mol)
     );
     if d.power > 0.0 {
         let _ = writeln!(
             o,
             "radiant energy into the sample: {} for {} lit = {}{}",
-            power_text(d.power),
+            display::format_power(d.power),
             format_time(d.lit_time),
             energy(d.radiant_energy),
             d.radiant_per_mol
@@ -403,7 +388,7 @@ pub fn text(s: &PlanSummary) -> String {
             o,
             "electrical energy at a wall-plug efficiency of {} %: {} drawn, {}{}",
             sig(e.efficiency * 100.0, 3),
-            power_text(e.power),
+            display::format_power(e.power),
             energy(e.energy),
             e.per_mol
                 .map_or(String::new(), |v| format!(" ({} per {what})", energy_per_mol(v)))
@@ -420,7 +405,12 @@ pub fn text(s: &PlanSummary) -> String {
             p.evaluations
         );
         for (name, w, q) in &p.sources {
-            let _ = writeln!(o, "  {name}: {} ({} einstein/s)", power_text(*w), sig(*q, 4));
+            let _ = writeln!(
+                o,
+                "  {name}: {} ({})",
+                display::format_power(*w),
+                display::format_photon_flux(*q)
+            );
         }
     }
     if let Some(f) = &s.flow {
@@ -506,15 +496,22 @@ pub use super::sweep::{SweepAxis, selectivity_svg, sweep_csv, sweep_svg, sweep_t
 
 /// Format a measured value with its uncertainty and unit.
 pub fn measured(m: &Measured, unit: &str) -> String {
+    // A photon flux or a power in its display unit (the display rule); others as given.
+    let ladder: Option<&display::Ladder> = match unit {
+        "einstein/s" => Some(&display::PHOTON_FLUX),
+        "W" => Some(&display::POWER),
+        _ => None,
+    };
+    let (f, unit) = ladder.map_or((1.0, unit), |l| display::pick(m.value, l));
     if m.sigma > 0.0 {
         format!(
             "{} ± {} {unit} ({} %)",
-            sig(m.value, 5),
-            sig(m.sigma, 2),
+            sig(m.value / f, 5),
+            sig(m.sigma / f, 2),
             sig(m.relative() * 100.0, 2)
         )
     } else {
-        format!("{} {unit}", sig(m.value, 6))
+        format!("{} {unit}", sig(m.value / f, 6))
     }
 }
 

@@ -2,7 +2,7 @@
 
 use crate::light::LightKind;
 use crate::network::{Branching, Network, PhotoOutcome, Target};
-use crate::units::{format_concentration, sig};
+use crate::units::{display, format_concentration, sig};
 use std::fmt::Write;
 
 /// A plain-text summary of a validated network: what it holds, the light, and warnings.
@@ -83,18 +83,18 @@ pub fn network_summary(net: &Network) -> String {
         let (lo, hi) = l.extent().unwrap_or((0.0, 0.0));
         // The stated intensity is the whole source's; a from/to window cuts it (a filter).
         let emitted = if l.window_cuts() {
-            format!("{} mW emitted, ", sig(l.emitted_power * 1e3, 4))
+            format!("{} emitted, ", display::format_power(l.emitted_power))
         } else {
             String::new()
         };
         let _ = writeln!(
             s,
-            "  {:<14} {:<42} {}{} mW = {} µeinstein/s {}{}–{} nm{}{} wavelength bin{})",
+            "  {:<14} {:<42} {}{} = {} {}{}–{} nm{}{} wavelength bin{})",
             l.name,
             what,
             emitted,
-            sig(l.power() * 1e3, 4),
-            sig(l.photon_flux() * 1e6, 4),
+            display::format_power(l.power()),
+            display::format_photon_flux(l.photon_flux()),
             if l.window_cuts() { "in " } else { "(" },
             sig(lo * 1e9, 4),
             sig(hi * 1e9, 4),
@@ -154,17 +154,12 @@ pub fn network_summary(net: &Network) -> String {
     if !net.thermal.is_empty() {
         let _ = writeln!(s, "\nthermal steps (rate constants at {} K)", sig(c.temperature, 5));
         for t in &net.thermal {
-            let unit = match t.order {
-                1 => "/s".to_string(),
-                2 => "/(M s)".to_string(),
-                n => format!("/(M{} s)", n - 1),
-            };
             let derived = match &t.rate {
                 crate::rates::RateLaw::Frequencies {
                     barrier, degeneracy, ..
                 } => format!(
-                    "   (computed: TST from frequencies, E0 = {} kJ/mol, σ = {}{})",
-                    sig(barrier / 1000.0, 4),
+                    "   (computed: TST from frequencies, E0 = {}, σ = {}{})",
+                    display::format_energy(*barrier, net.energy_unit),
                     sig(*degeneracy, 3),
                     t.rate
                         .tunnelling(c.temperature)
@@ -174,10 +169,9 @@ pub fn network_summary(net: &Network) -> String {
             };
             let _ = writeln!(
                 s,
-                "  {:<40} k = {} {}{derived}",
+                "  {:<40} k = {}{derived}",
                 format!("{} -> {}", net.side(&t.reactants), net.side(&t.products)),
-                sig(t.k, 4),
-                unit
+                display::format_rate_constant(t.k, t.order),
             );
         }
     }
@@ -232,13 +226,13 @@ pub fn network_summary(net: &Network) -> String {
                         cooling,
                         rate_at_start,
                     } => format!(
-                        "hot yield {} (computed: RRKM over E0 = {} kJ/mol from {} kJ/mol, k = {} /s at the start, \
-                         cooling τ = {} ps)",
+                        "hot yield {} (computed: RRKM over E0 = {} from {}, k = {} at the start, \
+                         cooling τ = {})",
                         sig(*fraction, 4),
-                        sig(barrier / 1000.0, 4),
-                        sig(energy / 1000.0, 4),
-                        sig(*rate_at_start, 3),
-                        sig(cooling * 1e12, 3)
+                        display::format_energy(*barrier, net.energy_unit),
+                        display::format_energy(*energy, net.energy_unit),
+                        display::format_rate_constant(*rate_at_start, 1),
+                        display::format_time(*cooling)
                     ),
                     Branching::Rest if t.channels.iter().any(|c| matches!(c.branching, Branching::Hot { .. })) => {
                         let hot: f64 = t.channels.iter().filter_map(|c| c.branching.fixed_share()).sum();
@@ -247,15 +241,15 @@ pub fn network_summary(net: &Network) -> String {
                     Branching::Rest => "the rest".into(),
                     Branching::Rate { k, .. } => {
                         format!(
-                            "k = {} /s, share {}% at the start",
-                            sig(*k, 4),
+                            "k = {}, share {}% at the start",
+                            display::format_rate_constant(*k, 1),
                             sig(100.0 * k / total.max(f64::MIN_POSITIVE), 3)
                         )
                     }
                     Branching::Quenching { partner, k2, .. } => format!(
-                        "quenched by {}: k = {} /(M s), share {}% at the start",
+                        "quenched by {}: k = {}, share {}% at the start",
                         net.species[*partner].name,
-                        sig(*k2, 4),
+                        display::format_rate_constant(*k2, 2),
                         sig(100.0 * k2 * c0[*partner] / total.max(f64::MIN_POSITIVE), 3)
                     ),
                 };
@@ -312,13 +306,16 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         );
     }
     let p = &s.photons;
-    let _ = writeln!(o, "\nphotons (einstein)");
+    // One unit for the table, by its largest value (the display rule): µeinstein for a
+    // cuvette's hour, einstein for a sunlit pool.
+    let (pf, pu) = display::photons(display::largest([p.incident, p.background(), p.transmitted()]));
+    let _ = writeln!(o, "\nphotons ({pu})");
     // A dark run (every source at zero) has no shares of the incident light to give.
     let dark = p.incident <= 0.0;
     let _ = writeln!(
         o,
         "  incident        {}{}",
-        sig(p.incident, 4),
+        sig(p.incident / pf, 4),
         if dark && !s.floored.lights.is_empty() {
             "  (no light: below the light floor, see floors below)"
         } else if dark {
@@ -334,21 +331,21 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
             format!(
                 "{}% of incident; {} returned, {} productive",
                 sig(100.0 * a.absorbed / p.incident, 3),
-                sig(a.returned, 3),
-                sig(a.productive, 3)
+                sig(a.returned / pf, 3),
+                sig(a.productive / pf, 3)
             )
         };
         let _ = writeln!(
             o,
             "  absorbed by {:<16} {:>10}  ({share})",
             a.species,
-            sig(a.absorbed, 4),
+            sig(a.absorbed / pf, 4),
         );
     }
     let bg = p.background();
     let tr = p.transmitted();
-    let _ = writeln!(o, "  background      {}", sig(bg, 4));
-    let _ = writeln!(o, "  transmitted     {}", sig(tr, 4));
+    let _ = writeln!(o, "  background      {}", sig(bg / pf, 4));
+    let _ = writeln!(o, "  transmitted     {}", sig(tr / pf, 4));
     if !dark {
         let _ = writeln!(
             o,

@@ -411,9 +411,10 @@ impl Problem {
                 .enumerate()
                 .map(|(i, p)| {
                     let unit = self.param_units.get(i).cloned().unwrap_or_else(|| p.unit.clone());
-                    // The description in the unit a reader expects (kJ/mol, M⁻¹ s⁻¹, mM); the
-                    // values themselves stay in `unit`.
-                    let (per, shown) = units::display::readable_unit(&unit, p.distribution.nominal().abs());
+                    // The description in the unit a reader expects (the file's energy family,
+                    // M⁻¹ s⁻¹, mM); the values themselves stay in `unit`.
+                    let (per, shown) =
+                        units::display::readable_unit_in(&unit, p.distribution.nominal().abs(), self.base.energy_unit);
                     let about = p.distribution.describe_in(per, &shown);
                     Column {
                         name: p.key.clone(),

@@ -35,26 +35,128 @@ pub const TIME: [(f64, &str); 10] = [
 /// Concentrations (from mol/L).
 pub const CONCENTRATION: [(f64, &str); 5] = [(1.0, "M"), (1e-3, "mM"), (1e-6, "µM"), (1e-9, "nM"), (1e-12, "pM")];
 
-/// Photon amounts (from einstein, mol of photons).
-pub const EINSTEIN: [(f64, &str); 5] = [
+/// Photon amounts (from einstein, mol of photons). No "meinstein": the trade writes µeinstein
+/// from 1e-6 up to 1e-3 einstein and einstein above (common practice).
+pub const EINSTEIN: [(f64, &str); 4] = [
     (1.0, "einstein"),
-    (1e-3, "meinstein"),
     (1e-6, "µeinstein"),
     (1e-9, "neinstein"),
     (1e-12, "peinstein"),
 ];
 
-/// Photon fluxes (from einstein/s).
-pub const PHOTON_FLUX: [(f64, &str); 5] = [
+/// Photon fluxes (from einstein/s), with the prefixes of [`EINSTEIN`].
+pub const PHOTON_FLUX: [(f64, &str); 4] = [
     (1.0, "einstein/s"),
-    (1e-3, "meinstein/s"),
     (1e-6, "µeinstein/s"),
     (1e-9, "neinstein/s"),
     (1e-12, "peinstein/s"),
 ];
 
 /// Radiant powers (from W).
-pub const POWER: [(f64, &str); 4] = [(1.0, "W"), (1e-3, "mW"), (1e-6, "µW"), (1e-9, "nW")];
+pub const POWER: [(f64, &str); 5] = [(1e3, "kW"), (1.0, "W"), (1e-3, "mW"), (1e-6, "µW"), (1e-9, "nW")];
+
+/// Amounts of energy (from J): radiant and electrical energy into a sample. kWh, the unit a
+/// wall socket is billed in, above 3.6 MJ (common practice).
+pub const ENERGY: [(f64, &str); 4] = [(3.6e6, "kWh"), (1e3, "kJ"), (1.0, "J"), (1e-3, "mJ")];
+
+/// An amount of energy in J for reading: "56 mJ", "2.1 kWh" (see [`format`]).
+pub fn format_energy_amount(joule: f64) -> String {
+    format(joule, &ENERGY)
+}
+
+/// The family of molar energies a network file was written in: its barriers, activation
+/// energies and E₀ are shown in it everywhere (text, tables, the fitted network written back),
+/// with the other family beside it in tables. JSON and CSV keep J/mol. Set once by the network
+/// builder from the units the file's energies were written with (`Network::energy_unit`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum EnergyUnit {
+    /// kJ/mol (also the choice for files written in J/mol, eV or cm⁻¹).
+    #[default]
+    KjPerMol,
+    /// kcal/mol (thermochemical calorie, 4.184 J exactly).
+    KcalPerMol,
+}
+
+impl EnergyUnit {
+    /// The spelling: "kJ/mol" or "kcal/mol".
+    pub fn spelling(self) -> &'static str {
+        match self {
+            EnergyUnit::KjPerMol => "kJ/mol",
+            EnergyUnit::KcalPerMol => "kcal/mol",
+        }
+    }
+
+    /// J/mol in one unit of the family.
+    pub fn factor(self) -> f64 {
+        match self {
+            EnergyUnit::KjPerMol => 1000.0,
+            EnergyUnit::KcalPerMol => 1000.0 * super::constants::CALORIE,
+        }
+    }
+
+    /// The other family (shown beside in tables).
+    pub fn other(self) -> EnergyUnit {
+        match self {
+            EnergyUnit::KjPerMol => EnergyUnit::KcalPerMol,
+            EnergyUnit::KcalPerMol => EnergyUnit::KjPerMol,
+        }
+    }
+
+    /// The family a written molar energy ("23.5 kcal/mol", "96 kJ/mol") belongs to; `None` for
+    /// other spellings (eV, cm⁻¹, a plain number), which choose no family.
+    pub fn of_text(text: &str) -> Option<EnergyUnit> {
+        let unit: String = text
+            .trim()
+            .trim_start_matches(|c: char| c.is_ascii_digit() || matches!(c, '.' | 'e' | 'E' | '+' | '-' | '−'))
+            .chars()
+            .filter(|c| !c.is_whitespace())
+            .collect::<String>()
+            .to_lowercase();
+        if unit.starts_with("kcal/mol") || unit.starts_with("cal/mol") {
+            Some(EnergyUnit::KcalPerMol)
+        } else if unit.starts_with("kj/mol") || unit.starts_with("j/mol") {
+            Some(EnergyUnit::KjPerMol)
+        } else {
+            None
+        }
+    }
+}
+
+/// A molar energy in J/mol in `family`, 4 significant figures: "23.5 kcal/mol".
+pub fn format_energy(j_per_mol: f64, family: EnergyUnit) -> String {
+    format!("{} {}", sig(j_per_mol / family.factor(), 4), family.spelling())
+}
+
+/// A molar energy in J/mol in `family` with the other family beside it, for tables and
+/// verdicts: "23.5 kcal/mol (98.32 kJ/mol)".
+pub fn format_energy_beside(j_per_mol: f64, family: EnergyUnit) -> String {
+    format!(
+        "{} ({})",
+        format_energy(j_per_mol, family),
+        format_energy(j_per_mol, family.other())
+    )
+}
+
+/// A rate constant of reaction order `order` (internal unit, (L/mol)^(order−1) s⁻¹), 4
+/// significant figures and its unit: "3.695e-5 s⁻¹", "8 M⁻¹ s⁻¹".
+pub fn format_rate_constant(k: f64, order: u32) -> String {
+    format!("{} {}", sig(k, 4), rate_constant(order))
+}
+
+/// A radiant power in W for reading: "175 W", "20 mW" (see [`format`]).
+pub fn format_power(watt: f64) -> String {
+    format(watt, &POWER)
+}
+
+/// A photon amount in einstein for reading: "626 µeinstein", "25.9 neinstein" (see [`format`]).
+pub fn format_photons(einstein: f64) -> String {
+    format(einstein, &EINSTEIN)
+}
+
+/// A photon flux in einstein/s for reading: "25.9 neinstein/s" (see [`format`]).
+pub fn format_photon_flux(einstein_per_s: f64) -> String {
+    format(einstein_per_s, &PHOTON_FLUX)
+}
 
 /// The unit of `ladder` for `value` by the module's rule: (internal units per display unit,
 /// spelling). Divide the value by the first to show it in the second.
@@ -107,9 +209,20 @@ pub fn power(watt: f64) -> (f64, &'static str) {
 
 /// `value` (internal unit of `ladder`) in its display unit with 3 significant figures,
 /// trailing zeros dropped: "1.5 h", "10 mM", "0 s", "NaN s".
+/// The unit is picked on the value rounded to the 3 figures shown, so 3599.99 s reads "1 h",
+/// never "60 min".
 pub fn format(value: f64, ladder: &Ladder) -> String {
-    let (f, u) = pick(value, ladder);
+    let (f, u) = pick(round_sig(value, 3), ladder);
     format!("{} {u}", sig(value / f, 3))
+}
+
+/// `v` rounded to `n` significant figures (unchanged when zero or not finite).
+fn round_sig(v: f64, n: i32) -> f64 {
+    if v == 0.0 || !v.is_finite() {
+        return v;
+    }
+    let scale = 10f64.powi(v.abs().log10().floor() as i32 - (n - 1));
+    (v / scale).round() * scale
 }
 
 /// A duration in s for reading: "1.5 h", "45 ms" (see [`format`]).
@@ -205,13 +318,18 @@ pub fn rate_constant(order: u32) -> &'static str {
 /// molar absorption coefficients in L mol⁻¹ cm⁻¹ (common practice); durations, concentrations,
 /// powers and photon fluxes by their ladders and the module's rule.
 pub fn unit(q: Option<Quantity>, magnitude: f64) -> (f64, String) {
+    unit_in(q, magnitude, EnergyUnit::KjPerMol)
+}
+
+/// [`unit`] with molar energies in `family` (a network's [`EnergyUnit`]).
+pub fn unit_in(q: Option<Quantity>, magnitude: f64, family: EnergyUnit) -> (f64, String) {
     let from = |ladder: &Ladder| {
         let (f, u) = pick(magnitude, ladder);
         (f, u.to_string())
     };
     match q {
         None => (1.0, String::new()),
-        Some(Quantity::MolarEnergy) => (1000.0, "kJ/mol".into()),
+        Some(Quantity::MolarEnergy) => (family.factor(), family.spelling().into()),
         Some(Quantity::RateConstant(n)) => (1.0, rate_constant(n).into()),
         Some(Quantity::Wavelength | Quantity::Length) if magnitude.abs() < 1e-5 => (1e-9, "nm".into()),
         Some(Quantity::Time) => from(&TIME),
@@ -226,7 +344,12 @@ pub fn unit(q: Option<Quantity>, magnitude: f64) -> (f64, String) {
 /// A value of quantity `q` given in the internal unit, in its display unit ([`unit`]):
 /// (value in the display unit, spelling).
 pub fn quantity(q: Option<Quantity>, v: f64) -> (f64, String) {
-    let (f, u) = unit(q, v);
+    quantity_in(q, v, EnergyUnit::KjPerMol)
+}
+
+/// [`quantity`] with molar energies in `family`.
+pub fn quantity_in(q: Option<Quantity>, v: f64, family: EnergyUnit) -> (f64, String) {
+    let (f, u) = unit_in(q, v, family);
     (v / f, u)
 }
 
@@ -250,10 +373,21 @@ pub fn quantity_of_spelling(unit: &str) -> Option<Quantity> {
 /// [`unit`] for values whose internal unit is spelled `spelling` ("" for a plain number); a
 /// spelling of no internal unit is kept as it is, with factor 1.
 pub fn readable_unit(spelling: &str, magnitude: f64) -> (f64, String) {
+    readable_unit_in(spelling, magnitude, EnergyUnit::KjPerMol)
+}
+
+/// [`readable_unit`] with molar energies in `family`.
+pub fn readable_unit_in(spelling: &str, magnitude: f64, family: EnergyUnit) -> (f64, String) {
     match quantity_of_spelling(spelling) {
-        Some(q) => unit(Some(q), magnitude),
+        Some(q) => unit_in(Some(q), magnitude, family),
         None => (1.0, spelling.trim().to_string()),
     }
+}
+
+/// [`readable`] with molar energies in `family`: (value in the display unit, spelling).
+pub fn readable_in(spelling: &str, v: f64, family: EnergyUnit) -> (f64, String) {
+    let (f, u) = readable_unit_in(spelling, v, family);
+    (v / f, u)
 }
 
 /// [`quantity`] for a value whose internal unit is spelled `spelling` (see [`readable_unit`]).
@@ -282,10 +416,21 @@ mod tests {
         assert_eq!(concentration(55.3), (1.0, "M"));
         assert_eq!(concentration(1e-20), (1e-12, "pM"));
         assert_eq!(photons(2.5e-4), (1e-6, "µeinstein"));
+        assert_eq!(photons(2.5), (1.0, "einstein"));
+        // No "meinstein": 25 meinstein reads 25000 µeinstein.
+        assert_eq!(photons(2.5e-2), (1e-6, "µeinstein"));
+        assert_eq!(format_photons(6.259e-4), "626 µeinstein");
+        assert_eq!(format_photon_flux(2.591e-8), "25.9 neinstein/s");
         assert_eq!(power(0.05), (1e-3, "mW"));
+        // The sun on a pool: 175 W, not "175065 mW".
+        assert_eq!(format_power(175.065), "175 W");
+        assert_eq!(format_power(3.0), "3 W");
+        assert_eq!(format_time(3.5e-15), "3.5 fs");
         assert_eq!(format_time(5400.0), "1.5 h");
         assert_eq!(format_time(7200.0), "2 h");
         assert_eq!(format_time(0.045), "45 ms");
+        assert_eq!(format_time(3599.999), "1 h");
+        assert_eq!(format_time(59.9996), "1 min");
         assert_eq!(format_concentration(0.01), "10 mM");
         assert_eq!(format_concentration(2.5e-6), "2.5 µM");
     }
@@ -350,6 +495,22 @@ mod tests {
             (&POWER, Quantity::Power),
             (&PHOTON_FLUX, Quantity::PhotonFlux),
         ];
+        for (f, u) in EINSTEIN {
+            // A photon amount has no quantity of its own: it reads back per second as a flux.
+            let v = parse(&format!("2 {u}/s"), Quantity::PhotonFlux).unwrap_or_else(|e| panic!("{u}: {e}"));
+            assert!((v - 2.0 * f).abs() <= 1e-12 * 2.0 * f, "{u}: {v}");
+        }
+        for family in [EnergyUnit::KjPerMol, EnergyUnit::KcalPerMol] {
+            let text = format_energy(98_324.0, family);
+            let v = parse(&text, Quantity::MolarEnergy).unwrap_or_else(|e| panic!("{text}: {e}"));
+            assert!((v - 98_324.0).abs() < 0.5e-3 * 98_324.0, "{text} -> {v}");
+            assert_eq!(EnergyUnit::of_text(&text), Some(family), "{text}");
+        }
+        for order in 0..=3 {
+            let text = format_rate_constant(3.695e-5, order);
+            let v = parse(&text, Quantity::RateConstant(order)).unwrap_or_else(|e| panic!("{text}: {e}"));
+            assert!((v - 3.695e-5).abs() < 1e-12, "{text} -> {v}");
+        }
         for (ladder, q) in ladders {
             for (f, u) in ladder {
                 let v = parse(&format!("2 {u}"), q).unwrap_or_else(|e| panic!("{u}: {e}"));
@@ -371,6 +532,24 @@ mod tests {
             let v = parse(&text, q).unwrap_or_else(|e| panic!("{text}: {e}"));
             assert!((v - 2.5e-3).abs() <= 1e-9 * 2.5e-3, "{text} -> {v}");
         }
+    }
+
+    #[test]
+    fn energies_stay_in_the_family_of_the_file() {
+        // 23.5 kcal/mol = 98.324 kJ/mol (thermochemical calorie, 4.184 J exactly; common practice).
+        let e = 23.5 * 4184.0;
+        assert_eq!(format_energy(e, EnergyUnit::KcalPerMol), "23.5 kcal/mol");
+        assert_eq!(
+            format_energy_beside(e, EnergyUnit::KcalPerMol),
+            "23.5 kcal/mol (98.32 kJ/mol)"
+        );
+        assert_eq!(format_energy(e, EnergyUnit::KjPerMol), "98.32 kJ/mol");
+        assert_eq!(EnergyUnit::of_text("23.5 kcal/mol"), Some(EnergyUnit::KcalPerMol));
+        assert_eq!(EnergyUnit::of_text(" 96 kJ / mol"), Some(EnergyUnit::KjPerMol));
+        assert_eq!(EnergyUnit::of_text("1.2e3 cm-1"), None);
+        assert_eq!(EnergyUnit::of_text("2 eV"), None);
+        assert_eq!(format_rate_constant(3.695e-5, 1), "3.695e-5 s⁻¹");
+        assert_eq!(format_rate_constant(8.0, 2), "8 M⁻¹ s⁻¹");
     }
 
     #[test]

@@ -178,8 +178,10 @@ impl<'a> Builder<'a> {
             levels: Vec::new(),
             graph: Default::default(),
             warnings: Vec::new(),
+            energy_unit: Default::default(),
         };
         self.evidence(doc, &mut net);
+        net.energy_unit = self.sink.energy_unit();
         // `--set` values as typed parameters, before the checks of the whole network.
         self.put_command_line(&mut net);
         super::checks::check_network(&mut self.sink, &self.at, &mut net);

@@ -12,7 +12,7 @@ mod svg;
 use crate::light::Spectrum;
 use crate::network::{Branching, Channel, Network, PhotoOutcome, PhotoStep, Target, ThermalStep, TransientKind};
 use crate::rates::RateLaw;
-use crate::units::constants::CALORIE;
+use crate::units::display::EnergyUnit;
 use crate::units::sig;
 
 /// Graphviz DOT text of the network (render it with `dot -Tsvg`, or use [`svg`] directly).
@@ -188,20 +188,21 @@ fn num(v: f64) -> String {
     }
 }
 
-/// "k = 3.7e-5 s⁻¹", then "ΔG‡ 23.5 kcal/mol" for an Eyring law or "Ea …" for Arrhenius.
-fn rate_lines(law: &RateLaw, k: f64, order: u32, temperature: f64) -> Vec<String> {
+/// "k = 3.7e-5 s⁻¹", then "ΔG‡ 23.5 kcal/mol" for an Eyring law or "Ea …" for Arrhenius, in
+/// the network's energy family.
+fn rate_lines(law: &RateLaw, k: f64, order: u32, temperature: f64, family: EnergyUnit) -> Vec<String> {
     let mut out = vec![format!(
         "k = {} {}",
         num(k),
         crate::units::display::rate_constant(order)
     )];
-    let kcal = |j: f64| sig(j / (1000.0 * CALORIE), 3);
+    let e = |j: f64| format!("{} {}", sig(j / family.factor(), 3), family.spelling());
     match *law {
         RateLaw::EyringFree { .. } | RateLaw::EyringEnthalpy { .. } => {
-            out.push(format!("ΔG‡ {} kcal/mol", kcal(law.barrier(temperature, order))));
+            out.push(format!("ΔG‡ {}", e(law.barrier(temperature, order))));
         }
-        RateLaw::Arrhenius { activation, .. } => out.push(format!("Ea {} kcal/mol", kcal(activation))),
-        RateLaw::Frequencies { barrier, .. } => out.push(format!("E0 {} kcal/mol (TST)", kcal(barrier))),
+        RateLaw::Arrhenius { activation, .. } => out.push(format!("Ea {}", e(activation))),
+        RateLaw::Frequencies { barrier, .. } => out.push(format!("E0 {} (TST)", e(barrier))),
         RateLaw::Constant(_) => {}
     }
     out
@@ -210,7 +211,13 @@ fn rate_lines(law: &RateLaw, k: f64, order: u32, temperature: f64) -> Vec<String
 /// Name and numbers of a thermal step.
 fn thermal_lines(net: &Network, step: &ThermalStep) -> Vec<String> {
     let mut out = vec![step.name.clone()];
-    out.extend(rate_lines(&step.rate, step.k, step.order, net.conditions.temperature));
+    out.extend(rate_lines(
+        &step.rate,
+        step.k,
+        step.order,
+        net.conditions.temperature,
+        net.energy_unit,
+    ));
     out
 }
 
@@ -264,15 +271,16 @@ fn channel_lines(net: &Network, c: &Channel) -> Vec<String> {
         } => vec![
             format!("hot yield {}", fraction(*f)),
             format!(
-                "E0 {} kcal/mol",
-                sig(barrier / (1000.0 * crate::units::constants::CALORIE), 3)
+                "E0 {} {}",
+                sig(barrier / net.energy_unit.factor(), 3),
+                net.energy_unit.spelling()
             ),
         ],
         Branching::Rest => vec!["rest".to_string()],
-        Branching::Rate { law, k } => rate_lines(law, *k, 1, t),
+        Branching::Rate { law, k } => rate_lines(law, *k, 1, t, net.energy_unit),
         Branching::Quenching { partner, law, k2 } => {
             let mut v = vec![format!("quenched by {}", net.species[*partner].name)];
-            v.extend(rate_lines(law, *k2, 2, t));
+            v.extend(rate_lines(law, *k2, 2, t, net.energy_unit));
             v
         }
     };
@@ -444,8 +452,9 @@ range = ["280 nm", "400 nm"]
         ] {
             assert!(all.contains(&want), "missing label {want:?} in {all:?}");
         }
-        assert!(all.iter().any(|l| l.starts_with("ΔG‡ 4 kcal/mol")), "{all:?}");
-        assert!(all.iter().any(|l| l.starts_with("Ea 14.3 kcal/mol")), "{all:?}");
+        // Two of the file's three energies are in kJ/mol: the labels follow the file's family.
+        assert!(all.iter().any(|l| l.starts_with("ΔG‡ 16.7 kJ/mol")), "{all:?}");
+        assert!(all.iter().any(|l| l.starts_with("Ea 60 kJ/mol")), "{all:?}");
         let sw = bundled()
             .into_iter()
             .find(|(f, _)| f == "photoswitch.toml")

@@ -2,12 +2,13 @@
 
 use super::escape::esc;
 use super::page::{self, num_cell, text_cell};
-use super::{TIME, pick_unit};
 use crate::study::BarrierStudy;
+use crate::units::display::{self, EnergyUnit};
 use crate::units::sig;
 
 /// The verdict table.
-pub fn section(b: &BarrierStudy, temperature: f64) -> String {
+/// Barriers in `family` (the network's), the other family beside.
+pub fn section(b: &BarrierStudy, temperature: f64, family: EnergyUnit) -> String {
     let mut s = format!(
         "<p>Every thermal step and rate channel at {} K against a window of {}, asking for a {} % chance of \
          crossing.</p>\n",
@@ -17,11 +18,9 @@ pub fn section(b: &BarrierStudy, temperature: f64) -> String {
     );
     if b.rows.is_empty() {
         s.push_str("<p class=\"missing\">No step of this network carries a rate (fixed fractions only).</p>\n");
-        s.push_str(&hot_table(b));
+        s.push_str(&hot_table(b, family));
         return s;
     }
-    let finite = b.rows.iter().map(|r| r.half_life).filter(|t| t.is_finite());
-    let (tf, tu) = pick_unit(finite.fold(0.0, f64::max), &TIME);
     let rows: Vec<String> = b
         .rows
         .iter()
@@ -36,17 +35,18 @@ pub fn section(b: &BarrierStudy, temperature: f64) -> String {
                 text_cell(&r.name),
                 num_cell(&format!(
                     "{}{}",
-                    sig(r.barrier / 1000.0, 4),
+                    sig(r.barrier / family.factor(), 4),
                     if r.barrier_given { "" } else { "*" }
                 )),
                 num_cell(&format!(
                     "{}{}",
-                    sig(r.barrier / 4184.0, 4),
+                    sig(r.barrier / family.other().factor(), 4),
                     if r.barrier_given { "" } else { "*" }
                 )),
                 num_cell(&sig(r.rate, 3)),
+                // Each half-life in its own unit: they span from fs to years in one table.
                 num_cell(&if r.half_life.is_finite() {
-                    sig(r.half_life / tf, 3)
+                    display::format_time(r.half_life)
                 } else {
                     "never".into()
                 }),
@@ -54,15 +54,19 @@ pub fn section(b: &BarrierStudy, temperature: f64) -> String {
             )
         })
         .collect();
-    let ht = format!("half-life ({tu})");
+    let (main, other) = (
+        format!("ΔG‡ ({})", family.spelling()),
+        format!("ΔG‡ ({})", family.other().spelling()),
+    );
+    let k = format!("k ({})", display::rate_constant(1));
     s.push_str(&page::table(
         "Verdict for every step with a rate",
         &[
             ("step", false),
-            ("ΔG‡ (kJ/mol)", true),
-            ("ΔG‡ (kcal/mol)", true),
-            ("k (1/s)", true),
-            (&ht, true),
+            (&main, true),
+            (&other, true),
+            (&k, true),
+            ("half-life", true),
             ("verdict", false),
         ],
         &rows,
@@ -77,12 +81,12 @@ pub fn section(b: &BarrierStudy, temperature: f64) -> String {
          quencher) at 0 M at the start is judged instead where it runs fastest in the study's kinetics run, from the \
          concentrations there (its verdict says when and at what). ΔG‡ for bimolecular steps refers to 1 mol/L. Channels set by fixed fractions carry no rate and are not listed.",
     ));
-    s.push_str(&hot_table(b));
+    s.push_str(&hot_table(b, family));
     s
 }
 
 /// The hot ground-state channels: the share that reacts before cooling (no window applies).
-fn hot_table(b: &BarrierStudy) -> String {
+fn hot_table(b: &BarrierStudy, family: EnergyUnit) -> String {
     if b.hot.is_empty() {
         return String::new();
     }
@@ -93,24 +97,29 @@ fn hot_table(b: &BarrierStudy) -> String {
             format!(
                 "{}{}{}{}{}{}{}",
                 text_cell(&r.name),
-                num_cell(&sig(r.barrier / 1000.0, 4)),
-                num_cell(&sig(r.energy / 1000.0, 4)),
+                num_cell(&sig(r.barrier / family.factor(), 4)),
+                num_cell(&sig(r.energy / family.factor(), 4)),
                 num_cell(&sig(r.rate_at_start, 3)),
-                num_cell(&sig(r.cooling * 1e12, 3)),
+                num_cell(&display::format_time(r.cooling)),
                 num_cell(&sig(r.competition(), 3)),
                 text_cell(&r.words())
             )
         })
         .collect();
+    let (e0, e) = (
+        format!("E₀ ({})", family.spelling()),
+        format!("E ({})", family.spelling()),
+    );
+    let k = format!("k(E) ({})", display::rate_constant(1));
     let mut s = page::table(
         "Hot ground-state channels: yield before cooling",
         &[
             ("channel", false),
-            ("E₀ (kJ/mol)", true),
-            ("E (kJ/mol)", true),
-            ("k(E) (1/s)", true),
-            ("τ (ps)", true),
-            ("k(E)·τ (1)", true),
+            (&e0, true),
+            (&e, true),
+            (&k, true),
+            ("τ", true),
+            ("k(E)·τ", true),
             ("verdict", false),
         ],
         &rows,

@@ -193,11 +193,14 @@ pub fn section(chain: &Result<ChainStudy, String>, closed: Option<&ClosedSummary
                     .as_ref()
                     .and_then(|b| b.get(main).copied().flatten())
                     .map(|b| if el == Some(0.0) { 0.0 } else { b });
+                let (v, u) = crate::units::display::readable_in(&x.unit, x.value, sm.energy_unit);
+                let per_barrier = per_barrier
+                    .map(|b| b * sm.energy_unit.factor() / crate::units::display::EnergyUnit::KcalPerMol.factor());
                 format!(
                     "{}{}{}{}{}{}",
                     text_cell(&x.parameter),
-                    num_cell(&sig(x.value, 4)),
-                    text_cell(&x.unit),
+                    num_cell(&sig(v, 4)),
+                    text_cell(if u.is_empty() { "—" } else { &u }),
                     num_cell(&el.map_or_else(|| "—".into(), |v| format!("{v:+.3}"))),
                     num_cell(&sig_or_dash(dy, 3)),
                     num_cell(&per_barrier.map_or_else(|| "—".into(), |v| format!("{v:+.3}")))
@@ -210,15 +213,16 @@ pub fn section(chain: &Result<ChainStudy, String>, closed: Option<&ClosedSummary
             rows.len(),
             sm.sensitivities.len()
         );
+        let per_barrier_head = format!("d ln photons / d ΔG‡ (per {})", sm.energy_unit.spelling());
         s.push_str(&page::table(
             &caption,
             &[
                 ("parameter", false),
-                ("value (unit beside)", true),
+                ("value", true),
                 ("unit", false),
-                ("d ln photons / d ln p (1)", true),
+                ("d ln photons / d ln p", true),
                 ("d yield / d p (1/unit)", true),
-                ("d ln photons / d ΔG‡ (1/(kcal/mol))", true),
+                (&per_barrier_head, true),
             ],
             &rows,
         ));

@@ -6,6 +6,7 @@ use super::page::{self, num_cell, text_cell};
 use crate::model::Model;
 use crate::network::Network;
 use crate::units::constants::{AVOGADRO, PLANCK, SPEED_OF_LIGHT};
+use crate::units::display;
 use crate::units::sig;
 
 /// Wavelength range, photon-weighted mean wavelength (m), photon flux (einstein/s) and
@@ -75,9 +76,13 @@ pub fn section(net: &Network, model: &Model) -> String {
         &[row],
     ));
     s.push_str("<h3>The light</h3>\n");
+    // One unit per column, by the display rule (the column's largest value picks it).
+    let figures: Vec<_> = (0..model.sources.len()).map(|k| source_figures(model, k)).collect();
+    let (ff, fu) = display::pick(display::largest(figures.iter().map(|f| f.3)), &display::PHOTON_FLUX);
+    let (pf, pu) = display::pick(display::largest(figures.iter().map(|f| f.4)), &display::POWER);
     let rows: Vec<String> = (0..model.sources.len())
         .map(|k| {
-            let (lo, hi, mean, flux, power) = source_figures(model, k);
+            let (lo, hi, mean, flux, power) = figures[k];
             let range = if (hi - lo).abs() < 1e-12 {
                 sig(lo * 1e9, 4)
             } else {
@@ -93,19 +98,20 @@ pub fn section(net: &Network, model: &Model) -> String {
                 } else {
                     num_cell("off")
                 },
-                num_cell(&sig(flux * 1e6, 4)),
-                num_cell(&sig(power * 1e3, 4))
+                num_cell(&sig(flux / ff, 4)),
+                num_cell(&sig(power / pf, 4))
             )
         })
         .collect();
+    let (flux_head, power_head) = (format!("photon flux ({fu})"), format!("power ({pu})"));
     s.push_str(&page::table(
         "Light sources entering the sample",
         &[
             ("source", false),
             ("wavelengths (nm)", true),
             ("photon-weighted mean (nm)", true),
-            ("photon flux (µeinstein/s)", true),
-            ("power (mW)", true),
+            (&flux_head, true),
+            (&power_head, true),
         ],
         &rows,
     ));

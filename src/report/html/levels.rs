@@ -38,13 +38,9 @@ pub fn section(c: &std::result::Result<Comparison, String>) -> String {
         })
         .collect();
     s.push_str(&format!("<ul>\n{}\n</ul>\n", notes.join("\n")));
-    // Numbers in each row's own unit (the row's largest value picks it), named in the row; the
-    // set columns are headed accordingly.
-    let heads: Vec<String> = c
-        .sets
-        .iter()
-        .map(|x| format!("{} (unit of the row)", x.label))
-        .collect();
+    // Numbers in each row's own unit (the row's largest value picks it), named in the row's
+    // "unit" column beside the key; the set columns carry only the set's label.
+    let heads: Vec<String> = c.sets.iter().map(|x| x.label.clone()).collect();
     let mut head: Vec<(&str, bool)> = vec![("key", false), ("unit", false)];
     head.extend(heads.iter().map(|l| (l.as_str(), true)));
     let rows: Vec<String> = c
@@ -53,7 +49,7 @@ pub fn section(c: &std::result::Result<Comparison, String>) -> String {
         .map(|v| {
             if v.counts.is_empty() {
                 let largest = v.values.iter().flatten().fold(0.0f64, |m, x| m.max(x.abs()));
-                let (f, u) = crate::units::display::readable_unit(v.unit, largest);
+                let (f, u) = crate::units::display::readable_unit_in(v.unit, largest, c.energy_unit);
                 let mut r = format!(
                     "{}{}",
                     text_cell(&v.key),

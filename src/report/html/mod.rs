@@ -64,7 +64,10 @@ pub fn render(net: &Network, model: &Model, study: &Study, meta: &Meta) -> Strin
         parts.push(("plan", plan::section(p)));
     }
     if let Some(b) = &study.barrier {
-        parts.push(("barriers", barrier::section(b, net.conditions.temperature)));
+        parts.push((
+            "barriers",
+            barrier::section(b, net.conditions.temperature, net.energy_unit),
+        ));
     }
     if let Some(f) = &study.fit {
         parts.push(("fit", fit::section(f)));
