@@ -28,7 +28,7 @@ pub fn settable_text(net: &Network) -> String {
     let width = ps.iter().map(|p| p.key.chars().count()).max().unwrap_or(0).min(60);
     let _ = writeln!(s, "\nsettable values (the keys of --set, --free and [[uncertain]])");
     for p in &ps {
-        let (v, unit) = display::quantity(p.quantity, p.value);
+        let (v, unit) = display::quantity_in(p.quantity, p.value, net.energy_unit);
         let shown = if unit.is_empty() {
             sig(v, 5)
         } else {

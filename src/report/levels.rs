@@ -177,7 +177,11 @@ pub fn text(name: &str, c: &Comparison) -> String {
     let widest_value = c
         .values
         .iter()
-        .flat_map(|v| v.values.iter().map(|x| set_value_text(v.unit, *x, c.energy_unit).chars().count()))
+        .flat_map(|v| {
+            v.values
+                .iter()
+                .map(|x| set_value_text(v.unit, *x, c.energy_unit).chars().count())
+        })
         .max()
         .unwrap_or(0);
     let lw = c

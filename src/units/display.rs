@@ -52,6 +52,12 @@ pub const PHOTON_FLUX: [(f64, &str); 4] = [
     (1e-12, "peinstein/s"),
 ];
 
+/// Volumes in m³ (a reactor's litres to a cuvette's microlitres).
+pub const VOLUME: [(f64, &str); 3] = [(1e-3, "L"), (1e-6, "mL"), (1e-9, "µL")];
+
+/// Lengths in m from 10 µm up (path lengths, channel sizes): m, cm, mm, µm.
+pub const LENGTH: [(f64, &str); 4] = [(1.0, "m"), (1e-2, "cm"), (1e-3, "mm"), (1e-6, "µm")];
+
 /// Radiant powers (from W).
 pub const POWER: [(f64, &str); 5] = [(1e3, "kW"), (1.0, "W"), (1e-3, "mW"), (1e-6, "µW"), (1e-9, "nW")];
 
@@ -314,7 +320,8 @@ pub fn rate_constant(order: u32) -> &'static str {
 /// number). Divide a value by the first to show it in the second.
 ///
 /// Energies in kJ/mol, entropies in J/(mol K), rate constants by order ([`rate_constant`]),
-/// lengths and wavelengths below 10 µm in nm (the trade's unit for light) and otherwise in m,
+/// lengths and wavelengths below 10 µm in nm (the trade's unit for light), longer lengths and
+/// volumes by their ladders (cm, mL),
 /// molar absorption coefficients in L mol⁻¹ cm⁻¹ (common practice); durations, concentrations,
 /// powers and photon fluxes by their ladders and the module's rule.
 pub fn unit(q: Option<Quantity>, magnitude: f64) -> (f64, String) {
@@ -332,6 +339,8 @@ pub fn unit_in(q: Option<Quantity>, magnitude: f64, family: EnergyUnit) -> (f64,
         Some(Quantity::MolarEnergy) => (family.factor(), family.spelling().into()),
         Some(Quantity::RateConstant(n)) => (1.0, rate_constant(n).into()),
         Some(Quantity::Wavelength | Quantity::Length) if magnitude.abs() < 1e-5 => (1e-9, "nm".into()),
+        Some(Quantity::Length) => from(&LENGTH),
+        Some(Quantity::Volume) => from(&VOLUME),
         Some(Quantity::Time) => from(&TIME),
         Some(Quantity::Concentration) => from(&CONCENTRATION),
         Some(Quantity::Power) => from(&POWER),
