@@ -6,7 +6,8 @@ use crate::file::data::Experiment;
 use crate::fit::mechanism::{Curve, Free};
 use crate::fit::{FitResult, lsq};
 use crate::report::csv_out::{CsvTable, sci};
-use crate::report::simulation::{CAUTIONS, PALETTE};
+use crate::report::palette;
+use crate::report::simulation::CAUTIONS;
 use crate::units::display::time as time_unit;
 use crate::units::sig;
 use plotters::prelude::*;
@@ -285,7 +286,7 @@ pub fn data_svg(title: &str, rows: &[Row], models: &[(String, Vec<Curve>)]) -> S
                 .label_style(("sans-serif", 15))
                 .draw()?;
             for (k, (e, s)) in keys.iter().enumerate() {
-                let col = PALETTE[k % PALETTE.len()];
+                let col = palette::species(k);
                 let pts: Vec<(f64, f64)> = rows
                     .iter()
                     .filter(|r| &r.0 == e && &r.2 == s)
@@ -366,7 +367,7 @@ pub fn residuals_svg(title: &str, rows: &[Row]) -> String {
                 vec![(0.0, 0.0), (t_end / tu * 1.02, 0.0)],
                 BLACK.stroke_width(1),
             ))?;
-            c.draw_series(res.iter().map(|p| Circle::new(*p, 3, PALETTE[0].filled())))?;
+            c.draw_series(res.iter().map(|p| Circle::new(*p, 3, palette::species(0).filled())))?;
             Ok(())
         };
         let _ = draw();

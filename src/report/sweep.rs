@@ -129,7 +129,7 @@ fn xy_plot(
                             .label_style(("sans-serif", 15))
                             .draw()?;
                         for (i, (name, pts)) in series.iter().enumerate() {
-                            let col = super::simulation::PALETTE[i % super::simulation::PALETTE.len()];
+                            let col = super::palette::species(i);
                             let p: Vec<(f64, f64)> = pts
                                 .iter()
                                 .cloned()
