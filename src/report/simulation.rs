@@ -491,4 +491,58 @@ mod tests {
             .expect(&text);
         assert!(line.ends_with("none formed"), "{line}");
     }
+
+    /// The stroke colours of an SVG as upper-case hex, in order of first use.
+    fn strokes(svg: &str) -> Vec<String> {
+        let mut out: Vec<String> = Vec::new();
+        for (i, _) in svg.match_indices("stroke=\"#") {
+            let c = svg[i + 9..i + 15].to_uppercase();
+            if c != "000000" && !out.contains(&c) {
+                out.push(c);
+            }
+        }
+        out
+    }
+
+    #[test]
+    fn a_species_has_one_colour_in_every_plot_of_its_network() {
+        // The side-product network: the species of index 2 is drawn in its own colour in the
+        // concentrations plot, and the absorbers in the photons plot keep theirs.
+        let (net, model, tr) = run_of("photoswitch-side-product.toml", 600.0);
+        let conc = strokes(&concentrations_svg(&net, &model, &tr, TimeAxis::Linear));
+        let phot = strokes(&photons_svg(&net, &model, &tr, TimeAxis::Linear));
+        for i in 0..model.n_species() {
+            let hex = palette::species_hex(i).trim_start_matches('#').to_uppercase();
+            assert!(conc.contains(&hex), "species {i} not in its colour");
+        }
+        for a in &model.absorbers {
+            let hex = palette::species_hex(*a).trim_start_matches('#').to_uppercase();
+            assert!(phot.contains(&hex), "absorber {a} not in its species colour");
+        }
+        // The HTML ledger uses the same table.
+        assert_eq!(palette::species(1), palette::rgb(palette::species_hex(1)));
+    }
+
+    #[test]
+    fn a_plan_plot_marks_the_target_level_and_when_it_is_reached() {
+        let (net, model, tr) = run(600.0);
+        let target = crate::plan::target::parse("Z-azo > 20 µM", &model).expect("target");
+        let svg = plan_svg(&net, &model, &tr, &target, Some(18.6));
+        assert!(svg.contains(">\ntarget\n</text>"), "no target in the legend");
+        assert!(svg.contains("reached at 18.6 s"), "no time reached");
+        let none = plan_svg(&net, &model, &tr, &target, None);
+        assert!(none.contains("not reached in the run"));
+    }
+
+    #[test]
+    fn the_two_hour_photoswitch_run_is_drawn_on_a_log_axis() {
+        // The README's run: a step at t = 0 on a linear axis.
+        let (_, model, tr) = run(7200.0);
+        assert_eq!(
+            TimeAxis::choose(false, &tr.times, &tr.states, model.n_species()),
+            TimeAxis::Automatic
+        );
+        let (_, model, tr) = run(20.0);
+        assert_eq!(TimeAxis::choose(false, &tr.times, &tr.states, model.n_species()), TimeAxis::Linear);
+    }
 }

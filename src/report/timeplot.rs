@@ -30,8 +30,8 @@ pub const COLUMNS: usize = 800;
 /// The share of the time span that counts as "the start" for [`step_like`].
 pub const EARLY_SHARE: f64 = 0.01;
 /// A curve whose largest value exceeds every other's by this factor or more dwarfs them: on one
-/// axis they would sit in its bottom tenth.
-pub const DWARF_RATIO: f64 = 10.0;
+/// axis they would sit in its bottom fifth.
+pub const DWARF_RATIO: f64 = 5.0;
 /// Tolerance, as a share of a panel's height, within which two curves coincide.
 const COINCIDE: f64 = 0.01;
 const FONT: &str = "sans-serif";
@@ -110,6 +110,34 @@ pub fn dwarfs(maxima: &[f64]) -> Vec<bool> {
         }
     }
     out
+}
+
+/// Familiar times, s: powers of ten below a minute, then minute, hour, day and year steps.
+const TIMES: [f64; 17] = [
+    1e-9, 1e-6, 1e-3, 0.01, 0.1, 1.0, 10.0, 60.0, 600.0, 3600.0, 36000.0, 86400.0, 864000.0, 8640000.0, 31557600.0,
+    315576000.0, 3155760000.0,
+];
+
+/// Labelled and light values (s) of a log time axis over `x0..x1` drawn `pixels` wide: familiar
+/// times ([`TIMES`]), thinned so labels of about 8 characters do not touch; round values of the
+/// axis' own decades when fewer than three familiar times fall inside.
+fn time_ticks(x0: f64, x1: f64, pixels: f64) -> (Vec<f64>, Vec<f64>) {
+    let inside: Vec<f64> = TIMES.iter().copied().filter(|t| *t >= x0 * (1.0 - 1e-9) && *t <= x1 * (1.0 + 1e-9)).collect();
+    let (bold, light) = ticks::log_ticks(x0, x1, pixels, false);
+    if inside.len() < 3 {
+        return (bold, light);
+    }
+    let span = (x1 / x0).log10().max(1e-12);
+    let mut kept: Vec<f64> = Vec::new();
+    for t in inside {
+        let clear = kept
+            .last()
+            .is_none_or(|&p| pixels * (t / p).log10() / span >= 9.0 * ticks::CHAR_WIDTH);
+        if clear {
+            kept.push(t);
+        }
+    }
+    (kept, light)
 }
 
 /// What is plotted: time in s, values in SI (mol/L or einstein).
@@ -349,7 +377,7 @@ fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mu
             .map(|&i| format!("{} (up to {})", p.curves[i].name, p.quantity.format(maxima[i])))
             .collect();
         notes.push(format!(
-            "{} on the upper panel's own axis: on one axis they would press the other curves into its bottom tenth.",
+            "{} on the upper panel's own axis: on one axis the other curves would sit in its bottom fifth.",
             names.join(", ")
         ));
     }
@@ -367,15 +395,14 @@ fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mu
     let legend_w = (56 + 8 * longest as u32).clamp(150, 300);
     let (chart, legend) = main.split_horizontally(w - legend_w);
 
-    let (tu, tname) = display::time(frame.x1);
+    // A log axis spans units: it runs in s and its labels name their own unit ("1 min", "1 d").
+    let (tu, tname) = if frame.log { (1.0, "") } else { display::time(frame.x1) };
     let x_desc = if frame.log {
-        format!("time ({tname}, log scale)")
+        "time (log scale)".to_string()
     } else {
         format!("time ({tname})")
     };
     let areas: Vec<DrawingArea<SVGBackend<'a>, Shift>> = if panels.len() == 2 {
-        let (ch, _) = chart.dim_in_pixel();
-        let _ = ch;
         let (upper, lower) = chart.split_vertically((main.dim_in_pixel().1 as f64 * 0.3) as u32);
         vec![upper, lower]
     } else {
@@ -394,13 +421,18 @@ fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mu
         macro_rules! lines {
             ($chart:expr) => {{
                 let mut c = $chart;
+                let xfmt = |v: &f64| if frame.log { display::format_time(*v) } else { ticks::label(*v) };
+                let yfmt = |v: &f64| ticks::label(*v);
                 let mut mesh = c.configure_mesh();
                 mesh.y_desc(y_desc.clone())
                     .label_style((FONT, 14))
-                    .x_label_formatter(&|v| ticks::label(*v))
-                    .y_label_formatter(&|v| ticks::label(*v));
+                    .x_label_formatter(&xfmt)
+                    .y_label_formatter(&yfmt);
                 if last {
                     mesh.x_desc(x_desc.clone());
+                } else {
+                    // A panel apart is short: few labels, no light grid.
+                    mesh.y_labels(4).light_line_style(TRANSPARENT);
                 }
                 mesh.draw()?;
                 for &i in &panel.members {
@@ -445,7 +477,7 @@ fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mu
             }};
         }
         if frame.log {
-            let (xb, xl) = ticks::log_ticks(x0, x1, (w - legend_w - Y_LABEL_AREA - 2 * MARGIN) as f64, false);
+            let (xb, xl) = time_ticks(x0, x1, (w - legend_w - Y_LABEL_AREA - 2 * MARGIN) as f64);
             let xaxis = (x0..x1).log_scale().with_key_points(xb).with_light_points(xl);
             lines!(b.build_cartesian_2d(xaxis, ybot..ytop)?);
         } else {
@@ -476,7 +508,8 @@ fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mu
         sample(&legend, y, ink, 1)?;
         legend.draw(&Text::new("target".to_string(), (48, y - 8), (FONT, 15)))?;
         y += 20;
-        legend.draw(&Text::new(t.text.clone(), (8, y - 8), (FONT, 13)))?;
+        let level = format!("{} ({})", t.text, p.quantity.format(t.level));
+        legend.draw(&Text::new(level, (8, y - 8), (FONT, 13)))?;
         y += 18;
         let when = match t.time {
             Some(at) => format!("reached at {}", display::format_time(at)),
@@ -548,7 +581,7 @@ mod tests {
 
     /// The x of the SVG text element whose content is `text`.
     fn text_x(svg: &str, text: &str) -> f64 {
-        let end = svg.find(&format!(">{text}</text>")).expect("text drawn");
+        let end = svg.find(&format!(">\n{text}\n</text>")).expect("text drawn");
         let start = svg[..end].rfind("<text").expect("element");
         let tag = &svg[start..end];
         let x = tag.find(" x=\"").expect("x") + 4;
