@@ -70,7 +70,8 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<Exit> {
             .filter_map(|f| f.strip_prefix(&format!("{name}:")))
             .flat_map(|k| k.split(',').map(|s| s.trim().to_string()))
             .collect();
-        let (loaded, fitted) = fit_one(file, &[], &free, &experiments, &opts).map_err(|e| run::named_error(&name, e))?;
+        let (loaded, fitted) =
+            fit_one(file, &[], &free, &experiments, &opts).map_err(|e| run::named_error(&name, e))?;
         // Species keep the colours of the first network's order in the plot.
         if species.is_empty() {
             species = loaded.species_names();

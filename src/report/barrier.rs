@@ -331,9 +331,19 @@ mod tests {
             .collect();
         let svg = k_svg(&rows, "k");
         let t = texts(&svg);
-        assert!(t.iter().all(|(x, _)| *x >= 0.0), "a label starts left of the figure: {t:?}");
-        let powers: Vec<&String> = t.iter().map(|p| &p.1).filter(|s| s.starts_with("10") && s.chars().count() > 2).collect();
+        assert!(
+            t.iter().all(|(x, _)| *x >= 0.0),
+            "a label starts left of the figure: {t:?}"
+        );
+        let powers: Vec<&String> = t
+            .iter()
+            .map(|p| &p.1)
+            .filter(|s| s.starts_with("10") && s.chars().count() > 2)
+            .collect();
         assert!(powers.len() >= 6, "{t:?}");
-        assert!(!t.iter().any(|(_, s)| s.contains("e-") || s.contains("e3")), "float labels: {t:?}");
+        assert!(
+            !t.iter().any(|(_, s)| s.contains("e-") || s.contains("e3")),
+            "float labels: {t:?}"
+        );
     }
 }

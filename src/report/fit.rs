@@ -6,11 +6,11 @@ use crate::file::data::Experiment;
 use crate::fit::mechanism::{Curve, Free};
 use crate::fit::{FitResult, lsq};
 use crate::report::csv_out::{CsvTable, sci};
-use crate::report::{palette, ticks};
-use plotters::element::DashedPathElement;
 use crate::report::simulation::CAUTIONS;
+use crate::report::{palette, ticks};
 use crate::units::display::time as time_unit;
 use crate::units::sig;
+use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 use serde_json::json;
 use std::fmt::Write;
@@ -290,7 +290,12 @@ fn short(name: &str) -> String {
 /// at the run's end (the others listed under the figure), each species in its network colour
 /// (`species`: the network's species in order; names not in it follow). `models` holds each
 /// model's curves: the first solid, the rivals (for `compare`) dashed.
-pub fn data_svg(title: &str, experiments: &[Experiment], species: &[String], models: &[(String, Vec<Curve>)]) -> String {
+pub fn data_svg(
+    title: &str,
+    experiments: &[Experiment],
+    species: &[String],
+    models: &[(String, Vec<Curve>)],
+) -> String {
     use crate::file::data::EndpointKind;
     let mut names: Vec<String> = species.to_vec();
     let mut measured: Vec<String> = Vec::new();
@@ -329,7 +334,11 @@ pub fn data_svg(title: &str, experiments: &[Experiment], species: &[String], mod
         .iter()
         .any(|e| e.endpoints.iter().any(|p| matches!(p.kind, EndpointKind::Final(_))));
     let n = drawn.len().max(1) as u32;
-    let footer = if notes.is_empty() { 0 } else { 10 + 20 * notes.len() as u32 };
+    let footer = if notes.is_empty() {
+        0
+    } else {
+        10 + 20 * notes.len() as u32
+    };
     let height = 46 + n * FIT_PANEL + footer;
     let mut svg = String::new();
     {
@@ -366,7 +375,11 @@ pub fn data_svg(title: &str, experiments: &[Experiment], species: &[String], mod
                     .iter()
                     .map(|p| p.value + if p.weighted { p.sd } else { 0.0 })
                     .chain(finals.iter().map(|f| f.1 + if f.3 { f.2 } else { 0.0 }))
-                    .chain(curves.iter().flat_map(|c| c.series.iter().flat_map(|s| s.1.iter().copied())))
+                    .chain(
+                        curves
+                            .iter()
+                            .flat_map(|c| c.series.iter().flat_map(|s| s.1.iter().copied())),
+                    )
                     .fold(0.0, f64::max)
                     .max(1e-300);
                 let (tu, tname) = time_unit(t_end);
@@ -407,8 +420,14 @@ pub fn data_svg(title: &str, experiments: &[Experiment], species: &[String], mod
                     let (lo, hi) = ((y - sd).max(0.0) * ys, (y + sd) * ys);
                     let st = col.stroke_width(1);
                     let _ = c.draw_series(std::iter::once(PathElement::new(vec![(x, lo), (x, hi)], st)));
-                    let _ = c.draw_series(std::iter::once(PathElement::new(vec![(x - cap, lo), (x + cap, lo)], st)));
-                    let _ = c.draw_series(std::iter::once(PathElement::new(vec![(x - cap, hi), (x + cap, hi)], st)));
+                    let _ = c.draw_series(std::iter::once(PathElement::new(
+                        vec![(x - cap, lo), (x + cap, lo)],
+                        st,
+                    )));
+                    let _ = c.draw_series(std::iter::once(PathElement::new(
+                        vec![(x - cap, hi), (x + cap, hi)],
+                        st,
+                    )));
                 };
                 for p in &e.points {
                     let col = colour(&p.species);

@@ -42,7 +42,11 @@ pub fn species_dash(i: usize) -> usize {
 /// A "#rrggbb" colour as plotters' RGB (black for anything else).
 pub fn rgb(hex: &str) -> RGBColor {
     let h = hex.trim_start_matches('#');
-    let c = |k: usize| h.get(k..k + 2).and_then(|s| u8::from_str_radix(s, 16).ok()).unwrap_or(0);
+    let c = |k: usize| {
+        h.get(k..k + 2)
+            .and_then(|s| u8::from_str_radix(s, 16).ok())
+            .unwrap_or(0)
+    };
     RGBColor(c(0), c(2), c(4))
 }
 

@@ -369,7 +369,13 @@ pub fn concentrations_svg(net: &Network, model: &Model, tr: &Trajectory, axis: T
 
 /// The concentrations of a plan's run with its target: the level drawn across, and the time it
 /// is reached (`time`, s) marked.
-pub fn plan_svg(net: &Network, model: &Model, tr: &Trajectory, target: &crate::plan::target::Target, time: Option<f64>) -> String {
+pub fn plan_svg(
+    net: &Network,
+    model: &Model,
+    tr: &Trajectory,
+    target: &crate::plan::target::Target,
+    time: Option<f64>,
+) -> String {
     let axis = TimeAxis::choose(false, &tr.times, &tr.states, model.n_species());
     let mut p = concentrations_plot(net, model, tr, axis);
     p.title = format!("{}: irradiation to the target", net.about.name);
@@ -543,6 +549,9 @@ mod tests {
             TimeAxis::Automatic
         );
         let (_, model, tr) = run(20.0);
-        assert_eq!(TimeAxis::choose(false, &tr.times, &tr.states, model.n_species()), TimeAxis::Linear);
+        assert_eq!(
+            TimeAxis::choose(false, &tr.times, &tr.states, model.n_species()),
+            TimeAxis::Linear
+        );
     }
 }

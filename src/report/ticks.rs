@@ -182,7 +182,10 @@ mod tests {
         assert_eq!(decades(0.5e-6, 2e11, 20).len(), 18);
         let few = decades(1e-3, 1e38, 8);
         assert!(few.len() <= 8 && few.len() >= 5, "{few:?}");
-        assert!(few.iter().all(|v| power_label(*v) == "1" || power_label(*v).starts_with("10")));
+        assert!(
+            few.iter()
+                .all(|v| power_label(*v) == "1" || power_label(*v).starts_with("10"))
+        );
     }
 
     #[test]

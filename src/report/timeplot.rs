@@ -114,15 +114,34 @@ pub fn dwarfs(maxima: &[f64]) -> Vec<bool> {
 
 /// Familiar times, s: powers of ten below a minute, then minute, hour, day and year steps.
 const TIMES: [f64; 17] = [
-    1e-9, 1e-6, 1e-3, 0.01, 0.1, 1.0, 10.0, 60.0, 600.0, 3600.0, 36000.0, 86400.0, 864000.0, 8640000.0, 31557600.0,
-    315576000.0, 3155760000.0,
+    1e-9,
+    1e-6,
+    1e-3,
+    0.01,
+    0.1,
+    1.0,
+    10.0,
+    60.0,
+    600.0,
+    3600.0,
+    36000.0,
+    86400.0,
+    864000.0,
+    8640000.0,
+    31557600.0,
+    315576000.0,
+    3155760000.0,
 ];
 
 /// Labelled and light values (s) of a log time axis over `x0..x1` drawn `pixels` wide: familiar
 /// times ([`TIMES`]), thinned so labels of about 8 characters do not touch; round values of the
 /// axis' own decades when fewer than three familiar times fall inside.
 fn time_ticks(x0: f64, x1: f64, pixels: f64) -> (Vec<f64>, Vec<f64>) {
-    let inside: Vec<f64> = TIMES.iter().copied().filter(|t| *t >= x0 * (1.0 - 1e-9) && *t <= x1 * (1.0 + 1e-9)).collect();
+    let inside: Vec<f64> = TIMES
+        .iter()
+        .copied()
+        .filter(|t| *t >= x0 * (1.0 - 1e-9) && *t <= x1 * (1.0 + 1e-9))
+        .collect();
     let (bold, light) = ticks::log_ticks(x0, x1, pixels, false);
     if inside.len() < 3 {
         return (bold, light);
@@ -312,13 +331,16 @@ fn dashes(p: &TimePlot, panels: &[Panel], frame: &Frame) -> Vec<usize> {
                 .iter()
                 .filter(|&&a| {
                     let mut compared = 0;
-                    let close = samples.iter().all(|&x| match (at(&p.curves[a].points, x), at(&p.curves[b].points, x)) {
-                        (Some(u), Some(v)) => {
-                            compared += 1;
-                            (u - v).abs() <= tol
-                        }
-                        _ => true,
-                    });
+                    let close =
+                        samples
+                            .iter()
+                            .all(|&x| match (at(&p.curves[a].points, x), at(&p.curves[b].points, x)) {
+                                (Some(u), Some(v)) => {
+                                    compared += 1;
+                                    (u - v).abs() <= tol
+                                }
+                                _ => true,
+                            });
                     close && compared > 0
                 })
                 .count();
@@ -333,7 +355,11 @@ type DrawResult<'a> = Result<(), Box<dyn std::error::Error + 'a>>;
 fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mut Layout) -> DrawResult<'a> {
     let times: Vec<f64> = p.curves.iter().flat_map(|c| c.points.iter().map(|q| q.0)).collect();
     let mut frame = Frame::of(&times, p.axis);
-    frame.x0 = times.iter().copied().filter(|t| !frame.log || *t > 0.0).fold(f64::INFINITY, f64::min);
+    frame.x0 = times
+        .iter()
+        .copied()
+        .filter(|t| !frame.log || *t > 0.0)
+        .fold(f64::INFINITY, f64::min);
     if !frame.x0.is_finite() {
         frame.x0 = 0.0;
     }
@@ -383,7 +409,11 @@ fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mu
     }
     let (w, h) = root.dim_in_pixel();
     let body = root.titled(&p.title, (FONT, 22))?;
-    let footer_h = if notes.is_empty() { 0 } else { LINE_H * notes.len() as u32 + 10 };
+    let footer_h = if notes.is_empty() {
+        0
+    } else {
+        LINE_H * notes.len() as u32 + 10
+    };
     let (main, footer) = body.split_vertically(h - TITLE_H - footer_h);
     let longest = p
         .curves
@@ -421,7 +451,13 @@ fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mu
         macro_rules! lines {
             ($chart:expr) => {{
                 let mut c = $chart;
-                let xfmt = |v: &f64| if frame.log { display::format_time(*v) } else { ticks::label(*v) };
+                let xfmt = |v: &f64| {
+                    if frame.log {
+                        display::format_time(*v)
+                    } else {
+                        ticks::label(*v)
+                    }
+                };
                 let yfmt = |v: &f64| ticks::label(*v);
                 let mut mesh = c.configure_mesh();
                 mesh.y_desc(y_desc.clone())
@@ -596,7 +632,12 @@ mod tests {
         let (svg, layout) = render_with_layout(&plot(vec![("A", 0, up), ("B", 1, down), ("S", 2, solvent)]));
         assert_eq!(layout.plots.len(), 2, "the solvent has a panel of its own");
         for r in &layout.plots {
-            assert!(layout.legend.0 >= r.2, "legend {:?} overlaps plot {:?}", layout.legend, r);
+            assert!(
+                layout.legend.0 >= r.2,
+                "legend {:?} overlaps plot {:?}",
+                layout.legend,
+                r
+            );
         }
         for name in ["A", "B", "S"] {
             assert!(text_x(&svg, name) > layout.plots[0].2 as f64);

@@ -7,9 +7,9 @@
 
 use crate::report::csv_out::{CsvTable, opt_sci, sci};
 use crate::report::simulation::CAUTIONS;
+use crate::report::{palette, ticks};
 use crate::uncertainty::{OutputSummary, QUANTILES, Record, Summary};
 use crate::units::{self, display, sig};
-use crate::report::{palette, ticks};
 use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
@@ -325,7 +325,10 @@ pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
             }
             if log {
                 let (kb, kl) = ticks::log_ticks(x0, x1, 650.0, false);
-                bars!(b.build_cartesian_2d((x0..x1).log_scale().with_key_points(kb).with_light_points(kl), 0.0..ymax)?);
+                bars!(b.build_cartesian_2d(
+                    (x0..x1).log_scale().with_key_points(kb).with_light_points(kl),
+                    0.0..ymax
+                )?);
             } else {
                 bars!(b.build_cartesian_2d(x0..x1, 0.0..ymax)?);
             }
@@ -466,7 +469,10 @@ pub fn tornado_svg(title: &str, s: &Summary) -> String {
                     let (px, py) = chart.backend_coord(&(-1.0, y + 0.5));
                     root.draw(&Text::new(label.clone(), (px - 8, py), right.clone()))?;
                     let c = if *r >= 0.0 { pos } else { neg };
-                    chart.draw_series(std::iter::once(Rectangle::new([(0.0, y + 0.15), (*r, y + 0.85)], c.filled())))?;
+                    chart.draw_series(std::iter::once(Rectangle::new(
+                        [(0.0, y + 0.15), (*r, y + 0.85)],
+                        c.filled(),
+                    )))?;
                     row += 1;
                 }
             }
@@ -590,9 +596,18 @@ uniform = ["1e-5 /s", "2e-5 /s"]
 
     #[test]
     fn parameter_keys_read_as_step_and_quantity() {
-        assert_eq!(parameter_words("transient.adduct*.channels[1].barrier"), "adduct*, channel 2: barrier");
-        assert_eq!(parameter_words("species.dinitrile.initial"), "dinitrile: initial concentration");
-        assert_eq!(parameter_words("photo.second photon.quantum_yield"), "second photon: quantum yield");
+        assert_eq!(
+            parameter_words("transient.adduct*.channels[1].barrier"),
+            "adduct*, channel 2: barrier"
+        );
+        assert_eq!(
+            parameter_words("species.dinitrile.initial"),
+            "dinitrile: initial concentration"
+        );
+        assert_eq!(
+            parameter_words("photo.second photon.quantum_yield"),
+            "second photon: quantum yield"
+        );
         assert_eq!(parameter_words("conditions.temperature"), "temperature");
         assert_eq!(parameter_words("light.\"blue LED\".power"), "blue LED: power");
     }

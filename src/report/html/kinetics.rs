@@ -20,7 +20,8 @@ pub fn section(net: &Network, model: &Model, study: &Study) -> String {
         esc(&format_time(end)),
         esc(&study.until_reason)
     );
-    let svg = inline_svg(&simulation::concentrations_svg(
+    let svg = inline_svg(
+        &simulation::concentrations_svg(
             net,
             model,
             tr,
@@ -29,7 +30,9 @@ pub fn section(net: &Network, model: &Model, study: &Study) -> String {
             } else {
                 TimeAxis::Linear
             },
-        ), "conc");
+        ),
+        "conc",
+    );
     let mut caption = String::from(
         "Concentration of every species against time, each in the colour it has in every plot of this network; \
          a species that dwarfs the rest (a solvent) is drawn in a panel of its own above them.",
