@@ -111,8 +111,9 @@ fn xy_plot(
             let pad = 0.05 * (y1 - y0);
             (y0, y1) = ((y0 - pad).max(0.0), y1 + pad);
         }
-        let draw =
-            |root: &DrawingArea<SVGBackend, plotters::coord::Shift>| -> Result<(), Box<dyn std::error::Error + '_>> {
+        let draw = |root: &DrawingArea<SVGBackend, plotters::coord::Shift>,
+                    legend: &DrawingArea<SVGBackend, plotters::coord::Shift>|
+         -> Result<(), Box<dyn std::error::Error + '_>> {
                 let mut b = ChartBuilder::on(root);
                 b.caption(title, ("sans-serif", 22))
                     .margin(16)
@@ -140,12 +141,14 @@ fn xy_plot(
                                 .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
                             c.draw_series(p.into_iter().map(|q| Circle::new(q, 3, col.filled())))?;
                         }
+                        // The legend stands in its own column right of the plot, not over the points.
                         if series.len() > 1 {
-                            c.configure_series_labels()
-                                .background_style(WHITE.mix(0.85))
-                                .border_style(BLACK)
-                                .label_font(("sans-serif", 15))
-                                .draw()?;
+                            for (i, (name, _)) in series.iter().enumerate() {
+                                let col = super::palette::species(i);
+                                let y = 60 + 22 * i as i32;
+                                legend.draw(&PathElement::new(vec![(6, y), (34, y)], col.stroke_width(3)))?;
+                                legend.draw(&Text::new(name.clone(), (42, y - 8), ("sans-serif", 15)))?;
+                            }
                         }
                     }};
                 }
@@ -172,7 +175,14 @@ fn xy_plot(
                 }
                 Ok(())
             };
-        let _ = draw(&root);
+        let legend_w = if series.len() > 1 {
+            let longest = series.iter().map(|s| s.0.chars().count()).max().unwrap_or(0) as u32;
+            (50 + 8 * longest).clamp(120, 260)
+        } else {
+            0
+        };
+        let (plot, legend) = root.split_horizontally(900 - legend_w);
+        let _ = draw(&plot, &legend);
         let _ = root.present();
     }
     svg
