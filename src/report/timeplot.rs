@@ -352,7 +352,9 @@ fn dashes(p: &TimePlot, panels: &[Panel], frame: &Frame) -> Vec<usize> {
 
 type DrawResult<'a> = Result<(), Box<dyn std::error::Error + 'a>>;
 
-fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mut Layout) -> DrawResult<'a> {
+/// The time frame of `p`'s curves, their largest values and the panels they go on (the
+/// dwarfing curves' panel first, when there is one).
+fn arrange(p: &TimePlot) -> (Frame, Vec<f64>, Vec<Panel>) {
     let times: Vec<f64> = p.curves.iter().flat_map(|c| c.points.iter().map(|q| q.0)).collect();
     let mut frame = Frame::of(&times, p.axis);
     frame.x0 = times
@@ -386,9 +388,12 @@ fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mu
         panels.push(panel_of((0..p.curves.len()).filter(|&i| big[i]).collect()));
     }
     panels.push(panel_of((0..p.curves.len()).filter(|&i| !big[i]).collect()));
-    let dash = dashes(p, &panels, &frame);
+    (frame, maxima, panels)
+}
 
-    // Notes: the caller's, then why the axis is logarithmic, then which curves have a panel apart.
+/// The footer notes: the caller's, then why the axis is logarithmic, then which curves have a
+/// panel apart.
+fn notes_of(p: &TimePlot, maxima: &[f64], panels: &[Panel]) -> Vec<String> {
     let mut notes = p.notes.clone();
     if p.axis == TimeAxis::Automatic {
         notes.push(format!(
@@ -407,6 +412,14 @@ fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mu
             names.join(", ")
         ));
     }
+    notes
+}
+
+fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mut Layout) -> DrawResult<'a> {
+    let (frame, maxima, panels) = arrange(p);
+    let dash = dashes(p, &panels, &frame);
+
+    let notes = notes_of(p, &maxima, &panels);
     let (w, h) = root.dim_in_pixel();
     let body = root.titled(&p.title, (FONT, 22))?;
     let footer_h = if notes.is_empty() {
@@ -521,9 +534,17 @@ fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mu
         }
     }
 
-    // The legend column: one line sample and name per curve, then the target.
     let (lx, ly) = legend.get_pixel_range();
     layout.legend = (lx.start, ly.start, lx.end, ly.end);
+    draw_legend(&legend, p, &dash)?;
+    for (k, n) in notes.iter().enumerate() {
+        footer.draw(&Text::new(n.clone(), (16, 4 + LINE_H as i32 * k as i32), (FONT, 13)))?;
+    }
+    Ok(())
+}
+
+/// The legend column: one line sample and name per curve, then the target.
+fn draw_legend<'a>(legend: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, dash: &[usize]) -> DrawResult<'a> {
     let mut y = MARGIN as i32 + 8;
     let sample = |area: &DrawingArea<SVGBackend<'a>, Shift>, y: i32, colour: RGBColor, d: usize| -> DrawResult<'a> {
         let pts = vec![(6, y), (40, y)];
@@ -534,14 +555,14 @@ fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mu
         Ok(())
     };
     for (i, c) in p.curves.iter().enumerate() {
-        sample(&legend, y, c.colour, dash[i])?;
+        sample(legend, y, c.colour, dash[i])?;
         legend.draw(&Text::new(c.name.clone(), (48, y - 8), (FONT, 15)))?;
         y += 22;
     }
     if let Some(t) = &p.target {
         y += 8;
         let ink = palette::rgb(palette::INK_HEX);
-        sample(&legend, y, ink, 1)?;
+        sample(legend, y, ink, 1)?;
         legend.draw(&Text::new("target".to_string(), (48, y - 8), (FONT, 15)))?;
         y += 20;
         let level = format!("{} ({})", t.text, p.quantity.format(t.level));
@@ -552,9 +573,6 @@ fn draw<'a>(root: &DrawingArea<SVGBackend<'a>, Shift>, p: &TimePlot, layout: &mu
             None => "not reached in the run".to_string(),
         };
         legend.draw(&Text::new(when, (8, y - 8), (FONT, 13)))?;
-    }
-    for (k, n) in notes.iter().enumerate() {
-        footer.draw(&Text::new(n.clone(), (16, 4 + LINE_H as i32 * k as i32), (FONT, 13)))?;
     }
     Ok(())
 }
