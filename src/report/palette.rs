@@ -20,8 +20,11 @@ pub const GREY_HEX: &str = "#8f979d";
 /// Light brown of transmitted light.
 pub const TAN_HEX: &str = "#b08d57";
 
+/// A line pattern: (dash, gap) in px, or None for a solid line.
+pub type Dash = Option<(u32, u32)>;
+
 /// Dash patterns (dash, gap) in px; the first is a solid line.
-pub const DASHES: [Option<(u32, u32)>; 4] = [None, Some((9, 5)), Some((2, 4)), Some((14, 4))];
+pub const DASHES: [Dash; 4] = [None, Some((9, 5)), Some((2, 4)), Some((14, 4))];
 
 /// The hex colour of the species with index `i` in its network.
 pub fn species_hex(i: usize) -> &'static str {

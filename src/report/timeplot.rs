@@ -614,7 +614,10 @@ mod tests {
         assert_eq!(dwarfs(&[1.0, 0.5, 1e-4, 2e-4]), vec![true, true, false, false]);
     }
 
-    fn plot(curves: Vec<(&str, usize, Vec<(f64, f64)>)>) -> TimePlot {
+    /// A curve for a test: name, species index, points.
+    type Spec<'a> = (&'a str, usize, Vec<(f64, f64)>);
+
+    fn plot(curves: Vec<Spec>) -> TimePlot {
         TimePlot {
             title: "test".into(),
             quantity: Quantity::Concentration,

@@ -271,7 +271,7 @@ pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
             (n, format!("beyond {h} (no line)"))
         })
         .collect();
-    let marks: Vec<(f64, &str, Option<(u32, u32)>)> = x
+    let marks: Vec<(f64, &str, palette::Dash)> = x
         .quantiles
         .iter()
         .filter_map(|(q, val)| {
