@@ -99,6 +99,8 @@ pub struct FitStudy {
     pub network: String,
     /// The experiments fitted.
     pub experiments: Vec<Experiment>,
+    /// The network's species in order (their plot colours follow it).
+    pub species: Vec<String>,
     /// The fit of this network.
     pub fitted: Fitted,
     /// Rival networks (name, fit), each with its own `[fit] free` list.
@@ -135,6 +137,7 @@ pub fn fit_study(
     });
     Ok(FitStudy {
         network: network.to_string(),
+        species: net.species.iter().map(|s| s.name.clone()).collect(),
         experiments,
         fitted,
         rivals,

@@ -62,6 +62,7 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<Exit> {
         }
     }
     let mut fits = Vec::new();
+    let mut species: Vec<String> = Vec::new();
     for file in &a.files {
         let name = file.display().to_string();
         let free: Vec<String> = a
@@ -70,7 +71,12 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<Exit> {
             .filter_map(|f| f.strip_prefix(&format!("{name}:")))
             .flat_map(|k| k.split(',').map(|s| s.trim().to_string()))
             .collect();
-        let (_, fitted) = fit_one(file, &a.set, &free, &experiments, &opts).map_err(|e| run::named_error(&name, e))?;
+        let (loaded, fitted) =
+            fit_one(file, &a.set, &free, &experiments, &opts).map_err(|e| run::named_error(&name, e))?;
+        // Species keep the colours of the first network's order in the plot.
+        if species.is_empty() {
+            species = loaded.species_names();
+        }
         fits.push((name, fitted));
     }
     let cmp = run::Comparison::new(fits, &experiments);
@@ -86,10 +92,6 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<Exit> {
     let disagreement = cmp.ranking.disagreement.as_deref();
     let text = rf::compare_text(&ranked, disagreement);
     let json = rf::compare_json(&ranked, disagreement);
-    let rows = match cmp.best() {
-        Some((_, best)) => rf::rows(&experiments, &best.predicted),
-        None => Vec::new(),
-    };
     let models: Vec<(String, Vec<_>)> = cmp
         .ranked()
         .into_iter()
@@ -104,7 +106,7 @@ pub fn run(a: &CompareArgs) -> photoledger::Result<Exit> {
     )?;
     write_atomic(
         &folder.join("fits.svg"),
-        rf::data_svg("data and each network's fit", &rows, &models).as_bytes(),
+        rf::data_svg("data and each network's fit", &experiments, &species, &models).as_bytes(),
     )?;
     folder.commit()?;
     if a.output.json {

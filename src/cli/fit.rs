@@ -181,7 +181,7 @@ pub fn run(a: &FitArgs) -> photoledger::Result<Exit> {
     let title = format!("{stem}: data and fit");
     write_atomic(
         &folder.join("fit.svg"),
-        rf::data_svg(&title, &rows, &[(stem.clone(), curves)]).as_bytes(),
+        rf::data_svg(&title, &experiments, &loaded.species_names(), &[(stem.clone(), curves)]).as_bytes(),
     )?;
     write_atomic(
         &folder.join("residuals.svg"),

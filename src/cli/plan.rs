@@ -289,7 +289,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
     )?;
     write_atomic(
         &folder.join("concentrations.svg"),
-        simulation::concentrations_svg(&net, &run_model, &result.trajectory, false).as_bytes(),
+        simulation::plan_svg(&net, &run_model, &result.trajectory, &result.target, result.time).as_bytes(),
     )?;
     folder.commit()?;
     if a.output.json {

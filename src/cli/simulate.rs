@@ -7,6 +7,7 @@ use photoledger::Error;
 use photoledger::file::folder::Folder;
 use photoledger::kinetics::{self, Method, Options, Stop};
 use photoledger::model::Model;
+use photoledger::report::timeplot::TimeAxis;
 use photoledger::report::{simulation, write_atomic, write_atomic_with};
 use photoledger::units::{self, Quantity};
 use std::io::IsTerminal;
@@ -44,6 +45,9 @@ pub struct SimulateArgs {
     #[command(flatten)]
     pub daylight: DaylightArgs,
 }
+
+/// Output times of the log-spaced run drawn when a run is a step at its start.
+const PLOT_POINTS: usize = 400;
 
 /// Read "NAME < LEVEL" or "NAME > LEVEL" (the planning target syntax) into an event.
 fn parse_stop(text: &str, model: &Model) -> photoledger::Result<kinetics::Event> {
@@ -102,13 +106,28 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<Exit> {
         simulation::write_photons_csv(&model, &tr, w)
     })?;
     write_atomic(&folder.join("summary.json"), json.as_bytes())?;
+    // A run that is a step at its start is plotted on a log time axis, from a second run
+    // with log-spaced output times (the files keep the times asked for; `timeplot`).
+    let axis = TimeAxis::choose(a.log_time, &tr.times, &tr.states, model.n_species());
+    let stepped = (axis == TimeAxis::Automatic)
+        .then(|| {
+            let log = Options {
+                log_time: true,
+                outputs: PLOT_POINTS,
+                ..opts.clone()
+            };
+            kinetics::simulate(&model, &log, &mut |_| {})
+        })
+        // Should that run fail, the plot is drawn from the run itself on the same log axis.
+        .and_then(Result::ok);
+    let shown = stepped.as_ref().unwrap_or(&tr);
     write_atomic(
         &folder.join("concentrations.svg"),
-        simulation::concentrations_svg(&net, &model, &tr, a.log_time).as_bytes(),
+        simulation::concentrations_svg(&net, &model, shown, axis).as_bytes(),
     )?;
     write_atomic(
         &folder.join("photons.svg"),
-        simulation::photons_svg(&net, &model, &tr, a.log_time).as_bytes(),
+        simulation::photons_svg(&net, &model, shown, axis).as_bytes(),
     )?;
     folder.commit()?;
     // Warnings about the run come before its results, like the network's.

@@ -40,6 +40,15 @@ pub struct Loaded {
 }
 
 impl Loaded {
+    /// The names of the `[[species]]` entries, in file order (the network's species order).
+    pub fn species_names(&self) -> Vec<String> {
+        self.doc
+            .species
+            .iter()
+            .filter_map(|s| s.get_ref().name.as_ref().map(|n| n.get_ref().clone()))
+            .collect()
+    }
+
     /// The keys a fit frees: `given` ones (trimmed, empty ones dropped), else the file's
     /// `[fit] free` list.
     pub fn free_keys(&self, given: &[String]) -> Vec<String> {

@@ -4,6 +4,7 @@
 
 use crate::barrier::{HotVerdict, KRow, Verdict};
 use crate::report::csv_out::CsvTable;
+use crate::report::{palette, ticks};
 use crate::units::display::{self, EnergyUnit};
 use crate::units::{Quantity, parse, sig};
 use plotters::prelude::*;
@@ -240,43 +241,51 @@ pub fn k_svg(rows: &[KRow], title: &str) -> String {
             .collect();
         let all: Vec<f64> = rho.iter().chain(&w).map(|p| p.1).collect();
         let (slo, shi) = positive(&all);
+        // Decades labelled as powers of ten ("10⁻⁶"): short labels that stay inside the figure.
+        let (kb, sb) = (ticks::decades(klo, khi, 8), ticks::decades(slo, shi, 9));
         let draw = || -> Result<(), Box<dyn std::error::Error + '_>> {
             let mut c = ChartBuilder::on(&upper)
                 .caption(title, ("sans-serif", 22))
                 .margin(16)
                 .x_label_area_size(44)
                 .y_label_area_size(80)
-                .build_cartesian_2d(x0..x1, (klo..khi).log_scale())?;
+                .build_cartesian_2d(x0..x1, (klo..khi).log_scale().with_key_points(kb.clone()))?;
             c.configure_mesh()
                 .x_desc("E above the reactant zero-point level (kJ/mol)")
                 .y_desc(format!("k(E) ({}, log scale)", display::rate_constant(1)))
+                .x_label_formatter(&|v| ticks::label(*v))
+                .y_label_formatter(&|v| ticks::power_label(*v))
                 .label_style(("sans-serif", 15))
                 .draw()?;
-            c.draw_series(LineSeries::new(ks.clone(), RGBColor(31, 119, 180).stroke_width(2)))?;
+            c.draw_series(LineSeries::new(ks.clone(), palette::species(0).stroke_width(2)))?;
+            // The legend of the lower panel stands above its plotted area, not over the curves.
+            let red = palette::species(1);
+            let green = palette::species(2);
+            let entries = [
+                ("ρ(E), reactant states per cm-1", red),
+                ("W(E), reactant sum of states", green),
+            ];
+            let mut lx = 100;
+            for (name, col) in entries {
+                lower.draw(&PathElement::new(vec![(lx, 12), (lx + 30, 12)], col.stroke_width(3)))?;
+                lower.draw(&Text::new(name, (lx + 38, 4), ("sans-serif", 15)))?;
+                lx += 60 + 8 * name.chars().count() as i32;
+            }
             let mut d = ChartBuilder::on(&lower)
                 .margin(16)
+                .margin_top(30)
                 .x_label_area_size(44)
                 .y_label_area_size(80)
-                .build_cartesian_2d(x0..x1, (slo..shi).log_scale())?;
+                .build_cartesian_2d(x0..x1, (slo..shi).log_scale().with_key_points(sb.clone()))?;
             d.configure_mesh()
                 .x_desc("E (kJ/mol)")
                 .y_desc("ρ (per cm-1) and W (log scale)")
+                .x_label_formatter(&|v| ticks::label(*v))
+                .y_label_formatter(&|v| ticks::power_label(*v))
                 .label_style(("sans-serif", 15))
                 .draw()?;
-            let red = RGBColor(214, 39, 40);
-            let green = RGBColor(44, 160, 44);
-            d.draw_series(LineSeries::new(rho.clone(), red.stroke_width(2)))?
-                .label("ρ(E), reactant states per cm-1")
-                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], red.stroke_width(3)));
-            d.draw_series(LineSeries::new(w.clone(), green.stroke_width(2)))?
-                .label("W(E), reactant sum of states")
-                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], green.stroke_width(3)));
-            d.configure_series_labels()
-                .background_style(WHITE.mix(0.85))
-                .border_style(BLACK)
-                .label_font(("sans-serif", 15))
-                .position(SeriesLabelPosition::LowerRight)
-                .draw()?;
+            d.draw_series(LineSeries::new(rho.clone(), red.stroke_width(2)))?;
+            d.draw_series(LineSeries::new(w.clone(), green.stroke_width(2)))?;
             Ok(())
         };
         let _ = draw();
@@ -306,6 +315,54 @@ mod tests {
         assert_eq!(
             energy(23.5 * 4184.0, EnergyUnit::KcalPerMol),
             "23.5 kcal/mol (98.32 kJ/mol)"
+        );
+    }
+
+    /// The x of every text element of an SVG, with its text.
+    fn texts(svg: &str) -> Vec<(f64, String)> {
+        svg.match_indices("<text")
+            .map(|(i, _)| {
+                let tag = &svg[i..];
+                let x = tag.find(" x=\"").map(|k| k + 4).unwrap_or(0);
+                let x: f64 = tag[x..].split('"').next().and_then(|v| v.parse().ok()).unwrap_or(-1.0);
+                let body = tag.find('>').map(|k| k + 1).unwrap_or(0);
+                let end = tag.find("</text>").unwrap_or(body);
+                (x, tag[body..end].trim().to_string())
+            })
+            .collect()
+    }
+
+    #[test]
+    fn k_of_e_ticks_are_powers_of_ten_inside_the_figure() {
+        // k(E) over 13 decades and sums of states over 38: labels written out in full used to
+        // run off the left edge ("9.9999999998e-5").
+        let rows: Vec<KRow> = (0..200)
+            .map(|i| {
+                let e = 2000.0 * i as f64;
+                KRow {
+                    energy: e,
+                    rate: (e > 120e3).then(|| 1e-6 * 10f64.powf((e - 120e3) / 280e3 * 13.0)),
+                    density: 10f64.powf(e / 400e3 * 36.0) / 11.96,
+                    sum: 10f64.powf(e / 400e3 * 38.0),
+                    ts_sum: 1.0,
+                }
+            })
+            .collect();
+        let svg = k_svg(&rows, "k");
+        let t = texts(&svg);
+        assert!(
+            t.iter().all(|(x, _)| *x >= 0.0),
+            "a label starts left of the figure: {t:?}"
+        );
+        let powers: Vec<&String> = t
+            .iter()
+            .map(|p| &p.1)
+            .filter(|s| s.starts_with("10") && s.chars().count() > 2)
+            .collect();
+        assert!(powers.len() >= 6, "{t:?}");
+        assert!(
+            !t.iter().any(|(_, s)| s.contains("e-") || s.contains("e3")),
+            "float labels: {t:?}"
         );
     }
 }

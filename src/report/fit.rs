@@ -6,9 +6,10 @@ use crate::file::data::Experiment;
 use crate::fit::mechanism::{Curve, Free};
 use crate::fit::{FitResult, lsq};
 use crate::report::csv_out::{CsvTable, sci};
-use crate::report::simulation::PALETTE;
+use crate::report::{palette, ticks};
 use crate::units::display::time as time_unit;
 use crate::units::sig;
+use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 use serde_json::json;
 use std::fmt::Write;
@@ -242,101 +243,251 @@ pub fn residuals_csv(rows: &[Row]) -> String {
     table.finish()
 }
 
-/// SVG of data (points) against fitted curves, one colour per (experiment, species); `models`
-/// holds each model's curves (one model for `fit`, several for `compare`, drawn dashed after the first).
-pub fn data_svg(title: &str, rows: &[Row], models: &[(String, Vec<Curve>)]) -> String {
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
-        let _ = root.fill(&WHITE);
-        let t_end = rows.iter().map(|r| r.1).fold(0.0, f64::max).max(1e-30);
-        let (tu, tname) = time_unit(t_end);
-        let yields = rows.iter().all(|r| r.6);
-        let ymax = rows
-            .iter()
-            .map(|r| r.3.max(r.4))
-            .chain(models.iter().flat_map(|m| {
-                m.1.iter()
-                    .flat_map(|c| c.series.iter().flat_map(|s| s.1.iter().copied()))
-            }))
-            .fold(0.0, f64::max)
-            .max(1e-300);
-        let (ys, yl) = if yields {
-            (1.0, "yield (fraction)".to_string())
-        } else {
-            let (v, u) = readable("M", ymax);
-            (v / ymax, format!("concentration ({u})"))
-        };
-        let mut keys: Vec<(String, String)> = Vec::new();
-        for r in rows {
-            if !keys.contains(&(r.0.clone(), r.2.clone())) {
-                keys.push((r.0.clone(), r.2.clone()));
+/// An end point as a line of text: what it measures and its value (± sd when given).
+fn endpoint_text(e: &crate::file::data::Endpoint) -> String {
+    use crate::file::data::EndpointKind as K;
+    let pm = |v: String, sd: String| if e.weighted { format!("{v} ± {sd}") } else { v };
+    match &e.kind {
+        K::Final(s) => format!(
+            "final {s} = {}",
+            pm(
+                crate::units::display::format_concentration(e.value),
+                crate::units::display::format_concentration(e.sd)
+            )
+        ),
+        K::Yield(s) => format!("yield of {s} = {}", pm(sig(e.value, 4), sig(e.sd, 2))),
+        K::Ratio(a, b) => format!("{a} / {b} at the end = {}", pm(sig(e.value, 4), sig(e.sd, 2))),
+        K::QuantumYield(s) => format!("quantum yield of {s} = {}", pm(sig(e.value, 4), sig(e.sd, 2))),
+        K::ReactantQuantumYield(a, b) => format!(
+            "quantum yield of {a} per photon absorbed by {b} = {}",
+            pm(sig(e.value, 4), sig(e.sd, 2))
+        ),
+        K::Lifetime(s) => format!(
+            "lifetime of {s} = {}",
+            pm(
+                crate::units::display::format_time(e.value),
+                crate::units::display::format_time(e.sd)
+            )
+        ),
+    }
+}
+
+/// Figure width, px, and the legend column's width.
+const FIT_W: u32 = 980;
+const FIT_LEGEND: u32 = 250;
+/// Height of one experiment's panel, px.
+const FIT_PANEL: u32 = 290;
+
+/// The file name of a network path without folder and extension, for legends.
+fn short(name: &str) -> String {
+    std::path::Path::new(name)
+        .file_stem()
+        .map_or(name.to_string(), |s| s.to_string_lossy().to_string())
+}
+
+/// SVG of data against fitted curves, one panel per experiment with its own time axis: measured
+/// points with error bars (when the file gave sd), end points measured as concentrations drawn
+/// at the run's end (the others listed under the figure), each species in its network colour
+/// (`species`: the network's species in order; names not in it follow). `models` holds each
+/// model's curves: the first solid, the rivals (for `compare`) dashed.
+pub fn data_svg(
+    title: &str,
+    experiments: &[Experiment],
+    species: &[String],
+    models: &[(String, Vec<Curve>)],
+) -> String {
+    use crate::file::data::EndpointKind;
+    let mut names: Vec<String> = species.to_vec();
+    let mut measured: Vec<String> = Vec::new();
+    for e in experiments {
+        let finals = e.endpoints.iter().filter_map(|p| match &p.kind {
+            EndpointKind::Final(s) => Some(s),
+            _ => None,
+        });
+        for s in e.points.iter().map(|p| &p.species).chain(finals) {
+            if !names.contains(s) {
+                names.push(s.clone());
+            }
+            if !measured.contains(s) {
+                measured.push(s.clone());
             }
         }
+    }
+    let colour = |s: &str| palette::species(names.iter().position(|n| n == s).unwrap_or(0));
+    let dash_of = |m: usize| palette::DASHES[m % palette::DASHES.len()];
+    let notes: Vec<String> = experiments
+        .iter()
+        .flat_map(|e| {
+            e.endpoints
+                .iter()
+                .filter(|p| !matches!(p.kind, EndpointKind::Final(_)))
+                .map(move |p| format!("{}, end point: {}", e.name, endpoint_text(p)))
+        })
+        .collect();
+    // A panel for each experiment with something to draw against time; end points of other
+    // kinds are listed under the figure.
+    let drawn: Vec<&Experiment> = experiments
+        .iter()
+        .filter(|e| !e.points.is_empty() || e.endpoints.iter().any(|p| matches!(p.kind, EndpointKind::Final(_))))
+        .collect();
+    let any_final = drawn
+        .iter()
+        .any(|e| e.endpoints.iter().any(|p| matches!(p.kind, EndpointKind::Final(_))));
+    let n = drawn.len().max(1) as u32;
+    let footer = if notes.is_empty() {
+        0
+    } else {
+        10 + 20 * notes.len() as u32
+    };
+    let height = 46 + n * FIT_PANEL + footer;
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (FIT_W, height)).into_drawing_area();
+        let _ = root.fill(&WHITE);
         let draw = || -> std::result::Result<(), Box<dyn std::error::Error + '_>> {
-            let mut c = ChartBuilder::on(&root)
-                .caption(title, ("sans-serif", 22))
-                .margin(16)
-                .x_label_area_size(48)
-                .y_label_area_size(80)
-                .build_cartesian_2d(0.0..t_end / tu * 1.02, 0.0..ymax * ys * 1.08)?;
-            c.configure_mesh()
-                .x_desc(format!("time ({tname})"))
-                .y_desc(yl.clone())
-                .label_style(("sans-serif", 15))
-                .draw()?;
-            for (k, (e, s)) in keys.iter().enumerate() {
-                let col = PALETTE[k % PALETTE.len()];
-                let pts: Vec<(f64, f64)> = rows
+            let body = root.titled(title, ("sans-serif", 22))?;
+            let (main, foot) = body.split_vertically(n * FIT_PANEL);
+            let (plots, legend) = main.split_horizontally(FIT_W - FIT_LEGEND);
+            let panels = plots.split_evenly((n as usize, 1));
+            for (e, area) in drawn.iter().zip(&panels) {
+                let curves: Vec<&Curve> = models
                     .iter()
-                    .filter(|r| &r.0 == e && &r.2 == s)
-                    .map(|r| (r.1 / tu, r.3 * ys))
+                    .flat_map(|m| m.1.iter().filter(|c| c.experiment == e.name))
                     .collect();
-                c.draw_series(pts.iter().map(|p| Circle::new(*p, 3, col.filled())))?
-                    .label(format!("{s} ({e})"))
-                    .legend(move |(x, y)| Circle::new((x + 8, y), 3, col.filled()));
-                for (m, (_, curves)) in models.iter().enumerate() {
-                    for cv in curves.iter().filter(|cv| &cv.experiment == e) {
-                        for (_, v, _) in cv.series.iter().filter(|x| &x.0 == s) {
+                let t_end = e
+                    .points
+                    .iter()
+                    .map(|p| p.time)
+                    .chain(curves.iter().flat_map(|c| c.times.iter().copied()))
+                    .fold(0.0, f64::max)
+                    .max(1e-30);
+                let finals: Vec<(String, f64, f64, bool)> = e
+                    .endpoints
+                    .iter()
+                    .filter_map(|p| match &p.kind {
+                        EndpointKind::Final(s) => Some((s.clone(), p.value, p.sd, p.weighted)),
+                        _ => None,
+                    })
+                    .collect();
+                let yields = !e.points.is_empty() && e.points.iter().all(|p| p.is_yield);
+                let ymax = e
+                    .points
+                    .iter()
+                    .map(|p| p.value + if p.weighted { p.sd } else { 0.0 })
+                    .chain(finals.iter().map(|f| f.1 + if f.3 { f.2 } else { 0.0 }))
+                    .chain(
+                        curves
+                            .iter()
+                            .flat_map(|c| c.series.iter().flat_map(|s| s.1.iter().copied())),
+                    )
+                    .fold(0.0, f64::max)
+                    .max(1e-300);
+                let (tu, tname) = time_unit(t_end);
+                let (ys, yl) = if yields {
+                    (1.0, "yield (fraction)".to_string())
+                } else {
+                    let (v, u) = readable("M", ymax);
+                    (v / ymax, format!("concentration ({u})"))
+                };
+                let xr = t_end / tu * 1.03;
+                let mut c = ChartBuilder::on(area)
+                    .caption(format!("experiment “{}”", e.name), ("sans-serif", 16))
+                    .margin(10)
+                    .x_label_area_size(40)
+                    .y_label_area_size(80)
+                    .build_cartesian_2d(0.0..xr, 0.0..ymax * ys * 1.08)?;
+                c.configure_mesh()
+                    .x_desc(format!("time ({tname})"))
+                    .y_desc(yl.clone())
+                    .x_label_formatter(&|v| ticks::label(*v))
+                    .y_label_formatter(&|v| ticks::label(*v))
+                    .label_style(("sans-serif", 13))
+                    .draw()?;
+                for (m, (_, mc)) in models.iter().enumerate() {
+                    for cv in mc.iter().filter(|cv| cv.experiment == e.name) {
+                        for (s, v, _) in &cv.series {
                             let line: Vec<(f64, f64)> = cv.times.iter().zip(v).map(|(t, y)| (t / tu, y * ys)).collect();
-                            let style = if m == 0 {
-                                col.stroke_width(2)
-                            } else {
-                                col.mix(0.6).stroke_width(1)
+                            let style = colour(s).stroke_width(2);
+                            match dash_of(m) {
+                                None => c.draw_series(LineSeries::new(line, style))?,
+                                Some((on, off)) => c.draw_series(DashedLineSeries::new(line, on, off, style))?,
                             };
-                            if m == 0 {
-                                c.draw_series(LineSeries::new(line, style))?;
-                            } else {
-                                c.draw_series(DashedLineSeries::new(line, 6, 4, style))?;
-                            }
                         }
                     }
                 }
+                let cap = xr * 0.006;
+                let bar = |c: &mut ChartContext<'_, SVGBackend<'_>, _>, x: f64, y: f64, sd: f64, col: RGBColor| {
+                    let (lo, hi) = ((y - sd).max(0.0) * ys, (y + sd) * ys);
+                    let st = col.stroke_width(1);
+                    let _ = c.draw_series(std::iter::once(PathElement::new(vec![(x, lo), (x, hi)], st)));
+                    let _ = c.draw_series(std::iter::once(PathElement::new(
+                        vec![(x - cap, lo), (x + cap, lo)],
+                        st,
+                    )));
+                    let _ = c.draw_series(std::iter::once(PathElement::new(
+                        vec![(x - cap, hi), (x + cap, hi)],
+                        st,
+                    )));
+                };
+                for p in &e.points {
+                    let col = colour(&p.species);
+                    let x = p.time / tu;
+                    if p.weighted {
+                        bar(&mut c, x, p.value, p.sd, col);
+                    }
+                    c.draw_series(std::iter::once(Circle::new((x, p.value * ys), 3, col.filled())))?;
+                }
+                for (s, v, sd, weighted) in &finals {
+                    let col = colour(s);
+                    let x = t_end / tu;
+                    if *weighted {
+                        bar(&mut c, x, *v, *sd, col);
+                    }
+                    c.draw_series(std::iter::once(TriangleMarker::new((x, v * ys), 7, col.filled())))?;
+                }
             }
-            c.configure_series_labels()
-                .background_style(WHITE.mix(0.85))
-                .border_style(BLACK)
-                .label_font(("sans-serif", 14))
-                .draw()?;
+            // Legend: species colours, the marks, the models' line styles.
+            let ink = palette::rgb(palette::INK_HEX);
+            let mut y = 24;
+            let text = |y: i32, t: String| Text::new(t, (44, y - 8), ("sans-serif", 14));
+            for s in &measured {
+                let col = colour(s);
+                legend.draw(&PathElement::new(vec![(6, y), (34, y)], col.stroke_width(3)))?;
+                legend.draw(&text(y, s.clone()))?;
+                y += 22;
+            }
+            y += 8;
+            legend.draw(&Circle::new((20, y), 3, ink.filled()))?;
+            legend.draw(&PathElement::new(vec![(20, y - 8), (20, y + 8)], ink.stroke_width(1)))?;
+            legend.draw(&text(y, "measured ± sd".into()))?;
+            y += 22;
+            if any_final {
+                legend.draw(&TriangleMarker::new((20, y), 7, ink.filled()))?;
+                legend.draw(&text(y, "end point".into()))?;
+                y += 22;
+            }
+            y += 8;
+            for (m, (name, _)) in models.iter().enumerate() {
+                let pts = vec![(6, y), (34, y)];
+                match dash_of(m) {
+                    None => legend.draw(&PathElement::new(pts, ink.stroke_width(2)))?,
+                    Some((on, off)) => legend.draw(&DashedPathElement::new(pts, on, off, ink.stroke_width(2)))?,
+                }
+                let label = if models.len() > 1 && m == 0 {
+                    format!("{} (best)", short(name))
+                } else {
+                    short(name)
+                };
+                legend.draw(&text(y, label))?;
+                y += 22;
+            }
+            for (k, note) in notes.iter().enumerate() {
+                foot.draw(&Text::new(note.clone(), (16, 6 + 20 * k as i32), ("sans-serif", 13)))?;
+            }
             Ok(())
         };
         let _ = draw();
         let _ = root.present();
-    }
-    if models.len() > 1 {
-        let names: Vec<String> = models
-            .iter()
-            .enumerate()
-            .map(|(i, m)| format!("{} {}", if i == 0 { "solid:" } else { "dashed:" }, m.0))
-            .collect();
-        svg = svg.replacen(
-            "</svg>",
-            &format!(
-                "<text x=\"120\" y=\"552\" font-family=\"sans-serif\" font-size=\"13\">{}</text></svg>",
-                crate::report::html::escape::esc(&names.join("; "))
-            ),
-            1,
-        );
     }
     svg
 }
@@ -367,7 +518,7 @@ pub fn residuals_svg(title: &str, rows: &[Row]) -> String {
                 vec![(0.0, 0.0), (t_end / tu * 1.02, 0.0)],
                 BLACK.stroke_width(1),
             ))?;
-            c.draw_series(res.iter().map(|p| Circle::new(*p, 3, PALETTE[0].filled())))?;
+            c.draw_series(res.iter().map(|p| Circle::new(*p, 3, palette::species(0).filled())))?;
             Ok(())
         };
         let _ = draw();

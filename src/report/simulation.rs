@@ -5,7 +5,9 @@ use crate::kinetics::{Method, Stop, Trajectory};
 use crate::model::Model;
 use crate::network::Network;
 use crate::report::csv_out::{CsvTable, opt_sci, sci};
-use plotters::prelude::*;
+use crate::report::palette;
+use crate::report::timeplot::{self, Curve, Frame, Quantity, TimeAxis, TimePlot};
+use plotters::style::RGBColor;
 use serde::Serialize;
 
 /// The cautions every report carries.
@@ -307,143 +309,113 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
     }
 }
 
-pub(crate) const PALETTE: [RGBColor; 10] = [
-    RGBColor(31, 119, 180),
-    RGBColor(214, 39, 40),
-    RGBColor(44, 160, 44),
-    RGBColor(148, 103, 189),
-    RGBColor(255, 127, 14),
-    RGBColor(23, 190, 207),
-    RGBColor(140, 86, 75),
-    RGBColor(227, 119, 194),
-    RGBColor(127, 127, 127),
-    RGBColor(188, 189, 34),
-];
-
-/// A line plot of several series against time, as SVG text.
-fn line_plot(title: &str, y_label: &str, times: &[f64], series: &[(String, Vec<f64>)], log_time: bool) -> String {
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
-        let _ = root.fill(&WHITE);
-        let t_end = times.iter().cloned().fold(0.0, f64::max).max(1e-30);
-        let (tu, tname) = crate::units::display::time(t_end);
-        let ymax = series.iter().flat_map(|s| s.1.iter()).cloned().fold(0.0, f64::max);
-        let (yscale, yunit) = scale_for(ymax, y_label);
-        let ytop = if ymax > 0.0 { ymax / yscale * 1.05 } else { 1.0 };
-        let draw =
-            |root: &DrawingArea<SVGBackend, plotters::coord::Shift>| -> Result<(), Box<dyn std::error::Error + '_>> {
-                let mut b = ChartBuilder::on(root);
-                b.caption(title, ("sans-serif", 22))
-                    .margin(16)
-                    .x_label_area_size(48)
-                    .y_label_area_size(80);
-                let xs: Vec<f64> = times.iter().map(|t| t / tu).collect();
-                let pts =
-                    |s: &Vec<f64>| -> Vec<(f64, f64)> { xs.iter().zip(s).map(|(x, y)| (*x, y / yscale)).collect() };
-                // The same mesh, lines and legend on either time axis.
-                macro_rules! lines {
-                    ($chart:expr, $x_desc:expr, $keep:expr) => {{
-                        let mut c = $chart;
-                        c.configure_mesh()
-                            .x_desc($x_desc)
-                            .y_desc(yunit.clone())
-                            .label_style(("sans-serif", 15))
-                            .draw()?;
-                        for (i, (name, s)) in series.iter().enumerate() {
-                            let col = PALETTE[i % PALETTE.len()];
-                            let p: Vec<(f64, f64)> = pts(s).into_iter().filter($keep).collect();
-                            c.draw_series(LineSeries::new(p, col.stroke_width(2)))?
-                                .label(name.clone())
-                                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
-                        }
-                        c.configure_series_labels()
-                            .background_style(WHITE.mix(0.85))
-                            .border_style(BLACK)
-                            .label_font(("sans-serif", 15))
-                            .draw()?;
-                    }};
-                }
-                let x1 = xs.iter().cloned().fold(0.0, f64::max).max(1e-30);
-                if log_time {
-                    let x0 = xs.iter().cloned().filter(|x| *x > 0.0).fold(f64::INFINITY, f64::min);
-                    lines!(
-                        b.build_cartesian_2d((x0..x1).log_scale(), 0.0..ytop)?,
-                        format!("time ({tname}, log scale)"),
-                        |p: &(f64, f64)| p.0 > 0.0
-                    );
-                } else {
-                    lines!(
-                        b.build_cartesian_2d(0.0..x1, 0.0..ytop)?,
-                        format!("time ({tname})"),
-                        |_: &(f64, f64)| true
-                    );
-                }
-                Ok(())
-            };
-        let _ = draw(&root);
-        let _ = root.present();
+/// One decimated curve per series: `values(k)` gives the value of every series at output `k`,
+/// computed once per output time (a million output times are never held twice).
+fn curves_of(
+    times: &[f64],
+    axis: TimeAxis,
+    styles: Vec<(String, RGBColor, usize)>,
+    mut values: impl FnMut(usize, &mut Vec<f64>),
+) -> Vec<Curve> {
+    let frame = Frame::of(times, axis);
+    let mut ds: Vec<_> = styles.iter().map(|_| frame.decimator()).collect();
+    let mut row = Vec::with_capacity(styles.len());
+    for (k, t) in times.iter().enumerate() {
+        row.clear();
+        values(k, &mut row);
+        for (d, v) in ds.iter_mut().zip(&row) {
+            d.push(*t, *v);
+        }
     }
-    svg
+    styles
+        .into_iter()
+        .zip(ds)
+        .map(|((name, colour, dash), d)| Curve {
+            name,
+            colour,
+            dash,
+            points: d.finish(),
+        })
+        .collect()
 }
 
-/// A scale factor and axis label for values up to `max` of a quantity named `label`
-/// ("concentration" in mol/L, otherwise photons in einstein).
-fn scale_for(max: f64, label: &str) -> (f64, String) {
-    let (name, (f, u)) = if label == "concentration" {
-        ("concentration", crate::units::display::concentration(max))
-    } else {
-        ("photons", crate::units::display::photons(max))
-    };
-    (f, format!("{name} ({u})"))
+/// The concentrations plot of a run, every species in its network colour.
+pub fn concentrations_plot(net: &Network, model: &Model, tr: &Trajectory, axis: TimeAxis) -> TimePlot {
+    // Round-off within the run's absolute tolerance of zero is drawn at 0: it neither dips
+    // below the axis nor, when a curve is all round-off, picks the axis unit (the CSV keeps it).
+    // A species that dwarfs the rest (a solvent) gets a panel of its own (`timeplot`).
+    let zero = tr.zero_within();
+    let n = model.n_species();
+    let styles = (0..n)
+        .map(|i| (model.species[i].clone(), palette::species(i), palette::species_dash(i)))
+        .collect();
+    let curves = curves_of(&tr.times, axis, styles, |k, row| {
+        row.extend(tr.states[k][..n].iter().map(|c| zero.shown(*c)))
+    });
+    TimePlot {
+        title: format!("{}: concentrations", net.about.name),
+        quantity: Quantity::Concentration,
+        axis,
+        curves,
+        notes: Vec::new(),
+        target: None,
+    }
 }
 
 /// concentrations.svg.
-pub fn concentrations_svg(net: &Network, model: &Model, tr: &Trajectory, log_time: bool) -> String {
-    // Solvent-like species (1 M or more at the start) would flatten every other curve.
-    // Round-off within the run's absolute tolerance of zero is drawn at 0: it neither dips
-    // below the axis nor, when a curve is all round-off, picks the axis unit (the CSV keeps it).
-    let zero = tr.zero_within();
-    let series: Vec<(String, Vec<f64>)> = (0..model.n_species())
-        .filter(|&i| model.initial[i] < 1.0)
-        .map(|i| {
-            (
-                model.species[i].clone(),
-                tr.series(i).into_iter().map(|c| zero.shown(c)).collect(),
-            )
-        })
-        .collect();
-    line_plot(
-        &format!("{}: concentrations", net.about.name),
-        "concentration",
-        &tr.times,
-        &series,
-        log_time,
-    )
+pub fn concentrations_svg(net: &Network, model: &Model, tr: &Trajectory, axis: TimeAxis) -> String {
+    timeplot::render(&concentrations_plot(net, model, tr, axis))
 }
 
-/// photons.svg: cumulative photons incident, absorbed by each species, background and transmitted.
-pub fn photons_svg(net: &Network, model: &Model, tr: &Trajectory, log_time: bool) -> String {
-    let ledgers: Vec<Ledger> = (0..tr.times.len()).map(|k| tr.ledger(model, k)).collect();
-    let mut series = vec![(
-        "incident".to_string(),
-        ledgers.iter().map(|l| l.incident).collect::<Vec<_>>(),
-    )];
-    for (k, a) in model.absorbers.iter().enumerate() {
-        series.push((
+/// The concentrations of a plan's run with its target: the level drawn across, and the time it
+/// is reached (`time`, s) marked.
+pub fn plan_svg(
+    net: &Network,
+    model: &Model,
+    tr: &Trajectory,
+    target: &crate::plan::target::Target,
+    time: Option<f64>,
+) -> String {
+    let axis = TimeAxis::choose(false, &tr.times, &tr.states, model.n_species());
+    let mut p = concentrations_plot(net, model, tr, axis);
+    p.title = format!("{}: irradiation to the target", net.about.name);
+    p.target = Some(timeplot::Target {
+        curve: target.species,
+        level: target.level,
+        time,
+        text: target.text.clone(),
+    });
+    timeplot::render(&p)
+}
+
+/// photons.svg: cumulative photons incident, absorbed by each species (in its colour),
+/// background and transmitted.
+pub fn photons_svg(net: &Network, model: &Model, tr: &Trajectory, axis: TimeAxis) -> String {
+    let mut styles = vec![("incident".to_string(), palette::rgb(palette::INK_HEX), 0)];
+    for a in &model.absorbers {
+        styles.push((
             format!("absorbed by {}", model.species[*a]),
-            ledgers.iter().map(|l| l.by_absorber[k].absorbed).collect(),
+            palette::species(*a),
+            palette::species_dash(*a),
         ));
     }
-    series.push(("background".into(), ledgers.iter().map(|l| l.background()).collect()));
-    series.push(("transmitted".into(), ledgers.iter().map(|l| l.transmitted()).collect()));
-    line_plot(
-        &format!("{}: where the photons went", net.about.name),
-        "photons",
-        &tr.times,
-        &series,
-        log_time,
-    )
+    styles.push(("background".into(), palette::rgb(palette::GREY_HEX), 0));
+    styles.push(("transmitted".into(), palette::rgb(palette::TAN_HEX), 0));
+    let curves = curves_of(&tr.times, axis, styles, |k, row| {
+        let l: Ledger = tr.ledger(model, k);
+        row.push(l.incident);
+        row.extend(l.by_absorber.iter().map(|a| a.absorbed));
+        row.push(l.background());
+        row.push(l.transmitted());
+    });
+    timeplot::render(&TimePlot {
+        title: format!("{}: where the photons went", net.about.name),
+        quantity: Quantity::Photons,
+        axis,
+        curves,
+        notes: Vec::new(),
+        target: None,
+    })
 }
 
 #[cfg(test)]
@@ -472,7 +444,7 @@ mod tests {
     fn the_plot_axis_and_the_summary_table_of_one_run_use_the_same_units() {
         // A 2 h run: the old axis rule (3 h and above for h) drew it in min while the table said h.
         let (net, model, tr) = run(7200.0);
-        let svg = concentrations_svg(&net, &model, &tr, false);
+        let svg = concentrations_svg(&net, &model, &tr, TimeAxis::Linear);
         let s = summary(&net, &model, &tr, 1e-6, 1e-12);
         let table = crate::report::summary::run_summary(&s);
         assert!(svg.contains("time (h)"), "axis not in h");
@@ -497,9 +469,9 @@ mod tests {
                 z[i] = 0.0;
             }
         }
-        let noisy = concentrations_svg(&net, &model, &tr, false);
+        let noisy = concentrations_svg(&net, &model, &tr, TimeAxis::Linear);
         assert!(!noisy.contains("fM"), "round-off picked the axis unit");
-        assert_eq!(noisy, concentrations_svg(&net, &model, &zeros, false));
+        assert_eq!(noisy, concentrations_svg(&net, &model, &zeros, TimeAxis::Linear));
         // The CSV keeps the raw numbers.
         assert!(concentrations_csv(&model, &tr).contains("-7e-13"));
     }
@@ -524,5 +496,62 @@ mod tests {
             .find(|l| l.trim_start().starts_with(&name))
             .expect(&text);
         assert!(line.ends_with("none formed"), "{line}");
+    }
+
+    /// The stroke colours of an SVG as upper-case hex, in order of first use.
+    fn strokes(svg: &str) -> Vec<String> {
+        let mut out: Vec<String> = Vec::new();
+        for (i, _) in svg.match_indices("stroke=\"#") {
+            let c = svg[i + 9..i + 15].to_uppercase();
+            if c != "000000" && !out.contains(&c) {
+                out.push(c);
+            }
+        }
+        out
+    }
+
+    #[test]
+    fn a_species_has_one_colour_in_every_plot_of_its_network() {
+        // The side-product network: the species of index 2 is drawn in its own colour in the
+        // concentrations plot, and the absorbers in the photons plot keep theirs.
+        let (net, model, tr) = run_of("photoswitch-side-product.toml", 600.0);
+        let conc = strokes(&concentrations_svg(&net, &model, &tr, TimeAxis::Linear));
+        let phot = strokes(&photons_svg(&net, &model, &tr, TimeAxis::Linear));
+        for i in 0..model.n_species() {
+            let hex = palette::species_hex(i).trim_start_matches('#').to_uppercase();
+            assert!(conc.contains(&hex), "species {i} not in its colour");
+        }
+        for a in &model.absorbers {
+            let hex = palette::species_hex(*a).trim_start_matches('#').to_uppercase();
+            assert!(phot.contains(&hex), "absorber {a} not in its species colour");
+        }
+        // The HTML ledger uses the same table.
+        assert_eq!(palette::species(1), palette::rgb(palette::species_hex(1)));
+    }
+
+    #[test]
+    fn a_plan_plot_marks_the_target_level_and_when_it_is_reached() {
+        let (net, model, tr) = run(600.0);
+        let target = crate::plan::target::parse("Z-azo > 20 µM", &model).expect("target");
+        let svg = plan_svg(&net, &model, &tr, &target, Some(18.6));
+        assert!(svg.contains(">\ntarget\n</text>"), "no target in the legend");
+        assert!(svg.contains("reached at 18.6 s"), "no time reached");
+        let none = plan_svg(&net, &model, &tr, &target, None);
+        assert!(none.contains("not reached in the run"));
+    }
+
+    #[test]
+    fn the_two_hour_photoswitch_run_is_drawn_on_a_log_axis() {
+        // The README's run: a step at t = 0 on a linear axis.
+        let (_, model, tr) = run(7200.0);
+        assert_eq!(
+            TimeAxis::choose(false, &tr.times, &tr.states, model.n_species()),
+            TimeAxis::Automatic
+        );
+        let (_, model, tr) = run(20.0);
+        assert_eq!(
+            TimeAxis::choose(false, &tr.times, &tr.states, model.n_species()),
+            TimeAxis::Linear
+        );
     }
 }

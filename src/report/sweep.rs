@@ -111,68 +111,78 @@ fn xy_plot(
             let pad = 0.05 * (y1 - y0);
             (y0, y1) = ((y0 - pad).max(0.0), y1 + pad);
         }
-        let draw =
-            |root: &DrawingArea<SVGBackend, plotters::coord::Shift>| -> Result<(), Box<dyn std::error::Error + '_>> {
-                let mut b = ChartBuilder::on(root);
-                b.caption(title, ("sans-serif", 22))
-                    .margin(16)
-                    .x_label_area_size(48)
-                    .y_label_area_size(80);
-                macro_rules! go {
-                    ($chart:expr) => {{
-                        let mut c = $chart;
-                        c.configure_mesh()
-                            .x_desc(x.0)
-                            .y_desc(y.0)
-                            .x_label_formatter(&|v| ticks::label(*v))
-                            .y_label_formatter(&|v| ticks::label(*v))
-                            .label_style(("sans-serif", 15))
-                            .draw()?;
-                        for (i, (name, pts)) in series.iter().enumerate() {
-                            let col = super::simulation::PALETTE[i % super::simulation::PALETTE.len()];
-                            let p: Vec<(f64, f64)> = pts
-                                .iter()
-                                .cloned()
-                                .filter(|p| (!x.1 || p.0 > 0.0) && (!y.1 || p.1 > 0.0) && p.1.is_finite())
-                                .collect();
-                            c.draw_series(LineSeries::new(p.clone(), col.stroke_width(2)))?
-                                .label(name.clone())
-                                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
-                            c.draw_series(p.into_iter().map(|q| Circle::new(q, 3, col.filled())))?;
+        let draw = |root: &DrawingArea<SVGBackend, plotters::coord::Shift>,
+                    legend: &DrawingArea<SVGBackend, plotters::coord::Shift>|
+         -> Result<(), Box<dyn std::error::Error + '_>> {
+            let mut b = ChartBuilder::on(root);
+            b.caption(title, ("sans-serif", 22))
+                .margin(16)
+                .x_label_area_size(48)
+                .y_label_area_size(80);
+            macro_rules! go {
+                ($chart:expr) => {{
+                    let mut c = $chart;
+                    c.configure_mesh()
+                        .x_desc(x.0)
+                        .y_desc(y.0)
+                        .x_label_formatter(&|v| ticks::label(*v))
+                        .y_label_formatter(&|v| ticks::label(*v))
+                        .label_style(("sans-serif", 15))
+                        .draw()?;
+                    for (i, (name, pts)) in series.iter().enumerate() {
+                        let col = super::palette::species(i);
+                        let p: Vec<(f64, f64)> = pts
+                            .iter()
+                            .cloned()
+                            .filter(|p| (!x.1 || p.0 > 0.0) && (!y.1 || p.1 > 0.0) && p.1.is_finite())
+                            .collect();
+                        c.draw_series(LineSeries::new(p.clone(), col.stroke_width(2)))?
+                            .label(name.clone())
+                            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(3)));
+                        c.draw_series(p.into_iter().map(|q| Circle::new(q, 3, col.filled())))?;
+                    }
+                    // The legend stands in its own column right of the plot, not over the points.
+                    if series.len() > 1 {
+                        for (i, (name, _)) in series.iter().enumerate() {
+                            let col = super::palette::species(i);
+                            let y = 60 + 22 * i as i32;
+                            legend.draw(&PathElement::new(vec![(6, y), (34, y)], col.stroke_width(3)))?;
+                            legend.draw(&Text::new(name.clone(), (42, y - 8), ("sans-serif", 15)))?;
                         }
-                        if series.len() > 1 {
-                            c.configure_series_labels()
-                                .background_style(WHITE.mix(0.85))
-                                .border_style(BLACK)
-                                .label_font(("sans-serif", 15))
-                                .draw()?;
-                        }
-                    }};
-                }
-                // Log axes carry round values as labels, never overlapping (`ticks`).
-                let (xb, xl) = ticks::log_ticks(x0, x1, X_AXIS_PX, false);
-                let (yb, yl) = ticks::log_ticks(y0, y1, Y_AXIS_PX, true);
-                let xlog = || {
-                    (x0..x1)
-                        .log_scale()
-                        .with_key_points(xb.clone())
-                        .with_light_points(xl.clone())
-                };
-                let ylog = || {
-                    (y0..y1)
-                        .log_scale()
-                        .with_key_points(yb.clone())
-                        .with_light_points(yl.clone())
-                };
-                match (x.1, y.1) {
-                    (true, true) => go!(b.build_cartesian_2d(xlog(), ylog())?),
-                    (true, false) => go!(b.build_cartesian_2d(xlog(), y0..y1)?),
-                    (false, true) => go!(b.build_cartesian_2d(x0..x1, ylog())?),
-                    (false, false) => go!(b.build_cartesian_2d(x0..x1, y0..y1)?),
-                }
-                Ok(())
+                    }
+                }};
+            }
+            // Log axes carry round values as labels, never overlapping (`ticks`).
+            let (xb, xl) = ticks::log_ticks(x0, x1, X_AXIS_PX, false);
+            let (yb, yl) = ticks::log_ticks(y0, y1, Y_AXIS_PX, true);
+            let xlog = || {
+                (x0..x1)
+                    .log_scale()
+                    .with_key_points(xb.clone())
+                    .with_light_points(xl.clone())
             };
-        let _ = draw(&root);
+            let ylog = || {
+                (y0..y1)
+                    .log_scale()
+                    .with_key_points(yb.clone())
+                    .with_light_points(yl.clone())
+            };
+            match (x.1, y.1) {
+                (true, true) => go!(b.build_cartesian_2d(xlog(), ylog())?),
+                (true, false) => go!(b.build_cartesian_2d(xlog(), y0..y1)?),
+                (false, true) => go!(b.build_cartesian_2d(x0..x1, ylog())?),
+                (false, false) => go!(b.build_cartesian_2d(x0..x1, y0..y1)?),
+            }
+            Ok(())
+        };
+        let legend_w = if series.len() > 1 {
+            let longest = series.iter().map(|s| s.0.chars().count()).max().unwrap_or(0) as u32;
+            (50 + 8 * longest).clamp(120, 260)
+        } else {
+            0
+        };
+        let (plot, legend) = root.split_horizontally(900 - legend_w);
+        let _ = draw(&plot, &legend);
         let _ = root.present();
     }
     svg

@@ -27,7 +27,54 @@ const GAP: f64 = 6.0;
 /// The text of a tick label: 4 significant figures, no float noise, no trailing zeros ("0.3",
 /// "10", "2.5e-5").
 pub fn label(v: f64) -> String {
-    sig(v, 4)
+    let s = sig(v, 4);
+    // Exponent form keeps no trailing zeros either: "1e-5", not "1.000e-5".
+    match s.split_once('e') {
+        Some((m, e)) if m.contains('.') => format!("{}e{e}", m.trim_end_matches('0').trim_end_matches('.')),
+        _ => s,
+    }
+}
+
+/// Whole powers of ten within `lo..hi` (both > 0), every one or every second, third, … so that
+/// at most `most` remain (`common practice`: a log axis spanning many decades labels decades).
+pub fn decades(lo: f64, hi: f64, most: usize) -> Vec<f64> {
+    if !(lo > 0.0 && hi > lo && hi.is_finite()) {
+        return Vec::new();
+    }
+    let (k0, k1) = (lo.log10().ceil() as i32, hi.log10().floor() as i32);
+    let n = (k1 - k0 + 1).max(0) as usize;
+    let step = n.div_ceil(most.max(1)).max(1) as i32;
+    let first = k0 + (k0.rem_euclid(step) != 0) as i32 * (step - k0.rem_euclid(step));
+    (first..=k1).step_by(step as usize).map(|k| decimal(1.0, k)).collect()
+}
+
+/// A power of ten as it is printed: "10⁻⁶", "10³⁸", "1", "10".
+pub fn power_label(v: f64) -> String {
+    let k = v.log10().round() as i32;
+    match k {
+        0 => "1".into(),
+        1 => "10".into(),
+        _ => {
+            let sup: String = k
+                .to_string()
+                .chars()
+                .map(|c| match c {
+                    '-' => '⁻',
+                    '0' => '⁰',
+                    '1' => '¹',
+                    '2' => '²',
+                    '3' => '³',
+                    '4' => '⁴',
+                    '5' => '⁵',
+                    '6' => '⁶',
+                    '7' => '⁷',
+                    '8' => '⁸',
+                    _ => '⁹',
+                })
+                .collect();
+            format!("10{sup}")
+        }
+    }
 }
 
 /// The value `m`·10^`k` as the double nearest to its decimal spelling (3e-1 is 0.3, not
@@ -126,6 +173,20 @@ fn thin(values: Vec<f64>, position: impl Fn(f64) -> f64, vertical: bool) -> Vec<
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn decades_are_labelled_as_powers_of_ten_and_thinned() {
+        assert_eq!(label(1e-5), "1e-5");
+        assert_eq!(power_label(1e-6), "10⁻⁶");
+        assert_eq!(power_label(1e38), "10³⁸");
+        assert_eq!(decades(0.5e-6, 2e11, 20).len(), 18);
+        let few = decades(1e-3, 1e38, 8);
+        assert!(few.len() <= 8 && few.len() >= 5, "{few:?}");
+        assert!(
+            few.iter()
+                .all(|v| power_label(*v) == "1" || power_label(*v).starts_with("10"))
+        );
+    }
 
     #[test]
     fn labels_are_round_numbers_within_a_decade_and_across_decades() {

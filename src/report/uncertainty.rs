@@ -6,8 +6,10 @@
 //! CSV and JSON keep the internal (SI) values with their unit named beside them.
 
 use crate::report::csv_out::{CsvTable, opt_sci, sci};
+use crate::report::{palette, ticks};
 use crate::uncertainty::{OutputSummary, QUANTILES, Record, Summary};
 use crate::units::{self, display, sig};
+use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 use std::fmt::Write;
@@ -254,38 +256,103 @@ pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
         with_unit(&x.column.name, &unit),
         if log { " (log scale)" } else { "" }
     );
+    // Bin edges back in the value (bins are even in log10 of the value on a log axis).
+    let edge = |i: usize| {
+        let e = lo + i as f64 * w;
+        if log { 10f64.powf(e) } else { e }
+    };
+    let (x0, x1) = (edge(0), edge(bins));
+    // Quantiles beyond the horizon (not reached by then) have no line but a legend entry.
+    let beyond: Vec<(&str, String)> = [(0.025, "2.5 % quantile"), (0.5, "median"), (0.975, "97.5 % quantile")]
+        .into_iter()
+        .filter(|(q, _)| x.beyond_horizon.contains(q))
+        .map(|(_, n)| {
+            let h = horizon_text(x, per, &unit).unwrap_or_else(|| "the horizon".into());
+            (n, format!("beyond {h} (no line)"))
+        })
+        .collect();
+    let marks: Vec<(f64, &str, palette::Dash)> = x
+        .quantiles
+        .iter()
+        .filter_map(|(q, val)| {
+            let val = (*val)? / per;
+            let (name, dash) = if *q == 0.5 {
+                ("median", None)
+            } else if *q == 0.025 {
+                ("2.5 % quantile", Some((8, 5)))
+            } else if *q == 0.975 {
+                ("97.5 % quantile", Some((2, 4)))
+            } else {
+                return None;
+            };
+            (!log || val > 0.0).then_some((val, name, dash))
+        })
+        .collect();
     {
-        let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
+        let root = SVGBackend::with_string(&mut svg, (960, 560)).into_drawing_area();
         let _ = root.fill(&WHITE);
         let draw = || -> Result<(), Box<dyn std::error::Error + '_>> {
-            let mut chart = ChartBuilder::on(&root)
-                .caption(title, ("sans-serif", 22))
-                .margin(16)
-                .x_label_area_size(48)
-                .y_label_area_size(70)
-                .build_cartesian_2d(lo..hi, 0.0..ymax)?;
-            chart
-                .configure_mesh()
-                .x_desc(x_desc.as_str())
-                .y_desc("samples")
-                .x_label_formatter(&|a| sig(if log { 10f64.powf(*a) } else { *a }, 3))
-                .y_label_formatter(&|c| format!("{c:.0}"))
-                .label_style(("sans-serif", 15))
-                .draw()?;
-            let col = RGBColor(31, 119, 180);
-            chart.draw_series(counts.iter().enumerate().map(|(i, &c)| {
-                let a = lo + i as f64 * w;
-                Rectangle::new([(a, 0.0), (a + w, c as f64)], col.filled())
-            }))?;
-            let mark = RGBColor(214, 39, 40);
-            for (q, val) in &x.quantiles {
-                if let Some(val) = val
-                    && (*q == 0.025 || *q == 0.5 || *q == 0.975)
-                    && (!log || *val > 0.0)
-                {
-                    let a = tx(*val / per);
-                    chart.draw_series(LineSeries::new([(a, 0.0), (a, ymax)], mark.stroke_width(2)))?;
+            let body = root.titled(title, ("sans-serif", 20))?;
+            let (plot, legend) = body.split_horizontally(790);
+            let mut b = ChartBuilder::on(&plot);
+            b.margin(16).x_label_area_size(48).y_label_area_size(70);
+            let col = palette::species(0);
+            let mark = palette::rgb(palette::INK_HEX);
+            macro_rules! bars {
+                ($chart:expr) => {{
+                    let mut chart = $chart;
+                    chart
+                        .configure_mesh()
+                        .x_desc(x_desc.as_str())
+                        .y_desc("samples")
+                        .x_label_formatter(&|a| ticks::label(*a))
+                        .y_label_formatter(&|c| format!("{c:.0}"))
+                        .label_style(("sans-serif", 15))
+                        .draw()?;
+                    chart.draw_series(counts.iter().enumerate().map(|(i, &c)| {
+                        Rectangle::new([(edge(i), 0.0), (edge(i + 1), c as f64)], col.mix(0.8).filled())
+                    }))?;
+                    for (val, _, dash) in &marks {
+                        let line = vec![(*val, 0.0), (*val, ymax)];
+                        match dash {
+                            None => chart.draw_series(LineSeries::new(line, mark.stroke_width(2)))?,
+                            Some((on, off)) => {
+                                chart.draw_series(DashedLineSeries::new(line, *on, *off, mark.stroke_width(2)))?
+                            }
+                        };
+                    }
+                }};
+            }
+            if log {
+                let (kb, kl) = ticks::log_ticks(x0, x1, 650.0, false);
+                bars!(b.build_cartesian_2d(
+                    (x0..x1).log_scale().with_key_points(kb).with_light_points(kl),
+                    0.0..ymax
+                )?);
+            } else {
+                bars!(b.build_cartesian_2d(x0..x1, 0.0..ymax)?);
+            }
+            // The legend names the lines, beside the plot.
+            let mut y = 30;
+            for (val, name, dash) in &marks {
+                let pts = vec![(4, y), (34, y)];
+                match dash {
+                    None => legend.draw(&PathElement::new(pts, mark.stroke_width(2)))?,
+                    Some((on, off)) => legend.draw(&DashedPathElement::new(pts, *on, *off, mark.stroke_width(2)))?,
                 }
+                legend.draw(&Text::new(name.to_string(), (40, y - 9), ("sans-serif", 14)))?;
+                let shown = if unit.is_empty() {
+                    ticks::label(*val)
+                } else {
+                    format!("{} {unit}", ticks::label(*val))
+                };
+                legend.draw(&Text::new(shown, (40, y + 8), ("sans-serif", 13)))?;
+                y += 44;
+            }
+            for (name, b) in &beyond {
+                legend.draw(&Text::new(name.to_string(), (40, y - 9), ("sans-serif", 14)))?;
+                legend.draw(&Text::new(b.clone(), (40, y + 8), ("sans-serif", 13)))?;
+                y += 44;
             }
             Ok(())
         };
@@ -295,44 +362,90 @@ pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
     svg
 }
 
-/// tornado.svg: for each output with a spread, a bar per parameter of Spearman's ρ, the
-/// largest |ρ| at the top.
+/// A parameter key written as its step and quantity ("transient.adduct*.channels[1].barrier"
+/// reads "adduct*, channel 2: barrier"; "species.dinitrile.initial" reads "dinitrile: initial
+/// concentration"); a key of another shape is returned as it is.
+pub fn parameter_words(key: &str) -> String {
+    let Some((section, rest)) = key.split_once('.') else {
+        return key.replace('_', " ");
+    };
+    let (name, field) = match rest.rsplit_once('.') {
+        Some((n, f)) => (Some(n), f),
+        None => (None, rest),
+    };
+    let field = match (section, field) {
+        ("species", "initial") => "initial concentration".to_string(),
+        (_, "k") => "rate constant".to_string(),
+        _ => field.replace('_', " "),
+    };
+    let Some(name) = name else {
+        return field;
+    };
+    let name = name.replace('"', "");
+    let name = match name.rsplit_once(".channels[") {
+        Some((step, k)) => match k.trim_end_matches(']').parse::<usize>() {
+            Ok(k) => format!("{step}, channel {}", k + 1),
+            Err(_) => name.clone(),
+        },
+        None => name,
+    };
+    format!("{name}: {field}")
+}
+
+/// An output's heading in the tornado: what it is ("concentration of aldehyde at 30 d"), from
+/// the column's description.
+fn output_words(x: &OutputSummary) -> String {
+    let about = x.column.about.as_str();
+    let about = about.split_once(": ").map_or(about, |(_, a)| a);
+    let about = about.split([';', '(']).next().unwrap_or(about).trim();
+    if about.is_empty() {
+        x.column.name.clone()
+    } else {
+        format!("{} ({})", about, x.column.name)
+    }
+}
+
+/// Parameters drawn per output in the tornado.
+pub const TORNADO_TOP: usize = 3;
+
+/// tornado.svg: one group per output with a spread, headed by what the output is, with the
+/// [`TORNADO_TOP`] parameters of largest |Spearman ρ| as bars labelled by step and quantity.
 pub fn tornado_svg(title: &str, s: &Summary) -> String {
-    let shown: Vec<&OutputSummary> = s.outputs.iter().filter(|x| varies(x)).collect();
-    // Every output that varies gets its bars: up to 6 each, fewer when many outputs share the
-    // chart (about 60 bars in all, at least 2 each).
-    let per_output = (60 / shown.len().max(1)).clamp(2, 6);
-    let rows: Vec<(String, f64)> = shown
+    let groups: Vec<(String, Vec<(String, f64)>)> = s
+        .outputs
         .iter()
-        .flat_map(|x| {
-            let name = match x.column.censored_above {
-                Some(h) if x.censored > 0 => {
-                    format!("{} (not reached = {})", x.column.name, units::format_time(h))
-                }
-                _ => x.column.name.clone(),
-            };
-            x.drivers
+        .filter(|x| varies(x))
+        .map(|x| {
+            let mut head = output_words(x);
+            if let Some(h) = x.column.censored_above.filter(|_| x.censored > 0) {
+                head.push_str(&format!(", not reached counted as {}", units::format_time(h)));
+            }
+            let bars = x
+                .drivers
                 .iter()
-                .take(per_output)
-                .filter_map(|d| Some((format!("{name} ← {}", d.parameter), d.spearman?)))
-                .collect::<Vec<_>>()
+                .filter_map(|d| Some((parameter_words(&d.parameter), d.spearman?)))
+                .take(TORNADO_TOP)
+                .collect();
+            (head, bars)
         })
+        .filter(|g: &(String, Vec<(String, f64)>)| !g.1.is_empty())
         .collect();
     let mut svg = String::new();
-    if rows.is_empty() {
+    if groups.is_empty() {
         return svg;
     }
-    let n = rows.len();
-    let height = (120 + 22 * n) as u32;
+    // Rows: a heading, then its bars, top to bottom.
+    let n: usize = groups.iter().map(|g| 1 + g.1.len()).sum();
+    let height = (110 + 22 * n) as u32;
     {
-        let root = SVGBackend::with_string(&mut svg, (1100, height)).into_drawing_area();
+        let root = SVGBackend::with_string(&mut svg, (1000, height)).into_drawing_area();
         let _ = root.fill(&WHITE);
         let draw = || -> Result<(), Box<dyn std::error::Error + '_>> {
             let mut chart = ChartBuilder::on(&root)
                 .caption(title, ("sans-serif", 22))
                 .margin(16)
                 .x_label_area_size(44)
-                .y_label_area_size(520)
+                .y_label_area_size(380)
                 .build_cartesian_2d(-1.0..1.0, 0.0..n as f64)?;
             chart
                 .configure_mesh()
@@ -341,18 +454,28 @@ pub fn tornado_svg(title: &str, s: &Summary) -> String {
                 .label_style(("sans-serif", 13))
                 .disable_y_mesh()
                 .draw()?;
-            let style = TextStyle::from(("sans-serif", 13).into_font()).pos(Pos::new(HPos::Right, VPos::Center));
-            for (i, (label, _)) in rows.iter().enumerate() {
-                let (px, py) = chart.backend_coord(&(-1.0, (n - 1 - i) as f64 + 0.5));
-                root.draw(&Text::new(label.clone(), (px - 8, py), style.clone()))?;
+            let right = TextStyle::from(("sans-serif", 13).into_font()).pos(Pos::new(HPos::Right, VPos::Center));
+            let heading = TextStyle::from(("sans-serif", 14).into_font().style(FontStyle::Bold))
+                .pos(Pos::new(HPos::Left, VPos::Center));
+            let pos = palette::species(0);
+            let neg = palette::species(1);
+            let mut row = 0;
+            for (head, bars) in &groups {
+                let (px, py) = chart.backend_coord(&(-1.0, (n - 1 - row) as f64 + 0.5));
+                root.draw(&Text::new(head.clone(), (px - 370, py), heading.clone()))?;
+                row += 1;
+                for (label, r) in bars {
+                    let y = (n - 1 - row) as f64;
+                    let (px, py) = chart.backend_coord(&(-1.0, y + 0.5));
+                    root.draw(&Text::new(label.clone(), (px - 8, py), right.clone()))?;
+                    let c = if *r >= 0.0 { pos } else { neg };
+                    chart.draw_series(std::iter::once(Rectangle::new(
+                        [(0.0, y + 0.15), (*r, y + 0.85)],
+                        c.filled(),
+                    )))?;
+                    row += 1;
+                }
             }
-            let pos = RGBColor(31, 119, 180);
-            let neg = RGBColor(214, 39, 40);
-            chart.draw_series(rows.iter().enumerate().map(|(i, (_, r))| {
-                let y = (n - 1 - i) as f64;
-                let c = if *r >= 0.0 { pos } else { neg };
-                Rectangle::new([(0.0, y + 0.15), (*r, y + 0.85)], c.filled())
-            }))?;
             Ok(())
         };
         let _ = draw();
@@ -454,5 +577,38 @@ uniform = ["1e-5 /s", "2e-5 /s"]
         let col = r.header.outputs.iter().position(|c| c.name == "final[B]").unwrap();
         let v: Vec<f64> = r.samples.iter().filter_map(|s| s.outputs[col]).collect();
         assert!(histogram_svg("B", x, &v).contains("final[B] (mM)"));
+    }
+
+    #[test]
+    fn the_tornado_is_grouped_by_output_and_names_steps_not_keys() {
+        let (r, s) = run();
+        let svg = tornado_svg("t", &s);
+        assert!(svg.contains("A to B: barrier"), "step and quantity named");
+        assert!(!svg.contains("thermal.A to B.barrier"), "raw key shown");
+        assert!(svg.contains("concentration of B"), "output heading missing");
+        // The quantile lines have a legend.
+        let x = s.outputs.iter().find(|x| x.column.name == "final[B]").unwrap();
+        let col = r.header.outputs.iter().position(|c| c.name == "final[B]").unwrap();
+        let v: Vec<f64> = r.samples.iter().filter_map(|s| s.outputs[col]).collect();
+        let h = histogram_svg("B", x, &v);
+        assert!(h.contains(">\nmedian\n</text>") && h.contains(">\n97.5 % quantile\n</text>"));
+    }
+
+    #[test]
+    fn parameter_keys_read_as_step_and_quantity() {
+        assert_eq!(
+            parameter_words("transient.adduct*.channels[1].barrier"),
+            "adduct*, channel 2: barrier"
+        );
+        assert_eq!(
+            parameter_words("species.dinitrile.initial"),
+            "dinitrile: initial concentration"
+        );
+        assert_eq!(
+            parameter_words("photo.second photon.quantum_yield"),
+            "second photon: quantum yield"
+        );
+        assert_eq!(parameter_words("conditions.temperature"), "temperature");
+        assert_eq!(parameter_words("light.\"blue LED\".power"), "blue LED: power");
     }
 }

@@ -131,11 +131,11 @@ pub fn section(f: &FitStudy) -> String {
         }
         o.push_str("</ul></div>\n");
     }
-    let rows = rf::rows(&f.experiments, &f.fitted.predicted);
     let stem = stem(&f.network);
     let svg = rf::data_svg(
         &format!("{stem}: data and fit"),
-        &rows,
+        &f.experiments,
+        &f.species,
         &[(stem.clone(), f.fitted.curves.clone())],
     );
     o.push_str(&page::figure(
@@ -228,14 +228,12 @@ pub fn comparison(f: &FitStudy) -> Option<String> {
         }
         o.push_str("</ul></div>\n");
     }
-    let best_fit = ranking.order.first().map_or(&f.fitted, |&i| all[i].1);
-    let rows = rf::rows(&f.experiments, &best_fit.predicted);
     let models: Vec<(String, Vec<_>)> = ranking
         .order
         .iter()
         .map(|&i| (stem(all[i].0), all[i].1.curves.clone()))
         .collect();
-    let svg = rf::data_svg("data and each network's fit", &rows, &models);
+    let svg = rf::data_svg("data and each network's fit", &f.experiments, &f.species, &models);
     o.push_str(&page::figure(
         &inline_svg(&svg, "cmp"),
         "The data against each network's fit, best first (the others dashed).",

@@ -7,6 +7,7 @@ use crate::kinetics::{Method, Stop};
 use crate::model::Model;
 use crate::network::Network;
 use crate::report::simulation;
+use crate::report::timeplot::TimeAxis;
 use crate::study::Study;
 use crate::units::{format_time, sig};
 
@@ -19,10 +20,22 @@ pub fn section(net: &Network, model: &Model, study: &Study) -> String {
         esc(&format_time(end)),
         esc(&study.until_reason)
     );
-    let svg = inline_svg(&simulation::concentrations_svg(net, model, tr, study.log_time), "conc");
+    let svg = inline_svg(
+        &simulation::concentrations_svg(
+            net,
+            model,
+            tr,
+            if study.log_time {
+                TimeAxis::Log
+            } else {
+                TimeAxis::Linear
+            },
+        ),
+        "conc",
+    );
     let mut caption = String::from(
-        "Concentration of every species against time; species at 1 M or more (solvent-like) are left out of the \
-         plot so the others stay readable.",
+        "Concentration of every species against time, each in the colour it has in every plot of this network; \
+         a species that dwarfs the rest (a solvent) is drawn in a panel of its own above them.",
     );
     if study.log_time {
         caption.push_str(" Time on a log scale: most of the change happens in the first tenth of the run.");

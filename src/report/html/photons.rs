@@ -11,8 +11,6 @@ use crate::model::Model;
 use crate::units::{format_time, sig};
 use std::fmt::Write;
 
-/// Fill colours of the absorbers, in slot order (repeating).
-const ABSORBER: [&str; 6] = ["#3b6e8f", "#c07a3a", "#5b8c5a", "#8a5a83", "#b5524a", "#4f8f8f"];
 const BACKGROUND: &str = "#8f979d";
 const TRANSMITTED: &str = "#ece8dc";
 const PRODUCTIVE: &str = "#2f6f6a";
@@ -141,7 +139,7 @@ pub fn section(model: &Model, tr: &Trajectory) -> String {
         esc(&sig(l.incident / f, 4)),
         esc(&sig(l.balance_error, 2))
     );
-    let colour = |k: usize| ABSORBER[k % ABSORBER.len()];
+    let colour = |k: usize| crate::report::palette::species_hex(model.absorbers[k]);
     let segments = |absorbed: &[f64], background: f64, transmitted: f64| {
         let mut v: Vec<(String, f64, &'static str)> = absorbed
             .iter()
