@@ -4,6 +4,7 @@
 use super::output::{noteln, out, outln};
 use photoledger::Error;
 use photoledger::barrier::{self, HotLimit};
+use photoledger::file::folder::Folder;
 use photoledger::file::frequencies;
 use photoledger::kinetics;
 use photoledger::rates::hot::{HotReaction, rrkm_yields};
@@ -311,11 +312,12 @@ fn k_of_e(a: &BarrierArgs) -> photoledger::Result<()> {
     let rrkm = Rrkm::new(&f.reactant, &ts, e0, f.degeneracy, grain, hi + step + grain)
         .map_err(|m| Error::Usage(format!("--grain/--energy-range: {m}")))?;
     let rows = barrier::k_table(&rrkm, lo, hi, a.points)?;
-    let csv = a.out.join("k_of_e.csv");
-    let svg = a.out.join("k_of_e.svg");
-    write_atomic(&csv, report::k_csv(&rows).as_bytes())?;
+    let folder = Folder::begin(&a.out)?;
+    write_atomic(&folder.join("k_of_e.csv"), report::k_csv(&rows).as_bytes())?;
     let title = format!("RRKM k(E), E0 = {}", a.barrier.as_deref().unwrap_or(""));
-    write_atomic(&svg, report::k_svg(&rows, &title).as_bytes())?;
+    write_atomic(&folder.join("k_of_e.svg"), report::k_svg(&rows, &title).as_bytes())?;
+    folder.commit()?;
+    let (csv, svg) = (a.out.join("k_of_e.csv"), a.out.join("k_of_e.svg"));
     outln!(
         "k(E) for E0 = {} at {} energies from {} to {} (grain {}, σ = {}); largest frequency rounding {:.3} cm-1",
         report::energy(e0),

@@ -103,11 +103,13 @@ pub fn run(a: &LevelsArgs) -> photoledger::Result<Exit> {
     });
     let json = serde_json::to_string_pretty(&report::json(&c, scores.as_ref()))
         .map_err(|e| Error::Numerical(e.to_string()))?;
-    write_atomic(&dir.join("summary.json"), json.as_bytes())?;
-    write_atomic(&dir.join("observables.csv"), report::observables_csv(&c).as_bytes())?;
+    let folder = photoledger::file::folder::Folder::begin(&dir)?;
+    write_atomic(&folder.join("summary.json"), json.as_bytes())?;
+    write_atomic(&folder.join("observables.csv"), report::observables_csv(&c).as_bytes())?;
     if let Some(s) = &scores {
-        write_atomic(&dir.join("scores.csv"), report::scores_csv(s).as_bytes())?;
+        write_atomic(&folder.join("scores.csv"), report::scores_csv(s).as_bytes())?;
     }
+    folder.commit()?;
     if a.json {
         outln!("{json}")?;
     } else {

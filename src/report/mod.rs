@@ -38,14 +38,15 @@ pub fn write_atomic_with(path: &Path, fill: impl FnOnce(&mut dyn Write) -> std::
         Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
         _ => std::path::PathBuf::from("."),
     };
-    std::fs::create_dir_all(&dir).map_err(io)?;
     let name = path
         .file_name()
         .map(|n| n.to_string_lossy().to_string())
         .unwrap_or_else(|| "out".into());
     let tmp = dir.join(format!(".{name}.{}.tmp", std::process::id()));
     let result = (|| {
-        let mut f = std::io::BufWriter::new(std::fs::File::create(&tmp)?);
+        // Recorded until renamed: a signal meanwhile removes it (`file::folder`).
+        let (f, _pending) = crate::file::folder::create_temporary(&tmp)?;
+        let mut f = std::io::BufWriter::new(f);
         fill(&mut f)?;
         let f = f.into_inner().map_err(|e| e.into_error())?;
         f.sync_all()?;
