@@ -28,13 +28,13 @@ pub struct BarrierArgs {
     #[arg(long, allow_hyphen_values = true, value_name = "T")]
     pub temperature: Option<String>,
     /// Probability of crossing asked for: a fraction (0.5) or a percentage ("50 %").
-    #[arg(long, default_value = "0.5")]
+    #[arg(long, default_value = "0.5", allow_hyphen_values = true)]
     pub probability: String,
     /// Transmission coefficient κ for the thermal window.
     #[arg(long, default_value_t = 1.0, value_parser = super::values::transmission, allow_negative_numbers = true)]
     pub transmission: f64,
     /// Imaginary frequency for a Wigner tunnelling factor in the thermal window, e.g. "1200 cm-1".
-    #[arg(long, value_name = "FREQUENCY")]
+    #[arg(long, value_name = "FREQUENCY", allow_hyphen_values = true)]
     pub tunnelling: Option<String>,
     /// Excess energy of the hot molecule above its zero-point level, e.g. "250 kJ/mol".
     #[arg(long, allow_hyphen_values = true, value_name = "E")]
@@ -55,10 +55,10 @@ pub struct BarrierArgs {
     #[arg(long, allow_hyphen_values = true, value_name = "E")]
     pub barrier: Option<String>,
     /// Energy range of the k(E) table, e.g. "0 kJ/mol..200 kJ/mol".
-    #[arg(long, value_name = "FROM..TO")]
+    #[arg(long, value_name = "FROM..TO", allow_hyphen_values = true)]
     pub energy_range: Option<String>,
     /// Energy grain of the state counts, e.g. "10 cm-1".
-    #[arg(long, default_value = "10 cm-1")]
+    #[arg(long, default_value = "10 cm-1", allow_hyphen_values = true)]
     pub grain: String,
     /// Rows of the k(E) table (2 to 1,000,000).
     #[arg(long, default_value_t = 400, value_parser = super::values::points, allow_negative_numbers = true)]
@@ -69,7 +69,15 @@ pub struct BarrierArgs {
 }
 
 fn quantity(flag: &str, text: &str, q: Quantity) -> photoledger::Result<f64> {
-    units::parse(text, q).map_err(|e| Error::Usage(format!("--{flag}: {e}; expected {}", q.accepted())))
+    let v = units::parse(text, q).map_err(|e| Error::Usage(format!("--{flag}: {e}; expected {}", q.accepted())))?;
+    if !v.is_finite() {
+        // A finite number whose unit takes it past the largest floating-point number.
+        return Err(Error::Usage(format!(
+            "--{flag} \"{text}\": too large to compute with (beyond 1.8e308 in SI units); expected {}",
+            q.accepted()
+        )));
+    }
+    Ok(v)
 }
 
 fn probability(text: &str) -> photoledger::Result<f64> {
@@ -123,6 +131,12 @@ fn thermal(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
     if let Some(f) = &a.tunnelling {
         let nu = quantity("tunnelling", f, Quantity::MolarEnergy)?;
         let w = wigner(nu, t);
+        if !w.is_finite() {
+            return Err(Error::Usage(format!(
+                "--tunnelling \"{f}\": the Wigner factor 1 + (hν/kT)²/24 at {t} K is not finite; \
+                 the correction is meant for hν/kT of a few at most"
+            )));
+        }
         kappa *= w;
         note = format!(", Wigner tunnelling factor {w:.4} for {f}");
     }

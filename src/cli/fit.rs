@@ -33,10 +33,10 @@ pub struct FitArgs {
     #[arg(long)]
     pub json: bool,
     /// Number of starts: the file's values, then seeded random starts around them.
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, allow_negative_numbers = true)]
     pub starts: usize,
     /// Seed of the random starts.
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, allow_negative_numbers = true)]
     pub seed: u64,
     /// Scale the standard errors by the reduced χ² even when every observation has an sd
     /// (by default given sd are taken as known).

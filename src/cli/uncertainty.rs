@@ -24,11 +24,11 @@ pub struct UncertaintyArgs {
     /// Override a value of the file for every sample, e.g. --set conditions.temperature="310 K".
     #[arg(long = "set", value_name = "KEY=VALUE")]
     pub set: Vec<String>,
-    /// Number of samples in the whole run.
-    #[arg(long, required = true)]
+    /// Number of samples in the whole run (1 to 1,000,000).
+    #[arg(long, required = true, value_parser = super::values::samples, allow_negative_numbers = true)]
     pub samples: Option<usize>,
     /// Seed of the random streams (sample i uses stream i of this seed).
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, allow_negative_numbers = true)]
     pub seed: u64,
     /// Run the kinetics of each sample for this long, e.g. "2 h" (final concentrations).
     #[arg(long, allow_hyphen_values = true, value_name = "DURATION")]
