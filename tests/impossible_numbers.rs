@@ -132,3 +132,37 @@ fn a_network_with_no_species_is_refused_not_a_panic() {
     assert!(matches!(out.status.code(), Some(1 | 2)), "{err}");
     assert!(err.contains("no species"), "{err}");
 }
+
+/// Found by the wider `scripts/fuzz_inputs.py` pass (seed 17, case 867): with E-azo at 1e300 µM
+/// the cell absorbs 2e298 over its path, each molecule gets about 1e-302 /s of light, and the
+/// chain's move-probability derivatives divided by total² (which underflows to zero): `ledger`
+/// printed "NaN NaN" for two quantum-yield sensitivities. The side product takes one photon
+/// with probability φ each time E absorbs, so the photons per side product are 1/φ and
+/// d ln photons / d ln φ = −1 (geometric trials, common practice).
+#[test]
+fn ledger_sensitivities_stay_finite_when_light_per_molecule_is_tiny() {
+    let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
+    let dir = std::env::temp_dir().join(format!("photoledger-tiny-light-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let out = Command::new(env!("CARGO_BIN_EXE_photoledger"))
+        .current_dir(&dir)
+        .args([
+            "ledger",
+            root.join("networks/photoswitch-side-product.toml").to_str().unwrap(),
+            "--set",
+            "species.E-azo.initial=1e300 µM",
+            "--out",
+            "led",
+        ])
+        .output()
+        .unwrap();
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(!text.contains("NaN") && !text.contains("inf"), "{text}");
+    let line = text
+        .lines()
+        .find(|l| l.contains("quantum yield of \"E to side-product\""))
+        .unwrap_or_else(|| panic!("{text}"));
+    assert!(line.trim_start().starts_with("-1.0000"), "{line}");
+}

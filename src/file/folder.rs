@@ -301,4 +301,21 @@ mod tests {
         assert!(e.contains("results.txt") && e.contains("existing file"), "{e}");
         assert_eq!(std::fs::read_to_string(&out).unwrap(), "keep");
     }
+
+    #[cfg(unix)]
+    #[test]
+    fn a_link_as_the_folder_is_refused_and_left() {
+        let d = scratch("link");
+        std::fs::create_dir_all(d.join("real")).unwrap();
+        std::os::unix::fs::symlink("real", d.join("run")).unwrap();
+        let e = Folder::begin(&d.join("run")).unwrap_err().to_string();
+        assert!(e.contains("run") && e.contains("symbolic link"), "{e}");
+        assert!(
+            std::fs::symlink_metadata(d.join("run"))
+                .unwrap()
+                .file_type()
+                .is_symlink()
+        );
+        assert_eq!(names(&d), ["real", "run"], "no temporary folder");
+    }
 }
