@@ -3,8 +3,9 @@
 
 Each case takes a bundled network, applies a few mutations drawn from a fixed seed (a number
 made extreme, zero, negative, NaN or infinite; a unit changed; a line dropped, doubled or cut
-short; stray bytes; a long name) and runs `check`, `simulate` and `ledger` on it, each with a
-time limit and a memory limit. A case fails on a panic (exit 101), an exit code outside the
+short; stray bytes; a long name) and runs `check`, `simulate`, `ledger`, `diagram`, `barrier`
+(the network's verdicts) and `uncertainty` (a few samples) on it, each with a time limit and a
+memory limit. A case fails on a panic (exit 101), an exit code outside the
 documented table (README, "Exit codes": 0-6), death by a signal, a run over the time limit (a
 hang), or a NaN or infinite number in any CSV or JSON the commands wrote or printed.
 
@@ -122,6 +123,9 @@ def run_case(binary, index, name, text, keep):
             ["simulate", "net.toml", "--until", "1 h", "--points", "50", "--out", "sim"],
             ["ledger", "net.toml", "--out", "led"],
             ["simulate", "net.toml", "--until", "1 h", "--points", "20", "--json", "--out", "simj"],
+            ["diagram", "net.toml", "--out", "net.svg"],
+            ["barrier", "net.toml", "--window", "1 h"],
+            ["uncertainty", "net.toml", "--samples", "3", "--until", "1 h", "--out", "unc"],
         ]
         for args in commands:
             start = time.monotonic()
@@ -139,6 +143,8 @@ def run_case(binary, index, name, text, keep):
                 problems.append(f"{what}: panic: {out.stderr.decode(errors='replace')[-300:]}")
             elif code not in ALLOWED_EXITS:
                 problems.append(f"{what}: exit {code} is not in the table")
+            if code == 0 and re.search(rb"(?<![\w.])(inf|NaN)(?![\w])", out.stdout):
+                problems.append(f"{what}: printed an infinite or NaN number")
             if "--json" in args and code == 0:
                 try:
                     if non_finite_in_json(json.loads(out.stdout)):
@@ -147,7 +153,7 @@ def run_case(binary, index, name, text, keep):
                     problems.append(f"{what}: printed JSON does not parse: {e}")
             if time.monotonic() - start > TIME_LIMIT_S:
                 problems.append(f"{what}: over {TIME_LIMIT_S} s")
-        for folder in ("sim", "led", "simj"):
+        for folder in ("sim", "led", "simj", "unc"):
             d = os.path.join(work, folder)
             if not os.path.isdir(d):
                 continue
@@ -218,7 +224,7 @@ def main():
             i, name, problems = r
             if problems:
                 failures.append((i, name, problems))
-    print(f"fuzz: {done} mutated networks (seed {a.seed}) through check, simulate and ledger; "
+    print(f"fuzz: {done} mutated networks (seed {a.seed}) through check, simulate, ledger, diagram, barrier and uncertainty; "
           f"{len(failures)} failed")
     for i, name, problems in failures:
         print(f"  case {i} ({name}):")

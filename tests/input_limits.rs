@@ -303,3 +303,186 @@ fn a_runaway_name_is_refused_without_echoing_it() {
     assert!(err.len() < 10_000, "the message repeats the name: {} bytes", err.len());
     assert!(!dir.join("o").exists(), "no output folder for an invalid network");
 }
+
+#[test]
+fn a_leading_minus_reaches_the_option_that_refuses_it_by_name() {
+    // clap took "-0.5" or "-10 cm-1" for a flag: "unexpected argument '-1' found".
+    let (net, pool) = ("networks/photoswitch.toml", "networks/prebiotic-pool.toml");
+    let dir = scratch("minus");
+    std::fs::write(
+        dir.join("f.txt"),
+        "# invented molecule, cm-1\n[reactant]\n3000 1500 1000\n800 500 300 200\n\
+         [transition state]\n3000 1500 1000 800 300 200\n700i\n",
+    )
+    .unwrap();
+    let f = dir.join("f.txt").display().to_string();
+    let thermal = ["barrier", "--window", "1 h", "--temperature", "298 K"];
+    let table = ["barrier", "--frequencies", &f, "--barrier", "60 kJ/mol"];
+    let hot = [
+        "barrier",
+        "--energy",
+        "250 kJ/mol",
+        "--frequencies",
+        &f,
+        "--cooling",
+        "10 ps",
+    ];
+    let cases: Vec<(Vec<&str>, &str)> = vec![
+        ([&thermal[..], &["--probability", "-0.5"]].concat(), "--probability"),
+        ([&hot[..], &["--grain", "-10 cm-1"]].concat(), "grain"),
+        (
+            [&table[..], &["--energy-range", "-1 kJ/mol..200 kJ/mol"]].concat(),
+            "--energy-range",
+        ),
+        (vec!["uncertainty", pool, "--samples", "-3"], "--samples"),
+        (vec!["uncertainty", pool, "--samples", "4", "--seed", "-1"], "--seed"),
+        (vec!["ledger", net, "--max-photons", "-1"], "--max-photons"),
+        (vec!["ledger", net, "--at", "-1 h"], "--at"),
+        (vec!["plan", net, "--target", "Z-azo > 30 %", "--in", "-1 h"], "--in"),
+        (
+            vec!["plan", net, "--target", "Z-azo > 30 %", "--horizon", "-1 d"],
+            "--horizon",
+        ),
+        (
+            vec!["simulate", net, "--until", "1 h", "--sun-hours", "-3"],
+            "--sun-hours",
+        ),
+        (
+            vec!["simulate", net, "--until", "1 h", "--sun-scale", "-1"],
+            "--sun-scale",
+        ),
+    ];
+    // An imaginary frequency written with a minus, as frequency files may: the same factor.
+    let (code, minus) = at_root(&[&thermal[..], &["--tunnelling", "-1200 cm-1"]].concat());
+    assert_eq!(code, Some(0), "{minus}");
+    let (_, plus) = at_root(&[&thermal[..], &["--tunnelling", "1200 cm-1"]].concat());
+    assert!(
+        minus.contains("κ = 2.3986") && plus.contains("κ = 2.3986"),
+        "{minus}{plus}"
+    );
+    for (args, option) in cases {
+        let (code, text) = at_root(&args);
+        assert_eq!(code, Some(2), "{args:?}: {text}");
+        assert!(
+            text.contains(option) && !text.contains("unexpected argument"),
+            "{args:?} should name {option}: {text}"
+        );
+    }
+}
+
+#[test]
+fn samples_beyond_the_limit_are_refused_not_an_abort() {
+    // 1e11 samples made `uncertainty` ask for 8 TB and abort (exit 134).
+    let (code, text) = at_root(&[
+        "uncertainty",
+        "networks/prebiotic-pool.toml",
+        "--samples",
+        "100000000000",
+    ]);
+    assert_eq!(code, Some(2), "{text}");
+    assert!(text.contains("--samples") && text.contains("1 to 1000000"), "{text}");
+}
+
+#[test]
+fn barrier_options_that_overflow_in_si_units_are_refused_by_name() {
+    // 1e308 kJ/mol is 1e311 J/mol, past the largest double: it printed "energy: inf J/mol must
+    // be positive", and a 1e160 cm-1 tunnelling frequency (an infinite Wigner factor) "transmission coefficient: inf".
+    let dir = scratch("barrier-overflow");
+    std::fs::write(
+        dir.join("f.txt"),
+        "# invented molecule, cm-1\n[reactant]\n3000 1500 1000\n800 500 300 200\n\
+         [transition state]\n3000 1500 1000 800 300 200\n700i\n",
+    )
+    .unwrap();
+    for (args, words) in [
+        (
+            vec![
+                "barrier",
+                "--energy",
+                "1e308 kJ/mol",
+                "--frequencies",
+                "f.txt",
+                "--cooling",
+                "10 ps",
+            ],
+            vec!["--energy", "too large"],
+        ),
+        (
+            vec![
+                "barrier",
+                "--window",
+                "1 h",
+                "--temperature",
+                "298 K",
+                "--tunnelling",
+                "1e160 cm-1",
+            ],
+            vec!["--tunnelling", "not finite"],
+        ),
+        (
+            vec![
+                "barrier",
+                "--energy",
+                "250 kJ/mol",
+                "--frequencies",
+                "f.txt",
+                "--cooling",
+                "10 ps",
+                "--grain",
+                "1e300 cm-1",
+            ],
+            vec!["smaller than half the grain"],
+        ),
+    ] {
+        let out = run(&dir, &args);
+        let text = format!(
+            "{}{}",
+            String::from_utf8_lossy(&out.stdout),
+            String::from_utf8_lossy(&out.stderr)
+        );
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {text}");
+        for w in words {
+            assert!(text.contains(w), "{args:?} should say {w}: {text}");
+        }
+        assert!(!text.contains("inf ") && text.len() < 1000, "{args:?}: {text}");
+    }
+}
+
+#[test]
+fn a_table_over_the_size_limit_is_refused_at_its_field_with_the_limit() {
+    let dir = scratch("huge");
+    // A sparse file one byte over 256 MiB: no disk is used, and nothing is read.
+    let f = std::fs::File::create(dir.join("eps.csv")).unwrap();
+    f.set_len(256 * 1024 * 1024 + 1).unwrap();
+    std::fs::write(dir.join("net.toml"), network("{ file = \"eps.csv\" }")).unwrap();
+    let out = run(&dir, &["check", "net.toml"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(1), "{err}");
+    assert!(
+        err.contains("species \"A\".epsilon.file") && err.contains("256 MiB"),
+        "{err}"
+    );
+}
+
+#[test]
+fn a_spectrometer_export_of_300000_rows_loads_well_within_the_hang_limit() {
+    // Loading is linear (scripts/loading_scale.py: 1 M rows in about 2 s on a release build);
+    // before, every row recounted the lines above it and 100,000 rows took 59 s, so 300,000
+    // took many minutes. The bound here is the 60 s hang limit of `run`, far above either
+    // build's time now.
+    let dir = scratch("export");
+    let mut csv = String::from("wavelength (nm), epsilon (L/(mol cm))\n");
+    for i in 0..300_000 {
+        let wl = 250.0 + 200.0 * i as f64 / 299_999.0;
+        csv.push_str(&format!(
+            "{wl:.7}, {:.6}\n",
+            8000.0 * (-((wl - 320.0) / 30.0).powi(2)).exp()
+        ));
+    }
+    std::fs::write(dir.join("eps.csv"), csv).unwrap();
+    std::fs::write(dir.join("net.toml"), network("{ file = \"eps.csv\" }")).unwrap();
+    let start = std::time::Instant::now();
+    let out = run(&dir, &["check", "--quiet", "net.toml"]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(start.elapsed() < Duration::from_secs(60));
+}

@@ -4,6 +4,7 @@
 use super::output::{noteln, out, outln};
 use photoledger::Error;
 use photoledger::barrier::{self, HotLimit};
+use photoledger::file::folder::Folder;
 use photoledger::file::frequencies;
 use photoledger::kinetics;
 use photoledger::rates::hot::{HotReaction, rrkm_yields};
@@ -27,13 +28,13 @@ pub struct BarrierArgs {
     #[arg(long, allow_hyphen_values = true, value_name = "T")]
     pub temperature: Option<String>,
     /// Probability of crossing asked for: a fraction (0.5) or a percentage ("50 %").
-    #[arg(long, default_value = "0.5")]
+    #[arg(long, default_value = "0.5", allow_hyphen_values = true)]
     pub probability: String,
     /// Transmission coefficient κ for the thermal window.
     #[arg(long, default_value_t = 1.0, value_parser = super::values::transmission, allow_negative_numbers = true)]
     pub transmission: f64,
     /// Imaginary frequency for a Wigner tunnelling factor in the thermal window, e.g. "1200 cm-1".
-    #[arg(long, value_name = "FREQUENCY")]
+    #[arg(long, value_name = "FREQUENCY", allow_hyphen_values = true)]
     pub tunnelling: Option<String>,
     /// Excess energy of the hot molecule above its zero-point level, e.g. "250 kJ/mol".
     #[arg(long, allow_hyphen_values = true, value_name = "E")]
@@ -54,10 +55,10 @@ pub struct BarrierArgs {
     #[arg(long, allow_hyphen_values = true, value_name = "E")]
     pub barrier: Option<String>,
     /// Energy range of the k(E) table, e.g. "0 kJ/mol..200 kJ/mol".
-    #[arg(long, value_name = "FROM..TO")]
+    #[arg(long, value_name = "FROM..TO", allow_hyphen_values = true)]
     pub energy_range: Option<String>,
     /// Energy grain of the state counts, e.g. "10 cm-1".
-    #[arg(long, default_value = "10 cm-1")]
+    #[arg(long, default_value = "10 cm-1", allow_hyphen_values = true)]
     pub grain: String,
     /// Rows of the k(E) table (2 to 1,000,000).
     #[arg(long, default_value_t = 400, value_parser = super::values::points, allow_negative_numbers = true)]
@@ -69,7 +70,15 @@ pub struct BarrierArgs {
 }
 
 fn quantity(flag: &str, text: &str, q: Quantity) -> photoledger::Result<f64> {
-    units::parse(text, q).map_err(|e| Error::Usage(format!("--{flag}: {e}; expected {}", q.accepted())))
+    let v = units::parse(text, q).map_err(|e| Error::Usage(format!("--{flag}: {e}; expected {}", q.accepted())))?;
+    if !v.is_finite() {
+        // A finite number whose unit takes it past the largest floating-point number.
+        return Err(Error::Usage(format!(
+            "--{flag} \"{text}\": too large to compute with (beyond 1.8e308 in SI units); expected {}",
+            q.accepted()
+        )));
+    }
+    Ok(v)
 }
 
 fn probability(text: &str) -> photoledger::Result<f64> {
@@ -123,6 +132,12 @@ fn thermal(a: &BarrierArgs, p: f64) -> photoledger::Result<()> {
     if let Some(f) = &a.tunnelling {
         let nu = quantity("tunnelling", f, Quantity::MolarEnergy)?;
         let w = wigner(nu, t);
+        if !w.is_finite() {
+            return Err(Error::Usage(format!(
+                "--tunnelling \"{f}\": the Wigner factor 1 + (hν/kT)²/24 at {t} K is not finite; \
+                 the correction is meant for hν/kT of a few at most"
+            )));
+        }
         kappa *= w;
         note = format!(", Wigner tunnelling factor {w:.4} for {f}");
     }
@@ -339,15 +354,15 @@ fn k_of_e(a: &BarrierArgs) -> photoledger::Result<()> {
     let rows = barrier::k_table(&rrkm, lo, hi, a.points)?;
     let family = a.barrier.as_deref().and_then(EnergyUnit::of_text).unwrap_or_default();
     let dir = a.output.dir(path, "barrier");
-    let csv = dir.join("k_of_e.csv");
-    let svg = dir.join("k_of_e.svg");
-    write_atomic(&csv, report::k_csv(&rows).as_bytes())?;
+    let folder = Folder::begin(&dir)?;
+    write_atomic(&folder.join("k_of_e.csv"), report::k_csv(&rows).as_bytes())?;
     let title = format!("RRKM k(E), E0 = {}", a.barrier.as_deref().unwrap_or(""));
-    write_atomic(&svg, report::k_svg(&rows, &title).as_bytes())?;
+    write_atomic(&folder.join("k_of_e.svg"), report::k_svg(&rows, &title).as_bytes())?;
     let files = ["k_of_e.csv", "k_of_e.svg"].map(String::from);
     let json = photoledger::report::barrier_json::k_of_e(e0, &rows, &files);
     let text = serde_json::to_string_pretty(&json).map_err(|e| Error::Numerical(e.to_string()))?;
-    write_atomic(&dir.join("summary.json"), text.as_bytes())?;
+    write_atomic(&folder.join("summary.json"), text.as_bytes())?;
+    folder.commit()?;
     if a.output.json {
         return outln!("{text}");
     }

@@ -31,10 +31,10 @@ pub struct CompareArgs {
     #[command(flatten)]
     pub output: super::Outputs,
     /// Number of starts per network.
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, allow_negative_numbers = true)]
     pub starts: usize,
     /// Seed of the random starts.
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, allow_negative_numbers = true)]
     pub seed: u64,
     #[command(flatten)]
     pub limits: Limits,

@@ -12,11 +12,11 @@ pub struct DaylightArgs {
     /// Hours of light a day (all sources switch together; made for sunlight): the light is on
     /// for the first HOURS of every 24 h and off for the rest, when thermal steps run on in the
     /// dark.
-    #[arg(long, value_name = "HOURS")]
+    #[arg(long, value_name = "HOURS", allow_negative_numbers = true)]
     pub sun_hours: Option<f64>,
     /// Factor on every sunlight source's ASTM G173-03 spectrum (shade, depth, another atmosphere),
     /// on top of the file's scale; 0 is darkness.
-    #[arg(long, value_name = "FACTOR", default_value_t = 1.0)]
+    #[arg(long, value_name = "FACTOR", default_value_t = 1.0, allow_negative_numbers = true)]
     pub sun_scale: f64,
 }
 

@@ -26,10 +26,10 @@ pub struct FitArgs {
     #[command(flatten)]
     pub output: super::Outputs,
     /// Number of starts: the file's values, then seeded random starts around them.
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, allow_negative_numbers = true)]
     pub starts: usize,
     /// Seed of the random starts.
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, allow_negative_numbers = true)]
     pub seed: u64,
     #[command(flatten)]
     pub limits: Limits,

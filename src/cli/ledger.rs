@@ -30,10 +30,10 @@ pub struct LedgerArgs {
     pub light: String,
     /// Take the concentrations (for light sharing, linearised bimolecular steps and quenching)
     /// from a kinetics run of this length instead of the initial ones, e.g. "2 h".
-    #[arg(long, value_name = "DURATION")]
+    #[arg(long, value_name = "DURATION", allow_hyphen_values = true)]
     pub at: Option<String>,
     /// Stop the photon-count distribution (and the count of switching cycles) at this many.
-    #[arg(long, default_value_t = 200_000)]
+    #[arg(long, default_value_t = 200_000, allow_negative_numbers = true)]
     pub max_photons: usize,
     /// Judge the thermal steps of each route for a 50 % chance of crossing within this window,
     /// e.g. "1 h" (as `barrier` does).
@@ -135,11 +135,8 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
 
 /// A duration option, parsed.
 fn duration(flag: &str, text: Option<&str>) -> photoledger::Result<Option<f64>> {
-    let q = photoledger::units::Quantity::Time;
-    text.map(|d| {
-        photoledger::units::parse(d, q).map_err(|e| Error::Usage(format!("{flag}: {e}; expected {}", q.accepted())))
-    })
-    .transpose()
+    text.map(|d| super::values::duration(flag.trim_start_matches('-'), d))
+        .transpose()
 }
 
 /// The output folder: `--out`, or the network file's name followed by "-ledger".

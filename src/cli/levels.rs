@@ -20,7 +20,7 @@ pub struct LevelsArgs {
     pub target: Option<String>,
     /// The time at which the products are compared, e.g. "2 h" (default: the longest automatic
     /// horizon of the sets, rounded up).
-    #[arg(long, value_name = "DURATION")]
+    #[arg(long, value_name = "DURATION", allow_hyphen_values = true)]
     pub until: Option<String>,
     /// Data to score each set against: time-course CSV files or experiments TOML files.
     #[arg(long, num_args = 1.., value_name = "FILE")]
@@ -29,10 +29,10 @@ pub struct LevelsArgs {
     #[arg(long, value_name = "KEYS", value_delimiter = ',')]
     pub free: Vec<String>,
     /// Number of starts of each refit.
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, allow_negative_numbers = true)]
     pub starts: usize,
     /// Seed of the random starts.
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, allow_negative_numbers = true)]
     pub seed: u64,
     #[command(flatten)]
     pub limits: Limits,
@@ -91,11 +91,13 @@ pub fn run(a: &LevelsArgs) -> photoledger::Result<Exit> {
     let dir = a.output.dir(&a.net.file, "levels");
     let json = serde_json::to_string_pretty(&report::json(&c, scores.as_ref()))
         .map_err(|e| Error::Numerical(e.to_string()))?;
-    write_atomic(&dir.join("summary.json"), json.as_bytes())?;
-    write_atomic(&dir.join("observables.csv"), report::observables_csv(&c).as_bytes())?;
+    let folder = photoledger::file::folder::Folder::begin(&dir)?;
+    write_atomic(&folder.join("summary.json"), json.as_bytes())?;
+    write_atomic(&folder.join("observables.csv"), report::observables_csv(&c).as_bytes())?;
     if let Some(s) = &scores {
-        write_atomic(&dir.join("scores.csv"), report::scores_csv(s).as_bytes())?;
+        write_atomic(&folder.join("scores.csv"), report::scores_csv(s).as_bytes())?;
     }
+    folder.commit()?;
     if a.output.json {
         outln!("{json}")?;
     } else {

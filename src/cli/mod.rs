@@ -213,8 +213,7 @@ pub fn run() -> i32 {
     // SIGINT or SIGTERM: remove the temporary folder of an output not yet moved into place (the
     // old folder stays as it was), then end as a shell reports an interrupt (128 + SIGINT).
     let _ = ctrlc::set_handler(|| {
-        photoledger::file::folder::remove_unfinished();
-        std::process::exit(130);
+        photoledger::file::folder::remove_unfinished_then(|| std::process::exit(130));
     });
     let result = match cli.command {
         Command::Check(a) => check::run(&a),

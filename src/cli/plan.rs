@@ -23,7 +23,7 @@ pub struct PlanArgs {
     #[arg(long, value_name = "EXPR")]
     pub target: String,
     /// Find the light (a factor on every source of the file) that reaches the target in this time.
-    #[arg(long = "in", value_name = "DURATION")]
+    #[arg(long = "in", value_name = "DURATION", allow_hyphen_values = true)]
     pub within: Option<String>,
     /// A tubular flow reactor, e.g. "ID=1 mm, length=2 m": path = inner diameter, volume = the
     /// tube's; gives the flow rate and throughput.
@@ -39,10 +39,10 @@ pub struct PlanArgs {
     pub sweep: Option<String>,
     /// Wall-plug efficiency of the lamp (optical out / electrical in), e.g. "30 %" or 0.3:
     /// adds the electrical energy per mole.
-    #[arg(long, value_name = "EFFICIENCY")]
+    #[arg(long, value_name = "EFFICIENCY", allow_hyphen_values = true)]
     pub wall_plug: Option<String>,
     /// Longest time to integrate before the target is called unreachable.
-    #[arg(long, value_name = "DURATION", default_value = "36525 d")]
+    #[arg(long, value_name = "DURATION", default_value = "36525 d", allow_hyphen_values = true)]
     pub horizon: String,
     /// Products to compare for selectivity, e.g. "product,degradate" (default: every product
     /// of the network: species named as products, or formed and never consumed).
@@ -125,8 +125,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
     let net = build(&loaded, &a.net)?;
     print_warnings(&net);
     let mut model = Model::compile(&net);
-    let horizon = units::parse(&a.horizon, Quantity::Time)
-        .map_err(|e| Error::Usage(format!("--horizon: {e}; expected {}", Quantity::Time.accepted())))?;
+    let horizon = super::values::duration("horizon", &a.horizon)?;
     let efficiency = a
         .wall_plug
         .as_deref()
@@ -219,8 +218,7 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
     }
     let (result, power) = match &a.within {
         Some(d) => {
-            let d = units::parse(d, Quantity::Time)
-                .map_err(|e| Error::Usage(format!("--in: {e}; expected {}", Quantity::Time.accepted())))?;
+            let d = super::values::duration("in", d)?;
             let ps = match plan::power_for_time(&model, &target, d, &opts)? {
                 Ok(ps) => ps,
                 Err(no) => {

@@ -5,6 +5,7 @@
 use super::Exit;
 use super::output::{out, outln};
 use photoledger::Error;
+use photoledger::file::folder::{self, Folder};
 use photoledger::report::{uncertainty as report, write_atomic};
 use photoledger::uncertainty::{self, Problem, Record, Settings, Space, fitcov::FitBlock, spec};
 use std::io::IsTerminal;
@@ -22,11 +23,11 @@ pub struct UncertaintyArgs {
     pub file: Option<PathBuf>,
     #[command(flatten)]
     pub set: super::SetArgs,
-    /// Number of samples in the whole run.
-    #[arg(long, required = true)]
+    /// Number of samples in the whole run (1 to 1,000,000).
+    #[arg(long, required = true, value_parser = super::values::samples, allow_negative_numbers = true)]
     pub samples: Option<usize>,
     /// Seed of the random streams (sample i uses stream i of this seed).
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, allow_negative_numbers = true)]
     pub seed: u64,
     /// Run the kinetics of each sample for this long, e.g. "2 h" (final concentrations).
     #[arg(long, allow_hyphen_values = true, value_name = "DURATION")]
@@ -134,6 +135,9 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
     if let Some((k, n)) = shard {
         let name = format!("shard-{k}-of-{n}.json");
         let json = serde_json::to_string(&record).map_err(|e| Error::Numerical(e.to_string()))?;
+        // The shards of one run share a folder (each job adds its own file): added, not
+        // replaced whole.
+        folder::not_a_file(&dir)?;
         write_atomic(&dir.join(&name), json.as_bytes())?;
         outln!(
             "wrote {}/{name}: samples {}..{} of {}; join all N with `photoledger uncertainty merge`",
@@ -172,6 +176,19 @@ fn merge(shards: &[PathBuf], json: bool, out: &Path) -> photoledger::Result<Exit
         parts.push(r);
     }
     let record = uncertainty::merge(parts)?;
+    // The output folder is replaced whole: not the folder the shards are read from.
+    if let Ok(target) = out.canonicalize()
+        && let Some(p) = shards
+            .iter()
+            .find(|p| p.canonicalize().is_ok_and(|p| p.parent() == Some(target.as_path())))
+    {
+        return Err(Error::Usage(format!(
+            "--out {}: holds the shard {} being merged, and an output folder is replaced whole; \
+             write the merged report to another folder",
+            out.display(),
+            p.display()
+        )));
+    }
     write_all(&record, out, json)
 }
 
@@ -184,17 +201,19 @@ fn to_json<T: serde::Serialize>(v: &T) -> photoledger::Result<String> {
 fn write_all(record: &Record, dir: &Path, json: bool) -> photoledger::Result<Exit> {
     let summary = uncertainty::summarise(record);
     let summary_json = to_json(&summary)?;
-    write_atomic(&dir.join("summary.json"), summary_json.as_bytes())?;
-    write_atomic(&dir.join("summary.txt"), report::text(&summary).as_bytes())?;
-    write_atomic(&dir.join("samples.csv"), report::samples_csv(record).as_bytes())?;
-    write_atomic(&dir.join("samples.json"), to_json(record)?.as_bytes())?;
+    let folder = Folder::begin(dir)?;
+    write_atomic(&folder.join("summary.json"), summary_json.as_bytes())?;
+    write_atomic(&folder.join("summary.txt"), report::text(&summary).as_bytes())?;
+    write_atomic(&folder.join("samples.csv"), report::samples_csv(record).as_bytes())?;
+    write_atomic(&folder.join("samples.json"), to_json(record)?.as_bytes())?;
     let ok: Vec<_> = record.samples.iter().filter(|s| s.error.is_none()).collect();
     for (j, x) in summary.outputs.iter().enumerate() {
         let values: Vec<f64> = ok.iter().filter_map(|s| s.outputs[j]).collect();
         let svg = report::histogram_svg(&format!("{}: {}", summary.network, x.column.name), x, &values);
         if !svg.is_empty() {
             write_atomic(
-                &dir.join("histograms")
+                &folder
+                    .join("histograms")
                     .join(format!("{}.svg", report::file_stem(&x.column.name))),
                 svg.as_bytes(),
             )?;
@@ -202,8 +221,9 @@ fn write_all(record: &Record, dir: &Path, json: bool) -> photoledger::Result<Exi
     }
     let tornado = report::tornado_svg(&format!("{}: what drives each output", summary.network), &summary);
     if !tornado.is_empty() {
-        write_atomic(&dir.join("tornado.svg"), tornado.as_bytes())?;
+        write_atomic(&folder.join("tornado.svg"), tornado.as_bytes())?;
     }
+    folder.commit()?;
     if json {
         outln!("{summary_json}")?;
     } else {

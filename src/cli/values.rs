@@ -14,6 +14,22 @@ pub fn points(text: &str) -> Result<usize, String> {
     Ok(n)
 }
 
+/// `uncertainty --samples`: a whole number from 1 to [`MAX_SAMPLES`].
+pub fn samples(text: &str) -> Result<usize, String> {
+    let n: usize = text
+        .trim()
+        .parse()
+        .map_err(|_| format!("\"{text}\" is not a whole number; expected 1 to {MAX_SAMPLES}"))?;
+    if !(1..=MAX_SAMPLES).contains(&n) {
+        return Err(format!("{n} is outside 1 to {MAX_SAMPLES}"));
+    }
+    Ok(n)
+}
+
+/// The most samples one uncertainty run may ask for, all shards together (each sample's
+/// values and outputs are held until the run is written: about a kilobyte each).
+pub const MAX_SAMPLES: usize = 1_000_000;
+
 /// The most output points a time course may ask for (a CSV of about 100 MB for 50 species).
 pub const MAX_POINTS: usize = 1_000_000;
 

@@ -5,14 +5,33 @@
 //! is renamed aside, the new one renamed in, the old one removed. An interrupted run (an error,
 //! a panic, SIGINT or SIGTERM through [`remove_unfinished`]) leaves the old folder as it was and
 //! no temporary folder; a finished run leaves only the new one, never a mix of old and new
-//! files. Each file inside is still written by `report::write_atomic`.
+//! files. Each file inside is still written by `report::write_atomic`, whose temporary file
+//! ([`create_temporary`]) is removed on a signal too: a single-file output (a diagram, a
+//! report page, an uncertainty shard) leaves the old file or the new one, and no `.tmp`.
+//!
+//! One lock guards every temporary: it is held while a temporary is created or a folder
+//! committed, and the signal handler takes it for good before it removes them, so nothing is
+//! created after the clean-up began.
 
 use crate::error::{Error, Result};
 use std::path::{Path, PathBuf};
-use std::sync::Mutex;
+use std::sync::{Mutex, MutexGuard};
 
-/// Runs not yet committed, (temporary folder, target), for [`remove_unfinished`].
-static UNFINISHED: Mutex<Vec<(PathBuf, PathBuf)>> = Mutex::new(Vec::new());
+/// A temporary not yet in place, for [`remove_unfinished`].
+#[derive(Debug, Clone, PartialEq)]
+enum Unfinished {
+    /// A folder being written (temporary folder, target).
+    Folder(PathBuf, PathBuf),
+    /// A file being written by `report::write_atomic` (the temporary file).
+    File(PathBuf),
+}
+
+/// Every temporary not yet in place. Held while one is created or a folder committed.
+static UNFINISHED: Mutex<Vec<Unfinished>> = Mutex::new(Vec::new());
+
+fn unfinished() -> MutexGuard<'static, Vec<Unfinished>> {
+    UNFINISHED.lock().unwrap_or_else(|e| e.into_inner())
+}
 
 /// An output folder being written.
 #[derive(Debug)]
@@ -35,19 +54,27 @@ fn sibling(target: &Path, tag: &str) -> PathBuf {
     parent.join(format!(".{name}.{tag}-{}", std::process::id()))
 }
 
+/// Refuse `target` as an output folder when it is an existing file (or a link to one): named,
+/// and left alone. Also for a folder that files are added to rather than replaced whole (an
+/// uncertainty shard's).
+pub fn not_a_file(target: &Path) -> Result<()> {
+    if let Ok(meta) = std::fs::metadata(target)
+        && !meta.is_dir()
+    {
+        return Err(Error::Usage(format!(
+            "--out {}: is an existing file, not a folder; name a folder (it is created, or replaced whole)",
+            target.display()
+        )));
+    }
+    Ok(())
+}
+
 impl Folder {
     /// Start writing the folder `target`: refused when `target` is something other than a
     /// folder (a regular file, or a link to one: it is named, and left alone); the files go
     /// into a fresh temporary sibling until [`Folder::commit`].
     pub fn begin(target: &Path) -> Result<Folder> {
-        if let Ok(meta) = std::fs::metadata(target)
-            && !meta.is_dir()
-        {
-            return Err(Error::Usage(format!(
-                "--out {}: is an existing file, not a folder; name a folder (it is created, or replaced whole)",
-                target.display()
-            )));
-        }
+        not_a_file(target)?;
         if std::fs::symlink_metadata(target).is_ok_and(|m| m.file_type().is_symlink()) {
             return Err(Error::Usage(format!(
                 "--out {}: is a symbolic link; name the folder itself, which is replaced whole",
@@ -59,13 +86,12 @@ impl Folder {
             path: staging.clone(),
             source,
         };
+        let mut u = unfinished();
         if staging.exists() {
             std::fs::remove_dir_all(&staging).map_err(io)?;
         }
         std::fs::create_dir_all(&staging).map_err(io)?;
-        if let Ok(mut u) = UNFINISHED.lock() {
-            u.push((staging.clone(), target.to_path_buf()));
-        }
+        u.push(Unfinished::Folder(staging.clone(), target.to_path_buf()));
         Ok(Folder {
             target: target.to_path_buf(),
             staging,
@@ -96,27 +122,30 @@ impl Folder {
         };
         let old = sibling(&self.target, "old");
         let had_old = self.target.is_dir();
-        if had_old {
-            if old.exists() {
-                std::fs::remove_dir_all(&old).map_err(|e| io(&old, e))?;
-            }
-            std::fs::rename(&self.target, &old).map_err(|e| io(&self.target, e))?;
-        }
-        if let Err(e) = std::fs::rename(&self.staging, &self.target) {
-            // Put the old folder back: the run leaves what was there.
+        {
+            // The renames under the lock: a signal meanwhile waits, then finds the old folder
+            // aside or the new one in place and settles either.
+            let mut u = unfinished();
             if had_old {
-                let _ = std::fs::rename(&old, &self.target);
+                if old.exists() {
+                    std::fs::remove_dir_all(&old).map_err(|e| io(&old, e))?;
+                }
+                std::fs::rename(&self.target, &old).map_err(|e| io(&self.target, e))?;
             }
-            return Err(io(&self.target, e));
+            if let Err(e) = std::fs::rename(&self.staging, &self.target) {
+                // Put the old folder back: the run leaves what was there.
+                if had_old {
+                    let _ = std::fs::rename(&old, &self.target);
+                }
+                return Err(io(&self.target, e));
+            }
+            self.committed = true;
+            u.retain(|x| !matches!(x, Unfinished::Folder(s, _) if *s == self.staging));
         }
-        self.committed = true;
-        let removed = if had_old {
-            std::fs::remove_dir_all(&old).map_err(|e| io(&old, e))
-        } else {
-            Ok(())
-        };
-        forget(&self.staging);
-        removed
+        if had_old {
+            std::fs::remove_dir_all(&old).map_err(|e| io(&old, e))?;
+        }
+        Ok(())
     }
 }
 
@@ -124,38 +153,74 @@ impl Drop for Folder {
     /// A folder never committed (an error or a panic on the way) is removed.
     fn drop(&mut self) {
         if !self.committed {
+            let mut u = unfinished();
             let _ = std::fs::remove_dir_all(&self.staging);
-            forget(&self.staging);
+            u.retain(|x| !matches!(x, Unfinished::Folder(s, _) if *s == self.staging));
         }
     }
 }
 
-fn forget(staging: &Path) {
-    if let Ok(mut u) = UNFINISHED.lock() {
-        u.retain(|(p, _)| p != staging);
+/// A temporary file made by [`create_temporary`]: forgotten when dropped (renamed into place,
+/// or removed by its writer after a failure).
+#[derive(Debug)]
+pub struct Temporary(PathBuf);
+
+impl Drop for Temporary {
+    fn drop(&mut self) {
+        unfinished().retain(|x| !matches!(x, Unfinished::File(p) if *p == self.0));
     }
 }
 
-/// Remove the temporary folders of every run not yet committed: for a signal handler, before
-/// the process ends (a run stopped by SIGINT or SIGTERM leaves the old folder as it was). A run
-/// stopped inside [`Folder::commit`] is settled: the old folder put back when the new one is not
-/// yet in place, and removed when it is.
-pub fn remove_unfinished() {
-    let runs = match UNFINISHED.lock() {
-        Ok(mut u) => std::mem::take(&mut *u),
-        Err(_) => return,
-    };
-    for (staging, target) in runs {
-        let _ = std::fs::remove_dir_all(&staging);
-        let old = sibling(&target, "old");
-        if old.is_dir() {
-            if target.exists() {
-                let _ = std::fs::remove_dir_all(&old);
-            } else {
-                let _ = std::fs::rename(&old, &target);
+/// Create the temporary file `tmp` (and its folder) for writing, recorded so that a signal
+/// removes it; keep the [`Temporary`] until the file is renamed into place or removed.
+pub fn create_temporary(tmp: &Path) -> std::io::Result<(std::fs::File, Temporary)> {
+    let mut u = unfinished();
+    if let Some(dir) = tmp.parent()
+        && !dir.as_os_str().is_empty()
+    {
+        std::fs::create_dir_all(dir)?;
+    }
+    let f = std::fs::File::create(tmp)?;
+    u.push(Unfinished::File(tmp.to_path_buf()));
+    Ok((f, Temporary(tmp.to_path_buf())))
+}
+
+/// Remove the temporary folders and files of every output not yet in place, then run `then`
+/// with the lock still held (the signal handler ends the process there, so no temporary is
+/// created after the clean-up). A run stopped by SIGINT or SIGTERM leaves the old folder as it
+/// was; a run stopped inside [`Folder::commit`] is settled: the old folder put back when the
+/// new one is not yet in place, and removed when it is.
+pub fn remove_unfinished_then(then: impl FnOnce()) {
+    let mut u = unfinished();
+    for x in std::mem::take(&mut *u) {
+        clean(x);
+    }
+    then();
+}
+
+/// Remove one temporary (settling a folder stopped inside its commit).
+fn clean(x: Unfinished) {
+    match x {
+        Unfinished::File(tmp) => {
+            let _ = std::fs::remove_file(&tmp);
+        }
+        Unfinished::Folder(staging, target) => {
+            let _ = std::fs::remove_dir_all(&staging);
+            let old = sibling(&target, "old");
+            if old.is_dir() {
+                if target.exists() {
+                    let _ = std::fs::remove_dir_all(&old);
+                } else {
+                    let _ = std::fs::rename(&old, &target);
+                }
             }
         }
     }
+}
+
+/// [`remove_unfinished_then`] with nothing after it (the lock is released).
+pub fn remove_unfinished() {
+    remove_unfinished_then(|| {});
 }
 
 #[cfg(test)]
@@ -204,9 +269,27 @@ mod tests {
         }
         assert_eq!(names(&out), ["old.csv"]);
         assert_eq!(names(&d), ["run"]);
+        // What a signal does to a folder being written (only this test's: other tests of the
+        // crate write their own meanwhile).
         let f = Folder::begin(&d.join("fresh")).unwrap();
-        remove_unfinished();
+        let mine = Unfinished::Folder(f.path().to_path_buf(), d.join("fresh"));
+        assert!(unfinished().contains(&mine));
+        clean(mine);
         assert!(!f.path().exists());
+    }
+
+    #[test]
+    fn a_temporary_file_is_listed_until_dropped_and_a_signal_removes_it() {
+        let d = scratch("tmpfile");
+        let tmp = d.join("sub/.page.html.1.tmp");
+        let (f, t) = create_temporary(&tmp).unwrap();
+        drop(f);
+        let mine = Unfinished::File(tmp.clone());
+        assert!(unfinished().contains(&mine));
+        clean(mine.clone());
+        assert!(!tmp.exists());
+        drop(t);
+        assert!(!unfinished().contains(&mine));
     }
 
     #[test]
@@ -217,5 +300,22 @@ mod tests {
         let e = Folder::begin(&out).unwrap_err().to_string();
         assert!(e.contains("results.txt") && e.contains("existing file"), "{e}");
         assert_eq!(std::fs::read_to_string(&out).unwrap(), "keep");
+    }
+
+    #[cfg(unix)]
+    #[test]
+    fn a_link_as_the_folder_is_refused_and_left() {
+        let d = scratch("link");
+        std::fs::create_dir_all(d.join("real")).unwrap();
+        std::os::unix::fs::symlink("real", d.join("run")).unwrap();
+        let e = Folder::begin(&d.join("run")).unwrap_err().to_string();
+        assert!(e.contains("run") && e.contains("symbolic link"), "{e}");
+        assert!(
+            std::fs::symlink_metadata(d.join("run"))
+                .unwrap()
+                .file_type()
+                .is_symlink()
+        );
+        assert_eq!(names(&d), ["real", "run"], "no temporary folder");
     }
 }

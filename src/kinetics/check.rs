@@ -9,6 +9,8 @@
 //! negative itself; a concentration is never negative. A small undershoot is round-off: within
 //! the run's tolerance it is accepted (and shown as zero, `units::display::ZeroWithin`).
 
+use super::Options;
+use crate::error::{Error, Result};
 use crate::model::Model;
 use crate::model::rhs::LedgerLayout;
 use crate::units::display::format_concentration;
@@ -117,6 +119,40 @@ impl std::fmt::Display for Unphysical {
     }
 }
 
+/// Run `once` at the tolerances of `opts` and judge its result by `judge` (the worst impossible
+/// number, against the tolerances asked for). An impossible result is run again at tolerances
+/// [`TIGHTEN`] times tighter (the relative one no tighter than [`TIGHTEST_RTOL`]), at most
+/// [`RETRIES`] times; the sound result comes back with the retries it took, first to last. A
+/// result still impossible after the last retry (or at the tightest tolerance already) is
+/// [`Error::Unphysical`] with its worst finding and every tolerance tried. An error of `once`
+/// ends the loop as it is.
+pub fn retried<T>(
+    opts: &Options,
+    mut once: impl FnMut(&Options) -> Result<T>,
+    mut judge: impl FnMut(&T) -> Option<Finding>,
+) -> Result<(T, Vec<Retry>)> {
+    let mut o = opts.clone();
+    let mut retries = Vec::new();
+    let mut tried = Vec::new();
+    loop {
+        let result = once(&o)?;
+        tried.push((o.rtol, o.atol));
+        let Some(finding) = judge(&result) else {
+            return Ok((result, retries));
+        };
+        if retries.len() == RETRIES || o.rtol <= TIGHTEST_RTOL {
+            return Err(Error::Unphysical(Box::new(Unphysical { finding, tried })));
+        }
+        o.rtol = (o.rtol / TIGHTEN).max(TIGHTEST_RTOL);
+        o.atol /= TIGHTEN;
+        retries.push(Retry {
+            rtol: o.rtol,
+            atol: o.atol,
+            because: finding,
+        });
+    }
+}
+
 /// The worst impossible number among `states` (full states at `times`) of a run of `model` at
 /// `rtol` and `atol` (mol/L), judged against the limits of the tolerances asked for
 /// (`limit_rtol`, `limit_atol`): the most negative concentration beyond
@@ -209,6 +245,96 @@ mod tests {
         [[species]]\nname = \"A\"\ninitial = \"50 uM\"\n\
         epsilon = { at = \"320 nm\", value = \"1000 L/(mol cm)\" }\n\
         [[species]]\nname = \"B\"\n[[photo]]\nequation = \"A -> B\"\nquantum_yield = 0.3\n";
+
+    /// A finding for the retry tests: a concentration of `value` mol/L.
+    fn negative(value: f64) -> Finding {
+        Finding {
+            what: "B".into(),
+            photons: false,
+            value,
+            time: 1.0,
+            limit: 1e-12,
+        }
+    }
+
+    #[test]
+    fn a_run_that_stays_impossible_is_retried_twice_tighter_then_refused() {
+        let opts = Options::until(10.0);
+        let mut asked = Vec::new();
+        // A solve that always ends below zero, by less each time (as a tighter run does).
+        let e = retried(
+            &opts,
+            |o| {
+                asked.push((o.rtol, o.atol));
+                Ok(-1e-3 * o.rtol)
+            },
+            |&v: &f64| (v < 0.0).then(|| negative(v)),
+        )
+        .unwrap_err();
+        let expected = [(1e-6, 1e-12), (1e-8, 1e-14), (1e-10, 1e-16)];
+        assert_eq!(asked.len(), 1 + RETRIES);
+        for ((r, a), (er, ea)) in asked.iter().zip(expected) {
+            assert!(
+                (r / er - 1.0).abs() < 1e-12 && (a / ea - 1.0).abs() < 1e-12,
+                "{asked:?}"
+            );
+        }
+        let Error::Unphysical(u) = &e else { panic!("{e}") };
+        assert_eq!(u.tried, asked, "every tolerance tried is reported");
+        assert_eq!(u.finding.value, -1e-13, "the last run's finding");
+        let text = e.to_string();
+        assert!(
+            text.contains("impossible numbers") && text.contains("then rtol 1e-10"),
+            "{text}"
+        );
+    }
+
+    #[test]
+    fn a_run_that_recovers_on_the_second_try_gives_its_result_and_the_retry() {
+        let opts = Options::until(10.0);
+        let mut calls = 0;
+        let (v, retries) = retried(
+            &opts,
+            |o| {
+                calls += 1;
+                Ok(if o.rtol > 1e-7 { -1e-6 } else { 0.5 })
+            },
+            |&v: &f64| (v < 0.0).then(|| negative(v)),
+        )
+        .unwrap();
+        assert_eq!((v, calls), (0.5, 2));
+        assert_eq!(retries.len(), 1);
+        assert!((retries[0].rtol / 1e-8 - 1.0).abs() < 1e-12 && retries[0].because.value == -1e-6);
+    }
+
+    #[test]
+    fn a_retry_goes_no_tighter_than_the_tightest_rtol_and_a_failed_solve_is_not_retried() {
+        let mut opts = Options::until(10.0);
+        opts.rtol = 1e-13;
+        let mut asked = Vec::new();
+        let e = retried(
+            &opts,
+            |o| {
+                asked.push(o.rtol);
+                Ok(-1.0)
+            },
+            |&v: &f64| (v < 0.0).then(|| negative(v)),
+        )
+        .unwrap_err();
+        assert_eq!(asked, [1e-13, TIGHTEST_RTOL], "{e}");
+        let mut calls = 0;
+        let e = retried(
+            &opts,
+            |_| -> Result<f64> {
+                calls += 1;
+                Err(Error::Numerical("the BDF integrator stopped".into()))
+            },
+            |_| None,
+        )
+        .unwrap_err();
+        assert_eq!(calls, 1);
+        assert!(matches!(e, Error::Numerical(_)), "{e}");
+    }
 
     #[test]
     fn negatives_beyond_the_tolerance_are_found_and_round_off_is_not() {

@@ -306,27 +306,13 @@ pub fn simulate_from(
     opts: &Options,
     progress: &mut dyn FnMut(f64),
 ) -> Result<Trajectory> {
-    let mut o = opts.clone();
-    let mut retries = Vec::new();
-    let mut tried = Vec::new();
-    loop {
-        let mut tr = simulate_once(model, t0, y0, &o, progress)?;
-        tried.push((o.rtol, o.atol));
-        let Some(finding) = check::worst(model, &tr.layout, &tr.times, &tr.states, opts.rtol, opts.atol) else {
-            tr.retries = retries;
-            return Ok(tr);
-        };
-        if retries.len() == check::RETRIES || o.rtol <= check::TIGHTEST_RTOL {
-            return Err(Error::Unphysical(Box::new(check::Unphysical { finding, tried })));
-        }
-        o.rtol = (o.rtol / check::TIGHTEN).max(check::TIGHTEST_RTOL);
-        o.atol /= check::TIGHTEN;
-        retries.push(check::Retry {
-            rtol: o.rtol,
-            atol: o.atol,
-            because: finding,
-        });
-    }
+    let (mut tr, retries) = check::retried(
+        opts,
+        |o| simulate_once(model, t0, y0, o, progress),
+        |tr| check::worst(model, &tr.layout, &tr.times, &tr.states, opts.rtol, opts.atol),
+    )?;
+    tr.retries = retries;
+    Ok(tr)
 }
 
 /// One run of [`simulate_from`] at the tolerances of `opts`, unchecked.

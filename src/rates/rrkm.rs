@@ -106,9 +106,9 @@ pub fn count_states(modes: &Modes, grain: f64, max_energy: f64) -> Result<StateC
         let n = (v / grain).round();
         if n < 1.0 {
             return Err(format!(
-                "a vibration of {:.3} cm-1 is smaller than half the grain of {:.3} cm-1; use a finer grain",
-                v / WAVENUMBER,
-                grain / WAVENUMBER
+                "a vibration of {} cm-1 is smaller than half the grain of {} cm-1; use a finer grain",
+                crate::units::sig(v / WAVENUMBER, 6),
+                crate::units::sig(grain / WAVENUMBER, 6)
             ));
         }
         rounding = rounding.max((v - n * grain).abs());

@@ -161,7 +161,10 @@ fn row(s: usize, changes: &[(usize, f64)], chain: &Chain, parts: &Parts, index: 
     let dtotal: f64 = changes.iter().map(|c| c.1).sum();
     for (e, x) in ex.iter().enumerate() {
         let own: f64 = changes.iter().filter(|c| c.0 == e).map(|c| c.1).sum();
-        let d = own / total - x.rate * dtotal / (total * total);
+        // Each ratio taken alone: total² underflows to zero for rates near the smallest
+        // doubles (a starting absorbance of 1e298 leaves 1e-302 /s of light per molecule),
+        // which made 0/0 = NaN of a derivative that is finite.
+        let d = own / total - (x.rate / total) * (dtotal / total);
         let Some(to) = x.to.or(index.removed) else {
             continue;
         };
