@@ -240,7 +240,7 @@ fn barrier_tables_replace_their_folder_whole_and_refuse_a_file() {
     };
     let out = table("k");
     assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
-    assert_eq!(names(&dir.join("k")), ["k_of_e.csv", "k_of_e.svg"]);
+    assert_eq!(names(&dir.join("k")), ["k_of_e.csv", "k_of_e.svg", "summary.json"]);
     std::fs::write(dir.join("k.csv"), "keep me").unwrap();
     let out = table("k.csv");
     let err = String::from_utf8_lossy(&out.stderr);
