@@ -242,7 +242,15 @@ pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
     let log = min > 0.0 && max / min > 100.0;
     let tx = |a: f64| if log { a.log10() } else { a };
     let (lo, hi) = (tx(min), tx(max));
-    let span = if hi > lo { hi - lo } else { lo.abs().max(1e-300) * 1e-6 };
+    // One value only (every sample alike, or all within round-off of zero): a narrow span around
+    // it, or a unit span around 0, so the axis has a width.
+    let span = if hi > lo {
+        hi - lo
+    } else if lo != 0.0 {
+        lo.abs() * 1e-6
+    } else {
+        1.0
+    };
     let (lo, hi) = (lo - 0.02 * span, hi + 0.02 * span);
     let bins = 40;
     let w = (hi - lo) / bins as f64;
@@ -275,7 +283,12 @@ pub fn histogram_svg(title: &str, x: &OutputSummary, values: &[f64]) -> String {
         .quantiles
         .iter()
         .filter_map(|(q, val)| {
-            let val = (*val)? / per;
+            // Shown as the bars are (round-off of zero reads 0), and drawn only inside the axis:
+            // a line far outside it would overflow the plotting library's pixel coordinates.
+            let val = z.shown((*val)?) / per;
+            if !(val >= x0 && val <= x1) {
+                return None;
+            }
             let (name, dash) = if *q == 0.5 {
                 ("median", None)
             } else if *q == 0.025 {
@@ -610,5 +623,35 @@ uniform = ["1e-5 /s", "2e-5 /s"]
         );
         assert_eq!(parameter_words("conditions.temperature"), "temperature");
         assert_eq!(parameter_words("light.\"blue LED\".power"), "blue LED: power");
+    }
+
+    #[test]
+    fn a_histogram_of_values_within_round_off_of_zero_draws_without_overflow() {
+        // Every sample within the kinetics' round-off of zero (a reactor of 1e6 L, so the
+        // concentrations are ~1e-20 M at atol 1e-12 M) while the quantiles are ~1e-15: the
+        // quantile lines used to be drawn unshown, 1e291 axis widths away, which overflowed the
+        // plotting library's pixel coordinates (a panic in a debug build). Found by
+        // scripts/fuzz_inputs.py.
+        let x = OutputSummary {
+            column: crate::uncertainty::Column {
+                name: "final[product]".into(),
+                unit: "M".into(),
+                about: "final concentration".into(),
+                zero_within: Some(1e-12),
+                zero_within_relative: None,
+                censored_above: None,
+            },
+            n: 3,
+            missing: 0,
+            censored: 0,
+            mean: Some(1e-15),
+            sd: Some(1e-16),
+            quantiles: vec![(0.025, Some(9e-16)), (0.5, Some(1e-15)), (0.975, Some(1.1e-15))],
+            beyond_horizon: vec![],
+            drivers: vec![],
+        };
+        let svg = histogram_svg("product", &x, &[9e-16, 1e-15, 1.1e-15]);
+        assert!(svg.contains("<svg"), "{svg}");
+        assert!(svg.contains("median"), "the legend names the median line");
     }
 }
