@@ -125,9 +125,15 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<Exit> {
         &folder.join("concentrations.svg"),
         simulation::concentrations_svg(&net, &model, shown, axis).as_bytes(),
     )?;
+    // Photons add up steadily under a steady lamp: a concentration step at the start says
+    // nothing about them, so their plot keeps a linear time axis unless a log one was asked for.
+    let (photon_run, photon_axis) = match axis {
+        TimeAxis::Automatic => (&tr, TimeAxis::Linear),
+        _ => (shown, axis),
+    };
     write_atomic(
         &folder.join("photons.svg"),
-        simulation::photons_svg(&net, &model, shown, axis).as_bytes(),
+        simulation::photons_svg(&net, &model, photon_run, photon_axis).as_bytes(),
     )?;
     folder.commit()?;
     // Warnings about the run come before its results, like the network's.

@@ -312,52 +312,52 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
     let _ = writeln!(o, "\nphotons ({pu})");
     // A dark run (every source at zero) has no shares of the incident light to give.
     let dark = p.incident <= 0.0;
-    let _ = writeln!(
-        o,
-        "  incident        {}{}",
-        sig(p.incident / pf, 4),
-        if dark && !s.floored.lights.is_empty() {
-            "  (no light: below the light floor, see floors below)"
-        } else if dark {
-            "  (no light: every source is at zero)"
-        } else {
-            ""
-        }
-    );
+    // One table: labels in one column, numbers right-aligned in the next, notes after them.
+    let mut rows: Vec<(String, String, String)> = Vec::new();
+    let incident_note = if dark && !s.floored.lights.is_empty() {
+        "(no light: below the light floor, see floors below)"
+    } else if dark {
+        "(no light: every source is at zero)"
+    } else {
+        ""
+    };
+    rows.push(("incident".into(), sig(p.incident / pf, 4), incident_note.into()));
     for a in &p.by_absorber {
         let share = if dark {
-            "no light".to_string()
+            "(no light)".to_string()
         } else {
             format!(
-                "{}% of incident; {} returned, {} productive",
+                "({} % of incident; {} returned, {} productive)",
                 sig(100.0 * a.absorbed / p.incident, 3),
                 sig(a.returned / pf, 3),
                 sig(a.productive / pf, 3)
             )
         };
-        let _ = writeln!(
-            o,
-            "  absorbed by {:<16} {:>10}  ({share})",
-            a.species,
-            sig(a.absorbed / pf, 4),
-        );
+        rows.push((format!("absorbed by {}", a.species), sig(a.absorbed / pf, 4), share));
     }
-    let bg = p.background();
-    let tr = p.transmitted();
-    let _ = writeln!(o, "  background      {}", sig(bg / pf, 4));
-    let _ = writeln!(o, "  transmitted     {}", sig(tr / pf, 4));
+    rows.push(("background".into(), sig(p.background() / pf, 4), String::new()));
+    rows.push(("transmitted".into(), sig(p.transmitted() / pf, 4), String::new()));
+    let lw = rows.iter().map(|r| r.0.chars().count()).max().unwrap_or(0).max(14);
+    let vw = rows.iter().map(|r| r.1.chars().count()).max().unwrap_or(0);
+    for (label, value, note) in &rows {
+        let line = format!("  {label:<lw$}  {value:>vw$}  {note}");
+        let _ = writeln!(o, "{}", line.trim_end());
+    }
     if !dark {
         let _ = writeln!(
             o,
-            "  balance         incident − absorbed − background − transmitted = {} of incident",
+            "  {:<lw$}  incident − absorbed − background − transmitted = {} of incident",
+            "balance",
             sig(p.balance_error, 2)
         );
         let (figure, detail) = inner_filter_text(p);
-        let _ = writeln!(o, "  inner filter    {figure}\n                  ({detail})");
+        let pad = " ".repeat(lw + 4);
+        let _ = writeln!(o, "  {:<lw$}  {figure}\n{pad}({detail})", "inner filter");
         let _ = writeln!(
             o,
-            "  no reaction     {}% of incident photons absorbed by species and led to no reaction (returned the molecule \
+            "  {:<lw$}  {} % of incident photons absorbed by species and led to no reaction (returned the molecule \
              unchanged, or taken by a species with no photochemistry; the background is its own line)",
+            "no reaction",
             sig(100.0 * p.unproductive_fraction, 3)
         );
     }
@@ -480,7 +480,7 @@ pub fn inner_filter_text(p: &crate::kinetics::ledger::Ledger) -> (String, String
     taken.push(format!("background {}", pct(f.background)));
     (
         format!(
-            "{}% of incident photons: light absorbed by anything other than the photoreactants of the reaction followed",
+            "{} % of incident photons: light absorbed by anything other than the photoreactants of the reaction followed",
             sig(100.0 * f.fraction, 3)
         ),
         format!("followed: {followed}; {reactants}; taken by {}", taken.join(", ")),
