@@ -116,6 +116,10 @@ fn violations(text: &str, kcal_file: bool) -> Vec<String> {
                 bad(&format!("\"{token}\""));
             }
         }
+        // A table's unit column ("... 96.17  kJ/mol").
+        if kcal_file && line.trim_end().ends_with(" kJ/mol") && !line.contains("kcal/mol") {
+            bad("a kJ/mol column for a file written in kcal/mol");
+        }
         let words: Vec<&str> = line.split_whitespace().collect();
         for pair in words.windows(2) {
             let Some(v) = number(pair[0]) else { continue };
@@ -256,6 +260,26 @@ fn no_text_output_prints_a_unit_outside_the_display_rule() {
                 found.push(format!("photoledger {} {stem}: {v}", args[0]));
             }
         }
+    }
+    // fit: the fitted barrier of a kcal/mol file, in the table and the start values.
+    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
+    let net = root.join("networks/photoswitch.toml");
+    let data = root.join("demo-data/fit/experiments.toml");
+    let fit_out = dir.join("photoswitch-fit").to_string_lossy().to_string();
+    let text = run(
+        &dir,
+        &[
+            "fit",
+            net.to_str().unwrap(),
+            "--data",
+            data.to_str().unwrap(),
+            "--out",
+            &fit_out,
+        ],
+    );
+    assert!(text.contains("kcal/mol"), "{text}");
+    for v in violations(&text, true) {
+        found.push(format!("photoledger fit photoswitch: {v}"));
     }
     // The barrier command without a network: the thermal window.
     let text = run(&dir, &["barrier", "--window", "10 ps", "--temperature", "298.15 K"]);

@@ -585,6 +585,8 @@ pub struct FitResult {
     pub aicc: f64,
     /// BIC.
     pub bic: f64,
+    /// The family the network file wrote its energies in: fitted barriers are shown in it.
+    pub energy_unit: crate::units::display::EnergyUnit,
 }
 
 /// A standard normal draw (Box–Muller, common practice).
@@ -717,6 +719,7 @@ pub fn fit(setup: &Setup, opts: &FitOptions, progress: &(dyn Fn(&Progress) + Syn
         k,
         aicc,
         bic,
+        energy_unit: setup.base.energy_unit,
     })
 }
 

@@ -18,9 +18,9 @@ use std::fmt::Write;
 pub use crate::units::display::readable;
 use crate::units::display::{EnergyUnit, readable_in};
 
-/// The value as `--set`/file text in a readable unit, 7 significant figures.
-pub fn value_text(f: &Free, v: f64) -> String {
-    let (x, u) = readable(f.unit, v);
+/// The value as `--set`/file text in a readable unit (energies in `family`), 7 significant figures.
+pub fn value_text(f: &Free, v: f64, family: EnergyUnit) -> String {
+    let (x, u) = readable_in(f.unit, v, family);
     if u.is_empty() {
         sig(x, 7)
     } else {
@@ -74,7 +74,7 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
         "parameter", "value", "± se", "95 % interval"
     );
     for (i, f) in r.free.iter().enumerate() {
-        let (v, u) = readable(f.unit, s.values[i]);
+        let (v, u) = readable_in(f.unit, s.values[i], r.energy_unit);
         let scale = if s.values[i] != 0.0 { v / s.values[i] } else { 1.0 };
         let (lo, hi) = s.intervals[i];
         let (se, interval) = if s.standard_errors[i].is_finite() {
@@ -104,7 +104,7 @@ pub fn fit_text(network: &str, r: &FitResult) -> String {
         "\nstart values: {}",
         r.free
             .iter()
-            .map(|f| format!("{} = {}", f.key, value_text(f, f.start)))
+            .map(|f| format!("{} = {}", f.key, value_text(f, f.start, r.energy_unit)))
             .collect::<Vec<_>>()
             .join("; ")
     );

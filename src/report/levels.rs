@@ -313,7 +313,7 @@ pub fn scores_text(s: &Scores) -> String {
                 .free
                 .iter()
                 .zip(&f.result.solution.values)
-                .map(|(p, &v)| format!("{} = {}", p.key, rf::value_text(p, v)))
+                .map(|(p, &v)| format!("{} = {}", p.key, rf::value_text(p, v, f.result.energy_unit)))
                 .collect();
             let _ = writeln!(o, "  \"{label}\": {}", values.join(", "));
         }

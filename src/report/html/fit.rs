@@ -3,7 +3,7 @@
 
 use super::escape::{esc, inline_svg};
 use super::page::{self, num_cell, text_cell};
-use crate::report::fit::{self as rf, readable};
+use crate::report::fit as rf;
 use crate::study::FitStudy;
 use crate::units::sig;
 
@@ -53,7 +53,7 @@ pub fn section(f: &FitStudy) -> String {
     let mut headers: Vec<(String, bool)> = vec![("".into(), false)];
     let mut scales = Vec::new();
     for (i, p) in r.free.iter().enumerate() {
-        let (v, u) = readable(p.unit, s.values[i]);
+        let (v, u) = crate::units::display::readable_in(p.unit, s.values[i], r.energy_unit);
         scales.push(if s.values[i] != 0.0 { v / s.values[i] } else { 1.0 });
         headers.push((format!("{} ({})", p.key, unit_label(&u)), true));
     }
