@@ -185,7 +185,7 @@ pub fn run(a: &FitArgs) -> photoledger::Result<Exit> {
     )?;
     write_atomic(
         &folder.join("residuals.svg"),
-        rf::residuals_svg(&format!("{stem}: weighted residuals"), &rows).as_bytes(),
+        rf::residuals_svg(&format!("{stem}: weighted residuals"), &rows, &loaded.species_names()).as_bytes(),
     )?;
     write_atomic(&folder.join(format!("{stem}.fitted.toml")), fitted.as_bytes())?;
     folder.commit()?;

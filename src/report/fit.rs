@@ -492,33 +492,82 @@ pub fn data_svg(
     svg
 }
 
-/// SVG of the weighted residuals against time.
-pub fn residuals_svg(title: &str, rows: &[Row]) -> String {
+/// SVG of the weighted residuals ((measured − fitted) / sd; weight 1 in their unit where no sd
+/// was given), one panel per experiment with its own time axis, each species in its network
+/// colour (`species`: the network's species in order; names not in it follow), one y range for
+/// every panel so their spreads compare, and a band at ±2.
+pub fn residuals_svg(title: &str, rows: &[Row], species: &[String]) -> String {
+    let mut names: Vec<String> = species.to_vec();
+    let mut shown: Vec<String> = Vec::new();
+    let mut experiments: Vec<&str> = Vec::new();
+    for r in rows {
+        if !names.contains(&r.2) {
+            names.push(r.2.clone());
+        }
+        if !shown.contains(&r.2) {
+            shown.push(r.2.clone());
+        }
+        if !experiments.contains(&r.0.as_str()) {
+            experiments.push(&r.0);
+        }
+    }
+    let colour = |s: &str| palette::species(names.iter().position(|n| n == s).unwrap_or(0));
+    let m = rows
+        .iter()
+        .map(|r| ((r.3 - r.4) / r.5).abs())
+        .filter(|v| v.is_finite())
+        .fold(2.5, f64::max)
+        * 1.1;
+    let n = experiments.len().max(1) as u32;
+    let panel = 260;
     let mut svg = String::new();
     {
-        let root = SVGBackend::with_string(&mut svg, (900, 400)).into_drawing_area();
+        let root = SVGBackend::with_string(&mut svg, (FIT_W, 46 + n * panel)).into_drawing_area();
         let _ = root.fill(&WHITE);
-        let t_end = rows.iter().map(|r| r.1).fold(0.0, f64::max).max(1e-30);
-        let (tu, tname) = time_unit(t_end);
-        let res: Vec<(f64, f64)> = rows.iter().map(|r| (r.1 / tu, (r.3 - r.4) / r.5)).collect();
-        let m = res.iter().map(|r| r.1.abs()).fold(1.0, f64::max) * 1.1;
         let draw = || -> std::result::Result<(), Box<dyn std::error::Error + '_>> {
-            let mut c = ChartBuilder::on(&root)
-                .caption(title, ("sans-serif", 20))
-                .margin(16)
-                .x_label_area_size(44)
-                .y_label_area_size(70)
-                .build_cartesian_2d(0.0..t_end / tu * 1.02, -m..m)?;
-            c.configure_mesh()
-                .x_desc(format!("time ({tname})"))
-                .y_desc("(measured − fitted) / sd")
-                .label_style(("sans-serif", 14))
-                .draw()?;
-            c.draw_series(LineSeries::new(
-                vec![(0.0, 0.0), (t_end / tu * 1.02, 0.0)],
-                BLACK.stroke_width(1),
+            let body = root.titled(title, ("sans-serif", 22))?;
+            let (plots, legend) = body.split_horizontally(FIT_W - FIT_LEGEND);
+            let panels = plots.split_evenly((n as usize, 1));
+            for (e, area) in experiments.iter().zip(&panels) {
+                let here: Vec<&Row> = rows.iter().filter(|r| r.0 == *e).collect();
+                let t_end = here.iter().map(|r| r.1).fold(0.0, f64::max).max(1e-30);
+                let (tu, tname) = time_unit(t_end);
+                let xr = t_end / tu * 1.03;
+                let mut c = ChartBuilder::on(area)
+                    .caption(format!("experiment “{e}”"), ("sans-serif", 16))
+                    .margin(10)
+                    .x_label_area_size(40)
+                    .y_label_area_size(80)
+                    .build_cartesian_2d(0.0..xr, -m..m)?;
+                c.configure_mesh()
+                    .x_desc(format!("time ({tname})"))
+                    .y_desc("(measured − fitted) / sd")
+                    .x_label_formatter(&|v| ticks::label(*v))
+                    .y_label_formatter(&|v| ticks::label(*v))
+                    .label_style(("sans-serif", 13))
+                    .draw()?;
+                c.draw_series(std::iter::once(Rectangle::new(
+                    [(0.0, -2.0), (xr, 2.0)],
+                    palette::rgb(palette::INK_HEX).mix(0.06).filled(),
+                )))?;
+                c.draw_series(LineSeries::new(vec![(0.0, 0.0), (xr, 0.0)], BLACK.stroke_width(1)))?;
+                c.draw_series(
+                    here.iter()
+                        .filter(|r| ((r.3 - r.4) / r.5).is_finite())
+                        .map(|r| Circle::new((r.1 / tu, (r.3 - r.4) / r.5), 4, colour(&r.2).filled())),
+                )?;
+            }
+            let mut y = 20;
+            for s in &shown {
+                legend.draw(&Circle::new((20, y + 8), 4, colour(s).filled()))?;
+                legend.draw(&Text::new(s.clone(), (38, y), ("sans-serif", 15)))?;
+                y += 22;
+            }
+            legend.draw(&Rectangle::new(
+                [(12, y + 6), (30, y + 14)],
+                palette::rgb(palette::INK_HEX).mix(0.12).filled(),
             ))?;
-            c.draw_series(res.iter().map(|p| Circle::new(*p, 3, palette::species(0).filled())))?;
+            legend.draw(&Text::new("within ±2 sd", (38, y), ("sans-serif", 15)))?;
             Ok(())
         };
         let _ = draw();
@@ -756,5 +805,27 @@ reverse = { prefactor = "1e10 /s", activation = "90 kJ/mol" }
             transform: Transform::Log,
         };
         assert!(fitted_toml(NET, &[bad], &[1.0], &[0.0], EnergyUnit::KjPerMol).is_err());
+    }
+
+    #[test]
+    fn residuals_are_drawn_one_panel_per_experiment_in_species_colours() {
+        let row = |e: &str, t: f64, sp: &str, d: f64| (e.to_string(), t, sp.to_string(), 1.0 + d, 1.0, 0.1, true);
+        let rows = vec![
+            row("lit", 60.0, "A", 0.1),
+            row("lit", 1200.0, "B", -0.1),
+            row("dark", 3600.0, "A", 0.05),
+            row("dark", 21600.0, "A", -0.2),
+        ];
+        let names = vec!["A".to_string(), "B".to_string()];
+        let svg = residuals_svg("r", &rows, &names);
+        assert!(
+            svg.contains("experiment “lit”") && svg.contains("experiment “dark”"),
+            "{svg}"
+        );
+        // Each panel has its own time unit: minutes for the first, hours for the second.
+        assert!(svg.contains("time (min)") && svg.contains("time (h)"), "{svg}");
+        // Species keep the network's colours: B is the second colour of the palette.
+        let b = palette::species_hex(1).to_lowercase();
+        assert!(svg.to_lowercase().contains(&b), "B's colour {b} is drawn");
     }
 }
