@@ -357,7 +357,10 @@ fn k_of_e(a: &BarrierArgs) -> photoledger::Result<()> {
     let folder = Folder::begin(&dir)?;
     write_atomic(&folder.join("k_of_e.csv"), report::k_csv(&rows).as_bytes())?;
     let title = format!("RRKM k(E), E0 = {}", a.barrier.as_deref().unwrap_or(""));
-    write_atomic(&folder.join("k_of_e.svg"), report::k_svg(&rows, &title).as_bytes())?;
+    write_atomic(
+        &folder.join("k_of_e.svg"),
+        report::k_svg(&rows, &title, family).as_bytes(),
+    )?;
     let files = ["k_of_e.csv", "k_of_e.svg"].map(String::from);
     let json = photoledger::report::barrier_json::k_of_e(e0, &rows, &files);
     let text = serde_json::to_string_pretty(&json).map_err(|e| Error::Numerical(e.to_string()))?;

@@ -205,16 +205,19 @@ pub fn k_csv(rows: &[KRow]) -> String {
     t.finish()
 }
 
-/// k(E) on a log axis against E (upper panel) and ρ(E), W(E) on a log axis (lower panel), SVG.
-pub fn k_svg(rows: &[KRow], title: &str) -> String {
+/// k(E) on a log axis against E (upper panel) and ρ(E), W(E) on a log axis (lower panel), SVG;
+/// energies in `family` (the one `--barrier` was written in).
+pub fn k_svg(rows: &[KRow], title: &str, family: EnergyUnit) -> String {
+    let per = family.factor();
+    let eu = family.spelling();
     let wn = wavenumber();
     let mut svg = String::new();
     {
         let root = SVGBackend::with_string(&mut svg, (900, 760)).into_drawing_area();
         let _ = root.fill(&WHITE);
         let (upper, lower) = root.split_vertically(400);
-        let x0 = rows.first().map_or(0.0, |r| r.energy / 1000.0);
-        let x1 = rows.last().map_or(1.0, |r| r.energy / 1000.0).max(x0 + 1e-9);
+        let x0 = rows.first().map_or(0.0, |r| r.energy / per);
+        let x1 = rows.last().map_or(1.0, |r| r.energy / per).max(x0 + 1e-9);
         let positive = |v: &[f64]| -> (f64, f64) {
             let lo = v.iter().cloned().filter(|x| *x > 0.0).fold(f64::INFINITY, f64::min);
             let hi = v.iter().cloned().filter(|x| *x > 0.0).fold(0.0, f64::max);
@@ -226,18 +229,18 @@ pub fn k_svg(rows: &[KRow], title: &str) -> String {
         };
         let ks: Vec<(f64, f64)> = rows
             .iter()
-            .filter_map(|r| r.rate.filter(|k| *k > 0.0).map(|k| (r.energy / 1000.0, k)))
+            .filter_map(|r| r.rate.filter(|k| *k > 0.0).map(|k| (r.energy / per, k)))
             .collect();
         let (klo, khi) = positive(&ks.iter().map(|p| p.1).collect::<Vec<_>>());
         let rho: Vec<(f64, f64)> = rows
             .iter()
             .filter(|r| r.density > 0.0)
-            .map(|r| (r.energy / 1000.0, r.density * wn))
+            .map(|r| (r.energy / per, r.density * wn))
             .collect();
         let w: Vec<(f64, f64)> = rows
             .iter()
             .filter(|r| r.sum > 0.0)
-            .map(|r| (r.energy / 1000.0, r.sum))
+            .map(|r| (r.energy / per, r.sum))
             .collect();
         let all: Vec<f64> = rho.iter().chain(&w).map(|p| p.1).collect();
         let (slo, shi) = positive(&all);
@@ -251,7 +254,7 @@ pub fn k_svg(rows: &[KRow], title: &str) -> String {
                 .y_label_area_size(80)
                 .build_cartesian_2d(x0..x1, (klo..khi).log_scale().with_key_points(kb.clone()))?;
             c.configure_mesh()
-                .x_desc("E above the reactant zero-point level (kJ/mol)")
+                .x_desc(format!("E above the reactant zero-point level ({eu})"))
                 .y_desc(format!("k(E) ({}, log scale)", display::rate_constant(1)))
                 .x_label_formatter(&|v| ticks::label(*v))
                 .y_label_formatter(&|v| ticks::power_label(*v))
@@ -278,7 +281,7 @@ pub fn k_svg(rows: &[KRow], title: &str) -> String {
                 .y_label_area_size(80)
                 .build_cartesian_2d(x0..x1, (slo..shi).log_scale().with_key_points(sb.clone()))?;
             d.configure_mesh()
-                .x_desc("E (kJ/mol)")
+                .x_desc(format!("E ({eu})"))
                 .y_desc("ρ (per cm-1) and W (log scale)")
                 .x_label_formatter(&|v| ticks::label(*v))
                 .y_label_formatter(&|v| ticks::power_label(*v))
@@ -348,7 +351,7 @@ mod tests {
                 }
             })
             .collect();
-        let svg = k_svg(&rows, "k");
+        let svg = k_svg(&rows, "k", EnergyUnit::KjPerMol);
         let t = texts(&svg);
         assert!(
             t.iter().all(|(x, _)| *x >= 0.0),
