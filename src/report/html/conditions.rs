@@ -54,16 +54,21 @@ pub fn section(net: &Network, model: &Model) -> String {
          </ul></div>\n",
     );
     let c = &net.conditions;
+    // Volume and path length in the display rule's units (a cuvette's mL, a pool's L; cm, mm).
+    let (vf, vu) = crate::units::display::pick(c.volume, &crate::units::display::VOLUME);
+    let (lf, lu) = crate::units::display::pick(c.path_length, &crate::units::display::LENGTH);
+    let volume_head = format!("irradiated volume ({vu})");
+    let length_head = format!("path length ({lu})");
     let mut header = vec![
         ("temperature (K)", true),
-        ("irradiated volume (mL)", true),
-        ("path length (cm)", true),
+        (volume_head.as_str(), true),
+        (length_head.as_str(), true),
     ];
     let mut row = format!(
         "{}{}{}",
         num_cell(&sig(c.temperature, 5)),
-        num_cell(&sig(c.volume * 1e6, 4)),
-        num_cell(&sig(c.path_length * 100.0, 4))
+        num_cell(&sig(c.volume / vf, 4)),
+        num_cell(&sig(c.path_length / lf, 4))
     );
     if let Some(a) = c.irradiated_area {
         header.push(("irradiated area (cm²)", true));
