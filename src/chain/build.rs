@@ -682,7 +682,7 @@ pub fn start(model: &Model, chain: &Chain, from: Option<&str>) -> Result<(Vec<f6
     }
     let shares: Vec<String> = parts
         .iter()
-        .map(|&i| format!("{} {:.1}%", model.species[i], 100.0 * pi[i] / total))
+        .map(|&i| format!("{} {} %", model.species[i], crate::units::sig(100.0 * pi[i] / total, 3)))
         .collect();
     let mut note = format!(
         "started from the initial mixture, molecules followed: {}",

@@ -241,13 +241,13 @@ pub fn network_summary(net: &Network) -> String {
                     Branching::Rest => "the rest".into(),
                     Branching::Rate { k, .. } => {
                         format!(
-                            "k = {}, share {}% at the start",
+                            "k = {}, share {} % at the start",
                             display::format_rate_constant(*k, 1),
                             sig(100.0 * k / total.max(f64::MIN_POSITIVE), 3)
                         )
                     }
                     Branching::Quenching { partner, k2, .. } => format!(
-                        "quenched by {}: k = {}, share {}% at the start",
+                        "quenched by {}: k = {}, share {} % at the start",
                         net.species[*partner].name,
                         display::format_rate_constant(*k2, 2),
                         sig(100.0 * k2 * c0[*partner] / total.max(f64::MIN_POSITIVE), 3)
@@ -461,7 +461,7 @@ pub fn inner_filter_text(p: &crate::kinetics::ledger::Ledger) -> (String, String
     let f = &p.inner_filter;
     let pct = |x: f64| {
         if p.incident > 0.0 {
-            format!("{}%", sig(100.0 * x / p.incident, 3))
+            format!("{} %", sig(100.0 * x / p.incident, 3))
         } else {
             "0%".into()
         }
