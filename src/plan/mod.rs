@@ -102,12 +102,45 @@ pub struct Unreachable {
     pub final_level: f64,
     /// Closest level to the target seen (highest for a rise, lowest for a fall), mol/L.
     pub best_level: f64,
-    /// When the closest level was seen, s.
+    /// When the closest level was reached, s: for a level that settles (photostationary or
+    /// exhausted), the first time it came within [`SETTLED`] of the whole change from the start
+    /// to the closest level (linear between output times), so the time and the photons are those
+    /// needed to get there in practice, not to the last digit of a creeping approach.
     pub best_time: f64,
     /// How long was integrated, s.
     pub horizon: f64,
     /// Steps consuming the species at the closest point, largest first (for a rise).
     pub consumers: Vec<Consumer>,
+}
+
+/// The share of the whole change that counts as having settled: 99 % (common practice for
+/// "reached the photostationary state").
+pub const SETTLED: f64 = 0.99;
+
+/// The closest approach `best` (level, time, state) moved to the first time the target species
+/// came within [`SETTLED`] of the change from `start` to the closest level (states and time
+/// linear between output times); `best` itself when that is no earlier.
+fn settled(tr: &Trajectory, species: usize, start: f64, best: (f64, f64, Vec<f64>)) -> (f64, f64, Vec<f64>) {
+    let goal = start + SETTLED * (best.0 - start);
+    let rising = best.0 >= start;
+    let reached = |v: f64| if rising { v >= goal } else { v <= goal };
+    let Some(k) = tr.states.iter().position(|y| reached(y[species])) else {
+        return best;
+    };
+    let (t, y) = if k == 0 {
+        (tr.times[0], tr.states[0].clone())
+    } else {
+        let (y0, y1) = (&tr.states[k - 1], &tr.states[k]);
+        let (v0, v1) = (y0[species], y1[species]);
+        let f = if v1 != v0 {
+            ((goal - v0) / (v1 - v0)).clamp(0.0, 1.0)
+        } else {
+            1.0
+        };
+        let t = tr.times[k - 1] + f * (tr.times[k] - tr.times[k - 1]);
+        (t, y0.iter().zip(y1).map(|(a, b)| a + f * (b - a)).collect())
+    };
+    if t < best.1 { (best.0, t, y) } else { best }
 }
 
 /// Photons and energy up to a time.
@@ -354,6 +387,12 @@ fn assemble(
 ) -> Plan {
     let rhs = Rhs::new(model);
     let last = trajectory.last().to_vec();
+    let best = match why {
+        Some(Why::Photostationary | Why::Exhausted) => {
+            settled(&trajectory, target.species, model.initial[target.species], best)
+        }
+        _ => best,
+    };
     let unreachable = why.map(|why| {
         let mut dy = vec![0.0; last.len()];
         rhs.eval(&best.2, &mut dy);

@@ -5,7 +5,7 @@ use crate::kinetics::Schedule;
 use crate::light::{LightKind, LightSource};
 use crate::plan::actinometry::{FluxResult, Measured, NetworkFit};
 use crate::plan::target::Basis;
-use crate::plan::{Days, Direction, Flow, Plan, Tube, Unreachable};
+use crate::plan::{Days, Direction, Flow, Plan, Tube, Unreachable, Why};
 use crate::units::display::{self, ZeroWithin, format_concentration_within};
 use crate::units::{format_concentration, format_time, sig};
 use serde::Serialize;
@@ -296,10 +296,17 @@ pub fn text(s: &PlanSummary) -> String {
             let _ = writeln!(o, "NOT REACHABLE: {}", u.why.words());
             let _ = writeln!(
                 o,
-                "  {} reaches at best {} (at {}); {} after {} of integration",
+                "  {} reaches at best {} ({}); {} after {} of integration",
                 s.target.species_name,
                 format_concentration_within(u.best_level, zero),
-                format_time(u.best_time),
+                match u.why {
+                    Why::Photostationary | Why::Exhausted => format!(
+                        "{} % of the way there after {}",
+                        sig(100.0 * crate::plan::SETTLED, 2),
+                        format_time(u.best_time)
+                    ),
+                    _ => format!("at {}", format_time(u.best_time)),
+                },
                 format_concentration_within(u.final_level, zero),
                 format_time(u.horizon)
             );

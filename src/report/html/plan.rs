@@ -22,13 +22,20 @@ pub fn section(p: &PlanStudy) -> String {
             esc(&format_time(t))
         )),
         (None, Some(u)) => s.push_str(&format!(
-            "<p class=\"lede\">Not reached: {}. Closest: {} at {}; integrated for {}.</p>\n",
+            "<p class=\"lede\">Not reached: {}. Closest: {} {}; integrated for {}.</p>\n",
             esc(u.why.words()),
             esc(&crate::units::display::format_concentration_within(
                 u.best_level,
                 plan.trajectory.zero_within()
             )),
-            esc(&format_time(u.best_time)),
+            esc(&match u.why {
+                crate::plan::Why::Photostationary | crate::plan::Why::Exhausted => format!(
+                    "({} % of the way there after {})",
+                    crate::units::sig(100.0 * crate::plan::SETTLED, 2),
+                    format_time(u.best_time)
+                ),
+                _ => format!("at {}", format_time(u.best_time)),
+            }),
             esc(&format_time(u.horizon))
         )),
         (None, None) => s.push_str("<p class=\"lede\">Not reached.</p>\n"),
