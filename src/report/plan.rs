@@ -201,8 +201,9 @@ pub fn target_meaning(plan: &Plan) -> String {
             fraction,
             chosen,
         } => format!(
-            "{} {cmp} a {} % yield on {reference}{} at 1:1 ({lvl})",
+            "{} {cmp} {} {} % yield on {reference}{} at 1:1 ({lvl})",
             t.species_name,
+            article(&sig(fraction * 100.0, 4)),
             sig(fraction * 100.0, 4),
             if *chosen {
                 " (taken as the limiting reagent: the smallest start below 1 M among the species a step consumes; \
@@ -630,4 +631,31 @@ pub fn light_block_for(src: &LightSource, flux: &Measured, origin: &str) -> Stri
         },
     };
     light_block(&src.name, &kind, window, &flux, origin)
+}
+
+/// "a" or "an" before a number as it is read aloud: "an 80 % yield", "an 11 % yield", "an 18 %",
+/// "a 90 % yield" (English usage; common practice).
+fn article(number: &str) -> &'static str {
+    let digits: String = number.chars().take_while(|c| c.is_ascii_digit()).collect();
+    let an = digits.starts_with('8') || digits == "11" || digits == "18";
+    if an { "an" } else { "a" }
+}
+
+#[cfg(test)]
+mod article_tests {
+    #[test]
+    fn an_80_percent_yield() {
+        for (n, a) in [
+            ("80", "an"),
+            ("8.5", "an"),
+            ("11", "an"),
+            ("18", "an"),
+            ("90", "a"),
+            ("1", "a"),
+            ("0.8", "a"),
+            ("110", "a"),
+        ] {
+            assert_eq!(super::article(n), a, "{n}");
+        }
+    }
 }
