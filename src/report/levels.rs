@@ -70,10 +70,16 @@ fn set_value_text(unit: &str, v: Option<f64>, family: display::EnergyUnit) -> St
     }
 }
 
-fn counts_text(c: &Option<Vec<u64>>) -> String {
+/// Trajectory counts per channel with their total: "41, 52 of 93" (never "41/52", which reads
+/// as a share of 41 in 52).
+pub fn counts_text(c: &Option<Vec<u64>>) -> String {
     match c {
         None => "(file)".into(),
-        Some(runs) => runs.iter().map(|r| r.to_string()).collect::<Vec<_>>().join("/"),
+        Some(runs) => format!(
+            "{} of {}",
+            runs.iter().map(|r| r.to_string()).collect::<Vec<_>>().join(", "),
+            runs.iter().sum::<u64>()
+        ),
     }
 }
 
@@ -471,4 +477,14 @@ pub fn check_text(net: &crate::network::Network) -> String {
         let _ = writeln!(o, "  \"{}\"{note}: {}", l.label, keys.join(", "));
     }
     o
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn trajectory_counts_read_as_counts_of_a_total() {
+        // 41 to the first channel and 52 to the second: a share of 41/93, not 41/52.
+        assert_eq!(super::counts_text(&Some(vec![41, 52])), "41, 52 of 93");
+        assert_eq!(super::counts_text(&None), "(file)");
+    }
 }

@@ -62,9 +62,7 @@ pub fn section(c: &std::result::Result<Comparison, String>) -> String {
             } else {
                 let mut r = format!("{}{}", text_cell(&v.key), text_cell("runs per channel"));
                 for x in &v.counts {
-                    r.push_str(&num_cell(&x.as_ref().map_or("(file)".to_string(), |runs| {
-                        runs.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(" / ")
-                    })));
+                    r.push_str(&num_cell(&crate::report::levels::counts_text(x)));
                 }
                 r
             }
