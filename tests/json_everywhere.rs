@@ -393,3 +393,45 @@ fn check_marks_a_share_from_trajectory_counts() {
     assert_ne!(set.status.code(), Some(0), "refused");
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// Ferrioxalate actinometry says which quantum yield it used and which inputs it took as exact,
+/// and its JSON names the unit of every input (ε in the internal L/(mol m), not the L/(mol cm)
+/// it was given in). Worked example: Hatchard & Parker, Proc. R. Soc. A 235 (1956) 518, Φ = 1.21
+/// at 361–366 nm for 0.006 M (from memory, as the program's own table says).
+#[test]
+fn ferrioxalate_names_its_quantum_yield_and_the_units_of_its_inputs() {
+    let dir = scratch("ferrioxalate-units");
+    let args = [
+        "actinometer",
+        "ferrioxalate",
+        "--delta-a",
+        "0.600 ± 0.006",
+        "--irradiated",
+        "3 mL",
+        "--aliquot",
+        "0.5 mL",
+        "--total",
+        "10 mL",
+        "--time",
+        "120 s",
+        "--wavelength",
+        "365 nm",
+    ];
+    let out = Command::new(BIN).args(args).current_dir(&dir).output().unwrap();
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("Φ = 1.21 ("), "{text}");
+    assert!(
+        text.contains("taken as exact") && text.contains("quantum yield"),
+        "{text}"
+    );
+    assert!(text.contains("wrote ferrioxalate-actinometer/"), "{text}");
+    let v = json(&dir, &args);
+    assert_eq!(v["units"]["inputs.epsilon"], "L/(mol m)", "{v}");
+    // 1.11e4 L/(mol cm) is 1.11e6 L/(mol m).
+    let eps = v["inputs"]["epsilon"]["value"].as_f64().unwrap();
+    assert!((eps - 1.11e6).abs() < 1.0, "{eps}");
+    for k in ["inputs.path", "inputs.v_total", "inputs.time", "result.photon_flux"] {
+        assert!(v["units"][k].is_string(), "{k}: {v}");
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -218,6 +218,22 @@ fn ferrioxalate(a: &FerrioxalateArgs) -> photoledger::Result<()> {
         "epsilon_source": eps_note,
         "result": r,
         "photon_flux_unit": "einstein/s",
+        "units": {
+            "inputs.delta_a": "",
+            "inputs.path": "m",
+            "inputs.v_irradiated": "L",
+            "inputs.v_aliquot": "L",
+            "inputs.v_total": "L",
+            "inputs.time": "s",
+            "inputs.wavelength": "m",
+            "inputs.fraction_absorbed": "",
+            "inputs.quantum_yield": "",
+            "inputs.epsilon": units::internal_spelling(Quantity::MolarAbsorption),
+            "result.moles": "mol",
+            "result.photon_flux": "einstein/s",
+            "result.power": "W",
+            "result.contributions": "relative (fraction)",
+        },
         "light_block": block,
         "cautions": rp::CAUTIONS,
     });
@@ -229,13 +245,14 @@ fn ferrioxalate(a: &FerrioxalateArgs) -> photoledger::Result<()> {
     if a.output.json {
         outln!("{js}")?;
     } else {
-        out!("{}", rp::ferrioxalate_text(&r, wl, &yield_note, &eps_note))?;
+        out!("{}", rp::ferrioxalate_text(&r, &m, &yield_note, &eps_note))?;
         outln!(
             "\nlight block for a network file (also in {}/light.toml):\n",
             dir.display()
         )?;
         out!("{block}")?;
         outln!("\n{}", photoledger::report::caution_line())?;
+        outln!("wrote {}/ (result.json, light.toml)", dir.display())?;
     }
     Ok(())
 }
@@ -349,6 +366,7 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
         )?;
         out!("{blocks}")?;
         outln!("{}", photoledger::report::caution_line())?;
+        outln!("wrote {}/ (result.json, light.toml)", dir.display())?;
     }
     Ok(())
 }

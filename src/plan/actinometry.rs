@@ -195,6 +195,9 @@ pub struct FluxResult {
     pub power: Measured,
     /// Each input's share of the relative variance of the flux: (name, relative uncertainty).
     pub contributions: Vec<(String, f64)>,
+    /// The inputs given without an uncertainty, taken as exact (they add nothing to the
+    /// uncertainty above, which is then a lower bound).
+    pub exact: Vec<String>,
 }
 
 /// Photon flux from a ferrioxalate measurement, with first-order uncertainty.
@@ -253,6 +256,11 @@ pub fn ferrioxalate(m: &Ferrioxalate) -> Result<FluxResult> {
             .iter()
             .filter(|p| p.1.sigma > 0.0)
             .map(|p| (p.0.to_string(), p.1.relative()))
+            .collect(),
+        exact: parts
+            .iter()
+            .filter(|p| p.1.sigma == 0.0)
+            .map(|p| p.0.to_string())
             .collect(),
     })
 }

@@ -546,10 +546,19 @@ pub fn light_block(name: &str, kind: &LightKind, window: Option<(f64, f64)>, flu
 }
 
 /// The ferrioxalate result as text.
-pub fn ferrioxalate_text(r: &FluxResult, wavelength: f64, yield_note: &str, eps_note: &str) -> String {
+pub fn ferrioxalate_text(
+    r: &FluxResult,
+    m: &crate::plan::actinometry::Ferrioxalate,
+    yield_note: &str,
+    eps_note: &str,
+) -> String {
     let mut o = String::new();
-    let _ = writeln!(o, "ferrioxalate actinometry at {} nm", sig(wavelength * 1e9, 5));
-    let _ = writeln!(o, "  quantum yield of Fe2+: {yield_note}");
+    let _ = writeln!(o, "ferrioxalate actinometry at {} nm", sig(m.wavelength * 1e9, 5));
+    let _ = writeln!(
+        o,
+        "  quantum yield of Fe2+: Φ = {} ({yield_note})",
+        measured(&m.quantum_yield, "").trim_end()
+    );
     let _ = writeln!(o, "  ε(510 nm) of Fe(phen)3 2+: {eps_note}");
     let _ = writeln!(
         o,
@@ -567,6 +576,13 @@ pub fn ferrioxalate_text(r: &FluxResult, wavelength: f64, yield_note: &str, eps_
         for (n, v) in &r.contributions {
             let _ = writeln!(o, "    {n:<24} {} %", sig(v * 100.0, 2));
         }
+    }
+    if !r.exact.is_empty() {
+        let _ = writeln!(
+            o,
+            "  taken as exact (given without an uncertainty, so the uncertainty above leaves them out): {}",
+            r.exact.join(", ")
+        );
     }
     o
 }
