@@ -229,3 +229,68 @@ fn the_inner_filter_counts_the_product_that_takes_the_light() {
     let expect = (abs("I2").absorbed + bg) / l.incident;
     assert!((l.inner_filter.fraction - expect).abs() < 1e-12);
 }
+
+/// A photoproduct that is not named `product = true` and is consumed again (a thermal back
+/// step) is no product, so it gets no photon cost; `simulate` says why instead of leaving the
+/// line out silently; once named, its amount is in the display
+/// rule's unit (µmol, not "1.581e-6 mol"). Invented network; the rule is common practice.
+#[test]
+fn simulate_says_why_an_unnamed_photoproduct_has_no_photon_cost() {
+    let dir = std::env::temp_dir().join(format!("photoledger-unnamed-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let text = |named: bool| {
+        format!(
+            r#"[about]
+name = "A to B under a violet LED (invented)"
+invented = true
+[conditions]
+temperature = "25 °C"
+volume = "2 mL"
+path_length = "1 cm"
+[[light]]
+name = "violet LED"
+kind = "band"
+centre = "405 nm"
+fwhm = "15 nm"
+power = "10 mW"
+[[species]]
+name = "A"
+initial = "1 mM"
+epsilon = {{ wavelength_unit = "nm", unit = "L/(mol cm)", points = [[360, 800], [405, 400], [450, 0]] }}
+[[species]]
+name = "B"
+{}
+[[photo]]
+name = "A to B"
+equation = "A -> B"
+quantum_yield = 0.3
+[[thermal]]
+name = "back"
+equation = "B -> A"
+rate = {{ barrier = "90 kJ/mol" }}
+"#,
+            if named { "product = true" } else { "" }
+        )
+    };
+    let run = |named: bool| {
+        let file = dir.join(format!("ab-{named}.toml"));
+        std::fs::write(&file, text(named)).unwrap();
+        let out = std::process::Command::new(env!("CARGO_BIN_EXE_photoledger"))
+            .args(["simulate", file.to_str().unwrap(), "--until", "1 h"])
+            .current_dir(&dir)
+            .output()
+            .unwrap();
+        assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+        String::from_utf8_lossy(&out.stdout).to_string()
+    };
+    let unnamed = run(false);
+    assert!(unnamed.contains("no species is marked `product = true`"), "{unnamed}");
+    let named = run(true);
+    assert!(!named.contains("no species is marked"), "{named}");
+    let line = named
+        .lines()
+        .find(|l| l.trim_start().starts_with("B ") && l.contains("formed"))
+        .expect(&named);
+    assert!(line.contains("µmol formed"), "{line}");
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -376,9 +376,9 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
                 Some(n) => {
                     let _ = writeln!(
                         o,
-                        "  {:<16} {} mol formed, {} photons absorbed per molecule (apparent Φ {}, per photon absorbed by the whole sample)",
+                        "  {:<16} {} formed, {} photons absorbed per molecule (apparent Φ {}, per photon absorbed by the whole sample)",
                         pr.species,
-                        sig(pr.formed, 4),
+                        display::format_amount(pr.formed),
                         sig(n, 4),
                         sig(1.0 / n, 3)
                     );
@@ -387,9 +387,9 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
                 None if zero_mol.shown(pr.formed) > 0.0 => {
                     let _ = writeln!(
                         o,
-                        "  {:<16} {} mol formed, no photons absorbed (formed by thermal steps alone)",
+                        "  {:<16} {} formed, no photons absorbed (formed by thermal steps alone)",
                         pr.species,
-                        sig(pr.formed, 4)
+                        display::format_amount(pr.formed)
                     );
                 }
                 None => {
@@ -397,6 +397,14 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
                 }
             }
         }
+    }
+    if p.products.is_empty() && p.thermal_products.is_empty() && !dark {
+        let _ = writeln!(
+            o,
+            "\nno photon cost per product: no species is marked `product = true`, and every species formed is \
+             consumed again by some step, so none is taken as a product (mark the products in their [[species]] \
+             blocks to get the photons absorbed per molecule formed)"
+        );
     }
     if !p.thermal_products.is_empty() {
         let _ = writeln!(
@@ -407,9 +415,9 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         for pr in &p.thermal_products {
             let _ = writeln!(
                 o,
-                "  {:<16} {} mol formed",
+                "  {:<16} {} formed",
                 pr.species,
-                sig(zero_mol.shown(pr.formed), 4)
+                display::format_amount(zero_mol.shown(pr.formed))
             );
         }
     }

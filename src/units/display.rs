@@ -52,6 +52,15 @@ pub const PHOTON_FLUX: [(f64, &str); 4] = [
     (1e-12, "peinstein/s"),
 ];
 
+/// Amounts of substance (from mol).
+pub const AMOUNT: [(f64, &str); 5] = [
+    (1.0, "mol"),
+    (1e-3, "mmol"),
+    (1e-6, "µmol"),
+    (1e-9, "nmol"),
+    (1e-12, "pmol"),
+];
+
 /// Volumes in m³ (a reactor's litres to a cuvette's microlitres).
 pub const VOLUME: [(f64, &str); 3] = [(1e-3, "L"), (1e-6, "mL"), (1e-9, "µL")];
 
@@ -152,6 +161,11 @@ pub fn format_rate_constant(k: f64, order: u32) -> String {
 /// A radiant power in W for reading: "175 W", "20 mW" (see [`format`]).
 pub fn format_power(watt: f64) -> String {
     format(watt, &POWER)
+}
+
+/// An amount of substance in mol for reading: "1.58 µmol" (see [`format`]).
+pub fn format_amount(mol: f64) -> String {
+    format(mol, &AMOUNT)
 }
 
 /// A photon amount in einstein for reading: "626 µeinstein", "25.9 neinstein" (see [`format`]).
