@@ -97,7 +97,11 @@ pub fn section(s: &ClosedSummary) -> String {
         let ht = format!("time ({tu})");
         o.push_str(&page::table(
             "Mean first passage between the forms: photons absorbed and time on the way",
-            &[("from → to", false), ("photons absorbed (per molecule)", true), (&ht, true)],
+            &[
+                ("from → to", false),
+                ("photons absorbed (per molecule)", true),
+                (&ht, true),
+            ],
             &rows,
         ));
         if s.forms_left_out > 0 {
