@@ -39,6 +39,24 @@ fn json(dir: &Path, args: &[&str]) -> Value {
     serde_json::from_str(&stdout).unwrap_or_else(|e| panic!("{all:?}: not JSON ({e}):\n{stdout}"))
 }
 
+/// The README's ferrioxalate example (ΔA 0.600 ± 0.006 read for a 3 mL irradiation of 120 s).
+const FERRIOXALATE: [&str; 14] = [
+    "actinometer",
+    "ferrioxalate",
+    "--delta-a",
+    "0.600 ± 0.006",
+    "--irradiated",
+    "3 mL",
+    "--aliquot",
+    "0.5 mL",
+    "--total",
+    "10 mL",
+    "--time",
+    "120 s",
+    "--wavelength",
+    "365 nm",
+];
+
 /// Field-name endings that name an SI unit (or mol/L), as the JSON outputs spell them.
 const UNIT_SUFFIXES: [&str; 16] = [
     "_s",
@@ -151,25 +169,7 @@ fn every_command_answers_json_that_names_its_units() {
                 "1 h",
             ],
         ),
-        (
-            "actinometer ferrioxalate",
-            vec![
-                "actinometer",
-                "ferrioxalate",
-                "--delta-a",
-                "0.600 ± 0.006",
-                "--irradiated",
-                "3 mL",
-                "--aliquot",
-                "0.5 mL",
-                "--total",
-                "10 mL",
-                "--time",
-                "120 s",
-                "--wavelength",
-                "365 nm",
-            ],
-        ),
+        ("actinometer ferrioxalate", FERRIOXALATE.to_vec()),
         (
             "actinometer network",
             vec![
@@ -401,22 +401,7 @@ fn check_marks_a_share_from_trajectory_counts() {
 #[test]
 fn ferrioxalate_names_its_quantum_yield_and_the_units_of_its_inputs() {
     let dir = scratch("ferrioxalate-units");
-    let args = [
-        "actinometer",
-        "ferrioxalate",
-        "--delta-a",
-        "0.600 ± 0.006",
-        "--irradiated",
-        "3 mL",
-        "--aliquot",
-        "0.5 mL",
-        "--total",
-        "10 mL",
-        "--time",
-        "120 s",
-        "--wavelength",
-        "365 nm",
-    ];
+    let args = FERRIOXALATE;
     let out = Command::new(BIN).args(args).current_dir(&dir).output().unwrap();
     let text = String::from_utf8_lossy(&out.stdout);
     assert!(text.contains("Φ = 1.21 ("), "{text}");
