@@ -247,6 +247,8 @@ fn sections_follow_what_was_asked_and_what_applies() {
     assert!(!page.contains("does not apply to this network"), "photoswitch chain");
     // It reaches its photostationary state in the first minute: the time axis turns logarithmic.
     assert!(page.contains("Time on a log scale"), "photoswitch time axis");
+    // LEDs only: no word about sunlight around the clock.
+    assert!(!page.contains("no nights"), "photoswitch has no sun");
     // The pool has one: its table, histogram and sensitivities are there, with the chain's
     // check against the kinetics; the run length comes from the kinetics (the stated
     // conversion of the limiting reagent).
@@ -264,6 +266,9 @@ fn sections_follow_what_was_asked_and_what_applies() {
         !page.contains("Time on a log scale"),
         "the pool changes over the whole run"
     );
+    // The pool's sunlight shines around the clock in the run: the page says so (days here are
+    // of continuous light).
+    assert!(page.contains("no nights"), "pool: continuous sunlight stated");
     let wide = |p: &str| p.contains("ultraviolet");
     assert!(wide(&page), "sunlight below 400 nm is named as ultraviolet");
 }

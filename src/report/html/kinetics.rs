@@ -20,6 +20,19 @@ pub fn section(net: &Network, model: &Model, study: &Study) -> String {
         esc(&format_time(end)),
         esc(&study.until_reason)
     );
+    // Sunlight in the file shines at its stated intensity around the clock in this run: say so,
+    // so "8.4 d" is not read as eight days with nights.
+    if net
+        .lights
+        .iter()
+        .any(|l| matches!(l.kind, crate::light::LightKind::Sun { .. }))
+    {
+        s.push_str(
+            "<p class=\"note\">The sunlight shines at the file's intensity without pause here: no nights and no \
+             change over the day. Times are of continuous light; <code>simulate --sun-hours</code> and \
+             <code>plan --sun-hours</code> light the sample for part of every 24 h.</p>\n",
+        );
+    }
     let svg = inline_svg(
         &simulation::concentrations_svg(
             net,
