@@ -269,6 +269,12 @@ fn sections_follow_what_was_asked_and_what_applies() {
     // The pool's sunlight shines around the clock in the run: the page says so (days here are
     // of continuous light).
     assert!(page.contains("no nights"), "pool: continuous sunlight stated");
+    // The pool's chain disagrees with its kinetics (second-order condensation, inner filter):
+    // the table of ends says so in its caption, where its yields are read.
+    assert!(
+        page.contains("the kinetics of the mixture DISAGREE"),
+        "pool: ends table caveat"
+    );
     let wide = |p: &str| p.contains("ultraviolet");
     assert!(wide(&page), "sunlight below 400 nm is named as ultraviolet");
 }

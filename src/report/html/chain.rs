@@ -111,14 +111,26 @@ pub fn section(chain: &Result<ChainStudy, String>, closed: Option<&ClosedSummary
         })
         .collect();
     let ht = format!("mean time to it ({tu})");
+    // Where the kinetics of the mixture disagree with the chain, the table says so where its
+    // numbers are read, not only in the box above it.
+    let disagree = sm
+        .kinetics_check
+        .as_ref()
+        .is_some_and(|a| !a.agree || a.yields.as_ref().is_some_and(|y| !y.agree));
+    let caption = if disagree {
+        "How a followed molecule ends: one molecule on its own, with the light of the start (the kinetics of \
+         the mixture DISAGREE: see the check above before quoting these yields and times)"
+    } else {
+        "How a followed molecule ends"
+    };
     s.push_str(&page::table(
-        "How a followed molecule ends",
+        caption,
         &[
             ("ends as", false),
             ("kind", false),
             ("yield (%)", true),
-            ("photons, mean (photons)", true),
-            ("photons, sd (photons)", true),
+            ("photons absorbed, mean (per molecule)", true),
+            ("photons absorbed, sd (per molecule)", true),
             ("Φ overall (mol/einstein)", true),
             (&ht, true),
         ],
