@@ -120,7 +120,8 @@ fn every_command_answers_json_that_names_its_units() {
     let switch = "networks/photoswitch.toml";
     std::fs::write(
         dir.join("conversion.csv"),
-        "time (s), conversion\n10, 0.08\n20, 0.15\n40, 0.25\n",
+        // Starting at 0, 0 as conversion tables usually do (the row is passed over).
+        "time (s), conversion\n0, 0\n10, 0.08\n20, 0.15\n40, 0.25\n",
     )
     .unwrap();
 

@@ -307,9 +307,15 @@ fn network(a: &NetworkFitArgs) -> photoledger::Result<()> {
     let mut data = Vec::new();
     for &(t, c, line) in &table.rows {
         let (t, c) = (t * tf, c * cf);
+        // The start of the irradiation (0 s, no conversion), as conversion tables usually begin:
+        // it carries nothing to fit and is passed over.
+        if t == 0.0 && c == 0.0 {
+            continue;
+        }
         if t.is_nan() || t <= 0.0 || !(0.0..1.0).contains(&c) {
             return Err(Error::Usage(format!(
-                "{}:{line}: need a positive time and a conversion from 0 to below 1 (or 100 %)",
+                "{}:{line}: need a positive time and a conversion from 0 to below 1 (or 100 %); a first row \
+                 0, 0 (the start) is allowed",
                 a.data.display()
             )));
         }
