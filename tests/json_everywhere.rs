@@ -406,6 +406,9 @@ fn ferrioxalate_names_its_quantum_yield_and_the_units_of_its_inputs() {
     let out = Command::new(BIN).args(args).current_dir(&dir).output().unwrap();
     let text = String::from_utf8_lossy(&out.stdout);
     assert!(text.contains("Φ = 1.21 ("), "{text}");
+    // n = ΔA V_total / (ε l) · V_irr / V_aliquot = 0.600 · 0.010 L / (1.11e4 L/(mol cm) · 1 cm) · 6
+    // = 3.2432 µmol (hand check of the standard procedure), in µmol by the display rule.
+    assert!(text.contains("= 3.2432 ± 0.032 µmol (1 %)"), "{text}");
     assert!(
         text.contains("taken as exact") && text.contains("quantum yield"),
         "{text}"

@@ -504,10 +504,11 @@ pub use super::sweep::{SweepAxis, selectivity_svg, sweep_csv, sweep_svg, sweep_t
 
 /// Format a measured value with its uncertainty and unit.
 pub fn measured(m: &Measured, unit: &str) -> String {
-    // A photon flux or a power in its display unit (the display rule); others as given.
+    // A photon flux, a power or an amount in its display unit (the display rule); others as given.
     let ladder: Option<&display::Ladder> = match unit {
         "einstein/s" => Some(&display::PHOTON_FLUX),
         "W" => Some(&display::POWER),
+        "mol" => Some(&display::AMOUNT),
         _ => None,
     };
     let (f, unit) = ladder.map_or((1.0, unit), |l| display::pick(m.value, l));
