@@ -17,7 +17,7 @@ use crate::model::Model;
 use crate::network::Network;
 use crate::plan::{self, Plan, PlanOptions};
 use crate::report::chain::{self as chain_report, Summary};
-use crate::report::chain_paths::{ClosedSummary, closed_summary};
+use crate::report::chain_paths::{ClosedSummary, closed_run_summary};
 
 /// What to run.
 #[derive(Debug, Clone, PartialEq, Default)]
@@ -325,15 +325,7 @@ fn closed_study(model: &Model, net: &Network) -> Result<Option<ClosedSummary>> {
     let chain::Followed::Closed(c) = chain::follow(model, net, &chain::ChainOptions::default())? else {
         return Ok(None);
     };
-    let lifetimes = chain::lifetimes::lifetimes(&c.chain, net, &c.stationary.visits);
-    Ok(Some(closed_summary(
-        &net.about.name,
-        &c.chain,
-        &c.stationary,
-        &c.start_note,
-        &c.light,
-        &lifetimes,
-    )))
+    Ok(Some(closed_run_summary(net, &c)))
 }
 
 /// Run the study of `net` (compiled as `model`).

@@ -188,15 +188,7 @@ fn ends_paths(
 
 /// `ledger` on a network where no molecule ends: the photostationary state.
 fn closed(a: &LedgerArgs, net: &Network, c: &ClosedRun) -> photoledger::Result<()> {
-    let lifetimes = chain::lifetimes::lifetimes(&c.chain, net, &c.stationary.visits);
-    let summary = paths::closed_summary(
-        &net.about.name,
-        &c.chain,
-        &c.stationary,
-        &c.start_note,
-        &c.light,
-        &lifetimes,
-    );
+    let summary = paths::closed_run_summary(net, c);
     let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
     let dir = out_dir(a);
     let folder = Folder::begin(&dir)?;

@@ -111,6 +111,20 @@ impl LifetimeView {
     }
 }
 
+/// The summary of a closed run of `net` (the chain where no molecule ends): its lifetimes
+/// computed from the stationary visits, then [`closed_summary`]. `ledger` and the report share it.
+pub fn closed_run_summary(net: &Network, c: &crate::chain::ClosedRun) -> ClosedSummary {
+    let lifetimes = crate::chain::lifetimes::lifetimes(&c.chain, net, &c.stationary.visits);
+    closed_summary(
+        &net.about.name,
+        &c.chain,
+        &c.stationary,
+        &c.start_note,
+        &c.light,
+        &lifetimes,
+    )
+}
+
 /// The closed chain's summary.
 pub fn closed_summary(
     network: &str,

@@ -300,14 +300,7 @@ pub fn text(s: &PlanSummary) -> String {
                 "  {} reaches at best {} ({}); {} after {} of integration",
                 s.target.species_name,
                 format_concentration_within(u.best_level, zero),
-                match u.why {
-                    Why::Photostationary | Why::Exhausted => format!(
-                        "{} % of the way there after {}",
-                        sig(100.0 * crate::plan::SETTLED, 2),
-                        format_time(u.best_time)
-                    ),
-                    _ => format!("at {}", format_time(u.best_time)),
-                },
+                closest_when(u),
                 format_concentration_within(u.final_level, zero),
                 format_time(u.horizon)
             );
@@ -674,5 +667,18 @@ mod article_tests {
         ] {
             assert_eq!(super::article(n), a, "{n}");
         }
+    }
+}
+
+/// When an unreachable target's closest level was reached, in words: "99 % of the way there
+/// after 35.2 s" for a level that settles ([`crate::plan::SETTLED`]), "at 2 h" for a peak.
+pub fn closest_when(u: &Unreachable) -> String {
+    match u.why {
+        Why::Photostationary | Why::Exhausted => format!(
+            "{} % of the way there after {}",
+            sig(100.0 * crate::plan::SETTLED, 2),
+            format_time(u.best_time)
+        ),
+        _ => format!("at {}", format_time(u.best_time)),
     }
 }

@@ -29,12 +29,10 @@ pub fn section(p: &PlanStudy) -> String {
                 plan.trajectory.zero_within()
             )),
             esc(&match u.why {
-                crate::plan::Why::Photostationary | crate::plan::Why::Exhausted => format!(
-                    "({} % of the way there after {})",
-                    crate::units::sig(100.0 * crate::plan::SETTLED, 2),
-                    format_time(u.best_time)
-                ),
-                _ => format!("at {}", format_time(u.best_time)),
+                crate::plan::Why::Photostationary | crate::plan::Why::Exhausted => {
+                    format!("({})", crate::report::plan::closest_when(u))
+                }
+                _ => crate::report::plan::closest_when(u),
             }),
             esc(&format_time(u.horizon))
         )),
