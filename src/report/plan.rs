@@ -643,6 +643,19 @@ pub fn light_block_for(src: &LightSource, flux: &Measured, origin: &str) -> Stri
     light_block(&src.name, &kind, window, &flux, origin)
 }
 
+/// When an unreachable target's closest level was reached, in words: "99 % of the way there
+/// after 35.2 s" for a level that settles ([`crate::plan::SETTLED`]), "at 2 h" for a peak.
+pub fn closest_when(u: &Unreachable) -> String {
+    match u.why {
+        Why::Photostationary | Why::Exhausted => format!(
+            "{} % of the way there after {}",
+            sig(100.0 * crate::plan::SETTLED, 2),
+            format_time(u.best_time)
+        ),
+        _ => format!("at {}", format_time(u.best_time)),
+    }
+}
+
 /// "a" or "an" before a number as it is read aloud: "an 80 % yield", "an 11 % yield", "an 18 %",
 /// "a 90 % yield" (English usage; common practice).
 fn article(number: &str) -> &'static str {
@@ -667,18 +680,5 @@ mod article_tests {
         ] {
             assert_eq!(super::article(n), a, "{n}");
         }
-    }
-}
-
-/// When an unreachable target's closest level was reached, in words: "99 % of the way there
-/// after 35.2 s" for a level that settles ([`crate::plan::SETTLED`]), "at 2 h" for a peak.
-pub fn closest_when(u: &Unreachable) -> String {
-    match u.why {
-        Why::Photostationary | Why::Exhausted => format!(
-            "{} % of the way there after {}",
-            sig(100.0 * crate::plan::SETTLED, 2),
-            format_time(u.best_time)
-        ),
-        _ => format!("at {}", format_time(u.best_time)),
     }
 }
