@@ -152,6 +152,9 @@ pub enum Stop {
     EndTime,
     /// The event happened at this time (s).
     Event(f64),
+    /// The caller's watch on the outputs ([`simulate_watching`]) said enough at this output
+    /// time (s).
+    Enough(f64),
 }
 
 /// Work counts of a run.
@@ -306,9 +309,25 @@ pub fn simulate_from(
     opts: &Options,
     progress: &mut dyn FnMut(f64),
 ) -> Result<Trajectory> {
+    simulate_watching(model, t0, y0, opts, progress, &mut |_, _| false)
+}
+
+/// [`simulate_from`] that also stops at the first output time (s, absolute) at which
+/// `enough(time, state)` says true ([`Stop::Enough`]): one run, one integrator, where a caller
+/// would otherwise restart the integrator stretch by stretch to look at the state between
+/// them. A run repeated with tighter tolerances (see [`simulate_from`]) shows `enough` its
+/// outputs again from the start.
+pub fn simulate_watching(
+    model: &Model,
+    t0: f64,
+    y0: &[f64],
+    opts: &Options,
+    progress: &mut dyn FnMut(f64),
+    enough: &mut dyn FnMut(f64, &[f64]) -> bool,
+) -> Result<Trajectory> {
     let (mut tr, retries) = check::retried(
         opts,
-        |o| simulate_once(model, t0, y0, o, progress),
+        |o| simulate_once(model, t0, y0, o, progress, enough),
         |tr| check::worst(model, &tr.layout, &tr.times, &tr.states, opts.rtol, opts.atol),
     )?;
     tr.retries = retries;
@@ -322,6 +341,7 @@ fn simulate_once(
     y0: &[f64],
     opts: &Options,
     progress: &mut dyn FnMut(f64),
+    enough: &mut dyn FnMut(f64, &[f64]) -> bool,
 ) -> Result<Trajectory> {
     if opts.until.is_nan() || opts.until <= t0 || !opts.until.is_finite() {
         return Err(Error::Usage(format!(
@@ -409,9 +429,10 @@ fn simulate_once(
         lopts.until = tb - ta;
         let mut prog = |f: f64| progress(((ta - t0) + f * (tb - ta)) / span);
         let calls = r.rhs_calls.get();
+        let mut watch = |t: f64, y: &[f64]| enough(ta + t, y);
         let (run, handover) = match method_ran {
-            Method::Bdf => (solve_bdf::run(r, &y, &local, &lopts, &mut prog)?, None),
-            _ => solve_dop::run(r, &y, &local, &lopts, &mut prog)?,
+            Method::Bdf => (solve_bdf::run(r, &y, &local, &lopts, &mut prog, &mut watch)?, None),
+            _ => solve_dop::run(r, &y, &local, &lopts, &mut prog, &mut watch)?,
         };
         let reached = handover.as_ref().map_or(tb, |(ts, _)| ta + ts);
         record(
@@ -436,7 +457,8 @@ fn simulate_once(
             ropts.until = tb - ta - ts;
             let mut prog = |f: f64| progress(((ta + ts - t0) + f * (tb - ta - ts)) / span);
             let calls = r.rhs_calls.get();
-            let run = solve_bdf::run(r, &ys, &rest, &ropts, &mut prog)?;
+            let mut watch = |t: f64, y: &[f64]| enough(ta + ts + t, y);
+            let run = solve_bdf::run(r, &ys, &rest, &ropts, &mut prog, &mut watch)?;
             record(
                 &mut segments,
                 Method::Bdf,
@@ -450,7 +472,7 @@ fn simulate_once(
         if let Some(last) = all.states.last() {
             y.copy_from_slice(last);
         }
-        if let Stop::Event(te) = all.stop {
+        if let Stop::Event(te) | Stop::Enough(te) = all.stop {
             if let Some(s) = segments.last_mut() {
                 s.to = te;
             }
@@ -512,8 +534,10 @@ impl Run {
             self.times.push(snap(start + t));
             self.states.push(st);
         }
-        if let Stop::Event(te) = run.stop {
-            self.stop = Stop::Event(start + te);
+        match run.stop {
+            Stop::Event(te) => self.stop = Stop::Event(start + te),
+            Stop::Enough(te) => self.stop = Stop::Enough(start + te),
+            Stop::EndTime => {}
         }
     }
 }

@@ -8,7 +8,16 @@ use crate::model::jacobian::Jacobian;
 use crate::model::rhs::Rhs;
 use diffsol::{FaerSparseMat, NalgebraLU, NalgebraMat, OdeBuilder, OdeSolverMethod, OdeSolverStopReason, Vector};
 
-pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress: &mut dyn FnMut(f64)) -> Result<Run> {
+/// Integrate through `times` (local, from 0), stopping at the first output at which `enough`
+/// (local time, state) says true.
+pub(super) fn run(
+    rhs: &Rhs,
+    y0: &[f64],
+    times: &[f64],
+    opts: &Options,
+    progress: &mut dyn FnMut(f64),
+    enough: &mut dyn FnMut(f64, &[f64]) -> bool,
+) -> Result<Run> {
     let n = y0.len();
     let fail = |e: diffsol::error::DiffsolError| Error::Numerical(format!("the BDF integrator stopped: {e}"));
     let jac = Jacobian::new(rhs.model);
@@ -35,8 +44,14 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
                 _ => t,
             };
             while next < times.len() && times[next] <= t_reached {
+                let y = interp(times[next]).map_err(fail)?;
+                let stop = enough(times[next], &y);
                 out.times.push(times[next]);
-                out.states.push(interp(times[next]).map_err(fail)?);
+                out.states.push(y);
+                if stop {
+                    out.stop = Stop::Enough(times[next]);
+                    return Ok(());
+                }
                 next += 1;
             }
             progress((t_reached / opts.until).min(1.0));
@@ -51,8 +66,12 @@ pub(super) fn run(rhs: &Rhs, y0: &[f64], times: &[f64], opts: &Options, progress
                 }
                 OdeSolverStopReason::TstopReached => {
                     if next < times.len() {
+                        let y = interp(times[next].min(t)).map_err(fail)?;
+                        if enough(times[next], &y) {
+                            out.stop = Stop::Enough(times[next]);
+                        }
                         out.times.push(times[next]);
-                        out.states.push(interp(times[next].min(t)).map_err(fail)?);
+                        out.states.push(y);
                     }
                     return Ok(());
                 }

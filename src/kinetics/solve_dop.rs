@@ -21,13 +21,15 @@ impl System<f64, DVector<f64>> for Sys<'_, '_> {
 pub(super) type Handover = Option<(f64, Vec<f64>)>;
 
 /// Integrate through `times` (local, from 0). A run that turns stiff ends early at its last
-/// accepted point, returned beside the outputs reached so far.
+/// accepted point, returned beside the outputs reached so far; a run ends at the first output
+/// at which `enough` (local time, state) says true.
 pub(super) fn run(
     rhs: &Rhs,
     y0: &[f64],
     times: &[f64],
     opts: &Options,
     progress: &mut dyn FnMut(f64),
+    enough: &mut dyn FnMut(f64, &[f64]) -> bool,
 ) -> Result<(Run, Handover)> {
     let mut out = Run {
         times: vec![0.0],
@@ -98,6 +100,10 @@ pub(super) fn run(
         out.times.push(t1);
         out.states.push(y.as_slice().to_vec());
         progress(t1 / opts.until);
+        if enough(t1, y.as_slice()) {
+            out.stop = Stop::Enough(t1);
+            break;
+        }
     }
     Ok((out, None))
 }

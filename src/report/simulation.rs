@@ -259,6 +259,7 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
         end_time_s: t,
         stopped_by: match tr.stop {
             Stop::EndTime => "end time".into(),
+            Stop::Enough(te) => format!("stopped at {}", crate::units::format_time(te)),
             Stop::Event(te) => format!("stop condition met at {}", crate::units::format_time(te)),
         },
         method: MethodSummary {

@@ -337,7 +337,7 @@ impl Problem {
                     o.event = Some(tg.event());
                     match kinetics::simulate(&model, &o, &mut |_| {})?.stop {
                         Stop::Event(te) => Some(te),
-                        Stop::EndTime => None,
+                        Stop::EndTime | Stop::Enough(_) => None,
                     }
                 }
             }

@@ -117,6 +117,7 @@ pub fn run_section(study: &Study, meta: &Meta) -> String {
     };
     let stop = match tr.stop {
         Stop::EndTime => "the end time".to_string(),
+        Stop::Enough(t) => format!("a stop at {}", format_time(t)),
         Stop::Event(t) => format!("a stop condition at {}", format_time(t)),
     };
     let mut s = String::from("<ul>\n");
