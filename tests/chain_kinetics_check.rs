@@ -190,10 +190,73 @@ fn a_photostationary_switch_ends_when_nothing_changes() {
         "{:?}",
         h.ended
     );
-    assert!(h.reason().contains("nothing changes any more"), "{}", h.reason());
+    assert!(
+        h.reason()
+            .contains("every concentration is within 1 % of where it settles"),
+        "{}",
+        h.reason()
+    );
+    // The horizon is when the switch settled, not the end of the stretch that showed it was
+    // at rest (ten times the stretch before): within 1 % of the whole change of E-azo there,
+    // and still more than 1 % short a little earlier.
+    let plan = h.plan.as_ref().expect("a run");
+    let end = plan.trajectory.times.last().copied().unwrap();
+    assert!(h.time < 0.5 * end, "settled at {} s, run to {end} s", h.time);
+    let e = model.species_index("E-azo").unwrap();
+    let (start, last) = (model.initial[e], plan.state()[e]);
+    let at = |t: f64| {
+        let mut o = photoledger::kinetics::Options::until(t);
+        o.rtol = 1e-10;
+        o.atol = 1e-16;
+        photoledger::kinetics::simulate(&model, &o, &mut |_| {}).unwrap().last()[e]
+    };
+    let left = |t: f64| (at(t) - last).abs() / (start - last).abs();
+    assert!(left(h.time) <= 0.0101, "{} left at the horizon", left(h.time));
+    assert!(
+        left(0.9 * h.time) > 0.0101,
+        "{} left a little earlier",
+        left(0.9 * h.time)
+    );
     // The report's run then ends at a round time at least that long.
     let s = study::run(&net, &model, &StudyOptions::default()).expect("study");
     assert!(s.until >= h.time && s.until <= 1.5 * h.time);
+}
+
+/// Thermal A ⇌ B, first order both ways (invented rate constants), no light: the default
+/// target (99 % of A converted) is never met, and the distance from equilibrium falls as
+/// e^(−(k₁ + k₂) t) (first-order relaxation, `common practice`), so every concentration is
+/// within 1 % of where it settles from t = ln(100)/(k₁ + k₂) on.
+#[test]
+fn an_equilibrium_settles_at_the_relaxation_closed_form() {
+    let model = Model::compile(&network(
+        r#"
+[about]
+name = "invented A <-> B"
+description = "invented test network"
+provenance = "invented"
+invented = true
+[conditions]
+temperature = "298.15 K"
+volume = "3 mL"
+path_length = "1 cm"
+[[species]]
+name = "A"
+initial = "1 mM"
+[[species]]
+name = "B"
+[[thermal]]
+equation = "A -> B"
+rate = { k = "0.02 /s" }
+[[thermal]]
+equation = "B -> A"
+rate = { k = "0.03 /s" }
+"#,
+    ));
+    let h = horizon::automatic(&model, None).expect("horizon");
+    assert!(matches!(h.ended, Ended::Steady(_, _)), "{:?}", h.ended);
+    let want = 100f64.ln() / 0.05;
+    // Linear between output times and the run's own end value: a few parts in a thousand.
+    assert!((h.time - want).abs() <= 5e-3 * want, "{} s against {want} s", h.time);
 }
 
 /// Two photoproducts from one absorber (invented): A → B (Φ 0.3) and A → C (Φ 0.1) under one

@@ -11,6 +11,7 @@
 use super::target::{self, Basis, Direction, Target};
 use super::{Plan, PlanOptions, Why, time_to_target};
 use crate::error::Result;
+use crate::kinetics::Trajectory;
 use crate::model::Model;
 
 /// Conversion of the limiting reagent at which an automatic horizon ends when no target is
@@ -55,8 +56,8 @@ pub fn round_up(t: f64) -> f64 {
 pub enum Ended {
     /// The target (given, or the default conversion) was met at this time, s.
     Reached(f64),
-    /// The concentrations stopped changing before the target was met (the reason), at or
-    /// before this time, s.
+    /// The concentrations stopped changing before the target was met (the reason); by this
+    /// time, s, every one had settled ([`settled_time`]).
     Steady(Why, f64),
     /// Still changing at the cap.
     Cap,
@@ -86,8 +87,9 @@ impl Horizon {
         match &self.ended {
             Ended::Reached(at) => format!("{goal} is reached at {}", t(*at)),
             Ended::Steady(why, at) => format!(
-                "{goal} is never reached: by {} nothing changes any more ({})",
+                "{goal} is never reached: by {} every concentration is within {} % of where it settles ({})",
                 t(*at),
+                crate::units::sig(100.0 * (1.0 - super::SETTLED), 2),
                 why.words()
             ),
             Ended::Cap => format!(
@@ -152,7 +154,13 @@ pub fn automatic(model: &Model, target: Option<&Target>) -> Result<Horizon> {
     let end = *plan.trajectory.times.last().unwrap_or(&CAP);
     let (time, ended) = match (&plan.time, &plan.unreachable) {
         (Some(t), _) => (*t, Ended::Reached(*t)),
-        (None, Some(u)) if u.why != Why::Horizon => (end, Ended::Steady(u.why, end)),
+        (None, Some(u)) if u.why != Why::Horizon => {
+            // The run is only known to be at rest at the end of the stretch that showed it
+            // (ten times the one before): the horizon is when it settled.
+            let settled = settled_time(&plan.trajectory, model.n_species());
+            let at = if settled > 0.0 { settled } else { end };
+            (at, Ended::Steady(u.why, at))
+        }
         _ => (end.min(CAP), Ended::Cap),
     };
     Ok(Horizon {
@@ -161,6 +169,42 @@ pub fn automatic(model: &Model, target: Option<&Target>) -> Result<Horizon> {
         target: Some(target),
         plan: Some(plan),
     })
+}
+
+/// When the run `tr` settled, s: the last time (linear between output times) at which any of
+/// its first `n_species` concentrations was further from the value it ends at than
+/// 1 − [`super::SETTLED`] (1 %) of its largest distance from it during the run; after it, every
+/// concentration stays within that band, as [`super::SETTLED`] dates a closest approach.
+/// Distances within the run's absolute tolerance are round-off and do not count. 0 when no
+/// concentration moved.
+pub fn settled_time(tr: &Trajectory, n_species: usize) -> f64 {
+    let end = tr.last();
+    let mut when: f64 = 0.0;
+    for i in 0..n_species.min(end.len()) {
+        let away = |s: &Vec<f64>| (s[i] - end[i]).abs();
+        let reach = tr.states.iter().map(away).fold(0.0, f64::max);
+        if reach.is_nan() || reach <= tr.atol {
+            continue;
+        }
+        let band = (1.0 - super::SETTLED) * reach;
+        let Some(k) = tr.states.iter().rposition(|s| away(s) > band) else {
+            continue;
+        };
+        let t = match (tr.states.get(k + 1), tr.times.get(k + 1)) {
+            (Some(next), Some(&t1)) => {
+                let (d0, d1) = (away(&tr.states[k]), away(next));
+                let f = if d0 > d1 {
+                    ((d0 - band) / (d0 - d1)).clamp(0.0, 1.0)
+                } else {
+                    1.0
+                };
+                tr.times[k] + f * (t1 - tr.times[k])
+            }
+            _ => tr.times[k],
+        };
+        when = when.max(t);
+    }
+    when
 }
 
 #[cfg(test)]

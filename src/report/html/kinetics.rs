@@ -70,7 +70,7 @@ pub fn section(net: &Network, model: &Model, study: &Study) -> String {
                 text_cell(&model.species[i]),
                 num_cell(&sig(c0 / f, 4)),
                 num_cell(&sig(c1 / f, 4)),
-                num_cell(&sig((c1 - c0) / f, 3))
+                num_cell(&sig((c1 - c0) / f, 4))
             )
         })
         .collect();
