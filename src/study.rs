@@ -77,9 +77,9 @@ pub struct Study {
     pub integrations: usize,
     /// The chain, or why it does not apply to this network.
     pub chain: std::result::Result<ChainStudy, String>,
-    /// When no molecule can end (a closed switch), the chain's photostationary state instead,
-    /// as `ledger` gives it.
-    pub closed: Option<ClosedSummary>,
+    /// When no molecule can end (a closed switch), the photostationary state instead, from
+    /// the chain and from the kinetics ([`ClosedStudy`]).
+    pub closed: Option<ClosedStudy>,
     /// Barrier verdicts, when a window was given.
     pub barrier: Option<BarrierStudy>,
     /// The plan, when a target was given.
@@ -321,11 +321,79 @@ fn chain_study(model: &Model, net: &Network) -> Result<ChainStudy> {
 }
 
 /// The photostationary state of a network where no molecule ends (None for any other).
+/// A closed switch's photostationary state, three ways: one molecule under the light shared
+/// as at the start (what `ledger` gives), one molecule under the light the mixture lets
+/// through at the end of the run (`ledger --at`), and the mixture itself at the end of the run
+/// (the kinetics). When the run has reached the photostationary state the last two agree: the
+/// mixture's composition is then the time share of one molecule under the light that mixture
+/// shares out. The first differs where the forms filter the lamps differently.
+#[derive(Debug, Clone)]
+pub struct ClosedStudy {
+    /// One molecule, light shared at the initial concentrations.
+    pub at_start: ClosedSummary,
+    /// One molecule, light shared at the concentrations at the end of the run (None, with
+    /// the reason, when that chain could not be built).
+    pub at_end: std::result::Result<ClosedSummary, String>,
+    /// Each form of the switch (the chain's species states) with its share of the forms'
+    /// total in the mixture at the end of the run.
+    pub mixture: Vec<(String, f64)>,
+    /// The end of the run, s.
+    pub until: f64,
+}
+
+/// The chain's photostationary state at the start, or None when a molecule can end.
 fn closed_study(model: &Model, net: &Network) -> Result<Option<ClosedSummary>> {
     let chain::Followed::Closed(c) = chain::follow(model, net, &chain::ChainOptions::default())? else {
         return Ok(None);
     };
     Ok(Some(closed_run_summary(net, &c)))
+}
+
+/// [`ClosedStudy`] from the chain at the start and the kinetics run `tr` to `until` (s).
+fn closed_with_kinetics(
+    model: &Model,
+    net: &Network,
+    at_start: ClosedSummary,
+    tr: &Trajectory,
+    until: f64,
+) -> ClosedStudy {
+    let ns = model.n_species();
+    let last = &tr.last()[..ns];
+    let opts = chain::ChainOptions {
+        settings: chain::build::Settings {
+            concentrations: Some(last.to_vec()),
+            ..Default::default()
+        },
+        sensitivities: false,
+        ..Default::default()
+    };
+    let at_end = match chain::follow(model, net, &opts) {
+        Ok(chain::Followed::Closed(c)) => Ok(closed_run_summary(net, &c)),
+        Ok(chain::Followed::Ends(_)) => Err("a molecule can end under the light at the end of the run".into()),
+        Err(e) => Err(e.to_string()),
+    };
+    let forms: Vec<usize> = at_start
+        .composition
+        .iter()
+        .filter(|f| f.kind == "species")
+        .filter_map(|f| model.species_index(&f.state))
+        .collect();
+    let total: f64 = forms.iter().map(|&i| last[i]).sum();
+    let mixture = forms
+        .iter()
+        .map(|&i| {
+            (
+                model.species[i].clone(),
+                if total > 0.0 { last[i] / total } else { f64::NAN },
+            )
+        })
+        .collect();
+    ClosedStudy {
+        at_start,
+        at_end,
+        mixture,
+        until,
+    }
 }
 
 /// Run the study of `net` (compiled as `model`).
@@ -367,6 +435,7 @@ pub fn run(net: &Network, model: &Model, opts: &StudyOptions) -> Result<Study> {
         integrations += 1;
         kinetics::simulate(model, o, &mut |_| {})
     })?;
+    let closed = closed.map(|c| closed_with_kinetics(model, net, c, &kinetics, until));
     let barrier = match opts.barrier_window {
         Some(window) => Some(BarrierStudy {
             window,

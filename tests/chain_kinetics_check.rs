@@ -549,3 +549,60 @@ fn a_target_found_on_an_earlier_run_equals_a_fresh_run() {
     assert!(reused.trajectory.times.windows(2).all(|w| w[0] < w[1]));
     assert_eq!(reused.trajectory.times.len(), reused.trajectory.states.len());
 }
+
+/// A closed switch's photostationary state from the chain and from the kinetics. Under a fixed
+/// light every step of the photoswitch is first order, so the kinetics' steady state, divided by
+/// the total, is the stationary distribution of the molecule's chain built at that light (the
+/// master equation of one molecule is the kinetics of the mixture for first-order steps,
+/// `common practice`): with the light shared at the photostationary mixture the two agree to the
+/// integrator's tolerance. With the light shared as at the start they do not, since E and Z
+/// filter the two LEDs differently; the report puts the three side by side and says which to
+/// quote.
+#[test]
+fn a_closed_switch_under_its_own_photostationary_light_is_the_mixture() {
+    let net = bundled("photoswitch.toml");
+    let model = Model::compile(&net);
+    let long = study::StudyOptions {
+        until: Some(600.0),
+        ..StudyOptions::default()
+    };
+    let s = study::run(&net, &model, &long).expect("study");
+    let c = s.closed.as_ref().expect("a closed switch");
+    let end = c.at_end.as_ref().expect("the chain at the end of the run");
+    let share = |sum: &photoledger::report::chain_paths::ClosedSummary, n: &str| {
+        sum.composition
+            .iter()
+            .find(|f| f.state == n)
+            .and_then(|f| f.time_share)
+            .unwrap()
+    };
+    assert_eq!(c.mixture.len(), 2);
+    for (name, x) in &c.mixture {
+        assert!(
+            (share(end, name) - x).abs() <= 1e-5,
+            "{name}: chain {} mixture {x}",
+            share(end, name)
+        );
+        assert!(
+            (share(&c.at_start, name) - x).abs() > 0.01,
+            "the starting light differs by more than a point"
+        );
+    }
+    let meta = Meta {
+        command_line: "photoledger report photoswitch.toml".into(),
+        date: "2026-12-02 00:00 UTC".into(),
+    };
+    let page = html::render(&net, &model, &s, &meta);
+    assert!(page.contains("To quote:"), "the page says which to quote");
+    // Eight seconds in, the mixture is far from it, and the page says so.
+    let short = study::StudyOptions {
+        until: Some(8.0),
+        ..StudyOptions::default()
+    };
+    let s = study::run(&net, &model, &short).expect("study");
+    let page = html::render(&net, &model, &s, &meta);
+    assert!(
+        page.contains("Not yet photostationary"),
+        "the page says the run is short"
+    );
+}

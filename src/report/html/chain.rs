@@ -4,8 +4,7 @@
 use super::escape::{esc, inline_svg};
 use super::page::{self, figure, num_cell, text_cell};
 use super::{TIME, pick_unit, sig_or_dash};
-use crate::report::chain_paths::ClosedSummary;
-use crate::study::ChainStudy;
+use crate::study::{ChainStudy, ClosedStudy};
 use crate::units::{format_time, sig};
 use std::fmt::Write;
 
@@ -64,7 +63,7 @@ fn kinetics_check(sm: &crate::report::chain::Summary) -> String {
 
 /// The chain's results, the photostationary state of a closed switch (`closed`), or why the
 /// chain does not apply to this network.
-pub fn section(chain: &Result<ChainStudy, String>, closed: Option<&ClosedSummary>) -> String {
+pub fn section(chain: &Result<ChainStudy, String>, closed: Option<&ClosedStudy>) -> String {
     let c = match (chain, closed) {
         (Ok(c), _) => c,
         (Err(_), Some(s)) => return super::switch::section(s),

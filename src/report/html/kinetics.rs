@@ -134,8 +134,16 @@ pub fn run_section(study: &Study, meta: &Meta) -> String {
     s.push_str(
         "<li>Markov chain: the same compiled model, one molecule followed from the initial mixture, light shared as \
          in the well-stirred cell at the initial concentrations (as <code>photoledger ledger</code> does by \
-         default).</li>\n",
+         default)",
     );
+    if study.closed.is_some() {
+        s.push_str(&format!(
+            "; for the closed switch also at the concentrations at the end of the run (as <code>photoledger ledger \
+             --at {}</code>)",
+            esc(&format_time(study.until))
+        ));
+    }
+    s.push_str(".</li>\n");
     if study.plan.is_some() {
         s.push_str(
             "<li>Plan: time to the target by root finding on the target species in the integrator (relative \

@@ -1,36 +1,61 @@
 //! The chain section for a closed switch: no molecule ever ends, so instead of yields the
-//! section gives the photostationary composition one molecule settles in, the photons and
-//! switching events per second, and the mean first passages between the forms (the numbers
-//! `ledger` prints for such a network).
+//! section gives the photostationary composition three ways side by side (one molecule under
+//! the light shared as at the start, one molecule under the light the mixture lets through at
+//! the end of the run, and the mixture from the kinetics), says which to quote, and gives the
+//! photons and switching events per second and the mean first passages between the forms (the
+//! numbers `ledger` prints for such a network).
 
 use super::chain::upper_first;
 use super::escape::esc;
 use super::page::{self, num_cell, text_cell};
 use super::{TIME, pick_unit, sig_or_dash};
 use crate::report::chain_paths::ClosedSummary;
+use crate::study::ClosedStudy;
 use crate::units::{display, format_time};
 
-/// The section body for `s`.
-pub fn section(s: &ClosedSummary) -> String {
-    let forms: Vec<&str> = s
+/// Percentage points within which the mixture and one molecule under the mixture's light count
+/// as the same photostationary composition: rounding of a run settled to 1 % of its change
+/// ([`crate::plan::SETTLED`]) on a switch that moves a few tens of points.
+pub const SAME_POINTS: f64 = 0.5;
+
+/// The section body for `c`.
+pub fn section(c: &ClosedStudy) -> String {
+    let s0 = &c.at_start;
+    let forms: Vec<&str> = s0
         .composition
         .iter()
         .filter(|f| f.kind == "species")
         .map(|f| f.state.as_str())
         .collect();
+    let after = format_time(c.until);
     let mut o = format!(
         "<p>No molecule ends here: a molecule switches among {} for ever, so there is no yield or photon cost \
          per product to give. The chain ({} states) gives instead the state one molecule settles in under the \
-         light (light assumed: {}). {}.</p>\n",
+         light, and the kinetics the state the mixture reaches. {}.</p>\n",
         esc(&forms.join(", ")),
-        s.states,
-        esc(&s.light),
-        esc(&upper_first(&s.start))
+        s0.states,
+        esc(&upper_first(&s0.start))
     );
-    for n in &s.notes {
+    for n in &s0.notes {
         o.push_str(&page::assumption(n));
     }
-    let rows: Vec<String> = s
+    if c.at_end.is_ok() {
+        o.push_str(&format!(
+            "<p class=\"note\">That sharing of the light holds for the first column below; the second column and \
+             the rates after the table share it at the concentrations the kinetics reach after {}.</p>\n",
+            esc(&after)
+        ));
+    }
+    let end = c.at_end.as_ref().ok();
+    let share = |s: &ClosedSummary, state: &str| {
+        s.composition
+            .iter()
+            .find(|f| f.state == state)
+            .and_then(|f| f.time_share)
+    };
+    let mixture = |state: &str| c.mixture.iter().find(|(n, _)| n == state).map(|(_, x)| *x);
+    let pct = |x: Option<f64>| x.map_or("—".into(), |x| display::number(100.0 * x));
+    let rows: Vec<String> = s0
         .composition
         .iter()
         .map(|f| {
@@ -40,17 +65,36 @@ pub fn section(s: &ClosedSummary) -> String {
                 f.state.clone()
             };
             format!(
-                "{}{}",
+                "{}{}{}{}",
                 text_cell(&name),
-                num_cell(&f.time_share.map_or("—".into(), |x| display::number(100.0 * x)))
+                num_cell(&pct(f.time_share)),
+                num_cell(&pct(end.and_then(|e| share(e, &f.state)))),
+                num_cell(&pct(mixture(&f.state)))
             )
         })
         .collect();
+    let h1 = format!("one molecule, light as after {after} (%)");
+    let h2 = format!("the mixture after {after}, kinetics (%)");
     o.push_str(&page::table(
-        "Photostationary composition: share of the time one molecule spends in each state",
-        &[("state", false), ("share of the time (%)", true)],
+        "Photostationary composition three ways: the share of the time one molecule spends in each state, \
+         and the mixture's share of each form",
+        &[
+            ("state", false),
+            ("one molecule, light as at the start (%)", true),
+            (&h1, true),
+            (&h2, true),
+        ],
         &rows,
     ));
+    o.push_str(&verdict(c, &after));
+    // The rates and first passages under the light of the settled mixture when that chain was
+    // built, else under the starting light.
+    let s = end.unwrap_or(s0);
+    let light_words = if end.is_some() {
+        format!("under the light the mixture lets through after {after}")
+    } else {
+        "under the light shared as at the start".to_string()
+    };
     let mut facts = Vec::new();
     if let Some(r) = s.photons_per_second {
         facts.push(format!("absorbs {} photons per second", display::number(r)));
@@ -76,7 +120,8 @@ pub fn section(s: &ClosedSummary) -> String {
         (None, _) => facts.push("never changes form".into()),
     }
     o.push_str(&format!(
-        "<p>At the photostationary state one molecule {}.</p>\n",
+        "<p>At the photostationary state, {}, one molecule {}.</p>\n",
+        esc(&light_words),
         esc(&facts.join("; "))
     ));
     if !s.first_passage.is_empty() {
@@ -112,9 +157,72 @@ pub fn section(s: &ClosedSummary) -> String {
             ));
         }
     }
-    o.push_str(
-        "<p class=\"note\">The light is shared as at the start; where the forms filter the lamps differently, \
-         <code>ledger --at DURATION</code> shares it at the composition the kinetics reach.</p>\n",
-    );
+    o.push_str(&format!(
+        "<p class=\"note\">The first column is what <code>ledger</code> gives; the second and these rates what \
+         <code>ledger --at {}</code> gives.</p>\n",
+        esc(&after)
+    ));
     o
+}
+
+/// Which composition to quote: the mixture's when one molecule under the mixture's light
+/// agrees with it (the run reached the photostationary state), with what the starting light's
+/// column means; otherwise how far the run is from it.
+fn verdict(c: &ClosedStudy, after: &str) -> String {
+    let points = |s: &ClosedSummary| {
+        c.mixture
+            .iter()
+            .filter_map(|(n, x)| {
+                let f = s.composition.iter().find(|f| &f.state == n)?;
+                Some(100.0 * (f.time_share? - x).abs())
+            })
+            .fold(None, |m: Option<f64>, d| Some(m.map_or(d, |m| m.max(d))))
+    };
+    let Ok(end) = &c.at_end else {
+        return format!(
+            "<p class=\"note\">One molecule under the mixture's light after {} was not followed: {}.</p>\n",
+            esc(after),
+            esc(c.at_end.as_ref().err().map_or("", |e| e.as_str()))
+        );
+    };
+    let (Some(gap), Some(start_gap)) = (points(end), points(&c.at_start)) else {
+        return String::new();
+    };
+    let list = c
+        .mixture
+        .iter()
+        .map(|(n, x)| format!("{} {} %", n, display::number(100.0 * x)))
+        .collect::<Vec<_>>()
+        .join(", ");
+    if gap <= SAME_POINTS {
+        let first = if start_gap <= SAME_POINTS {
+            "The first column agrees as well: the forms share the lamps much as the starting mixture does.".to_string()
+        } else {
+            format!(
+                "The first column, {} percentage points away, is where one molecule would settle if the light \
+                 stayed shared as at the start: the forms filter the lamps differently, so it holds only for a \
+                 sample dilute enough that they do not.",
+                crate::units::sig(start_gap, 2)
+            )
+        };
+        format!(
+            "<p><strong>To quote:</strong> the mixture after {} ({}). One molecule under the light that mixture \
+             lets through settles in the same shares (to {} percentage points), so the run has reached its \
+             photostationary state. {}</p>\n",
+            esc(after),
+            esc(&list),
+            crate::units::sig(gap, 2),
+            esc(&first)
+        )
+    } else {
+        format!(
+            "<p><strong>Not yet photostationary:</strong> after {} the mixture ({}) is still {} percentage points \
+             from where one molecule settles under the light that mixture lets through; a longer run \
+             (<code>--until</code>) comes closer, and the second column is where it is heading while the light \
+             stays as it is then.</p>\n",
+            esc(after),
+            esc(&list),
+            crate::units::sig(gap, 2)
+        )
+    }
 }
