@@ -231,6 +231,26 @@ fn first_stretch(model: &Model, target: &Target) -> f64 {
     }
 }
 
+/// Outputs on a log grid per decade of [`FIRST_DECADES`] below the end of the first stretch.
+pub const FIRST_PER_DECADE: usize = 20;
+
+/// Decades below its end the first stretch's log grid reaches.
+pub const FIRST_DECADES: usize = 6;
+
+/// The output times of a first stretch from 0 to `end` (s): `linear` evenly spaced, and
+/// [`FIRST_PER_DECADE`] per decade over the [`FIRST_DECADES`] decades below `end`, sorted.
+fn first_outputs(end: f64, linear: usize) -> Vec<f64> {
+    let n = linear.max(1);
+    let logs = FIRST_PER_DECADE * FIRST_DECADES;
+    let mut t: Vec<f64> = (1..=n)
+        .map(|i| end * i as f64 / n as f64)
+        .chain((0..logs).map(|i| end * 10f64.powf(-(FIRST_DECADES as f64) + i as f64 / FIRST_PER_DECADE as f64)))
+        .collect();
+    t.sort_by(f64::total_cmp);
+    t.dedup_by(|a, b| (*a - *b).abs() <= 1e-12 * b.abs());
+    t
+}
+
 /// True when nothing changes noticeably over ten times the elapsed time `t`: every species'
 /// rate × 10 t is below 1e-6 of the largest initial concentration.
 fn steady(rhs: &Rhs, y: &[f64], t: f64, scale: f64) -> bool {
@@ -280,6 +300,12 @@ pub fn time_to_target(model: &Model, target: &Target, opts: &PlanOptions) -> Res
             o.rtol = opts.rtol;
             o.atol = opts.atol;
             o.outputs = 200;
+            if t == 0.0 && opts.schedule.is_none() {
+                // The first stretch also on a log grid from a millionth of it: a fast start is
+                // then resolved, and a later target found on this run (`time_to_target_reusing`)
+                // integrates again only a short interval instead of the whole start.
+                o.times = first_outputs(leg, o.outputs);
+            }
             o.event = Some(target.event());
             o.schedule = opts.schedule;
             o.method = kinetics::Method::Bdf;
