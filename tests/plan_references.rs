@@ -516,11 +516,11 @@ fn numeric_leaves(v: &serde_json::Value, path: String, out: &mut Vec<String>) {
 
 // Units written out at the edges (common practice for this project's outputs): every number in
 // plan's summary.json has its unit in the `units` table, for the plain, --in, --wall-plug,
-// --flow-tube and --sun-hours answers.
+// --flow-tube, --sun-hours and --sweep answers.
 #[test]
 fn every_number_in_the_plan_json_has_a_unit() {
     let root = env!("CARGO_MANIFEST_DIR");
-    let runs: [&[&str]; 4] = [
+    let runs: [&[&str]; 6] = [
         &[
             "networks/photoswitch.toml",
             "--target",
@@ -550,6 +550,20 @@ fn every_number_in_the_plan_json_has_a_unit() {
             "product > 10 %",
             "--sun-hours",
             "8",
+        ],
+        &[
+            "networks/photoswitch.toml",
+            "--target",
+            "Z-azo > 45 %",
+            "--sweep",
+            "power=5mW..200mW:3",
+        ],
+        &[
+            "networks/flow-cyclization.toml",
+            "--target",
+            "product > 50 %",
+            "--sweep",
+            "concentration.substrate=1mM..20mM:3",
         ],
     ];
     for args in runs {

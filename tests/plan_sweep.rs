@@ -202,3 +202,28 @@ fn sweep_plots_label_their_log_axes_with_round_values_that_do_not_overlap() {
         assert_readable_ticks(&sel, &format!("selectivity.svg of {spec}"));
     }
 }
+
+/// The sweep's text as a photochemist reads it: each power with its own unit on the display
+/// ladder (19.3 mW, not 0.0193 in a W column), a point that never gets there with the most it
+/// reached and when, as `plan` gives it for one point, and no products column when nothing is
+/// a product.
+#[test]
+fn sweep_text_gives_each_value_its_unit_and_each_unreachable_point_its_closest_level() {
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_photoledger"))
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .args(["plan", "networks/photoswitch.toml", "--target", "Z-azo > 45 %"])
+        .args(["--sweep", "power=5mW..200mW:3", "--out"])
+        .arg(std::env::temp_dir().join(format!("photoledger-sweep-text-{}", std::process::id())))
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(5), "not reachable at any point");
+    let text = String::from_utf8_lossy(&out.stdout);
+    let lines: Vec<&str> = text.lines().collect();
+    assert!(lines[0].starts_with("sweep of total power emitted for"), "{text}");
+    assert!(!lines[1].contains("products"), "no product, no column: {text}");
+    for (line, power) in lines[2..5].iter().zip(["5 mW", "31.6 mW", "200 mW"]) {
+        assert!(line.trim_start().starts_with(power), "{line}");
+        assert!(line.contains("unreachable (photostationary): at best 2"), "{line}");
+        assert!(line.contains(" µM, 99 % of the way there after "), "{line}");
+    }
+}

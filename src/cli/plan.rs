@@ -198,14 +198,26 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
                     Err(e) => serde_json::json!({"value": p.value * sw.axis.unit_factor, "error": e}),
                 })
                 .collect();
+            let units = serde_json::json!({
+                "points[].value": sw.axis.unit,
+                "points[].time_s": "s",
+                "points[].unreachable.final_level": "mol/L",
+                "points[].unreachable.best_level": "mol/L",
+                "points[].unreachable.best_time": "s",
+                "points[].unreachable.horizon": "s",
+                "points[].unreachable.consumers[].rate": "mol/(L s)",
+                "points[].products[].formed": "mol/L",
+                "points[].products[].selectivity": "1",
+                "points[].products[].stoichiometric_max": "1",
+            });
             let j = serde_json::json!({"network": name, "target": a.target, "swept": sw.axis.label, "points": rows,
-                "cautions": rp::CAUTIONS});
+                "units": units, "cautions": rp::CAUTIONS});
             outln!(
                 "{}",
                 serde_json::to_string_pretty(&j).map_err(|e| Error::Numerical(e.to_string()))?
             )?;
         } else {
-            outln!("sweep of {} for \"{}\" on {name}", sw.axis.label, a.target)?;
+            outln!("sweep of {} for \"{}\" on {name}", sw.axis.name, a.target)?;
             out!("{}", rp::sweep_text(&sw.axis, &points))?;
             outln!(
                 "wrote {}/ (sweep.csv, sweep.svg{})",

@@ -11,7 +11,7 @@ use crate::light::LightKind;
 use crate::model::Model;
 use crate::network::Network;
 use crate::network::params::{self, ConditionField, Key, LightField};
-use crate::units::{self, Quantity};
+use crate::units::{self, Quantity, display};
 
 /// What a sweep varies.
 #[derive(Debug, Clone, PartialEq)]
@@ -33,6 +33,14 @@ pub enum Swept {
 pub struct SweepAxis {
     /// Label with unit, e.g. "power (W)".
     pub label: String,
+    /// The quantity without its unit, e.g. "total power emitted", for text where each value
+    /// carries its own unit.
+    pub name: String,
+    /// Unit of the plotted value (the internal value times `unit_factor`), e.g. "W", "nm".
+    pub unit: &'static str,
+    /// The display ladder each value is shown on in text (`units::display`), or None for a
+    /// unit kept fixed (nm, K).
+    pub ladder: Option<&'static crate::units::display::Ladder>,
     /// Factor from the internal value to the plotted unit.
     pub unit_factor: f64,
     /// Log axis.
@@ -77,50 +85,63 @@ pub fn parse(text: &str, net: &Network) -> Result<SweepSpec> {
     let (lo, hi) = range
         .split_once("..")
         .ok_or_else(|| usage("no .. between the ends".into()))?;
-    let (swept, q, log, label, factor) = match key {
-        "power" => (
-            Swept::Power,
-            Quantity::Power,
-            true,
-            "total power emitted (W)".to_string(),
-            1.0,
-        ),
-        "photon_flux" => (
-            Swept::PhotonFlux,
-            Quantity::PhotonFlux,
-            true,
-            "total photon flux emitted (einstein/s)".into(),
-            1.0,
-        ),
-        "wavelength" => (
-            Swept::Wavelength,
-            Quantity::Wavelength,
-            false,
-            "wavelength (nm)".into(),
-            1e9,
-        ),
-        "temperature" => (
-            Swept::Temperature,
-            Quantity::Temperature,
-            false,
-            "temperature (K)".into(),
-            1.0,
-        ),
-        k if k.starts_with("concentration.") => {
-            let name = &k["concentration.".len()..];
-            if net.species_index(name).is_none() {
-                return Err(usage(format!("unknown species \"{name}\"")));
-            }
-            (
-                Swept::Concentration(name.to_string()),
-                Quantity::Concentration,
+    use crate::units::display::{CONCENTRATION, PHOTON_FLUX, POWER};
+    let (swept, q, log, name, unit, ladder, factor): (_, _, _, String, _, Option<&'static display::Ladder>, _) =
+        match key {
+            "power" => (
+                Swept::Power,
+                Quantity::Power,
                 true,
-                format!("initial {name} (mol/L)"),
+                "total power emitted".into(),
+                "W",
+                Some(&POWER),
                 1.0,
-            )
-        }
-        other => return Err(usage(format!("unknown key \"{other}\""))),
-    };
+            ),
+            "photon_flux" => (
+                Swept::PhotonFlux,
+                Quantity::PhotonFlux,
+                true,
+                "total photon flux emitted".into(),
+                "einstein/s",
+                Some(&PHOTON_FLUX),
+                1.0,
+            ),
+            "wavelength" => (
+                Swept::Wavelength,
+                Quantity::Wavelength,
+                false,
+                "wavelength".into(),
+                "nm",
+                None,
+                1e9,
+            ),
+            "temperature" => (
+                Swept::Temperature,
+                Quantity::Temperature,
+                false,
+                "temperature".into(),
+                "K",
+                None,
+                1.0,
+            ),
+            k if k.starts_with("concentration.") => {
+                let name = &k["concentration.".len()..];
+                if net.species_index(name).is_none() {
+                    return Err(usage(format!("unknown species \"{name}\"")));
+                }
+                (
+                    Swept::Concentration(name.to_string()),
+                    Quantity::Concentration,
+                    true,
+                    format!("initial {name}"),
+                    "mol/L",
+                    Some(&CONCENTRATION),
+                    1.0,
+                )
+            }
+            other => return Err(usage(format!("unknown key \"{other}\""))),
+        };
+    let label = format!("{name} ({unit})");
     let p = |s: &str| units::parse(s.trim(), q).map_err(|e| usage(format!("{e}; expected {}", q.accepted())));
     let (a, b) = (p(lo)?, p(hi)?);
     if !(a > 0.0 && b > 0.0) || a == b {
@@ -136,6 +157,9 @@ pub fn parse(text: &str, net: &Network) -> Result<SweepSpec> {
         swept,
         axis: SweepAxis {
             label,
+            name,
+            unit,
+            ladder,
             unit_factor: factor,
             log,
         },

@@ -5,6 +5,7 @@ use super::plan::shown_share;
 use crate::plan::SweepPoint;
 use crate::report::csv_out::{CsvTable, opt_sci, sci};
 use crate::report::ticks;
+use crate::units::display::{self, format_concentration_within};
 use crate::units::{format_time, sig};
 use plotters::prelude::*;
 use std::fmt::Write;
@@ -247,7 +248,10 @@ pub fn selectivity_svg(network: &str, axis: &SweepAxis, points: &[SweepPoint]) -
     })
 }
 
-/// The sweep as a text table.
+/// The sweep as a text table: each swept value with its unit on the display ladder (a fixed
+/// unit for wavelength and temperature), the time to the target or, for a point that never gets
+/// there, why and the closest level with when it came, and the products' selectivity when any
+/// product forms.
 pub fn sweep_text(axis: &SweepAxis, points: &[SweepPoint]) -> String {
     let reference = points
         .iter()
@@ -257,37 +261,69 @@ pub fn sweep_text(axis: &SweepAxis, points: &[SweepPoint]) -> String {
     let what = reference.map_or("selectivity".to_string(), |r| {
         format!("selectivity: formed per {r} consumed")
     });
-    let mut o = format!("{:>14}  {:>14}  products ({what})\n", axis.label, "time to target");
+    let value = |v: f64| match axis.ladder {
+        Some(l) => display::format(v, l),
+        None => sig(v * axis.unit_factor, 4),
+    };
+    let header = match axis.ladder {
+        Some(_) => axis.name.clone(),
+        None => axis.label.clone(),
+    };
+    let products = |pl: &crate::plan::Plan| {
+        pl.products
+            .iter()
+            .map(|s| shown_share(s, pl.trajectory.zero_within()))
+            .filter(|s| s.formed > 0.0)
+            .map(|s| match s.selectivity {
+                Some(x) => format!("{} {} %", s.species, sig(x * 100.0, 3)),
+                None => format!("{} (not formed from the reference)", s.species),
+            })
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    let any_products = points
+        .iter()
+        .any(|p| p.plan.as_ref().is_ok_and(|pl| !products(pl).is_empty()));
+    let width = points
+        .iter()
+        .map(|p| value(p.value).chars().count())
+        .chain([header.chars().count()])
+        .max()
+        .unwrap_or(14);
+    let mut o = format!("{header:>width$}  {:>14}", "time to target");
+    if any_products {
+        o.push_str(&format!("  products ({what})"));
+    }
+    o.push('\n');
     for p in points {
-        let v = sig(p.value * axis.unit_factor, 4);
+        let v = value(p.value);
         match &p.plan {
             Ok(pl) => {
-                let t = pl.time.map_or_else(
-                    || format!("unreachable ({})", pl.unreachable.as_ref().map_or("", |u| short(u.why))),
-                    format_time,
-                );
-                let prods = pl
-                    .products
-                    .iter()
-                    .map(|s| shown_share(s, pl.trajectory.zero_within()))
-                    .filter(|s| s.formed > 0.0)
-                    .map(|s| match s.selectivity {
-                        Some(x) => format!("{} {} %", s.species, sig(x * 100.0, 3)),
-                        None => format!("{} (not formed from the reference)", s.species),
-                    })
-                    .collect::<Vec<_>>()
-                    .join(", ");
-                let _ = writeln!(o, "{v:>14}  {t:>14}  {prods}");
+                let t = match (pl.time, &pl.unreachable) {
+                    (Some(t), _) => format_time(t),
+                    (None, Some(u)) => format!(
+                        "unreachable ({}): at best {}, {}",
+                        short(u.why),
+                        format_concentration_within(u.best_level, pl.trajectory.zero_within()),
+                        super::plan::closest_when(u)
+                    ),
+                    (None, None) => "unreachable".into(),
+                };
+                let _ = write!(o, "{v:>width$}  {t:>14}");
+                if any_products {
+                    let _ = write!(o, "  {}", products(pl));
+                }
+                o.push('\n');
             }
             Err(e) => {
-                let _ = writeln!(o, "{v:>14}  failed: {e}");
+                let _ = writeln!(o, "{v:>width$}  failed: {e}");
             }
         }
     }
     let missed: Vec<String> = points
         .iter()
         .filter(|p| p.plan.as_ref().is_ok_and(|pl| pl.time.is_none()))
-        .map(|p| sig(p.value * axis.unit_factor, 4))
+        .map(|p| value(p.value))
         .collect();
     if missed.len() == points.len() {
         let _ = writeln!(o, "NOT REACHABLE at any point of the sweep (exit 5)");
@@ -297,7 +333,7 @@ pub fn sweep_text(axis: &SweepAxis, points: &[SweepPoint]) -> String {
             "not reached at {} of {} points: {} {}",
             missed.len(),
             points.len(),
-            axis.label,
+            header,
             missed.join(", ")
         );
     }
