@@ -251,22 +251,6 @@ pub fn front_loaded(tr: &Trajectory, n_species: usize) -> bool {
     changed > 0
 }
 
-/// Keep the states of `all` at the times of `grid` (both sorted; times compared exactly).
-fn on_grid(all: &Trajectory, grid: &[f64]) -> Trajectory {
-    let (times, states) = all
-        .times
-        .iter()
-        .zip(&all.states)
-        .filter(|(t, _)| grid.binary_search_by(|g| g.total_cmp(t)).is_ok())
-        .map(|(t, y)| (*t, y.clone()))
-        .unzip();
-    Trajectory {
-        times,
-        states,
-        ..all.clone()
-    }
-}
-
 /// The kinetics of a study to `until` s, integrated once: the run asks for the output times of
 /// the linear grid and of the logarithmic grid together (the BDF integrator steps independently
 /// of the output times and interpolates, so each grid's states are those a run asking for that
@@ -291,9 +275,9 @@ pub fn kinetics_once(
         ..linear
     };
     let all = integrate(&both)?;
-    let on_linear = on_grid(&all, &lin_t);
+    let on_linear = all.on_grid(&lin_t);
     if front_loaded(&on_linear, model.n_species()) {
-        Ok((on_grid(&all, &log_t), true))
+        Ok((all.on_grid(&log_t), true))
     } else {
         Ok((on_linear, false))
     }

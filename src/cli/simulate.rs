@@ -46,7 +46,7 @@ pub struct SimulateArgs {
     pub daylight: DaylightArgs,
 }
 
-/// Output times of the log-spaced run drawn when a run is a step at its start.
+/// Log-spaced output times drawn when a run is a step at its start.
 const PLOT_POINTS: usize = 400;
 
 /// Read "NAME < LEVEL" or "NAME > LEVEL" (the planning target syntax) into an event.
@@ -92,8 +92,26 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<Exit> {
     } else {
         indicatif::ProgressBar::hidden()
     };
-    let tr = kinetics::simulate(&model, &opts, &mut |f| bar.set_position((f * 1000.0) as u64))?;
+    // One integration gives the times asked for and, should the run be a step at its start,
+    // the log-spaced times its plot is drawn from (BDF steps on its own and interpolates at
+    // every output, so each grid's states are those of a run asking for that grid alone).
+    let asked = kinetics::output_times(&opts, 0.0);
+    let log_grid = kinetics::output_times(
+        &Options {
+            log_time: true,
+            outputs: PLOT_POINTS,
+            times: Vec::new(),
+            ..opts.clone()
+        },
+        0.0,
+    );
+    let both = Options {
+        times: asked.iter().chain(&log_grid).copied().collect(),
+        ..opts.clone()
+    };
+    let all = kinetics::simulate(&model, &both, &mut |f| bar.set_position((f * 1000.0) as u64))?;
     bar.finish_and_clear();
+    let tr = all.on_grid(&asked);
     let summary = simulation::summary(&net, &model, &tr, opts.rtol, opts.atol);
     let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Numerical(e.to_string()))?;
     let dir = a.output.dir(&a.net.file, "simulate");
@@ -106,20 +124,10 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<Exit> {
         simulation::write_photons_csv(&model, &tr, w)
     })?;
     write_atomic(&folder.join("summary.json"), json.as_bytes())?;
-    // A run that is a step at its start is plotted on a log time axis, from a second run
-    // with log-spaced output times (the files keep the times asked for; `timeplot`).
+    // A run that is a step at its start is plotted on a log time axis, from the log-spaced
+    // output times of the same run (the files keep the times asked for; `timeplot`).
     let axis = TimeAxis::choose(a.log_time, &tr.times, &tr.states, model.n_species());
-    let stepped = (axis == TimeAxis::Automatic)
-        .then(|| {
-            let log = Options {
-                log_time: true,
-                outputs: PLOT_POINTS,
-                ..opts.clone()
-            };
-            kinetics::simulate(&model, &log, &mut |_| {})
-        })
-        // Should that run fail, the plot is drawn from the run itself on the same log axis.
-        .and_then(Result::ok);
+    let stepped = (axis == TimeAxis::Automatic).then(|| all.on_grid(&log_grid));
     let shown = stepped.as_ref().unwrap_or(&tr);
     write_atomic(
         &folder.join("concentrations.svg"),

@@ -253,6 +253,29 @@ impl Trajectory {
     pub fn series(&self, i: usize) -> Vec<f64> {
         self.states.iter().map(|s| s[i]).collect()
     }
+
+    /// The outputs at the times of `grid` only (both sorted; times compared exactly, as
+    /// [`output_times`] makes them and a run keeps them), and the last output when the run
+    /// stopped at an event or a watch: one run asked for several grids together, split into
+    /// one trajectory per grid.
+    pub fn on_grid(&self, grid: &[f64]) -> Trajectory {
+        let stopped = match self.stop {
+            Stop::Event(t) | Stop::Enough(t) => Some(t),
+            Stop::EndTime => None,
+        };
+        let (times, states) = self
+            .times
+            .iter()
+            .zip(&self.states)
+            .filter(|(t, _)| grid.binary_search_by(|g| g.total_cmp(t)).is_ok() || stopped == Some(**t))
+            .map(|(t, y)| (*t, y.clone()))
+            .unzip();
+        Trajectory {
+            times,
+            states,
+            ..self.clone()
+        }
+    }
 }
 
 /// The output times for `opts`, from `start` (s): the start, then the explicit `times`, or
