@@ -328,7 +328,7 @@ fn bad_blocks_give_clear_errors() {
                 "{BASE}\n[[thermal]]\nequation = \"A + C -> B\"\nrate = {{ barrier = \"20 kcal/mol\", reactant_frequencies = [1000], ts_frequencies = [-500] }}\n"
             ),
             vec![
-                "net.toml:21:8: thermal[0].rate",
+                "net.toml:21:8: thermal \"A + C -> B\".rate",
                 "for unimolecular steps",
                 "molecularity 2",
             ],
@@ -336,7 +336,7 @@ fn bad_blocks_give_clear_errors() {
         (
             thermal("{ barrier = \"20 kcal/mol\", reactant_frequencies = [1000, 500], ts_frequencies = [1000] }"),
             vec![
-                "thermal[0].rate.ts_frequencies",
+                "thermal \"A -> B\".rate.ts_frequencies",
                 "no imaginary frequency",
                 "negative number",
             ],
@@ -345,13 +345,16 @@ fn bad_blocks_give_clear_errors() {
             thermal(
                 "{ barrier = \"20 kcal/mol\", reactant_frequencies = [1000, -500], ts_frequencies = [1000, -500] }",
             ),
-            vec!["thermal[0].rate.reactant_frequencies", "a reactant has only real ones"],
+            vec![
+                "thermal \"A -> B\".rate.reactant_frequencies",
+                "a reactant has only real ones",
+            ],
         ),
         (
             thermal("{ barrier = \"20 kcal/mol\", reactant_frequencies = \"broken.txt\", ts_frequencies = [-500] }"),
             vec![
                 "broken.txt:2:1",
-                "thermal[0].rate.reactant_frequencies -> reactant frequency",
+                "thermal \"A -> B\".rate.reactant_frequencies -> reactant frequency",
                 "\"abc\" is not a number",
             ],
         ),
@@ -368,19 +371,22 @@ fn bad_blocks_give_clear_errors() {
                 "{ barrier = \"20 kcal/mol\", reactant_frequencies = [1000, 500], ts_frequencies = [1000, -400], tunnelling = \"bell\" }",
             ),
             vec![
-                "thermal[0].rate.tunnelling",
+                "thermal \"A -> B\".rate.tunnelling",
                 "\"bell\" is not a tunnelling correction",
                 "\"wigner\"",
             ],
         ),
         (
             thermal("{ barrier = \"20 kcal/mol\", tunnelling = \"wigner\" }"),
-            vec!["thermal[0].rate.tunnelling", "applies only to a rate from frequencies"],
+            vec![
+                "thermal \"A -> B\".rate.tunnelling",
+                "applies only to a rate from frequencies",
+            ],
         ),
         (
             thermal("{ reactant_frequencies = [1000, 500], ts_frequencies = [1000, -400] }"),
             vec![
-                "thermal[0].rate",
+                "thermal \"A -> B\".rate",
                 "needs barrier, reactant_frequencies and ts_frequencies",
             ],
         ),

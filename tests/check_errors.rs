@@ -379,7 +379,7 @@ fn unknown_species_in_an_equation_suggests_the_closest_name() {
         "error",
         &p,
         Some(loc(&text, "\"E-azo -> Z-azp\"")),
-        "photo[0].equation",
+        "photo \"E-azo -> Z-azp\".equation",
     )
     .says(&["unknown species \"Z-azp\""])
     .helps(&["did you mean \"Z-azo\"?"]);
@@ -447,7 +447,7 @@ fn two_lights_with_one_name() {
         "error",
         &p,
         Some(loc_last(&text, "[[light]]")),
-        "light[1].name",
+        "light \"UV LED\".name",
     )
     .says(&["\"UV LED\" is used by another light", &format!("(line {first})")])
     .helps(&["its own name"]);
@@ -495,7 +495,7 @@ fn a_power_given_for_a_wavelength() {
         "error",
         &p,
         Some(loc(&text, "\"20 mW\"")),
-        "light[0].wavelength",
+        "light \"UV LED\".wavelength",
     )
     .says(&["\"20 mW\" is not a wavelength", "\"mW\" has the wrong dimension"])
     .helps(&["expected a number with nm", "e.g. \"365 nm\""]);
@@ -511,7 +511,7 @@ fn an_unknown_unit_symbol_is_named() {
         "error",
         &p,
         Some(loc(&text, "\"20 mWatt\"")),
-        "light[0].power",
+        "light \"UV LED\".power",
     )
     .says(&["mWatt"])
     .helps(&["expected a number with W, mW"]);
@@ -528,7 +528,7 @@ fn a_barrier_in_kcal_without_per_mol_is_rejected() {
         "error",
         &p,
         Some(loc(&text, "\"23.5 kcal\"")),
-        "thermal[0].rate.barrier",
+        "thermal \"Z-azo -> E-azo\".rate.barrier",
     )
     .says(&["\"23.5 kcal\""])
     .helps(&["kcal/mol"]);
@@ -611,7 +611,7 @@ fn a_zero_rate_constant() {
         "error",
         &p,
         Some(loc(&text, "\"0 /s\"")),
-        "thermal[0].rate.k",
+        "thermal \"Z-azo -> E-azo\".rate.k",
     )
     .says(&["\"0 /s\" must be positive"])
     .helps(&["/s"]);
@@ -627,7 +627,7 @@ fn an_overflowing_number_is_not_finite() {
         "error",
         &p,
         Some(loc(&text, "\"1e400 nm\"")),
-        "light[0].wavelength",
+        "light \"UV LED\".wavelength",
     )
     .says(&["\"1e400 nm\" is not a finite number"])
     .helps(&["expected a number with nm"]);
@@ -643,7 +643,7 @@ fn inf_and_nan_in_quantities_are_rejected() {
         "error",
         &p,
         Some(loc(&text, "\"inf nm\"")),
-        "light[0].wavelength",
+        "light \"UV LED\".wavelength",
     )
     .says(&["\"inf nm\""])
     .helps(&["expected a number with nm"]);
@@ -651,9 +651,15 @@ fn inf_and_nan_in_quantities_are_rejected() {
     let text = edit(SWITCH, "power = \"20 mW\"", "power = \"nan mW\"");
     let (_s, p, r) = check_text("nan", &text, &[]);
     assert_invalid(&r);
-    diag(&r.stderr, "error", &p, Some(loc(&text, "\"nan mW\"")), "light[0].power")
-        .says(&["\"nan mW\""])
-        .helps(&["expected a number with W, mW"]);
+    diag(
+        &r.stderr,
+        "error",
+        &p,
+        Some(loc(&text, "\"nan mW\"")),
+        "light \"UV LED\".power",
+    )
+    .says(&["\"nan mW\""])
+    .helps(&["expected a number with W, mW"]);
 }
 
 #[test]
@@ -662,9 +668,9 @@ fn inf_and_nan_in_quantities_are_called_non_finite() {
         (
             "wavelength = \"365 nm\"",
             "wavelength = \"inf nm\"",
-            "light[0].wavelength",
+            "light \"UV LED\".wavelength",
         ),
-        ("power = \"20 mW\"", "power = \"nan mW\"", "light[0].power"),
+        ("power = \"20 mW\"", "power = \"nan mW\"", "light \"UV LED\".power"),
     ] {
         let text = edit(SWITCH, from, to);
         let (_s, p, r) = check_text("inf-wording", &text, &[]);
@@ -686,7 +692,7 @@ fn toml_nan_and_inf_numbers_are_rejected() {
         "error",
         &p,
         Some(loc(&text, "nan")),
-        "photo[0].quantum_yield",
+        "photo \"E-azo -> Z-azo\".quantum_yield",
     )
     .says(&["NaN"]);
 
@@ -760,7 +766,7 @@ fn a_quantum_yield_above_one() {
         "error",
         &p,
         Some(loc(&text, "1.2")),
-        "photo[0].quantum_yield",
+        "photo \"E-azo -> Z-azo\".quantum_yield",
     )
     .says(&["1.2 is above 1"])
     .helps(&["a quantum yield lies in [0, 1]"]);
@@ -780,7 +786,7 @@ fn a_quantum_yield_table_above_one_somewhere() {
         "error",
         &p,
         Some(loc(&text, "{ wavelength_unit")),
-        "photo[0].quantum_yield",
+        "photo \"E-azo -> Z-azo\".quantum_yield",
     )
     .says(&["1.05 is above 1"])
     .helps(&["[0, 1]"]);
@@ -1225,7 +1231,7 @@ fn a_light_without_power_or_photon_flux() {
         "error",
         &p,
         Some(table_of(&text, "name = \"UV LED\"")),
-        "light[0]",
+        "light \"UV LED\"",
     )
     .says(&["needs power or photon_flux"])
     .helps(&["power = \"50 mW\""]);
@@ -1241,7 +1247,7 @@ fn a_thermal_step_without_a_rate() {
         "error",
         &p,
         Some(table_of(&text, "equation = \"Z-azo -> E-azo\"")),
-        "thermal[0].rate",
+        "thermal \"Z-azo -> E-azo\".rate",
     )
     .says(&["is missing"])
     .helps(&["rate = { k = \"0.04 /s\" }"]);
@@ -1261,7 +1267,7 @@ fn a_bimolecular_step_without_a_rate_gets_a_second_order_example() {
         "error",
         &p,
         Some(table_of(&text, "equation = \"2 Z-azo")),
-        "thermal[0].rate",
+        "thermal \"2 Z-azo -> 2 E-azo\".rate",
     )
     .says(&["is missing"])
     .helps(&["/(M s)"]);
@@ -1281,7 +1287,7 @@ fn a_reversible_step_without_its_reverse_rate() {
         "error",
         &p,
         Some(table_of(&text, "equation = \"Z-azo <=> E-azo\"")),
-        "thermal[0].reverse",
+        "thermal \"Z-azo <=> E-azo\".reverse",
     )
     .says(&["is missing for a reversible (<=>) equation"])
     .helps(&["reverse = { k =", "->"]);
@@ -1301,7 +1307,7 @@ fn a_reverse_rate_on_a_one_way_step() {
         "error",
         &p,
         Some(loc(&text, "{ k = \"1e-6 /s\" }")),
-        "thermal[0].reverse",
+        "thermal \"Z-azo -> E-azo\".reverse",
     )
     .says(&["one-way"])
     .helps(&["<=>"]);
@@ -1598,14 +1604,14 @@ fn every_problem_is_listed_at_once() {
         "error",
         &p,
         Some(loc(&text, "1.2")),
-        "photo[0].quantum_yield",
+        "photo \"E-azo -> Z-azo\".quantum_yield",
     );
     diag(
         &r.stderr,
         "error",
         &p,
         Some(loc(&text, "\"23.5 mW\"")),
-        "thermal[0].rate.barrier",
+        "thermal \"Z-azo -> E-azo\".rate.barrier",
     );
     assert_contains(&r.stderr, &["3 errors"]);
 }
@@ -1628,7 +1634,7 @@ fn a_conditions_error_does_not_hide_the_others() {
         "error",
         &p,
         Some(loc(&text, "1.2")),
-        "photo[0].quantum_yield",
+        "photo \"E-azo -> Z-azo\".quantum_yield",
     );
     assert_contains(&r.stderr, &["2 errors"]);
 }
@@ -1682,7 +1688,7 @@ fn a_line_outside_its_window_is_an_error() {
         "error",
         &p,
         Some(table_of(&text, "name = \"UV LED\"")),
-        "light[0].from",
+        "light \"UV LED\".from",
     )
     .says(&["\"400 nm\" leaves no photons", "emits at 365 nm"])
     .helps(&["a window that includes 365 nm", "or drop from/to"]);
@@ -1699,7 +1705,7 @@ fn a_line_outside_its_window_is_an_error() {
         "error",
         &p,
         Some(table_of(&band, "name = \"UV LED\"")),
-        "light[0].to",
+        "light \"UV LED\".to",
     )
     .says(&["\"400 nm\" leaves no photons", "emits over 430 nm–470 nm"])
     .helps(&["overlaps 430 nm–470 nm"]);
@@ -1794,7 +1800,7 @@ fn percentages_are_accepted_for_shares() {
         "error",
         &p,
         Some(loc(&qy("\"12 percent\""), "\"12 percent\"")),
-        "photo[0].quantum_yield",
+        "photo \"E-azo -> Z-azo\".quantum_yield",
     )
     .says(&["\"12 percent\" is not a number or a percentage", "\"12 %\""]);
     let (_s, _p, r) = check_text("eff-bad", &ring("\"95 percent\"", "0.4"), &[]);
@@ -1805,5 +1811,46 @@ fn percentages_are_accepted_for_shares() {
     );
     let (_s, _p, r) = check_text("qy-over", &qy("\"120 %\""), &[]);
     assert_invalid(&r);
-    assert_contains(&r.stderr, &["photo[0].quantum_yield", "1.2 is above 1"]);
+    assert_contains(&r.stderr, &["photo \"E-azo -> Z-azo\".quantum_yield", "1.2 is above 1"]);
+}
+
+// A file with a misspelt key, a bare number where a unit belongs and a value without its unit
+// is reported in one run, each problem at its own line: the reader goes on past the first
+// (its line taken out, every other line where it was) and validation reads the rest.
+#[test]
+fn a_misspelt_key_a_bare_number_and_a_missing_unit_are_reported_together() {
+    let text = edit(
+        &edit(
+            &edit(SWITCH, "volume = \"3 mL\"", "volumes = \"3 mL\""),
+            "power = \"20 mW\"",
+            "power = 20",
+        ),
+        "initial = \"50 µM\"",
+        "initial = \"50\"",
+    );
+    let (_s, p, r) = check_text("three-at-once", &text, &[]);
+    assert_invalid(&r);
+    let at = |needle: &str| loc(&text, needle);
+    let (vl, _) = at("volumes");
+    let (pl, _) = at("power = 20");
+    let (il, _) = at("initial = \"50\"");
+    let f = p.display().to_string();
+    assert_contains(
+        &r.stderr,
+        &[&format!(
+            "{f}:{vl}:1: not a valid network file here: unknown field `volumes`"
+        )],
+    );
+    assert_contains(
+        &r.stderr,
+        &[
+            &format!("{f}:{pl}:"),
+            "power = 20 is a number without a unit",
+            "e.g. power = \"20 mW\"",
+        ],
+    );
+    assert_contains(
+        &r.stderr,
+        &[&format!("{f}:{il}:"), "species \"E-azo\".initial: \"50\" has no unit"],
+    );
 }

@@ -356,7 +356,7 @@ fn a_broken_window_is_an_error_naming_the_field() {
         &r.stderr,
         &p,
         loc(&text, "{ at = \"365 nm\", value = 0.12"),
-        "photo[0].quantum_yield",
+        "photo \"E -> Z\".quantum_yield",
     );
     assert_contains(&msg, &["`from`/`to` bound a single ε value"]);
 }
@@ -516,7 +516,12 @@ fn negative_and_non_finite_light_values_are_errors_naming_the_field() {
         let text = edit(SWITCH, "power = \"20 mW\"", &format!("power = \"{value}\""));
         let (p, r) = run_on(&s, &text, "check", &[]);
         r.code(1);
-        let (msg, _) = error_at(&r.stderr, &p, loc(&text, &format!("\"{value}\"")), "light[0].power");
+        let (msg, _) = error_at(
+            &r.stderr,
+            &p,
+            loc(&text, &format!("\"{value}\"")),
+            "light \"UV LED\".power",
+        );
         assert_contains(&msg, &[says]);
         // A value given with --set is named by the key as typed.
         let (_, r) = run_on(&s, SWITCH, "check", &["--set", &format!("light.UV LED.power={value}")]);
@@ -536,7 +541,7 @@ fn negative_and_non_finite_light_values_are_errors_naming_the_field() {
     let neg = edit(SWITCH, "power = \"20 mW\"", "photon_flux = \"-2 µeinstein/s\"");
     let (_, r) = run_on(&s, &neg, "check", &[]);
     r.code(1);
-    assert_contains(&r.stderr, &["light[0].photon_flux", "is negative"]);
+    assert_contains(&r.stderr, &["light \"UV LED\".photon_flux", "is negative"]);
     run_on(&s, SWITCH, "check", &["--set", "light.UV LED.power=-0 mW"])
         .1
         .code(0);
@@ -559,7 +564,7 @@ fn negative_and_non_finite_light_values_are_errors_naming_the_field() {
         let text = edit(&sun, "kind = \"sun\"", &format!("kind = \"sun\"\nscale = {file}"));
         let (_, r) = run_on(&s, &text, "check", &[]);
         r.code(1);
-        assert_contains(&r.stderr, &["light[0].scale", "a finite factor of zero or more"]);
+        assert_contains(&r.stderr, &["light \"sun\".scale", "a finite factor of zero or more"]);
     }
 }
 

@@ -1,7 +1,7 @@
 //! `photoledger check FILE [--quiet] [--json]`: validate and summarise.
 
 use super::output::{out, outln};
-use super::{NetworkArgs, build, print_json, print_warnings};
+use super::{NetworkArgs, print_json, print_warnings};
 use photoledger::uncertainty::{evidence, spec};
 
 /// Options of `check`.
@@ -19,8 +19,7 @@ pub struct CheckArgs {
 }
 
 pub fn run(args: &CheckArgs) -> photoledger::Result<()> {
-    let loaded = photoledger::file::load(&args.net.file)?;
-    let net = build(&loaded, &args.net)?;
+    let (loaded, net) = super::load_both(&args.net)?;
     // The [[uncertain]] entries are checked here too, as `uncertainty` reads them.
     let explicit = spec::read(&loaded)?;
     print_warnings(&net);

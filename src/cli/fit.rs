@@ -136,10 +136,9 @@ pub fn fit_one(
     experiments: &[Experiment],
     opts: &FitOptions,
 ) -> photoledger::Result<Fitted> {
-    let loaded = photoledger::file::load(file)?;
     // The network as given (before any experiment's conditions): its warnings, once, first.
     let args = super::NetworkArgs::of(file, set);
-    let net = super::build(&loaded, &args)?;
+    let (loaded, net) = super::load_both(&args)?;
     super::print_warnings(&net);
     let pb = bar(opts.max_evaluations, &file.display().to_string());
     let free = loaded.free_keys(free);

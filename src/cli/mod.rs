@@ -263,7 +263,25 @@ fn report_error(e: &Error) -> Exit {
 
 /// Load and validate the network named by `args`.
 fn load(args: &NetworkArgs) -> photoledger::Result<photoledger::Network> {
-    build(&photoledger::file::load(&args.file)?, args)
+    Ok(load_both(args)?.1)
+}
+
+/// The file as read and the network built from it; a file with structural problems (a
+/// misspelt key, a number without its unit) reports them all together with what validation
+/// finds in the rest of the file.
+fn load_both(args: &NetworkArgs) -> photoledger::Result<(photoledger::file::Loaded, photoledger::Network)> {
+    let text = photoledger::file::read_text(&args.file)?;
+    match photoledger::file::parse_all(&args.file, text) {
+        (Some(l), problems) if problems.is_empty() => {
+            let net = build(&l, args)?;
+            Ok((l, net))
+        }
+        (loaded, problems) => Err(
+            photoledger::network::build_reporting_all(loaded, problems, &|l| build(l, args))
+                .err()
+                .unwrap_or_else(|| Error::Numerical("a file with problems built without error".into())),
+        ),
+    }
 }
 
 /// Validate a network file already read, with the `--set` overrides of `args`.

@@ -3,7 +3,7 @@
 
 use super::daylight::DaylightArgs;
 use super::output::{out, outln};
-use super::{Exit, NetworkArgs, build, print_warnings};
+use super::{Exit, NetworkArgs, print_warnings};
 use photoledger::Error;
 use photoledger::file::folder::Folder;
 use photoledger::model::Model;
@@ -120,9 +120,7 @@ fn sweep_exit(points: &[plan::SweepPoint]) -> Exit {
 /// Plan; [`Exit::Unreachable`] when the answer is that the target is not reachable (the
 /// closest approach and why are printed), with or without `--in`.
 pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
-    // Read once: a sweep builds each point's network from the same text.
-    let loaded = photoledger::file::load(&a.net.file)?;
-    let net = build(&loaded, &a.net)?;
+    let net = super::load(&a.net)?;
     print_warnings(&net);
     let mut model = Model::compile(&net);
     let horizon = super::values::duration("horizon", &a.horizon)?;

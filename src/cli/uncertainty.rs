@@ -82,10 +82,9 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
     if total == 0 {
         return Err(Error::Usage("--samples must be at least 1".into()));
     }
-    let loaded = photoledger::file::load(file)?;
     // The network as given (before any sample's values): its warnings, once, first.
     let args = super::NetworkArgs::of(file, &a.set);
-    let net = super::build(&loaded, &args)?;
+    let (loaded, net) = super::load_both(&args)?;
     super::print_warnings(&net);
     let mut space = Space {
         independent: spec::read(&loaded)?,

@@ -12,11 +12,12 @@ pub mod folder;
 pub mod frequencies;
 pub mod levels;
 pub mod schema;
+pub mod structure;
 pub mod text;
 pub mod uncertain;
 pub mod write;
 
-use crate::error::{Diagnostic, Error, Origin, Result};
+use crate::error::{Diagnostic, Error, Result};
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
@@ -95,32 +96,23 @@ pub fn read_text(path: &Path) -> Result<String> {
     })
 }
 
-/// Parse network text as if read from `path` (CSV paths resolve against its folder).
+/// Parse network text as if read from `path` (CSV paths resolve against its folder). Every
+/// structural problem (a misspelt key, a number without its unit) is reported together, up
+/// to [`structure::MOST`].
 pub fn parse_text(path: &Path, text: String) -> Result<Loaded> {
-    let doc: NetworkFile = match toml::from_str(&text) {
-        Ok(d) => d,
-        Err(e) => {
-            let origin = e.span().map_or(Origin::Unknown, Origin::Span);
-            let msg = e.message().trim().to_string();
-            // Show the offending line: TOML's own message names the type, not always the key.
-            let line = match &origin {
-                Origin::Span(r) => {
-                    let (l, _) = crate::error::line_col(&text, r.start);
-                    text.lines().nth(l - 1).map(|s| format!("line {l}: {}", s.trim()))
-                }
-                _ => None,
-            };
-            let help = match line {
-                Some(l) => format!(
-                    "{l}\n  (the format reference is in README.md; a table stops at the first problem of this kind)"
-                ),
-                None => "see the format reference in README.md".to_string(),
-            };
-            let d = Diagnostic::error("", format!("not a valid network file here: {msg}"))
-                .with_help(help)
-                .at(path, &text, &origin);
-            return Err(Error::invalid(d));
-        }
+    match parse_all(path, text) {
+        (Some(l), problems) if problems.is_empty() => Ok(l),
+        (_, problems) => Err(Error::Invalid(problems)),
+    }
+}
+
+/// [`parse_text`] that goes on past structural problems: the problems, and, when the text with
+/// their lines blanked reads, that text as a [`Loaded`] (same offsets and lines as the file) so
+/// validation can report its own problems in the same run (`network::load`).
+pub fn parse_all(path: &Path, text: String) -> (Option<Loaded>, Vec<Diagnostic>) {
+    let (rest, problems) = structure::read_all(path, &text);
+    let Some((text, doc)) = rest else {
+        return (None, problems);
     };
     let dir = path.parent().unwrap_or(Path::new("."));
     let mut tables = BTreeMap::new();
@@ -135,13 +127,14 @@ pub fn parse_text(path: &Path, text: String) -> Result<Loaded> {
         let t = text::read(&full).map_err(|e| e.to_string());
         frequency_files.insert(name, (full, t));
     }
-    Ok(Loaded {
+    let loaded = Loaded {
         path: path.to_path_buf(),
         text,
         doc,
         tables,
         frequency_files,
-    })
+    };
+    (Some(loaded), problems)
 }
 
 /// File names given (as strings) to the frequency keys of rates, hot transients and hot channels.

@@ -31,8 +31,31 @@ use std::path::{Path, PathBuf};
 
 /// Read, parse and validate the network file at `path`, with command-line overrides.
 pub fn load(path: &Path, overrides: &Overrides) -> Result<Network> {
-    let loaded = crate::file::load(path)?;
-    build(&loaded, overrides)
+    let text = crate::file::read_text(path)?;
+    let (loaded, problems) = crate::file::parse_all(path, text);
+    build_reporting_all(loaded, problems, &|l| build(l, overrides))
+}
+
+/// The network from [`crate::file::parse_all`]'s result with `build`: when the file had
+/// structural problems, they and the problems validation finds in the rest of the file
+/// (when it reads), together in one [`Error::Invalid`].
+pub fn build_reporting_all(
+    loaded: Option<crate::file::Loaded>,
+    problems: Vec<crate::error::Diagnostic>,
+    build: &dyn Fn(&crate::file::Loaded) -> Result<Network>,
+) -> Result<Network> {
+    match loaded {
+        Some(l) if problems.is_empty() => build(&l),
+        loaded => {
+            let mut all = problems;
+            if let Some(l) = loaded
+                && let Err(crate::Error::Invalid(more)) = build(&l)
+            {
+                all.extend(more);
+            }
+            Err(crate::Error::Invalid(all))
+        }
+    }
 }
 
 /// A 64-bit hash (FNV-1a) of every number and name of `net` that a computation uses: equal for

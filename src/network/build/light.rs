@@ -88,7 +88,11 @@ impl Builder<'_> {
             .name
             .as_ref()
             .map_or(format!("light{}", i + 1), |n| n.get_ref().trim().to_string());
-        let field = format!("light[{i}]");
+        // Named as the file names it (`light "UV LED".power`); by position when unnamed.
+        let field = match &e.name {
+            Some(n) if !n.get_ref().trim().is_empty() => format!("light \"{}\"", n.get_ref().trim()),
+            _ => format!("light[{i}]"),
+        };
         if self.too_long(&format!("{field}.name"), &name, &at) {
             return None;
         }

@@ -59,7 +59,7 @@ impl Builder<'_> {
         for (i, s) in doc.thermal.iter().enumerate() {
             let at = span(s);
             let e = s.get_ref();
-            let field = format!("thermal[{i}]");
+            let field = step_field("thermal", i, e.name.as_ref(), e.equation.as_ref());
             let Some(eq) = &e.equation else {
                 self.error(
                     &format!("{field}.equation"),
@@ -201,7 +201,7 @@ impl Builder<'_> {
         for (i, s) in doc.photo.iter().enumerate() {
             let at = span(s);
             let e = s.get_ref();
-            let field = format!("photo[{i}]");
+            let field = step_field("photo", i, e.name.as_ref(), e.equation.as_ref());
             let window = match &e.range {
                 Some(r) => match self.window(&format!("{field}.range"), r) {
                     Some(w) => Some(w),
@@ -456,5 +456,14 @@ impl Builder<'_> {
             quantum_yield: Spectrum::Constant { value: eff, at: None },
             window,
         })
+    }
+}
+
+/// How an error names step `i` of `table`: by its name (`thermal "ring closure"`), else by its
+/// equation (`photo "A -> B"`), else by position (`photo[2]`).
+fn step_field(table: &str, i: usize, name: Option<&schema::Text>, equation: Option<&schema::Text>) -> String {
+    match name.or(equation).map(|n| n.get_ref().trim()) {
+        Some(n) if !n.is_empty() => format!("{table} \"{n}\""),
+        _ => format!("{table}[{i}]"),
     }
 }

@@ -1,0 +1,129 @@
+//! Every structural problem of a network file at once: a misspelt key, a number written without
+//! its unit. The TOML reader stops at the first; here each problem found is taken out of a
+//! working copy of the text (its line blanked, so every byte offset and line number stays that
+//! of the file) and the copy read again, up to [`MOST`] problems. What remains, when it reads,
+//! is handed on so validation can report its own problems in the same run.
+
+use crate::error::{Diagnostic, Origin};
+use std::path::Path;
+
+/// Most structural problems reported from one file.
+pub const MOST: usize = 20;
+
+/// The problems of `text` (read as if from `path`) and, when the text with those problems
+/// taken out reads, that text (same length and lines) and its structure.
+pub fn read_all(path: &Path, text: &str) -> (Option<(String, super::NetworkFile)>, Vec<Diagnostic>) {
+    let mut work = text.to_string();
+    let mut problems = Vec::new();
+    let mut last: Option<usize> = None;
+    loop {
+        let e = match toml::from_str::<super::NetworkFile>(&work) {
+            Ok(doc) => return (Some((work, doc)), problems),
+            Err(e) => e,
+        };
+        problems.push(diagnostic(path, text, &e));
+        // Take the problem's line out and read again, only where that cannot shift the
+        // meaning of what follows: a span on one line, not a table header, past the last one.
+        let Some(r) = e.span() else { break };
+        let line_start = work[..r.start].rfind('\n').map_or(0, |k| k + 1);
+        let line_end = work[r.start..].find('\n').map_or(work.len(), |k| r.start + k);
+        let header = work[line_start..line_end].trim_start().starts_with('[');
+        if problems.len() >= MOST || r.end > line_end || header || last.is_some_and(|l| r.start <= l) {
+            break;
+        }
+        let blank = " ".repeat(line_end - line_start);
+        work.replace_range(line_start..line_end, &blank);
+        last = Some(r.start);
+    }
+    (None, problems)
+}
+
+/// The diagnostic for one TOML reading error: its message (a bare number where text with a
+/// unit is expected said so, with an example), the line it is on.
+fn diagnostic(path: &Path, text: &str, e: &toml::de::Error) -> Diagnostic {
+    let origin = e.span().map_or(Origin::Unknown, Origin::Span);
+    let msg = e.message().trim().to_string();
+    let line = match &origin {
+        Origin::Span(r) => {
+            let (l, _) = crate::error::line_col(text, r.start);
+            text.lines().nth(l - 1).map(|s| (l, s.trim().to_string()))
+        }
+        _ => None,
+    };
+    let bare = msg.starts_with("invalid type: integer") || msg.starts_with("invalid type: floating point");
+    let message = match (&line, bare && msg.contains("expected a string")) {
+        (Some((_, l)), true) => {
+            let (key, value) = l
+                .split_once('=')
+                .map_or((l.as_str(), ""), |(k, v)| (k.trim(), v.trim()));
+            let value = value.split('#').next().unwrap_or("").trim();
+            format!(
+                "{key} = {value} is a number without a unit: write it as text with its unit, e.g. {key} = \"{value} {}\"",
+                example_unit(key)
+            )
+        }
+        _ => format!("not a valid network file here: {msg}"),
+    };
+    let help = match &line {
+        Some((l, s)) => format!("line {l}: {s}\n  (the format reference is in README.md)"),
+        None => "see the format reference in README.md".to_string(),
+    };
+    Diagnostic::error("", message).with_help(help).at(path, text, &origin)
+}
+
+/// A unit to show in the example for a key written as a bare number (`common practice` units
+/// of the trade; the format reference lists every accepted one).
+fn example_unit(key: &str) -> &'static str {
+    match key.rsplit('.').next().unwrap_or(key) {
+        "power" => "mW",
+        "photon_flux" => "µeinstein/s",
+        "wavelength" | "centre" | "fwhm" | "from" | "to" => "nm",
+        "temperature" => "K",
+        "volume" => "mL",
+        "path_length" => "cm",
+        "irradiated_area" => "cm2",
+        "initial" => "mM",
+        "barrier" => "kcal/mol",
+        "k" => "/s",
+        _ => "<unit>",
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::read_all;
+    use std::path::Path;
+
+    const BASE: &str = "[about]\nname = \"t\"\n[conditions]\ntemperatur = \"298 K\"\nvolume = \"3 mL\"\n\
+                        path_length = \"1 cm\"\n[[light]]\nname = \"LED\"\nkind = \"line\"\n\
+                        wavelength = \"365 nm\"\npower = 10\n[[species]]\nname = \"A\"\n";
+
+    #[test]
+    fn a_misspelt_key_and_a_bare_number_are_both_reported_and_the_rest_reads() {
+        let (rest, problems) = read_all(Path::new("t.toml"), BASE);
+        assert_eq!(problems.len(), 2, "{problems:?}");
+        let first = problems[0].to_string();
+        assert!(
+            first.contains("t.toml:4:1") && first.contains("unknown field `temperatur`"),
+            "{first}"
+        );
+        let second = problems[1].to_string();
+        assert!(second.contains("t.toml:11:"), "{second}");
+        assert!(
+            second.contains("power = 10 is a number without a unit") && second.contains("power = \"10 mW\""),
+            "{second}"
+        );
+        let (text, doc) = rest.expect("the rest reads");
+        assert_eq!(text.len(), BASE.len(), "offsets kept");
+        assert_eq!(text.lines().count(), BASE.lines().count(), "lines kept");
+        assert_eq!(doc.species.len(), 1);
+    }
+
+    #[test]
+    fn a_problem_in_a_table_header_stops_the_search_there() {
+        let text = "[about]\nname = \"t\"\n[[lights]]\nname = \"x\"\n[conditionz]\n";
+        let (rest, problems) = read_all(Path::new("t.toml"), text);
+        assert_eq!(problems.len(), 1, "{problems:?}");
+        assert!(rest.is_none());
+    }
+}
