@@ -20,6 +20,7 @@ pub mod agreement;
 pub mod build;
 pub mod closed;
 pub mod cycles;
+pub mod drain;
 pub mod lifetimes;
 pub mod routes;
 mod run;
