@@ -220,10 +220,48 @@ fn sweep_text_gives_each_value_its_unit_and_each_unreachable_point_its_closest_l
     let text = String::from_utf8_lossy(&out.stdout);
     let lines: Vec<&str> = text.lines().collect();
     assert!(lines[0].starts_with("sweep of total power emitted for"), "{text}");
-    assert!(!lines[1].contains("products"), "no product, no column: {text}");
-    for (line, power) in lines[2..5].iter().zip(["5 mW", "31.6 mW", "200 mW"]) {
+    assert!(lines[1].contains("a yield on E-azo, the limiting reagent"), "{text}");
+    assert!(!lines[2].contains("products"), "no product, no column: {text}");
+    for (line, power) in lines[3..6].iter().zip(["5 mW", "31.6 mW", "200 mW"]) {
         assert!(line.trim_start().starts_with(power), "{line}");
         assert!(line.contains("unreachable (photostationary): at best 2"), "{line}");
         assert!(line.contains(" µM, 99 % of the way there after "), "{line}");
     }
+}
+
+/// A concentration sweep that makes another species limiting (the bundled flow cyclization,
+/// invented: substrate swept past the 18 mM of iodine) keeps the yield on the file's limiting
+/// reagent at every point, so the points' yields and selectivities count against one species
+/// (each point read on its own would switch to iodine at 20 mM substrate).
+#[test]
+fn a_concentration_sweep_keeps_the_yield_on_one_reference() {
+    let file = Path::new(env!("CARGO_MANIFEST_DIR")).join("networks/flow-cyclization.toml");
+    let net = network::load(&file, &Overrides::none()).expect("valid");
+    let model = Model::compile(&net);
+    let spec = plan::sweep::parse("concentration.substrate=1mM..20mM:3", &net).expect("spec");
+    let base = plan::sweep::Base {
+        network: &net,
+        model: &model,
+    };
+    let sw = plan::sweep::run(&base, &spec, "product > 50 %", &|m| m, &PlanOptions::default()).expect("sweep");
+    for p in &sw.points {
+        let pl = p.plan.as_ref().expect("plan");
+        match &pl.target.basis {
+            plan::target::Basis::YieldOf { reference, .. } => assert_eq!(reference, "substrate", "at {}", p.value),
+            b => panic!("{b:?}"),
+        }
+        assert!(
+            (pl.target.level - 0.5 * p.value).abs() <= 1e-15,
+            "50 % of the swept substrate"
+        );
+        for s in pl.products.iter().filter(|s| s.reference.is_some()) {
+            assert_eq!(s.reference.as_deref(), Some("substrate"));
+        }
+    }
+    // The last point makes iodine limiting on its own.
+    let mut last = net.clone();
+    let key = photoledger::network::params::Key::parse(&last, "species.substrate.initial").unwrap();
+    photoledger::network::params::set(&mut last, key, 20e-3).unwrap();
+    let own = plan::target::parse("product > 50 %", &Model::compile(&last)).unwrap();
+    assert!(matches!(own.basis, plan::target::Basis::YieldOf { ref reference, .. } if reference != "substrate"));
 }

@@ -119,4 +119,3 @@ pub(super) fn drain(model: &Model, plan: &crate::plan::Plan, transit: &dyn Fn(&[
     };
     Ok(Reading { time, state, ended })
 }
-

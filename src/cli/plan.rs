@@ -216,6 +216,14 @@ pub fn run(a: &PlanArgs) -> photoledger::Result<Exit> {
             )?;
         } else {
             outln!("sweep of {} for \"{}\" on {name}", sw.axis.name, a.target)?;
+            if let plan::target::Basis::YieldOf {
+                reference,
+                chosen: true,
+                ..
+            } = &target.basis
+            {
+                outln!("(a yield on {reference}, the limiting reagent of the file's mixture, at every point)")?;
+            }
             out!("{}", rp::sweep_text(&sw.axis, &points))?;
             outln!(
                 "wrote {}/ (sweep.csv, sweep.svg{})",

@@ -51,11 +51,34 @@ pub fn build_reporting_all(
             if let Some(l) = loaded
                 && let Err(crate::Error::Invalid(more)) = build(&l)
             {
-                all.extend(more);
+                // A table whose line was taken out is reported by validation at its header
+                // ("is missing", "needs power or photon_flux"): the structural problem already
+                // says what is wrong there.
+                let headers: Vec<usize> = all
+                    .iter()
+                    .filter_map(|d| d.line_col.map(|(line, _)| table_header(&l.text, line)))
+                    .collect();
+                all.extend(
+                    more.into_iter()
+                        .filter(|d| !d.line_col.is_some_and(|(line, _)| headers.contains(&line))),
+                );
             }
+            all.sort_by_key(|d| d.line_col.map_or(usize::MAX, |(line, _)| line));
             Err(crate::Error::Invalid(all))
         }
     }
+}
+
+/// The line (from 1) of the table header (`[conditions]`, `[[light]]`) above line `line` of
+/// `text`, or `line` itself when none is.
+fn table_header(text: &str, line: usize) -> usize {
+    text.lines()
+        .take(line)
+        .enumerate()
+        .filter(|(_, l)| l.trim_start().starts_with('['))
+        .map(|(i, _)| i + 1)
+        .last()
+        .unwrap_or(line)
 }
 
 /// A 64-bit hash (FNV-1a) of every number and name of `net` that a computation uses: equal for

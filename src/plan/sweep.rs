@@ -255,6 +255,9 @@ fn point(spec: &SweepSpec, base: &Base, v: f64) -> Result<Point> {
 
 /// Plan `target` (as written for `plan --target`; re-read on each point's model, since a
 /// concentration sweep moves a yield's level) at every value of `spec`, points in parallel.
+/// A yield whose reference the target leaves to the limiting reagent keeps the reference of
+/// `base` at every point: a concentration sweep can make another species limiting, and the
+/// yields and selectivities of the points would then count against different species.
 ///
 /// `adjust` is applied to each rebuilt point's model as it was to `base.model` (sunlight
 /// scale, flow tube). A point whose network or target cannot be built is an error of the whole
@@ -267,6 +270,16 @@ pub fn run(
     opts: &PlanOptions,
 ) -> Result<Sweep> {
     use rayon::prelude::*;
+    let on_base = super::target::parse(target, base.model)?;
+    let target = match &on_base.basis {
+        super::target::Basis::YieldOf {
+            reference,
+            chosen: true,
+            ..
+        } => format!("{} of {reference}", target.trim()),
+        _ => target.to_string(),
+    };
+    let target = target.as_str();
     let points = spec
         .values
         .iter()

@@ -197,9 +197,15 @@ pub fn closed_text(s: &ClosedSummary) -> String {
         "  no end: a molecule switches among {} for ever, so the chain gives the state it settles in",
         species.join(", ")
     );
+    let at_start = s.light.starts_with("stirred cell, light shared at the initial");
     let _ = writeln!(
         o,
-        "\n  photostationary composition (share of the time one molecule spends in each state)"
+        "\n  photostationary composition of one molecule{} (share of the time in each state, %)",
+        if at_start {
+            " under the light shared as in the starting mixture"
+        } else {
+            ""
+        }
     );
     // the largest shares first when there are many; summary.json keeps every state
     let mut rows: Vec<&FormShare> = s.composition.iter().collect();
@@ -221,7 +227,7 @@ pub fn closed_text(s: &ClosedSummary) -> String {
             } else {
                 f.state.clone()
             },
-            f.time_share.map_or("—".into(), share),
+            f.time_share.map_or("—".into(), |x| display::number(100.0 * x)),
         );
     }
     if left > 0 {
@@ -270,11 +276,12 @@ pub fn closed_text(s: &ClosedSummary) -> String {
         }
     }
     let _ = writeln!(o, "  (light: {})", s.light);
-    if s.light.starts_with("stirred cell, light shared at the initial") {
+    if at_start {
         let _ = writeln!(
             o,
-            "  (the light is shared as at the start; where the forms filter the lamps differently, \
-             `--at DURATION` shares it at the composition the kinetics reach)"
+            "  (the light is shared as in the starting mixture, which no irradiated sample keeps: where the forms \
+             absorb the lamps differently, the sample's own photostationary state differs; `--at DURATION` shares \
+             the light at the composition the kinetics reach by then, and `report` puts the two side by side)"
         );
     }
     o.push_str(&lifetimes_text(&s.lifetimes));

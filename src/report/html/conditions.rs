@@ -9,13 +9,23 @@ use crate::units::constants::{AVOGADRO, PLANCK, SPEED_OF_LIGHT};
 use crate::units::display;
 use crate::units::sig;
 
-/// Wavelength range, photon-weighted mean wavelength (m), photon flux (einstein/s) and
-/// radiant power (W) of source `s` of `model`.
-pub fn source_figures(model: &Model, s: usize) -> (f64, f64, f64, f64, f64) {
+/// Wavelength range where it emits (a band's centre ± 2 FWHM, as `check` gives it:
+/// `LightSource::extent`; otherwise its first and last bin), photon-weighted mean wavelength
+/// (m), photon flux (einstein/s) and radiant power (W) of source `s` of `model` (built from
+/// `net`).
+pub fn source_figures(net: &Network, model: &Model, s: usize) -> (f64, f64, f64, f64, f64) {
     let bins: Vec<_> = model.bins.iter().filter(|b| b.source == s).collect();
     let flux: f64 = bins.iter().map(|b| b.flux).sum();
-    let lo = bins.iter().map(|b| b.wavelength).fold(f64::INFINITY, f64::min);
-    let hi = bins.iter().map(|b| b.wavelength).fold(0.0, f64::max);
+    let binned = (
+        bins.iter().map(|b| b.wavelength).fold(f64::INFINITY, f64::min),
+        bins.iter().map(|b| b.wavelength).fold(0.0, f64::max),
+    );
+    let (lo, hi) = net
+        .lights
+        .iter()
+        .find(|l| Some(&l.name) == model.sources.get(s))
+        .and_then(|l| l.extent())
+        .unwrap_or(binned);
     let mean = if flux > 0.0 {
         bins.iter().map(|b| b.flux * b.wavelength).sum::<f64>() / flux
     } else {
@@ -33,7 +43,7 @@ pub fn section(net: &Network, model: &Model) -> String {
     let mut s = String::from("<div class=\"caution\"><strong>Caution</strong>");
     s.push_str("photoledger computes; it does not make an experiment safe.<ul>");
     let uv: Vec<String> = (0..model.sources.len())
-        .filter(|&k| source_figures(model, k).0 < 400e-9)
+        .filter(|&k| source_figures(net, model, k).0 < 400e-9)
         .map(|k| model.sources[k].clone())
         .collect();
     if uv.is_empty() {
@@ -82,7 +92,9 @@ pub fn section(net: &Network, model: &Model) -> String {
     ));
     s.push_str("<h3>The light</h3>\n");
     // One unit per column, by the display rule (the column's largest value picks it).
-    let figures: Vec<_> = (0..model.sources.len()).map(|k| source_figures(model, k)).collect();
+    let figures: Vec<_> = (0..model.sources.len())
+        .map(|k| source_figures(net, model, k))
+        .collect();
     let (ff, fu) = display::pick(display::largest(figures.iter().map(|f| f.3)), &display::PHOTON_FLUX);
     let (pf, pu) = display::pick(display::largest(figures.iter().map(|f| f.4)), &display::POWER);
     let rows: Vec<String> = (0..model.sources.len())

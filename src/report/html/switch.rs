@@ -120,8 +120,8 @@ pub fn section(c: &ClosedStudy) -> String {
         (None, _) => facts.push("never changes form".into()),
     }
     o.push_str(&format!(
-        "<p>At the photostationary state, {}, one molecule {}.</p>\n",
-        esc(&light_words),
+        "<p>{}, a molecule that has settled {}.</p>\n",
+        esc(&upper_first(&light_words)),
         esc(&facts.join("; "))
     ));
     if !s.first_passage.is_empty() {
@@ -158,8 +158,8 @@ pub fn section(c: &ClosedStudy) -> String {
         }
     }
     o.push_str(&format!(
-        "<p class=\"note\">The first column is what <code>ledger</code> gives; the second and these rates what \
-         <code>ledger --at {}</code> gives.</p>\n",
+        "<p class=\"note\">The first column of the composition table is what <code>ledger</code> prints; the \
+         second column, the rates and the first passages are what <code>ledger --at {}</code> prints.</p>\n",
         esc(&after)
     ));
     o
@@ -188,40 +188,53 @@ fn verdict(c: &ClosedStudy, after: &str) -> String {
     let (Some(gap), Some(start_gap)) = (points(end), points(&c.at_start)) else {
         return String::new();
     };
-    let list = c
+    let shares = |s: &ClosedSummary| {
+        c.mixture
+            .iter()
+            .filter_map(|(n, _)| {
+                let f = s.composition.iter().find(|f| &f.state == n)?;
+                Some(format!("{} {} %", n, crate::units::sig(100.0 * f.time_share?, 3)))
+            })
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    let mixture = c
         .mixture
         .iter()
-        .map(|(n, x)| format!("{} {} %", n, display::number(100.0 * x)))
+        .map(|(n, x)| format!("{} {} %", n, crate::units::sig(100.0 * x, 3)))
         .collect::<Vec<_>>()
         .join(", ");
     if gap <= SAME_POINTS {
         let first = if start_gap <= SAME_POINTS {
-            "The first column agrees as well: the forms share the lamps much as the starting mixture does.".to_string()
+            "The first column agrees as well: here the forms' absorption barely moves the light.".to_string()
         } else {
             format!(
-                "The first column, {} percentage points away, is where one molecule would settle if the light \
-                 stayed shared as at the start: the forms filter the lamps differently, so it holds only for a \
-                 sample dilute enough that they do not.",
+                "The first column, {} percentage points away, shares the light as in the starting mixture, which \
+                 no irradiated sample keeps: it is not the photostationary state of this sample. The forms absorb \
+                 the lamps differently, so the photostationary state moves with the concentration and the path \
+                 length; in an optically thin sample (absorbance well below 0.1) all three columns coincide, at \
+                 yet another composition.",
                 crate::units::sig(start_gap, 2)
             )
         };
         format!(
-            "<p><strong>To quote:</strong> the mixture after {} ({}). One molecule under the light that mixture \
-             lets through settles in the same shares (to {} percentage points), so the run has reached its \
-             photostationary state. {}</p>\n",
+            "<p><strong>To quote:</strong> {} — the photostationary state of this sample (these concentrations, \
+             this path length, these lamps): one molecule under the light the mixture lets through after {} \
+             settles there, and the mixture itself ({}) is within {} percentage points of it, still creeping \
+             towards it. {}</p>\n",
+            esc(&shares(end)),
             esc(after),
-            esc(&list),
+            esc(&mixture),
             crate::units::sig(gap, 2),
             esc(&first)
         )
     } else {
         format!(
             "<p><strong>Not yet photostationary:</strong> after {} the mixture ({}) is still {} percentage points \
-             from where one molecule settles under the light that mixture lets through; a longer run \
-             (<code>--until</code>) comes closer, and the second column is where it is heading while the light \
-             stays as it is then.</p>\n",
+             from where one molecule settles under the light the mixture then lets through (the second column, \
+             where it is heading while the light stays so); a longer run (<code>--until</code>) comes closer.</p>\n",
             esc(after),
-            esc(&list),
+            esc(&mixture),
             crate::units::sig(gap, 2)
         )
     }
