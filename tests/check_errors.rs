@@ -1853,4 +1853,18 @@ fn a_misspelt_key_a_bare_number_and_a_missing_unit_are_reported_together() {
         &r.stderr,
         &[&format!("{f}:{il}:"), "species \"E-azo\".initial: \"50\" has no unit"],
     );
+    // What taking the two broken lines out leaves behind (no volume, no power) is not reported
+    // again, and the problems come in the order of their lines.
+    assert!(
+        !r.stderr.contains("is missing") && !r.stderr.contains("needs power"),
+        "{}",
+        r.stderr
+    );
+    let lines: Vec<usize> = r
+        .stderr
+        .lines()
+        .filter_map(|l| l.strip_prefix(&format!("error: {f}:")))
+        .filter_map(|l| l.split(':').next()?.parse().ok())
+        .collect();
+    assert_eq!(lines, vec![vl, pl, il], "{}", r.stderr);
 }

@@ -680,3 +680,18 @@ fn rivals_and_free_keys_need_data() {
         assert!(!out.exists(), "no page written");
     }
 }
+
+/// The caution names the sources that emit ultraviolet (below 400 nm, `common practice` for
+/// the UV/visible boundary) by where they emit, as `check` gives it (a band's centre ± 2 FWHM):
+/// on the bundled photoswitch the 365 nm LED, not the 450 nm one, whose quadrature grid merely
+/// reaches below 400 nm with next to no light there.
+#[test]
+fn the_uv_caution_names_the_sources_that_emit_uv() {
+    let scratch = Scratch::new("uv-caution");
+    let page = render("networks/photoswitch.toml", &[], &scratch);
+    assert!(
+        page.contains("includes ultraviolet (UV LED)"),
+        "the caution names the UV LED only"
+    );
+    assert!(page.contains("410–490"), "blue LED range as check gives it");
+}
