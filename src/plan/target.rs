@@ -79,6 +79,21 @@ impl Target {
             Direction::Below => c <= self.level,
         }
     }
+
+    /// Concentration `c` (mol/L) of the target species as the target's percentage counts it
+    /// (a fraction: 0.442 for 44.2 %), given its start `x0` (mol/L): the yield on the
+    /// reference, or the share of its own start; None for a target given as a concentration.
+    /// The reference's start is read back from the level (level = x0 + fraction × r0).
+    pub fn as_fraction(&self, c: f64, x0: f64) -> Option<f64> {
+        match self.basis {
+            Basis::Absolute => None,
+            Basis::YieldOf { fraction, .. } => {
+                let r0 = (self.level - x0) / fraction;
+                (r0 > 0.0 && r0.is_finite()).then(|| (c - x0) / r0)
+            }
+            Basis::OfInitial { .. } => (x0 > 0.0).then(|| c / x0),
+        }
+    }
 }
 
 /// The limiting reagent: the species with the smallest positive initial concentration below

@@ -90,6 +90,9 @@ pub struct PlanSummary {
     pub time: Option<f64>,
     /// Why not.
     pub unreachable: Option<Unreachable>,
+    /// The closest level of an unreachable target as its percentage counts it (a fraction; None
+    /// when reached or given as a concentration).
+    pub best_fraction: Option<f64>,
     /// Photons and energy.
     pub dose: crate::plan::Dose,
     /// Photon unit of the dose.
@@ -124,6 +127,7 @@ pub fn summary_units() -> std::collections::BTreeMap<&'static str, &'static str>
         ("time", "s"),
         ("target.level", "mol/L"),
         ("target.basis.*.fraction", "1"),
+        ("best_fraction", "1"),
         ("dose.lit_time", "s"),
         ("dose.incident", "einstein"),
         ("dose.absorbed", "einstein"),
@@ -239,6 +243,10 @@ pub fn summary(
         reached: plan.time.is_some(),
         time: plan.time,
         unreachable: plan.unreachable.clone(),
+        best_fraction: plan.unreachable.as_ref().and_then(|u| {
+            let x0 = plan.trajectory.states.first()?[plan.target.species];
+            plan.target.as_fraction(u.best_level, x0)
+        }),
         dose: plan.dose.clone(),
         photon_unit: "einstein (mol of photons)".into(),
         electrical,
@@ -297,9 +305,11 @@ pub fn text(s: &PlanSummary) -> String {
             let _ = writeln!(o, "NOT REACHABLE: {}", u.why.words());
             let _ = writeln!(
                 o,
-                "  {} reaches at best {} ({}); {} after {} of integration",
+                "  {} reaches at best {}{} ({}); {} after {} of integration",
                 s.target.species_name,
                 format_concentration_within(u.best_level, zero),
+                s.best_fraction
+                    .map_or(String::new(), |f| format!(", {} %", sig(100.0 * f, 3))),
                 closest_when(u),
                 format_concentration_within(u.final_level, zero),
                 format_time(u.horizon)
@@ -641,6 +651,16 @@ pub fn light_block_for(src: &LightSource, flux: &Measured, origin: &str) -> Stri
         },
     };
     light_block(&src.name, &kind, window, &flux, origin)
+}
+
+/// Concentration `c` (mol/L) of the plan's target species as its target's percentage counts
+/// it, " (44.2 %)", or nothing for a target given as a concentration.
+pub fn as_percent(plan: &crate::plan::Plan, c: f64) -> String {
+    let x0 = plan.trajectory.states.first().map(|s| s[plan.target.species]);
+    match x0.and_then(|x0| plan.target.as_fraction(c, x0)) {
+        Some(f) => format!(" ({} %)", sig(100.0 * f, 3)),
+        None => String::new(),
+    }
 }
 
 /// When an unreachable target's closest level was reached, in words: "99 % of the way there

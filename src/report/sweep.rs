@@ -302,9 +302,10 @@ pub fn sweep_text(axis: &SweepAxis, points: &[SweepPoint]) -> String {
                 let t = match (pl.time, &pl.unreachable) {
                     (Some(t), _) => format_time(t),
                     (None, Some(u)) => format!(
-                        "unreachable ({}): at best {}, {}",
+                        "unreachable ({}): at best {}{}, {}",
                         short(u.why),
                         format_concentration_within(u.best_level, pl.trajectory.zero_within()),
+                        super::plan::as_percent(pl, u.best_level),
                         super::plan::closest_when(u)
                     ),
                     (None, None) => "unreachable".into(),
