@@ -225,7 +225,10 @@ fn sweep_text_gives_each_value_its_unit_and_each_unreachable_point_its_closest_l
     for (line, power) in lines[3..6].iter().zip(["5 mW", "31.6 mW", "200 mW"]) {
         assert!(line.trim_start().starts_with(power), "{line}");
         assert!(line.contains("unreachable (photostationary): at best 2"), "{line}");
-        assert!(line.contains(" µM (44"), "the closest level also as the target counts it: {line}");
+        assert!(
+            line.contains(" µM (44"),
+            "the closest level also as the target counts it: {line}"
+        );
         assert!(line.contains(" %), 99 % of the way there after "), "{line}");
     }
 }

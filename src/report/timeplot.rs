@@ -324,6 +324,13 @@ fn dashes(p: &TimePlot, panels: &[Panel], frame: &Frame) -> Vec<usize> {
             }
         })
         .collect();
+    // Each curve at the sample times once: the pairs below only compare these (a thousand
+    // curves are half a million pairs).
+    let sampled: Vec<Vec<Option<f64>>> = p
+        .curves
+        .iter()
+        .map(|c| samples.iter().map(|&x| at(&c.points, x)).collect())
+        .collect();
     for panel in panels {
         let tol = COINCIDE * (panel.ymax - panel.ymin).max(f64::MIN_POSITIVE);
         for (k, &b) in panel.members.iter().enumerate() {
@@ -331,16 +338,13 @@ fn dashes(p: &TimePlot, panels: &[Panel], frame: &Frame) -> Vec<usize> {
                 .iter()
                 .filter(|&&a| {
                     let mut compared = 0;
-                    let close =
-                        samples
-                            .iter()
-                            .all(|&x| match (at(&p.curves[a].points, x), at(&p.curves[b].points, x)) {
-                                (Some(u), Some(v)) => {
-                                    compared += 1;
-                                    (u - v).abs() <= tol
-                                }
-                                _ => true,
-                            });
+                    let close = sampled[a].iter().zip(&sampled[b]).all(|pair| match pair {
+                        (Some(u), Some(v)) => {
+                            compared += 1;
+                            (u - v).abs() <= tol
+                        }
+                        _ => true,
+                    });
                     close && compared > 0
                 })
                 .count();
