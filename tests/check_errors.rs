@@ -1868,3 +1868,35 @@ fn a_misspelt_key_a_bare_number_and_a_missing_unit_are_reported_together() {
         .collect();
     assert_eq!(lines, vec![vl, pl, il], "{}", r.stderr);
 }
+
+// A misspelt species in a step's equation does not hide that step's quantum yield above 1.
+#[test]
+fn a_misspelt_species_does_not_hide_a_quantum_yield_above_one_in_the_same_step() {
+    let text = edit(
+        &edit(
+            SWITCH,
+            "equation = \"E-azo -> Z-azo\"",
+            "equation = \"E-azo -> Z-azzo\"",
+        ),
+        "quantum_yield = 0.12",
+        "quantum_yield = 1.2",
+    );
+    let (_s, p, r) = check_text("species-and-qy", &text, &[]);
+    assert_invalid(&r);
+    diag(
+        &r.stderr,
+        "error",
+        &p,
+        Some(loc(&text, "\"E-azo -> Z-azzo\"")),
+        "photo \"E-azo -> Z-azzo\".equation",
+    )
+    .says(&["unknown species \"Z-azzo\""]);
+    diag(
+        &r.stderr,
+        "error",
+        &p,
+        Some(loc(&text, "1.2")),
+        "photo \"E-azo -> Z-azzo\".quantum_yield",
+    )
+    .says(&["1.2 is above 1"]);
+}

@@ -347,19 +347,12 @@ impl Builder<'_> {
             );
             return None;
         }
-        let (Some(left), Some(right)) = (
-            self.terms(&format!("{field}.equation"), &eq_at, &raw.left, names),
-            self.terms(&format!("{field}.equation"), &eq_at, &raw.right, names),
-        ) else {
-            return None;
-        };
-        let Some(qy) = &e.quantum_yield else {
-            self.error(
-                &format!("{field}.quantum_yield"),
-                &at,
-                "is missing",
-                Some("a number in [0, 1], or a table over wavelength".into()),
-            );
+        // The species and the quantum yield are checked apart, so a misspelt species does not
+        // hide a quantum yield above 1 in the same step.
+        let left = self.terms(&format!("{field}.equation"), &eq_at, &raw.left, names);
+        let right = self.terms(&format!("{field}.equation"), &eq_at, &raw.right, names);
+        let qy = self.photo_quantum_yield(field, e, &at);
+        let (Some(left), Some(right), Some(qy)) = (left, right, qy) else {
             return None;
         };
         let name = e
@@ -367,16 +360,6 @@ impl Builder<'_> {
             .as_ref()
             .map_or(format!("{} (hν)", eq.get_ref().trim()), |n| n.get_ref().clone());
         if e.name.is_some() && self.too_long(&format!("{field}.name"), &name, &at) {
-            return None;
-        }
-        let qy = self.spectrum(&format!("{field}.quantum_yield"), qy, None, Outside::Nearest)?;
-        if qy.max() > 1.0 + 1e-12 {
-            self.error(
-                &format!("{field}.quantum_yield"),
-                &span(e.quantum_yield.as_ref().unwrap()),
-                format!("{} is above 1", qy.max()),
-                Some("a quantum yield lies in [0, 1]; a chain reaction is written as thermal steps".into()),
-            );
             return None;
         }
         self.at.photo.push(at.clone());
@@ -387,6 +370,30 @@ impl Builder<'_> {
             quantum_yield: qy,
             window,
         })
+    }
+
+    /// The quantum yield of a short-form step: present, readable, at most 1.
+    fn photo_quantum_yield(&mut self, field: &str, e: &schema::Photo, at: &Origin) -> Option<Spectrum> {
+        let Some(qy) = &e.quantum_yield else {
+            self.error(
+                &format!("{field}.quantum_yield"),
+                at,
+                "is missing",
+                Some("a number in [0, 1], or a table over wavelength".into()),
+            );
+            return None;
+        };
+        let spectrum = self.spectrum(&format!("{field}.quantum_yield"), qy, None, Outside::Nearest)?;
+        if spectrum.max() > 1.0 + 1e-12 {
+            self.error(
+                &format!("{field}.quantum_yield"),
+                &span(qy),
+                format!("{} is above 1", spectrum.max()),
+                Some("a quantum yield lies in [0, 1]; a chain reaction is written as thermal steps".into()),
+            );
+            return None;
+        }
+        Some(spectrum)
     }
 
     /// The long form: `absorber` and the transient it `excites`, with an optional efficiency.
