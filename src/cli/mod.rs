@@ -271,17 +271,8 @@ fn load(args: &NetworkArgs) -> photoledger::Result<photoledger::Network> {
 /// finds in the rest of the file.
 fn load_both(args: &NetworkArgs) -> photoledger::Result<(photoledger::file::Loaded, photoledger::Network)> {
     let text = photoledger::file::read_text(&args.file)?;
-    match photoledger::file::parse_all(&args.file, text) {
-        (Some(l), problems) if problems.is_empty() => {
-            let net = build(&l, args)?;
-            Ok((l, net))
-        }
-        (loaded, problems) => Err(
-            photoledger::network::build_reporting_all(loaded, problems, &|l| build(l, args))
-                .err()
-                .unwrap_or_else(|| Error::Numerical("a file with problems built without error".into())),
-        ),
-    }
+    let (loaded, problems) = photoledger::file::parse_all(&args.file, text);
+    photoledger::network::build_reporting_all(loaded, problems, &|l| build(l, args))
 }
 
 /// Validate a network file already read, with the `--set` overrides of `args`.

@@ -33,19 +33,22 @@ use std::path::{Path, PathBuf};
 pub fn load(path: &Path, overrides: &Overrides) -> Result<Network> {
     let text = crate::file::read_text(path)?;
     let (loaded, problems) = crate::file::parse_all(path, text);
-    build_reporting_all(loaded, problems, &|l| build(l, overrides))
+    build_reporting_all(loaded, problems, &|l| build(l, overrides)).map(|(_, net)| net)
 }
 
-/// The network from [`crate::file::parse_all`]'s result with `build`: when the file had
-/// structural problems, they and the problems validation finds in the rest of the file
-/// (when it reads), together in one [`Error::Invalid`].
+/// The file as read and the network `build` makes of it, from [`crate::file::parse_all`]'s
+/// result: when the file had structural problems, they and the problems validation finds in
+/// the rest of the file (when it reads), together in one [`crate::Error::Invalid`].
 pub fn build_reporting_all(
     loaded: Option<crate::file::Loaded>,
     problems: Vec<crate::error::Diagnostic>,
     build: &dyn Fn(&crate::file::Loaded) -> Result<Network>,
-) -> Result<Network> {
+) -> Result<(crate::file::Loaded, Network)> {
     match loaded {
-        Some(l) if problems.is_empty() => build(&l),
+        Some(l) if problems.is_empty() => {
+            let net = build(&l)?;
+            Ok((l, net))
+        }
         loaded => {
             let mut all = problems;
             if let Some(l) = loaded

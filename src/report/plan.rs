@@ -243,10 +243,7 @@ pub fn summary(
         reached: plan.time.is_some(),
         time: plan.time,
         unreachable: plan.unreachable.clone(),
-        best_fraction: plan.unreachable.as_ref().and_then(|u| {
-            let x0 = plan.trajectory.states.first()?[plan.target.species];
-            plan.target.as_fraction(u.best_level, x0)
-        }),
+        best_fraction: best_fraction(plan),
         dose: plan.dose.clone(),
         photon_unit: "einstein (mol of photons)".into(),
         electrical,
@@ -653,14 +650,17 @@ pub fn light_block_for(src: &LightSource, flux: &Measured, origin: &str) -> Stri
     light_block(&src.name, &kind, window, &flux, origin)
 }
 
-/// Concentration `c` (mol/L) of the plan's target species as its target's percentage counts
-/// it, " (44.2 %)", or nothing for a target given as a concentration.
-pub fn as_percent(plan: &crate::plan::Plan, c: f64) -> String {
-    let x0 = plan.trajectory.states.first().map(|s| s[plan.target.species]);
-    match x0.and_then(|x0| plan.target.as_fraction(c, x0)) {
-        Some(f) => format!(" ({} %)", sig(100.0 * f, 3)),
-        None => String::new(),
-    }
+/// The closest level of an unreachable target as the target's percentage counts it (a
+/// fraction), None when reached or given as a concentration.
+pub fn best_fraction(plan: &Plan) -> Option<f64> {
+    let u = plan.unreachable.as_ref()?;
+    let x0 = plan.trajectory.states.first()?[plan.target.species];
+    plan.target.as_fraction(u.best_level, x0)
+}
+
+/// [`best_fraction`] for text: " (44.2 %)", or nothing.
+pub fn best_percent(plan: &Plan) -> String {
+    best_fraction(plan).map_or(String::new(), |f| format!(" ({} %)", sig(100.0 * f, 3)))
 }
 
 /// When an unreachable target's closest level was reached, in words: "99 % of the way there

@@ -305,7 +305,7 @@ pub fn sweep_text(axis: &SweepAxis, points: &[SweepPoint]) -> String {
                         "unreachable ({}): at best {}{}, {}",
                         short(u.why),
                         format_concentration_within(u.best_level, pl.trajectory.zero_within()),
-                        super::plan::as_percent(pl, u.best_level),
+                        super::plan::best_percent(pl),
                         super::plan::closest_when(u)
                     ),
                     (None, None) => "unreachable".into(),
