@@ -1845,7 +1845,7 @@ fn a_misspelt_key_a_bare_number_and_a_missing_unit_are_reported_together() {
         &r.stderr,
         &[
             &format!("{f}:{pl}:"),
-            "power = 20 is a number without a unit",
+            "light \"UV LED\".power: 20 is a number without a unit",
             "e.g. power = \"20 mW\"",
         ],
     );

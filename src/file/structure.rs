@@ -51,24 +51,62 @@ fn diagnostic(path: &Path, text: &str, e: &toml::de::Error) -> Diagnostic {
         _ => None,
     };
     let bare = msg.starts_with("invalid type: integer") || msg.starts_with("invalid type: floating point");
-    let message = match (&line, bare && msg.contains("expected a string")) {
-        (Some((_, l)), true) => {
-            let (key, value) = l
-                .split_once('=')
-                .map_or((l.as_str(), ""), |(k, v)| (k.trim(), v.trim()));
-            let value = value.split('#').next().unwrap_or("").trim();
-            format!(
-                "{key} = {value} is a number without a unit: write it as text with its unit, e.g. {key} = \"{value} {}\"",
-                example_unit(key)
+    let (field, message) = match (&line, bare && msg.contains("expected a string")) {
+        (Some((n, l)), true) => {
+            // The key is the word before the `=` that precedes the number (also inside an
+            // inline table: `epsilon = { at = "365 nm", value = 5000 }`), the value the number.
+            let (key, value) = match e.span() {
+                Some(r) => {
+                    let before = &text[..r.start];
+                    let eq = before.rfind('=').unwrap_or(0);
+                    let key = before[..eq].rsplit(['{', ',', '\n']).next().unwrap_or("").trim();
+                    (key, text[r].trim())
+                }
+                None => l
+                    .split_once('=')
+                    .map_or((l.as_str(), ""), |(k, v)| (k.trim(), v.trim())),
+            };
+            (
+                format!("{}{key}", entry(text, *n)),
+                format!(
+                    "{value} is a number without a unit: write it as text with its unit, e.g. {key} = \"{value} {}\"",
+                    example_unit(key)
+                ),
             )
         }
-        _ => format!("not a valid network file here: {msg}"),
+        _ => (String::new(), format!("not a valid network file here: {msg}")),
     };
     let help = match &line {
         Some((l, s)) => format!("line {l}: {s}\n  (the format reference is in README.md)"),
         None => "see the format reference in README.md".to_string(),
     };
-    Diagnostic::error("", message).with_help(help).at(path, text, &origin)
+    Diagnostic::error(field, message)
+        .with_help(help)
+        .at(path, text, &origin)
+}
+
+/// How validation names the table entry line `line` (from 1) of `text` sits in, as a prefix of
+/// a key: `light "UV LED".`, `species "A".`, `conditions.`; empty when it cannot tell.
+fn entry(text: &str, line: usize) -> String {
+    let lines: Vec<&str> = text.lines().collect();
+    let Some(h) = (0..line.min(lines.len()))
+        .rev()
+        .find(|&i| lines[i].trim_start().starts_with('['))
+    else {
+        return String::new();
+    };
+    let table = lines[h].trim().trim_matches(|c| c == '[' || c == ']').trim();
+    let name = lines[h + 1..]
+        .iter()
+        .take_while(|l| !l.trim_start().starts_with('['))
+        .filter_map(|l| l.split_once('='))
+        .find(|(k, _)| k.trim() == "name")
+        .map(|(_, v)| v.split('#').next().unwrap_or("").trim().trim_matches('"').to_string());
+    match name {
+        Some(n) if !n.is_empty() => format!("{table} \"{n}\"."),
+        _ if !table.contains('.') && !table.is_empty() => format!("{table}."),
+        _ => String::new(),
+    }
 }
 
 /// A unit to show in the example for a key written as a bare number (`common practice` units
@@ -110,7 +148,8 @@ mod tests {
         let second = problems[1].to_string();
         assert!(second.contains("t.toml:11:"), "{second}");
         assert!(
-            second.contains("power = 10 is a number without a unit") && second.contains("power = \"10 mW\""),
+            second.contains("light \"LED\".power: 10 is a number without a unit")
+                && second.contains("power = \"10 mW\""),
             "{second}"
         );
         let (text, doc) = rest.expect("the rest reads");
