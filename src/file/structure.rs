@@ -85,14 +85,22 @@ fn diagnostic(path: &Path, text: &str, e: &toml::de::Error) -> Diagnostic {
         .at(path, text, &origin)
 }
 
+/// The line (from 1) of the table header (`[conditions]`, `[[light]]`) at or above line `line`
+/// (from 1) of `text`, or None when the line is in no table.
+pub fn table_header(text: &str, line: usize) -> Option<usize> {
+    text.lines()
+        .take(line)
+        .enumerate()
+        .filter(|(_, l)| l.trim_start().starts_with('['))
+        .map(|(i, _)| i + 1)
+        .last()
+}
+
 /// How validation names the table entry line `line` (from 1) of `text` sits in, as a prefix of
 /// a key: `light "UV LED".`, `species "A".`, `conditions.`; empty when it cannot tell.
 fn entry(text: &str, line: usize) -> String {
     let lines: Vec<&str> = text.lines().collect();
-    let Some(h) = (0..line.min(lines.len()))
-        .rev()
-        .find(|&i| lines[i].trim_start().starts_with('['))
-    else {
+    let Some(h) = table_header(text, line).map(|h| h - 1) else {
         return String::new();
     };
     let table = lines[h].trim().trim_matches(|c| c == '[' || c == ']').trim();

@@ -59,7 +59,10 @@ pub fn build_reporting_all(
                 // says what is wrong there.
                 let headers: Vec<usize> = all
                     .iter()
-                    .filter_map(|d| d.line_col.map(|(line, _)| table_header(&l.text, line)))
+                    .filter_map(|d| {
+                        d.line_col
+                            .map(|(line, _)| crate::file::structure::table_header(&l.text, line).unwrap_or(line))
+                    })
                     .collect();
                 all.extend(
                     more.into_iter()
@@ -70,18 +73,6 @@ pub fn build_reporting_all(
             Err(crate::Error::Invalid(all))
         }
     }
-}
-
-/// The line (from 1) of the table header (`[conditions]`, `[[light]]`) above line `line` of
-/// `text`, or `line` itself when none is.
-fn table_header(text: &str, line: usize) -> usize {
-    text.lines()
-        .take(line)
-        .enumerate()
-        .filter(|(_, l)| l.trim_start().starts_with('['))
-        .map(|(i, _)| i + 1)
-        .last()
-        .unwrap_or(line)
 }
 
 /// A 64-bit hash (FNV-1a) of every number and name of `net` that a computation uses: equal for
