@@ -279,7 +279,7 @@ impl Jacobian {
                         (None, _) => (1.0, None),
                     };
                     let w = &rhs.outcome_weights[o * nb..(o + 1) * nb];
-                    let taken: f64 = w.iter().zip(g).map(|(w, g)| w * g).sum();
+                    let taken = super::rhs::dot(w, g);
                     let scale = c[sp] * mult / v;
                     for b in 0..nb {
                         u[(k, b)] = w[b] * dg[b] * scale;

@@ -84,6 +84,10 @@ pub struct Rhs<'m> {
     pub(super) outcome_weights: Vec<f64>,
     /// Per absorber slot and bin, q_b l ε_ab: the constant part of each absorber's share.
     pub(super) slot_weights: Vec<f64>,
+    /// The thermal reactions in flat arrays (what `eval` walks).
+    pub(super) thermal: FlatThermal,
+    /// Runs of consecutive bins from one source: (source, bin range).
+    pub(super) source_runs: Vec<(usize, std::ops::Range<usize>)>,
     /// Number of right-hand-side evaluations.
     pub rhs_calls: Cell<usize>,
     /// Number of Jacobian-vector products.
@@ -112,9 +116,18 @@ impl<'m> Rhs<'m> {
                 outcome_weights[o * nb + b] = slot_weights[out.slot * nb + b] * out.base[b];
             }
         }
+        let mut source_runs: Vec<(usize, std::ops::Range<usize>)> = Vec::new();
+        for (b, bin) in model.bins.iter().enumerate() {
+            match source_runs.last_mut() {
+                Some((s, r)) if *s == bin.source => r.end = b + 1,
+                _ => source_runs.push((bin.source, b..b + 1)),
+            }
+        }
         Rhs {
             model,
             layout,
+            source_runs,
+            thermal: FlatThermal::new(&model.reactions),
             work: RefCell::new(Work {
                 a: vec![0.0; nb],
                 g: vec![0.0; nb],
@@ -141,13 +154,18 @@ impl<'m> Rhs<'m> {
     pub(super) fn absorbance(&self, c: &[f64], w: &mut Work, slope: bool) {
         let m = self.model;
         let nb = m.bins.len();
-        for b in 0..nb {
-            let mut a = m.background[b];
-            for (slot, &s) in m.absorbers.iter().enumerate() {
-                a += m.path * m.eps[slot * nb + b] * c[s];
+        // Absorber by absorber over contiguous bins; each bin's sum is taken in the same
+        // order (background, then the absorbers in slot order) as a bin-by-bin loop would.
+        w.a.copy_from_slice(&m.background);
+        for (slot, &s) in m.absorbers.iter().enumerate() {
+            let cs = c[s];
+            let eps = &m.eps[slot * nb..(slot + 1) * nb];
+            for (a, &e) in w.a.iter_mut().zip(eps) {
+                *a += m.path * e * cs;
             }
-            let (g, dg, t) = g_dg_transmitted(a, slope);
-            w.a[b] = a;
+        }
+        for b in 0..nb {
+            let (g, dg, t) = g_dg_transmitted(w.a[b], slope);
             w.g[b] = g;
             w.dg[b] = dg;
             w.t[b] = t;
@@ -174,15 +192,7 @@ impl<'m> Rhs<'m> {
         let nb = m.bins.len();
         let c = &y[..ns];
         dy.iter_mut().for_each(|x| *x = 0.0);
-        for r in &m.reactions {
-            let mut rate = r.k;
-            for &(i, nu) in &r.reactants {
-                rate *= c[i].powi(nu as i32);
-            }
-            for &(i, v) in &r.net {
-                dy[i] += v * rate;
-            }
-        }
+        self.thermal.add_rates(c, dy);
         if nb == 0 {
             return;
         }
@@ -190,14 +200,17 @@ impl<'m> Rhs<'m> {
         self.absorbance(c, &mut wk, false);
         let v = m.volume;
         let sw = &self.slot_weights;
+        for (slot, &sp) in m.absorbers.iter().enumerate() {
+            let cs = c[sp];
+            for &(s, ref bins) in &self.source_runs {
+                let taken = dot(&sw[slot * nb + bins.start..slot * nb + bins.end], &wk.g[bins.clone()]);
+                dy[lay.absorbed(s, slot)] += taken * cs / v;
+            }
+        }
         for b in 0..nb {
             let bin = m.bins[b];
             let s = bin.source;
-            let gb = wk.g[b];
-            for (slot, &sp) in m.absorbers.iter().enumerate() {
-                dy[lay.absorbed(s, slot)] += sw[slot * nb + b] * gb * c[sp] / v;
-            }
-            dy[lay.background(s)] += bin.flux * gb * m.background[b] / v;
+            dy[lay.background(s)] += bin.flux * wk.g[b] * m.background[b] / v;
             dy[lay.transmitted(s)] += bin.flux * wk.t[b] / v;
         }
         let gs = &wk.g;
@@ -213,8 +226,7 @@ impl<'m> Rhs<'m> {
             if mult == 0.0 {
                 continue;
             }
-            let weights = &self.outcome_weights[o * nb..(o + 1) * nb];
-            let taken: f64 = weights.iter().zip(gs).map(|(w, g)| w * g).sum();
+            let taken = dot(&self.outcome_weights[o * nb..(o + 1) * nb], gs);
             let rate = taken * c[sp] * mult / v; // mol L⁻¹ s⁻¹
             dy[lay.outcome(o)] += rate;
             for &(i, k) in &out.net {
@@ -306,6 +318,103 @@ impl<'m> Rhs<'m> {
             for &(i, k) in &outc.net {
                 out[i] += k * drate;
             }
+        }
+    }
+}
+
+/// The thermal reactions as flat arrays: reaction j has its reactants at positions
+/// `r_start[j]..r_start[j+1]` of `r_idx` (orders in `r_nu`) and its changes likewise in
+/// `n_idx`/`n_coef` over `n_start`. One pass over
+/// contiguous memory instead of two small heap vectors per reaction (the loop that dominated
+/// the right-hand side of a network with thousands of steps).
+pub(super) struct FlatThermal {
+    k: Vec<f64>,
+    r_start: Vec<usize>,
+    r_idx: Vec<usize>,
+    r_nu: Vec<u32>,
+    n_start: Vec<usize>,
+    n_idx: Vec<usize>,
+    n_coef: Vec<f64>,
+}
+
+impl FlatThermal {
+    fn new(reactions: &[super::Reaction]) -> Self {
+        let mut f = FlatThermal {
+            k: Vec::with_capacity(reactions.len()),
+            r_start: vec![0],
+            r_idx: Vec::new(),
+            r_nu: Vec::new(),
+            n_start: vec![0],
+            n_idx: Vec::new(),
+            n_coef: Vec::new(),
+        };
+        for r in reactions {
+            f.k.push(r.k);
+            for &(i, nu) in &r.reactants {
+                f.r_idx.push(i);
+                f.r_nu.push(nu);
+            }
+            f.r_start.push(f.r_idx.len());
+            for &(i, v) in &r.net {
+                f.n_idx.push(i);
+                f.n_coef.push(v);
+            }
+            f.n_start.push(f.n_idx.len());
+        }
+        f
+    }
+
+    /// Add every reaction's net change × rate (k Π c^ν, mol L⁻¹ s⁻¹) to `dy`.
+    fn add_rates(&self, c: &[f64], dy: &mut [f64]) {
+        for (j, &k) in self.k.iter().enumerate() {
+            let mut rate = k;
+            for p in self.r_start[j]..self.r_start[j + 1] {
+                let ci = c[self.r_idx[p]];
+                // powi(1) and powi(2) are exactly c and c·c; the call is the cost
+                rate *= match self.r_nu[p] {
+                    1 => ci,
+                    2 => ci * ci,
+                    nu => ci.powi(nu as i32),
+                };
+            }
+            for p in self.n_start[j]..self.n_start[j + 1] {
+                dy[self.n_idx[p]] += self.n_coef[p] * rate;
+            }
+        }
+    }
+}
+
+/// Σ aᵢ bᵢ over the shorter of the two, in four interleaved partial sums (so the compiler
+/// can keep several additions in flight; the order is fixed, so results are reproducible).
+pub(super) fn dot(a: &[f64], b: &[f64]) -> f64 {
+    let n = a.len().min(b.len());
+    let (a, b) = (&a[..n], &b[..n]);
+    let mut acc = [0.0f64; 4];
+    let (ca, cb) = (a.chunks_exact(4), b.chunks_exact(4));
+    let (ra, rb) = (ca.remainder(), cb.remainder());
+    for (x, y) in ca.zip(cb) {
+        for k in 0..4 {
+            acc[k] += x[k] * y[k];
+        }
+    }
+    let mut tail = 0.0;
+    for (x, y) in ra.iter().zip(rb) {
+        tail += x * y;
+    }
+    (acc[0] + acc[1]) + (acc[2] + acc[3]) + tail
+}
+
+#[cfg(test)]
+mod tests {
+    use super::dot;
+
+    #[test]
+    fn dot_equals_the_plain_sum_for_every_length_and_tail() {
+        for n in 0..11 {
+            let a: Vec<f64> = (0..n).map(|i| 1.0 + i as f64 * 0.5).collect();
+            let b: Vec<f64> = (0..n + 2).map(|i| 2.0 - i as f64 * 0.25).collect();
+            let plain: f64 = a.iter().zip(&b).map(|(x, y)| x * y).sum();
+            assert!((dot(&a, &b) - plain).abs() <= 1e-14 * plain.abs().max(1.0), "n = {n}");
         }
     }
 }
