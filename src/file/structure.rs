@@ -74,6 +74,12 @@ fn diagnostic(path: &Path, text: &str, e: &toml::de::Error) -> Diagnostic {
                 ),
             )
         }
+        (Some((n, l)), false) if msg.ends_with("expected struct Rate") => {
+            let value = l
+                .split_once('=')
+                .map_or("", |(_, v)| v.split('#').next().unwrap_or("").trim());
+            (format!("{}rate", entry(text, *n)), rate_is_a_table(value))
+        }
         _ => (String::new(), format!("not a valid network file here: {msg}")),
     };
     let help = match &line {
@@ -104,17 +110,43 @@ fn entry(text: &str, line: usize) -> String {
         return String::new();
     };
     let table = lines[h].trim().trim_matches(|c| c == '[' || c == ']').trim();
-    let name = lines[h + 1..]
-        .iter()
-        .take_while(|l| !l.trim_start().starts_with('['))
-        .filter_map(|l| l.split_once('='))
-        .find(|(k, _)| k.trim() == "name")
-        .map(|(_, v)| v.split('#').next().unwrap_or("").trim().trim_matches('"').to_string());
+    let value_of = |key: &str| {
+        lines[h + 1..]
+            .iter()
+            .take_while(|l| !l.trim_start().starts_with('['))
+            .filter_map(|l| l.split_once('='))
+            .find(|(k, _)| k.trim() == key)
+            .map(|(_, v)| v.split('#').next().unwrap_or("").trim().trim_matches('"').to_string())
+    };
+    // Steps without a name are named by their equation, as validation names them.
+    let name = value_of("name").or_else(|| match table {
+        "thermal" | "photo" => value_of("equation"),
+        _ => None,
+    });
     match name {
         Some(n) if !n.is_empty() => format!("{table} \"{n}\"."),
         _ if !table.contains('.') && !table.is_empty() => format!("{table}."),
         _ => String::new(),
     }
+}
+
+/// The message for a rate written as a single value (`rate = "1 /s"`): a rate is a table that
+/// says how it is given, with the user's value placed where it most likely belongs.
+fn rate_is_a_table(value: &str) -> String {
+    let inner = value.trim_matches('"').trim();
+    let example = if inner.contains("/mol") || inner.ends_with("mol") || inner.ends_with("eV") {
+        format!("rate = {{ barrier = \"{inner}\" }}")
+    } else if !inner.is_empty() && value.starts_with('"') {
+        format!("rate = {{ k = \"{inner}\" }}")
+    } else {
+        "rate = { k = \"0.04 /s\" }".to_string()
+    };
+    format!(
+        "a rate is a table saying how it is given, e.g. {example}; accepted: k (a rate constant, \
+         \"0.04 /s\", \"1e3 L/(mol s)\"), barrier (Eyring ΔG‡, \"22 kcal/mol\"), prefactor with \
+         activation (Arrhenius), enthalpy with entropy (Eyring ΔH‡ and ΔS‡), or frequencies \
+         (reactant_frequencies, ts_frequencies with barrier as E₀)"
+    )
 }
 
 /// A unit to show in the example for a key written as a bare number (`common practice` units
@@ -164,6 +196,25 @@ mod tests {
         assert_eq!(text.len(), BASE.len(), "offsets kept");
         assert_eq!(text.lines().count(), BASE.lines().count(), "lines kept");
         assert_eq!(doc.species.len(), 1);
+    }
+
+    #[test]
+    fn a_rate_written_as_one_value_is_shown_as_the_table_it_should_be() {
+        let text = "[about]\nname = \"t\"\n[[species]]\nname = \"A\"\n[[species]]\nname = \"B\"\n\
+                    [[thermal]]\nequation = \"A -> B\"\nrate = \"1 /s\"\n\
+                    [[thermal]]\nname = \"back\"\nequation = \"B -> A\"\nrate = \"22 kcal/mol\"\n";
+        let (_, problems) = read_all(Path::new("t.toml"), text);
+        let shown: Vec<String> = problems.iter().map(|p| p.to_string()).collect();
+        assert_eq!(shown.len(), 2, "{shown:?}");
+        assert!(shown[0].contains("thermal \"A -> B\".rate"), "{}", shown[0]);
+        assert!(shown[0].contains("rate = { k = \"1 /s\" }"), "{}", shown[0]);
+        assert!(shown[1].contains("thermal \"back\".rate"), "{}", shown[1]);
+        assert!(
+            shown[1].contains("rate = { barrier = \"22 kcal/mol\" }"),
+            "{}",
+            shown[1]
+        );
+        assert!(!shown[0].contains("struct Rate"), "{}", shown[0]);
     }
 
     #[test]

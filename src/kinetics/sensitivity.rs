@@ -159,7 +159,8 @@ pub fn simulate(model: &Model, params: &[Perturbed], opts: &Options) -> Result<S
     let split = |s: &[f64]| -> Vec<Vec<f64>> { (0..np).map(|j| s[j * n..(j + 1) * n].to_vec()).collect() };
     macro_rules! go {
         ($m:ty, $ls:ty) => {{
-            let problem = builder!($m).build().map_err(fail)?;
+            let mut problem = builder!($m).build().map_err(fail)?;
+            problem.ode_options.max_number_timesteps = super::MAX_STEPS;
             let mut solver = problem.bdf_sens::<$ls>().map_err(fail)?;
             solver.set_stop_time(opts.until).map_err(fail)?;
             let mut next = 1;

@@ -82,11 +82,12 @@ pub(super) fn run(
     macro_rules! go {
         ($m:ty, $ls:ty) => {{
             let eqn = Equations::<$m>::new(rhs, &jac, y0, event);
-            let problem = OdeBuilder::<$m>::new()
+            let mut problem = OdeBuilder::<$m>::new()
                 .rtol(opts.rtol)
                 .atol(vec![opts.atol; n])
                 .build_from_eqn(eqn)
                 .map_err(fail)?;
+            problem.ode_options.max_number_timesteps = super::MAX_STEPS;
             let mut solver = problem.bdf::<$ls>().map_err(fail)?;
             solver.set_stop_time(opts.until).map_err(fail)?;
             let cell = std::cell::RefCell::new(solver);

@@ -316,6 +316,8 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
     let mut rows: Vec<(String, String, String)> = Vec::new();
     let incident_note = if dark && !s.floored.lights.is_empty() {
         "(no light: below the light floor, see floors below)"
+    } else if dark && p.sources.is_empty() {
+        "(no light: the network has no light source)"
     } else if dark {
         "(no light: every source is at zero)"
     } else {
