@@ -9,7 +9,7 @@ use photoledger::network::{Network, Overrides};
 use photoledger::uncertainty::counts;
 use photoledger::uncertainty::evidence::{self, dirichlet_moments};
 use photoledger::uncertainty::sampling::dirichlet;
-use photoledger::uncertainty::spec::{self, Distribution};
+use photoledger::uncertainty::spec::Distribution;
 use photoledger::uncertainty::{Problem, Settings, Space, stats};
 use rand::SeedableRng;
 use rand_distr::Distribution as _;
@@ -350,7 +350,7 @@ fn origins_give_their_spreads_and_an_entry_wins() {
     );
     let l = loaded(&text);
     let net = photoledger::network::build(&l, &Overrides::none()).unwrap();
-    let explicit = spec::read(&l).unwrap();
+    let explicit = photoledger::network::uncertain::read(&l).unwrap();
     let (ps, notes) = evidence::parameters(&net, &explicit.iter().collect::<Vec<_>>());
     assert!(
         ps.iter().all(|p| p.key != "thermal.C to D.barrier"),

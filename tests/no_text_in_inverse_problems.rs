@@ -5,7 +5,7 @@
 use photoledger::file::{data, parse_text};
 use photoledger::fit::mechanism::{Accuracy, FitOptions, Setup, fit};
 use photoledger::network::{self, Overrides, params};
-use photoledger::uncertainty::{Problem, Settings, Space, spec};
+use photoledger::uncertainty::{Problem, Settings, Space};
 use std::path::Path;
 
 #[test]
@@ -31,7 +31,7 @@ fn fits_and_samples_parse_no_keys_per_evaluation() {
     let l = parse_text(Path::new("networks/prebiotic-pool.toml"), text).unwrap();
     let net = network::build(&l, &Overrides::none()).unwrap();
     let space = Space {
-        independent: spec::read(&l).unwrap(),
+        independent: photoledger::network::uncertain::read(&l).unwrap(),
         fit: None,
     };
     let settings = Settings {

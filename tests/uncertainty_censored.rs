@@ -3,7 +3,7 @@
 //! tornado chart includes the time to the target.
 
 use photoledger::report::uncertainty as report;
-use photoledger::uncertainty::{Problem, Settings, Space, spec, summarise};
+use photoledger::uncertainty::{Problem, Settings, Space, summarise};
 use std::path::Path;
 
 // Invented: A -> B over a barrier of 90 ± 1 kJ/mol at 298.15 K (k ≈ 1e-3 /s, so 95 % of A
@@ -51,7 +51,7 @@ uniform = ["1e-5 /s", "2e-5 /s"]
 fn samples_that_never_reach_the_target_are_counted_and_censored() {
     let l = photoledger::file::parse_text(Path::new("t.toml"), NET.to_string()).expect("parses");
     let space = Space {
-        independent: spec::read(&l).expect("entries read"),
+        independent: photoledger::network::uncertain::read(&l).expect("entries read"),
         ..Space::default()
     };
     let horizon = 2700.0;

@@ -5,7 +5,7 @@
 use photoledger::Error;
 use photoledger::file::{Loaded, parse_text};
 use photoledger::uncertainty::fitcov::FitBlock;
-use photoledger::uncertainty::spec::{self, Distribution, Parameter};
+use photoledger::uncertainty::spec::{Distribution, Parameter};
 use photoledger::uncertainty::{self, Problem, Record, Settings, Space, stats};
 use std::path::Path;
 
@@ -131,7 +131,7 @@ fn linear_output_of_the_kinetics_propagates_mean_and_sd() {
     let text = format!("{LINEAR}\n[[uncertain]]\nkey = \"species.A.initial\"\nnormal = \"1 mM ± 0.1 mM\"\n");
     let l = loaded(&text);
     let space = Space {
-        independent: spec::read(&l).unwrap(),
+        independent: photoledger::network::uncertain::read(&l).unwrap(),
         fit: None,
     };
     let settings = Settings {
@@ -212,7 +212,7 @@ const POOL: &str = include_str!("../networks/prebiotic-pool.toml");
 
 fn pool_problem(l: &Loaded) -> Problem {
     let space = Space {
-        independent: spec::read(l).unwrap(),
+        independent: photoledger::network::uncertain::read(l).unwrap(),
         fit: None,
     };
     let settings = Settings {
@@ -282,7 +282,7 @@ fn shards_merged_equal_the_single_run_exactly() {
 fn spec_error(block: &str) -> (usize, String, String) {
     let text = format!("{LINEAR}\n{block}\n");
     let l = loaded(&text);
-    let err = match spec::read(&l) {
+    let err = match photoledger::network::uncertain::read(&l) {
         Err(e) => e,
         Ok(ps) => {
             let space = Space {
@@ -409,7 +409,7 @@ fn accepted_specs_read_in_internal_units() {
 [[uncertain]]\nkey = \"light.lamp.power\"\nnormal = \"10 mW ± 10 %\"\n\n\
 [[uncertain]]\nkey = \"species.A.initial\"\nlognormal = {{ median = \"1 mM\", factor = 2 }}\n"
     );
-    let ps = spec::read(&loaded(&text)).unwrap();
+    let ps = photoledger::network::uncertain::read(&loaded(&text)).unwrap();
     let d: Vec<&Distribution> = ps.iter().map(|p| &p.distribution).collect();
     // 25 °C = 298.15 K; a spread of 2 °C is 2 K.
     assert!(

@@ -2,7 +2,7 @@
 
 use super::output::{out, outln};
 use super::{NetworkArgs, print_json, print_warnings};
-use photoledger::uncertainty::{evidence, spec};
+use photoledger::uncertainty::evidence;
 
 /// Options of `check`.
 #[derive(clap::Args, Debug)]
@@ -21,7 +21,7 @@ pub struct CheckArgs {
 pub fn run(args: &CheckArgs) -> photoledger::Result<()> {
     let (loaded, net) = super::load_both(&args.net)?;
     // The [[uncertain]] entries are checked here too, as `uncertainty` reads them.
-    let explicit = spec::read(&loaded)?;
+    let explicit = photoledger::network::uncertain::read(&loaded)?;
     print_warnings(&net);
     if args.json {
         let file = args.net.file.display().to_string();

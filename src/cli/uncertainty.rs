@@ -7,7 +7,7 @@ use super::output::{out, outln};
 use photoledger::Error;
 use photoledger::file::folder::{self, Folder};
 use photoledger::report::{uncertainty as report, write_atomic};
-use photoledger::uncertainty::{self, Problem, Record, Settings, Space, fitcov::FitBlock, spec};
+use photoledger::uncertainty::{self, Problem, Record, Settings, Space, fitcov::FitBlock};
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 
@@ -87,7 +87,7 @@ pub fn run(a: &UncertaintyArgs) -> photoledger::Result<Exit> {
     let (loaded, net) = super::load_both(&args)?;
     super::print_warnings(&net);
     let mut space = Space {
-        independent: spec::read(&loaded)?,
+        independent: photoledger::network::uncertain::read(&loaded)?,
         fit: None,
     };
     if let Some(f) = &a.from_fit {

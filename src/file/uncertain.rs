@@ -1,6 +1,6 @@
 //! `[[uncertain]]` entries: distributions for values of the network file, addressed by the same
 //! dotted keys as `--set` (README, "Uncertainty"). Only the layout lives here; the meaning (units,
-//! ranges, whether the key exists) is checked in `uncertainty::spec`.
+//! ranges, whether the key exists) is checked in `network::uncertain`.
 
 use serde::Deserialize;
 use toml::Spanned;

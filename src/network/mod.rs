@@ -18,6 +18,7 @@ pub mod overrides;
 pub mod params;
 pub(crate) mod ranges;
 mod suggest;
+pub mod uncertain;
 
 pub use build::build;
 pub use overrides::Overrides;

@@ -500,7 +500,7 @@ pub fn tornado_svg(title: &str, s: &Summary) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::uncertainty::{Problem, Settings, Space, spec, summarise};
+    use crate::uncertainty::{Problem, Settings, Space, summarise};
     use std::path::Path;
 
     const NET: &str = r#"
@@ -544,7 +544,7 @@ uniform = ["1e-5 /s", "2e-5 /s"]
     fn run() -> (Record, Summary) {
         let l = crate::file::parse_text(Path::new("t.toml"), NET.to_string()).expect("parses");
         let space = Space {
-            independent: spec::read(&l).expect("entries read"),
+            independent: crate::network::uncertain::read(&l).expect("entries read"),
             ..Space::default()
         };
         let settings = Settings {

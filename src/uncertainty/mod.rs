@@ -18,7 +18,11 @@ pub mod counts;
 pub mod evidence;
 pub mod fitcov;
 pub mod sampling;
-pub mod spec;
+/// The typed uncertain values the engine draws (read from `[[uncertain]]` entries by
+/// [`crate::network::uncertain::read`]).
+pub mod spec {
+    pub use crate::network::uncertain::{Distribution, Parameter};
+}
 pub mod stats;
 
 use crate::chain;

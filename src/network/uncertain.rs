@@ -1,10 +1,12 @@
 //! Reading `[[uncertain]]` entries of a loaded network file into [`Parameter`]s: units through
-//! `units`, every problem a located [`Diagnostic`] naming the entry's field.
+//! `units`, every problem a located [`Diagnostic`] naming the entry's field. The `uncertainty`
+//! engine takes the typed parameters (re-exported there as `uncertainty::spec`) and never the
+//! file.
 
-use super::fitcov::Transform;
 use crate::error::{Diagnostic, Error, Origin, Result};
 use crate::file::Loaded;
 use crate::file::uncertain::{Amount, Uncertain};
+use crate::network::params::Transform;
 use crate::units::{self, Quantity};
 use toml::Spanned;
 
