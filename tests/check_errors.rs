@@ -350,10 +350,9 @@ fn misspelt_key_is_named_with_the_keys_accepted() {
     let (_s, p, r) = check_text("misspelt", &text, &[]);
     assert_invalid(&r);
     diag(&r.stderr, "error", &p, Some(loc(&text, "intial")), "").says(&[
-        "unknown field `intial`",
-        "expected one of",
-        "`initial`",
-        "`epsilon`",
+        "species \"E-azo\".intial: no key \"intial\" here: did you mean initial?",
+        "accepted here: name, initial",
+        "epsilon",
     ]);
 }
 
@@ -362,7 +361,10 @@ fn misspelt_key_inside_an_inline_rate_table_is_named() {
     let text = edit(SWITCH, "{ barrier = ", "{ barier = ");
     let (_s, p, r) = check_text("misspelt-rate", &text, &[]);
     assert_invalid(&r);
-    diag(&r.stderr, "error", &p, Some(loc(&text, "barier")), "").says(&["unknown field `barier`", "`barrier`", "`k`"]);
+    diag(&r.stderr, "error", &p, Some(loc(&text, "barier")), "").says(&[
+        ".rate.barier: no key \"barier\" here: did you mean barrier?",
+        "accepted here: k, prefactor",
+    ]);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -1838,7 +1840,7 @@ fn a_misspelt_key_a_bare_number_and_a_missing_unit_are_reported_together() {
     assert_contains(
         &r.stderr,
         &[&format!(
-            "{f}:{vl}:1: not a valid network file here: unknown field `volumes`"
+            "{f}:{vl}:1: conditions.volumes: no key \"volumes\" here: did you mean volume?"
         )],
     );
     assert_contains(

@@ -74,6 +74,26 @@ fn diagnostic(path: &Path, text: &str, e: &toml::de::Error) -> Diagnostic {
                 ),
             )
         }
+        (Some((n, _)), false) if msg.starts_with("unknown field") => {
+            let names: Vec<&str> = msg.split('`').skip(1).step_by(2).collect();
+            match (names.split_first(), e.span()) {
+                (Some((unknown, accepted)), Some(r)) => {
+                    // Inside an inline table (`rate = { Ea = ..., A = ... }`) the whole line is
+                    // set aside, so every key of that table the table does not take is named.
+                    let (table, keys) = inline_table(text, r.start);
+                    let unknown: Vec<&str> = keys
+                        .iter()
+                        .copied()
+                        .filter(|k| !accepted.contains(k))
+                        .chain(keys.is_empty().then_some(*unknown))
+                        .collect();
+                    let field = format!("{}{table}{}", entry(text, *n), unknown.join(", "));
+                    let said: Vec<String> = unknown.iter().map(|u| unknown_key(u, accepted)).collect();
+                    (field, format!("{}{}", said.join("; "), accepted_here(accepted)))
+                }
+                _ => (String::new(), format!("not a valid network file here: {msg}")),
+            }
+        }
         (Some((n, l)), false) if msg.ends_with("expected struct Rate") => {
             let value = l
                 .split_once('=')
@@ -130,6 +150,78 @@ fn entry(text: &str, line: usize) -> String {
     }
 }
 
+/// For an offset inside an inline table (`rate = { Ea = "80 kJ/mol", A = "1e10 /s" }`): the
+/// table's key with a dot (`rate.`) and the keys written in it; empty when the offset is in none.
+fn inline_table(text: &str, at: usize) -> (String, Vec<&str>) {
+    let line_start = text[..at].rfind('\n').map_or(0, |i| i + 1);
+    let line_end = text[at..].find('\n').map_or(text.len(), |i| at + i);
+    let before = &text[line_start..at];
+    let (Some(open), Some(close)) = (before.rfind('{'), text[at..line_end].find('}')) else {
+        return (String::new(), Vec::new());
+    };
+    let table = before[..open].trim_end().trim_end_matches('=').trim();
+    let table = table.rsplit(['{', ',']).next().unwrap_or("").trim();
+    let inside = &text[line_start + open + 1..at + close];
+    let keys = inside
+        .split(',')
+        .filter_map(|kv| kv.split_once('='))
+        .map(|(k, _)| k.trim())
+        .filter(|k| !k.is_empty() && !k.contains(['{', '[', '"']))
+        .collect();
+    (format!("{table}."), keys)
+}
+
+/// What chemists often write for a key, and the key the file uses (`common practice` names).
+const ALIASES: [(&str, &str); 16] = [
+    ("ea", "activation"),
+    ("a", "prefactor"),
+    ("preexponential", "prefactor"),
+    ("pre_exponential", "prefactor"),
+    ("dg", "barrier"),
+    ("delta_g", "barrier"),
+    ("dh", "enthalpy"),
+    ("ds", "entropy"),
+    ("phi", "quantum_yield"),
+    ("qy", "quantum_yield"),
+    ("eps", "epsilon"),
+    ("extinction", "epsilon"),
+    ("conc", "initial"),
+    ("concentration", "initial"),
+    ("t", "temperature"),
+    ("temp", "temperature"),
+];
+
+/// The message for a key the table does not take: the accepted key it most likely means (a
+/// usual alias, or the closest spelling), then every key accepted there.
+fn unknown_key(unknown: &str, accepted: &[&str]) -> String {
+    let lower = unknown.to_lowercase();
+    let alias = ALIASES
+        .iter()
+        .find(|(a, k)| *a == lower && accepted.contains(k))
+        .map(|(_, k)| *k);
+    let close = alias.or_else(|| {
+        accepted
+            .iter()
+            .map(|c| (*c, strsim::jaro_winkler(&lower, &c.to_lowercase())))
+            .filter(|(c, score)| *score >= 0.8 || strsim::levenshtein(&lower, &c.to_lowercase()) <= 2)
+            .max_by(|a, b| a.1.total_cmp(&b.1))
+            .map(|(c, _)| c)
+    });
+    match close {
+        Some(c) => format!("no key \"{unknown}\" here: did you mean {c}?"),
+        None => format!("no key \"{unknown}\" here"),
+    }
+}
+
+/// What a table accepts, said once after its unknown keys.
+fn accepted_here(accepted: &[&str]) -> String {
+    if accepted.is_empty() {
+        " (this table takes no keys)".to_string()
+    } else {
+        format!(" (accepted here: {})", accepted.join(", "))
+    }
+}
+
 /// The message for a rate written as a single value (`rate = "1 /s"`): a rate is a table that
 /// says how it is given, with the user's value placed where it most likely belongs.
 fn rate_is_a_table(value: &str) -> String {
@@ -182,7 +274,7 @@ mod tests {
         assert_eq!(problems.len(), 2, "{problems:?}");
         let first = problems[0].to_string();
         assert!(
-            first.contains("t.toml:4:1") && first.contains("unknown field `temperatur`"),
+            first.contains("t.toml:4:1") && first.contains("no key \"temperatur\" here: did you mean temperature?"),
             "{first}"
         );
         let second = problems[1].to_string();
@@ -196,6 +288,26 @@ mod tests {
         assert_eq!(text.len(), BASE.len(), "offsets kept");
         assert_eq!(text.lines().count(), BASE.lines().count(), "lines kept");
         assert_eq!(doc.species.len(), 1);
+    }
+
+    #[test]
+    fn an_unknown_key_is_matched_to_what_was_meant() {
+        let accepted = ["k", "prefactor", "activation", "barrier", "enthalpy", "entropy"];
+        assert!(super::unknown_key("Ea", &accepted).contains("did you mean activation?"));
+        assert!(super::unknown_key("A", &accepted).contains("did you mean prefactor?"));
+        assert!(super::unknown_key("barier", &accepted).contains("did you mean barrier?"));
+        assert_eq!(super::unknown_key("colour", &accepted), "no key \"colour\" here");
+        let text = "[about]\nname = \"t\"\n[[thermal]]\nequation = \"A -> B\"\nrate = { Ea = \"80 kJ/mol\", A = \"1e10 /s\" }\n";
+        let (_, problems) = read_all(Path::new("t.toml"), text);
+        let shown = problems[0].to_string();
+        assert!(shown.contains("thermal \"A -> B\".rate.Ea, A: no key \"Ea\" here: did you mean activation?; no key \"A\" here: did you mean prefactor? (accepted here: k, prefactor"), "{shown}");
+        let text = "[about]\nname = \"t\"\n[conditions]\ntemperatur = \"298 K\"\n";
+        let (_, problems) = read_all(Path::new("t.toml"), text);
+        let shown = problems[0].to_string();
+        assert!(
+            shown.contains("conditions.temperatur: no key \"temperatur\" here: did you mean temperature?"),
+            "{shown}"
+        );
     }
 
     #[test]

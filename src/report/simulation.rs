@@ -18,6 +18,9 @@ feedstocks are toxic. Local regulations and institutional safety practice take p
 pub const ASSUMPTIONS: &str = "well-stirred cell; light enters one face and crosses the stated path length; \
 absorbances add (Beer–Lambert); transients are collapsed into effective quantum yields; mass-action thermal kinetics";
 
+/// What a run of a network with no light source assumes.
+pub const ASSUMPTIONS_DARK: &str = "well-stirred solution; mass-action thermal kinetics";
+
 /// concentrations.csv: time and every species, units in the header.
 pub fn concentrations_csv(model: &Model, tr: &Trajectory) -> String {
     let mut bytes = Vec::new();
@@ -111,6 +114,9 @@ pub struct Summary {
     pub floored: FlooredSummary,
     /// The daily light schedule the run followed (None: the light was on throughout).
     pub light_schedule: Option<LightSchedule>,
+    /// True when a sunlight source shone around the clock (no schedule, no night): said in the
+    /// text, since a day has night.
+    pub sun_around_the_clock: bool,
     /// Model assumptions.
     pub assumptions: String,
     /// Safety cautions.
@@ -305,8 +311,24 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
             lit_per_period_s: s.lit,
             lit_time_s: tr.lit_time(t),
         }),
-        assumptions: ASSUMPTIONS.into(),
-        cautions: CAUTIONS.into(),
+        sun_around_the_clock: tr.schedule.is_none()
+            && net
+                .lights
+                .iter()
+                .enumerate()
+                .any(|(i, l)| matches!(l.kind, crate::light::LightKind::Sun { .. }) && model.source_flux(i) > 0.0),
+        assumptions: if net.lights.is_empty() {
+            ASSUMPTIONS_DARK
+        } else {
+            ASSUMPTIONS
+        }
+        .into(),
+        // No lamp, no lamp caution (the README's rule: a command that involves a lamp).
+        cautions: if net.lights.is_empty() {
+            String::new()
+        } else {
+            CAUTIONS.into()
+        },
     }
 }
 

@@ -46,11 +46,15 @@ pub fn network_summary(net: &Network) -> String {
         c.irradiated_area
             .map_or(String::new(), |a| format!(", irradiated area {} cm²", sig(a * 1e4, 4)))
     );
-    let n_abs = net
-        .species
-        .iter()
-        .filter(|x| x.epsilon.as_ref().is_some_and(|e| e.max() > 0.0))
-        .count();
+    // A species absorbs when it has ε where a source sends photons (an inner filter too).
+    let lit = |sp: &crate::network::Species| {
+        sp.epsilon.as_ref().is_some_and(|e| {
+            net.lights
+                .iter()
+                .any(|l| l.bins.iter().any(|b| b.flux > 0.0 && e.at(b.wavelength) > 0.0))
+        })
+    };
+    let n_abs = net.species.iter().filter(|x| lit(x)).count();
     let plural = |n: usize, one: &str, many: &str| format!("{n} {}", if n == 1 { one } else { many });
     let n_rev = net.thermal.iter().filter(|t| t.reverse_of.is_some()).count();
     let _ = writeln!(
@@ -112,32 +116,34 @@ pub fn network_summary(net: &Network) -> String {
         let eps = match &sp.epsilon {
             None => String::new(),
             Some(e) => {
-                // The largest ε over the wavelengths the light carries, in the trade's unit.
-                let best = net
+                // ε as the light meets it: weighted by each source's photons (what sets the
+                // photons a thin sample takes), per source, in the trade's unit. The largest ε
+                // over a band's quadrature sits in its far tails, where the source hardly emits.
+                let per: Vec<(&str, f64)> = net
                     .lights
                     .iter()
-                    .flat_map(|l| {
-                        // Over the range where the source emits, not its quadrature's far tails.
-                        let (lo, hi) = l.extent().unwrap_or((0.0, 0.0));
-                        l.bins.iter().filter(move |b| b.wavelength >= lo && b.wavelength <= hi)
+                    .filter_map(|l| {
+                        let total: f64 = l.bins.iter().map(|b| b.flux).sum();
+                        let taken: f64 = l.bins.iter().map(|b| b.flux * e.at(b.wavelength)).sum();
+                        (total > 0.0).then(|| (l.name.as_str(), taken / total))
                     })
-                    .map(|b| (b.wavelength, e.at(b.wavelength)))
-                    .max_by(|a, b| a.1.total_cmp(&b.1));
-                match best {
-                    Some((w, v)) if v > 0.0 => format!(
-                        "  ε up to {} L/(mol cm) under the light (at {} nm)",
-                        sig(crate::units::epsilon_to_per_cm(v), 4),
-                        sig(w * 1e9, 4)
-                    ),
-                    Some(_) => "  ε = 0 under the light".to_string(),
-                    None => String::new(),
+                    .map(|(name, v)| (name, crate::units::epsilon_to_per_cm(v)))
+                    .collect();
+                if per.is_empty() {
+                    String::new()
+                } else if per.iter().all(|p| p.1 == 0.0) {
+                    "  ε = 0 under the light".to_string()
+                } else {
+                    let list: Vec<String> = per.iter().map(|(n, v)| format!("{n} {}", sig(*v, 3))).collect();
+                    format!("  ε over each source's photons: {} L/(mol cm)", list.join(", "))
                 }
             }
         };
-        let absorbs = if net.photo.iter().any(|p| p.absorber == i) {
-            "  absorbs"
-        } else {
-            ""
+        // Those with a photochemical step say so.
+        let absorbs = match (lit(sp), net.photo.iter().any(|p| p.absorber == i)) {
+            (_, true) => "  absorbs, reacts",
+            (true, false) => "  absorbs (no photochemistry)",
+            (false, false) => "",
         };
         let product = if sp.product { "  product" } else { "" };
         let _ = writeln!(
@@ -294,6 +300,12 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
             crate::units::format_time(s.end_time_s)
         );
     }
+    if s.sun_around_the_clock {
+        let _ = writeln!(
+            o,
+            "light on around the clock: the sun at its stated strength with no night (--sun-hours N for N lit hours a day)"
+        );
+    }
     let _ = writeln!(o, "\nfinal concentrations");
     // round-off within the integrator's absolute tolerance of zero reads 0 (summary.json keeps
     // the raw values beside its `atol`)
@@ -409,11 +421,13 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         );
     }
     if !p.thermal_products.is_empty() {
-        let _ = writeln!(
-            o,
-            "\nformed thermally, no photon cost (co-products: the other products of such thermal steps, or of steps no \
-             photoproduct feeds)"
-        );
+        let heading = if dark {
+            "\nformed in the dark by thermal steps (no light reached the sample, so no photon cost)"
+        } else {
+            "\nformed by thermal steps alone, no photon cost (fed by no photoproduct, with the other products of \
+             those steps)"
+        };
+        let _ = writeln!(o, "{heading}");
         for pr in &p.thermal_products {
             let _ = writeln!(
                 o,
@@ -440,7 +454,9 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         let _ = writeln!(o, "floors      {line}");
     }
     let _ = writeln!(o, "assumes     {}", s.assumptions);
-    let _ = writeln!(o, "caution: {}", s.cautions);
+    if !s.cautions.is_empty() {
+        let _ = writeln!(o, "caution: {}", s.cautions);
+    }
     o
 }
 
