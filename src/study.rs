@@ -306,7 +306,7 @@ fn chain_study(model: &Model, net: &Network) -> Result<ChainStudy> {
 
 /// The photostationary state of a network where no molecule ends (None for any other).
 /// A closed switch's photostationary state, three ways: one molecule under the light shared
-/// as at the start (what `ledger` gives), one molecule under the light the mixture lets
+/// as at the start (`ledger --at "0 s"`), one molecule under the light the mixture lets
 /// through at the end of the run (`ledger --at`), and the mixture itself at the end of the run
 /// (the kinetics). When the run has reached the photostationary state the last two agree: the
 /// mixture's composition is then the time share of one molecule under the light that mixture

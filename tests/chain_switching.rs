@@ -357,3 +357,42 @@ fn the_report_of_a_closed_switch_gives_its_photostationary_state() {
     let per_switch = display::number(c.stationary.photons_per_switch.expect("switches"));
     assert!(page.contains(&format!("absorbs {per_switch} photons per switching event")));
 }
+
+/// The `ledger` command on the bundled photoswitch: by default the light is shared at the
+/// mixture the kinetics settle to, so the composition it prints is the sample's own
+/// photostationary state (the mixture `simulate` ends at, to 0.5 points: the settled time is
+/// within 1 % of the end); `--at "0 s"` shares it as in the starting mixture, which differs by
+/// several points because E and Z absorb the two LEDs differently.
+#[test]
+fn ledger_on_a_closed_switch_gives_the_sample_photostationary_state_by_default() {
+    let bin = env!("CARGO_BIN_EXE_photoledger");
+    let file = concat!(env!("CARGO_MANIFEST_DIR"), "/networks/photoswitch.toml");
+    let dir = std::env::temp_dir().join(format!("pl-ledger-pss-{}", std::process::id()));
+    let json = |args: &[&str]| -> serde_json::Value {
+        let out = std::process::Command::new(bin)
+            .args(args)
+            .args(["--json", "--out", dir.to_str().unwrap()])
+            .output()
+            .unwrap();
+        assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+        serde_json::from_slice(&out.stdout).unwrap()
+    };
+    let z_share = |v: &serde_json::Value| -> f64 {
+        v["composition"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|f| f["state"] == "Z-azo")
+            .and_then(|f| f["time_share"].as_f64())
+            .unwrap()
+    };
+    let settled = z_share(&json(&["ledger", file]));
+    let start = z_share(&json(&["ledger", file, "--at", "0 s"]));
+    let sim = json(&["simulate", file, "--until", "2 h"]);
+    let fin: Vec<(String, f64)> = serde_json::from_value(sim["final_concentrations_mol_per_l"].clone()).unwrap();
+    let (e, z) = (fin[0].1, fin[1].1);
+    let mixture = z / (e + z);
+    assert!((settled - mixture).abs() < 0.005, "ledger {settled}, simulate {mixture}");
+    assert!((start - mixture).abs() > 0.02, "starting-mixture light {start}, simulate {mixture}");
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -616,11 +616,11 @@ pub(super) fn build_parts(
     chain.notes.push(match settings.light {
         Light::Stirred => format!(
             "photon absorption per molecule: its share of the light absorbed in the well-stirred cell at the {} \
-             concentrations (background and inner filter included)",
+             (background and inner filter included)",
             if settings.concentrations.is_some() {
-                "given"
+                "concentrations the light line below names"
             } else {
-                "initial"
+                "initial concentrations"
             }
         ),
         Light::Thin => "photon absorption per molecule: optically thin limit, σ(λ) × photon irradiance over the \

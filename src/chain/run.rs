@@ -91,7 +91,7 @@ pub enum Followed {
 /// refused as [`run`] refuses it.
 pub fn follow(model: &Model, net: &Network, opts: &ChainOptions) -> Result<Followed> {
     let mut settings = opts.settings.clone();
-    if let (Some(t), None) = (opts.at, &settings.concentrations) {
+    if let (Some(t), None) = (opts.at.filter(|&t| t > 0.0), &settings.concentrations) {
         let tr = kinetics::simulate(model, &kinetics::Options::until(t), &mut |_| {})?;
         settings.concentrations = Some(tr.last()[..model.n_species()].to_vec());
     }
@@ -179,11 +179,11 @@ pub fn light_words(settings: &Settings, at: Option<f64>) -> String {
         (build::Light::Thin, ..) => {
             "optically thin limit over the irradiated area (no inner filter, no light shared)".into()
         }
-        (build::Light::Stirred, Some(t), _) => format!(
+        (build::Light::Stirred, Some(t), _) if t > 0.0 => format!(
             "stirred cell, light shared at the concentrations the kinetics reach after {}",
             crate::units::format_time(t)
         ),
-        (build::Light::Stirred, None, Some(_)) => "stirred cell, light shared at the given concentrations".into(),
-        (build::Light::Stirred, None, None) => "stirred cell, light shared at the initial concentrations".into(),
+        (build::Light::Stirred, _, Some(_)) => "stirred cell, light shared at the given concentrations".into(),
+        (build::Light::Stirred, _, None) => "stirred cell, light shared at the initial concentrations".into(),
     }
 }

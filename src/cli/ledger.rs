@@ -29,7 +29,9 @@ pub struct LedgerArgs {
     #[arg(long, default_value = "stirred")]
     pub light: String,
     /// Take the concentrations (for light sharing, linearised bimolecular steps and quenching)
-    /// from a kinetics run of this length instead of the initial ones, e.g. "2 h".
+    /// from a kinetics run of this length instead of the initial ones, e.g. "2 h". A network
+    /// where no molecule ends (a photoswitch) takes them where the kinetics settle unless this
+    /// is given; "0 s" keeps the starting mixture.
     #[arg(long, value_name = "DURATION", allow_hyphen_values = true)]
     pub at: Option<String>,
     /// Stop the photon-count distribution (and the count of switching cycles) at this many.
@@ -55,9 +57,13 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
             )));
         }
     };
-    let at = duration("--at", a.at.as_deref())?;
+    // --at "0 s" is the starting mixture (the default of a chain that ends)
+    let at = match a.at.as_deref() {
+        Some(t) if photoledger::units::parse(t, photoledger::units::Quantity::Time) == Ok(0.0) => Some(0.0),
+        other => duration("--at", other)?,
+    };
     let window = duration("--window", a.window.as_deref())?;
-    let opts = ChainOptions {
+    let mut opts = ChainOptions {
         settings: Settings {
             light,
             concentrations: None,
@@ -70,8 +76,24 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
         },
         sensitivities: true,
     };
-    let followed = chain::follow(&model, &net, &opts)?;
-    if let Some(t) = at {
+    let mut followed = chain::follow(&model, &net, &opts)?;
+    if let (Followed::Closed(_), None, Light::Stirred) = (&followed, at, light) {
+        // A molecule that never ends settles as the light lets it; the light is shared by the
+        // mixture, which moves while irradiated. Share it at the mixture the kinetics settle
+        // to, so the composition is this sample's photostationary state.
+        if let Some(t) = settled(&model)? {
+            opts.at = Some(t);
+            followed = chain::follow(&model, &net, &opts)?;
+            if let Followed::Closed(c) = &mut followed {
+                c.light = format!(
+                    "stirred cell, light shared at the mixture the kinetics settle to (every concentration within 1 % \
+                     of where it ends by {}): this sample's photostationary state",
+                    photoledger::units::format_time(t)
+                );
+            }
+        }
+    }
+    if let Some(t) = at.filter(|&t| t > 0.0) {
         noteln!(
             "note: concentrations taken from the kinetics at {}",
             photoledger::units::format_time(t)
@@ -131,6 +153,18 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
         )?;
     }
     Ok(())
+}
+
+/// When the kinetics of `model` settle (the automatic horizon, `plan::horizon`), None when
+/// nothing is consumed or they are still changing at its cap.
+fn settled(model: &Model) -> photoledger::Result<Option<f64>> {
+    use photoledger::plan::horizon::{Ended, automatic};
+    let h = automatic(model, None)?;
+    Ok(match h.ended {
+        Ended::Steady(_, t) if t > 0.0 => Some(t),
+        Ended::Reached(_) | Ended::Steady(..) => Some(h.time),
+        Ended::Cap | Ended::NothingConsumed => None,
+    })
 }
 
 /// A duration option, parsed.

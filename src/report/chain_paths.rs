@@ -198,11 +198,14 @@ pub fn closed_text(s: &ClosedSummary) -> String {
         species.join(", ")
     );
     let at_start = s.light.starts_with("stirred cell, light shared at the initial");
+    let settled = s.light.ends_with("this sample's photostationary state");
     let _ = writeln!(
         o,
         "\n  photostationary composition of one molecule{} (share of the time in each state, %)",
         if at_start {
-            " under the light shared as in the starting mixture"
+            " under the light shared as in the starting mixture (not this sample's photostationary state: see below)"
+        } else if settled {
+            " under the light the settled mixture shares: this sample's photostationary state"
         } else {
             ""
         }
@@ -280,8 +283,8 @@ pub fn closed_text(s: &ClosedSummary) -> String {
         let _ = writeln!(
             o,
             "  (the light is shared as in the starting mixture, which no irradiated sample keeps: where the forms \
-             absorb the lamps differently, the sample's own photostationary state differs; `--at DURATION` shares \
-             the light at the composition the kinetics reach by then, and `report` puts the two side by side)"
+             absorb the lamps differently, the sample's own photostationary state differs; without `--at`, `ledger` \
+             shares the light at the mixture the kinetics settle to, and `report` puts the two side by side)"
         );
     }
     o.push_str(&lifetimes_text(&s.lifetimes));

@@ -158,8 +158,9 @@ pub fn section(c: &ClosedStudy) -> String {
         }
     }
     o.push_str(&format!(
-        "<p class=\"note\">The first column of the composition table is what <code>ledger</code> prints; the \
-         second column, the rates and the first passages are what <code>ledger --at {}</code> prints.</p>\n",
+        "<p class=\"note\">The first column of the composition table is what <code>ledger --at \"0 s\"</code> \
+         prints; the second column, the rates and the first passages are what <code>ledger --at {}</code> prints \
+         (<code>ledger</code> alone shares the light where the kinetics settle, close to this).</p>\n",
         esc(&after)
     ));
     o
