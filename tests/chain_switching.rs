@@ -392,7 +392,13 @@ fn ledger_on_a_closed_switch_gives_the_sample_photostationary_state_by_default()
     let fin: Vec<(String, f64)> = serde_json::from_value(sim["final_concentrations_mol_per_l"].clone()).unwrap();
     let (e, z) = (fin[0].1, fin[1].1);
     let mixture = z / (e + z);
-    assert!((settled - mixture).abs() < 0.005, "ledger {settled}, simulate {mixture}");
-    assert!((start - mixture).abs() > 0.02, "starting-mixture light {start}, simulate {mixture}");
+    assert!(
+        (settled - mixture).abs() < 0.005,
+        "ledger {settled}, simulate {mixture}"
+    );
+    assert!(
+        (start - mixture).abs() > 0.02,
+        "starting-mixture light {start}, simulate {mixture}"
+    );
     let _ = std::fs::remove_dir_all(&dir);
 }

@@ -339,6 +339,11 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
     for a in &p.by_absorber {
         let share = if dark {
             "(no light)".to_string()
+        } else if a.outcomes.is_empty() {
+            format!(
+                "({} % of incident; no photochemistry: an inner filter, every photon it takes ends as heat)",
+                sig(100.0 * a.absorbed / p.incident, 3)
+            )
         } else {
             format!(
                 "({} % of incident; {} returned, {} productive)",

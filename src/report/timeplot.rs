@@ -401,7 +401,7 @@ fn notes_of(p: &TimePlot, maxima: &[f64], panels: &[Panel]) -> Vec<String> {
     let mut notes = p.notes.clone();
     if p.axis == TimeAxis::Automatic {
         notes.push(format!(
-            "Log time axis: most of the change happens in the first {} % of the run (from the first output time after 0).",
+            "Log time axis: more than half of all the change in concentration (summed over the species) happens in the first {} % of the run; the axis starts at the first output time after 0.",
             ticks::label(100.0 * EARLY_SHARE)
         ));
     }
