@@ -613,20 +613,24 @@ pub(super) fn build_parts(
         }
     }
     debug_assert!(chain.states.len() >= n_states);
-    chain.notes.push(match settings.light {
-        Light::Stirred => format!(
-            "photon absorption per molecule: its share of the light absorbed in the well-stirred cell at the {} \
+    // No light reaches the sample: no absorption to say how it is counted.
+    let lit = model.bins.iter().any(|b| b.flux > 0.0);
+    chain.notes.extend(lit.then(|| {
+        match settings.light {
+            Light::Stirred => format!(
+                "photon absorption per molecule: its share of the light absorbed in the well-stirred cell at the {} \
              (background and inner filter included)",
-            if settings.concentrations.is_some() {
-                "concentrations the light line below names"
-            } else {
-                "initial concentrations"
-            }
-        ),
-        Light::Thin => "photon absorption per molecule: optically thin limit, σ(λ) × photon irradiance over the \
+                if settings.concentrations.is_some() {
+                    "concentrations the light line below names"
+                } else {
+                    "initial concentrations"
+                }
+            ),
+            Light::Thin => "photon absorption per molecule: optically thin limit, σ(λ) × photon irradiance over the \
                         irradiated area"
-            .into(),
-    });
+                .into(),
+        }
+    }));
     Ok((chain, Parts { exits, c }))
 }
 

@@ -299,15 +299,26 @@ pub fn text(s: &Summary) -> String {
         }
         (None, None) => {}
     }
-    let _ = writeln!(o, "\n  cycles (expected per molecule followed)");
-    for r in &s.returns {
-        let _ = writeln!(o, "    {:>14.4}  {}", r.expected, r.channel);
+    // Cycles are returns through a photon: a dark network has none to list.
+    if !s.returns.is_empty() {
+        let _ = writeln!(o, "\n  cycles (expected per molecule followed)");
+        for r in &s.returns {
+            let _ = writeln!(o, "    {:>14.4}  {}", r.expected, r.channel);
+        }
+        let _ = writeln!(o, "  visits");
+    } else {
+        let _ = writeln!(o, "\n  visits (expected per molecule followed)");
     }
-    let _ = writeln!(o, "  visits");
     for v in &s.visits {
         let _ = writeln!(o, "    {:>14.4}  {} ({})", v.visits, v.state, v.kind);
     }
-    if let (Some(t), Some(n)) = (s.distribution_tail, s.distribution_max_photons) {
+    let no_photons = s.ends.iter().all(|e| e.photons_mean.is_none_or(|m| m == 0.0));
+    if no_photons {
+        let _ = writeln!(
+            o,
+            "  photon-count distribution: no photon is absorbed on any way to an end"
+        );
+    } else if let (Some(t), Some(n)) = (s.distribution_tail, s.distribution_max_photons) {
         // the tail is 1 − Σ P(k ≤ n): a probability of the chain solve, round-off within
         // CHAIN_ROUNDOFF of 1 (a dark run's 1 − 1 = 1.1e-16 reads 0)
         let t = display::ZeroWithin::relative(1.0, display::CHAIN_ROUNDOFF).shown(t);

@@ -518,7 +518,7 @@ pub fn paths_text(p: &Paths) -> String {
             o,
             "{}",
             if c.truncated {
-                " (distribution stopped at the count limit: raise --max-photons)"
+                " (distribution stopped at the count limit: raise --max-photons, which limits cycle counts too)"
             } else {
                 ""
             }
