@@ -93,15 +93,19 @@ pub fn network_summary(net: &Network) -> String {
         };
         let _ = writeln!(
             s,
-            "  {:<14} {:<42} {}{} = {} {}{}–{} nm{}{} wavelength bin{})",
+            "  {:<14} {:<42} {}{} = {} {}{} nm{}{} wavelength bin{})",
             l.name,
             what,
             emitted,
             display::format_power(l.power()),
             display::format_photon_flux(l.photon_flux()),
             if l.window_cuts() { "in " } else { "(" },
-            sig(lo * 1e9, 4),
-            sig(hi * 1e9, 4),
+            // a line's range is one wavelength
+            if sig(lo * 1e9, 4) == sig(hi * 1e9, 4) {
+                sig(lo * 1e9, 4)
+            } else {
+                format!("{}–{}", sig(lo * 1e9, 4), sig(hi * 1e9, 4))
+            },
             if l.window_cuts() {
                 " (from/to cuts the emitted light; "
             } else {
