@@ -81,6 +81,14 @@ fn examples(text: &str) -> Vec<Example> {
                 Some(k) => (quoted[..k].to_vec(), Some(quoted[k + 1..].to_vec())),
                 None => (quoted, None),
             };
+            // A quote of `...` alone would match anything (a refresh that caught a failed run
+            // writes one): every quote shows at least one line of output.
+            assert!(
+                !head.is_empty() || tail.as_ref().is_some_and(|t| !t.is_empty()) || exit != 0,
+                "README line {}: the quote of `{}` shows no output line",
+                start + 1,
+                command
+            );
             out.push(Example {
                 command,
                 quote: start..stop,
