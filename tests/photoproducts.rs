@@ -108,7 +108,7 @@ fn water_of_a_dark_condensation_has_no_photon_cost() {
         .find(|l| l.trim_start().starts_with("H2O ") && l.contains("formed"))
         .unwrap();
     assert!(!water.contains("photons"), "{water}");
-    assert!(text.contains("formed by thermal steps alone, no photon cost"), "{text}");
+    assert!(text.contains("formed by thermal steps, no photon cost"), "{text}");
 }
 
 #[test]

@@ -621,7 +621,7 @@ pub(super) fn build_parts(
                 "photon absorption per molecule: its share of the light absorbed in the well-stirred cell at the {} \
              (background and inner filter included)",
                 if settings.concentrations.is_some() {
-                    "concentrations the light line below names"
+                    "concentrations the light is shared at (said with the light)"
                 } else {
                     "initial concentrations"
                 }

@@ -81,7 +81,14 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
         // A molecule that never ends settles as the light lets it; the light is shared by the
         // mixture, which moves while irradiated. Share it at the mixture the kinetics settle
         // to, so the composition is this sample's photostationary state.
-        if let Some(t) = settled(&model)? {
+        let when = settled(&model)?;
+        if when.is_none() {
+            noteln!(
+                "note: the kinetics do not settle within the automatic horizon, so the light is shared as in the \
+                 starting mixture; --at DURATION shares it where the kinetics are by then"
+            );
+        }
+        if let Some(t) = when {
             opts.at = Some(t);
             followed = chain::follow(&model, &net, &opts)?;
             if let Followed::Closed(c) = &mut followed {
@@ -155,15 +162,24 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
     Ok(())
 }
 
-/// When the kinetics of `model` settle (the automatic horizon, `plan::horizon`), None when
-/// nothing is consumed or they are still changing at its cap.
+/// When the kinetics of `model` settle (every concentration within 1 % of where it ends:
+/// `plan::horizon`), None when nothing is consumed or they are still changing at the cap.
 fn settled(model: &Model) -> photoledger::Result<Option<f64>> {
     use photoledger::plan::horizon::{Ended, automatic};
     let h = automatic(model, None)?;
     Ok(match h.ended {
         Ended::Steady(_, t) if t > 0.0 => Some(t),
-        Ended::Reached(_) | Ended::Steady(..) => Some(h.time),
-        Ended::Cap | Ended::NothingConsumed => None,
+        // The default target (99 % of the limiting reagent) was met before the mixture settled
+        // (a switch whose photostationary state lies above 99 %): run on and date the settling.
+        Ended::Reached(t) if t > 0.0 => {
+            let mut o = photoledger::kinetics::Options::until(20.0 * t);
+            o.log_time = true;
+            o.outputs = 400;
+            let tr = photoledger::kinetics::simulate(model, &o, &mut |_| {})?;
+            let s = photoledger::plan::horizon::settled_time(&tr, model.n_species());
+            (s > 0.0 && s < 10.0 * t).then_some(s)
+        }
+        _ => None,
     })
 }
 

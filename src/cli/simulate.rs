@@ -32,7 +32,8 @@ pub struct SimulateArgs {
     #[arg(long, allow_hyphen_values = true, default_value = "1e-12 M")]
     pub atol: String,
     /// Number of output times after the start (2 to 1,000,000); the files hold these and the
-    /// start, equally spaced: --points 3600 over 1 h gives a row every second.
+    /// start, equally spaced (log-spaced with --log-time): --points 3600 over 1 h gives a row
+    /// every second.
     #[arg(long, default_value_t = 200, value_parser = super::values::points, allow_negative_numbers = true)]
     pub points: usize,
     /// Space output times logarithmically (and plot a log time axis).

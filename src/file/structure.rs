@@ -56,12 +56,7 @@ fn diagnostic(path: &Path, text: &str, e: &toml::de::Error) -> Diagnostic {
             // The key is the word before the `=` that precedes the number (also inside an
             // inline table: `epsilon = { at = "365 nm", value = 5000 }`), the value the number.
             let (key, value) = match e.span() {
-                Some(r) => {
-                    let before = &text[..r.start];
-                    let eq = before.rfind('=').unwrap_or(0);
-                    let key = before[..eq].rsplit(['{', ',', '\n']).next().unwrap_or("").trim();
-                    (key, text[r].trim())
-                }
+                Some(_) => key_and_value(text, e.span()),
                 None => l
                     .split_once('=')
                     .map_or((l.as_str(), ""), |(k, v)| (k.trim(), v.trim())),
@@ -94,11 +89,14 @@ fn diagnostic(path: &Path, text: &str, e: &toml::de::Error) -> Diagnostic {
                 _ => (String::new(), format!("not a valid network file here: {msg}")),
             }
         }
-        (Some((n, l)), false) if msg.ends_with("expected struct Rate") => {
-            let value = l
-                .split_once('=')
-                .map_or("", |(_, v)| v.split('#').next().unwrap_or("").trim());
-            (format!("{}rate", entry(text, *n)), rate_is_a_table(value))
+        (Some((n, _)), false) if msg.ends_with("expected struct Rate") => {
+            // The value is the error's span; the key is the word before the `=` that precedes
+            // it (`rate`, `reverse`, a channel's `rate` inside its inline table).
+            let (key, value) = key_and_value(text, e.span());
+            let (table, _) = e
+                .span()
+                .map_or((String::new(), Vec::new()), |r| inline_table(text, r.start));
+            (format!("{}{table}{key}", entry(text, *n)), rate_is_a_table(key, value))
         }
         _ => (String::new(), format!("not a valid network file here: {msg}")),
     };
@@ -150,6 +148,20 @@ fn entry(text: &str, line: usize) -> String {
     }
 }
 
+/// The key and the value of the span `at` of `text`: the value is the span's text, the key the
+/// word before the `=` that precedes it (also inside an inline table: `{ to = "B", rate = 5 }`).
+fn key_and_value(text: &str, at: Option<std::ops::Range<usize>>) -> (&str, &str) {
+    match at {
+        Some(r) if r.end <= text.len() && text.is_char_boundary(r.start) && text.is_char_boundary(r.end) => {
+            let before = &text[..r.start];
+            let eq = before.rfind('=').unwrap_or(0);
+            let key = before[..eq].rsplit(['{', ',', '\n']).next().unwrap_or("").trim();
+            (key, text[r].trim())
+        }
+        _ => ("", ""),
+    }
+}
+
 /// For an offset inside an inline table (`rate = { Ea = "80 kJ/mol", A = "1e10 /s" }`): the
 /// table's key with a dot (`rate.`) and the keys written in it; empty when the offset is in none.
 fn inline_table(text: &str, at: usize) -> (String, Vec<&str>) {
@@ -160,7 +172,7 @@ fn inline_table(text: &str, at: usize) -> (String, Vec<&str>) {
         return (String::new(), Vec::new());
     };
     let table = before[..open].trim_end().trim_end_matches('=').trim();
-    let table = table.rsplit(['{', ',']).next().unwrap_or("").trim();
+    let table = table.rsplit(['{', ',', '[']).next().unwrap_or("").trim();
     let inside = &text[line_start + open + 1..at + close];
     let keys = inside
         .split(',')
@@ -168,11 +180,28 @@ fn inline_table(text: &str, at: usize) -> (String, Vec<&str>) {
         .map(|(k, _)| k.trim())
         .filter(|k| !k.is_empty() && !k.contains(['{', '[', '"']))
         .collect();
-    (format!("{table}."), keys)
+    // a table in an array (`channels = [ { ... } ]` over several lines) has no key of its own
+    let prefix = if table.is_empty() {
+        String::new()
+    } else {
+        format!("{table}.")
+    };
+    (prefix, keys)
 }
 
 /// What chemists often write for a key, and the key the file uses (`common practice` names).
-const ALIASES: [(&str, &str); 16] = [
+const ALIASES: [(&str, &str); 27] = [
+    ("δg", "barrier"),
+    ("δg‡", "barrier"),
+    ("e0", "barrier"),
+    ("e₀", "barrier"),
+    ("δh", "enthalpy"),
+    ("δs", "entropy"),
+    ("κ", "transmission"),
+    ("kappa", "transmission"),
+    ("σ", "degeneracy"),
+    ("sigma", "degeneracy"),
+    ("ε", "epsilon"),
     ("ea", "activation"),
     ("a", "prefactor"),
     ("preexponential", "prefactor"),
@@ -203,7 +232,10 @@ fn unknown_key(unknown: &str, accepted: &[&str]) -> String {
         accepted
             .iter()
             .map(|c| (*c, strsim::jaro_winkler(&lower, &c.to_lowercase())))
-            .filter(|(c, score)| *score >= 0.8 || strsim::levenshtein(&lower, &c.to_lowercase()) <= 2)
+            // a short key is one letter from many (`k`): only a long one is matched by edits
+            .filter(|(c, score)| {
+                *score >= 0.85 || (lower.chars().count() > 3 && strsim::levenshtein(&lower, &c.to_lowercase()) <= 2)
+            })
             .max_by(|a, b| a.1.total_cmp(&b.1))
             .map(|(c, _)| c)
     });
@@ -224,14 +256,15 @@ fn accepted_here(accepted: &[&str]) -> String {
 
 /// The message for a rate written as a single value (`rate = "1 /s"`): a rate is a table that
 /// says how it is given, with the user's value placed where it most likely belongs.
-fn rate_is_a_table(value: &str) -> String {
+fn rate_is_a_table(key: &str, value: &str) -> String {
     let inner = value.trim_matches('"').trim();
+    let key = if key.is_empty() { "rate" } else { key };
     let example = if inner.contains("/mol") || inner.ends_with("mol") || inner.ends_with("eV") {
-        format!("rate = {{ barrier = \"{inner}\" }}")
+        format!("{key} = {{ barrier = \"{inner}\" }}")
     } else if !inner.is_empty() && value.starts_with('"') {
-        format!("rate = {{ k = \"{inner}\" }}")
+        format!("{key} = {{ k = \"{inner}\" }}")
     } else {
-        "rate = { k = \"0.04 /s\" }".to_string()
+        format!("{key} = {{ k = \"0.04 /s\" }}")
     };
     format!(
         "a rate is a table saying how it is given, e.g. {example}; accepted: k (a rate constant, \
@@ -297,6 +330,9 @@ mod tests {
         assert!(super::unknown_key("A", &accepted).contains("did you mean prefactor?"));
         assert!(super::unknown_key("barier", &accepted).contains("did you mean barrier?"));
         assert_eq!(super::unknown_key("colour", &accepted), "no key \"colour\" here");
+        let with_kappa = ["k", "barrier", "transmission"];
+        assert!(super::unknown_key("κ", &with_kappa).contains("did you mean transmission?"));
+        assert_eq!(super::unknown_key("ΔX", &with_kappa), "no key \"ΔX\" here");
         let text = "[about]\nname = \"t\"\n[[thermal]]\nequation = \"A -> B\"\nrate = { Ea = \"80 kJ/mol\", A = \"1e10 /s\" }\n";
         let (_, problems) = read_all(Path::new("t.toml"), text);
         let shown = problems[0].to_string();
@@ -327,6 +363,25 @@ mod tests {
             shown[1]
         );
         assert!(!shown[0].contains("struct Rate"), "{}", shown[0]);
+    }
+
+    #[test]
+    fn a_rate_as_one_value_in_a_channel_or_a_reverse_names_its_own_key() {
+        let text = "[about]\nname = \"t\"\n[[thermal]]\nequation = \"A <=> B\"\nrate = { k = \"1 /s\" }\n\
+                    reverse = \"2 /s\"\n[[transient]]\nname = \"S1\"\nchannels = [ { to = \"B\", rate = \"2.4e8 /s\" } ]\n";
+        let (_, problems) = read_all(Path::new("t.toml"), text);
+        let shown: Vec<String> = problems.iter().map(|p| p.to_string()).collect();
+        assert!(
+            shown
+                .iter()
+                .any(|s| s.contains(".reverse: ") && s.contains("reverse = { k = \"2 /s\" }")),
+            "{shown:?}"
+        );
+        assert!(
+            shown.iter().any(|s| s.contains("rate = { k = \"2.4e8 /s\" }")),
+            "{shown:?}"
+        );
+        assert!(!shown.iter().any(|s| s.contains("k = \"B\"")), "{shown:?}");
     }
 
     #[test]

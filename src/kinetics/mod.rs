@@ -43,9 +43,10 @@ pub struct Event {
 
 /// The most BDF steps one integration may take (diffsol's own default is 5,000, which an
 /// oscillating or long network passes well before its end time). A bound on the work of one run,
-/// not on its length: at microseconds to milliseconds a step it is minutes to hours, with the
-/// progress shown and Ctrl-C honoured; a step size that collapses stops much sooner, at
-/// diffsol's smallest step.
+/// not on its length: at microseconds to milliseconds a step it is minutes to hours (`simulate`
+/// shows its progress; inside a fit, a sample or a plan the same budget applies without one,
+/// and Ctrl-C stops the command); a step size that collapses stops much sooner, at diffsol's
+/// smallest step.
 pub const MAX_STEPS: usize = 20_000_000;
 
 /// How to integrate.

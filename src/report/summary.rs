@@ -145,7 +145,8 @@ pub fn network_summary(net: &Network) -> String {
         };
         // Those with a photochemical step say so.
         let absorbs = match (lit(sp), net.photo.iter().any(|p| p.absorber == i)) {
-            (_, true) => "  absorbs, reacts",
+            (true, true) => "  absorbs, reacts",
+            (false, true) => "  reacts by light, but has no ε under this light",
             (true, false) => "  absorbs (no photochemistry)",
             (false, false) => "",
         };
@@ -345,7 +346,7 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
             "(no light)".to_string()
         } else if a.outcomes.is_empty() {
             format!(
-                "({} % of incident; no photochemistry: an inner filter, every photon it takes ends as heat)",
+                "({} % of incident; no photochemistry: an inner filter, its photons drive no reaction)",
                 sig(100.0 * a.absorbed / p.incident, 3)
             )
         } else {
@@ -433,8 +434,8 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         let heading = if dark {
             "\nformed in the dark by thermal steps (no light reached the sample, so no photon cost)"
         } else {
-            "\nformed by thermal steps alone, no photon cost (fed by no photoproduct, with the other products of \
-             those steps)"
+            "\nformed by thermal steps, no photon cost (co-products: the other products of steps a photoproduct \
+             feeds, and what steps no photoproduct feeds form)"
         };
         let _ = writeln!(o, "{heading}");
         for pr in &p.thermal_products {
