@@ -27,7 +27,9 @@ mod run;
 pub mod sensitivity;
 mod sparse;
 
-pub use run::{ChainOptions, ChainRun, ClosedRun, Followed, follow, light_words, run};
+pub use run::{
+    ChainOptions, ChainRun, ClosedRun, Followed, SAMPLE_STATE, follow, light_words, run, settled_light_words,
+};
 
 use crate::error::{Error, Result};
 use serde::Serialize;

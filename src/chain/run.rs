@@ -172,6 +172,19 @@ fn no_end(net: &Network, stuck: &[&str]) -> Error {
     Error::invalid(d)
 }
 
+/// The end of [`settled_light_words`], by which a closed chain's text knows its light was shared
+/// at the settled mixture.
+pub const SAMPLE_STATE: &str = "this sample's photostationary state";
+
+/// The light of a closed chain shared at the mixture the kinetics settle to by `t` s.
+pub fn settled_light_words(t: f64) -> String {
+    format!(
+        "stirred cell, light shared at the mixture the kinetics settle to (every concentration within 1 % of \
+         where it ends by {}): {SAMPLE_STATE}",
+        crate::units::format_time(t)
+    )
+}
+
 /// The light the chain assumes, in words: the stirred cell's share at which concentrations
 /// (`at`: taken from the kinetics after that many s), or the optically thin limit.
 pub fn light_words(settings: &Settings, at: Option<f64>) -> String {

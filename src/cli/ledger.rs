@@ -25,7 +25,8 @@ pub struct LedgerArgs {
     #[command(flatten)]
     pub output: super::Outputs,
     /// Photon absorption per molecule: "stirred" (its share of the light in the well-stirred
-    /// cell at the initial concentrations) or "thin" (optically thin, needs irradiated_area).
+    /// cell at the initial concentrations, or for a network where no molecule ends at the mixture
+    /// the kinetics settle to) or "thin" (optically thin, needs irradiated_area).
     #[arg(long, default_value = "stirred")]
     pub light: String,
     /// Take the concentrations (for light sharing, linearised bimolecular steps and quenching)
@@ -92,11 +93,7 @@ pub fn run(a: &LedgerArgs) -> photoledger::Result<()> {
             opts.at = Some(t);
             followed = chain::follow(&model, &net, &opts)?;
             if let Followed::Closed(c) = &mut followed {
-                c.light = format!(
-                    "stirred cell, light shared at the mixture the kinetics settle to (every concentration within 1 % \
-                     of where it ends by {}): this sample's photostationary state",
-                    photoledger::units::format_time(t)
-                );
+                c.light = chain::settled_light_words(t);
             }
         }
     }

@@ -198,7 +198,7 @@ pub fn closed_text(s: &ClosedSummary) -> String {
         species.join(", ")
     );
     let at_start = s.light.starts_with("stirred cell, light shared at the initial");
-    let settled = s.light.ends_with("this sample's photostationary state");
+    let settled = s.light.ends_with(crate::chain::SAMPLE_STATE);
     let _ = writeln!(
         o,
         "\n  photostationary composition of one molecule{} (share of the time in each state, %)",
