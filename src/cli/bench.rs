@@ -100,6 +100,7 @@ struct Row {
     rhs: usize,
     jv: usize,
     setups: usize,
+    kept: usize,
     jacobians: usize,
     newton: usize,
     newton_failures: usize,
@@ -120,6 +121,7 @@ impl Row {
             "jacobian_vector_products": self.jv,
             "jacobian_evaluations": self.jacobians,
             "lu_factorisations": self.setups,
+            "lu_kept": self.kept,
             "newton_iterations": self.newton,
             "newton_failures": self.newton_failures,
             "wall_s": self.seconds,
@@ -144,6 +146,7 @@ fn time(name: &str, model: &Model, until: f64, sparse: Option<bool>) -> photoled
         rhs: tr.counts.rhs,
         jv: tr.counts.jacobian_products,
         setups: tr.counts.jacobian_setups,
+        kept: tr.counts.lu_reused,
         jacobians: tr.counts.jacobians,
         newton: tr.counts.newton_iterations,
         newton_failures: tr.counts.newton_failures,
@@ -202,7 +205,7 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
         return super::print_json(&serde_json::json!({ "until_s": until, "runs": runs }));
     }
     outln!(
-        "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>8} {:>7} {:>10}",
+        "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>6} {:>8} {:>7} {:>10}",
         "network",
         "species",
         "reactions",
@@ -213,13 +216,14 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
         "J·v",
         "J",
         "LU",
+        "kept",
         "Newton",
         "failed",
         "wall (s)"
     )?;
     for r in rows {
         outln!(
-            "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>8} {:>7} {:>10.3}",
+            "{:<36} {:>8} {:>9} {:>6} {:<11} {:>7} {:>8} {:>8} {:>7} {:>7} {:>6} {:>8} {:>7} {:>10.3}",
             r.name,
             r.species,
             r.reactions,
@@ -230,6 +234,7 @@ pub fn run(a: &BenchArgs) -> photoledger::Result<()> {
             r.jv,
             r.jacobians,
             r.setups,
+            r.kept,
             r.newton,
             r.newton_failures,
             r.seconds

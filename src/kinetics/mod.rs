@@ -12,6 +12,7 @@
 pub mod check;
 mod equations;
 pub mod ledger;
+pub mod lu_reuse;
 pub mod sensitivity;
 mod solve_bdf;
 mod solve_dop;
@@ -178,6 +179,9 @@ pub struct Counts {
     pub jacobian_setups: usize,
     /// Analytic Jacobian evaluations (BDF).
     pub jacobians: usize,
+    /// Iteration matrices answered with the factors of an earlier one and a scaled Newton
+    /// correction instead of a factorisation (sparse BDF; `lu_reuse`).
+    pub lu_reused: usize,
     /// Rejected steps.
     pub rejected: usize,
     /// Newton iterations (BDF), each one linear solve with the iteration matrix.
@@ -557,6 +561,7 @@ impl Run {
         self.sparse |= run.sparse;
         self.counts.steps += run.counts.steps;
         self.counts.jacobian_setups += run.counts.jacobian_setups;
+        self.counts.lu_reused += run.counts.lu_reused;
         self.counts.jacobians += run.counts.jacobians;
         self.counts.rejected += run.counts.rejected;
         self.counts.newton_iterations += run.counts.newton_iterations;

@@ -1,12 +1,12 @@
 //! The stiff path: diffsol's BDF with the model's analytic Jacobian ([`Equations`]).
 
 use super::equations::Equations;
-use super::sparse_lu::SparseLu;
+use super::sparse_lu::{SparseLu, Tally};
 use super::{Counts, Options, Run, Stop};
 use crate::error::{Error, Result};
 use crate::model::jacobian::Jacobian;
 use crate::model::rhs::Rhs;
-use diffsol::{FaerSparseMat, NalgebraLU, NalgebraMat, OdeBuilder, OdeSolverMethod, OdeSolverStopReason, Vector};
+use diffsol::{Bdf, FaerSparseMat, NalgebraLU, NalgebraMat, OdeBuilder, OdeSolverMethod, OdeSolverStopReason, Vector};
 
 /// Integrate through `times` (local, from 0), stopping at the first output at which `enough`
 /// (local time, state) says true.
@@ -79,8 +79,9 @@ pub(super) fn run(
             }
         }
     };
+    let tally = std::rc::Rc::new(std::cell::Cell::new(Tally::default()));
     macro_rules! go {
-        ($m:ty, $ls:ty) => {{
+        ($m:ty, $lt:ty, $ls:expr) => {{
             let eqn = Equations::<$m>::new(rhs, &jac, y0, event);
             let mut problem = OdeBuilder::<$m>::new()
                 .rtol(opts.rtol)
@@ -88,7 +89,9 @@ pub(super) fn run(
                 .build_from_eqn(eqn)
                 .map_err(fail)?;
             problem.ode_options.max_number_timesteps = super::MAX_STEPS;
-            let mut solver = problem.bdf::<$ls>().map_err(fail)?;
+            let ls = $ls;
+            let state = problem.bdf_state::<$lt>().map_err(fail)?;
+            let mut solver: Bdf<'_, _, $lt> = Bdf::new(&problem, state, ls).map_err(fail)?;
             solver.set_stop_time(opts.until).map_err(fail)?;
             let cell = std::cell::RefCell::new(solver);
             let mut step = || {
@@ -111,9 +114,13 @@ pub(super) fn run(
         }};
     }
     if sparse {
-        go!(FaerSparseMat<f64>, SparseLu)
+        go!(FaerSparseMat<f64>, SparseLu, SparseLu::counted(tally.clone()));
+        // diffsol counts the matrices it asked for; the factorisations are the solver's
+        let t = tally.get();
+        out.counts.jacobian_setups = t.factorisations;
+        out.counts.lu_reused = t.reused;
     } else {
-        go!(NalgebraMat<f64>, NalgebraLU<f64>)
+        go!(NalgebraMat<f64>, NalgebraLU<f64>, NalgebraLU::<f64>::default())
     }
     out.counts.jacobians = jac.evaluations.get();
     Ok(out)

@@ -12,6 +12,7 @@
 //! shortens its step instead of the program stopping or iterating on NaN
 //! (`tests/singular_iteration_matrix.rs`).
 
+use super::lu_reuse;
 use diffsol::{FaerSparseMat, FaerVec, Matrix, Vector};
 use diffsol_la::{LaError, LinearOp, LinearSolver, MatrixCommon};
 use faer::dyn_stack::{MemBuffer, MemStack};
@@ -76,6 +77,20 @@ pub struct SparseLu {
     ok: bool,
     /// Numeric factorisations done.
     pub factorisations: usize,
+    /// Kept factors: see [`lu_reuse`].
+    reuse: lu_reuse::Reuse,
+    /// Factorisations and reuses, shared with whoever made this solver (the integrator's
+    /// counts), since diffsol owns the solver once it is handed over.
+    tally: std::rc::Rc<std::cell::Cell<Tally>>,
+}
+
+/// What the iteration-matrix solver did with the matrices it was given.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct Tally {
+    /// Numeric factorisations.
+    pub factorisations: usize,
+    /// Matrices answered with kept factors and a scaled correction instead.
+    pub reused: usize,
 }
 
 impl Default for SparseLu {
@@ -95,6 +110,17 @@ impl SparseLu {
             solve_scratch: RefCell::new(MemBuffer::new(faer::dyn_stack::StackReq::EMPTY)),
             ok: false,
             factorisations: 0,
+            reuse: lu_reuse::Reuse::default(),
+            tally: Default::default(),
+        }
+    }
+
+    /// An LU with the integrator's ordering whose factorisations and reuses are also counted in
+    /// `tally`.
+    pub fn counted(tally: std::rc::Rc<std::cell::Cell<Tally>>) -> Self {
+        SparseLu {
+            tally,
+            ..SparseLu::new(ORDERING)
         }
     }
 
@@ -231,7 +257,17 @@ impl LinearSolver<FaerSparseMat<f64>> for SparseLu {
             return;
         };
         op.matrix_inplace(&mut a);
-        self.factor(a.inner()[0].as_ref());
+        let mut tally = self.tally.get();
+        let values = a.inner()[0].val();
+        if self.ok && self.reuse.keep(values) {
+            tally.reused += 1;
+        } else if self.factor(a.inner()[0].as_ref()) {
+            tally.factorisations += 1;
+            self.reuse.factored(a.inner()[0].val());
+        } else {
+            tally.factorisations += 1;
+        }
+        self.tally.set(tally);
         self.a = Some(a);
     }
 
@@ -242,6 +278,7 @@ impl LinearSolver<FaerSparseMat<f64>> for SparseLu {
         let n = op.ncols();
         let pattern: SymbolicSparseColMat<usize> = op.sparsity().expect("a sparse matrix has a pattern");
         let a = FaerSparseMat::new_from_sparsity(op.nrows(), n, Some(pattern), *op.context());
+        self.reuse = lu_reuse::Reuse::for_pattern(a.inner()[0].symbolic());
         let analysed = self.analyse(a.inner()[0].symbolic());
         self.a = Some(a);
         if analysed.is_err() {
@@ -251,8 +288,13 @@ impl LinearSolver<FaerSparseMat<f64>> for SparseLu {
 
     fn solve_in_place(&self, x: &mut FaerVec<f64>) -> Result<(), LaError> {
         let m = x.inner_mut();
+        let scale = self.reuse.correction();
         for j in 0..m.ncols() {
-            self.solve(m.as_mut().col_mut(j).as_mat_mut()).map_err(LaError::Other)?;
+            let mut col = m.as_mut().col_mut(j);
+            self.solve(col.rb_mut().as_mat_mut()).map_err(LaError::Other)?;
+            if scale != 1.0 {
+                col.iter_mut().for_each(|v| *v *= scale);
+            }
         }
         Ok(())
     }

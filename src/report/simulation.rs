@@ -223,6 +223,8 @@ pub struct MethodSummary {
     pub jacobian_products: usize,
     /// Iteration-matrix (LU) factorisations.
     pub jacobian_setups: usize,
+    /// Iteration matrices answered with kept factors and a scaled Newton correction.
+    pub lu_kept: usize,
     /// Analytic Jacobian evaluations.
     pub jacobian_evaluations: usize,
     /// Relative and absolute tolerances.
@@ -287,6 +289,7 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
             rhs_evaluations: tr.counts.rhs,
             jacobian_products: tr.counts.jacobian_products,
             jacobian_setups: tr.counts.jacobian_setups,
+            lu_kept: tr.counts.lu_reused,
             jacobian_evaluations: tr.counts.jacobians,
             // a retry's tighter tolerances when there was one (`retries` says why)
             rtol: tr.retries.last().map_or(rtol, |r| r.rtol),

@@ -450,7 +450,7 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
     let m = &s.method;
     let _ = writeln!(
         o,
-        "\nintegrator  {} — {}; {} steps ({} rejected), {} RHS evaluations, {} Jacobian evaluations, {} LU factorisations, {} Jacobian-vector products",
+        "\nintegrator  {} — {}; {} steps ({} rejected), {} RHS evaluations, {} Jacobian evaluations, {} LU factorisations{}, {} Jacobian-vector products",
         segments_text(&m.segments),
         m.reason,
         m.steps,
@@ -458,6 +458,11 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         m.rhs_evaluations,
         m.jacobian_evaluations,
         m.jacobian_setups,
+        if m.lu_kept > 0 {
+            format!(" (and {} step-size changes met with kept factors)", m.lu_kept)
+        } else {
+            String::new()
+        },
         m.jacobian_products
     );
     if let Some(line) = s.floored.line() {
