@@ -150,6 +150,9 @@ pub fn run(a: &SimulateArgs) -> photoledger::Result<Exit> {
     for r in &tr.retries {
         noteln!("note: the kinetics were {r}");
     }
+    for r in &tr.regrowth {
+        noteln!("note: {r}");
+    }
     // A stop condition is a target: not met by --until is the answer "not reached" (exit 5).
     let missed = a.stop_when.as_deref().filter(|_| matches!(tr.stop, Stop::EndTime));
     if a.output.json {

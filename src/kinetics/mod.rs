@@ -13,6 +13,7 @@ pub mod check;
 mod equations;
 pub mod ledger;
 pub mod lu_reuse;
+pub mod regrowth;
 pub mod sensitivity;
 mod solve_bdf;
 mod solve_dop;
@@ -231,6 +232,9 @@ pub struct Trajectory {
     /// photon count below zero beyond the tolerance ([`check`]), first to last; empty when the
     /// first run was sound.
     pub retries: Vec<check::Retry>,
+    /// Self-made species that grew back from within the absolute tolerance of zero
+    /// ([`regrowth`]): the course after that is not resolved by the run.
+    pub regrowth: Vec<regrowth::Regrowth>,
     /// The light schedule the run followed (None: light on throughout).
     pub schedule: Option<Schedule>,
     /// The absolute tolerance the run was integrated to, mol/L (a retry's when there was one):
@@ -366,6 +370,7 @@ pub fn simulate_watching(
         |tr| check::worst(model, &tr.layout, &tr.times, &tr.states, opts.rtol, opts.atol),
     )?;
     tr.retries = retries;
+    tr.regrowth = regrowth::find(model, &tr.times, &tr.states, tr.atol);
     Ok(tr)
 }
 
@@ -529,6 +534,7 @@ fn simulate_once(
         counts: run.counts,
         stop: run.stop,
         retries: Vec::new(),
+        regrowth: Vec::new(),
         schedule: opts.schedule,
         atol: opts.atol,
     })

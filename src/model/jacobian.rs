@@ -242,14 +242,17 @@ impl Jacobian {
             row.clear();
             for &sj in &blk.cols {
                 let mut term = r.k;
-                for &(si, nu) in &r.reactants {
+                let mut floored = false;
+                for (p, &(si, nu)) in r.reactants.iter().enumerate() {
                     if si != sj {
-                        term *= c[si].powi(nu as i32);
+                        term *= r.seen(p, c[si]).powi(nu as i32);
+                    } else if r.autocatalytic[p] && c[si] < 0.0 {
+                        floored = true; // an autocatalyst below zero counts as zero: no slope
                     }
                 }
                 let nuj: u32 = r.reactants.iter().filter(|x| x.0 == sj).map(|x| x.1).sum();
                 term *= nuj as f64 * c[sj].powi(nuj as i32 - 1);
-                row.push(term);
+                row.push(if floored { 0.0 } else { term });
             }
             scatter(blk, row, values);
         }

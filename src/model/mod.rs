@@ -32,6 +32,25 @@ pub struct Reaction {
     pub net: Vec<(usize, f64)>,
     /// Rate constant at the model temperature, (L/mol)^(n−1) s⁻¹.
     pub k: f64,
+    /// For each reactant: true when the step forms more of it than it uses (an autocatalyst of
+    /// this step). Its value below zero, an integrator's undershoot, counts as zero in this
+    /// rate ([`Reaction::seen`]).
+    pub autocatalytic: Vec<bool>,
+}
+
+impl Reaction {
+    /// The concentration (mol/L) reactant `p` enters the rate with: `c` itself, or zero for an
+    /// autocatalyst below zero. Without this floor a negative undershoot of an autocatalyst runs
+    /// its own formation backwards (X + Y -> 2Y at Y < 0 makes Y more negative and X more
+    /// positive, faster the further it goes): a run whose autocatalyst passes within the
+    /// tolerance of zero ran away to ±10¹¹ M and stopped (`tests/long_runs.rs`). Its other
+    /// steps (a decay Y -> P) still pull an undershoot back to zero, and every step's flux is
+    /// taken from and given to its species by its stoichiometry, so what a step conserves stays
+    /// conserved. A NaN stays NaN.
+    #[inline]
+    pub fn seen(&self, p: usize, c: f64) -> f64 {
+        if self.autocatalytic[p] && c < 0.0 { 0.0 } else { c }
+    }
 }
 
 /// Photons of one wavelength from one source.
@@ -132,11 +151,17 @@ impl Model {
                     add(p.species, p.coefficient);
                 }
                 net_change.retain(|x| x.1 != 0.0);
+                let autocatalytic = t
+                    .reactants
+                    .iter()
+                    .map(|r| net_change.iter().any(|&(i, v)| i == r.species && v > 0.0))
+                    .collect();
                 Reaction {
                     name: t.name.clone(),
                     reactants: t.reactants.iter().map(|r| (r.species, r.coefficient as u32)).collect(),
                     net: net_change,
                     k: t.k,
+                    autocatalytic,
                 }
             })
             .collect();

@@ -249,10 +249,13 @@ impl<'m> Rhs<'m> {
             // d(k Π c^ν) = Σ_j k ν_j c_j^(ν_j−1) Π_{i≠j} c_i^ν_i dc_j
             let mut drate = 0.0;
             for (j, &(sj, nuj)) in r.reactants.iter().enumerate() {
+                if r.autocatalytic[j] && c[sj] < 0.0 {
+                    continue; // an autocatalyst below zero: counted as zero, no slope
+                }
                 let mut term = r.k * nuj as f64 * c[sj].powi(nuj as i32 - 1);
                 for (i, &(si, nui)) in r.reactants.iter().enumerate() {
                     if i != j {
-                        term *= c[si].powi(nui as i32);
+                        term *= r.seen(i, c[si]).powi(nui as i32);
                     }
                 }
                 drate += term * dc[sj];
@@ -332,6 +335,8 @@ pub(super) struct FlatThermal {
     r_start: Vec<usize>,
     r_idx: Vec<usize>,
     r_nu: Vec<u32>,
+    /// Whether each reactant is an autocatalyst of its step (`Reaction::autocatalytic`).
+    r_auto: Vec<bool>,
     n_start: Vec<usize>,
     n_idx: Vec<usize>,
     n_coef: Vec<f64>,
@@ -344,15 +349,17 @@ impl FlatThermal {
             r_start: vec![0],
             r_idx: Vec::new(),
             r_nu: Vec::new(),
+            r_auto: Vec::new(),
             n_start: vec![0],
             n_idx: Vec::new(),
             n_coef: Vec::new(),
         };
         for r in reactions {
             f.k.push(r.k);
-            for &(i, nu) in &r.reactants {
+            for (p, &(i, nu)) in r.reactants.iter().enumerate() {
                 f.r_idx.push(i);
                 f.r_nu.push(nu);
+                f.r_auto.push(r.autocatalytic[p]);
             }
             f.r_start.push(f.r_idx.len());
             for &(i, v) in &r.net {
@@ -370,6 +377,8 @@ impl FlatThermal {
             let mut rate = k;
             for p in self.r_start[j]..self.r_start[j + 1] {
                 let ci = c[self.r_idx[p]];
+                // as `Reaction::seen`: an autocatalyst below zero counts as zero
+                let ci = if self.r_auto[p] && ci < 0.0 { 0.0 } else { ci };
                 // powi(1) and powi(2) are exactly c and c·c; the call is the cost
                 rate *= match self.r_nu[p] {
                     1 => ci,

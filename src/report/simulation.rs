@@ -109,6 +109,9 @@ pub struct Summary {
     /// Runs repeated with tighter tolerances because the one before gave a concentration or
     /// photon count below zero beyond the tolerance (`kinetics::check`), first to last.
     pub retries: Vec<RetrySummary>,
+    /// Species formed only where they already are that fell to within the absolute tolerance
+    /// of zero and grew back (`kinetics::regrowth`): the course after that is not resolved.
+    pub unresolved_regrowth: Vec<RegrowthSummary>,
     /// What the floors took as zero (`model::floor`): lights under the light floor, thermal
     /// steps under the rate floor.
     pub floored: FlooredSummary,
@@ -132,6 +135,23 @@ pub struct RetrySummary {
     pub atol: f64,
     /// What the run before gave, in words.
     pub because: String,
+}
+
+/// A self-made species that grew back from within the tolerance of zero.
+#[derive(Debug, Serialize)]
+pub struct RegrowthSummary {
+    /// The species.
+    pub species: String,
+    /// When it was lowest, s.
+    pub low_time_s: f64,
+    /// Its lowest value, mol/L.
+    pub low_mol_per_l: f64,
+    /// When it was back above a thousand times the absolute tolerance, s.
+    pub regrown_time_s: f64,
+    /// Its value then, mol/L.
+    pub regrown_mol_per_l: f64,
+    /// What it means and what to do, in words.
+    pub says: String,
 }
 
 /// Lights and thermal steps taken as zero because they are under their floors.
@@ -306,6 +326,18 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
                 rtol: r.rtol,
                 atol: r.atol,
                 because: r.because.to_string(),
+            })
+            .collect(),
+        unresolved_regrowth: tr
+            .regrowth
+            .iter()
+            .map(|r| RegrowthSummary {
+                species: r.species.clone(),
+                low_time_s: r.low_time,
+                low_mol_per_l: r.low,
+                regrown_time_s: r.high_time,
+                regrown_mol_per_l: r.high,
+                says: r.to_string(),
             })
             .collect(),
         floored: FlooredSummary::of(model),
