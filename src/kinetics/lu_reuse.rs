@@ -32,8 +32,10 @@ pub struct Reuse {
     identity: Vec<f64>,
     /// The values of the factored matrix.
     factored: Vec<f64>,
-    /// The values last asked for.
-    last: Vec<f64>,
+    /// The entry of the factored matrix farthest from the identity, where γ ratios are read.
+    pivot: Option<usize>,
+    /// The ratio of the last request answered with kept factors, None after a factorisation.
+    last_kept: Option<f64>,
     /// Scale of each solve: 2/(1 + r), 1 when the factors are the latest matrix's.
     scale: f64,
 }
@@ -52,9 +54,8 @@ impl Reuse {
         }
         Reuse {
             identity,
-            factored: Vec::new(),
-            last: Vec::new(),
             scale: 1.0,
+            ..Default::default()
         }
     }
 
@@ -62,7 +63,8 @@ impl Reuse {
     pub fn factored(&mut self, values: &[f64]) {
         self.factored.clear();
         self.factored.extend_from_slice(values);
-        self.last.clone_from(&self.factored);
+        self.pivot = farthest_from_identity(&self.factored, &self.identity);
+        self.last_kept = None;
         self.scale = 1.0;
     }
 
@@ -72,18 +74,23 @@ impl Reuse {
         if self.factored.len() != values.len() || values.len() != self.identity.len() {
             return false;
         }
-        if values == self.last.as_slice() {
+        let Some(r) = gamma_ratio(&self.factored, values, &self.identity, self.pivot) else {
+            return false;
+        };
+        if r == 1.0 {
+            // the factored matrix itself
+            self.scale = 1.0;
+            self.last_kept = None;
+            return true;
+        }
+        if self.last_kept == Some(r) || !(1.0 / RATIO..=RATIO).contains(&r) {
+            // asked again after the kept factors were tried (the Newton iteration failed), or
+            // too far
             return false;
         }
-        self.last.clear();
-        self.last.extend_from_slice(values);
-        match gamma_ratio(&self.factored, values, &self.identity) {
-            Some(r) if (1.0 / RATIO..=RATIO).contains(&r) => {
-                self.scale = 2.0 / (1.0 + r);
-                true
-            }
-            _ => false,
-        }
+        self.last_kept = Some(r);
+        self.scale = 2.0 / (1.0 + r);
+        true
     }
 
     /// The factor each solve with the kept factors is multiplied by.
@@ -92,17 +99,23 @@ impl Reuse {
     }
 }
 
-/// r with `new` − I = r (`old` − I) entry by entry to round-off, when there is one: the ratio of
-/// the γ of two iteration matrices I − γJ with the same J. None when the Jacobians differ.
-pub fn gamma_ratio(old: &[f64], new: &[f64], identity: &[f64]) -> Option<f64> {
+/// The entry of `values` farthest from the identity (None when there is none off it).
+fn farthest_from_identity(values: &[f64], identity: &[f64]) -> Option<usize> {
     let (mut big, mut at) = (0.0f64, None);
-    for (k, (&o, &d)) in old.iter().zip(identity).enumerate() {
+    for (k, (&o, &d)) in values.iter().zip(identity).enumerate() {
         let m = (o - d).abs();
         if m > big {
             (big, at) = (m, Some(k));
         }
     }
-    let Some(k) = at else {
+    at
+}
+
+/// r with `new` − I = r (`old` − I) entry by entry to round-off, when there is one: the ratio of
+/// the γ of two iteration matrices I − γJ with the same J, read at `pivot` (the entry of `old`
+/// farthest from the identity, [`farthest_from_identity`]). None when the Jacobians differ.
+pub fn gamma_ratio(old: &[f64], new: &[f64], identity: &[f64], pivot: Option<usize>) -> Option<f64> {
+    let Some(k) = pivot else {
         // J = 0 in both (or nothing but the identity): any γ gives the same matrix.
         return new.iter().zip(identity).all(|(n, d)| n == d).then_some(1.0);
     };
@@ -139,7 +152,7 @@ mod tests {
         let (p, old) = matrix(0.01, &J);
         let (_, new) = matrix(0.0125, &J);
         let r = Reuse::for_pattern(p.as_ref());
-        let got = gamma_ratio(&old, &new, &r.identity).unwrap();
+        let got = gamma_ratio(&old, &new, &r.identity, farthest_from_identity(&old, &r.identity)).unwrap();
         assert!((got - 1.25).abs() < 1e-14, "{got}");
     }
 
@@ -150,12 +163,18 @@ mod tests {
         j2[3] *= 1.0 + 1e-9;
         let (_, new) = matrix(0.01, &j2);
         let r = Reuse::for_pattern(p.as_ref());
-        assert_eq!(gamma_ratio(&old, &new, &r.identity), None);
+        assert_eq!(
+            gamma_ratio(&old, &new, &r.identity, farthest_from_identity(&old, &r.identity)),
+            None
+        );
         // a tiny diagonal entry lost in 1 − γJ does not hide a real change elsewhere
         let mut j3 = J;
         j3[2] = 0.0;
         let (_, new) = matrix(0.011, &j3);
-        assert!(gamma_ratio(&old, &new, &r.identity).is_some_and(|x| (x - 1.1).abs() < 1e-12));
+        assert!(
+            gamma_ratio(&old, &new, &r.identity, farthest_from_identity(&old, &r.identity))
+                .is_some_and(|x| (x - 1.1).abs() < 1e-12)
+        );
     }
 
     #[test]
@@ -169,6 +188,9 @@ mod tests {
         // the same request again: the Newton iteration failed with the kept factors
         assert!(!r.keep(&near));
         r.factored(&near);
+        assert_eq!(r.correction(), 1.0);
+        // the factored matrix itself: nothing to do, no correction, and again
+        assert!(r.keep(&near) && r.keep(&near));
         assert_eq!(r.correction(), 1.0);
         let (_, far) = matrix(0.0125 * 2.01, &J);
         assert!(!r.keep(&far));
