@@ -162,6 +162,9 @@ pub fn run_section(study: &Study, meta: &Meta) -> String {
             esc(&r.to_string())
         ));
     }
+    for r in &tr.regrowth {
+        s.push_str(&format!("<li class=\"caution\">{}.</li>\n", esc(&r.to_string())));
+    }
     s.push_str(&format!(
         "<li>Reproduce this page with: <code>{}</code></li>\n</ul>\n",
         esc(&meta.command_line)
