@@ -10,7 +10,8 @@
 use crate::model::Model;
 use crate::units::display::{format_concentration, format_time};
 
-/// How far above the absolute tolerance a species must grow back to be reported.
+/// How far above the absolute tolerance a species must grow back to be reported (common
+/// practice: three orders of magnitude is well clear of round-off).
 pub const REGROWN: f64 = 1e3;
 
 /// A species that grew back from within the tolerance of zero.
@@ -36,8 +37,8 @@ impl std::fmt::Display for Regrowth {
             f,
             "{} fell to within the absolute tolerance ({}) of zero at {} and grew back by itself to {} at {}: \
              it is formed only where it already is, so when it came back, and what it used up after that, \
-             rests on values the run did not resolve; run again with --atol well below {} before trusting \
-             the course after {}",
+             rests on values the run did not resolve; integrate again with a smaller absolute tolerance \
+             (simulate --atol, well below {}) before trusting the course after {}",
             self.species,
             format_concentration(self.atol),
             format_time(self.low_time),

@@ -281,6 +281,9 @@ impl Jacobian {
                         (Some(_), None) => (0.0, None),
                         (None, _) => (1.0, None),
                     };
+                    // a photo-autocatalyst below zero has no rate (`Rhs::eval`): a zero row
+                    let floored = rhs.outcome_forms_absorber[o] && c[sp] < 0.0;
+                    let mult = if floored { 0.0 } else { mult };
                     let w = &rhs.outcome_weights[o * nb..(o + 1) * nb];
                     let taken = super::rhs::dot(w, g);
                     let scale = c[sp] * mult / v;
@@ -288,7 +291,7 @@ impl Jacobian {
                         u[(k, b)] = w[b] * dg[b] * scale;
                     }
                     own = taken * mult / v;
-                    if via.is_some() {
+                    if via.is_some() && !floored {
                         qf = taken * c[sp] / v;
                     }
                 }

@@ -88,6 +88,10 @@ pub struct Rhs<'m> {
     pub(super) thermal: FlatThermal,
     /// Runs of consecutive bins from one source: (source, bin range).
     pub(super) source_runs: Vec<(usize, std::ops::Range<usize>)>,
+    /// For each photochemical outcome: true when it forms more of its own absorber than it
+    /// uses (a photo-autocatalyst), whose value below zero then counts as zero in its rate,
+    /// as [`super::Reaction::seen`] does for a thermal step.
+    pub(super) outcome_forms_absorber: Vec<bool>,
     /// Number of right-hand-side evaluations.
     pub rhs_calls: Cell<usize>,
     /// Number of Jacobian-vector products.
@@ -123,10 +127,16 @@ impl<'m> Rhs<'m> {
                 _ => source_runs.push((bin.source, b..b + 1)),
             }
         }
+        let outcome_forms_absorber = model
+            .outcomes
+            .iter()
+            .map(|o| o.net.iter().any(|&(i, v)| i == model.absorbers[o.slot] && v > 0.0))
+            .collect();
         Rhs {
             model,
             layout,
             source_runs,
+            outcome_forms_absorber,
             thermal: FlatThermal::new(&model.reactions),
             work: RefCell::new(Work {
                 a: vec![0.0; nb],
@@ -226,6 +236,9 @@ impl<'m> Rhs<'m> {
             if mult == 0.0 {
                 continue;
             }
+            if self.outcome_forms_absorber[o] && c[sp] < 0.0 {
+                continue; // a photo-autocatalyst below zero: no rate (the absorbed count stays)
+            }
             let taken = dot(&self.outcome_weights[o * nb..(o + 1) * nb], gs);
             let rate = taken * c[sp] * mult / v; // mol L⁻¹ s⁻¹
             dy[lay.outcome(o)] += rate;
@@ -294,6 +307,9 @@ impl<'m> Rhs<'m> {
         let collapsed = self.collapse(c, &mut cache);
         for (o, outc) in m.outcomes.iter().enumerate() {
             let sp = m.absorbers[outc.slot];
+            if self.outcome_forms_absorber[o] && c[sp] < 0.0 {
+                continue; // floored at zero: no rate, no slope
+            }
             let (mult, dmult) = match (outc.via, collapsed) {
                 (Some((t, e)), Some(col)) => {
                     let dm: f64 = quenchers

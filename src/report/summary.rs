@@ -459,7 +459,7 @@ pub fn run_summary(s: &crate::report::simulation::Summary) -> String {
         m.jacobian_evaluations,
         m.jacobian_setups,
         if m.lu_kept > 0 {
-            format!(" (and {} step-size changes met with kept factors)", m.lu_kept)
+            format!(" ({} more iteration matrices solved with earlier factors)", m.lu_kept)
         } else {
             String::new()
         },
