@@ -12,6 +12,7 @@
 //! which is recomputed as quencher concentrations change.
 
 pub mod absorption;
+mod flat_thermal;
 pub mod floor;
 pub mod jacobian;
 pub mod lineage;

@@ -18,6 +18,7 @@
 
 use super::Model;
 use super::absorption::g_dg_transmitted;
+use super::flat_thermal::FlatThermal;
 use super::transients::CollapseWork;
 use std::cell::{Cell, RefCell};
 
@@ -137,7 +138,7 @@ impl<'m> Rhs<'m> {
             layout,
             source_runs,
             outcome_forms_absorber,
-            thermal: FlatThermal::new(&model.reactions),
+            thermal: FlatThermal::new(&model.reactions, model.n_species()),
             work: RefCell::new(Work {
                 a: vec![0.0; nb],
                 g: vec![0.0; nb],
@@ -336,74 +337,6 @@ impl<'m> Rhs<'m> {
             out[lay.outcome(o)] += drate;
             for &(i, k) in &outc.net {
                 out[i] += k * drate;
-            }
-        }
-    }
-}
-
-/// The thermal reactions as flat arrays: reaction j has its reactants at positions
-/// `r_start[j]..r_start[j+1]` of `r_idx` (orders in `r_nu`) and its changes likewise in
-/// `n_idx`/`n_coef` over `n_start`. One pass over
-/// contiguous memory instead of two small heap vectors per reaction (the loop that dominated
-/// the right-hand side of a network with thousands of steps).
-pub(super) struct FlatThermal {
-    k: Vec<f64>,
-    r_start: Vec<usize>,
-    r_idx: Vec<usize>,
-    r_nu: Vec<u32>,
-    /// Whether each reactant is an autocatalyst of its step (`Reaction::autocatalytic`).
-    r_auto: Vec<bool>,
-    n_start: Vec<usize>,
-    n_idx: Vec<usize>,
-    n_coef: Vec<f64>,
-}
-
-impl FlatThermal {
-    fn new(reactions: &[super::Reaction]) -> Self {
-        let mut f = FlatThermal {
-            k: Vec::with_capacity(reactions.len()),
-            r_start: vec![0],
-            r_idx: Vec::new(),
-            r_nu: Vec::new(),
-            r_auto: Vec::new(),
-            n_start: vec![0],
-            n_idx: Vec::new(),
-            n_coef: Vec::new(),
-        };
-        for r in reactions {
-            f.k.push(r.k);
-            for (p, &(i, nu)) in r.reactants.iter().enumerate() {
-                f.r_idx.push(i);
-                f.r_nu.push(nu);
-                f.r_auto.push(r.autocatalytic[p]);
-            }
-            f.r_start.push(f.r_idx.len());
-            for &(i, v) in &r.net {
-                f.n_idx.push(i);
-                f.n_coef.push(v);
-            }
-            f.n_start.push(f.n_idx.len());
-        }
-        f
-    }
-
-    /// Add every reaction's net change × rate (k Π c^ν, mol L⁻¹ s⁻¹) to `dy`.
-    fn add_rates(&self, c: &[f64], dy: &mut [f64]) {
-        for (j, &k) in self.k.iter().enumerate() {
-            let mut rate = k;
-            for p in self.r_start[j]..self.r_start[j + 1] {
-                let ci = c[self.r_idx[p]];
-                // as `Reaction::seen`: an autocatalyst below zero counts as zero
-                let ci = if self.r_auto[p] && ci < 0.0 { 0.0 } else { ci };
-                // powi(1) and powi(2) are exactly c and c·c; the call is the cost
-                rate *= match self.r_nu[p] {
-                    1 => ci,
-                    2 => ci * ci,
-                    nu => ci.powi(nu as i32),
-                };
-            }
-            for p in self.n_start[j]..self.n_start[j + 1] {
-                dy[self.n_idx[p]] += self.n_coef[p] * rate;
             }
         }
     }
