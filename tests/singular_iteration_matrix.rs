@@ -2,8 +2,9 @@
 //! its step), never as a panic and never as a solution full of infinities or NaN. Checked for
 //! every ordering `SparseLu` offers, on a matrix that is singular by a column of zeros
 //! and on one that is singular by value (two equal columns). (`SparseLu::solve` is what its
-//! diffsol `LinearSolver::solve_in_place` calls; an error there makes diffsol count a failed
-//! Newton iteration and shorten the step.)
+//! diffsol `LinearSolver::solve_in_place` calls for the coupled block, the lone columns then
+//! following by block forward substitution with the same finite check; an error there makes
+//! diffsol count a failed Newton iteration and shorten the step.)
 
 use faer::sparse::{SparseColMat, Triplet};
 use photoledger::kinetics::sparse_lu::{Ordering, SparseLu};

@@ -12,6 +12,7 @@
 pub mod check;
 mod equations;
 pub mod ledger;
+pub mod lone_columns;
 pub mod lu_reuse;
 pub mod regrowth;
 pub mod sensitivity;

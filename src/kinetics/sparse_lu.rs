@@ -1,5 +1,9 @@
 //! Sparse LU of the BDF iteration matrix I − γJ (faer), with the fill-reducing ordering chosen
-//! once per sparsity pattern and the factorisation and solve scratch made once.
+//! once per sparsity pattern and the factorisation and solve scratch made once. As the
+//! integrator's linear solver it factors only the coupled block and finishes the columns that
+//! hold just their diagonal (the photon ledger's) by block forward substitution
+//! ([`super::lone_columns`]); `analyse`, `factor` and `solve` work on whatever matrix they are
+//! given.
 //!
 //! faer offers, for a square unsymmetric matrix, COLAMD on the columns (its `factorize_symbolic_lu`,
 //! with a simplicial or a supernodal numeric factorisation, chosen by a flop-per-entry estimate or
@@ -12,6 +16,7 @@
 //! shortens its step instead of the program stopping or iterating on NaN
 //! (`tests/singular_iteration_matrix.rs`).
 
+use super::lone_columns::{LoneColumns, Parts};
 use super::lu_reuse;
 use diffsol::{FaerSparseMat, FaerVec, Matrix, Vector};
 use diffsol_la::{LaError, LinearOp, LinearSolver, MatrixCommon};
@@ -82,6 +87,13 @@ pub struct SparseLu {
     /// Factorisations and reuses, shared with whoever made this solver (the integrator's
     /// counts), since diffsol owns the solver once it is handed over.
     tally: std::rc::Rc<std::cell::Cell<Tally>>,
+    /// For the integrator's matrices: the coupled block (what is factored) and the columns
+    /// that hold only their diagonal ([`lone_columns`](super::lone_columns)).
+    split: Option<LoneColumns>,
+    /// The split's values from the last factored matrix.
+    parts: Parts,
+    /// The coupled part of a right-hand side, solved in place.
+    coupled_x: RefCell<faer::Mat<f64>>,
 }
 
 /// What the iteration-matrix solver did with the matrices it was given.
@@ -112,6 +124,9 @@ impl SparseLu {
             factorisations: 0,
             reuse: lu_reuse::Reuse::default(),
             tally: Default::default(),
+            split: None,
+            parts: Parts::default(),
+            coupled_x: RefCell::new(faer::Mat::zeros(0, 1)),
         }
     }
 
@@ -211,6 +226,26 @@ impl SparseLu {
         self.ok
     }
 
+    /// Factor the coupled block of the integrator's matrix whose values (in the pattern given
+    /// to `set_sparsity`) are `values`; false when it is singular.
+    fn factor_split(&mut self, values: &[f64]) -> bool {
+        let Some(split) = self.split.take() else {
+            self.ok = false;
+            return false;
+        };
+        let mut parts = std::mem::take(&mut self.parts);
+        split.take(values, &mut parts);
+        let ok = if split.coupled.is_empty() {
+            self.ok = true;
+            true
+        } else {
+            self.factor(split.block_matrix(&parts))
+        };
+        self.parts = parts;
+        self.split = Some(split);
+        ok
+    }
+
     /// Solve A x = b in place (`x` holds b on entry). An error when the factorisation failed or
     /// when the solution is not finite: faer reports a structurally singular matrix but factors a
     /// numerically singular one with a zero pivot, whose solve gives infinities or NaN.
@@ -261,11 +296,11 @@ impl LinearSolver<FaerSparseMat<f64>> for SparseLu {
         let values = a.inner()[0].val();
         if self.ok && self.reuse.keep(values) {
             tally.reused += 1;
-        } else if self.factor(a.inner()[0].as_ref()) {
-            tally.factorisations += 1;
-            self.reuse.factored(a.inner()[0].val());
         } else {
             tally.factorisations += 1;
+            if self.factor_split(a.inner()[0].val()) {
+                self.reuse.factored(a.inner()[0].val());
+            }
         }
         self.tally.set(tally);
         self.a = Some(a);
@@ -279,7 +314,14 @@ impl LinearSolver<FaerSparseMat<f64>> for SparseLu {
         let pattern: SymbolicSparseColMat<usize> = op.sparsity().expect("a sparse matrix has a pattern");
         let a = FaerSparseMat::new_from_sparsity(op.nrows(), n, Some(pattern), *op.context());
         self.reuse = lu_reuse::Reuse::for_pattern(a.inner()[0].symbolic());
-        let analysed = self.analyse(a.inner()[0].symbolic());
+        let split = LoneColumns::of(a.inner()[0].symbolic());
+        let analysed = if split.coupled.is_empty() {
+            Ok(())
+        } else {
+            self.analyse(split.block.as_ref())
+        };
+        *self.coupled_x.borrow_mut() = faer::Mat::zeros(split.coupled.len(), 1);
+        self.split = Some(split);
         self.a = Some(a);
         if analysed.is_err() {
             self.factors = None;
@@ -287,11 +329,28 @@ impl LinearSolver<FaerSparseMat<f64>> for SparseLu {
     }
 
     fn solve_in_place(&self, x: &mut FaerVec<f64>) -> Result<(), LaError> {
+        let singular = || LaError::Other("the iteration matrix is singular".into());
+        let split = self.split.as_ref().ok_or_else(singular)?;
         let m = x.inner_mut();
         let scale = self.reuse.correction();
+        let mut xc = self.coupled_x.borrow_mut();
         for j in 0..m.ncols() {
-            let mut col = m.as_mut().col_mut(j);
-            self.solve(col.rb_mut().as_mat_mut()).map_err(LaError::Other)?;
+            let col = m
+                .as_mut()
+                .col_mut(j)
+                .try_as_col_major_mut()
+                .expect("a contiguous column")
+                .as_slice_mut();
+            if !split.coupled.is_empty() {
+                split.gather(col, xc.col_as_slice_mut(0));
+                self.solve(xc.as_mut()).map_err(LaError::Other)?;
+            } else if !self.ok {
+                return Err(singular());
+            }
+            split.finish(&self.parts, xc.col_as_slice(0), col);
+            if !col.iter().all(|v| v.is_finite()) {
+                return Err(singular());
+            }
             if scale != 1.0 {
                 col.iter_mut().for_each(|v| *v *= scale);
             }
