@@ -55,6 +55,17 @@ fn check(tag: &str) {
             compared += 1;
         }
         assert!(compared >= 10, "{tag}: only {compared} species compared");
+        if sparse {
+            // the sparse path answered some iteration matrices with kept factors and a scaled
+            // correction (`kinetics/lu_reuse.rs`) and finished the photon ledger's columns by
+            // block substitution (`kinetics/lone_columns.rs`): the agreement above covers both
+            assert!(
+                tr.counts.lu_kept > 0 && tr.counts.jacobian_setups > 0,
+                "{tag}: {} kept, {} factored",
+                tr.counts.lu_kept,
+                tr.counts.jacobian_setups
+            );
+        }
     }
 }
 

@@ -146,7 +146,7 @@ fn time(name: &str, model: &Model, until: f64, sparse: Option<bool>) -> photoled
         rhs: tr.counts.rhs,
         jv: tr.counts.jacobian_products,
         setups: tr.counts.jacobian_setups,
-        kept: tr.counts.lu_reused,
+        kept: tr.counts.lu_kept,
         jacobians: tr.counts.jacobians,
         newton: tr.counts.newton_iterations,
         newton_failures: tr.counts.newton_failures,

@@ -183,7 +183,7 @@ pub struct Counts {
     pub jacobians: usize,
     /// Iteration matrices answered with the factors of an earlier one and a scaled Newton
     /// correction instead of a factorisation (sparse BDF; `lu_reuse`).
-    pub lu_reused: usize,
+    pub lu_kept: usize,
     /// Rejected steps.
     pub rejected: usize,
     /// Newton iterations (BDF), each one linear solve with the iteration matrix.
@@ -568,7 +568,7 @@ impl Run {
         self.sparse |= run.sparse;
         self.counts.steps += run.counts.steps;
         self.counts.jacobian_setups += run.counts.jacobian_setups;
-        self.counts.lu_reused += run.counts.lu_reused;
+        self.counts.lu_kept += run.counts.lu_kept;
         self.counts.jacobians += run.counts.jacobians;
         self.counts.rejected += run.counts.rejected;
         self.counts.newton_iterations += run.counts.newton_iterations;

@@ -118,7 +118,7 @@ pub(super) fn run(
         // diffsol counts the matrices it asked for; the factorisations are the solver's
         let t = tally.get();
         out.counts.jacobian_setups = t.factorisations;
-        out.counts.lu_reused = t.reused;
+        out.counts.lu_kept = t.kept;
     } else {
         go!(NalgebraMat<f64>, NalgebraLU<f64>, NalgebraLU::<f64>::default())
     }

@@ -102,7 +102,7 @@ pub struct Tally {
     /// Numeric factorisations.
     pub factorisations: usize,
     /// Matrices answered with kept factors and a scaled correction instead.
-    pub reused: usize,
+    pub kept: usize,
 }
 
 impl Default for SparseLu {
@@ -295,7 +295,7 @@ impl LinearSolver<FaerSparseMat<f64>> for SparseLu {
         let mut tally = self.tally.get();
         let values = a.inner()[0].val();
         if self.ok && self.reuse.keep(values) {
-            tally.reused += 1;
+            tally.kept += 1;
         } else {
             tally.factorisations += 1;
             if self.factor_split(a.inner()[0].val()) {

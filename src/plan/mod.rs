@@ -326,7 +326,7 @@ pub fn time_to_target(model: &Model, target: &Target, opts: &PlanOptions) -> Res
                     j.counts.rhs += tr.counts.rhs;
                     j.counts.jacobian_products += tr.counts.jacobian_products;
                     j.counts.jacobian_setups += tr.counts.jacobian_setups;
-                    j.counts.lu_reused += tr.counts.lu_reused;
+                    j.counts.lu_kept += tr.counts.lu_kept;
                     j.counts.rejected += tr.counts.rejected;
                     j.counts.newton_iterations += tr.counts.newton_iterations;
                     j.counts.newton_failures += tr.counts.newton_failures;
