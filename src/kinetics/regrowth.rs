@@ -8,44 +8,102 @@
 //! is no result until tightened.
 
 use crate::model::Model;
-use crate::units::display::{format_concentration, format_time};
+use crate::units::constants::AVOGADRO;
+use crate::units::display::{VOLUME, format, format_concentration, format_time};
 
 /// How far above the absolute tolerance a species must grow back to be reported (common
 /// practice: three orders of magnitude is well clear of round-off).
 pub const REGROWN: f64 = 1e3;
 
-/// A species that grew back from within the tolerance of zero.
+/// A species that grew back from within the tolerance of zero, or from below one molecule in
+/// the sample.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Regrowth {
     /// The species.
     pub species: String,
+    /// When it first came within the floor (the run's absolute tolerance, or one molecule in the
+    /// sample when that is larger) before growing back, s; the run's start when it started there.
+    pub entered: f64,
+    /// Whether it was within the floor from the first output on.
+    pub started_within: bool,
     /// When it was lowest before growing back, s.
     pub low_time: f64,
     /// Its lowest value there, mol/L (may be a small undershoot below zero).
     pub low: f64,
-    /// The first output at which it was back above [`REGROWN`] × the tolerance, s.
+    /// The first output at which it was back above [`REGROWN`] × the floor, s.
     pub high_time: f64,
     /// Its value there, mol/L.
     pub high: f64,
     /// The run's absolute tolerance, mol/L.
     pub atol: f64,
+    /// One molecule in the irradiated volume, mol/L.
+    pub one_molecule: f64,
+    /// The irradiated volume, L.
+    pub volume: f64,
+}
+
+impl Regrowth {
+    /// Whether the floor it fell under was one molecule in the sample (the run resolved values
+    /// below that): then no tolerance makes the course after it a sample's.
+    pub fn below_one_molecule(&self) -> bool {
+        self.one_molecule > self.atol
+    }
 }
 
 impl std::fmt::Display for Regrowth {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let c = format_concentration;
+        let molecule = format!(
+            "one molecule in the {} sample ({})",
+            format(self.volume * 1e-3, &VOLUME),
+            c(self.one_molecule)
+        );
+        let floor = if self.below_one_molecule() {
+            format!("below {molecule}")
+        } else {
+            format!("to within the absolute tolerance ({}) of zero", c(self.atol))
+        };
+        let (verb, when) = if self.started_within {
+            ("started", String::new())
+        } else {
+            ("fell", format!(" at {}", format_time(self.entered)))
+        };
+        let floor = if self.started_within {
+            floor.replacen("to within", "within", 1)
+        } else {
+            floor
+        };
         write!(
             f,
-            "{} fell to within the absolute tolerance ({}) of zero at {} and grew back by itself to {} at {}: \
-             it is formed only where it already is, so when it came back, and what it used up after that, \
-             rests on values the run did not resolve; integrate again with a smaller absolute tolerance \
-             (simulate --atol, well below {}) before trusting the course after {}",
+            "{} {verb} {floor}{when} (lowest {} at {}) and grew back by itself to {} at {}: every step \
+             that forms it needs it as a reactant, so ",
             self.species,
-            format_concentration(self.atol),
+            c(self.low),
             format_time(self.low_time),
-            format_concentration(self.high),
+            c(self.high),
             format_time(self.high_time),
-            format_concentration(self.low.abs().max(self.atol * 1e-3)),
-            format_time(self.low_time),
+        )?;
+        if self.below_one_molecule() {
+            return write!(
+                f,
+                "a real sample would most likely have lost it for good; the rate equations follow a \
+                 fraction of a molecule there, so the course after {} is not what a sample does, and no \
+                 tolerance changes that",
+                format_time(self.entered)
+            );
+        }
+        let target = self.low.abs().max(self.atol * 1e-3);
+        let tighter = if target < 1e3 * self.one_molecule {
+            format!("down to about {molecule}")
+        } else {
+            format!("well below {}", c(target))
+        };
+        write!(
+            f,
+            "when it came back, and what it used up after that, rests on values the run did not \
+             resolve; integrate again with a smaller absolute tolerance (simulate --atol, {tighter}) \
+             before trusting the course after {}",
+            format_time(self.entered)
         )
     }
 }
@@ -80,28 +138,38 @@ pub fn self_made(model: &Model) -> Vec<usize> {
     (0..n).filter(|&i| formed[i] && !from_elsewhere[i]).collect()
 }
 
-/// The first growth back from within `atol` (mol/L) of zero of each self-made species, over the
-/// outputs `times` (s) and `states` of a run.
+/// The first growth back of each self-made species from within its floor over the outputs
+/// `times` (s) and `states` of a run: the floor is `atol` (mol/L), or one molecule in the
+/// model's volume when that is larger.
 pub fn find(model: &Model, times: &[f64], states: &[Vec<f64>], atol: f64) -> Vec<Regrowth> {
+    let one_molecule = 1.0 / (AVOGADRO * model.volume);
+    let floor = atol.max(one_molecule);
     let mut found = Vec::new();
     for i in self_made(model) {
-        let mut low: Option<(f64, f64)> = None;
+        // (entered, low time, low) of the current stay within the floor
+        let mut dip: Option<(f64, f64, f64)> = None;
         for (&t, y) in times.iter().zip(states) {
             let c = y[i];
-            if c < atol {
-                if low.is_none_or(|(_, l)| c < l) {
-                    low = Some((t, c));
+            if c < floor {
+                match &mut dip {
+                    None => dip = Some((t, t, c)),
+                    Some((_, lt, l)) if c < *l => (*lt, *l) = (t, c),
+                    Some(_) => {}
                 }
-            } else if let Some((low_time, l)) = low
-                && c > REGROWN * atol
+            } else if let Some((entered, low_time, low)) = dip
+                && c > REGROWN * floor
             {
                 found.push(Regrowth {
                     species: model.species[i].clone(),
+                    entered,
+                    started_within: entered == times[0],
                     low_time,
-                    low: l,
+                    low,
                     high_time: t,
                     high: c,
                     atol,
+                    one_molecule,
+                    volume: model.volume,
                 });
                 break;
             }
@@ -157,11 +225,60 @@ mod tests {
         let found = find(&m, &times, &states, 1e-12);
         assert_eq!(found.len(), 1);
         assert_eq!(
-            (found[0].low_time, found[0].low, found[0].high_time),
-            (2.0, -2e-13, 3.0)
+            (found[0].entered, found[0].low_time, found[0].low, found[0].high_time),
+            (1.0, 2.0, -2e-13, 3.0)
+        );
+        assert!(!found[0].started_within && !found[0].below_one_molecule());
+        let says = found[0].to_string();
+        assert!(
+            says.starts_with("X fell to within the absolute tolerance (1 pM) of zero at 1 s"),
+            "{says}"
+        );
+        assert!(
+            says.contains("well below 0.2 pM") && says.contains("course after 1 s"),
+            "{says}"
+        );
+        // started there
+        let states = [at(1e-13), at(-2e-13), at(5e-9), at(1e-3), at(1e-3)];
+        let found = find(&m, &times, &states, 1e-12);
+        assert!(found[0].started_within);
+        assert!(
+            found[0]
+                .to_string()
+                .starts_with("X started within the absolute tolerance (1 pM) of zero (lowest")
         );
         // never back above a thousand times the tolerance: nothing to say
         let states = [at(1e-3), at(1e-13), at(5e-10), at(8e-10), at(9e-10)];
         assert!(find(&m, &times, &states, 1e-12).is_empty());
+    }
+
+    /// Resolved below one molecule in the sample (3 mL: 5.5e-22 M) and back: no tolerance
+    /// helps, and the note says so.
+    #[test]
+    fn growth_back_from_below_one_molecule_is_an_extinction_question() {
+        let m = model("[[thermal]]\nequation = \"A + X -> X + X\"\nrate = { k = \"1 L/(mol s)\" }\n");
+        let x = m.species.iter().position(|s| s == "X").unwrap();
+        let at = |v: f64| {
+            let mut y = vec![0.0; 3];
+            y[x] = v;
+            y
+        };
+        let times = [0.0, 1.0, 2.0, 3.0];
+        let states = [at(1e-3), at(1e-24), at(1e-26), at(1e-6)];
+        // a tolerance above one molecule: the dip is within it, the usual advice
+        let found = find(&m, &times, &states, 1e-12);
+        assert!(!found[0].below_one_molecule());
+        // a tolerance far below: the dip is below one molecule, resolved, and no tolerance helps
+        let found = find(&m, &times, &states, 1e-30);
+        assert_eq!(found.len(), 1);
+        assert!(found[0].below_one_molecule());
+        let one = 1.0 / (crate::units::constants::AVOGADRO * 3e-3);
+        assert!((found[0].one_molecule / one - 1.0).abs() < 1e-12);
+        let says = found[0].to_string();
+        assert!(says.contains("fell below one molecule in the 3 mL sample"), "{says}");
+        assert!(says.contains("no tolerance changes that"), "{says}");
+        // a dip that stays above one molecule and within a tiny tolerance's reach says nothing
+        let states = [at(1e-3), at(1e-18), at(1e-19), at(1e-6)];
+        assert!(find(&m, &times, &states, 1e-30).is_empty());
     }
 }

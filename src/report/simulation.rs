@@ -142,6 +142,11 @@ pub struct RetrySummary {
 pub struct RegrowthSummary {
     /// The species.
     pub species: String,
+    /// When it came within the floor (the absolute tolerance, or one molecule in the sample when
+    /// that is larger), s.
+    pub entered_time_s: f64,
+    /// Whether the floor was one molecule in the sample: no tolerance then helps.
+    pub below_one_molecule: bool,
     /// When it was lowest, s.
     pub low_time_s: f64,
     /// Its lowest value, mol/L.
@@ -309,7 +314,7 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
             rhs_evaluations: tr.counts.rhs,
             jacobian_products: tr.counts.jacobian_products,
             jacobian_setups: tr.counts.jacobian_setups,
-            lu_kept: tr.counts.lu_reused,
+            lu_kept: tr.counts.lu_kept,
             jacobian_evaluations: tr.counts.jacobians,
             // a retry's tighter tolerances when there was one (`retries` says why)
             rtol: tr.retries.last().map_or(rtol, |r| r.rtol),
@@ -333,6 +338,8 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
             .iter()
             .map(|r| RegrowthSummary {
                 species: r.species.clone(),
+                entered_time_s: r.entered,
+                below_one_molecule: r.below_one_molecule(),
                 low_time_s: r.low_time,
                 low_mol_per_l: r.low,
                 regrown_time_s: r.high_time,
