@@ -19,7 +19,8 @@ pub(super) fn run(
     enough: &mut dyn FnMut(f64, &[f64]) -> bool,
 ) -> Result<Run> {
     let n = y0.len();
-    let fail = |e: diffsol::error::DiffsolError| Error::Numerical(format!("the BDF integrator stopped: {e}"));
+    let volume = rhs.model.volume;
+    let fail = |e: diffsol::error::DiffsolError| Error::Numerical(stopped_words(&e, opts, volume));
     let jac = Jacobian::new(rhs.model);
     let event = opts.event;
     let sparse = opts.sparse.unwrap_or(n > 150);
@@ -124,4 +125,75 @@ pub(super) fn run(
     }
     out.counts.jacobians = jac.evaluations.get();
     Ok(out)
+}
+
+/// What a stopped BDF run says: diffsol's reason in words, with the time formatted and, where
+/// the tolerances are the likely cause, what to try.
+fn stopped_words(e: &diffsol::error::DiffsolError, opts: &Options, volume_l: f64) -> String {
+    use crate::units::display::{format_concentration, format_time};
+    use diffsol::error::{DiffsolError, OdeSolverError};
+    let tol = format!("rtol {:e}, atol {}", opts.rtol, format_concentration(opts.atol));
+    let one_molecule = 1.0 / (crate::units::constants::AVOGADRO * volume_l);
+    match e {
+        DiffsolError::OdeSolverError(OdeSolverError::StepSizeTooSmall { time }) => {
+            let hint = if opts.atol < one_molecule {
+                format!(
+                    "; the absolute tolerance is below one molecule in the sample ({}), which asks for \
+                     more than the equations can mean: try --atol near that or above",
+                    format_concentration(one_molecule)
+                )
+            } else {
+                "; a rate that runs away, or a tolerance far tighter than the data, does this".to_string()
+            };
+            format!(
+                "the BDF integrator stopped at {}: its step fell below what double precision resolves \
+                 there ({tol}){hint}",
+                format_time(*time)
+            )
+        }
+        DiffsolError::OdeSolverError(OdeSolverError::TooManyNonlinearSolverFailures { time, num_failures }) => {
+            format!(
+                "the BDF integrator stopped at {}: its implicit solve failed {num_failures} times in one step \
+                 ({tol})",
+                format_time(*time)
+            )
+        }
+        DiffsolError::OdeSolverError(OdeSolverError::TooManyErrorTestFailures { time, num_failures }) => {
+            format!(
+                "the BDF integrator stopped at {}: {num_failures} steps in a row missed the tolerances ({tol})",
+                format_time(*time)
+            )
+        }
+        DiffsolError::OdeSolverError(OdeSolverError::TooManyTimesteps { time, num_steps }) => format!(
+            "the BDF integrator stopped at {} after {num_steps} steps, its limit",
+            format_time(*time)
+        ),
+        _ => format!("the BDF integrator stopped: {e}"),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::stopped_words;
+    use crate::kinetics::Options;
+    use diffsol::error::{DiffsolError, OdeSolverError};
+
+    /// A step that became too small is said with a readable time, the tolerances, and the
+    /// one-molecule hint when the absolute tolerance is below one molecule in the sample.
+    #[test]
+    fn a_too_small_step_is_said_in_words() {
+        let e = DiffsolError::OdeSolverError(OdeSolverError::StepSizeTooSmall { time: 6.928e-17 });
+        let mut opts = Options::until(1.0);
+        opts.atol = 1e-30;
+        opts.rtol = 1e-10;
+        let says = stopped_words(&e, &opts, 3e-3);
+        assert!(
+            says.starts_with("the BDF integrator stopped at 0.0693 fs") && says.contains("rtol 1e-10"),
+            "{says}"
+        );
+        assert!(says.contains("below one molecule in the sample"), "{says}");
+        opts.atol = 1e-12;
+        let says = stopped_words(&e, &opts, 3e-3);
+        assert!(!says.contains("molecule") && says.contains("runs away"), "{says}");
+    }
 }
