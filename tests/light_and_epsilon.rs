@@ -304,6 +304,15 @@ fn a_window_on_a_single_epsilon_is_the_value_inside_and_zero_outside() {
             .any(|d| d.message.contains("is zero at every wavelength of the light")),
         "{w:?}"
     );
+    // and `check` says it takes no light, in its text and its JSON alike
+    let s = Scratch::new("missed");
+    for (text, absorbing, absorbs) in [(&text, "(1 absorbing)", true), (&missed, "(0 absorbing)", false)] {
+        let (_, run) = run_on(&s, text, "check", &[]);
+        assert!(run.code(0).stdout.contains(absorbing), "{}", run.stdout);
+        let (_, run) = run_on(&s, text, "check", &["--json"]);
+        let v: serde_json::Value = serde_json::from_str(&run.code(0).stdout).unwrap();
+        assert_eq!(v["species"][0]["absorbs"], absorbs, "{}", run.stdout);
+    }
 }
 
 #[test]

@@ -455,6 +455,17 @@ impl Network {
         )
     }
 
+    /// Whether species `sp` takes up light here: it has an ε above zero at a wavelength where a
+    /// source sends photons (a photoreactive absorber or an inner filter alike). What `check`
+    /// counts as absorbing, in its text and its JSON.
+    pub fn takes_light(&self, sp: &Species) -> bool {
+        sp.epsilon.as_ref().is_some_and(|e| {
+            self.lights
+                .iter()
+                .any(|l| l.bins.iter().any(|b| b.flux > 0.0 && e.at(b.wavelength) > 0.0))
+        })
+    }
+
     pub fn side(&self, terms: &[Term]) -> String {
         terms
             .iter()

@@ -95,9 +95,10 @@ pub fn network_json(net: &Network, file: &str) -> Value {
                 "name": sp.name,
                 "initial_mol_per_l": sp.initial,
                 "formula": sp.formula,
-                // Takes up light (has an ε above zero, inner filter included), as the text's
-                // "(N absorbing)" counts; `photoreactive`: the absorber of a photochemical step.
-                "absorbs": sp.epsilon.as_ref().is_some_and(|e| e.max() > 0.0),
+                // Takes up light here (an ε above zero where a source sends photons, inner
+                // filter included), as the text's "(N absorbing)" counts; `photoreactive`: the
+                // absorber of a photochemical step.
+                "absorbs": net.takes_light(sp),
                 "photoreactive": net.photo.iter().any(|p| p.absorber == i),
                 "product": sp.product,
             })

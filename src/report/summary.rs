@@ -47,13 +47,7 @@ pub fn network_summary(net: &Network) -> String {
             .map_or(String::new(), |a| format!(", irradiated area {} cm²", sig(a * 1e4, 4)))
     );
     // A species absorbs when it has ε where a source sends photons (an inner filter too).
-    let lit = |sp: &crate::network::Species| {
-        sp.epsilon.as_ref().is_some_and(|e| {
-            net.lights
-                .iter()
-                .any(|l| l.bins.iter().any(|b| b.flux > 0.0 && e.at(b.wavelength) > 0.0))
-        })
-    };
+    let lit = |sp: &crate::network::Species| net.takes_light(sp);
     let n_abs = net.species.iter().filter(|x| lit(x)).count();
     let plural = |n: usize, one: &str, many: &str| format!("{n} {}", if n == 1 { one } else { many });
     let n_rev = net.thermal.iter().filter(|t| t.reverse_of.is_some()).count();
