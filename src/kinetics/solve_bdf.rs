@@ -90,6 +90,12 @@ pub(super) fn run(
                 .build_from_eqn(eqn)
                 .map_err(fail)?;
             problem.ode_options.max_number_timesteps = super::MAX_STEPS;
+            // After a failed Newton iteration, evaluate the Jacobian again whatever the step
+            // size did (diffsol re-forms the matrix with the old Jacobian when h moved by more
+            // than 20 %; with kept factors, `lu_reuse`, that matrix could be met with the same
+            // factors and fail again). Measured on six side-by-side networks: 5-8 % fewer Newton
+            // iterations, fewer failures, about 4 % less time (DEVELOPERS.md).
+            problem.ode_options.threshold_to_update_rhs_jacobian = f64::INFINITY;
             let ls = $ls;
             let state = problem.bdf_state::<$lt>().map_err(fail)?;
             let mut solver: Bdf<'_, _, $lt> = Bdf::new(&problem, state, ls).map_err(fail)?;
