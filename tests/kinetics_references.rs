@@ -118,6 +118,44 @@ rate = { k = "0.1 /s" }
     }
 }
 
+/// A femtosecond step beside a slow one (k1 = 1e15 /s, k2 = 1 /s), at the default tolerances:
+/// diffsol's absolute smallest step (2.2e-16 s) stopped such a run at its start; the floor is
+/// now relative to t. Against the Bateman closed form, as above.
+#[test]
+fn bateman_with_a_femtosecond_step_at_default_tolerances() {
+    let net = network(
+        r#"
+[conditions]
+temperature = "298.15 K"
+volume = "3 mL"
+path_length = "1 cm"
+[[species]]
+name = "A"
+initial = "1 mM"
+[[species]]
+name = "B"
+[[species]]
+name = "C"
+[[thermal]]
+equation = "A -> B"
+rate = { k = "1e15 /s" }
+[[thermal]]
+equation = "B -> C"
+rate = { k = "1 /s" }
+"#,
+    );
+    let (k1, k2, a0) = (1e15f64, 1.0f64, 1e-3);
+    let d = Options::until(1.0);
+    let tr = run(&net, 5.0, Method::Bdf, d.rtol, d.atol);
+    assert!(tr.times.last().is_some_and(|&t| t == 5.0), "stopped early");
+    for (t, s) in tr.times.iter().zip(&tr.states).skip(1) {
+        let b = a0 * k1 / (k2 - k1) * ((-k1 * t).exp() - (-k2 * t).exp());
+        // rtol 1e-6 per step, a few hundred steps: 1e-4 of the scale
+        assert!((s[1] - b).abs() < 1e-4 * a0, "B at {t}: {} vs {b}", s[1]);
+        assert!(s[0].abs() < 1e-9, "A at {t}: {}", s[0]);
+    }
+}
+
 #[test]
 fn hires_at_321_8122() {
     // HIRES (Schäfer's plant photobiology model of light-induced growth responses, 8 species):
