@@ -15,8 +15,9 @@
 //! entry, to round-off) with r within [`RATIO`] of 1 either way. A matrix whose Jacobian differs
 //! from the kept one is always factored; a freshly evaluated Jacobian equal to the kept one
 //! (a linear network, or one evaluated again at an unchanged state) is a change of γ like any
-//! other. A matrix asked for twice in a row after kept factors answered it, which diffsol does
-//! only after the Newton iteration failed with them, is factored. Measured on the generated
+//! other. A matrix asked for twice in a row after kept factors answered it (diffsol does that
+//! after the Newton iteration failed with them, and by its 20-step age rule when h has not
+//! changed) is factored. Measured on the generated
 //! 1,000-species network (DEVELOPERS.md): 200 factorisations without reuse, 150 at CVODE's
 //! 30 %, 96 at a ratio of 2, about 80 at 2.5 and beyond, with the Newton iterations within ±4 %;
 //! once the solves had become cheaper (the coupled block alone), a ratio of 3 took 7 % less time
@@ -24,7 +25,7 @@
 //!
 //! What is bounded is the ratio between the factored matrix and the one requested. diffsol goes
 //! on using a requested matrix while γ moves by up to 30 % (its own rule), so the ratio in force
-//! during a Newton iteration can reach about 3 × 1.3 = 3.9 (or 1 / 3.9), where the stiff modes
+//! during a Newton iteration can reach about 3 × 1.3 = 3.9 (or 0.7 / 3 ≈ 1/4.3), where the stiff modes
 //! contract by up to about 0.95 per iteration instead of 1/2 (diffsol calls an iteration that
 //! contracts by more than 0.9 divergent and asks again). That costs iterations, not
 //! accuracy: the Newton test still decides convergence, and a failure makes diffsol ask again,

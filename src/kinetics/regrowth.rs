@@ -36,32 +36,50 @@ pub struct Regrowth {
     pub high: f64,
     /// The run's absolute tolerance, mol/L.
     pub atol: f64,
-    /// One molecule in the irradiated volume, mol/L.
+    /// One molecule in the sample (the model's volume), mol/L.
     pub one_molecule: f64,
-    /// The irradiated volume, L.
+    /// The sample's volume (the model's irradiated volume), L.
     pub volume: f64,
 }
 
+/// Below this many molecules in the sample a species' return is an extinction question, not a
+/// tolerance one (common practice: at a handful of molecules chance decides).
+pub const FEW: f64 = 10.0;
+
 impl Regrowth {
-    /// Whether the floor it fell under was one molecule in the sample (the run resolved values
-    /// below that): then no tolerance makes the course after it a sample's.
-    pub fn below_one_molecule(&self) -> bool {
-        self.one_molecule > self.atol
+    /// Whether the floor it fell under was at most [`FEW`] molecules in the sample (the run
+    /// resolved values that low): then no tolerance makes the course after it a sample's.
+    pub fn few_molecules(&self) -> bool {
+        self.atol < FEW * self.one_molecule
     }
 }
 
 impl std::fmt::Display for Regrowth {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         let c = format_concentration;
-        let molecule = format!(
-            "one molecule in the {} sample ({})",
-            format(self.volume * 1e-3, &VOLUME),
-            c(self.one_molecule)
-        );
-        let floor = if self.below_one_molecule() {
-            format!("below {molecule}")
+        let sample = format!("the {} sample", format(self.volume * 1e-3, &VOLUME));
+        let molecule = format!("one molecule in {sample} ({})", c(self.one_molecule));
+        // the floor in words, and its value for the parenthesis
+        let (floor, value) = if self.atol < self.one_molecule {
+            (format!("below one molecule in {sample}"), self.one_molecule)
+        } else if self.few_molecules() {
+            let n = (self.atol / self.one_molecule).round();
+            let count = if n <= 1.0 {
+                "about one molecule".to_string()
+            } else {
+                format!("about {n} molecules")
+            };
+            (
+                format!("to within the absolute tolerance of zero, {count} in {sample}"),
+                self.atol,
+            )
         } else {
-            format!("to within the absolute tolerance ({}) of zero", c(self.atol))
+            ("to within the absolute tolerance of zero".to_string(), self.atol)
+        };
+        let undershoot = if self.low < 0.0 {
+            ", an undershoot below zero"
+        } else {
+            ""
         };
         let (verb, when) = if self.started_within {
             ("started", String::new())
@@ -75,20 +93,21 @@ impl std::fmt::Display for Regrowth {
         };
         write!(
             f,
-            "{} {verb} {floor}{when} (lowest {} at {}) and grew back by itself to {} at {}: every step \
-             that forms it needs it as a reactant, so ",
+            "{} {verb}{when} {floor} ({}; lowest {} at {}{undershoot}) and grew back by itself to {} at {}: \
+             every step that forms it needs it as a reactant, so ",
             self.species,
+            c(value),
             c(self.low),
             format_time(self.low_time),
             c(self.high),
             format_time(self.high_time),
         )?;
-        if self.below_one_molecule() {
+        if self.few_molecules() {
             return write!(
                 f,
-                "a real sample would most likely have lost it for good; the rate equations follow a \
-                 fraction of a molecule there, so the course after {} is not what a sample does, and no \
-                 tolerance changes that",
+                "a real sample with so few molecules would most likely have lost it for good; the rate \
+                 equations follow fractions of a molecule there, so the course after {} is not what a \
+                 sample does, and no tolerance changes that",
                 format_time(self.entered)
             );
         }
@@ -146,7 +165,8 @@ pub fn find(model: &Model, times: &[f64], states: &[Vec<f64>], atol: f64) -> Vec
     let floor = atol.max(one_molecule);
     let mut found = Vec::new();
     for i in self_made(model) {
-        // (entered, low time, low) of the current stay within the floor
+        // (entered, low time, low) from the first time within the floor on (a rise that stays
+        // below REGROWN × the floor does not end it)
         let mut dip: Option<(f64, f64, f64)> = None;
         for (&t, y) in times.iter().zip(states) {
             let c = y[i];
@@ -228,10 +248,10 @@ mod tests {
             (found[0].entered, found[0].low_time, found[0].low, found[0].high_time),
             (1.0, 2.0, -2e-13, 3.0)
         );
-        assert!(!found[0].started_within && !found[0].below_one_molecule());
+        assert!(!found[0].started_within && !found[0].few_molecules());
         let says = found[0].to_string();
         assert!(
-            says.starts_with("X fell to within the absolute tolerance (1 pM) of zero at 1 s"),
+            says.starts_with("X fell at 1 s to within the absolute tolerance of zero (1 pM; lowest"),
             "{says}"
         );
         assert!(
@@ -245,7 +265,7 @@ mod tests {
         assert!(
             found[0]
                 .to_string()
-                .starts_with("X started within the absolute tolerance (1 pM) of zero (lowest")
+                .starts_with("X started within the absolute tolerance of zero (1 pM; lowest")
         );
         // never back above a thousand times the tolerance: nothing to say
         let states = [at(1e-3), at(1e-13), at(5e-10), at(8e-10), at(9e-10)];
@@ -267,15 +287,28 @@ mod tests {
         let states = [at(1e-3), at(1e-24), at(1e-26), at(1e-6)];
         // a tolerance above one molecule: the dip is within it, the usual advice
         let found = find(&m, &times, &states, 1e-12);
-        assert!(!found[0].below_one_molecule());
+        assert!(!found[0].few_molecules());
+        // a tolerance of about one molecule: the verdict, not advice to go down to one molecule
+        let found = find(&m, &times, &states, 5.6e-22);
+        assert!(found[0].few_molecules());
+        let says = found[0].to_string();
+        assert!(
+            says.contains("of zero, about one molecule in the 3 mL sample (")
+                && says.contains("no tolerance changes that"),
+            "{says}"
+        );
+        assert!(!says.contains("simulate --atol"), "{says}");
         // a tolerance far below: the dip is below one molecule, resolved, and no tolerance helps
         let found = find(&m, &times, &states, 1e-30);
         assert_eq!(found.len(), 1);
-        assert!(found[0].below_one_molecule());
+        assert!(found[0].few_molecules());
         let one = 1.0 / (crate::units::constants::AVOGADRO * 3e-3);
         assert!((found[0].one_molecule / one - 1.0).abs() < 1e-12);
         let says = found[0].to_string();
-        assert!(says.contains("fell below one molecule in the 3 mL sample"), "{says}");
+        assert!(
+            says.contains("fell at 1 s below one molecule in the 3 mL sample"),
+            "{says}"
+        );
         assert!(says.contains("no tolerance changes that"), "{says}");
         // a dip that stays above one molecule and within a tiny tolerance's reach says nothing
         let states = [at(1e-3), at(1e-18), at(1e-19), at(1e-6)];

@@ -321,6 +321,7 @@ impl LinearSolver<FaerSparseMat<f64>> for SparseLu {
             self.analyse(split.block.as_ref())
         };
         *self.coupled_x.borrow_mut() = faer::Mat::zeros(split.coupled.len(), 1);
+        self.ok = false;
         self.split = Some(split);
         self.a = Some(a);
         if analysed.is_err() {

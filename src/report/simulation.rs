@@ -145,8 +145,10 @@ pub struct RegrowthSummary {
     /// When it came within the floor (the absolute tolerance, or one molecule in the sample when
     /// that is larger), s.
     pub entered_time_s: f64,
-    /// Whether the floor was one molecule in the sample: no tolerance then helps.
-    pub below_one_molecule: bool,
+    /// Whether it was within the floor from the start.
+    pub started_within: bool,
+    /// Whether the floor was at most ten molecules in the sample: no tolerance then helps.
+    pub few_molecules: bool,
     /// When it was lowest, s.
     pub low_time_s: f64,
     /// Its lowest value, mol/L.
@@ -339,7 +341,8 @@ pub fn summary(net: &Network, model: &Model, tr: &Trajectory, rtol: f64, atol: f
             .map(|r| RegrowthSummary {
                 species: r.species.clone(),
                 entered_time_s: r.entered,
-                below_one_molecule: r.below_one_molecule(),
+                started_within: r.started_within,
+                few_molecules: r.few_molecules(),
                 low_time_s: r.low_time,
                 low_mol_per_l: r.low,
                 regrown_time_s: r.high_time,
