@@ -4,7 +4,7 @@
 use crate::chain::agreement::Agreement;
 use crate::chain::sensitivity::Sensitivity;
 use crate::chain::{Analysis, Chain, StateKind};
-use crate::report::csv_out::{CsvTable, sci};
+use crate::report::csv_out::{CsvTable, cell};
 use crate::units::{display, format_time};
 use plotters::prelude::*;
 use serde::Serialize;
@@ -405,8 +405,8 @@ pub fn distribution_csv(chain: &Chain, a: &Analysis) -> String {
     );
     let mut t = CsvTable::new(header);
     for (n, row) in d.p.iter().enumerate() {
-        let mut cells = vec![n.to_string(), sci(row.iter().sum::<f64>())];
-        cells.extend(keep.iter().map(|&k| sci(row[k])));
+        let mut cells = vec![n.to_string(), cell(row.iter().sum::<f64>())];
+        cells.extend(keep.iter().map(|&k| cell(row[k])));
         t.row(cells);
     }
     t.finish()

@@ -11,7 +11,7 @@ use crate::chain::lifetimes::Lifetimes;
 use crate::chain::routes::{EndRoutes, Judgement, judge};
 use crate::chain::{Chain, StateKind};
 use crate::network::Network;
-use crate::report::csv_out::{CsvTable, sci};
+use crate::report::csv_out::{CsvTable, cell};
 use crate::units::{display, format_time};
 use serde::Serialize;
 use std::fmt::Write;
@@ -597,7 +597,7 @@ pub fn paths_text(p: &Paths) -> String {
 pub fn cycles_csv(c: &Cycles) -> String {
     let mut t = CsvTable::new(vec!["cycles completed".to_string(), "probability".to_string()]);
     for (n, p) in c.distribution.iter().enumerate() {
-        t.row(vec![n.to_string(), sci(*p)]);
+        t.row(vec![n.to_string(), cell(*p)]);
     }
     t.finish()
 }

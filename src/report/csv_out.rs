@@ -12,8 +12,8 @@
 //! spreadsheets, and Rust's `str::lines`. LF alone would be read by most tools too, but would not
 //! be RFC 4180; one terminator everywhere keeps every file alike.
 //!
-//! Cells are text: callers format numbers the way their report already does (`{:e}` keeps the
-//! shortest representation that reads back to the same `f64`, see [`sci`]).
+//! Cells are text: callers format numbers with [`cell`] (the shortest digits that read back to
+//! the same `f64`, plain decimals where a spreadsheet shows them so).
 
 /// A CSV table being written: the header first, then rows of the same width. Into memory
 /// ([`CsvTable::new`], [`CsvTable::finish`]) or streamed into a writer row by row
@@ -114,15 +114,24 @@ impl<W: std::io::Write> CsvTable<W> {
     }
 }
 
-/// A number in scientific notation with the shortest digits that read back to the same `f64`
-/// (`{:e}`), e.g. `1.5e-3`.
-pub fn sci(v: f64) -> String {
-    format!("{v:e}")
+/// A number with the shortest digits that read back to the same `f64`: plain decimals for
+/// magnitudes from 1e-4 up to 1e15, scientific notation outside ("0", "36", "0.0015",
+/// "1.5e-7", "2e20"); a zero of either sign is "0". Spreadsheets and CSV readers take both
+/// forms, and neither loses a digit (`{:e}` everywhere gave cells such as "0e0" and "3.6e1").
+pub fn cell(v: f64) -> String {
+    if v == 0.0 {
+        return "0".into();
+    }
+    if (1e-4..1e15).contains(&v.abs()) {
+        format!("{v}")
+    } else {
+        format!("{v:e}")
+    }
 }
 
-/// [`sci`] for a value that may be missing: an empty cell when it is.
-pub fn opt_sci(v: Option<f64>) -> String {
-    v.map(sci).unwrap_or_default()
+/// [`cell`] for a value that may be missing: an empty cell when it is.
+pub fn opt_cell(v: Option<f64>) -> String {
+    v.map(cell).unwrap_or_default()
 }
 
 #[cfg(test)]
@@ -171,10 +180,33 @@ mod tests {
     #[test]
     fn numbers_keep_every_digit() {
         for v in [0.1 + 0.2, 1.0 / 3.0, 6.02214076e23, -1e-300, 0.0] {
-            assert_eq!(sci(v).parse::<f64>().unwrap(), v);
+            assert_eq!(cell(v).parse::<f64>().unwrap(), v);
         }
-        assert_eq!(opt_sci(None), "");
-        assert_eq!(opt_sci(Some(2.5)), "2.5e0");
+        assert_eq!(opt_cell(None), "");
+        assert_eq!(opt_cell(Some(2.5)), "2.5");
+        for (v, want) in [
+            (0.0, "0"),
+            (-0.0, "0"),
+            (36.0, "36"),
+            (0.0015, "0.0015"),
+            (1.5e-7, "1.5e-7"),
+            (2e20, "2e20"),
+        ] {
+            assert_eq!(cell(v), want);
+        }
+        // every cell reads back to the same f64
+        for v in [
+            0.1 + 0.2,
+            1.0 / 3.0,
+            9.999999999999999e-5,
+            1e-4,
+            999999999999999.9,
+            1e15,
+            -2.5e-300,
+            f64::MAX,
+        ] {
+            assert_eq!(cell(v).parse::<f64>().unwrap().to_bits(), v.to_bits(), "{v:e}");
+        }
     }
 
     #[test]

@@ -5,7 +5,7 @@ use crate::error::Result;
 use crate::file::data::Experiment;
 use crate::fit::mechanism::{Curve, Free};
 use crate::fit::{FitResult, lsq};
-use crate::report::csv_out::{CsvTable, sci};
+use crate::report::csv_out::{CsvTable, cell};
 use crate::report::{palette, ticks};
 use crate::units::display::time as time_unit;
 use crate::units::sig;
@@ -232,12 +232,12 @@ pub fn residuals_csv(rows: &[Row]) -> String {
     for (e, t, s, y, f, sd, _) in rows {
         table.row([
             e.clone(),
-            sci(*t),
+            cell(*t),
             s.clone(),
-            sci(*y),
-            sci(*f),
-            sci(*sd),
-            sci((y - f) / sd),
+            cell(*y),
+            cell(*f),
+            cell(*sd),
+            cell((y - f) / sd),
         ]);
     }
     table.finish()

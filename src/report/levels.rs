@@ -2,7 +2,7 @@
 //! Values are shown through `units::display` (times by the time ladder, concentrations by
 //! theirs, plain numbers to four figures); CSV and JSON keep SI values.
 
-use super::csv_out::{CsvTable, opt_sci, sci};
+use super::csv_out::{CsvTable, cell, opt_cell};
 use super::fit::{self as rf, Ranked};
 use crate::levels::score::Scores;
 use crate::levels::{AGREE, Comparison, DISAGREE, Kind, Observable, Verdict};
@@ -394,10 +394,10 @@ pub fn observables_csv(c: &Comparison) -> String {
                 .unwrap_or_default(),
             si_unit(o.kind).to_string(),
         ];
-        row.extend(o.values.iter().map(|v| opt_sci(*v)));
+        row.extend(o.values.iter().map(|v| opt_cell(*v)));
         row.push(match o.factor {
             Some(f) if f.is_infinite() => "inf".into(),
-            f => opt_sci(f),
+            f => opt_cell(f),
         });
         row.push(verdict_word(o.verdict).to_lowercase());
         t.row(row);
@@ -424,11 +424,11 @@ pub fn scores_csv(s: &Scores) -> String {
             "no".into(),
             f.score.n.to_string(),
             f.score.k.to_string(),
-            sci(f.score.chi2),
-            sci(f.score.minus_two_log_likelihood),
-            sci(f.score.aicc),
-            sci(f.score.bic),
-            sci(f.weight),
+            cell(f.score.chi2),
+            cell(f.score.minus_two_log_likelihood),
+            cell(f.score.aicc),
+            cell(f.score.bic),
+            cell(f.weight),
         ]);
     }
     if let Some(cmp) = &s.refit {
@@ -439,11 +439,11 @@ pub fn scores_csv(s: &Scores) -> String {
                 "yes".into(),
                 r.n.to_string(),
                 r.k.to_string(),
-                sci(r.solution.chi2),
-                sci(r.minus_two_log_likelihood),
-                sci(r.aicc),
-                sci(r.bic),
-                sci(cmp.ranking.weights[i]),
+                cell(r.solution.chi2),
+                cell(r.minus_two_log_likelihood),
+                cell(r.aicc),
+                cell(r.bic),
+                cell(cmp.ranking.weights[i]),
             ]);
         }
     }

@@ -4,7 +4,7 @@ use crate::kinetics::ledger::Ledger;
 use crate::kinetics::{Method, Stop, Trajectory};
 use crate::model::Model;
 use crate::network::Network;
-use crate::report::csv_out::{CsvTable, opt_sci, sci};
+use crate::report::csv_out::{CsvTable, cell, opt_cell};
 use crate::report::palette;
 use crate::report::timeplot::{self, Curve, Frame, Quantity, TimeAxis, TimePlot};
 use plotters::style::RGBColor;
@@ -34,7 +34,7 @@ pub fn write_concentrations_csv(model: &Model, tr: &Trajectory, w: impl std::io:
     header.extend(model.species.iter().map(|n| format!("{n} (mol/L)")));
     let mut t = CsvTable::to_writer(w, header);
     for (time, y) in tr.times.iter().zip(&tr.states) {
-        t.row(std::iter::once(sci(*time)).chain(y[..model.n_species()].iter().map(|v| sci(*v))));
+        t.row(std::iter::once(cell(*time)).chain(y[..model.n_species()].iter().map(|v| cell(*v))));
     }
     t.flush()
 }
@@ -69,14 +69,14 @@ pub fn write_photons_csv(model: &Model, tr: &Trajectory, w: impl std::io::Write)
     let mut t = CsvTable::to_writer(w, header);
     for (k, (time, y)) in tr.times.iter().zip(&tr.states).enumerate() {
         let l = tr.ledger(model, k);
-        let mut row = vec![sci(*time), sci(l.incident)];
-        row.extend(l.by_absorber.iter().map(|a| sci(a.absorbed)));
+        let mut row = vec![cell(*time), cell(l.incident)];
+        row.extend(l.by_absorber.iter().map(|a| cell(a.absorbed)));
         let bg = l.background();
         let tr_ = l.transmitted();
-        row.push(sci(bg));
-        row.push(sci(tr_));
-        row.extend((0..model.outcomes.len()).map(|o| sci(y[tr.layout.outcome(o)] * model.volume)));
-        row.extend(l.products.iter().map(|p| opt_sci(p.photons_per_molecule)));
+        row.push(cell(bg));
+        row.push(cell(tr_));
+        row.extend((0..model.outcomes.len()).map(|o| cell(y[tr.layout.outcome(o)] * model.volume)));
+        row.extend(l.products.iter().map(|p| opt_cell(p.photons_per_molecule)));
         t.row(row);
     }
     t.flush()

@@ -3,7 +3,7 @@
 
 use super::plan::shown_share;
 use crate::plan::SweepPoint;
-use crate::report::csv_out::{CsvTable, opt_sci, sci};
+use crate::report::csv_out::{CsvTable, cell, opt_cell};
 use crate::report::ticks;
 use crate::units::display::{self, format_concentration_within};
 use crate::units::{format_time, sig};
@@ -33,13 +33,13 @@ pub fn sweep_csv(axis: &SweepAxis, points: &[SweepPoint]) -> String {
     }
     let mut t = CsvTable::new(header);
     for pt in points {
-        let mut cells = vec![sci(pt.value * axis.unit_factor)];
+        let mut cells = vec![cell(pt.value * axis.unit_factor)];
         match &pt.plan {
             Ok(p) => {
                 let note = p.unreachable.as_ref().map_or("", |u| u.why.words());
                 let reference = p.products.first().and_then(|x| x.reference.clone()).unwrap_or_default();
                 cells.extend([
-                    opt_sci(p.time),
+                    opt_cell(p.time),
                     p.time.is_some().to_string(),
                     note.to_string(),
                     reference,
@@ -47,8 +47,8 @@ pub fn sweep_csv(axis: &SweepAxis, points: &[SweepPoint]) -> String {
                 // Matched by name so every row has the header's columns (empty where a point lacks one).
                 for name in &products {
                     let sh = p.products.iter().find(|sh| &sh.species == name);
-                    cells.push(opt_sci(sh.map(|sh| sh.formed)));
-                    cells.push(opt_sci(sh.and_then(|sh| sh.selectivity)));
+                    cells.push(opt_cell(sh.map(|sh| sh.formed)));
+                    cells.push(opt_cell(sh.and_then(|sh| sh.selectivity)));
                 }
             }
             Err(e) => {

@@ -5,7 +5,7 @@
 //! Text and SVG show values in display units (`units::display`: kJ/mol, M⁻¹ s⁻¹, mM, h); the
 //! CSV and JSON keep the internal (SI) values with their unit named beside them.
 
-use crate::report::csv_out::{CsvTable, opt_sci, sci};
+use crate::report::csv_out::{CsvTable, cell, opt_cell};
 use crate::report::{palette, ticks};
 use crate::uncertainty::{OutputSummary, QUANTILES, Record, Summary};
 use crate::units::{self, display, sig};
@@ -186,8 +186,8 @@ pub fn samples_csv(r: &Record) -> String {
     let mut t = CsvTable::new(header);
     for s in &r.samples {
         let mut cells = vec![s.index.to_string()];
-        cells.extend(s.values.iter().map(|v| sci(*v)));
-        cells.extend(s.outputs.iter().map(|v| opt_sci(*v)));
+        cells.extend(s.values.iter().map(|v| cell(*v)));
+        cells.extend(s.outputs.iter().map(|v| opt_cell(*v)));
         cells.push(s.error.clone().unwrap_or_default());
         t.row(cells);
     }
